@@ -1,0 +1,136 @@
+//! Families `dist-upper` and `dist-lower`: every pair's distance equals the profile.
+//!
+//! For positions `i < j` with offset class `k = min(j − i, p − j + i)` the
+//! constraint is `‖x_i − x_j‖∞ = g(k)`, split into two implications. Write
+//! `s_c = b_c − a_c`, `L = max_c s_c` and `[·]` for the coordinate terms of
+//! [`super::coords`] (constants folded).
+//!
+//! `dist-upper` (`g(k) ≤ t ⇒ |x_{i,c} − x_{j,c}| ≤ t` for all `c`): for
+//! `1 ≤ t < s_c` and `a_c < v ≤ b_c − t`, the clauses
+//! `G[k,t+1] ∨ ¬[x_{i,c} ≥ v+t] ∨ [x_{j,c} ≥ v]` and the same with `i, j`
+//! swapped. `t = 0` needs nothing because `G[k,1]` is a unit, and `t ≥ s_c`
+//! nothing because no difference in coordinate `c` exceeds `s_c`.
+//! No variables; `Σ_c s_c(s_c − 1)` clauses per pair.
+//!
+//! `dist-lower` (`g(k) ≥ t ⇒ some coordinate differs by ≥ t`): witness
+//! variables `D[i,j,c,t] → x_{i,c} − x_{j,c} ≥ t` for both orders of the pair,
+//! every `c` and `1 ≤ t ≤ s_c`, defined by `¬D ∨ [x_{i,c} ≥ a_c + t]`,
+//! `¬D ∨ ¬[x_{j,c} ≥ v] ∨ [x_{i,c} ≥ v + t]` for `a_c < v ≤ b_c − t`, and
+//! `¬D ∨ ¬[x_{j,c} ≥ b_c − t + 1]`; then for `1 ≤ t ≤ L` the clause
+//! `¬G[k,t] ∨ ⋁ D[·,·,c,t]` over both orders and all `c` with `s_c ≥ t`.
+//! `2·Σ_c s_c` variables and `L + Σ_c s_c(s_c + 3)` clauses per pair.
+//!
+//! Soundness: the witness clauses say, for each integer `v`, `x_j ≥ v ⇒
+//! x_i ≥ v + t`, which over the box is `x_i − x_j ≥ t`; only this direction is
+//! needed, since a witness can always be set false. Together the families say
+//! `g(k) ≤ d(x_i, x_j) ≤ g(k)` for every pair, and with the `profile` family
+//! (`g ≥ 1`) the points are pairwise distinct.
+
+use super::{Encoder, Term, coords, offset_class, pairs, profile};
+use crate::cnf::FamilyCount;
+use crate::question::Question;
+use crate::varmap::Meaning;
+
+/// Label of the upper-bound family.
+pub const FAMILY_UPPER: &str = "dist-upper";
+/// Label of the lower-bound family.
+pub const FAMILY_LOWER: &str = "dist-lower";
+
+/// Adds `‖x_i − x_j‖∞ ≤ g(k)` for every pair.
+pub fn add_upper(e: &mut Encoder, q: &Question) {
+    let g = &q.grid;
+    for (i, j, k) in pairs(q.period) {
+        for c in 0..g.dim() {
+            let s = g.side(c) as i64;
+            for t in 1..s {
+                let above = profile::ge(e, q, k, t + 1);
+                for v in g.lo(c) + 1..=g.hi(c) - t {
+                    for (u, w) in [(i, j), (j, i)] {
+                        let far = coords::ge(e, q, u, c, v + t);
+                        let near = coords::ge(e, q, w, c, v);
+                        e.clause(&[above, !far, near]);
+                    }
+                }
+            }
+        }
+    }
+}
+
+/// Adds `‖x_i − x_j‖∞ ≥ g(k)` for every pair, with witness variables.
+pub fn add_lower(e: &mut Encoder, q: &Question) {
+    let g = &q.grid;
+    let l = g.diameter() as i64;
+    let mut witnesses: Vec<Term> = Vec::new();
+    for (i, j, k) in pairs(q.period) {
+        debug_assert_eq!(k, offset_class(i, j, q.period));
+        for (u, w) in [(i, j), (j, i)] {
+            for c in 0..g.dim() {
+                for t in 1..=g.side(c) as i64 {
+                    let d = Term::Lit(
+                        e.var(Meaning::Diff {
+                            i: u,
+                            j: w,
+                            c,
+                            value: t,
+                        })
+                        .pos(),
+                    );
+                    let first = coords::ge(e, q, u, c, g.lo(c) + t);
+                    e.clause(&[!d, first]);
+                    for v in g.lo(c) + 1..=g.hi(c) - t {
+                        let (wv, uv) = (coords::ge(e, q, w, c, v), coords::ge(e, q, u, c, v + t));
+                        e.clause(&[!d, !wv, uv]);
+                    }
+                    let last = coords::ge(e, q, w, c, g.hi(c) - t + 1);
+                    e.clause(&[!d, !last]);
+                }
+            }
+        }
+        for t in 1..=l {
+            witnesses.clear();
+            witnesses.push(!profile::ge(e, q, k, t));
+            for (u, w) in [(i, j), (j, i)] {
+                for c in (0..g.dim()).filter(|&c| g.side(c) as i64 >= t) {
+                    let m = Meaning::Diff {
+                        i: u,
+                        j: w,
+                        c,
+                        value: t,
+                    };
+                    witnesses.push(Term::Lit(e.get(&m).pos()));
+                }
+            }
+            e.clause(&witnesses);
+        }
+    }
+}
+
+fn num_pairs(q: &Question) -> u64 {
+    let p = q.period as u64;
+    p * p.saturating_sub(1) / 2
+}
+
+/// Exact counts of `dist-upper` for `q`.
+pub fn count_upper(q: &Question) -> FamilyCount {
+    let per_pair: u64 = (0..q.dim())
+        .map(|c| q.grid.side(c))
+        .map(|s| s * s.saturating_sub(1))
+        .sum();
+    FamilyCount {
+        family: FAMILY_UPPER.into(),
+        vars: 0,
+        clauses: num_pairs(q) * per_pair,
+    }
+}
+
+/// Exact counts of `dist-lower` for `q`.
+pub fn count_lower(q: &Question) -> FamilyCount {
+    let sides: Vec<u64> = (0..q.dim()).map(|c| q.grid.side(c)).collect();
+    let vars = 2 * sides.iter().sum::<u64>();
+    let clauses = q.grid.diameter() + sides.iter().map(|&s| s * (s + 3)).sum::<u64>();
+    FamilyCount {
+        family: FAMILY_LOWER.into(),
+        vars: num_pairs(q) * vars,
+        clauses: num_pairs(q) * clauses,
+    }
+}

@@ -1,0 +1,283 @@
+//! From a [`Question`] to CNF.
+//!
+//! The formulation is the *isometric cycle* (`encodings/isometric-cycle.md`):
+//! variables describe `p` points `x_0..x_{p−1}` of the box and a distance
+//! profile `g(1..⌊p/2⌋)`, and the clauses say `‖x_i − x_j‖∞ = g(k(i, j))` for
+//! every pair, where `k(i, j) = min(|i − j|, p − |i − j|)`. Because `g(k) ≥ 1`
+//! the points are distinct, so a model is an orbit of minimal period `p` of the
+//! shift, which extends to a nonexpansive map of the whole box.
+//!
+//! Each constraint family lives in its own module and is written up in
+//! `encodings/`; every family reports its variable and clause counts, and
+//! [`estimate`] predicts them exactly from the question alone, before any
+//! clause is built.
+//!
+//! Encoders write into an [`Encoder`], which owns the [`Cnf`] and the
+//! [`VarMap`]; the same formula then feeds the bundled solver or the DIMACS
+//! writer, so `encode` writes exactly what `decide` solves.
+
+pub mod coords;
+pub mod distance;
+pub mod profile;
+
+use serde::{Deserialize, Serialize};
+
+use crate::cnf::{Cnf, FamilyCount, Lit, Var};
+use crate::error::{Error, Result};
+use crate::question::Question;
+use crate::varmap::{Meaning, VarMap};
+
+/// Name and version of the formulation, recorded in every CNF header.
+pub const FORMULATION: &str = "isometric-cycle/1";
+
+/// Default limit on the number of clauses [`encode`] will build.
+pub const DEFAULT_MAX_CLAUSES: u64 = 20_000_000;
+
+/// Options of the encoding, recorded in the CNF header so that a file says how it was made.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct EncodeOptions {
+    /// The formulation; always [`FORMULATION`] for this version.
+    pub formulation: String,
+}
+
+impl Default for EncodeOptions {
+    fn default() -> EncodeOptions {
+        EncodeOptions {
+            formulation: FORMULATION.to_string(),
+        }
+    }
+}
+
+/// A question turned into CNF, with the map needed to read models back.
+#[derive(Clone, Debug)]
+pub struct Encoding {
+    /// The question encoded.
+    pub question: Question,
+    /// The options used.
+    pub options: EncodeOptions,
+    /// The formula.
+    pub cnf: Cnf,
+    /// Meaning of every variable.
+    pub map: VarMap,
+    /// Variables and clauses per constraint family, in the order added.
+    pub families: Vec<FamilyCount>,
+}
+
+/// A clause term during construction: a literal, or a constant that the
+/// encoder folds away (true drops the clause, false drops the term).
+#[derive(Copy, Clone, Debug, PartialEq, Eq)]
+pub enum Term {
+    /// A literal.
+    Lit(Lit),
+    /// The constant true.
+    True,
+    /// The constant false.
+    False,
+}
+
+impl std::ops::Not for Term {
+    type Output = Term;
+    fn not(self) -> Term {
+        match self {
+            Term::Lit(l) => Term::Lit(!l),
+            Term::True => Term::False,
+            Term::False => Term::True,
+        }
+    }
+}
+
+impl From<Lit> for Term {
+    fn from(l: Lit) -> Term {
+        Term::Lit(l)
+    }
+}
+
+/// The sink encoders write into: a CNF under construction and its variable map.
+#[derive(Debug, Default)]
+pub struct Encoder {
+    cnf: Cnf,
+    map: VarMap,
+    families: Vec<FamilyCount>,
+    scratch: Vec<Lit>,
+}
+
+impl Encoder {
+    /// An empty encoder.
+    pub fn new() -> Encoder {
+        Encoder::default()
+    }
+
+    /// Runs `body` as constraint family `name`, recording what it adds.
+    pub fn family(&mut self, name: &str, body: impl FnOnce(&mut Encoder)) {
+        let (v0, c0) = (self.map.len(), self.cnf.num_clauses());
+        body(self);
+        self.families.push(FamilyCount {
+            family: name.to_string(),
+            vars: (self.map.len() - v0) as u64,
+            clauses: (self.cnf.num_clauses() - c0) as u64,
+        });
+    }
+
+    /// A fresh variable with meaning `m`.
+    pub fn var(&mut self, m: Meaning) -> Var {
+        let v = self.map.fresh(m);
+        self.cnf.reserve_vars(v.dimacs());
+        v
+    }
+
+    /// The variable registered with meaning `m`.
+    ///
+    /// # Panics
+    /// When `m` was never registered: families must run in dependency order.
+    pub fn get(&self, m: &Meaning) -> Var {
+        self.map
+            .get(m)
+            .unwrap_or_else(|| panic!("encoder bug: no variable for {m}"))
+    }
+
+    /// Adds the clause `terms`, folding constants.
+    pub fn clause(&mut self, terms: &[Term]) {
+        self.scratch.clear();
+        for &t in terms {
+            match t {
+                Term::True => return,
+                Term::False => {}
+                Term::Lit(l) => self.scratch.push(l),
+            }
+        }
+        self.cnf.add_clause(&self.scratch);
+    }
+
+    /// Finishes the encoding.
+    pub fn finish(self, question: &Question, options: &EncodeOptions) -> Encoding {
+        Encoding {
+            question: question.clone(),
+            options: options.clone(),
+            cnf: self.cnf,
+            map: self.map,
+            families: self.families,
+        }
+    }
+}
+
+/// The exact variable and clause counts the encoding of `q` will have, per family.
+pub fn estimate(q: &Question, _options: &EncodeOptions) -> Vec<FamilyCount> {
+    vec![
+        coords::count(q),
+        profile::count(q),
+        distance::count_upper(q),
+        distance::count_lower(q),
+    ]
+}
+
+/// Encodes `q` with `options`, refusing formulas above `max_clauses` clauses.
+///
+/// # Errors
+/// [`Error::TooLarge`] with the estimated size when the estimate exceeds `max_clauses`.
+pub fn encode(q: &Question, options: &EncodeOptions, max_clauses: u64) -> Result<Encoding> {
+    let est = estimate(q, options);
+    let clauses: u64 = est.iter().map(|f| f.clauses).sum();
+    let vars: u64 = est.iter().map(|f| f.vars).sum();
+    if clauses > max_clauses || vars > i32::MAX as u64 / 2 {
+        return Err(Error::TooLarge {
+            clauses,
+            vars,
+            limit: max_clauses,
+        });
+    }
+    let mut enc = Encoder::new();
+    enc.family(coords::FAMILY, |e| coords::add(e, q));
+    enc.family(profile::FAMILY, |e| profile::add(e, q));
+    enc.family(distance::FAMILY_UPPER, |e| distance::add_upper(e, q));
+    enc.family(distance::FAMILY_LOWER, |e| distance::add_lower(e, q));
+    Ok(enc.finish(q, options))
+}
+
+/// The cyclic offset class `min(|i − j|, p − |i − j|)` of positions `i ≠ j`.
+pub fn offset_class(i: usize, j: usize, p: usize) -> usize {
+    let d = i.abs_diff(j) % p;
+    d.min(p - d)
+}
+
+/// All unordered pairs `i < j` of cycle positions, with their offset class.
+pub fn pairs(p: usize) -> impl Iterator<Item = (usize, usize, usize)> {
+    (0..p).flat_map(move |i| (i + 1..p).map(move |j| (i, j, offset_class(i, j, p))))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::grid::Grid;
+
+    fn q(spec: &str, dim: usize, p: usize) -> Question {
+        Question::new(Grid::parse(spec, Some(dim)).unwrap(), p).unwrap()
+    }
+
+    #[test]
+    fn estimate_is_exact_for_every_family() {
+        for (spec, dim, p) in [
+            ("-1..1", 3, 8),
+            ("-1..1", 4, 17),
+            ("0..3", 2, 5),
+            ("0..1,-1..1,0..3", 3, 7),
+            ("0..0,0..2", 2, 3),
+            ("5..5", 2, 1),
+            ("0..1", 1, 2),
+        ] {
+            let question = q(spec, dim, p);
+            let opts = EncodeOptions::default();
+            let e = encode(&question, &opts, u64::MAX).unwrap();
+            assert_eq!(
+                e.families,
+                estimate(&question, &opts),
+                "{spec} n={dim} p={p}"
+            );
+            let total: u64 = e.families.iter().map(|f| f.clauses).sum();
+            assert_eq!(total as usize, e.cnf.num_clauses());
+            assert_eq!(e.map.len() as u32, e.cnf.num_vars());
+        }
+    }
+
+    #[test]
+    fn clause_counts_of_the_cube_question() {
+        // {-1,0,1}^3, p = 8: S = 6, L = 2, K = 4, 28 pairs (formulas in encodings/isometric-cycle.md).
+        let e = encode(&q("-1..1", 3, 8), &EncodeOptions::default(), u64::MAX).unwrap();
+        let got: Vec<(&str, u64, u64)> = e
+            .families
+            .iter()
+            .map(|f| (f.family.as_str(), f.vars, f.clauses))
+            .collect();
+        assert_eq!(
+            got,
+            vec![
+                ("coord-order", 48, 24),
+                ("profile", 8, 8),
+                ("dist-upper", 0, 168),
+                ("dist-lower", 336, 896),
+            ]
+        );
+    }
+
+    #[test]
+    fn oversized_questions_are_refused_with_the_estimate() {
+        let err = encode(
+            &q("0..40", 6, 300),
+            &EncodeOptions::default(),
+            DEFAULT_MAX_CLAUSES,
+        )
+        .unwrap_err()
+        .to_string();
+        assert!(
+            err.contains("too large") && err.contains("clauses"),
+            "{err}"
+        );
+    }
+
+    #[test]
+    fn offset_classes_fold_around_the_cycle() {
+        assert_eq!(offset_class(0, 7, 8), 1);
+        assert_eq!(offset_class(2, 6, 8), 4);
+        assert_eq!(pairs(4).count(), 6);
+    }
+}

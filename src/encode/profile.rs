@@ -1,0 +1,61 @@
+//! Family `profile`: the distance profile `g(k)`, `1 ≤ k ≤ ⌊p/2⌋`.
+//!
+//! On an isometric cycle `‖x_i − x_{i+k}‖∞ = g(k)` for all `i`, and
+//! `g(k) = g(p − k)`, so offsets `k ≤ ⌊p/2⌋` suffice.
+//!
+//! Variables: `G[k,t] ⇔ g(k) ≥ t` for `1 ≤ t ≤ L`, where `L` is the box's
+//! diameter `max_c (b_c − a_c)`; no two points of the box are farther apart.
+//!
+//! Clauses: the unit `G[k,1]` (points at nonzero offset are distinct, which
+//! makes the period minimal) and `G[k,t+1] → G[k,t]` for `1 ≤ t < L`.
+//!
+//! Counts: `K·L` variables and `K·L` clauses, `K = ⌊p/2⌋`.
+//!
+//! Soundness: the models are exactly the order encodings of values
+//! `g(k) ∈ [1, L]`, the only values a distance between distinct points of the
+//! box can take.
+
+use super::{Encoder, Term};
+use crate::cnf::FamilyCount;
+use crate::question::Question;
+use crate::varmap::Meaning;
+
+/// The family's label.
+pub const FAMILY: &str = "profile";
+
+/// Adds the profile variables and their clauses.
+pub fn add(e: &mut Encoder, q: &Question) {
+    let l = q.grid.diameter() as i64;
+    for k in 1..=q.period / 2 {
+        for value in 1..=l {
+            e.var(Meaning::Profile { k, value });
+        }
+        let first = ge(e, q, k, 1);
+        e.clause(&[first]);
+        for t in 1..l {
+            let (hi, lo) = (ge(e, q, k, t + 1), ge(e, q, k, t));
+            e.clause(&[!hi, lo]);
+        }
+    }
+}
+
+/// The term `g(k) ≥ t`, folded to a constant outside `[1, L]`.
+pub fn ge(e: &Encoder, q: &Question, k: usize, t: i64) -> Term {
+    if t <= 0 {
+        Term::True
+    } else if t > q.grid.diameter() as i64 {
+        Term::False
+    } else {
+        Term::Lit(e.get(&Meaning::Profile { k, value: t }).pos())
+    }
+}
+
+/// Exact counts of this family for `q`.
+pub fn count(q: &Question) -> FamilyCount {
+    let kl = (q.period / 2) as u64 * q.grid.diameter();
+    FamilyCount {
+        family: FAMILY.into(),
+        vars: kl,
+        clauses: kl,
+    }
+}

@@ -1,0 +1,114 @@
+//! The library's error type.
+//!
+//! Every error says what was wrong and where it came from (a flag, a file and
+//! line, a clause index), so that the binary can print it on one line and a
+//! user can fix the input without guessing.
+
+use std::path::PathBuf;
+
+/// Errors of the orbitcnf library.
+#[derive(Debug, thiserror::Error)]
+#[non_exhaustive]
+pub enum Error {
+    /// A grid specification such as `-1..1` or `0..1,-1..1` could not be used.
+    #[error("grid {spec:?}: {reason}")]
+    GridSpec {
+        /// The text as the user gave it.
+        spec: String,
+        /// What is wrong with it.
+        reason: String,
+    },
+
+    /// The question (grid, dimension, period) is not a valid question.
+    #[error("invalid question: {0}")]
+    Question(String),
+
+    /// The CNF would exceed the configured size limit.
+    #[error(
+        "the CNF would be too large: about {clauses} clauses over {vars} variables \
+         (limit {limit} clauses); raise --max-clauses if you mean it"
+    )]
+    TooLarge {
+        /// Estimated number of clauses.
+        clauses: u64,
+        /// Estimated number of variables.
+        vars: u64,
+        /// The limit in force.
+        limit: u64,
+    },
+
+    /// A file could not be parsed; `line` is 1-based.
+    #[error("{path}:{line}: {reason}")]
+    Parse {
+        /// The file (or a description of the stream).
+        path: String,
+        /// 1-based line number, 0 when the problem concerns the whole file.
+        line: usize,
+        /// What is wrong there.
+        reason: String,
+    },
+
+    /// Reading or writing a file failed.
+    #[error("{}: {source}", path.display())]
+    Io {
+        /// The file concerned.
+        path: PathBuf,
+        /// The underlying error.
+        #[source]
+        source: std::io::Error,
+    },
+
+    /// A solver's model falsifies a clause of the CNF it claims to satisfy.
+    #[error(
+        "{path}:{line}: the model falsifies clause {index} ({clause}); the solver's answer is wrong"
+    )]
+    ModelViolates {
+        /// The CNF file (or `<memory>`).
+        path: String,
+        /// 1-based line of the clause in the file (0 for an in-memory CNF).
+        line: usize,
+        /// 0-based index of the clause.
+        index: usize,
+        /// The clause in DIMACS form.
+        clause: String,
+    },
+
+    /// An orbit or map failed the independent check.
+    #[error("check failed: {0}")]
+    Check(#[from] crate::verify::CheckFailure),
+
+    /// A solver back-end failed (crashed, misbehaved, could not be started).
+    #[error("solver {solver}: {reason}")]
+    Solver {
+        /// Name of the back-end.
+        solver: String,
+        /// What went wrong.
+        reason: String,
+    },
+
+    /// A model did not give the orbit that decoding needs.
+    #[error("decoding the model: {0}")]
+    Decode(String),
+}
+
+/// Shorthand for results with the library's [`Error`].
+pub type Result<T, E = Error> = std::result::Result<T, E>;
+
+impl Error {
+    /// An [`Error::Io`] for `path`.
+    pub fn io(path: impl Into<PathBuf>, source: std::io::Error) -> Error {
+        Error::Io {
+            path: path.into(),
+            source,
+        }
+    }
+
+    /// An [`Error::Parse`] at `line` of `path`.
+    pub fn parse(path: impl Into<String>, line: usize, reason: impl Into<String>) -> Error {
+        Error::Parse {
+            path: path.into(),
+            line,
+            reason: reason.into(),
+        }
+    }
+}

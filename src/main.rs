@@ -1,0 +1,315 @@
+//! The `orbitcnf` command: a thin layer over the library.
+
+use std::io::{self, Write};
+use std::path::PathBuf;
+use std::process::ExitCode;
+use std::time::Duration;
+
+use clap::{Args, Parser, Subcommand};
+
+use orbitcnf::encode::{self, DEFAULT_MAX_CLAUSES, EncodeOptions};
+use orbitcnf::solve::{Limits, bundled::Bundled};
+use orbitcnf::{Error, Grid, Question, decide, dimacs, orbit_file, verify};
+
+const EXIT_CODES: &str = "\
+Exit codes (the SAT convention):
+  10  feasible: an orbit of minimal period p exists (printed and checked)
+  20  infeasible: no such orbit exists
+   0  unknown: no answer within the limits (or a command with no verdict succeeded)
+   1  error: bad input, a failed check, or a solver that misbehaved";
+
+/// Decide which periods sup-norm nonexpansive maps have on integer grids.
+///
+/// For a box D of integer points, a period p asks: is there a map f: D → D
+/// with ‖f(x) − f(y)‖∞ ≤ ‖x − y‖∞ that has a periodic point of minimal period
+/// p? On a box this holds iff D contains p distinct points x_0..x_{p−1} whose
+/// distances ‖x_i − x_{i+k}‖∞ do not depend on i (an isometric cycle).
+/// orbitcnf encodes that as CNF, solves it, and checks every orbit it reports.
+#[derive(Parser, Debug)]
+#[command(name = "orbitcnf", version, after_help = EXIT_CODES, max_term_width = 100)]
+struct Cli {
+    #[command(subcommand)]
+    command: Command,
+}
+
+#[derive(Subcommand, Debug)]
+enum Command {
+    /// Decide a question with the bundled solver and print a checked answer.
+    ///
+    /// Example: orbitcnf decide --dim 3 --grid=-1..1 --period 8
+    #[command(after_help = EXIT_CODES)]
+    Decide(DecideArgs),
+    /// Write the CNF of a question in DIMACS, with a header that records the
+    /// question, the options and the meaning of every variable.
+    ///
+    /// Solve the file with any DIMACS solver, then read its answer back with
+    /// `orbitcnf decode FILE.cnf SOLVER_OUTPUT`.
+    Encode(EncodeArgs),
+    /// Read a DIMACS solver's output for a CNF written by `encode`, check the
+    /// model against every clause, decode the orbit and verify it.
+    #[command(after_help = EXIT_CODES)]
+    Decode(DecodeArgs),
+    /// Verify an orbit given as JSON, independently of the encoder; with
+    /// --map, build the nonexpansive map on the whole grid and check it on
+    /// every pair of points.
+    ///
+    /// The file is {"grid": "-1..1,-1..1", "orbit": [[-1,-1],[-1,1],[1,1],[1,-1]]}
+    /// or the output of `decide --json`.
+    Check(CheckArgs),
+}
+
+#[derive(Args, Debug)]
+struct QuestionArgs {
+    /// The dimension n; needed only when --grid gives one range for all coordinates.
+    #[arg(long, value_name = "N")]
+    dim: Option<usize>,
+    /// The grid: one inclusive range for every coordinate (`-1..1`) or one per
+    /// coordinate (`0..1,-1..1,0..3`). Write `--grid=-1..1` so the leading
+    /// minus is not taken for a flag.
+    #[arg(
+        long,
+        value_name = "SPEC",
+        default_value = "-1..1",
+        allow_hyphen_values = true
+    )]
+    grid: String,
+    /// The minimal period p asked for.
+    #[arg(long, short = 'p', value_name = "P", default_value_t = 8)]
+    period: usize,
+    /// Refuse to build formulas with more clauses than this.
+    #[arg(long, value_name = "N", default_value_t = DEFAULT_MAX_CLAUSES)]
+    max_clauses: u64,
+}
+
+impl QuestionArgs {
+    fn question(&self) -> Result<Question, Error> {
+        if self.dim == Some(0) {
+            return Err(Error::Question(
+                "the dimension must be at least 1 (got --dim 0)".into(),
+            ));
+        }
+        Question::new(Grid::parse(&self.grid, self.dim)?, self.period)
+    }
+}
+
+#[derive(Args, Debug)]
+struct DecideArgs {
+    #[command(flatten)]
+    question: QuestionArgs,
+    /// Give up after this many seconds and answer "unknown" (exit 0).
+    #[arg(long, value_name = "SECS", value_parser = parse_seconds)]
+    time_limit: Option<Duration>,
+    /// Print one JSON object instead of the text report.
+    #[arg(long)]
+    json: bool,
+    /// Do not show the progress line on stderr.
+    #[arg(long, short)]
+    quiet: bool,
+}
+
+#[derive(Args, Debug)]
+struct EncodeArgs {
+    #[command(flatten)]
+    question: QuestionArgs,
+    /// Where to write the CNF (`-` for stdout).
+    #[arg(long, short, value_name = "FILE")]
+    output: PathBuf,
+}
+
+#[derive(Args, Debug)]
+struct DecodeArgs {
+    /// The CNF file written by `orbitcnf encode`.
+    cnf: PathBuf,
+    /// The solver's output: `s` line and `v` lines, as DIMACS solvers print them.
+    solver_output: PathBuf,
+    /// Print one JSON object instead of the text report.
+    #[arg(long)]
+    json: bool,
+}
+
+#[derive(Args, Debug)]
+struct CheckArgs {
+    /// The orbit file (JSON).
+    orbit: PathBuf,
+    /// Also build the extension f on the whole grid and check it by exhaustion.
+    #[arg(long)]
+    map: bool,
+    /// With --map: write the map as JSON to FILE instead of printing the table.
+    #[arg(long, value_name = "FILE", requires = "map")]
+    map_out: Option<PathBuf>,
+    /// Print one JSON object instead of text.
+    #[arg(long)]
+    json: bool,
+}
+
+fn parse_seconds(s: &str) -> Result<Duration, String> {
+    let v: f64 = s
+        .parse()
+        .map_err(|_| format!("{s:?} is not a number of seconds"))?;
+    if !(v > 0.0 && v.is_finite() && v < 1e9) {
+        return Err(format!(
+            "the time limit must be a positive number of seconds, got {s}"
+        ));
+    }
+    Ok(Duration::from_secs_f64(v))
+}
+
+fn main() -> ExitCode {
+    let cli = match Cli::try_parse() {
+        Ok(cli) => cli,
+        Err(e) => {
+            use clap::error::ErrorKind;
+            if matches!(e.kind(), ErrorKind::DisplayHelp | ErrorKind::DisplayVersion) {
+                let _ = e.print();
+                return ExitCode::SUCCESS;
+            }
+            let text = e.render().to_string();
+            let first = text
+                .lines()
+                .next()
+                .unwrap_or("bad arguments")
+                .trim_start_matches("error: ");
+            eprintln!("orbitcnf: error: {first} (see 'orbitcnf --help')");
+            return ExitCode::from(1);
+        }
+    };
+    match run(cli) {
+        Ok(code) => ExitCode::from(code),
+        Err(e) => {
+            let mut msg = e.to_string();
+            let mut src = std::error::Error::source(&e);
+            while let Some(s) = src {
+                let t = s.to_string();
+                if !msg.contains(&t) {
+                    msg.push_str(": ");
+                    msg.push_str(&t);
+                }
+                src = s.source();
+            }
+            eprintln!("orbitcnf: error: {}", msg.replace('\n', " "));
+            ExitCode::from(1)
+        }
+    }
+}
+
+fn print(text: &str) -> Result<(), Error> {
+    let mut out = io::stdout().lock();
+    match out.write_all(text.as_bytes()).and_then(|()| out.flush()) {
+        Err(e) if e.kind() != io::ErrorKind::BrokenPipe => Err(Error::io("<stdout>", e)),
+        _ => Ok(()),
+    }
+}
+
+fn run(cli: Cli) -> Result<u8, Error> {
+    match cli.command {
+        Command::Decide(a) => {
+            let q = a.question.question()?;
+            let limits = Limits {
+                time: a.time_limit,
+                progress: !a.quiet && !a.json,
+            };
+            let report = decide::decide(
+                &q,
+                &EncodeOptions::default(),
+                &mut Bundled,
+                &limits,
+                a.question.max_clauses,
+            )?;
+            print(&if a.json {
+                report.to_json() + "\n"
+            } else {
+                report.to_text()
+            })?;
+            Ok(report.verdict.exit_code() as u8)
+        }
+        Command::Encode(a) => {
+            let q = a.question.question()?;
+            let enc = encode::encode(&q, &EncodeOptions::default(), a.question.max_clauses)?;
+            if a.output.as_os_str() == "-" {
+                let bytes = dimacs::render_cnf(&enc);
+                let mut out = io::stdout().lock();
+                match out.write_all(&bytes) {
+                    Err(e) if e.kind() != io::ErrorKind::BrokenPipe => {
+                        return Err(Error::io("<stdout>", e));
+                    }
+                    _ => {}
+                }
+            } else {
+                dimacs::write_cnf(&enc, &a.output)?;
+                eprintln!(
+                    "wrote {} ({} variables, {} clauses) for {}",
+                    a.output.display(),
+                    enc.cnf.num_vars(),
+                    enc.cnf.num_clauses(),
+                    q.statement()
+                );
+            }
+            Ok(0)
+        }
+        Command::Decode(a) => {
+            let file = dimacs::read_cnf_file(&a.cnf)?;
+            let text = std::fs::read_to_string(&a.solver_output)
+                .map_err(|e| Error::io(&a.solver_output, e))?;
+            let out_path = a.solver_output.display().to_string();
+            let answer = dimacs::parse_solver_output(&text, &out_path)?;
+            let report =
+                decide::decode_answer(&file, &a.cnf.display().to_string(), &answer, &out_path)?;
+            print(&if a.json {
+                report.to_json() + "\n"
+            } else {
+                report.to_text()
+            })?;
+            Ok(report.verdict.exit_code() as u8)
+        }
+        Command::Check(a) => check(a),
+    }
+}
+
+fn check(a: CheckArgs) -> Result<u8, Error> {
+    let text = std::fs::read_to_string(&a.orbit).map_err(|e| Error::io(&a.orbit, e))?;
+    let f = orbit_file::parse(&text, &a.orbit.display().to_string())?;
+    let bounds = f.grid.ranges();
+    let orbit_check = verify::check_orbit(bounds, &f.orbit)?;
+    let mut json = serde_json::json!({
+        "grid": f.grid.spec(),
+        "period": f.orbit.len(),
+        "orbit_check": orbit_check,
+    });
+    let mut text = format!(
+        "grid         {}\norbit check  passed: {orbit_check}\nprofile      {:?}\n",
+        f.grid, orbit_check.profile
+    );
+    if a.map {
+        let table = verify::extend(bounds, &f.orbit)?;
+        let map_check = verify::check_map(&table, &f.orbit)?;
+        text.push_str(&format!("map check    passed: {map_check}\n"));
+        json["map_check"] = serde_json::to_value(&map_check).expect("serialises");
+        let entries: Vec<serde_json::Value> = table
+            .entries
+            .iter()
+            .map(|(z, fz)| serde_json::json!({"x": z, "f": fz}))
+            .collect();
+        match &a.map_out {
+            Some(path) => {
+                let doc = serde_json::json!({"grid": f.grid.spec(), "map": entries});
+                dimacs::write_atomically(path, (doc.to_string() + "\n").as_bytes())?;
+                text.push_str(&format!("map          written to {}\n", path.display()));
+            }
+            None => {
+                json["map"] = serde_json::Value::Array(entries);
+                text.push_str(
+                    "map          x -> f(x), f_c(x) = clamp(min_j (x_{j+1,c} + ‖x − x_j‖∞))\n",
+                );
+                for (z, fz) in &table.entries {
+                    text.push_str(&format!("             {z:?} -> {fz:?}\n"));
+                }
+            }
+        }
+    }
+    print(&if a.json {
+        json.to_string() + "\n"
+    } else {
+        text
+    })?;
+    Ok(0)
+}

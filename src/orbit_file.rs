@@ -1,0 +1,74 @@
+//! Orbit files for `orbitcnf check`.
+//!
+//! Two JSON forms are read: the plain one,
+//! `{"grid": "-1..1,-1..1", "orbit": [[-1,-1], [-1,1], [1,1], [1,-1]]}`
+//! (`"dim"` optional, for a grid given as one range), and the report printed
+//! by `decide --json`, whose `question` holds `dim` and `grid`.
+
+use serde_json::Value;
+
+use crate::error::{Error, Result};
+use crate::grid::{Grid, Point};
+
+/// An orbit with the grid it lives in.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct OrbitFile {
+    /// The grid.
+    pub grid: Grid,
+    /// The points `x_0..x_{p−1}`.
+    pub orbit: Vec<Point>,
+}
+
+/// Parses an orbit file's text; `path` names it in errors.
+///
+/// # Errors
+/// [`Error::Parse`] saying which field is missing or malformed, or the JSON error's line.
+pub fn parse(text: &str, path: &str) -> Result<OrbitFile> {
+    let v: Value = serde_json::from_str(text)
+        .map_err(|e| Error::parse(path, e.line(), format!("not valid JSON: {e}")))?;
+    let bad = |r: String| Error::parse(path, 0, r);
+    let holder = match v.get("question") {
+        Some(q) if q.get("grid").is_some() => q,
+        _ => &v,
+    };
+    let spec = holder
+        .get("grid")
+        .and_then(Value::as_str)
+        .ok_or_else(|| bad("no \"grid\" string (e.g. \"grid\": \"-1..1,-1..1\")".into()))?;
+    let dim = match holder.get("dim") {
+        None | Some(Value::Null) => None,
+        Some(d) => Some(
+            d.as_u64()
+                .ok_or_else(|| bad("\"dim\" must be a whole number".into()))? as usize,
+        ),
+    };
+    let grid = Grid::parse(spec, dim).map_err(|e| bad(e.to_string()))?;
+    let list = v
+        .get("orbit")
+        .or_else(|| v.get("points"))
+        .and_then(Value::as_array)
+        .ok_or_else(|| {
+            bad("no \"orbit\" list of points (a feasible report has one; an infeasible one has none)".into())
+        })?;
+    let mut orbit = Vec::with_capacity(list.len());
+    for (i, p) in list.iter().enumerate() {
+        let coords = p
+            .as_array()
+            .ok_or_else(|| bad(format!("orbit point {i} is not a list of integers")))?;
+        let mut x = Vec::with_capacity(coords.len());
+        for (c, val) in coords.iter().enumerate() {
+            x.push(val.as_i64().ok_or_else(|| {
+                bad(format!(
+                    "orbit point {i}, coordinate {c}: {val} is not an integer"
+                ))
+            })?);
+        }
+        orbit.push(x);
+    }
+    Ok(OrbitFile { grid, orbit })
+}
+
+/// The plain JSON form of an orbit file.
+pub fn to_json(grid: &Grid, orbit: &[Point]) -> String {
+    serde_json::json!({ "grid": grid.spec(), "orbit": orbit }).to_string()
+}

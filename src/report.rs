@@ -1,0 +1,246 @@
+//! Reports: what a decision found, for people (text) and programs (JSON).
+//!
+//! The JSON object of `decide --json` and `decode --json` is [`Report`]
+//! serialised; its fields are documented here and are stable within a minor
+//! version. Exit codes follow the SAT convention ([`Verdict::exit_code`]).
+
+use std::fmt::Write as _;
+
+use serde::Serialize;
+
+use crate::cnf::{Cnf, FamilyCount};
+use crate::encode::EncodeOptions;
+use crate::grid::Point;
+use crate::question::{Question, QuestionRecord};
+use crate::solve::SolveStats;
+use crate::verify::OrbitCheck;
+
+/// The answer to a question.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum Verdict {
+    /// An orbit of minimal period p exists; the report carries it, checked.
+    Feasible,
+    /// No orbit of minimal period p exists.
+    Infeasible,
+    /// No answer (limit reached, solver gave up).
+    Unknown,
+}
+
+impl Verdict {
+    /// The process exit code: 10 feasible, 20 infeasible, 0 unknown (1 is for errors).
+    pub fn exit_code(self) -> i32 {
+        match self {
+            Verdict::Feasible => 10,
+            Verdict::Infeasible => 20,
+            Verdict::Unknown => 0,
+        }
+    }
+
+    /// The verdict as a word.
+    pub fn word(self) -> &'static str {
+        match self {
+            Verdict::Feasible => "feasible",
+            Verdict::Infeasible => "infeasible",
+            Verdict::Unknown => "unknown",
+        }
+    }
+}
+
+/// What backs a verdict.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize)]
+#[serde(tag = "kind", rename_all = "kebab-case")]
+pub enum Certificate {
+    /// The orbit itself, checked independently.
+    Witness,
+    /// A solver's claim of unsatisfiability, with no proof checked.
+    SolverClaim {
+        /// Who claims it.
+        solver: String,
+    },
+    /// Nothing (unknown verdicts).
+    None,
+}
+
+/// A checked orbit.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize)]
+pub struct Witness {
+    /// `x_0..x_{p−1}`.
+    pub orbit: Vec<Point>,
+    /// What the independent check established.
+    pub check: OrbitCheck,
+}
+
+/// Size of the formula and time to build it.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct SizeStats {
+    /// Variables.
+    pub variables: u64,
+    /// Clauses.
+    pub clauses: u64,
+    /// Seconds spent encoding.
+    pub encode_seconds: f64,
+    /// Per-family counts (empty when read from a file).
+    pub families: Vec<FamilyCount>,
+}
+
+impl SizeStats {
+    /// The sizes of `cnf`.
+    pub fn of(cnf: &Cnf, families: Vec<FamilyCount>, encode_seconds: f64) -> SizeStats {
+        SizeStats {
+            variables: cnf.num_vars() as u64,
+            clauses: cnf.num_clauses() as u64,
+            encode_seconds,
+            families,
+        }
+    }
+}
+
+/// All statistics of a decision.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct Stats {
+    /// The formula.
+    #[serde(flatten)]
+    pub size: SizeStats,
+    /// The solve.
+    #[serde(flatten)]
+    pub solve: SolveStats,
+}
+
+/// The full report of one decision.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct Report {
+    /// `feasible`, `infeasible` or `unknown`.
+    pub verdict: Verdict,
+    /// The question.
+    pub question: QuestionRecord,
+    /// The question in words.
+    pub statement: String,
+    /// The encoding options.
+    pub options: EncodeOptions,
+    /// The orbit `x_0..x_{p−1}`, when feasible.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub orbit: Option<Vec<Point>>,
+    /// `‖x_0 − x_k‖∞` for `k = 1..=⌊p/2⌋`, when feasible.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub profile: Option<Vec<i64>>,
+    /// The independent check of the orbit, when feasible.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub check: Option<OrbitCheck>,
+    /// What backs the verdict.
+    pub certificate: Certificate,
+    /// Why the verdict is unknown, when it is.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub reason: Option<String>,
+    /// Sizes and times.
+    pub stats: Stats,
+}
+
+impl Report {
+    /// Assembles a report.
+    #[allow(clippy::too_many_arguments)]
+    pub fn new(
+        q: &Question,
+        options: &EncodeOptions,
+        verdict: Verdict,
+        witness: Option<Witness>,
+        certificate: Certificate,
+        reason: Option<String>,
+        size: SizeStats,
+        solve: SolveStats,
+    ) -> Report {
+        let (orbit, check) = match witness {
+            Some(w) => (Some(w.orbit), Some(w.check)),
+            None => (None, None),
+        };
+        Report {
+            verdict,
+            question: q.record(),
+            statement: q.statement(),
+            options: options.clone(),
+            profile: check.as_ref().map(|c| c.profile.clone()),
+            orbit,
+            check,
+            certificate,
+            reason,
+            stats: Stats { size, solve },
+        }
+    }
+
+    /// The report as one JSON object (one line).
+    pub fn to_json(&self) -> String {
+        serde_json::to_string(self).expect("reports serialise")
+    }
+
+    /// The report for people.
+    pub fn to_text(&self) -> String {
+        let mut s = String::new();
+        let _ = writeln!(s, "question     {}", self.statement);
+        match self.verdict {
+            Verdict::Feasible => {
+                let _ = writeln!(s, "verdict      FEASIBLE");
+            }
+            Verdict::Infeasible => {
+                let _ = writeln!(
+                    s,
+                    "verdict      INFEASIBLE: no such map exists (no isometric {}-cycle in the grid)",
+                    self.question.period
+                );
+            }
+            Verdict::Unknown => {
+                let why = self.reason.as_deref().unwrap_or("no answer");
+                let _ = writeln!(s, "verdict      UNKNOWN: {why}");
+            }
+        }
+        if let Some(orbit) = &self.orbit {
+            let _ = writeln!(s, "orbit        i  x_i");
+            let width = orbit.len().saturating_sub(1).to_string().len().max(1);
+            for (i, x) in orbit.iter().enumerate() {
+                let coords: Vec<String> = x.iter().map(|v| format!("{v:>2}")).collect();
+                let _ = writeln!(s, "             {i:>width$}  ({})", coords.join(", "));
+            }
+        }
+        if let Some(profile) = &self.profile {
+            let shown: Vec<String> = profile.iter().map(|d| d.to_string()).collect();
+            let _ = writeln!(
+                s,
+                "profile      ‖x_0 − x_k‖∞ for k = 1..{}: {}",
+                profile.len(),
+                if shown.is_empty() {
+                    "(none: a fixed point)".into()
+                } else {
+                    shown.join(" ")
+                }
+            );
+        }
+        if let Some(check) = &self.check {
+            let _ = writeln!(s, "check        passed: {check}");
+        }
+        match &self.certificate {
+            Certificate::Witness => {}
+            Certificate::SolverClaim { solver } => {
+                let _ = writeln!(
+                    s,
+                    "certificate  the unsatisfiability claim of {solver}; no proof was checked"
+                );
+            }
+            Certificate::None => {}
+        }
+        let st = &self.stats;
+        let conflicts = st
+            .solve
+            .conflicts
+            .map(|c| format!(", {c} conflicts"))
+            .unwrap_or_default();
+        let _ = writeln!(
+            s,
+            "stats        {} variables, {} clauses{conflicts}; encode {:.3} s, solve {:.3} s ({})",
+            st.size.variables,
+            st.size.clauses,
+            st.size.encode_seconds,
+            st.solve.seconds,
+            st.solve.solver
+        );
+        s
+    }
+}

@@ -1,0 +1,156 @@
+//! The bundled pure-Rust solver, varisat 0.2.2.
+//!
+//! varisat 0.2.2 has no time limit, no conflict counter and no interrupt. It
+//! does write a proof while solving, through a buffered writer that we supply,
+//! and it aborts `solve` with an error as soon as that writer fails. So the
+//! solver is handed a [`Meter`]: a binary-DRAT sink that counts the clauses
+//! added (one learned clause per conflict), draws the progress line, and
+//! fails once the deadline has passed. An aborted solve is reported as
+//! [`Outcome::Unknown`]: no answer is ever derived from it, so the limit is
+//! sound. Its granularity is one buffer flush of 8 KiB of proof, a few
+//! milliseconds on hard formulas.
+
+use std::io::{self, IsTerminal, Write};
+use std::sync::Arc;
+use std::sync::atomic::{AtomicBool, AtomicU64, Ordering};
+use std::time::Instant;
+
+use varisat::solver::SolverError;
+use varisat::{ExtendFormula, ProofFormat, Solver};
+
+use super::{Backend, Limits, Outcome, SolveResult, SolveStats};
+use crate::cnf::Cnf;
+use crate::error::{Error, Result};
+
+/// The bundled solver.
+#[derive(Clone, Debug, Default)]
+pub struct Bundled;
+
+const NAME: &str = "varisat-0.2.2";
+
+impl Backend for Bundled {
+    fn name(&self) -> String {
+        NAME.to_string()
+    }
+
+    fn solve(&mut self, cnf: &Cnf, limits: &Limits) -> Result<SolveResult> {
+        let start = Instant::now();
+        let learned = Arc::new(AtomicU64::new(0));
+        let timed_out = Arc::new(AtomicBool::new(false));
+        let meter = Meter {
+            deadline: limits.time.map(|t| start + t),
+            start,
+            learned: learned.clone(),
+            timed_out: timed_out.clone(),
+            progress: limits.progress && io::stderr().is_terminal(),
+            last_report: start,
+            state: DratState::RecordStart,
+        };
+        let mut solver = Solver::new();
+        solver.write_proof(meter, ProofFormat::BinaryDrat);
+        let mut buf: Vec<varisat::Lit> = Vec::new();
+        for clause in cnf.clauses() {
+            buf.clear();
+            buf.extend(
+                clause
+                    .iter()
+                    .map(|l| varisat::Lit::from_dimacs(l.dimacs() as isize)),
+            );
+            solver.add_clause(&buf);
+        }
+        let answer = solver.solve();
+        let outcome = match answer {
+            Ok(true) => {
+                let mut model = vec![false; cnf.num_vars() as usize];
+                for l in solver.model().unwrap_or_default() {
+                    if let Some(slot) = model.get_mut(l.var().index()) {
+                        *slot = l.is_positive();
+                    }
+                }
+                Outcome::Sat(model)
+            }
+            Ok(false) => Outcome::Unsat,
+            Err(SolverError::ProofIoError { .. }) if timed_out.load(Ordering::Relaxed) => {
+                Outcome::Unknown(format!(
+                    "time limit of {:.1} s reached",
+                    limits.time.map(|t| t.as_secs_f64()).unwrap_or(0.0)
+                ))
+            }
+            Err(e) => {
+                return Err(Error::Solver {
+                    solver: NAME.into(),
+                    reason: e.to_string(),
+                });
+            }
+        };
+        drop(solver);
+        if limits.progress && io::stderr().is_terminal() {
+            eprint!("\r\x1b[K");
+        }
+        Ok(SolveResult {
+            outcome,
+            stats: SolveStats {
+                solver: NAME.into(),
+                seconds: start.elapsed().as_secs_f64(),
+                conflicts: Some(learned.load(Ordering::Relaxed)),
+            },
+        })
+    }
+}
+
+#[derive(Clone, Copy, Debug)]
+enum DratState {
+    RecordStart,
+    /// Inside a record; `true` while a multi-byte varint continues.
+    InRecord(bool),
+}
+
+/// The proof sink: counts added clauses, reports progress, enforces the deadline.
+struct Meter {
+    deadline: Option<Instant>,
+    start: Instant,
+    learned: Arc<AtomicU64>,
+    timed_out: Arc<AtomicBool>,
+    progress: bool,
+    last_report: Instant,
+    state: DratState,
+}
+
+impl Write for Meter {
+    fn write(&mut self, buf: &[u8]) -> io::Result<usize> {
+        // Binary DRAT: records 'a' or 'd', then varint literals, closed by a 0 byte.
+        let mut added = 0u64;
+        for &b in buf {
+            self.state = match self.state {
+                DratState::RecordStart => {
+                    if b == b'a' {
+                        added += 1;
+                    }
+                    DratState::InRecord(false)
+                }
+                DratState::InRecord(false) if b == 0 => DratState::RecordStart,
+                DratState::InRecord(_) => DratState::InRecord(b & 0x80 != 0),
+            };
+        }
+        let total = self.learned.fetch_add(added, Ordering::Relaxed) + added;
+        let now = Instant::now();
+        if let Some(d) = self.deadline {
+            if now >= d {
+                self.timed_out.store(true, Ordering::Relaxed);
+                return Err(io::Error::other("orbitcnf time limit reached"));
+            }
+        }
+        if self.progress && now.duration_since(self.last_report).as_millis() >= 250 {
+            self.last_report = now;
+            eprint!(
+                "\r\x1b[Ksolving with {NAME}: {:.1} s, {total} conflicts",
+                now.duration_since(self.start).as_secs_f64()
+            );
+        }
+        Ok(buf.len())
+    }
+
+    fn flush(&mut self) -> io::Result<()> {
+        Ok(())
+    }
+}

@@ -23,6 +23,10 @@ pub enum Error {
     #[error("invalid question: {0}")]
     Question(String),
 
+    /// Encoding options that do not fit together.
+    #[error("invalid encoding options: {0}")]
+    Options(String),
+
     /// The CNF would exceed the configured size limit.
     #[error(
         "the CNF would be too large: about {clauses} clauses over {vars} variables \

@@ -7,7 +7,7 @@ use std::time::Duration;
 
 use clap::{Args, Parser, Subcommand};
 
-use orbitcnf::encode::{self, DEFAULT_MAX_CLAUSES, EncodeOptions};
+use orbitcnf::encode::{self, DEFAULT_MAX_CLAUSES, EncodeOptions, Symmetry};
 use orbitcnf::solve::{Limits, bundled::Bundled};
 use orbitcnf::{Error, Grid, Question, decide, dimacs, orbit_file, verify};
 
@@ -93,9 +93,35 @@ impl QuestionArgs {
 }
 
 #[derive(Args, Debug)]
+struct EncodingArgs {
+    /// Symmetry breaking: `all` (the default), `none`, or a comma-separated
+    /// list of translate, multiplier, rotate, isometry, stabilizer, reverse
+    /// (stabilizer needs isometry, reverse needs stabilizer). Every
+    /// combination is sound; see encodings/symmetry.md.
+    #[arg(long, value_name = "LIST", default_value = "all")]
+    symmetry: String,
+    /// Leave out the redundant occupancy count (on by default; it lets the
+    /// solver refute "p points in fewer than p places" quickly).
+    #[arg(long)]
+    no_count: bool,
+}
+
+impl EncodingArgs {
+    fn options(&self) -> Result<EncodeOptions, Error> {
+        Ok(EncodeOptions {
+            symmetry: Symmetry::parse(&self.symmetry)?,
+            count: !self.no_count,
+            ..EncodeOptions::default()
+        })
+    }
+}
+
+#[derive(Args, Debug)]
 struct DecideArgs {
     #[command(flatten)]
     question: QuestionArgs,
+    #[command(flatten)]
+    encoding: EncodingArgs,
     /// Give up after this many seconds and answer "unknown" (exit 0).
     #[arg(long, value_name = "SECS", value_parser = parse_seconds)]
     time_limit: Option<Duration>,
@@ -111,6 +137,8 @@ struct DecideArgs {
 struct EncodeArgs {
     #[command(flatten)]
     question: QuestionArgs,
+    #[command(flatten)]
+    encoding: EncodingArgs,
     /// Where to write the CNF (`-` for stdout).
     #[arg(long, short, value_name = "FILE")]
     output: PathBuf,
@@ -210,7 +238,7 @@ fn run(cli: Cli) -> Result<u8, Error> {
             };
             let report = decide::decide(
                 &q,
-                &EncodeOptions::default(),
+                &a.encoding.options()?,
                 &mut Bundled,
                 &limits,
                 a.question.max_clauses,
@@ -224,7 +252,7 @@ fn run(cli: Cli) -> Result<u8, Error> {
         }
         Command::Encode(a) => {
             let q = a.question.question()?;
-            let enc = encode::encode(&q, &EncodeOptions::default(), a.question.max_clauses)?;
+            let enc = encode::encode(&q, &a.encoding.options()?, a.question.max_clauses)?;
             if a.output.as_os_str() == "-" {
                 let bytes = dimacs::render_cnf(&enc);
                 let mut out = io::stdout().lock();

@@ -47,6 +47,22 @@ pub enum Meaning {
         /// Threshold.
         value: i64,
     },
+    /// `x_{i,c} = value`.
+    Value {
+        /// Position on the cycle.
+        i: usize,
+        /// Coordinate.
+        c: usize,
+        /// The value.
+        value: i64,
+    },
+    /// `x_i = z`: position `i` of the cycle sits at grid point `z`.
+    At {
+        /// Position on the cycle.
+        i: usize,
+        /// The grid point.
+        z: Vec<i64>,
+    },
     /// An auxiliary variable of a constraint family, with no meaning for decoding.
     Aux {
         /// The family's label.
@@ -62,6 +78,11 @@ impl fmt::Display for Meaning {
             Meaning::Coord { i, c, value } => write!(f, "coord i={i} c={c} ge={value}"),
             Meaning::Profile { k, value } => write!(f, "profile k={k} ge={value}"),
             Meaning::Diff { i, j, c, value } => write!(f, "diff i={i} j={j} c={c} ge={value}"),
+            Meaning::Value { i, c, value } => write!(f, "value i={i} c={c} eq={value}"),
+            Meaning::At { i, z } => {
+                let coords: Vec<String> = z.iter().map(|v| v.to_string()).collect();
+                write!(f, "at i={i} z={}", coords.join(","))
+            }
             Meaning::Aux { family, index } => write!(f, "aux family={family} index={index}"),
         }
     }
@@ -128,6 +149,25 @@ impl FromStr for Meaning {
                     c: idx("c")?,
                     value: int("ge")?,
                 })
+            }
+            "value" => {
+                expect(&["i", "c", "eq"])?;
+                Ok(Meaning::Value {
+                    i: idx("i")?,
+                    c: idx("c")?,
+                    value: int("eq")?,
+                })
+            }
+            "at" => {
+                expect(&["i", "z"])?;
+                let z = take("z")?
+                    .split(',')
+                    .map(|t| {
+                        t.parse::<i64>()
+                            .map_err(|_| format!("at: {t:?} is not an integer"))
+                    })
+                    .collect::<Result<Vec<i64>, String>>()?;
+                Ok(Meaning::At { i: idx("i")?, z })
             }
             "aux" => {
                 expect(&["family", "index"])?;

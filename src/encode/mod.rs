@@ -17,8 +17,11 @@
 //! writer, so `encode` writes exactly what `decide` solves.
 
 pub mod coords;
+pub mod count;
 pub mod distance;
+pub mod points;
 pub mod profile;
+pub mod symmetry;
 
 use serde::{Deserialize, Serialize};
 
@@ -33,19 +36,193 @@ pub const FORMULATION: &str = "isometric-cycle/1";
 /// Default limit on the number of clauses [`encode`] will build.
 pub const DEFAULT_MAX_CLAUSES: u64 = 20_000_000;
 
+/// Largest `p·|D|` for which the point-indicator families (`point-eq` and
+/// everything built on it) are added.
+pub const POINT_EQ_LIMIT: u128 = 2_000_000;
+
+/// Which symmetry-breaking families to add (see [`symmetry`]).
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Symmetry {
+    /// Step 1: the orbit touches a face in every coordinate.
+    pub translate: bool,
+    /// Step 2: the profile is lexicographically least under the multipliers.
+    pub multiplier: bool,
+    /// Step 3: `x_0` has the most central type on the orbit.
+    pub rotate: bool,
+    /// Step 4: `x_0` is the smallest point of its isometry orbit.
+    pub isometry: bool,
+    /// Step 5: `x_1` is the smallest point of its orbit under the stabiliser of `x_0`.
+    pub stabilizer: bool,
+    /// Step 6: `x_1`'s stabiliser class is at most `x_{p−1}`'s.
+    pub reverse: bool,
+}
+
+impl Symmetry {
+    /// Every family on.
+    pub const ALL: Symmetry = Symmetry {
+        translate: true,
+        multiplier: true,
+        rotate: true,
+        isometry: true,
+        stabilizer: true,
+        reverse: true,
+    };
+    /// Every family off.
+    pub const NONE: Symmetry = Symmetry {
+        translate: false,
+        multiplier: false,
+        rotate: false,
+        isometry: false,
+        stabilizer: false,
+        reverse: false,
+    };
+    /// The family names, as accepted by [`Symmetry::parse`].
+    pub const NAMES: [&'static str; 6] = [
+        "translate",
+        "multiplier",
+        "rotate",
+        "isometry",
+        "stabilizer",
+        "reverse",
+    ];
+
+    /// Parses `all`, `none` or a comma-separated list of [`Symmetry::NAMES`].
+    ///
+    /// # Errors
+    /// [`Error::Options`] naming an unknown family or a missing prerequisite.
+    pub fn parse(text: &str) -> Result<Symmetry> {
+        let t = text.trim();
+        let s = match t {
+            "all" => Symmetry::ALL,
+            "none" | "" => Symmetry::NONE,
+            _ => {
+                let mut s = Symmetry::NONE;
+                for name in t.split(',').map(str::trim) {
+                    match name {
+                        "translate" => s.translate = true,
+                        "multiplier" => s.multiplier = true,
+                        "rotate" => s.rotate = true,
+                        "isometry" => s.isometry = true,
+                        "stabilizer" => s.stabilizer = true,
+                        "reverse" => s.reverse = true,
+                        other => {
+                            return Err(Error::Options(format!(
+                                "unknown symmetry family {other:?}; choose from all, none, {}",
+                                Symmetry::NAMES.join(", ")
+                            )));
+                        }
+                    }
+                }
+                s
+            }
+        };
+        s.validate()?;
+        Ok(s)
+    }
+
+    /// Checks prerequisites: `stabilizer` needs `isometry`, `reverse` needs `stabilizer`.
+    ///
+    /// # Errors
+    /// [`Error::Options`] saying which family needs which.
+    pub fn validate(&self) -> Result<()> {
+        if self.stabilizer && !self.isometry {
+            return Err(Error::Options(
+                "symmetry family 'stabilizer' needs 'isometry'".into(),
+            ));
+        }
+        if self.reverse && !self.stabilizer {
+            return Err(Error::Options(
+                "symmetry family 'reverse' needs 'stabilizer'".into(),
+            ));
+        }
+        Ok(())
+    }
+
+    /// The names of the families switched on, comma-separated (`none` when empty).
+    pub fn names(&self) -> String {
+        let on = [
+            self.translate,
+            self.multiplier,
+            self.rotate,
+            self.isometry,
+            self.stabilizer,
+            self.reverse,
+        ];
+        let names: Vec<&str> = Symmetry::NAMES
+            .iter()
+            .zip(on)
+            .filter(|(_, b)| *b)
+            .map(|(n, _)| *n)
+            .collect();
+        if names.is_empty() {
+            "none".into()
+        } else {
+            names.join(",")
+        }
+    }
+}
+
 /// Options of the encoding, recorded in the CNF header so that a file says how it was made.
 #[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct EncodeOptions {
     /// The formulation; always [`FORMULATION`] for this version.
     pub formulation: String,
+    /// Symmetry-breaking families.
+    pub symmetry: Symmetry,
+    /// The redundant occupancy count ([`count`]).
+    pub count: bool,
 }
 
 impl Default for EncodeOptions {
+    /// The strongest sound combination: every family on.
     fn default() -> EncodeOptions {
         EncodeOptions {
             formulation: FORMULATION.to_string(),
+            symmetry: Symmetry::ALL,
+            count: true,
         }
+    }
+}
+
+impl EncodeOptions {
+    /// The plain formulation: no symmetry breaking, no redundant constraints.
+    pub fn plain() -> EncodeOptions {
+        EncodeOptions {
+            formulation: FORMULATION.to_string(),
+            symmetry: Symmetry::NONE,
+            count: false,
+        }
+    }
+
+    /// The options as they apply to `q`: families that cannot act on `q`, or
+    /// whose tables would be too large, are switched off. The result is what
+    /// the CNF header records.
+    pub fn resolve(&self, q: &Question) -> EncodeOptions {
+        let mut o = self.clone();
+        let point_eq_ok = q.period as u128 * q.grid.num_points() <= POINT_EQ_LIMIT;
+        if !point_eq_ok {
+            o.count = false;
+            o.symmetry.rotate = false;
+            o.symmetry.isometry = false;
+        }
+        if !o.symmetry.isometry || q.period < 2 {
+            o.symmetry.stabilizer = false;
+        }
+        if o.symmetry.stabilizer && symmetry::stabilizer_classes(&q.grid).is_none() {
+            o.symmetry.stabilizer = false;
+        }
+        if !o.symmetry.stabilizer || q.period < 3 {
+            o.symmetry.reverse = false;
+        }
+        o
+    }
+
+    /// Whether the `point-eq` family is needed.
+    pub fn needs_points(&self) -> bool {
+        let s = &self.symmetry;
+        self.count || s.rotate || s.isometry || s.stabilizer || s.reverse
     }
 }
 
@@ -161,21 +338,55 @@ impl Encoder {
     }
 }
 
-/// The exact variable and clause counts the encoding of `q` will have, per family.
-pub fn estimate(q: &Question, _options: &EncodeOptions) -> Vec<FamilyCount> {
-    vec![
+/// The exact variable and clause counts the encoding of `q` will have, per
+/// family, with `options` as [`EncodeOptions::resolve`] leaves them.
+pub fn estimate(q: &Question, options: &EncodeOptions) -> Vec<FamilyCount> {
+    let o = options.resolve(q);
+    let s = o.symmetry;
+    let mut out = vec![
         coords::count(q),
         profile::count(q),
         distance::count_upper(q),
         distance::count_lower(q),
-    ]
+    ];
+    if o.needs_points() {
+        out.push(points::count(q));
+    }
+    if o.count {
+        out.push(count::count(q));
+    }
+    if s.translate {
+        out.push(symmetry::count_translate(q));
+    }
+    if s.multiplier {
+        out.push(symmetry::count_multiplier(q));
+    }
+    if s.rotate {
+        out.push(symmetry::count_rotate(q));
+    }
+    if s.isometry {
+        out.push(symmetry::count_isometry(q));
+    }
+    if s.stabilizer || s.reverse {
+        let classes = symmetry::stabilizer_classes(&q.grid).unwrap_or_default();
+        if s.stabilizer {
+            out.push(symmetry::count_stabilizer(&classes));
+        }
+        if s.reverse {
+            out.push(symmetry::count_reverse(&classes));
+        }
+    }
+    out
 }
 
 /// Encodes `q` with `options`, refusing formulas above `max_clauses` clauses.
+/// The encoding records the options as resolved for `q` ([`EncodeOptions::resolve`]).
 ///
 /// # Errors
-/// [`Error::TooLarge`] with the estimated size when the estimate exceeds `max_clauses`.
+/// [`Error::Options`] for inconsistent options; [`Error::TooLarge`] with the
+/// estimated size when the estimate exceeds `max_clauses`.
 pub fn encode(q: &Question, options: &EncodeOptions, max_clauses: u64) -> Result<Encoding> {
+    options.symmetry.validate()?;
     let est = estimate(q, options);
     let clauses: u64 = est.iter().map(|f| f.clauses).sum();
     let vars: u64 = est.iter().map(|f| f.vars).sum();
@@ -186,12 +397,43 @@ pub fn encode(q: &Question, options: &EncodeOptions, max_clauses: u64) -> Result
             limit: max_clauses,
         });
     }
+    let o = options.resolve(q);
+    let s = o.symmetry;
     let mut enc = Encoder::new();
     enc.family(coords::FAMILY, |e| coords::add(e, q));
     enc.family(profile::FAMILY, |e| profile::add(e, q));
     enc.family(distance::FAMILY_UPPER, |e| distance::add_upper(e, q));
     enc.family(distance::FAMILY_LOWER, |e| distance::add_lower(e, q));
-    Ok(enc.finish(q, options))
+    if o.needs_points() {
+        enc.family(points::FAMILY, |e| points::add(e, q));
+    }
+    if o.count {
+        enc.family(count::FAMILY, |e| count::add(e, q));
+    }
+    if s.translate {
+        enc.family(symmetry::TRANSLATE, |e| symmetry::add_translate(e, q));
+    }
+    if s.multiplier {
+        enc.family(symmetry::MULTIPLIER, |e| symmetry::add_multiplier(e, q));
+    }
+    if s.rotate {
+        enc.family(symmetry::ROTATE, |e| symmetry::add_rotate(e, q));
+    }
+    if s.isometry {
+        enc.family(symmetry::ISOMETRY, |e| symmetry::add_isometry(e, q));
+    }
+    if s.stabilizer || s.reverse {
+        let classes = symmetry::stabilizer_classes(&q.grid).unwrap_or_default();
+        if s.stabilizer {
+            enc.family(symmetry::STABILIZER, |e| {
+                symmetry::add_stabilizer(e, q, &classes)
+            });
+        }
+        if s.reverse {
+            enc.family(symmetry::REVERSE, |e| symmetry::add_reverse(e, q, &classes));
+        }
+    }
+    Ok(enc.finish(q, &o))
 }
 
 /// The cyclic offset class `min(|i − j|, p − |i − j|)` of positions `i ≠ j`.
@@ -242,7 +484,7 @@ mod tests {
     #[test]
     fn clause_counts_of_the_cube_question() {
         // {-1,0,1}^3, p = 8: S = 6, L = 2, K = 4, 28 pairs (formulas in encodings/isometric-cycle.md).
-        let e = encode(&q("-1..1", 3, 8), &EncodeOptions::default(), u64::MAX).unwrap();
+        let e = encode(&q("-1..1", 3, 8), &EncodeOptions::plain(), u64::MAX).unwrap();
         let got: Vec<(&str, u64, u64)> = e
             .families
             .iter()

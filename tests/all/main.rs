@@ -1,0 +1,13 @@
+//! The integration tests of orbitcnf, in one test binary.
+//!
+//! - `cli`: the command line through the built binary.
+//! - `published`: published theorems and the project's derived facts.
+//! - `brute`: the solver against an independent brute-force search.
+//! - `external`: CNFs written by `encode`, solved by Debian's CaDiCaL and
+//!   PicoSAT, read back by `decode`.
+//! - `instances`: one generated test per file in `instances/` (see `build.rs`).
+//!
+//! No verdict is trusted alone: every feasible answer's orbit is verified.
+
+mod cli;
+mod util;

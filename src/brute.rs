@@ -10,6 +10,12 @@
 /// Searches the box `bounds` for an isometric cycle of `p` distinct points.
 /// Returns one if it exists, `None` if none exists.
 pub fn find_cycle(bounds: &[(i64, i64)], p: usize) -> Option<Vec<Vec<i64>>> {
+    all_cycles(bounds, p, 1).pop()
+}
+
+/// Up to `limit` isometric cycles of `p` points in the box, each starting at
+/// its lexicographically smallest point, in the order the search meets them.
+pub fn all_cycles(bounds: &[(i64, i64)], p: usize, limit: usize) -> Vec<Vec<Vec<i64>>> {
     let mut pts = vec![Vec::with_capacity(bounds.len())];
     for &(a, b) in bounds {
         pts = pts
@@ -23,8 +29,8 @@ pub fn find_cycle(bounds: &[(i64, i64)], p: usize) -> Option<Vec<Vec<i64>>> {
             })
             .collect();
     }
-    if p == 0 || p > pts.len() {
-        return None;
+    if p == 0 || p > pts.len() || limit == 0 {
+        return Vec::new();
     }
     let n = pts.len();
     let dist: Vec<Vec<i64>> = (0..n)
@@ -43,19 +49,32 @@ pub fn find_cycle(bounds: &[(i64, i64)], p: usize) -> Option<Vec<Vec<i64>>> {
         .collect();
     let mut seq: Vec<usize> = Vec::with_capacity(p);
     let mut profile: Vec<i64> = vec![-1; p / 2 + 1];
+    let mut found: Vec<Vec<usize>> = Vec::new();
     for first in 0..n {
         seq.push(first);
-        if extend(&dist, p, &mut seq, &mut profile) {
-            return Some(seq.iter().map(|&i| pts[i].clone()).collect());
+        if extend(&dist, p, &mut seq, &mut profile, &mut found, limit) {
+            break;
         }
         seq.pop();
     }
-    None
+    found
+        .into_iter()
+        .map(|c| c.iter().map(|&i| pts[i].clone()).collect())
+        .collect()
 }
 
-fn extend(dist: &[Vec<i64>], p: usize, seq: &mut Vec<usize>, profile: &mut Vec<i64>) -> bool {
+/// Extends `seq`; records complete cycles in `found` and returns true once `limit` are found.
+fn extend(
+    dist: &[Vec<i64>],
+    p: usize,
+    seq: &mut Vec<usize>,
+    profile: &mut Vec<i64>,
+    found: &mut Vec<Vec<usize>>,
+    limit: usize,
+) -> bool {
     if seq.len() == p {
-        return true;
+        found.push(seq.clone());
+        return found.len() >= limit;
     }
     let m = seq.len();
     // Points are indexed in lexicographic order, so "after the first" is "> seq[0]".
@@ -78,7 +97,7 @@ fn extend(dist: &[Vec<i64>], p: usize, seq: &mut Vec<usize>, profile: &mut Vec<i
         }
         if ok {
             seq.push(cand);
-            if extend(dist, p, seq, profile) {
+            if extend(dist, p, seq, profile, found, limit) {
                 return true;
             }
             seq.pop();
@@ -98,5 +117,7 @@ mod tests {
         assert!(find_cycle(&[(0, 3)], 2).is_some());
         assert!(find_cycle(&[(0, 3)], 3).is_none());
         assert_eq!(find_cycle(&[(0, 0)], 1), Some(vec![vec![0]]));
+        // {0,1}^2: every cyclic order of the 4 points is isometric; 3 start at (0,0).
+        assert_eq!(all_cycles(&[(0, 1), (0, 1)], 4, 100).len(), 6);
     }
 }

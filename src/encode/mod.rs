@@ -23,6 +23,9 @@ pub mod points;
 pub mod profile;
 pub mod symmetry;
 
+#[cfg(test)]
+mod soundness;
+
 use serde::{Deserialize, Serialize};
 
 use crate::cnf::{Cnf, FamilyCount, Lit, Var};

@@ -104,6 +104,10 @@ struct EncodingArgs {
     /// solver refute "p points in fewer than p places" quickly).
     #[arg(long)]
     no_count: bool,
+    /// Leave out the redundant packing bound (on by default; it refutes
+    /// "too many pairwise far points" by weighted counting over windows).
+    #[arg(long)]
+    no_packing: bool,
 }
 
 impl EncodingArgs {
@@ -111,6 +115,7 @@ impl EncodingArgs {
         Ok(EncodeOptions {
             symmetry: Symmetry::parse(&self.symmetry)?,
             count: !self.no_count,
+            packing: !self.no_packing,
             ..EncodeOptions::default()
         })
     }

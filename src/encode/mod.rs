@@ -19,6 +19,7 @@
 pub mod coords;
 pub mod count;
 pub mod distance;
+pub mod packing;
 pub mod points;
 pub mod profile;
 pub mod symmetry;
@@ -176,6 +177,8 @@ pub struct EncodeOptions {
     pub symmetry: Symmetry,
     /// The redundant occupancy count ([`count`]).
     pub count: bool,
+    /// The redundant weighted packing bound ([`packing`]).
+    pub packing: bool,
 }
 
 impl Default for EncodeOptions {
@@ -185,6 +188,7 @@ impl Default for EncodeOptions {
             formulation: FORMULATION.to_string(),
             symmetry: Symmetry::ALL,
             count: true,
+            packing: true,
         }
     }
 }
@@ -196,6 +200,7 @@ impl EncodeOptions {
             formulation: FORMULATION.to_string(),
             symmetry: Symmetry::NONE,
             count: false,
+            packing: false,
         }
     }
 
@@ -207,6 +212,7 @@ impl EncodeOptions {
         let point_eq_ok = q.period as u128 * q.grid.num_points() <= POINT_EQ_LIMIT;
         if !point_eq_ok {
             o.count = false;
+            o.packing = false;
             o.symmetry.rotate = false;
             o.symmetry.isometry = false;
         }
@@ -225,7 +231,7 @@ impl EncodeOptions {
     /// Whether the `point-eq` family is needed.
     pub fn needs_points(&self) -> bool {
         let s = &self.symmetry;
-        self.count || s.rotate || s.isometry || s.stabilizer || s.reverse
+        self.count || self.packing || s.rotate || s.isometry || s.stabilizer || s.reverse
     }
 }
 
@@ -358,6 +364,9 @@ pub fn estimate(q: &Question, options: &EncodeOptions) -> Vec<FamilyCount> {
     if o.count {
         out.push(count::count(q));
     }
+    if o.packing {
+        out.push(packing::count(q));
+    }
     if s.translate {
         out.push(symmetry::count_translate(q));
     }
@@ -412,6 +421,9 @@ pub fn encode(q: &Question, options: &EncodeOptions, max_clauses: u64) -> Result
     }
     if o.count {
         enc.family(count::FAMILY, |e| count::add(e, q));
+    }
+    if o.packing {
+        enc.family(packing::FAMILY, |e| packing::add(e, q));
     }
     if s.translate {
         enc.family(symmetry::TRANSLATE, |e| symmetry::add_translate(e, q));

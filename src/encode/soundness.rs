@@ -25,7 +25,7 @@ fn all_combinations() -> Vec<EncodeOptions> {
     let mut out = Vec::new();
     for mask in 0..8u8 {
         for level in 0..4u8 {
-            for count in [false, true] {
+            for (count, packing) in [(false, false), (true, true)] {
                 let symmetry = Symmetry {
                     translate: mask & 1 != 0,
                     multiplier: mask & 2 != 0,

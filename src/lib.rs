@@ -11,6 +11,7 @@
 //!
 //! The pipeline in one call is [`decide::decide`].
 
+pub mod bench;
 pub mod brute;
 pub mod cnf;
 pub mod decide;

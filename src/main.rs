@@ -56,6 +56,29 @@ enum Command {
     /// The file is {"grid": "-1..1,-1..1", "orbit": [[-1,-1],[-1,1],[1,1],[1,-1]]}
     /// or the output of `decide --json`.
     Check(CheckArgs),
+    /// Run the fixed benchmark set: each question under the default encoding,
+    /// `--symmetry none` and the plain reference encoding, with times,
+    /// conflicts and ratios printed in one table.
+    Bench(BenchArgs),
+}
+
+#[derive(Args, Debug)]
+struct BenchArgs {
+    /// Leave out the cases that take minutes ({-1,0,1}^4 with p = 18 and 20).
+    #[arg(long)]
+    quick: bool,
+    /// Time limit per run, in seconds; a baseline that hits it shows `>LIMIT`.
+    #[arg(long, value_name = "SECS", value_parser = parse_seconds, default_value = "600")]
+    time_limit: Duration,
+    /// Only the default encoding, no baselines.
+    #[arg(long)]
+    no_baselines: bool,
+    /// Only the named cases (comma-separated, e.g. t4-p17,t3-p9).
+    #[arg(long, value_name = "NAMES")]
+    only: Option<String>,
+    /// Print one JSON object per case (JSON Lines) instead of the table.
+    #[arg(long)]
+    json: bool,
 }
 
 #[derive(Args, Debug)]
@@ -295,7 +318,39 @@ fn run(cli: Cli) -> Result<u8, Error> {
             Ok(report.verdict.exit_code() as u8)
         }
         Command::Check(a) => check(a),
+        Command::Bench(a) => bench(a),
     }
+}
+
+fn bench(a: BenchArgs) -> Result<u8, Error> {
+    let mut cases = orbitcnf::bench::cases(a.quick);
+    if let Some(only) = &a.only {
+        let names: Vec<&str> = only.split(',').map(str::trim).collect();
+        if let Some(bad) = names.iter().find(|n| !cases.iter().any(|c| c.name == **n)) {
+            let all: Vec<String> = orbitcnf::bench::cases(false)
+                .into_iter()
+                .map(|c| c.name)
+                .collect();
+            return Err(Error::Options(format!(
+                "no benchmark case {bad:?}; cases are {}",
+                all.join(", ")
+            )));
+        }
+        cases.retain(|c| names.contains(&c.name.as_str()));
+    }
+    if !a.json {
+        print(&format!("{}\n", orbitcnf::bench::header()))?;
+    }
+    for case in &cases {
+        let row = orbitcnf::bench::run_case(case, a.time_limit, !a.no_baselines)?;
+        let line = if a.json {
+            serde_json::to_string(&row).expect("serialises")
+        } else {
+            orbitcnf::bench::format_row(&row)
+        };
+        print(&format!("{line}\n"))?;
+    }
+    Ok(0)
 }
 
 fn check(a: CheckArgs) -> Result<u8, Error> {

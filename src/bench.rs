@@ -1,0 +1,229 @@
+//! The benchmark: a fixed set of questions solved under several encodings in one run.
+//!
+//! Each case is solved with the default encoding, with `--symmetry none`
+//! (redundant constraints kept) and with the plain reference encoding (no
+//! symmetry breaking, no redundant constraints), each under a time limit; the
+//! report prints time and conflicts per run and the ratios of the baselines to
+//! the default. Every answer goes through the same checked pipeline as
+//! `decide`, so a benchmark run is also a consistency check: a verdict that
+//! differs between encodings is reported as an error.
+
+use std::time::Duration;
+
+use serde::Serialize;
+
+use crate::decide::decide;
+use crate::encode::{DEFAULT_MAX_CLAUSES, EncodeOptions, Symmetry};
+use crate::error::{Error, Result};
+use crate::grid::Grid;
+use crate::question::Question;
+use crate::report::Verdict;
+use crate::solve::Limits;
+use crate::solve::bundled::Bundled;
+
+/// One benchmark question.
+#[derive(Clone, Debug)]
+pub struct Case {
+    /// Short name, e.g. `t4-p17`.
+    pub name: String,
+    /// The question.
+    pub question: Question,
+    /// The target for the default encoding, in seconds, when there is one.
+    pub target_seconds: Option<f64>,
+}
+
+fn case(name: &str, spec: &str, dim: usize, p: usize, target: Option<f64>) -> Case {
+    Case {
+        name: name.to_string(),
+        question: Question::new(Grid::parse(spec, Some(dim)).expect("valid grid"), p)
+            .expect("valid question"),
+        target_seconds: target,
+    }
+}
+
+/// The fixed set. `quick` leaves out the cases that take minutes.
+pub fn cases(quick: bool) -> Vec<Case> {
+    let mut v = vec![
+        case("t3-p8", "-1..1", 3, 8, Some(1.0)),
+        case("t3-p9", "-1..1", 3, 9, Some(1.0)),
+        case("t3-p10", "-1..1", 3, 10, Some(1.0)),
+        case("t3-p11", "-1..1", 3, 11, Some(1.0)),
+        case("t3-p12", "-1..1", 3, 12, Some(1.0)),
+        case("q3-p9", "0..3", 3, 9, Some(1.0)),
+        case("q2-p5", "0..3", 2, 5, Some(1.0)),
+        case("t4-p16", "-1..1", 4, 16, Some(20.0)),
+        case("t4-p17", "-1..1", 4, 17, Some(20.0)),
+    ];
+    if !quick {
+        v.push(case("t4-p18", "-1..1", 4, 18, None));
+        v.push(case("t4-p20", "-1..1", 4, 20, None));
+    }
+    v
+}
+
+/// One solve of one case under one encoding.
+#[derive(Clone, Debug, Serialize)]
+pub struct Run {
+    /// The encoding's name: `default`, `symmetry-none` or `plain`.
+    pub encoding: String,
+    /// The verdict.
+    pub verdict: Verdict,
+    /// Wall-clock seconds (encode and solve).
+    pub seconds: f64,
+    /// Conflicts.
+    pub conflicts: Option<u64>,
+    /// Clauses of the formula.
+    pub clauses: u64,
+}
+
+/// All runs of one case.
+#[derive(Clone, Debug, Serialize)]
+pub struct Row {
+    /// The case's name.
+    pub name: String,
+    /// The question in words.
+    pub statement: String,
+    /// The target for the default encoding.
+    pub target_seconds: Option<f64>,
+    /// The runs, default first.
+    pub runs: Vec<Run>,
+}
+
+/// The encodings compared: the default and the two baselines.
+pub fn encodings() -> Vec<(&'static str, EncodeOptions)> {
+    vec![
+        ("default", EncodeOptions::default()),
+        (
+            "symmetry-none",
+            EncodeOptions {
+                symmetry: Symmetry::NONE,
+                ..EncodeOptions::default()
+            },
+        ),
+        ("plain", EncodeOptions::plain()),
+    ]
+}
+
+/// Runs `case` under every encoding of [`encodings`] (or only the default
+/// when `baselines` is false), each within `limit`.
+///
+/// # Errors
+/// Pipeline errors, and [`Error::Solver`] when two encodings give
+/// contradicting verdicts.
+pub fn run_case(case: &Case, limit: Duration, baselines: bool) -> Result<Row> {
+    let mut runs: Vec<Run> = Vec::new();
+    for (name, options) in encodings() {
+        if !baselines && name != "default" {
+            continue;
+        }
+        let limits = Limits {
+            time: Some(limit),
+            progress: true,
+        };
+        let r = decide(
+            &case.question,
+            &options,
+            &mut Bundled,
+            &limits,
+            DEFAULT_MAX_CLAUSES,
+        )?;
+        let run = Run {
+            encoding: name.to_string(),
+            verdict: r.verdict,
+            seconds: r.stats.size.encode_seconds + r.stats.solve.seconds,
+            conflicts: r.stats.solve.conflicts,
+            clauses: r.stats.size.clauses,
+        };
+        if let Some(first) = runs.iter().find(|x| x.verdict != Verdict::Unknown) {
+            if run.verdict != Verdict::Unknown && run.verdict != first.verdict {
+                return Err(Error::Solver {
+                    solver: "bench".into(),
+                    reason: format!(
+                        "{}: encoding {} says {} but {} says {}",
+                        case.name,
+                        first.encoding,
+                        first.verdict.word(),
+                        run.encoding,
+                        run.verdict.word()
+                    ),
+                });
+            }
+        }
+        runs.push(run);
+    }
+    Ok(Row {
+        name: case.name.clone(),
+        statement: case.question.statement(),
+        target_seconds: case.target_seconds,
+        runs,
+    })
+}
+
+/// The table header of [`format_row`].
+pub fn header() -> String {
+    format!(
+        "{:<8} {:<11} {:>9} {:>10} {:>7} | {:>9} {:>10} {:>8} | {:>9} {:>10} {:>8}",
+        "case",
+        "verdict",
+        "default s",
+        "conflicts",
+        "target",
+        "sym-none",
+        "conflicts",
+        "ratio",
+        "plain s",
+        "conflicts",
+        "ratio"
+    )
+}
+
+/// One line of the table: figures of each run and ratios of the baselines to the default.
+/// A baseline that hit the limit shows `>limit` and a ratio of at least that much.
+pub fn format_row(row: &Row) -> String {
+    let d = &row.runs[0];
+    let target = match row.target_seconds {
+        Some(t) if d.verdict == Verdict::Unknown || d.seconds > t => format!("MISS {t}"),
+        Some(t) => format!("ok {t}"),
+        None => "-".into(),
+    };
+    let fmt_run = |r: &Run| {
+        let secs = if r.verdict == Verdict::Unknown {
+            format!(">{:.1}", r.seconds)
+        } else {
+            format!("{:.3}", r.seconds)
+        };
+        let ratio = if d.verdict == Verdict::Unknown {
+            "-".to_string()
+        } else {
+            let x = r.seconds / d.seconds.max(1e-3);
+            if r.verdict == Verdict::Unknown {
+                format!(">{x:.0}x")
+            } else {
+                format!("{x:.1}x")
+            }
+        };
+        format!(
+            "{:>9} {:>10} {:>8}",
+            secs,
+            r.conflicts.map(|c| c.to_string()).unwrap_or_default(),
+            ratio
+        )
+    };
+    let mut line = format!(
+        "{:<8} {:<11} {:>9} {:>10} {:>7}",
+        row.name,
+        d.verdict.word(),
+        if d.verdict == Verdict::Unknown {
+            format!(">{:.1}", d.seconds)
+        } else {
+            format!("{:.3}", d.seconds)
+        },
+        d.conflicts.map(|c| c.to_string()).unwrap_or_default(),
+        target
+    );
+    for r in &row.runs[1..] {
+        line.push_str(" | ");
+        line.push_str(&fmt_run(r));
+    }
+    line
+}

@@ -42,14 +42,15 @@ pub fn decide(
             let w = witness(q, &enc.cnf, &enc.map, &model, "<memory>", None)?;
             (Verdict::Feasible, Some(w), Certificate::Witness, None)
         }
-        Outcome::Unsat => (
-            Verdict::Infeasible,
-            None,
-            Certificate::SolverClaim {
-                solver: result.stats.solver.clone(),
-            },
-            None,
-        ),
+        Outcome::Unsat => {
+            let certificate = match result.proof {
+                Some(info) => Certificate::CheckedProof(info),
+                None => Certificate::SolverClaim {
+                    solver: result.stats.solver.clone(),
+                },
+            };
+            (Verdict::Infeasible, None, certificate, None)
+        }
         Outcome::Unknown(why) => (Verdict::Unknown, None, Certificate::None, Some(why)),
     };
     Ok(Report::new(

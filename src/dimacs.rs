@@ -119,7 +119,20 @@ pub fn write_atomically(path: &Path, bytes: &[u8]) -> Result<()> {
     let mut tmp = tempfile::NamedTempFile::new_in(dir).map_err(|e| Error::io(path, e))?;
     tmp.write_all(bytes).map_err(|e| Error::io(path, e))?;
     tmp.as_file().sync_all().map_err(|e| Error::io(path, e))?;
+    make_readable(tmp.as_file()).map_err(|e| Error::io(path, e))?;
     tmp.persist(path).map_err(|e| Error::io(path, e.error))?;
+    Ok(())
+}
+
+/// Gives a file the usual permissions of a user's output (temporary files start private).
+pub fn make_readable(file: &std::fs::File) -> std::io::Result<()> {
+    #[cfg(unix)]
+    {
+        use std::os::unix::fs::PermissionsExt;
+        file.set_permissions(std::fs::Permissions::from_mode(0o644))?;
+    }
+    #[cfg(not(unix))]
+    let _ = file;
     Ok(())
 }
 

@@ -90,6 +90,10 @@ pub enum Error {
         reason: String,
     },
 
+    /// An unsatisfiability proof was rejected by the checker.
+    #[error("proof rejected: {0}")]
+    Proof(#[from] crate::proof::LratError),
+
     /// A model did not give the orbit that decoding needs.
     #[error("decoding the model: {0}")]
     Decode(String),

@@ -13,6 +13,7 @@
 
 pub mod bench;
 pub mod brute;
+pub mod bundle;
 pub mod cnf;
 pub mod decide;
 pub mod decode;

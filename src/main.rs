@@ -7,8 +7,11 @@ use std::time::Duration;
 
 use clap::{Args, Parser, Subcommand};
 
+use orbitcnf::Verdict;
+use orbitcnf::bundle::Evidence;
 use orbitcnf::encode::{self, DEFAULT_MAX_CLAUSES, EncodeOptions, Symmetry};
-use orbitcnf::solve::{Limits, bundled::Bundled};
+use orbitcnf::proof::LratOptions;
+use orbitcnf::solve::{Limits, bundled::Bundled, certified::Certified};
 use orbitcnf::{Error, Grid, Question, decide, dimacs, orbit_file, verify};
 
 const EXIT_CODES: &str = "\
@@ -60,6 +63,34 @@ enum Command {
     /// `--symmetry none` and the plain reference encoding, with times,
     /// conflicts and ratios printed in one table.
     Bench(BenchArgs),
+    /// Check an LRAT proof of unsatisfiability against a CNF with orbitcnf's
+    /// own checker (independent of the solver's). Exit 0 when accepted, 1
+    /// with the step and the reason when rejected.
+    VerifyProof(VerifyProofArgs),
+    /// Re-check a certificate bundle written by `decide --bundle`: re-encode
+    /// the question, compare the CNF byte for byte, check every file's hash,
+    /// and check the proof (or the orbit).
+    CheckBundle(CheckBundleArgs),
+}
+
+#[derive(Args, Debug)]
+struct VerifyProofArgs {
+    /// The CNF (a file written by `orbitcnf encode`, or plain DIMACS).
+    cnf: PathBuf,
+    /// The LRAT proof (text or binary).
+    proof: PathBuf,
+    /// Print one JSON object instead of text.
+    #[arg(long)]
+    json: bool,
+}
+
+#[derive(Args, Debug)]
+struct CheckBundleArgs {
+    /// The bundle's folder.
+    dir: PathBuf,
+    /// Print one JSON object instead of text.
+    #[arg(long)]
+    json: bool,
 }
 
 #[derive(Args, Debug)]
@@ -159,6 +190,23 @@ struct DecideArgs {
     /// Do not show the progress line on stderr.
     #[arg(long, short)]
     quiet: bool,
+    /// Write the LRAT proof of an infeasible answer to FILE (text LRAT; the
+    /// proof is checked by orbitcnf's own checker in any case).
+    #[arg(long, value_name = "FILE", conflicts_with = "no_certify")]
+    proof: Option<PathBuf>,
+    /// Write a binary DRAT proof of an infeasible answer to FILE, for
+    /// external checkers such as rate or drat-trim.
+    #[arg(long, value_name = "FILE", conflicts_with = "no_certify")]
+    drat: Option<PathBuf>,
+    /// Write a certificate bundle to DIR: manifest.json, formula.cnf and
+    /// proof.lrat (infeasible) or orbit.json (feasible); re-check it with
+    /// `orbitcnf check-bundle DIR`.
+    #[arg(long, value_name = "DIR", conflicts_with = "no_certify")]
+    bundle: Option<PathBuf>,
+    /// Do not produce or check a proof for an infeasible answer (faster; the
+    /// verdict then rests on the solver's word, and the report says so).
+    #[arg(long)]
+    no_certify: bool,
 }
 
 #[derive(Args, Debug)]
@@ -264,13 +312,42 @@ fn run(cli: Cli) -> Result<u8, Error> {
                 time: a.time_limit,
                 progress: !a.quiet && !a.json,
             };
-            let report = decide::decide(
-                &q,
-                &a.encoding.options()?,
-                &mut Bundled,
-                &limits,
-                a.question.max_clauses,
-            )?;
+            let options = a.encoding.options()?;
+            let report = if a.no_certify {
+                decide::decide(&q, &options, &mut Bundled, &limits, a.question.max_clauses)?
+            } else {
+                let lrat = match (&a.proof, &a.bundle) {
+                    (Some(p), _) => Some(p.clone()),
+                    (None, Some(dir)) => {
+                        std::fs::create_dir_all(dir).map_err(|e| Error::io(dir, e))?;
+                        Some(dir.join(orbitcnf::bundle::PROOF))
+                    }
+                    (None, None) => None,
+                };
+                let mut backend = Certified {
+                    lrat: lrat.clone(),
+                    drat: a.drat.clone(),
+                };
+                let report =
+                    decide::decide(&q, &options, &mut backend, &limits, a.question.max_clauses)?;
+                if let Some(dir) = &a.bundle {
+                    let evidence = match (&report.orbit, &lrat) {
+                        (Some(orbit), _) => Some(Evidence::Orbit(orbit)),
+                        (None, Some(path)) if report.verdict == Verdict::Infeasible => {
+                            Some(Evidence::Proof(path))
+                        }
+                        _ => None,
+                    };
+                    match evidence {
+                        Some(ev) => {
+                            orbitcnf::bundle::write_bundle(dir, &q, &options, ev)?;
+                            eprintln!("certificate bundle written to {}", dir.display());
+                        }
+                        None => eprintln!("no bundle written: the verdict is unknown"),
+                    }
+                }
+                report
+            };
             print(&if a.json {
                 report.to_json() + "\n"
             } else {
@@ -319,7 +396,71 @@ fn run(cli: Cli) -> Result<u8, Error> {
         }
         Command::Check(a) => check(a),
         Command::Bench(a) => bench(a),
+        Command::VerifyProof(a) => verify_proof(a),
+        Command::CheckBundle(a) => {
+            let c = orbitcnf::bundle::check_bundle(&a.dir)?;
+            let text = match (&c.proof, &c.orbit) {
+                (Some(p), _) => format!(
+                    "bundle       {}\nquestion     grid {} (n = {}), period {}\nformula      identical to a fresh encoding; all hashes match\n\
+                     verdict      INFEASIBLE, certified: LRAT proof of {} steps accepted (empty clause at id {})\n",
+                    a.dir.display(),
+                    c.manifest.question.grid,
+                    c.manifest.question.dim,
+                    c.manifest.question.period,
+                    p.steps,
+                    p.empty_clause_id
+                ),
+                (None, Some(o)) => format!(
+                    "bundle       {}\nquestion     grid {} (n = {}), period {}\nformula      identical to a fresh encoding; all hashes match\n\
+                     verdict      FEASIBLE, certified: {o}\n",
+                    a.dir.display(),
+                    c.manifest.question.grid,
+                    c.manifest.question.dim,
+                    c.manifest.question.period
+                ),
+                _ => String::new(),
+            };
+            print(&if a.json {
+                serde_json::to_string(&c).expect("serialises") + "\n"
+            } else {
+                text
+            })?;
+            Ok(0)
+        }
     }
+}
+
+fn verify_proof(a: VerifyProofArgs) -> Result<u8, Error> {
+    let text = std::fs::read_to_string(&a.cnf).map_err(|e| Error::io(&a.cnf, e))?;
+    let name = a.cnf.display().to_string();
+    let cnf = if text.starts_with("c orbitcnf-digest") {
+        dimacs::parse_cnf_file(&text, &name)?.cnf
+    } else {
+        dimacs::parse_dimacs(&text, &name)?.0
+    };
+    let proof = std::fs::read(&a.proof).map_err(|e| Error::io(&a.proof, e))?;
+    let options = LratOptions {
+        ids_follow_cnf: true,
+        ..LratOptions::default()
+    };
+    let summary = orbitcnf::proof::check_lrat_with(&cnf, &proof, &options)?;
+    let out = if a.json {
+        serde_json::json!({"accepted": true, "cnf": name, "proof": a.proof.display().to_string(), "summary": summary})
+            .to_string()
+            + "\n"
+    } else {
+        format!(
+            "proof        accepted: {} is unsatisfiable\nsteps        {} ({} clauses added, {} deleted, {} hints), empty clause at id {}\n",
+            name,
+            summary.steps,
+            summary.added,
+            summary.deleted,
+            summary.hints,
+            summary.empty_clause_id
+        )
+    };
+    print(&out)?;
+    Ok(0)
 }
 
 fn bench(a: BenchArgs) -> Result<u8, Error> {

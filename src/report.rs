@@ -13,6 +13,7 @@ use crate::encode::EncodeOptions;
 use crate::grid::Point;
 use crate::question::{Question, QuestionRecord};
 use crate::solve::SolveStats;
+use crate::solve::certified::ProofInfo;
 use crate::verify::OrbitCheck;
 
 /// The answer to a question.
@@ -48,7 +49,7 @@ impl Verdict {
 }
 
 /// What backs a verdict.
-#[derive(Clone, Debug, PartialEq, Eq, Serialize)]
+#[derive(Clone, Debug, PartialEq, Serialize)]
 #[serde(tag = "kind", rename_all = "kebab-case")]
 pub enum Certificate {
     /// The orbit itself, checked independently.
@@ -58,6 +59,12 @@ pub enum Certificate {
         /// Who claims it.
         solver: String,
     },
+    /// An LRAT proof of unsatisfiability of the CNF solved, accepted by
+    /// orbitcnf's own checker. It certifies the CNF, symmetry-breaking and
+    /// redundant clauses included; that those keep every verdict is argued in
+    /// `encodings/symmetry.md` and `encodings/redundant.md` and tested against
+    /// brute force.
+    CheckedProof(ProofInfo),
     /// Nothing (unknown verdicts).
     None,
 }
@@ -222,6 +229,29 @@ impl Report {
                 let _ = writeln!(
                     s,
                     "certificate  the unsatisfiability claim of {solver}; no proof was checked"
+                );
+            }
+            Certificate::CheckedProof(info) => {
+                let _ = writeln!(
+                    s,
+                    "certificate  LRAT proof ({} steps, {} bytes) accepted by orbitcnf's own checker in {:.3} s",
+                    info.lrat.steps, info.lrat_bytes, info.check_seconds
+                );
+                if let Some(f) = &info.lrat_file {
+                    let _ = writeln!(s, "             LRAT written to {}", f.display());
+                }
+                if let Some(f) = &info.drat_file {
+                    let _ = writeln!(
+                        s,
+                        "             binary DRAT ({} bytes) written to {}",
+                        info.drat_bytes.unwrap_or(0),
+                        f.display()
+                    );
+                }
+                let _ = writeln!(
+                    s,
+                    "             the proof covers the CNF with its symmetry-breaking and redundant clauses; \
+                     their soundness: encodings/symmetry.md, encodings/redundant.md"
                 );
             }
             Certificate::None => {}

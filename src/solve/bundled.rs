@@ -35,17 +35,7 @@ impl Backend for Bundled {
 
     fn solve(&mut self, cnf: &Cnf, limits: &Limits) -> Result<SolveResult> {
         let start = Instant::now();
-        let learned = Arc::new(AtomicU64::new(0));
-        let timed_out = Arc::new(AtomicBool::new(false));
-        let meter = Meter {
-            deadline: limits.time.map(|t| start + t),
-            start,
-            learned: learned.clone(),
-            timed_out: timed_out.clone(),
-            progress: limits.progress && io::stderr().is_terminal(),
-            last_report: start,
-            state: DratState::RecordStart,
-        };
+        let (meter, learned, timed_out) = Meter::new(start, limits, None);
         let mut solver = Solver::new();
         solver.write_proof(meter, ProofFormat::BinaryDrat);
         let mut buf: Vec<varisat::Lit> = Vec::new();
@@ -84,9 +74,7 @@ impl Backend for Bundled {
             }
         };
         drop(solver);
-        if limits.progress && io::stderr().is_terminal() {
-            eprint!("\r\x1b[K");
-        }
+        clear_progress(limits);
         Ok(SolveResult {
             outcome,
             stats: SolveStats {
@@ -94,6 +82,7 @@ impl Backend for Bundled {
                 seconds: start.elapsed().as_secs_f64(),
                 conflicts: Some(learned.load(Ordering::Relaxed)),
             },
+            proof: None,
         })
     }
 }
@@ -105,8 +94,9 @@ enum DratState {
     InRecord(bool),
 }
 
-/// The proof sink: counts added clauses, reports progress, enforces the deadline.
-struct Meter {
+/// The proof sink: counts added clauses, reports progress, enforces the
+/// deadline, and forwards the binary DRAT to `inner` when there is one.
+pub(crate) struct Meter {
     deadline: Option<Instant>,
     start: Instant,
     learned: Arc<AtomicU64>,
@@ -114,6 +104,37 @@ struct Meter {
     progress: bool,
     last_report: Instant,
     state: DratState,
+    inner: Option<Box<dyn Write>>,
+}
+
+impl Meter {
+    /// A meter for a solve started at `start` under `limits`.
+    pub(crate) fn new(
+        start: Instant,
+        limits: &Limits,
+        inner: Option<Box<dyn Write>>,
+    ) -> (Meter, Arc<AtomicU64>, Arc<AtomicBool>) {
+        let learned = Arc::new(AtomicU64::new(0));
+        let timed_out = Arc::new(AtomicBool::new(false));
+        let meter = Meter {
+            deadline: limits.time.map(|t| start + t),
+            start,
+            learned: learned.clone(),
+            timed_out: timed_out.clone(),
+            progress: limits.progress && io::stderr().is_terminal(),
+            last_report: start,
+            state: DratState::RecordStart,
+            inner,
+        };
+        (meter, learned, timed_out)
+    }
+}
+
+/// Clears the progress line, if one was drawn.
+pub(crate) fn clear_progress(limits: &Limits) {
+    if limits.progress && io::stderr().is_terminal() {
+        eprint!("\r\x1b[K");
+    }
 }
 
 impl Write for Meter {
@@ -140,6 +161,9 @@ impl Write for Meter {
                 return Err(io::Error::other("orbitcnf time limit reached"));
             }
         }
+        if let Some(w) = self.inner.as_mut() {
+            w.write_all(buf)?;
+        }
         if self.progress && now.duration_since(self.last_report).as_millis() >= 250 {
             self.last_report = now;
             eprint!(
@@ -151,6 +175,9 @@ impl Write for Meter {
     }
 
     fn flush(&mut self) -> io::Result<()> {
-        Ok(())
+        match self.inner.as_mut() {
+            Some(w) => w.flush(),
+            None => Ok(()),
+        }
     }
 }

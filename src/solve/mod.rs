@@ -6,6 +6,7 @@
 //! ([`check_model`]) and then decoded and verified independently.
 
 pub mod bundled;
+pub mod certified;
 
 use std::time::Duration;
 
@@ -53,6 +54,8 @@ pub struct SolveResult {
     pub outcome: Outcome,
     /// How it went.
     pub stats: SolveStats,
+    /// The checked proof behind an UNSAT answer, for back-ends that certify.
+    pub proof: Option<certified::ProofInfo>,
 }
 
 /// A SAT solver that orbitcnf can drive.

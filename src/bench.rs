@@ -17,9 +17,10 @@ use crate::encode::{DEFAULT_MAX_CLAUSES, EncodeOptions, Symmetry};
 use crate::error::{Error, Result};
 use crate::grid::Grid;
 use crate::question::Question;
-use crate::report::Verdict;
+use crate::report::{Certificate, Verdict};
 use crate::solve::Limits;
 use crate::solve::bundled::Bundled;
+use crate::solve::certified::Certified;
 
 /// One benchmark question.
 #[derive(Clone, Debug)]
@@ -87,6 +88,22 @@ pub struct Row {
     pub target_seconds: Option<f64>,
     /// The runs, default first.
     pub runs: Vec<Run>,
+    /// For infeasible cases: the default encoding solved again with a
+    /// checked LRAT proof.
+    pub proof: Option<ProofCost>,
+}
+
+/// What certifying an infeasible answer costs.
+#[derive(Clone, Debug, Serialize)]
+pub struct ProofCost {
+    /// Seconds to solve while writing the LRAT proof.
+    pub solve_seconds: f64,
+    /// Seconds for orbitcnf's checker to accept it.
+    pub check_seconds: f64,
+    /// Size of the text LRAT proof.
+    pub lrat_bytes: u64,
+    /// Steps of the proof.
+    pub steps: u64,
 }
 
 /// The encodings compared: the default and the two baselines.
@@ -151,11 +168,35 @@ pub fn run_case(case: &Case, limit: Duration, baselines: bool) -> Result<Row> {
         }
         runs.push(run);
     }
+    let mut proof = None;
+    if runs[0].verdict == Verdict::Infeasible {
+        let limits = Limits {
+            time: Some(limit),
+            progress: true,
+        };
+        let mut backend = Certified::default();
+        let r = decide(
+            &case.question,
+            &EncodeOptions::default(),
+            &mut backend,
+            &limits,
+            DEFAULT_MAX_CLAUSES,
+        )?;
+        if let Certificate::CheckedProof(info) = &r.certificate {
+            proof = Some(ProofCost {
+                solve_seconds: r.stats.solve.seconds,
+                check_seconds: info.check_seconds,
+                lrat_bytes: info.lrat_bytes,
+                steps: info.lrat.steps,
+            });
+        }
+    }
     Ok(Row {
         name: case.name.clone(),
         statement: case.question.statement(),
         target_seconds: case.target_seconds,
         runs,
+        proof,
     })
 }
 
@@ -224,6 +265,17 @@ pub fn format_row(row: &Row) -> String {
     for r in &row.runs[1..] {
         line.push_str(" | ");
         line.push_str(&fmt_run(r));
+    }
+    for _ in row.runs.len()..3 {
+        line.push_str(&format!(" | {:>9} {:>10} {:>8}", "-", "-", "-"));
+    }
+    if let Some(p) = &row.proof {
+        line.push_str(&format!(
+            " | {:>9.3} {:>8.3} {:>10.2}",
+            p.solve_seconds,
+            p.check_seconds,
+            p.lrat_bytes as f64 / 1e6
+        ));
     }
     line
 }

@@ -86,7 +86,9 @@ fn infeasible_exits_20_without_an_orbit() {
     let dir = TestDir::new();
     let v = assert_decides(&dir, &Q::cube(-1, 1, 2, 5), Expect::Infeasible);
     assert!(v.get("orbit").is_none() && v.get("check").is_none(), "{v}");
-    assert_eq!(v["certificate"]["kind"], "solver-claim");
+    // Backed by the solver, not by a witness (the kind of backing may grow stronger).
+    let kind = v["certificate"]["kind"].as_str().unwrap_or("<missing>");
+    assert!(kind != "witness" && kind != "none", "certificate {kind}");
     assert!(v["stats"]["clauses"].as_u64().is_some_and(|n| n > 0));
 }
 
@@ -133,38 +135,140 @@ fn the_text_report_shows_a_checked_orbit() {
         .stdout_has("verdict      INFEASIBLE");
 }
 
-#[test]
-fn a_time_limit_gives_unknown_with_exit_0() {
-    // {-1,0,1}^4 with p = 17: hard for the plain encoding, so the limit is hit.
-    let dir = TestDir::new();
+/// Runs `decide` on {−1,0,1}^4 with p = 17 and a time limit, with `extra`
+/// encoding options, and asserts an unknown answer well within 30 s.
+fn assert_times_out(dir: &TestDir, limit: &str, extra: &[&str]) {
     let run = dir
         .orbitcnf()
         .args(["decide", "--dim", "4", "--grid=-1..1", "--period", "17"])
-        .args(["--time-limit", "1", "--json"])
+        .args(["--time-limit", limit, "--json"])
+        .args(extra)
         .run();
-    let v = check_report(&dir, &Q::cube(-1, 1, 4, 17), &run);
+    let v = check_report(dir, &Q::cube(-1, 1, 4, 17), &run);
     run.code(UNKNOWN);
     assert_eq!(v["verdict"], "unknown");
     assert_eq!(v["certificate"]["kind"], "none");
-    assert!(
-        v["reason"]
-            .as_str()
-            .is_some_and(|r| r.contains("time limit")),
-        "{v}"
-    );
-    assert!(
-        run.elapsed < Duration::from_secs(30),
-        "a 1 s limit took {:?}",
-        run.elapsed
+    if !v["reason"]
+        .as_str()
+        .is_some_and(|r| r.contains("time limit"))
+    {
+        run.fail(
+            "the reason",
+            "mentions the time limit",
+            &v["reason"].to_string(),
+        );
+    }
+    if run.elapsed >= Duration::from_secs(30) {
+        run.fail(
+            "the time taken",
+            "under 30 s",
+            &format!("{:?}", run.elapsed),
+        );
+    }
+}
+
+/// With the default encoding this question takes about 2.5 s today, so a
+/// limit of 1 s is hit; with the plain encoding it takes far longer.
+#[test]
+fn a_time_limit_gives_unknown_with_exit_0() {
+    let dir = TestDir::new();
+    assert_times_out(&dir, "1", &[]);
+    assert_times_out(
+        &dir,
+        "1",
+        &["--symmetry", "none", "--no-count", "--no-packing"],
     );
     // The text form says so too.
     let run = dir
         .orbitcnf()
         .args(["decide", "--dim", "4", "--grid=-1..1", "-p", "17"])
-        .args(["--time-limit", "0.5", "--quiet"])
+        .args(["--time-limit", "0.5", "--quiet", "--symmetry", "none"])
         .run();
     run.code(UNKNOWN).stdout_has("verdict      UNKNOWN");
     assert!(run.elapsed < Duration::from_secs(30), "{:?}", run.elapsed);
+}
+
+/// Every encoding option gives a verified orbit for a feasible question and
+/// the same infeasible verdict for an infeasible one, and the report records
+/// the options used.
+#[test]
+fn every_encoding_option_gives_checked_answers() {
+    let dir = TestDir::new();
+    let option_sets: &[&[&str]] = &[
+        &[],
+        &["--symmetry", "all"],
+        &["--symmetry", "none"],
+        &["--symmetry", "none", "--no-count", "--no-packing"],
+        &["--no-count"],
+        &["--no-packing"],
+        &["--symmetry", "translate"],
+        &["--symmetry", "multiplier"],
+        &["--symmetry", "rotate"],
+        &["--symmetry", "isometry"],
+        &["--symmetry", "isometry,stabilizer"],
+        &["--symmetry", "isometry,stabilizer,reverse"],
+        &["--symmetry", "translate, rotate , multiplier"],
+    ];
+    let questions = [
+        (Q::cube(-1, 1, 3, 8), Expect::Feasible),
+        (Q::boxed(&[(0, 3), (-1, 1), (0, 1)], 6), Expect::Feasible),
+        (Q::cube(-1, 1, 2, 5), Expect::Infeasible),
+        (Q::boxed(&[(0, 2), (0, 3)], 5), Expect::Infeasible),
+    ];
+    for opts in option_sets {
+        for (q, expect) in &questions {
+            let run = dir
+                .orbitcnf()
+                .arg("decide")
+                .args(q.args())
+                .arg("--json")
+                .args(*opts)
+                .run();
+            let v = check_report(&dir, q, &run);
+            if v["verdict"] != expect.word() {
+                run.fail("the verdict", expect.word(), &v["verdict"].to_string());
+            }
+            let o = &v["options"];
+            if opts.contains(&"--no-count") && o["count"] != false {
+                run.fail("options.count", "false", &o.to_string());
+            }
+            if opts.contains(&"none")
+                && o["symmetry"]
+                    .as_object()
+                    .is_some_and(|m| m.values().any(|b| b != false))
+            {
+                run.fail("options.symmetry", "all false", &o.to_string());
+            }
+        }
+    }
+}
+
+#[test]
+fn bad_encoding_options_are_errors() {
+    let dir = TestDir::new();
+    for (opt, needles) in [
+        (
+            "frob",
+            &["unknown symmetry family \"frob\"", "translate"][..],
+        ),
+        ("translate,frob", &["unknown symmetry family \"frob\""][..]),
+        ("stabilizer", &["'stabilizer' needs 'isometry'"][..]),
+        ("isometry,reverse", &["'reverse' needs 'stabilizer'"][..]),
+    ] {
+        let question = ["--dim", "2", "--grid=-1..1", "-p", "4", "--symmetry", opt];
+        dir.orbitcnf()
+            .arg("decide")
+            .args(question)
+            .run()
+            .error_with(needles);
+        dir.orbitcnf()
+            .arg("encode")
+            .args(question)
+            .args(["-o", "x.cnf"])
+            .run()
+            .error_with(needles);
+    }
+    assert!(!dir.path("x.cnf").exists());
 }
 
 // ---------------------------------------------------------------- bad input

@@ -532,14 +532,19 @@ pub fn assert_decides(dir: &TestDir, q: &Q, expect: Expect) -> Value {
 /// a feasible answer's orbit is verified by `orbitcnf::verify::check_orbit`
 /// and by [`assert_isometric_cycle`].
 pub fn decide_lib(q: &Q) -> Report {
+    decide_lib_with(q, &EncodeOptions::default())
+}
+
+/// As [`decide_lib`], with the encoding options `options`.
+pub fn decide_lib_with(q: &Q, options: &EncodeOptions) -> Report {
     let report = decide::decide(
         &q.question(),
-        &EncodeOptions::default(),
+        options,
         &mut Bundled,
         &Limits::default(),
         DEFAULT_MAX_CLAUSES,
     )
-    .unwrap_or_else(|e| panic!("{}: decide failed: {e}", q.label()));
+    .unwrap_or_else(|e| panic!("{}, {options:?}: decide failed: {e}", q.label()));
     match report.verdict {
         Verdict::Feasible => {
             let orbit = report

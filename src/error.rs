@@ -97,6 +97,15 @@ pub enum Error {
     /// A model did not give the orbit that decoding needs.
     #[error("decoding the model: {0}")]
     Decode(String),
+
+    /// An external solver misbehaved; its answer was not used.
+    #[error("external solver `{command}`: {failure}")]
+    ExternalSolver {
+        /// The solver's command line.
+        command: String,
+        /// What went wrong.
+        failure: crate::solve::external::ExternalFailure,
+    },
 }
 
 /// Shorthand for results with the library's [`Error`].

@@ -7,6 +7,7 @@
 
 pub mod bundled;
 pub mod certified;
+pub mod external;
 
 use std::time::Duration;
 

@@ -1,0 +1,256 @@
+//! Certificates for infeasible answers through the binary: LRAT proofs written
+//! and checked, tampered proofs rejected with their reason, DRAT accepted by
+//! the external checker `rate`, and certificate bundles re-checked end to end.
+
+use crate::util::{ERROR, INFEASIBLE, TestDir};
+
+/// Decides `{-1,0,1}^3` (or another grid) with a proof file and returns the JSON report.
+fn decide_with_proof(
+    dir: &TestDir,
+    grid: &str,
+    dim: &str,
+    p: usize,
+    proof: &str,
+) -> serde_json::Value {
+    let run = dir
+        .orbitcnf()
+        .args([
+            "decide",
+            "--dim",
+            dim,
+            &format!("--grid={grid}"),
+            "--period",
+            &p.to_string(),
+        ])
+        .args(["--proof", proof, "--json"])
+        .run();
+    run.code(INFEASIBLE);
+    let j = run.json();
+    assert_eq!(j["verdict"], "infeasible");
+    assert_eq!(j["certificate"]["kind"], "checked-proof", "{j}");
+    assert!(j["certificate"]["lrat"]["steps"].as_u64().unwrap() > 0);
+    j
+}
+
+fn encode(dir: &TestDir, grid: &str, dim: &str, p: usize, out: &str) {
+    dir.orbitcnf()
+        .args([
+            "encode",
+            "--dim",
+            dim,
+            &format!("--grid={grid}"),
+            "--period",
+            &p.to_string(),
+            "-o",
+            out,
+        ])
+        .run()
+        .code(0);
+}
+
+#[test]
+fn infeasible_answers_of_published_cases_carry_checked_proofs() {
+    // Periods 9..12 on {-1,0,1}^3 exceed 2^3 = 8, the bound proven for n = 3
+    // (R. Lyons and R. D. Nussbaum, 1992 [recalled]); p = 5 on {0,1,2,3}^2
+    // exceeds 2^2 (R. D. Nussbaum, Israel J. Math. 76 (1991)).
+    let dir = TestDir::new();
+    for (grid, dim, p) in [
+        ("-1..1", "3", 9),
+        ("-1..1", "3", 10),
+        ("-1..1", "3", 11),
+        ("-1..1", "3", 12),
+        ("0..3", "2", 5),
+    ] {
+        let name = format!("p{p}-{dim}.lrat");
+        let cnf = format!("p{p}-{dim}.cnf");
+        decide_with_proof(&dir, grid, dim, p, &name);
+        encode(&dir, grid, dim, p, &cnf);
+        dir.orbitcnf()
+            .args(["verify-proof", &cnf, &name])
+            .run()
+            .code(0)
+            .stdout_has("accepted");
+    }
+}
+
+/// Rewrites the first addition step of a text LRAT proof with `edit`.
+fn tamper_first_addition(text: &str, edit: impl Fn(&mut Vec<i64>, &mut Vec<i64>)) -> String {
+    let mut done = false;
+    text.lines()
+        .map(|line| {
+            let toks: Vec<&str> = line.split_whitespace().collect();
+            if done || toks.len() < 2 || toks[1] == "d" {
+                return line.to_string();
+            }
+            let id = toks[0];
+            let nums: Vec<i64> = toks[1..].iter().map(|t| t.parse().unwrap()).collect();
+            let zero = nums.iter().position(|&x| x == 0).unwrap();
+            let mut lits = nums[..zero].to_vec();
+            let mut hints: Vec<i64> = nums[zero + 1..nums.len() - 1].to_vec();
+            if lits.is_empty() || hints.len() < 2 {
+                return line.to_string();
+            }
+            edit(&mut lits, &mut hints);
+            done = true;
+            let l: Vec<String> = lits.iter().map(|x| x.to_string()).collect();
+            let h: Vec<String> = hints.iter().map(|x| x.to_string()).collect();
+            format!("{id} {} 0 {} 0", l.join(" "), h.join(" "))
+        })
+        .collect::<Vec<_>>()
+        .join("\n")
+        + "\n"
+}
+
+#[test]
+fn tampered_proofs_are_rejected_with_the_step_and_reason() {
+    let dir = TestDir::new();
+    decide_with_proof(&dir, "-1..1", "3", 9, "p9.lrat");
+    encode(&dir, "-1..1", "3", 9, "p9.cnf");
+    encode(&dir, "-1..1", "3", 10, "p10.cnf");
+    let proof = dir.read("p9.lrat");
+
+    let flipped = tamper_first_addition(&proof, |lits, _| lits[0] = -lits[0]);
+    dir.write("flipped.lrat", flipped);
+    dir.orbitcnf()
+        .args(["verify-proof", "p9.cnf", "flipped.lrat"])
+        .run()
+        .error_with(&["proof rejected", "step"]);
+
+    let dropped = tamper_first_addition(&proof, |_, hints| {
+        hints.pop();
+    });
+    dir.write("dropped.lrat", dropped);
+    dir.orbitcnf()
+        .args(["verify-proof", "p9.cnf", "dropped.lrat"])
+        .run()
+        .error_with(&["proof rejected", "step"]);
+
+    let lines: Vec<&str> = proof.lines().collect();
+    dir.write("truncated.lrat", lines[..lines.len() / 2].join("\n") + "\n");
+    dir.orbitcnf()
+        .args(["verify-proof", "p9.cnf", "truncated.lrat"])
+        .run()
+        .error_with(&["proof rejected", "without deriving the empty clause"]);
+    let cut = &proof[..proof.len() / 2];
+    dir.write(
+        "cut.lrat",
+        cut.trim_end_matches(|c: char| c.is_whitespace()),
+    );
+    dir.orbitcnf()
+        .args(["verify-proof", "p9.cnf", "cut.lrat"])
+        .run()
+        .code(ERROR)
+        .stderr_has("proof rejected");
+
+    // The proof of p = 9 is not a proof for the CNF of p = 10.
+    dir.orbitcnf()
+        .args(["verify-proof", "p10.cnf", "p9.lrat"])
+        .run()
+        .error_with(&["proof rejected"]);
+    // The untouched proof is accepted.
+    dir.orbitcnf()
+        .args(["verify-proof", "p9.cnf", "p9.lrat"])
+        .run()
+        .code(0);
+}
+
+#[test]
+fn the_drat_proof_is_accepted_by_the_rate_checker() {
+    let dir = TestDir::new();
+    dir.orbitcnf()
+        .args([
+            "decide",
+            "--dim",
+            "3",
+            "--grid=-1..1",
+            "--period",
+            "10",
+            "--drat",
+            "p10.drat",
+        ])
+        .run()
+        .code(INFEASIBLE)
+        .stdout_has("binary DRAT");
+    encode(&dir, "-1..1", "3", 10, "p10.cnf");
+    let rate = std::process::Command::new("rate").arg("--version").output();
+    if rate.is_err() {
+        assert!(
+            std::env::var_os("CI").is_none(),
+            "CI must install the rate checker (cargo install rate)"
+        );
+        eprintln!("note: `rate` is not on PATH; skipping the external DRAT check");
+        return;
+    }
+    let run = dir.program("rate").args(["p10.cnf", "p10.drat"]).run();
+    assert!(
+        run.stdout.contains("s VERIFIED"),
+        "rate did not verify:\n{}\n{}",
+        run.stdout,
+        run.stderr
+    );
+}
+
+#[test]
+fn bundles_are_rechecked_end_to_end_and_tampering_is_caught() {
+    let dir = TestDir::new();
+    dir.orbitcnf()
+        .args([
+            "decide",
+            "--dim",
+            "3",
+            "--grid=-1..1",
+            "--period",
+            "11",
+            "--bundle",
+            "b11",
+        ])
+        .run()
+        .code(INFEASIBLE)
+        .stderr_has("certificate bundle written");
+    let ok = dir.orbitcnf().args(["check-bundle", "b11", "--json"]).run();
+    ok.code(0);
+    let j = ok.json();
+    assert!(j["proof"]["steps"].as_u64().unwrap() > 0);
+    assert_eq!(j["manifest"]["verdict"], "infeasible");
+
+    // A feasible bundle carries the orbit instead, and it is re-verified.
+    dir.orbitcnf()
+        .args([
+            "decide",
+            "--dim",
+            "3",
+            "--grid=-1..1",
+            "--period",
+            "8",
+            "--bundle",
+            "b8",
+        ])
+        .run()
+        .code(10);
+    dir.orbitcnf()
+        .args(["check-bundle", "b8"])
+        .run()
+        .code(0)
+        .stdout_has("FEASIBLE, certified");
+
+    // Any edit of the CNF is caught by its digest.
+    let cnf = dir.read("b11/formula.cnf");
+    dir.write("b11/formula.cnf", format!("{cnf}c an edit\n"));
+    dir.orbitcnf()
+        .args(["check-bundle", "b11"])
+        .run()
+        .error_with(&["formula.cnf", "SHA-256"]);
+    dir.write("b11/formula.cnf", cnf);
+    dir.orbitcnf().args(["check-bundle", "b11"]).run().code(0);
+
+    // A manifest that claims another question no longer matches the CNF.
+    let manifest = dir.read("b11/manifest.json");
+    dir.write(
+        "b11/manifest.json",
+        manifest.replace("\"period\": 11", "\"period\": 12"),
+    );
+    dir.orbitcnf()
+        .args(["check-bundle", "b11"])
+        .run()
+        .error_with(&["differs from a fresh encoding"]);
+}

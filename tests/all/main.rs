@@ -10,5 +10,5 @@
 //! No verdict is trusted alone: every feasible answer's orbit is verified.
 
 mod cli;
-mod proofs;
+mod published;
 mod util;

@@ -9,6 +9,7 @@
 //!
 //! No verdict is trusted alone: every feasible answer's orbit is verified.
 
+mod brute;
 mod cli;
 mod published;
 mod util;

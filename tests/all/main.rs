@@ -11,5 +11,6 @@
 
 mod brute;
 mod cli;
+mod external;
 mod published;
 mod util;

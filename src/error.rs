@@ -81,6 +81,20 @@ pub enum Error {
     #[error("check failed: {0}")]
     Check(#[from] crate::verify::CheckFailure),
 
+    /// Two answers to the same question disagree (a stored result and a new
+    /// one, or two stored results), or an answer contradicts a published
+    /// theorem. `first` and `second` each say which answer or theorem, how it
+    /// was obtained, in which run, when, and by which orbitcnf version.
+    #[error("CONTRADICTION for {question}: {first}; but {second}")]
+    Contradiction {
+        /// The question both concern, in words.
+        question: String,
+        /// The earlier answer (or the theorem).
+        first: String,
+        /// The answer that disagrees with it.
+        second: String,
+    },
+
     /// A solver back-end failed (crashed, misbehaved, could not be started).
     #[error("solver {solver}: {reason}")]
     Solver {

@@ -27,6 +27,8 @@ pub mod proof;
 pub mod question;
 pub mod report;
 pub mod solve;
+pub mod spectrum;
+pub mod store;
 pub mod varmap;
 pub mod verify;
 

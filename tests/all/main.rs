@@ -12,5 +12,7 @@
 mod brute;
 mod cli;
 mod external;
+mod instances;
+mod proofs;
 mod published;
 mod util;

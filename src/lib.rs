@@ -28,6 +28,7 @@ pub mod question;
 pub mod report;
 pub mod solve;
 pub mod spectrum;
+pub mod split;
 pub mod store;
 pub mod varmap;
 pub mod verify;

@@ -79,6 +79,25 @@ enum Command {
     /// Example: orbitcnf spectrum --dim 3 --grid=-1..1
     #[command(after_help = SPECTRUM_HELP)]
     Spectrum(SpectrumArgs),
+    /// Split a question into cubes for solving on many cores or machines:
+    /// writes a folder with the CNF, one standalone CNF per cube, an iCNF
+    /// file, a checked coverage proof and manifest.json.
+    ///
+    /// Example: orbitcnf split --dim 4 --grid=-1..1 --period 17 --cubes 32 --out t4p17
+    #[command(after_help = SPLIT_HELP)]
+    Split(SplitArgs),
+    /// Solve one cube of a split folder and write its result file
+    /// (results/cube-NNNN.json, with the LRAT proof beside it).
+    ///
+    /// Example: orbitcnf run-cube t4p17 5 --time-limit 3600
+    #[command(after_help = RUN_CUBE_HELP)]
+    RunCube(RunCubeArgs),
+    /// Combine the results of a split folder into one verdict, re-checking
+    /// the split, every orbit and every proof.
+    ///
+    /// Example: orbitcnf merge t4p17
+    #[command(after_help = MERGE_HELP)]
+    Merge(MergeArgs),
 }
 
 #[derive(Args, Debug)]
@@ -215,6 +234,8 @@ struct DecideArgs {
     /// verdict then rests on the solver's word, and the report says so).
     #[arg(long)]
     no_certify: bool,
+    #[command(flatten)]
+    scale: ScaleArgs,
 }
 
 #[derive(Args, Debug)]
@@ -321,6 +342,9 @@ fn run(cli: Cli) -> Result<u8, Error> {
                 progress: !a.quiet && !a.json,
             };
             let options = a.encoding.options()?;
+            if let Some(code) = decide_scaled(&a, &q, &options, &limits)? {
+                return Ok(code);
+            }
             let report = if a.no_certify {
                 decide::decide(&q, &options, &mut Bundled, &limits, a.question.max_clauses)?
             } else {
@@ -406,6 +430,9 @@ fn run(cli: Cli) -> Result<u8, Error> {
         Command::Bench(a) => bench(a),
         Command::VerifyProof(a) => verify_proof(a),
         Command::Spectrum(a) => spectrum(a),
+        Command::Split(a) => split_cmd(a),
+        Command::RunCube(a) => run_cube_cmd(a),
+        Command::Merge(a) => merge_cmd(a),
         Command::CheckBundle(a) => {
             let c = orbitcnf::bundle::check_bundle(&a.dir)?;
             let text = match (&c.proof, &c.orbit) {
@@ -683,4 +710,387 @@ fn spectrum(a: SpectrumArgs) -> Result<u8, Error> {
         s.to_table()
     })?;
     Ok(if s.summary.all_decided { 0 } else { 2 })
+}
+
+// ---- Scale-out: external solvers, `decide --jobs`, split / run-cube / merge ----
+
+use orbitcnf::solve::external::{External, ProofFormat, ProofRequest};
+use orbitcnf::split::{self, jobs::JobsOptions, run as cube_run};
+
+const SPLIT_HELP: &str = "\
+How the space is cut: a cube fixes a prefix g(1..j) of the distance profile
+g(k) = ‖x_i − x_{i+k}‖∞; prefixes are refined breadth-first until there are
+at least --cubes of them (or every profile is fixed), and prefixes that no
+multiplier lex-leader extends are dropped. coverage.cnf (the profile's order
+encoding and lex-leader clauses of formula.cnf, plus the negation of every
+cube) is refuted and its LRAT proof checked before anything is written: every
+model of formula.cnf lies in some cube (encodings/cubes.md).
+
+The folder:
+  manifest.json        question, options, cube list, SHA-256 of every file
+  formula.cnf          the whole CNF (orbitcnf header)
+  cubes.icnf           the CNF in iCNF: 'p inccnf', the clauses, one 'a … 0' per cube
+  cubes/cube-NNNN.cnf  the CNF plus the cube's units; `orbitcnf decode` reads
+                       any solver's output on it
+  coverage.cnf, coverage.lrat   the coverage check and its proof
+  results/             filled by run-cube
+
+Then: orbitcnf run-cube DIR INDEX for every index (see docs/cluster.md for
+Slurm and GNU parallel), and orbitcnf merge DIR.";
+
+const RUN_CUBE_HELP: &str = "\
+The result file is written atomically, so a killed run leaves no partial
+result; a cube that already has a final result (feasible or infeasible) is
+skipped unless --force, so rerunning every index redoes only what is missing.
+With the bundled solver an infeasible cube's LRAT proof is checked and kept as
+results/cube-NNNN.lrat; merge checks it again.
+
+Exit codes: 0 when a result was written (whatever the verdict: it is in the
+result file, and merge combines them), 1 on error (a failed or lying solver is
+recorded in the result file as status \"error\" before exiting).";
+
+const MERGE_HELP: &str = "\
+merge re-encodes the question and checks that formula.cnf, every cube file and
+coverage.cnf are byte for byte what this orbitcnf writes, re-checks the
+coverage proof, re-verifies every orbit and re-checks every cube's LRAT proof
+against its cube CNF. The verdict is feasible if some cube is, infeasible if
+every cube is refuted, and unknown otherwise, with the missing or failed cubes
+listed by index (rerun them with run-cube, or get the list with --pending).
+
+Exit codes (the SAT convention):
+  10  feasible (the orbit is printed and checked)
+  20  infeasible (every cube refuted and the cubes cover the space)
+   0  unknown: some cube has no usable result (or --pending)
+   1  error: the split folder is damaged or from another orbitcnf version";
+
+/// Which SAT solver to use.
+#[derive(Args, Debug)]
+struct SolverArgs {
+    /// The SAT solver: `bundled` (varisat; infeasible answers come with an
+    /// LRAT proof checked by orbitcnf) or `external:'COMMAND ARGS'`, any
+    /// DIMACS solver that follows the competition conventions (prints `s` and
+    /// `v` lines, exits 10/20, or 0 for unknown), run as COMMAND ARGS CNF; e.g.
+    /// --solver external:'cadical -q'. Its model is checked against every
+    /// clause and decoded as `decode` does; a solver that crashes, lies or is
+    /// missing is an error, never a verdict. Without --proof-arg its
+    /// "unsatisfiable" is reported as an uncertified claim.
+    #[arg(long, value_name = "SOLVER", default_value = "bundled")]
+    solver: String,
+    /// With an external solver: ask it for a proof of an "unsatisfiable"
+    /// answer. ARG is appended after the CNF path with every {} replaced by
+    /// the proof file's path (CaDiCaL and Kissat: --proof-arg '{}'); repeat
+    /// for several arguments. An LRAT proof is checked by orbitcnf's checker;
+    /// a DRAT proof is converted to LRAT by `rate` when it is on PATH and then
+    /// checked; without `rate` the answer stays uncertified and says so.
+    #[arg(long, value_name = "ARG", allow_hyphen_values = true)]
+    proof_arg: Vec<String>,
+    /// The format of the external solver's proof: drat (CaDiCaL's default,
+    /// text or binary) or lrat.
+    #[arg(long, value_name = "FORMAT", default_value = "drat")]
+    proof_format: ProofFormat,
+}
+
+impl SolverArgs {
+    /// The external solver, or `None` for the bundled one.
+    fn external(&self) -> Result<Option<External>, Error> {
+        let s = self.solver.trim();
+        if s == "bundled" {
+            if !self.proof_arg.is_empty() {
+                return Err(Error::Options(
+                    "--proof-arg is for external solvers; the bundled solver always certifies"
+                        .into(),
+                ));
+            }
+            return Ok(None);
+        }
+        match s.strip_prefix("external:") {
+            Some(cmd) => External::parse(cmd).map(Some),
+            None => Err(Error::Options(format!(
+                "unknown solver {s:?}; write --solver bundled or --solver external:'COMMAND ARGS'"
+            ))),
+        }
+    }
+
+    /// The external solver with its proof request (`lrat`/`raw`: where to keep the proofs).
+    fn external_with_proof(
+        &self,
+        certify: bool,
+        lrat: Option<PathBuf>,
+        raw: Option<PathBuf>,
+    ) -> Result<Option<External>, Error> {
+        let Some(mut ext) = self.external()? else {
+            return Ok(None);
+        };
+        if !self.proof_arg.is_empty() {
+            if !certify {
+                return Err(Error::Options(
+                    "--proof-arg and --no-certify contradict each other".into(),
+                ));
+            }
+            ext.proof = Some(ProofRequest {
+                args: self.proof_arg.clone(),
+                format: self.proof_format,
+                keep_lrat: lrat,
+                keep_raw: raw,
+            });
+        } else if lrat.is_some() || raw.is_some() {
+            return Err(Error::Options(
+                "--proof, --drat and --bundle with an external solver need --proof-arg \
+                 (how to ask the solver for a proof)"
+                    .into(),
+            ));
+        }
+        Ok(Some(ext))
+    }
+}
+
+/// `decide`'s scale-out flags.
+#[derive(Args, Debug)]
+struct ScaleArgs {
+    #[command(flatten)]
+    solver: SolverArgs,
+    /// Split the question into cubes (as `orbitcnf split` does) and solve
+    /// them on K threads with the bundled solver. Each cube's LRAT proof is
+    /// checked, and an infeasible answer comes with one LRAT proof of the
+    /// whole CNF assembled from them, checked like a monolithic one.
+    #[arg(long, short = 'j', value_name = "K", default_value_t = 1)]
+    jobs: usize,
+    /// With --jobs: how many cubes to aim for (default: 8 per thread).
+    #[arg(long, value_name = "N")]
+    cubes: Option<usize>,
+}
+
+/// `decide` with an external solver or with --jobs; `None` for the plain bundled path.
+fn decide_scaled(
+    a: &DecideArgs,
+    q: &Question,
+    options: &EncodeOptions,
+    limits: &Limits,
+) -> Result<Option<u8>, Error> {
+    let s = &a.scale;
+    let parallel = s.jobs != 1 || s.cubes.is_some();
+    if s.solver.external()?.is_none() && !parallel {
+        return Ok(None);
+    }
+    let lrat = match (&a.proof, &a.bundle) {
+        (Some(p), _) => Some(p.clone()),
+        (None, Some(dir)) => {
+            std::fs::create_dir_all(dir).map_err(|e| Error::io(dir, e))?;
+            Some(dir.join(orbitcnf::bundle::PROOF))
+        }
+        (None, None) => None,
+    };
+    let report = if parallel {
+        if s.solver.external()?.is_some() {
+            return Err(Error::Options(
+                "--jobs runs the bundled solver; for an external solver use \
+                 `orbitcnf split` and `orbitcnf run-cube --solver …`"
+                    .into(),
+            ));
+        }
+        if a.drat.is_some() {
+            return Err(Error::Options(
+                "--drat is not available with --jobs: the proof of a split run is \
+                 assembled as LRAT (write it with --proof)"
+                    .into(),
+            ));
+        }
+        let opts = JobsOptions {
+            jobs: s.jobs,
+            cubes: s
+                .cubes
+                .unwrap_or_else(|| JobsOptions::default_cubes(s.jobs)),
+            certify: !a.no_certify,
+            lrat: lrat.clone(),
+        };
+        split::jobs::decide_parallel(q, options, &opts, limits, a.question.max_clauses)?
+    } else {
+        let mut ext = s
+            .solver
+            .external_with_proof(!a.no_certify, lrat.clone(), a.drat.clone())?
+            .expect("an external solver");
+        decide::decide(q, options, &mut ext, limits, a.question.max_clauses)?
+    };
+    if let Some(dir) = &a.bundle {
+        let checked = matches!(
+            report.certificate,
+            orbitcnf::report::Certificate::CheckedProof(_)
+        );
+        let evidence = match (&report.orbit, &lrat) {
+            (Some(orbit), _) => Some(Evidence::Orbit(orbit)),
+            (None, Some(path)) if report.verdict == Verdict::Infeasible && checked => {
+                Some(Evidence::Proof(path))
+            }
+            _ => None,
+        };
+        match evidence {
+            Some(ev) => {
+                orbitcnf::bundle::write_bundle(dir, q, options, ev)?;
+                eprintln!("certificate bundle written to {}", dir.display());
+            }
+            None => eprintln!("no bundle written: the verdict is not certified"),
+        }
+    }
+    print(&if a.json {
+        report.to_json() + "\n"
+    } else {
+        report.to_text()
+    })?;
+    Ok(Some(report.verdict.exit_code() as u8))
+}
+
+#[derive(Args, Debug)]
+struct SplitArgs {
+    #[command(flatten)]
+    question: QuestionArgs,
+    #[command(flatten)]
+    encoding: EncodingArgs,
+    /// How many cubes to aim for: prefixes of the profile are refined until
+    /// there are at least this many (fewer when the profile runs out).
+    #[arg(long, value_name = "N", default_value_t = 16)]
+    cubes: usize,
+    /// The folder to write (created; it must not hold a split already).
+    #[arg(long, value_name = "DIR")]
+    out: PathBuf,
+    /// Print the manifest as JSON instead of the summary.
+    #[arg(long)]
+    json: bool,
+}
+
+fn split_cmd(a: SplitArgs) -> Result<u8, Error> {
+    let q = a.question.question()?;
+    let m = split::write_split(
+        &a.out,
+        &q,
+        &a.encoding.options()?,
+        a.cubes,
+        a.question.max_clauses,
+    )?;
+    let n = m.cubes.len();
+    let d = a.out.display();
+    print(&if a.json {
+        serde_json::to_string(&m).expect("serialises") + "\n"
+    } else {
+        format!(
+            "question     {}\ncubes        {n} (asked for {}), prefixes of the distance profile g(1..{})\n\
+             coverage     checked: LRAT proof of {} steps refutes coverage.cnf, so every model lies in a cube\n\
+             written      {d}/manifest.json, formula.cnf, cubes.icnf, coverage.cnf, coverage.lrat, cubes/cube-NNNN.cnf\n\
+             next         orbitcnf run-cube {d} INDEX   for INDEX in 0..{}   (docs/cluster.md: Slurm, GNU parallel)\n\
+             \x20            orbitcnf merge {d}\n",
+            q.statement(),
+            a.cubes,
+            m.split.offsets,
+            m.coverage.lrat_steps,
+            n.saturating_sub(1),
+        )
+    })?;
+    Ok(0)
+}
+
+#[derive(Args, Debug)]
+struct RunCubeArgs {
+    /// The split folder written by `orbitcnf split`.
+    dir: PathBuf,
+    /// The cube's index, from 0.
+    index: usize,
+    #[command(flatten)]
+    solver: SolverArgs,
+    /// Give up after this many seconds and record "unknown".
+    #[arg(long, value_name = "SECS", value_parser = parse_seconds)]
+    time_limit: Option<Duration>,
+    /// With the bundled solver: do not produce or check a proof (the result
+    /// is then an uncertified claim).
+    #[arg(long)]
+    no_certify: bool,
+    /// Solve again even if the cube already has a final result.
+    #[arg(long)]
+    force: bool,
+    /// Print the result as JSON.
+    #[arg(long)]
+    json: bool,
+    /// Do not show the progress line on stderr.
+    #[arg(long, short)]
+    quiet: bool,
+}
+
+fn run_cube_cmd(a: RunCubeArgs) -> Result<u8, Error> {
+    let limits = Limits {
+        time: a.time_limit,
+        progress: !a.quiet && !a.json,
+    };
+    let lrat = cube_run::lrat_target(&a.dir, a.index);
+    // An external solver is asked for a proof only with --proof-arg.
+    let keep = (!a.solver.proof_arg.is_empty()).then(|| lrat.clone());
+    let mut external = a.solver.external_with_proof(!a.no_certify, keep, None)?;
+    let mut bundled = orbitcnf::solve::bundled::Bundled;
+    let mut certified = Certified {
+        lrat: Some(lrat),
+        drat: None,
+    };
+    let backend: &mut dyn orbitcnf::solve::Backend = match (external.as_mut(), a.no_certify) {
+        (Some(ext), _) => ext,
+        (None, true) => &mut bundled,
+        (None, false) => &mut certified,
+    };
+    let outcome = cube_run::run_cube(&a.dir, a.index, backend, &limits, a.force)?;
+    let (r, note) = match &outcome {
+        cube_run::RunOutcome::Solved(r) => (r, ""),
+        cube_run::RunOutcome::AlreadyDone(r) => (r, " (already solved; --force solves again)"),
+    };
+    print(&if a.json {
+        serde_json::to_string(r).expect("serialises") + "\n"
+    } else {
+        let status = match r.status {
+            cube_run::CubeStatus::Feasible => "feasible (orbit verified)".to_string(),
+            cube_run::CubeStatus::Infeasible => match &r.proof {
+                Some(p) => format!("infeasible, LRAT proof checked ({} steps)", p.steps),
+                None => "infeasible, uncertified (no proof)".to_string(),
+            },
+            cube_run::CubeStatus::Unknown => {
+                format!("unknown: {}", r.reason.as_deref().unwrap_or("no answer"))
+            }
+            cube_run::CubeStatus::Error => {
+                format!("error: {}", r.reason.as_deref().unwrap_or("?"))
+            }
+        };
+        format!(
+            "cube {}: {status}; {:.3} s with {}{note}\n",
+            r.index, r.seconds, r.solver
+        )
+    })?;
+    Ok(0)
+}
+
+#[derive(Args, Debug)]
+struct MergeArgs {
+    /// The split folder.
+    dir: PathBuf,
+    /// When every cube is refuted with a proof: also assemble one LRAT proof
+    /// of formula.cnf from the cube proofs and the coverage proof, check it,
+    /// and write it to FILE (checkable with `orbitcnf verify-proof
+    /// DIR/formula.cnf FILE` or any LRAT checker).
+    #[arg(long, value_name = "FILE")]
+    proof: Option<PathBuf>,
+    /// Only print the indices of the cubes without a final result, one per
+    /// line (for rerunning them), and exit 0.
+    #[arg(long)]
+    pending: bool,
+    /// Print one JSON object instead of text.
+    #[arg(long)]
+    json: bool,
+}
+
+fn merge_cmd(a: MergeArgs) -> Result<u8, Error> {
+    if a.pending {
+        let idx = cube_run::pending_indices(&a.dir)?;
+        print(&idx.iter().map(|i| format!("{i}\n")).collect::<String>())?;
+        return Ok(0);
+    }
+    let r = cube_run::merge(&a.dir, a.proof.as_deref())?;
+    print(&if a.json {
+        serde_json::to_string(&r).expect("serialises") + "\n"
+    } else {
+        r.to_text()
+    })?;
+    Ok(r.exit_code() as u8)
 }

@@ -94,7 +94,10 @@ pub enum ExternalFailure {
         stderr: String,
     },
     /// The process exited with a code that is neither 0, 10 nor 20.
-    #[error("exited with code {code} (expected 10, 20, or 0 for unknown){}", tail(stderr))]
+    #[error(
+        "exited with code {code} (expected 10, 20, or 0 for unknown){}",
+        tail(stderr)
+    )]
     ExitCode {
         /// The exit code.
         code: i32,
@@ -144,7 +147,9 @@ impl std::str::FromStr for ProofFormat {
         match s {
             "drat" => Ok(ProofFormat::Drat),
             "lrat" => Ok(ProofFormat::Lrat),
-            other => Err(format!("unknown proof format {other:?}; choose drat or lrat")),
+            other => Err(format!(
+                "unknown proof format {other:?}; choose drat or lrat"
+            )),
         }
     }
 }
@@ -427,7 +432,11 @@ fn signal_name(signal: i32) -> Option<&'static str> {
 /// The first number after `c conflicts:` in the solver's comments, if any.
 fn conflicts_of(text: &str) -> Option<u64> {
     text.lines().find_map(|l| {
-        let rest = l.trim().strip_prefix("c")?.trim_start().strip_prefix("conflicts:")?;
+        let rest = l
+            .trim()
+            .strip_prefix("c")?
+            .trim_start()
+            .strip_prefix("conflicts:")?;
         rest.split_whitespace().next()?.parse().ok()
     })
 }
@@ -470,10 +479,12 @@ impl Backend for External {
             .map_err(|e| Error::io(std::env::temp_dir(), e))?;
         let cnf_path = tmp.path().join("formula.cnf");
         write_plain_dimacs(cnf, &cnf_path)?;
-        let proof_path = tmp.path().join(match self.proof.as_ref().map(|p| p.format) {
-            Some(ProofFormat::Lrat) => "proof.lrat",
-            _ => "proof.drat",
-        });
+        let proof_path = tmp
+            .path()
+            .join(match self.proof.as_ref().map(|p| p.format) {
+                Some(ProofFormat::Lrat) => "proof.lrat",
+                _ => "proof.drat",
+            });
         let program = &self.command[0];
         let mut cmd = Command::new(program);
         cmd.args(&self.command[1..]).arg(&cnf_path);
@@ -575,7 +586,14 @@ impl Backend for External {
                         proof: None,
                     });
                 };
-                self.check_proof(cnf, &cnf_path, &proof_path, &req, deadline, stats(conflicts))
+                self.check_proof(
+                    cnf,
+                    &cnf_path,
+                    &proof_path,
+                    &req,
+                    deadline,
+                    stats(conflicts),
+                )
             }
         }
     }
@@ -693,7 +711,10 @@ mod tests {
     fn command_lines_split_like_a_shell() {
         let w = |s: &str| split_words(s).unwrap();
         assert_eq!(w("cadical -q"), vec!["cadical", "-q"]);
-        assert_eq!(w("  a  'b c' \"d\\\"e\" f\\ g "), vec!["a", "b c", "d\"e", "f g"]);
+        assert_eq!(
+            w("  a  'b c' \"d\\\"e\" f\\ g "),
+            vec!["a", "b c", "d\"e", "f g"]
+        );
         assert_eq!(w("''"), vec![""]);
         assert!(split_words("a 'b").is_err());
         assert!(External::parse("   ").is_err());

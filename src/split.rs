@@ -1,0 +1,710 @@
+//! Splitting a question into cubes, for solving on many cores or machines.
+//!
+//! # Design
+//!
+//! The formula `F` of a question (see [`crate::encode`]) has the distance
+//! profile `g(1..K)`, `K = ⌊p/2⌋`, as order-encoded variables
+//! `G[k,t] ⇔ g(k) ≥ t` (`1 ≤ t ≤ L`, `L` the box's diameter). A *cube* fixes a
+//! prefix `g(1..j) = (v_1, …, v_j)` of the profile; as literals, `g(k) = v` is
+//! `G[k,v]` (left out when `v = 1`, since `G[k,1]` is a unit of `F`) and
+//! `¬G[k,v+1]` (left out when `v = L`). Cubes are made by breadth-first
+//! refinement ([`profile_cubes`]): start from the empty prefix and replace the
+//! shortest prefix by its one-longer extensions until there are at least the
+//! requested number of cubes or every prefix is a whole profile. When `F`
+//! contains the multiplier lex-leader family (`sym-multiplier`, on by
+//! default), an extension is dropped when the prefix already decides that the
+//! profile is not lexicographically least under some multiplier
+//! ([`prefix_survives`]): no model of `F` has such a prefix.
+//!
+//! A split folder ([`write_split`]) holds `formula.cnf` (`F` with the orbitcnf
+//! header), `cubes.icnf` (`F` in iCNF with one `a … 0` line per cube),
+//! `cubes/cube-NNNN.cnf` (`F` plus the cube's unit clauses, with the orbitcnf
+//! header, so `orbitcnf decode` reads any solver's answer on it),
+//! `coverage.cnf` and `coverage.lrat` (below), and `manifest.json`
+//! ([`SplitManifest`]: question, options, cube list and the SHA-256 of every
+//! file), written last. [`run`] solves one cube into `results/` and merges the
+//! results; [`jobs`] does the same in threads for `decide --jobs`; [`lift`]
+//! turns the per-cube refutations into one LRAT proof of `F`.
+//!
+//! # Why the cubes cover the search space
+//!
+//! Let `S` be the clauses of `F` in the families `profile` (the order
+//! encoding `G[k,t+1] → G[k,t]` and the units `G[k,1]`) and `sym-multiplier`
+//! (when present), and let `coverage.cnf` be `S` together with one clause
+//! `¬l_1 ∨ … ∨ ¬l_r` for each cube `{l_1, …, l_r}` ([`coverage_cnf`]).
+//! `split` refutes `coverage.cnf` and checks the LRAT proof with orbitcnf's
+//! checker; `merge` checks it again. Now take any model `M` of `F`. It
+//! satisfies `S ⊆ F`. If it falsified every cube, it would satisfy every
+//! negated cube as well, hence `coverage.cnf`, which is unsatisfiable. So `M`
+//! satisfies some cube `c`, i.e. `M` is a model of `F ∧ c`. Conversely a model
+//! of `F ∧ c` is a model of `F`. Hence `F` is satisfiable iff some cube is,
+//! and `F` is unsatisfiable iff every `F ∧ c` is. This argument does not
+//! depend on how the cubes were chosen: the coverage proof is the only thing
+//! that is trusted about them, and a wrong choice (a missed profile) makes the
+//! coverage CNF satisfiable, which `split` reports as an error. The written
+//! argument is `encodings/cubes.md`.
+
+pub mod jobs;
+pub mod lift;
+pub mod run;
+
+use std::path::Path;
+
+use serde::{Deserialize, Serialize};
+use sha2::{Digest, Sha256};
+
+use crate::cnf::{Cnf, FamilyCount, Lit};
+use crate::dimacs::{VERSION, render_cnf, write_atomically};
+use crate::encode::{EncodeOptions, Encoding, encode, profile, symmetry};
+use crate::error::{Error, Result};
+use crate::proof::{LratOptions, LratSummary, certify, check_lrat_with};
+use crate::question::{Question, QuestionRecord};
+use crate::solve::Outcome;
+use crate::varmap::Meaning;
+
+/// The manifest's file name.
+pub const MANIFEST: &str = "manifest.json";
+/// The whole formula, with the orbitcnf header.
+pub const FORMULA: &str = "formula.cnf";
+/// The formula and the cubes in iCNF.
+pub const ICNF: &str = "cubes.icnf";
+/// The coverage check.
+pub const COVERAGE: &str = "coverage.cnf";
+/// The coverage check's LRAT proof.
+pub const COVERAGE_PROOF: &str = "coverage.lrat";
+/// The folder of per-cube CNF files.
+pub const CUBES_DIR: &str = "cubes";
+/// The folder of per-cube results.
+pub const RESULTS_DIR: &str = "results";
+/// The format tag of [`SplitManifest`].
+pub const FORMAT: &str = "orbitcnf-split/1";
+/// The family label of a cube's unit clauses in its CNF header.
+pub const CUBE_FAMILY: &str = "cube";
+
+/// One cube: a prefix of the distance profile, as literals over `G[k,t]`.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct Cube {
+    /// Position in the cube list, from 0.
+    pub index: usize,
+    /// `g(1..=prefix.len())`.
+    pub prefix: Vec<i64>,
+    /// The assumption literals (DIMACS numbers), in profile order.
+    pub literals: Vec<i32>,
+}
+
+impl Cube {
+    /// The literals as [`Lit`]s.
+    pub fn lits(&self) -> Vec<Lit> {
+        self.literals.iter().map(|&l| Lit::from_dimacs(l)).collect()
+    }
+
+    /// The prefix in words: `g(1..3) = 1 2 2`, or `the whole space`.
+    pub fn describe(&self) -> String {
+        if self.prefix.is_empty() {
+            return "the whole space".into();
+        }
+        let v: Vec<String> = self.prefix.iter().map(|x| x.to_string()).collect();
+        format!("g(1..{}) = {}", self.prefix.len(), v.join(" "))
+    }
+}
+
+/// Whether some completion of `prefix` (values of `g(1..)`) may be
+/// lexicographically least under every multiplier map of `maps` (as
+/// [`symmetry::multiplier_maps`] lists them, offsets `1..=k_max`).
+///
+/// For each map `φ` the comparison `g ≤_lex g∘φ` is walked as far as the
+/// prefix determines both sides; the prefix is rejected only when a position
+/// with both sides known and all earlier ones equal has `g(k) > g(φ(k))`, so
+/// every rejected prefix violates the `sym-multiplier` clauses in every
+/// completion.
+pub fn prefix_survives(prefix: &[i64], maps: &[Vec<usize>], k_max: usize) -> bool {
+    maps.iter().all(|map| {
+        for (k, &h) in map.iter().enumerate().take(k_max + 1).skip(1) {
+            if h == k {
+                continue;
+            }
+            let (Some(a), Some(b)) = (prefix.get(k - 1), prefix.get(h - 1)) else {
+                return true;
+            };
+            if a != b {
+                return a < b;
+            }
+        }
+        true
+    })
+}
+
+/// The literals saying `g(k) = value`, with `1 ≤ value ≤ L`, as the encoding's variables.
+///
+/// # Errors
+/// [`Error::Options`] when the encoding has no profile variable needed (an
+/// encoding not made by [`encode`]).
+pub fn value_literals(enc: &Encoding, k: usize, value: i64) -> Result<Vec<Lit>> {
+    let l = enc.question.grid.diameter() as i64;
+    let var = |t: i64| {
+        enc.map
+            .get(&Meaning::Profile { k, value: t })
+            .ok_or_else(|| Error::Options(format!("the encoding has no variable for g({k}) ≥ {t}")))
+    };
+    let mut out = Vec::new();
+    if value >= 2 {
+        out.push(var(value)?.pos());
+    }
+    if value < l {
+        out.push(var(value + 1)?.neg());
+    }
+    Ok(out)
+}
+
+/// About `target` cubes over the profile of `enc` (see the module docs).
+///
+/// # Errors
+/// As [`value_literals`].
+pub fn profile_cubes(enc: &Encoding, target: usize) -> Result<Vec<Cube>> {
+    let q = &enc.question;
+    let k_max = q.period / 2;
+    let l = q.grid.diameter() as i64;
+    let maps = if enc.options.symmetry.multiplier {
+        symmetry::multiplier_maps(q.period)
+    } else {
+        Vec::new()
+    };
+    let mut prefixes: Vec<Vec<i64>> = vec![Vec::new()];
+    while prefixes.len() < target.max(1) {
+        let Some(pos) = (0..prefixes.len())
+            .filter(|&i| prefixes[i].len() < k_max)
+            .min_by_key(|&i| prefixes[i].len())
+        else {
+            break;
+        };
+        let parent = prefixes.remove(pos);
+        let children: Vec<Vec<i64>> = (1..=l)
+            .map(|v| {
+                let mut c = parent.clone();
+                c.push(v);
+                c
+            })
+            .filter(|c| prefix_survives(c, &maps, k_max))
+            .collect();
+        for (n, c) in children.into_iter().enumerate() {
+            prefixes.insert(pos + n, c);
+        }
+    }
+    prefixes
+        .into_iter()
+        .enumerate()
+        .map(|(index, prefix)| {
+            let mut literals = Vec::new();
+            for (k0, &v) in prefix.iter().enumerate() {
+                literals.extend(value_literals(enc, k0 + 1, v)?.iter().map(|l| l.dimacs()));
+            }
+            Ok(Cube {
+                index,
+                prefix,
+                literals,
+            })
+        })
+        .collect()
+}
+
+/// The clause index range of each family of `enc`, by label.
+fn family_range(enc: &Encoding, family: &str) -> Option<std::ops::Range<usize>> {
+    let mut start = 0usize;
+    for f in &enc.families {
+        let end = start + f.clauses as usize;
+        if f.family == family {
+            return Some(start..end);
+        }
+        start = end;
+    }
+    None
+}
+
+/// The indices (in `enc.cnf`) of the clauses that the coverage check keeps:
+/// the `profile` family, then `sym-multiplier` when present.
+pub fn coverage_sources(enc: &Encoding) -> Vec<usize> {
+    [profile::FAMILY, symmetry::MULTIPLIER]
+        .iter()
+        .filter_map(|f| family_range(enc, f))
+        .flatten()
+        .collect()
+}
+
+/// The coverage check: the clauses [`coverage_sources`] names, then the
+/// negation of every cube. Variables keep their numbers in `F`.
+pub fn coverage_cnf(enc: &Encoding, cubes: &[Cube]) -> Cnf {
+    let mut cnf = Cnf::new();
+    cnf.reserve_vars(enc.cnf.num_vars());
+    for i in coverage_sources(enc) {
+        cnf.add_clause(enc.cnf.clause(i));
+    }
+    for c in cubes {
+        let neg: Vec<Lit> = c.lits().into_iter().map(|l| !l).collect();
+        cnf.add_clause(&neg);
+    }
+    cnf
+}
+
+/// `F` with the cube's literals as unit clauses (family [`CUBE_FAMILY`]).
+pub fn cube_encoding(enc: &Encoding, cube: &Cube) -> Encoding {
+    let mut e = enc.clone();
+    for l in cube.lits() {
+        e.cnf.add_clause(&[l]);
+    }
+    e.families.push(FamilyCount {
+        family: CUBE_FAMILY.into(),
+        vars: 0,
+        clauses: cube.literals.len() as u64,
+    });
+    e
+}
+
+fn push_clause(out: &mut Vec<u8>, clause: &[Lit]) {
+    for l in clause {
+        out.extend_from_slice(l.dimacs().to_string().as_bytes());
+        out.push(b' ');
+    }
+    out.extend_from_slice(b"0\n");
+}
+
+/// `F` in iCNF: `p inccnf`, the clauses, then `a LITS 0` for each cube in order.
+pub fn render_icnf(enc: &Encoding, cubes: &[Cube]) -> Vec<u8> {
+    let mut out = Vec::with_capacity(enc.cnf.num_lits() * 6);
+    out.extend_from_slice(
+        format!(
+            "c orbitcnf {VERSION} split of: {}\nc {} cubes over the distance profile; cube i is the i-th 'a' line (from 0)\np inccnf\n",
+            enc.question.statement(),
+            cubes.len()
+        )
+        .as_bytes(),
+    );
+    for c in enc.cnf.clauses() {
+        push_clause(&mut out, c);
+    }
+    for c in cubes {
+        out.extend_from_slice(b"a ");
+        push_clause(&mut out, &c.lits());
+    }
+    out
+}
+
+/// The coverage CNF as plain DIMACS with a comment saying what it is.
+pub fn render_coverage(enc: &Encoding, cnf: &Cnf, cubes: &[Cube]) -> Vec<u8> {
+    let kept = coverage_sources(enc).len();
+    let mut out = format!(
+        "c orbitcnf {VERSION} coverage check for the split of: {}\n\
+         c clauses 1..{kept}: the profile order encoding and the multiplier lex-leader clauses of formula.cnf\n\
+         c clauses {}..{}: the negation of cube 0, 1, ...; unsatisfiable iff every model of formula.cnf lies in a cube\n\
+         p cnf {} {}\n",
+        enc.question.statement(),
+        kept + 1,
+        kept + cubes.len(),
+        cnf.num_vars(),
+        cnf.num_clauses()
+    )
+    .into_bytes();
+    for c in cnf.clauses() {
+        push_clause(&mut out, c);
+    }
+    out
+}
+
+/// Hex SHA-256.
+pub fn sha256_hex(bytes: &[u8]) -> String {
+    Sha256::digest(bytes)
+        .iter()
+        .map(|b| format!("{b:02x}"))
+        .collect()
+}
+
+/// A file of a split with its digest.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct FileEntry {
+    /// Path relative to the split folder.
+    pub name: String,
+    /// Hex SHA-256 of its bytes.
+    pub sha256: String,
+    /// Its size.
+    pub bytes: u64,
+}
+
+impl FileEntry {
+    fn of(name: &str, bytes: &[u8]) -> FileEntry {
+        FileEntry {
+            name: name.into(),
+            sha256: sha256_hex(bytes),
+            bytes: bytes.len() as u64,
+        }
+    }
+
+    /// Reads the file under `dir` and checks its digest.
+    ///
+    /// # Errors
+    /// [`Error::Io`], or [`Error::Parse`] when the digest differs.
+    pub fn read_checked(&self, dir: &Path) -> Result<Vec<u8>> {
+        let path = dir.join(&self.name);
+        let bytes = std::fs::read(&path).map_err(|e| Error::io(&path, e))?;
+        if sha256_hex(&bytes) != self.sha256 {
+            return Err(Error::parse(
+                path.display().to_string(),
+                0,
+                format!("does not match its SHA-256 in {MANIFEST}"),
+            ));
+        }
+        Ok(bytes)
+    }
+}
+
+/// A cube as the manifest lists it.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct CubeEntry {
+    /// The cube.
+    #[serde(flatten)]
+    pub cube: Cube,
+    /// Its standalone CNF.
+    pub file: FileEntry,
+}
+
+/// The coverage check as the manifest records it.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct CoverageEntry {
+    /// The coverage CNF.
+    pub cnf: FileEntry,
+    /// Its LRAT refutation, accepted by orbitcnf's checker when written.
+    pub proof: FileEntry,
+    /// Clauses taken from `formula.cnf`.
+    pub formula_clauses: usize,
+    /// Steps of the accepted proof.
+    pub lrat_steps: u64,
+}
+
+/// How the cubes were chosen (informative; soundness rests on the coverage proof).
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct SplitRule {
+    /// `profile-prefix`.
+    pub rule: String,
+    /// `K = ⌊p/2⌋`, the profile's length.
+    pub offsets: usize,
+    /// `L`, the largest profile value.
+    pub max_value: i64,
+    /// Whether prefixes that no multiplier lex-leader extends were dropped.
+    pub multiplier_pruning: bool,
+}
+
+/// `manifest.json` of a split folder.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct SplitManifest {
+    /// [`FORMAT`].
+    pub format: String,
+    /// orbitcnf version that wrote the split.
+    pub orbitcnf_version: String,
+    /// The question.
+    pub question: QuestionRecord,
+    /// The encoding options as resolved for the question.
+    pub options: EncodeOptions,
+    /// The number of cubes asked for (`--cubes`).
+    pub requested_cubes: usize,
+    /// How the cubes were chosen.
+    pub split: SplitRule,
+    /// `formula.cnf`.
+    pub formula: FileEntry,
+    /// `cubes.icnf`.
+    pub icnf: FileEntry,
+    /// The coverage check.
+    pub coverage: CoverageEntry,
+    /// The cubes, in index order.
+    pub cubes: Vec<CubeEntry>,
+}
+
+impl SplitManifest {
+    /// Reads `dir/manifest.json`.
+    ///
+    /// # Errors
+    /// [`Error::Io`] or [`Error::Parse`] (not a split manifest, or another format).
+    pub fn read(dir: &Path) -> Result<SplitManifest> {
+        let path = dir.join(MANIFEST);
+        let name = path.display().to_string();
+        let bytes = std::fs::read(&path).map_err(|e| Error::io(&path, e))?;
+        let m: SplitManifest = serde_json::from_slice(&bytes)
+            .map_err(|e| Error::parse(&name, e.line(), format!("not a split manifest: {e}")))?;
+        if m.format != FORMAT {
+            return Err(Error::parse(
+                &name,
+                0,
+                format!("format {:?}, this orbitcnf reads {FORMAT:?}", m.format),
+            ));
+        }
+        if m.cubes.iter().enumerate().any(|(i, c)| c.cube.index != i) {
+            return Err(Error::parse(
+                &name,
+                0,
+                "the cubes are not listed in index order",
+            ));
+        }
+        Ok(m)
+    }
+}
+
+/// The file name of cube `index`'s CNF, relative to the split folder.
+pub fn cube_file_name(index: usize) -> String {
+    format!("{CUBES_DIR}/cube-{index:04}.cnf")
+}
+
+/// Solves the coverage CNF with the bundled solver and checks its LRAT proof.
+///
+/// # Errors
+/// [`Error::Solver`] when the coverage CNF is satisfiable (a profile no cube
+/// contains: a bug, reported with the profile) or the proof is rejected.
+pub fn refute_coverage(enc: &Encoding, cnf: &Cnf) -> Result<(Vec<u8>, LratSummary)> {
+    let mut proof = Vec::new();
+    let sinks = crate::proof::ProofSinks {
+        lrat: Some(&mut proof),
+        lrat_binary: false,
+        ..Default::default()
+    };
+    let out = crate::proof::solve_with_proof_sinks(cnf, sinks, None)?;
+    match out.outcome {
+        Outcome::Unsat => {}
+        Outcome::Sat(model) => {
+            let k_max = enc.question.period / 2;
+            let l = enc.question.grid.diameter() as i64;
+            let g: Vec<String> = (1..=k_max)
+                .map(|k| {
+                    (1..=l)
+                        .take_while(|&t| {
+                            enc.map
+                                .get(&Meaning::Profile { k, value: t })
+                                .is_some_and(|v| model[v.index()])
+                        })
+                        .count()
+                        .to_string()
+                })
+                .collect();
+            return Err(Error::Solver {
+                solver: "coverage check".into(),
+                reason: format!(
+                    "the cubes miss the profile g = {}; no split was written",
+                    g.join(" ")
+                ),
+            });
+        }
+        Outcome::Unknown(why) => {
+            return Err(Error::Solver {
+                solver: "coverage check".into(),
+                reason: why,
+            });
+        }
+    }
+    let options = LratOptions {
+        ids_follow_cnf: true,
+        ..LratOptions::default()
+    };
+    let summary = check_lrat_with(cnf, &proof, &options)?;
+    Ok((proof, summary))
+}
+
+/// Splits `q` into about `target` cubes and writes the split folder `dir`
+/// (created if needed; it must not hold a split already).
+///
+/// # Errors
+/// [`Error::Options`] for `target = 0` or a folder that holds a split;
+/// encoding errors; [`Error::Io`]; a failed coverage check.
+pub fn write_split(
+    dir: &Path,
+    q: &Question,
+    options: &EncodeOptions,
+    target: usize,
+    max_clauses: u64,
+) -> Result<SplitManifest> {
+    if target == 0 {
+        return Err(Error::Options("--cubes must be at least 1".into()));
+    }
+    if dir.join(MANIFEST).exists() {
+        return Err(Error::Options(format!(
+            "{} already holds a split ({MANIFEST}); choose another --out or remove it",
+            dir.display()
+        )));
+    }
+    let enc = encode(q, options, max_clauses)?;
+    let cubes = profile_cubes(&enc, target)?;
+    let coverage = coverage_cnf(&enc, &cubes);
+    let (proof, summary) = refute_coverage(&enc, &coverage)?;
+    for sub in [CUBES_DIR, RESULTS_DIR] {
+        let d = dir.join(sub);
+        std::fs::create_dir_all(&d).map_err(|e| Error::io(&d, e))?;
+    }
+    let put = |name: &str, bytes: &[u8]| -> Result<FileEntry> {
+        write_atomically(&dir.join(name), bytes)?;
+        Ok(FileEntry::of(name, bytes))
+    };
+    let formula = put(FORMULA, &render_cnf(&enc))?;
+    let icnf = put(ICNF, &render_icnf(&enc, &cubes))?;
+    let cov_cnf = put(COVERAGE, &render_coverage(&enc, &coverage, &cubes))?;
+    let cov_proof = put(COVERAGE_PROOF, &proof)?;
+    let mut entries = Vec::with_capacity(cubes.len());
+    for c in cubes {
+        let file = put(
+            &cube_file_name(c.index),
+            &render_cnf(&cube_encoding(&enc, &c)),
+        )?;
+        entries.push(CubeEntry { cube: c, file });
+    }
+    let manifest = SplitManifest {
+        format: FORMAT.into(),
+        orbitcnf_version: VERSION.into(),
+        question: q.record(),
+        options: enc.options.clone(),
+        requested_cubes: target,
+        split: SplitRule {
+            rule: "profile-prefix".into(),
+            offsets: q.period / 2,
+            max_value: q.grid.diameter() as i64,
+            multiplier_pruning: enc.options.symmetry.multiplier,
+        },
+        formula,
+        icnf,
+        coverage: CoverageEntry {
+            cnf: cov_cnf,
+            proof: cov_proof,
+            formula_clauses: coverage_sources(&enc).len(),
+            lrat_steps: summary.steps,
+        },
+        cubes: entries,
+    };
+    let text = serde_json::to_string_pretty(&manifest).expect("manifest serialises") + "\n";
+    write_atomically(&dir.join(MANIFEST), text.as_bytes())?;
+    Ok(manifest)
+}
+
+/// Re-checks a split against a fresh encoding: `formula.cnf`, every cube
+/// file and `coverage.cnf` must be exactly what this orbitcnf writes for the
+/// manifest's question, options and cube literals, and `coverage.lrat` must
+/// refute the coverage CNF. Returns the fresh encoding and the coverage CNF
+/// and proof summary.
+///
+/// # Errors
+/// [`Error::Parse`] naming the first file that differs; [`Error::Proof`]
+/// for a rejected coverage proof.
+pub fn verify_split(dir: &Path, m: &SplitManifest) -> Result<(Encoding, Cnf, LratSummary)> {
+    let q = Question::from_record(&m.question)?;
+    let enc = encode(&q, &m.options, u64::MAX)?;
+    let differs = |name: &str| {
+        Error::parse(
+            dir.join(name).display().to_string(),
+            0,
+            format!(
+                "differs from what this orbitcnf ({VERSION}) writes for the manifest \
+                 (the split was written by orbitcnf {})",
+                m.orbitcnf_version
+            ),
+        )
+    };
+    if sha256_hex(&render_cnf(&enc)) != m.formula.sha256 {
+        return Err(differs(FORMULA));
+    }
+    let cubes: Vec<Cube> = m.cubes.iter().map(|c| c.cube.clone()).collect();
+    for c in &m.cubes {
+        if let Some(&bad) = c
+            .cube
+            .literals
+            .iter()
+            .find(|l| **l == 0 || l.unsigned_abs() > enc.cnf.num_vars())
+        {
+            return Err(Error::parse(
+                dir.join(MANIFEST).display().to_string(),
+                0,
+                format!(
+                    "cube {} has the literal {bad}, not a variable of the formula",
+                    c.cube.index
+                ),
+            ));
+        }
+        if sha256_hex(&render_cnf(&cube_encoding(&enc, &c.cube))) != c.file.sha256 {
+            return Err(differs(&c.file.name));
+        }
+    }
+    let coverage = coverage_cnf(&enc, &cubes);
+    if sha256_hex(&render_coverage(&enc, &coverage, &cubes)) != m.coverage.cnf.sha256 {
+        return Err(differs(COVERAGE));
+    }
+    let proof = m.coverage.proof.read_checked(dir)?;
+    let options = LratOptions {
+        ids_follow_cnf: true,
+        ..LratOptions::default()
+    };
+    let summary = check_lrat_with(&coverage, &proof, &options)?;
+    Ok((enc, coverage, summary))
+}
+
+/// Refutes `cnf` with the bundled solver, checking the LRAT proof: for the
+/// tests and for callers that want a checked coverage proof in memory.
+///
+/// # Errors
+/// As [`certify`]; [`Error::Solver`] when the CNF is not refuted.
+pub fn refute_checked(cnf: &Cnf) -> Result<LratSummary> {
+    let c = certify(cnf, None)?;
+    c.lrat.ok_or_else(|| Error::Solver {
+        solver: "coverage check".into(),
+        reason: "the CNF is not unsatisfiable".into(),
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::grid::Grid;
+
+    fn enc(spec: &str, dim: usize, p: usize) -> Encoding {
+        let q = Question::new(Grid::parse(spec, Some(dim)).unwrap(), p).unwrap();
+        encode(&q, &EncodeOptions::default(), u64::MAX).unwrap()
+    }
+
+    #[test]
+    fn prefixes_that_no_leader_extends_are_dropped() {
+        // p = 5: the multiplier 2 swaps offsets 1 and 2; leaders have g(1) ≤ g(2).
+        let maps = symmetry::multiplier_maps(5);
+        assert!(prefix_survives(&[1, 2], &maps, 2));
+        assert!(prefix_survives(&[2], &maps, 2));
+        assert!(!prefix_survives(&[2, 1], &maps, 2));
+        let e = enc("-1..1", 2, 5);
+        let cubes = profile_cubes(&e, 10).unwrap();
+        let prefixes: Vec<Vec<i64>> = cubes.iter().map(|c| c.prefix.clone()).collect();
+        assert_eq!(prefixes, vec![vec![1, 1], vec![1, 2], vec![2, 2]]);
+    }
+
+    #[test]
+    fn refinement_stops_at_the_requested_count() {
+        let e = enc("-1..1", 4, 17);
+        for target in [1, 2, 5, 8, 16, 30] {
+            let cubes = profile_cubes(&e, target).unwrap();
+            assert!(cubes.len() >= target, "{target}: {}", cubes.len());
+            assert!(cubes.len() < 2 * target + 2, "{target}: {}", cubes.len());
+            refute_checked(&coverage_cnf(&e, &cubes)).unwrap();
+        }
+        // 36 binary necklaces of length 8 under the cyclic multiplier group: the leaders.
+        let all = profile_cubes(&e, usize::MAX).unwrap();
+        assert!(all.iter().all(|c| c.prefix.len() == 8));
+        assert_eq!(all.len(), 36);
+    }
+
+    #[test]
+    fn a_missed_profile_makes_the_coverage_satisfiable() {
+        let e = enc("-1..1", 3, 8);
+        let mut cubes = profile_cubes(&e, 4).unwrap();
+        cubes.pop();
+        let err = refute_coverage(&e, &coverage_cnf(&e, &cubes)).unwrap_err();
+        assert!(
+            err.to_string().contains("the cubes miss the profile"),
+            "{err}"
+        );
+    }
+
+    #[test]
+    fn one_cube_is_the_whole_space() {
+        let e = enc("0..1", 2, 3); // L = 1: the profile is fixed
+        let cubes = profile_cubes(&e, 8).unwrap();
+        assert_eq!(cubes.len(), 1);
+        assert!(cubes[0].literals.is_empty());
+        refute_checked(&coverage_cnf(&e, &cubes)).unwrap();
+    }
+}

@@ -1,0 +1,339 @@
+//! `decide --jobs K`: the cubes of an internal split, solved by `K` threads.
+//!
+//! The question is encoded once, split into cubes ([`super::profile_cubes`])
+//! and the coverage CNF refuted ([`super::refute_coverage`]); then `K`
+//! threads take cubes in index order and solve `F ∧ cube` with the bundled
+//! solver. With certification (the default) each thread writes the cube's
+//! LRAT proof in memory, checks it with orbitcnf's checker against
+//! `F ∧ cube`, and lifts it to a derivation of the cube's negation from `F`
+//! ([`super::lift`]). When every cube is refuted, the lifted proofs and the
+//! coverage proof are assembled into one LRAT proof of `F`, which orbitcnf's
+//! checker must accept before the answer is "infeasible"; the report is then
+//! the same as a monolithic `decide` (a checked LRAT proof of the very CNF
+//! `encode` writes). A satisfiable cube's model is checked against every
+//! clause and decoded into an orbit that is verified independently.
+//!
+//! varisat 0.2.2 cannot be interrupted, but it aborts as soon as its proof
+//! writer fails; the threads' proof sinks fail once another cube is found
+//! satisfiable, so no thread keeps solving after the answer is known. Without
+//! certification (`--no-certify`) there is no proof sink: running cubes then
+//! finish, and no new cube is started.
+
+use std::io::{self, IsTerminal, Write};
+use std::path::PathBuf;
+use std::sync::Mutex;
+use std::sync::atomic::{AtomicBool, AtomicUsize, Ordering};
+use std::time::{Duration, Instant};
+
+use super::{Cube, coverage_cnf, coverage_sources, lift, profile_cubes, refute_coverage};
+use crate::cnf::Cnf;
+use crate::decide::witness;
+use crate::dimacs::write_atomically;
+use crate::encode::{EncodeOptions, encode};
+use crate::error::{Error, Result};
+use crate::proof::{LratOptions, ProofSinks, check_lrat_with, solve_with_proof_sinks};
+use crate::question::Question;
+use crate::report::{Certificate, Report, SizeStats, Verdict};
+use crate::solve::bundled::{Bundled, Meter};
+use crate::solve::certified::ProofInfo;
+use crate::solve::{Backend, Limits, Outcome, SolveStats};
+
+/// How [`decide_parallel`] runs.
+#[derive(Clone, Debug)]
+pub struct JobsOptions {
+    /// Threads, at least 1.
+    pub jobs: usize,
+    /// Cubes to aim for ([`super::profile_cubes`] makes at least this many
+    /// unless the profile runs out).
+    pub cubes: usize,
+    /// Produce and check proofs (the default), or take the solver's word.
+    pub certify: bool,
+    /// Where to write the assembled LRAT proof of an infeasible answer.
+    pub lrat: Option<PathBuf>,
+}
+
+impl JobsOptions {
+    /// The default cube count for `jobs` threads: eight per thread, which
+    /// keeps the threads busy to the end when cubes differ much in hardness.
+    pub fn default_cubes(jobs: usize) -> usize {
+        8 * jobs.max(1)
+    }
+}
+
+enum CubeRun {
+    Sat(Vec<bool>),
+    Unsat(Option<lift::LiftedCube>),
+    Unknown(String),
+    Failed(Error),
+}
+
+/// A proof sink that fails once `stop` is set, which aborts varisat's solve.
+struct Cancel<'a> {
+    inner: Meter,
+    stop: &'a AtomicBool,
+}
+
+impl Write for Cancel<'_> {
+    fn write(&mut self, buf: &[u8]) -> io::Result<usize> {
+        if self.stop.load(Ordering::Relaxed) {
+            return Err(io::Error::other("another cube is satisfiable"));
+        }
+        self.inner.write(buf)
+    }
+    fn flush(&mut self) -> io::Result<()> {
+        self.inner.flush()
+    }
+}
+
+const NAME: &str = "varisat-0.2.2";
+
+/// Decides `q` by solving the cubes of an internal split in parallel.
+///
+/// # Errors
+/// As [`crate::decide::decide`]; a failed coverage check; a cube proof that
+/// is rejected or cannot be lifted; an assembled proof that is rejected.
+pub fn decide_parallel(
+    q: &Question,
+    options: &EncodeOptions,
+    opts: &JobsOptions,
+    limits: &Limits,
+    max_clauses: u64,
+) -> Result<Report> {
+    if opts.jobs == 0 || opts.cubes == 0 {
+        return Err(Error::Options(
+            "--jobs and --cubes must be at least 1".into(),
+        ));
+    }
+    let t0 = Instant::now();
+    let enc = encode(q, options, max_clauses)?;
+    let encode_seconds = t0.elapsed().as_secs_f64();
+    let start = Instant::now();
+    let deadline = limits.time.map(|t| start + t);
+    let cubes = profile_cubes(&enc, opts.cubes)?;
+    let coverage = coverage_cnf(&enc, &cubes);
+    let (coverage_proof, _) = refute_coverage(&enc, &coverage)?;
+    let n = cubes.len();
+    let next = AtomicUsize::new(0);
+    let done = AtomicUsize::new(0);
+    let stop = AtomicBool::new(false);
+    let conflicts = AtomicUsize::new(0);
+    let runs: Mutex<Vec<Option<CubeRun>>> = Mutex::new((0..n).map(|_| None).collect());
+    let threads = opts.jobs.min(n);
+    let show = limits.progress && io::stderr().is_terminal();
+    std::thread::scope(|s| {
+        let handles: Vec<_> = (0..threads)
+            .map(|_| {
+                s.spawn(|| {
+                    loop {
+                        if stop.load(Ordering::Relaxed) {
+                            break;
+                        }
+                        let i = next.fetch_add(1, Ordering::Relaxed);
+                        if i >= n {
+                            break;
+                        }
+                        let run = solve_cube(
+                            &enc.cnf,
+                            &cubes[i],
+                            deadline,
+                            opts.certify,
+                            &stop,
+                            &conflicts,
+                        );
+                        if matches!(run, CubeRun::Sat(_)) {
+                            stop.store(true, Ordering::Relaxed);
+                        }
+                        runs.lock().expect("no worker panics")[i] = Some(run);
+                        done.fetch_add(1, Ordering::Relaxed);
+                    }
+                })
+            })
+            .collect();
+        while show && !handles.iter().all(|h| h.is_finished()) {
+            eprint!(
+                "\r\x1b[Ksolving {n} cubes on {threads} threads: {} done, {:.1} s",
+                done.load(Ordering::Relaxed),
+                start.elapsed().as_secs_f64()
+            );
+            std::thread::sleep(Duration::from_millis(250));
+        }
+    });
+    if show {
+        eprint!("\r\x1b[K");
+    }
+    let runs = runs.into_inner().expect("no worker panics");
+    let size = SizeStats::of(&enc.cnf, enc.families.clone(), encode_seconds);
+    let solver = format!(
+        "{NAME}{}, {n} cubes on {threads} threads",
+        if opts.certify { " (LRAT)" } else { "" }
+    );
+    let stats = |solver: String| SolveStats {
+        solver,
+        seconds: start.elapsed().as_secs_f64(),
+        conflicts: Some(conflicts.load(Ordering::Relaxed) as u64),
+    };
+    let report = |verdict, w, cert, reason, solver: String| {
+        Report::new(
+            q,
+            &enc.options,
+            verdict,
+            w,
+            cert,
+            reason,
+            size.clone(),
+            stats(solver),
+        )
+    };
+    // A satisfiable cube decides, whatever happened elsewhere.
+    for (i, r) in runs.iter().enumerate() {
+        if let Some(CubeRun::Sat(model)) = r {
+            let cnf = super::run::cube_cnf(&enc.cnf, &cubes[i]);
+            let w = witness(q, &cnf, &enc.map, model, "<memory>", None)?;
+            let solver = format!("{solver}; orbit from cube {i} ({})", cubes[i].describe());
+            return Ok(report(
+                Verdict::Feasible,
+                Some(w),
+                Certificate::Witness,
+                None,
+                solver,
+            ));
+        }
+    }
+    let mut lifted = Vec::with_capacity(n);
+    let mut open = Vec::new();
+    let mut why = None;
+    for (i, r) in runs.into_iter().enumerate() {
+        match r {
+            Some(CubeRun::Failed(e)) => return Err(e),
+            Some(CubeRun::Unsat(l)) => lifted.extend(l),
+            Some(CubeRun::Unknown(w)) => {
+                why.get_or_insert(w);
+                open.push(i);
+            }
+            Some(CubeRun::Sat(_)) | None => open.push(i),
+        }
+    }
+    if !open.is_empty() {
+        let shown: Vec<String> = open.iter().take(10).map(|i| i.to_string()).collect();
+        let reason = format!(
+            "{} of {n} cubes undecided ({}{}): {}",
+            open.len(),
+            shown.join(" "),
+            if open.len() > 10 { " …" } else { "" },
+            why.unwrap_or_else(|| "not started".into())
+        );
+        return Ok(report(
+            Verdict::Unknown,
+            None,
+            Certificate::None,
+            Some(reason),
+            solver,
+        ));
+    }
+    if !opts.certify {
+        let cert = Certificate::SolverClaim {
+            solver: solver.clone(),
+        };
+        return Ok(report(Verdict::Infeasible, None, cert, None, solver));
+    }
+    let proof = lift::assemble(&enc.cnf, &coverage_sources(&enc), &lifted, &coverage_proof)?;
+    drop(lifted);
+    let t = Instant::now();
+    let summary = check_lrat_with(
+        &enc.cnf,
+        &proof,
+        &LratOptions {
+            ids_follow_cnf: true,
+            ..LratOptions::default()
+        },
+    )?;
+    let check_seconds = t.elapsed().as_secs_f64();
+    if let Some(path) = &opts.lrat {
+        write_atomically(path, &proof)?;
+    }
+    let info = ProofInfo {
+        lrat: summary,
+        lrat_bytes: proof.len() as u64,
+        lrat_file: opts.lrat.clone(),
+        drat_file: None,
+        drat_bytes: None,
+        check_seconds,
+    };
+    Ok(report(
+        Verdict::Infeasible,
+        None,
+        Certificate::CheckedProof(info),
+        None,
+        solver,
+    ))
+}
+
+/// Solves `F ∧ cube` within the deadline.
+fn solve_cube(
+    f: &Cnf,
+    cube: &Cube,
+    deadline: Option<Instant>,
+    certify: bool,
+    stop: &AtomicBool,
+    conflicts: &AtomicUsize,
+) -> CubeRun {
+    let now = Instant::now();
+    let time = deadline.map(|d| d.saturating_duration_since(now));
+    if time == Some(Duration::ZERO) {
+        return CubeRun::Unknown("time limit reached before the cube was started".into());
+    }
+    let cnf = super::run::cube_cnf(f, cube);
+    let limits = Limits {
+        time,
+        progress: false,
+    };
+    if !certify {
+        return match Bundled.solve(&cnf, &limits) {
+            Ok(r) => {
+                conflicts.fetch_add(r.stats.conflicts.unwrap_or(0) as usize, Ordering::Relaxed);
+                match r.outcome {
+                    Outcome::Sat(m) => CubeRun::Sat(m),
+                    Outcome::Unsat => CubeRun::Unsat(None),
+                    Outcome::Unknown(w) => CubeRun::Unknown(w),
+                }
+            }
+            Err(e) => CubeRun::Failed(e),
+        };
+    }
+    let (meter, learned, _) = Meter::new(now, &limits, None);
+    let mut sink = Cancel { inner: meter, stop };
+    let mut lrat = Vec::new();
+    let sinks = ProofSinks {
+        lrat: Some(&mut lrat),
+        lrat_binary: true,
+        drat: Some(&mut sink),
+        drat_binary: true,
+    };
+    let out = solve_with_proof_sinks(&cnf, sinks, time);
+    drop(sink);
+    conflicts.fetch_add(learned.load(Ordering::Relaxed) as usize, Ordering::Relaxed);
+    let out = match out {
+        Ok(o) => o,
+        Err(_) if stop.load(Ordering::Relaxed) => {
+            return CubeRun::Unknown("stopped: another cube is satisfiable".into());
+        }
+        Err(e) => return CubeRun::Failed(e),
+    };
+    match out.outcome {
+        Outcome::Sat(m) => CubeRun::Sat(m),
+        Outcome::Unknown(w) => CubeRun::Unknown(w),
+        Outcome::Unsat => {
+            let options = LratOptions {
+                ids_follow_cnf: true,
+                ..LratOptions::default()
+            };
+            if let Err(e) = check_lrat_with(&cnf, &lrat, &options) {
+                return CubeRun::Failed(Error::Proof(e));
+            }
+            match lift::lift_cube(f, &cube.lits(), &lrat) {
+                Ok(l) => CubeRun::Unsat(Some(l)),
+                Err(e) => CubeRun::Failed(e),
+            }
+        }
+    }
+}

@@ -1,0 +1,666 @@
+//! Solving one cube of a split folder, and merging the results.
+//!
+//! [`run_cube`] reads `manifest.json`, checks the cube file's SHA-256, solves
+//! it with any [`Backend`], and writes `results/cube-NNNN.json`
+//! ([`CubeResult`]) atomically, next to the cube's LRAT proof
+//! (`results/cube-NNNN.lrat`) when the back-end certified an UNSAT answer.
+//! A feasible answer's orbit is decoded and verified before it is written.
+//! A back-end failure is written as a result with status `error` (so that
+//! `merge` can list it) and returned as the error.
+//!
+//! [`merge`] first re-checks the split itself ([`super::verify_split`]: a fresh
+//! encoding gives byte-identical `formula.cnf`, cube files and coverage CNF,
+//! and the coverage proof is accepted), then reads every result: a feasible
+//! cube's orbit is verified again; an infeasible cube's LRAT proof is checked
+//! again, against the cube's CNF, by orbitcnf's checker. The verdict is
+//! feasible when some cube is, infeasible when every cube is refuted, and
+//! unknown otherwise, with the missing and failed cubes listed by index.
+
+use std::path::{Path, PathBuf};
+use std::time::Instant;
+
+use serde::{Deserialize, Serialize};
+
+use super::{Cube, RESULTS_DIR, SplitManifest, coverage_sources, lift, sha256_hex, verify_split};
+use crate::cnf::Cnf;
+use crate::decide;
+use crate::dimacs::{self, VERSION, write_atomically};
+use crate::error::{Error, Result};
+use crate::grid::Point;
+use crate::proof::{LratOptions, LratSummary, check_lrat_with};
+use crate::question::{Question, QuestionRecord};
+use crate::report::Verdict;
+use crate::solve::{Backend, Limits, Outcome};
+use crate::verify::{self, OrbitCheck};
+
+/// The format tag of [`CubeResult`].
+pub const RESULT_FORMAT: &str = "orbitcnf-cube-result/1";
+
+/// The status of one cube.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "lowercase")]
+pub enum CubeStatus {
+    /// The cube holds a verified orbit.
+    Feasible,
+    /// The cube was refuted.
+    Infeasible,
+    /// No answer (time limit, solver gave up).
+    Unknown,
+    /// The back-end failed or misbehaved.
+    Error,
+}
+
+impl CubeStatus {
+    /// Whether the cube needs no more work.
+    pub fn is_final(self) -> bool {
+        matches!(self, CubeStatus::Feasible | CubeStatus::Infeasible)
+    }
+}
+
+/// The LRAT proof of an infeasible cube, as a result file records it.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct ProofRecord {
+    /// File name inside `results/`.
+    pub file: String,
+    /// Hex SHA-256.
+    pub sha256: String,
+    /// Size in bytes.
+    pub bytes: u64,
+    /// Steps accepted by orbitcnf's checker when the result was written.
+    pub steps: u64,
+}
+
+/// `results/cube-NNNN.json`.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct CubeResult {
+    /// [`RESULT_FORMAT`].
+    pub format: String,
+    /// orbitcnf version that wrote it.
+    pub orbitcnf_version: String,
+    /// The cube's index.
+    pub index: usize,
+    /// The SHA-256 of the cube file that was solved.
+    pub cube_sha256: String,
+    /// The outcome.
+    pub status: CubeStatus,
+    /// The verified orbit, when feasible.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub orbit: Option<Vec<Point>>,
+    /// The checked LRAT proof, when infeasible and certified.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub proof: Option<ProofRecord>,
+    /// Why the status is unknown or error.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub reason: Option<String>,
+    /// The back-end's name.
+    pub solver: String,
+    /// Seconds spent solving.
+    pub seconds: f64,
+    /// Conflicts, when the back-end reports them.
+    pub conflicts: Option<u64>,
+}
+
+/// The result file of cube `index`.
+pub fn result_path(dir: &Path, index: usize) -> PathBuf {
+    dir.join(RESULTS_DIR).join(format!("cube-{index:04}.json"))
+}
+
+/// The LRAT proof file of cube `index`.
+pub fn proof_path(dir: &Path, index: usize) -> PathBuf {
+    dir.join(RESULTS_DIR).join(proof_name(index))
+}
+
+fn proof_name(index: usize) -> String {
+    format!("cube-{index:04}.lrat")
+}
+
+/// Reads a result file; `None` when there is none.
+///
+/// # Errors
+/// [`Error::Parse`] for a file that is not a result; [`Error::Io`].
+pub fn read_result(dir: &Path, index: usize) -> Result<Option<CubeResult>> {
+    let path = result_path(dir, index);
+    let bytes = match std::fs::read(&path) {
+        Ok(b) => b,
+        Err(e) if e.kind() == std::io::ErrorKind::NotFound => return Ok(None),
+        Err(e) => return Err(Error::io(&path, e)),
+    };
+    let r: CubeResult = serde_json::from_slice(&bytes).map_err(|e| {
+        Error::parse(
+            path.display().to_string(),
+            e.line(),
+            format!("not a cube result: {e}"),
+        )
+    })?;
+    if r.format != RESULT_FORMAT || r.index != index {
+        return Err(Error::parse(
+            path.display().to_string(),
+            0,
+            format!("not the result of cube {index} in format {RESULT_FORMAT}"),
+        ));
+    }
+    Ok(Some(r))
+}
+
+/// Where a back-end for [`run_cube`] should write the LRAT proof of cube `index`.
+pub fn lrat_target(dir: &Path, index: usize) -> PathBuf {
+    proof_path(dir, index)
+}
+
+/// What [`run_cube`] did.
+#[derive(Clone, Debug)]
+pub enum RunOutcome {
+    /// The cube was solved now; the result was written.
+    Solved(CubeResult),
+    /// A final result was already there and `force` was not given.
+    AlreadyDone(CubeResult),
+}
+
+/// Solves cube `index` of the split in `dir` with `backend` and writes its
+/// result. A back-end that writes proofs should write the LRAT proof to
+/// [`lrat_target`]. A final result already present is kept unless `force`.
+///
+/// # Errors
+/// [`Error::Options`] for an index out of range; a cube file that does not
+/// match the manifest; back-end failures and wrong models (after writing a
+/// result with status `error`).
+pub fn run_cube(
+    dir: &Path,
+    index: usize,
+    backend: &mut dyn Backend,
+    limits: &Limits,
+    force: bool,
+) -> Result<RunOutcome> {
+    let m = SplitManifest::read(dir)?;
+    let entry = m.cubes.get(index).ok_or_else(|| {
+        Error::Options(format!(
+            "cube index {index} is out of range: {} has {} cubes (0..={})",
+            dir.display(),
+            m.cubes.len(),
+            m.cubes.len().saturating_sub(1)
+        ))
+    })?;
+    if !force {
+        if let Ok(Some(r)) = read_result(dir, index) {
+            if r.status.is_final() && r.cube_sha256 == entry.file.sha256 {
+                return Ok(RunOutcome::AlreadyDone(r));
+            }
+        }
+    }
+    let bytes = entry.file.read_checked(dir)?;
+    let cube_path = dir.join(&entry.file.name);
+    let cube_name = cube_path.display().to_string();
+    let text = String::from_utf8(bytes)
+        .map_err(|_| Error::parse(&cube_name, 0, "the cube file is not UTF-8"))?;
+    let file = dimacs::parse_cnf_file(&text, &cube_name)?;
+    let mut result = CubeResult {
+        format: RESULT_FORMAT.into(),
+        orbitcnf_version: VERSION.into(),
+        index,
+        cube_sha256: entry.file.sha256.clone(),
+        status: CubeStatus::Unknown,
+        orbit: None,
+        proof: None,
+        reason: None,
+        solver: backend.name(),
+        seconds: 0.0,
+        conflicts: None,
+    };
+    let fail = |mut result: CubeResult, e: Error| -> Result<RunOutcome> {
+        result.status = CubeStatus::Error;
+        result.reason = Some(e.to_string());
+        write_result(dir, &result)?;
+        Err(e)
+    };
+    let t = Instant::now();
+    let solved = match backend.solve(&file.cnf, limits) {
+        Ok(s) => s,
+        Err(e) => {
+            result.seconds = t.elapsed().as_secs_f64();
+            return fail(result, e);
+        }
+    };
+    result.solver = solved.stats.solver.clone();
+    result.seconds = solved.stats.seconds;
+    result.conflicts = solved.stats.conflicts;
+    match solved.outcome {
+        Outcome::Sat(model) => {
+            match decide::witness(
+                &file.question,
+                &file.cnf,
+                &file.map,
+                &model,
+                &cube_name,
+                Some(&file.clause_lines),
+            ) {
+                Ok(w) => {
+                    result.status = CubeStatus::Feasible;
+                    result.orbit = Some(w.orbit);
+                }
+                Err(e) => return fail(result, e),
+            }
+        }
+        Outcome::Unsat => {
+            result.status = CubeStatus::Infeasible;
+            if let Some(info) = solved.proof {
+                let path = info
+                    .lrat_file
+                    .clone()
+                    .unwrap_or_else(|| proof_path(dir, index));
+                if path != proof_path(dir, index) {
+                    return fail(
+                        result,
+                        Error::Options(format!(
+                            "the back-end wrote the proof to {}, expected {}",
+                            path.display(),
+                            proof_path(dir, index).display()
+                        )),
+                    );
+                }
+                let proof = std::fs::read(&path).map_err(|e| Error::io(&path, e))?;
+                result.proof = Some(ProofRecord {
+                    file: proof_name(index),
+                    sha256: sha256_hex(&proof),
+                    bytes: proof.len() as u64,
+                    steps: info.lrat.steps,
+                });
+            } else {
+                result.reason = Some(format!(
+                    "uncertified: the unsatisfiability claim of {}",
+                    result.solver
+                ));
+            }
+        }
+        Outcome::Unknown(why) => {
+            result.reason = Some(why);
+        }
+    }
+    write_result(dir, &result)?;
+    Ok(RunOutcome::Solved(result))
+}
+
+fn write_result(dir: &Path, r: &CubeResult) -> Result<()> {
+    let text = serde_json::to_string_pretty(r).expect("results serialise") + "\n";
+    write_atomically(&result_path(dir, r.index), text.as_bytes())
+}
+
+/// A cube that `merge` could not count as decided.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct Pending {
+    /// The cube's index.
+    pub index: usize,
+    /// `missing`, `unknown`, `error` or `rejected`.
+    pub state: String,
+    /// Details.
+    pub reason: String,
+}
+
+/// What backs a merged verdict.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+#[serde(tag = "kind", rename_all = "kebab-case")]
+pub enum MergeCertificate {
+    /// A cube's orbit, verified again by the merge.
+    Witness,
+    /// Every cube's LRAT proof and the coverage proof, each re-checked by
+    /// the merge against its CNF, which is identical to a fresh encoding.
+    CubeProofs {
+        /// How many cube proofs were checked.
+        cubes: usize,
+    },
+    /// As `CubeProofs`, and one LRAT proof of `formula.cnf` assembled from
+    /// them ([`lift`]) and accepted by orbitcnf's checker.
+    CombinedProof {
+        /// Where it was written.
+        file: PathBuf,
+        /// Its size.
+        bytes: u64,
+        /// What the checker established.
+        summary: LratSummary,
+    },
+    /// Every cube is refuted, but some only on a solver's word (listed in
+    /// [`MergeReport::uncertified`]); the other proofs were re-checked.
+    PartlyUncertified,
+    /// No verdict.
+    None,
+}
+
+/// What [`merge`] found.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct MergeReport {
+    /// The combined verdict.
+    pub verdict: Verdict,
+    /// The question.
+    pub question: QuestionRecord,
+    /// The question in words.
+    pub statement: String,
+    /// The cube count.
+    pub cubes: usize,
+    /// Cubes refuted with a proof that was re-checked now.
+    pub certified: Vec<usize>,
+    /// Cubes refuted on a solver's word only (no proof).
+    pub uncertified: Vec<usize>,
+    /// The cube whose orbit is reported, when feasible.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub feasible_cube: Option<usize>,
+    /// The verified orbit, when feasible.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub orbit: Option<Vec<Point>>,
+    /// The independent check of the orbit, when feasible.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub check: Option<OrbitCheck>,
+    /// Cubes without a usable result, by index.
+    pub pending: Vec<Pending>,
+    /// The coverage proof, re-checked now.
+    pub coverage: LratSummary,
+    /// What backs the verdict.
+    pub certificate: MergeCertificate,
+    /// Total solving seconds over all results.
+    pub solve_seconds: f64,
+}
+
+impl MergeReport {
+    /// The exit code: as [`Verdict::exit_code`].
+    pub fn exit_code(&self) -> i32 {
+        self.verdict.exit_code()
+    }
+
+    /// The report for people.
+    pub fn to_text(&self) -> String {
+        use std::fmt::Write as _;
+        let mut s = String::new();
+        let _ = writeln!(s, "question     {}", self.statement);
+        let done = self.certified.len() + self.uncertified.len();
+        match self.verdict {
+            Verdict::Feasible => {
+                let _ = writeln!(
+                    s,
+                    "verdict      FEASIBLE (cube {})",
+                    self.feasible_cube.unwrap_or(0)
+                );
+            }
+            Verdict::Infeasible => {
+                let _ = writeln!(
+                    s,
+                    "verdict      INFEASIBLE: all {} cubes refuted, and the cubes cover the search space",
+                    self.cubes
+                );
+            }
+            Verdict::Unknown => {
+                let _ = writeln!(
+                    s,
+                    "verdict      UNKNOWN: {} of {} cubes refuted, {} without a usable result",
+                    done,
+                    self.cubes,
+                    self.pending.len()
+                );
+            }
+        }
+        if let Some(orbit) = &self.orbit {
+            let _ = writeln!(s, "orbit        i  x_i");
+            for (i, x) in orbit.iter().enumerate() {
+                let coords: Vec<String> = x.iter().map(|v| format!("{v:>2}")).collect();
+                let _ = writeln!(s, "             {i:>2}  ({})", coords.join(", "));
+            }
+        }
+        if let Some(check) = &self.check {
+            let _ = writeln!(s, "check        passed: {check}");
+        }
+        let _ = writeln!(
+            s,
+            "coverage     LRAT proof ({} steps) accepted: every model of formula.cnf lies in some cube",
+            self.coverage.steps
+        );
+        let _ = writeln!(
+            s,
+            "cubes        {} refuted with a re-checked LRAT proof, {} on the solver's word only",
+            self.certified.len(),
+            self.uncertified.len()
+        );
+        if !self.uncertified.is_empty() {
+            let _ = writeln!(s, "uncertified  {}", list(&self.uncertified));
+        }
+        if !self.pending.is_empty() {
+            let idx: Vec<usize> = self.pending.iter().map(|p| p.index).collect();
+            let _ = writeln!(s, "pending      {}", list(&idx));
+            for p in self.pending.iter().take(20) {
+                let _ = writeln!(
+                    s,
+                    "             cube {}: {}: {}",
+                    p.index, p.state, p.reason
+                );
+            }
+            if self.pending.len() > 20 {
+                let _ = writeln!(s, "             … and {} more", self.pending.len() - 20);
+            }
+        }
+        match &self.certificate {
+            MergeCertificate::CombinedProof {
+                file,
+                bytes,
+                summary,
+            } => {
+                let _ = writeln!(
+                    s,
+                    "proof        one LRAT proof of formula.cnf ({} steps, {bytes} bytes) accepted, written to {}",
+                    summary.steps,
+                    file.display()
+                );
+            }
+            MergeCertificate::PartlyUncertified => {
+                let _ = writeln!(
+                    s,
+                    "certificate  incomplete: cubes {} rest on the solver's word",
+                    list(&self.uncertified)
+                );
+            }
+            _ => {}
+        }
+        let _ = writeln!(s, "solve time   {:.3} s over all cubes", self.solve_seconds);
+        s
+    }
+}
+
+fn list(v: &[usize]) -> String {
+    v.iter()
+        .map(|i| i.to_string())
+        .collect::<Vec<_>>()
+        .join(" ")
+}
+
+/// Merges the results of the split in `dir`; with `combined`, also writes
+/// one LRAT proof of `formula.cnf` there (when every cube has a proof) and
+/// checks it.
+///
+/// # Errors
+/// A split that fails [`verify_split`]; unreadable result files;
+/// [`Error::Io`]. Missing, unknown, failed and rejected cubes are not
+/// errors: they are listed in [`MergeReport::pending`].
+pub fn merge(dir: &Path, combined: Option<&Path>) -> Result<MergeReport> {
+    let m = SplitManifest::read(dir)?;
+    let (enc, _coverage, coverage_summary) = verify_split(dir, &m)?;
+    let q = Question::from_record(&m.question)?;
+    let mut report = MergeReport {
+        verdict: Verdict::Unknown,
+        question: m.question.clone(),
+        statement: q.statement(),
+        cubes: m.cubes.len(),
+        certified: Vec::new(),
+        uncertified: Vec::new(),
+        feasible_cube: None,
+        orbit: None,
+        check: None,
+        pending: Vec::new(),
+        coverage: coverage_summary,
+        certificate: MergeCertificate::None,
+        solve_seconds: 0.0,
+    };
+    let mut proofs: Vec<(Cube, Vec<u8>)> = Vec::new();
+    for entry in &m.cubes {
+        let i = entry.cube.index;
+        let pending = |state: &str, reason: String| Pending {
+            index: i,
+            state: state.into(),
+            reason,
+        };
+        let r = match read_result(dir, i) {
+            Ok(Some(r)) => r,
+            Ok(None) => {
+                report
+                    .pending
+                    .push(pending("missing", "no result file".into()));
+                continue;
+            }
+            Err(e) => {
+                report.pending.push(pending("rejected", e.to_string()));
+                continue;
+            }
+        };
+        report.solve_seconds += r.seconds;
+        if r.cube_sha256 != entry.file.sha256 {
+            report.pending.push(pending(
+                "rejected",
+                "the result is for a different cube file (a stale result?)".into(),
+            ));
+            continue;
+        }
+        match r.status {
+            CubeStatus::Feasible => {
+                let Some(orbit) = r.orbit.clone() else {
+                    report
+                        .pending
+                        .push(pending("rejected", "feasible without an orbit".into()));
+                    continue;
+                };
+                match check_orbit(&q, &orbit) {
+                    Ok(check) => {
+                        if report.orbit.is_none() {
+                            report.feasible_cube = Some(i);
+                            report.orbit = Some(orbit);
+                            report.check = Some(check);
+                        }
+                    }
+                    Err(e) => report.pending.push(pending("rejected", e.to_string())),
+                }
+            }
+            CubeStatus::Infeasible => match &r.proof {
+                None => report.uncertified.push(i),
+                Some(p) => {
+                    let cube_cnf = cube_cnf(&enc.cnf, &entry.cube);
+                    match check_cube_proof(dir, p, &cube_cnf) {
+                        Ok(bytes) => {
+                            report.certified.push(i);
+                            if combined.is_some() {
+                                proofs.push((entry.cube.clone(), bytes));
+                            }
+                        }
+                        Err(e) => report.pending.push(pending("rejected", e.to_string())),
+                    }
+                }
+            },
+            CubeStatus::Unknown => report.pending.push(pending(
+                "unknown",
+                r.reason.clone().unwrap_or_else(|| "no answer".into()),
+            )),
+            CubeStatus::Error => report.pending.push(pending(
+                "error",
+                r.reason
+                    .clone()
+                    .unwrap_or_else(|| "the solver failed".into()),
+            )),
+        }
+    }
+    if report.orbit.is_some() {
+        report.verdict = Verdict::Feasible;
+        report.certificate = MergeCertificate::Witness;
+    } else if report.pending.is_empty() {
+        report.verdict = Verdict::Infeasible;
+        if report.uncertified.is_empty() {
+            if let Some(path) = combined {
+                let lifted = proofs
+                    .iter()
+                    .map(|(c, p)| lift::lift_cube(&enc.cnf, &c.lits(), p))
+                    .collect::<Result<Vec<_>>>()?;
+                let proof = m.coverage.proof.read_checked(dir)?;
+                let bytes = lift::assemble(&enc.cnf, &coverage_sources(&enc), &lifted, &proof)?;
+                let summary = check_lrat_with(
+                    &enc.cnf,
+                    &bytes,
+                    &LratOptions {
+                        ids_follow_cnf: true,
+                        ..LratOptions::default()
+                    },
+                )?;
+                write_atomically(path, &bytes)?;
+                report.certificate = MergeCertificate::CombinedProof {
+                    file: path.to_path_buf(),
+                    bytes: bytes.len() as u64,
+                    summary,
+                };
+            } else {
+                report.certificate = MergeCertificate::CubeProofs {
+                    cubes: report.certified.len(),
+                };
+            }
+        } else {
+            report.certificate = MergeCertificate::PartlyUncertified;
+        }
+    }
+    Ok(report)
+}
+
+/// `F` with the cube's units, as [`super::cube_encoding`] builds it.
+pub fn cube_cnf(f: &Cnf, cube: &Cube) -> Cnf {
+    let mut cnf = f.clone();
+    for l in cube.lits() {
+        cnf.add_clause(&[l]);
+    }
+    cnf
+}
+
+fn check_cube_proof(dir: &Path, p: &ProofRecord, cnf: &Cnf) -> Result<Vec<u8>> {
+    let path = dir.join(RESULTS_DIR).join(&p.file);
+    let bytes = std::fs::read(&path).map_err(|e| Error::io(&path, e))?;
+    if sha256_hex(&bytes) != p.sha256 {
+        return Err(Error::parse(
+            path.display().to_string(),
+            0,
+            "does not match its SHA-256 in the result file",
+        ));
+    }
+    check_lrat_with(cnf, &bytes, &LratOptions::default()).map_err(|e| {
+        Error::parse(
+            path.display().to_string(),
+            0,
+            format!("the proof is rejected: {e}"),
+        )
+    })?;
+    Ok(bytes)
+}
+
+fn check_orbit(q: &Question, orbit: &[Point]) -> Result<OrbitCheck> {
+    if orbit.len() != q.period {
+        return Err(Error::Decode(format!(
+            "the orbit has {} points, the period is {}",
+            orbit.len(),
+            q.period
+        )));
+    }
+    Ok(verify::check_orbit(q.grid.ranges(), orbit)?)
+}
+
+/// The indices of the cubes without a final result (missing, unknown,
+/// error, stale or unreadable), for re-running only those.
+///
+/// # Errors
+/// A manifest that cannot be read.
+pub fn pending_indices(dir: &Path) -> Result<Vec<usize>> {
+    let m = SplitManifest::read(dir)?;
+    Ok(m.cubes
+        .iter()
+        .filter(|e| {
+            !matches!(read_result(dir, e.cube.index),
+                Ok(Some(r)) if r.status.is_final() && r.cube_sha256 == e.file.sha256)
+        })
+        .map(|e| e.cube.index)
+        .collect())
+}

@@ -578,8 +578,9 @@ pub fn write_split(
 
 /// Re-checks a split against a fresh encoding: `formula.cnf`, every cube
 /// file and `coverage.cnf` must be exactly what this orbitcnf writes for the
-/// manifest's question, options and cube literals, and `coverage.lrat` must
-/// refute the coverage CNF. Returns the fresh encoding and the coverage CNF
+/// manifest's question, options and cube literals (the manifest's digests
+/// are compared with fresh renderings, and the cube files on disk with the
+/// digests), and `coverage.lrat` must refute the coverage CNF. Returns the fresh encoding and the coverage CNF
 /// and proof summary.
 ///
 /// # Errors
@@ -622,6 +623,7 @@ pub fn verify_split(dir: &Path, m: &SplitManifest) -> Result<(Encoding, Cnf, Lra
         if sha256_hex(&render_cnf(&cube_encoding(&enc, &c.cube))) != c.file.sha256 {
             return Err(differs(&c.file.name));
         }
+        c.file.read_checked(dir)?;
     }
     let coverage = coverage_cnf(&enc, &cubes);
     if sha256_hex(&render_coverage(&enc, &coverage, &cubes)) != m.coverage.cnf.sha256 {

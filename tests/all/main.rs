@@ -15,4 +15,5 @@ mod external;
 mod instances;
 mod proofs;
 mod published;
+mod scaleout;
 mod util;

@@ -1,0 +1,664 @@
+//! Scale-out: `split`, `run-cube`, `merge`, `decide --jobs` and external solvers.
+//!
+//! - The coverage proof of a split is checked again here by orbitcnf's LRAT
+//!   checker, and every file's SHA-256 against the manifest.
+//! - GNU parallel runs the cubes with two workers; one worker is killed
+//!   (by a wrapper that dies on its first attempt at a cube, or by killing
+//!   the whole parallel process group after the first result appears); only
+//!   the pending cubes are rerun, and the merged verdict must be the verdict
+//!   of a monolithic `decide`; for an infeasible question every cube proof is
+//!   re-checked by `merge`, and the assembled single proof by `verify-proof`.
+//! - CaDiCaL as `--solver external:…` on feasible, infeasible and
+//!   time-limited questions; fake solvers (scripts written here) that lie in
+//!   every way we could think of, each caught with a one-line error.
+//!
+//! A missing `cadical` or `parallel` skips its test with a note, unless the
+//! environment variable `CI` is set: then the test fails.
+
+use std::path::Path;
+use std::time::{Duration, Instant};
+
+use serde_json::Value;
+
+use crate::util::{
+    ERROR, FEASIBLE, INFEASIBLE, Q, TestDir, UNKNOWN, assert_isometric_cycle, bin, check_report,
+    have_tool, orbit_of,
+};
+
+/// The plain formulation's options (no symmetry breaking, no redundant constraints).
+const PLAIN: &[&str] = &["--symmetry", "none", "--no-count", "--no-packing"];
+
+/// `orbitcnf split` of `q` into about `cubes` cubes in `dir/name`; returns the manifest.
+fn split(dir: &TestDir, q: &Q, cubes: usize, name: &str) -> Value {
+    dir.orbitcnf()
+        .arg("split")
+        .args(q.args())
+        .args(["--cubes", &cubes.to_string(), "--out", name])
+        .run()
+        .code(0)
+        .stdout_has("coverage     checked");
+    serde_json::from_str(&dir.read(&format!("{name}/manifest.json"))).expect("manifest is JSON")
+}
+
+fn cube_count(manifest: &Value) -> usize {
+    manifest["cubes"].as_array().expect("a cube list").len()
+}
+
+/// The verdict word of a monolithic `decide --json`.
+fn monolithic(dir: &TestDir, q: &Q) -> String {
+    let run = dir
+        .orbitcnf()
+        .arg("decide")
+        .args(q.args())
+        .arg("--json")
+        .run();
+    check_report(dir, q, &run)["verdict"]
+        .as_str()
+        .expect("a verdict")
+        .to_string()
+}
+
+/// `merge --pending`: the indices without a final result.
+fn pending(dir: &TestDir, name: &str) -> Vec<String> {
+    let run = dir.orbitcnf().args(["merge", name, "--pending"]).run();
+    run.code(0);
+    run.stdout.split_whitespace().map(str::to_string).collect()
+}
+
+/// Writes an executable shell script.
+fn script(dir: &TestDir, name: &str, body: &str) -> String {
+    let p = dir.write(name, format!("#!/bin/sh\n{body}"));
+    use std::os::unix::fs::PermissionsExt;
+    std::fs::set_permissions(&p, std::fs::Permissions::from_mode(0o755)).expect("chmod");
+    p.display().to_string()
+}
+
+#[test]
+fn split_writes_a_checked_coverage_proof_and_hashes_every_file() {
+    let dir = TestDir::new();
+    let q = Q::cube(-1, 1, 3, 9);
+    let m = split(&dir, &q, 6, "sp");
+    let n = cube_count(&m);
+    assert!(n >= 6, "{n} cubes");
+    // Every file matches its digest in the manifest.
+    let mut entries = vec![
+        m["formula"].clone(),
+        m["icnf"].clone(),
+        m["coverage"]["cnf"].clone(),
+        m["coverage"]["proof"].clone(),
+    ];
+    entries.extend(
+        m["cubes"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|c| c["file"].clone()),
+    );
+    for e in &entries {
+        let name = e["name"].as_str().unwrap();
+        let bytes = std::fs::read(dir.path("sp").join(name)).unwrap();
+        assert_eq!(e["sha256"], orbitcnf::split::sha256_hex(&bytes), "{name}");
+    }
+    // The coverage CNF: the negation of every cube plus the profile's order
+    // encoding (and the lex-leader clauses); its proof is accepted by our checker.
+    let text = dir.read("sp/coverage.cnf");
+    let (cnf, _) = orbitcnf::dimacs::parse_dimacs(&text, "coverage.cnf").unwrap();
+    let kept = m["coverage"]["formula_clauses"].as_u64().unwrap() as usize;
+    assert_eq!(cnf.num_clauses(), kept + n);
+    for (j, c) in m["cubes"].as_array().unwrap().iter().enumerate() {
+        let neg: Vec<i32> = c["literals"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|l| -(l.as_i64().unwrap() as i32))
+            .collect();
+        let got: Vec<i32> = cnf.clause(kept + j).iter().map(|l| l.dimacs()).collect();
+        assert_eq!(got, neg, "coverage clause of cube {j}");
+    }
+    let proof = std::fs::read(dir.path("sp/coverage.lrat")).unwrap();
+    let options = orbitcnf::proof::LratOptions {
+        ids_follow_cnf: true,
+        ..Default::default()
+    };
+    let summary = orbitcnf::proof::check_lrat_with(&cnf, &proof, &options)
+        .unwrap_or_else(|e| panic!("coverage proof rejected: {e}"));
+    assert!(summary.steps >= 1);
+    // The iCNF file: `p inccnf`, the clauses, one `a` line per cube.
+    let icnf = dir.read("sp/cubes.icnf");
+    assert!(icnf.lines().any(|l| l == "p inccnf"));
+    assert_eq!(icnf.lines().filter(|l| l.starts_with("a ")).count(), n);
+    // A second split into the same folder is refused.
+    dir.orbitcnf()
+        .arg("split")
+        .args(q.args())
+        .args(["--out", "sp"])
+        .run()
+        .error_with(&["already holds a split"]);
+}
+
+/// GNU parallel with a worker that dies (SIGKILL) on its first attempt at cube 2.
+#[test]
+fn parallel_with_a_killed_worker_then_rerun_refutes_every_cube() {
+    if !have_tool("parallel") {
+        return;
+    }
+    let dir = TestDir::new();
+    let q = Q::cube(-1, 1, 3, 9);
+    let n = cube_count(&split(&dir, &q, 6, "sp"));
+    let worker = script(
+        &dir,
+        "worker.sh",
+        &format!(
+            "# Dies by SIGKILL the first time it is given cube 2, like a worker killed part-way.\n\
+             if [ \"$1\" = 2 ] && [ ! -e died-once ]; then : > died-once; kill -KILL $$; fi\n\
+             exec {} run-cube sp \"$1\" -q\n",
+            bin()
+        ),
+    );
+    let all: Vec<String> = (0..n).map(|i| i.to_string()).collect();
+    let first = dir
+        .program("parallel")
+        .args(["--will-cite", "-j", "2", &worker, "{}", ":::"])
+        .args(&all)
+        .run();
+    if first.code == Some(0) {
+        first.fail("parallel's exit code", "1 (one job was killed)", "0");
+    }
+    assert!(!dir.path("sp/results/cube-0002.json").exists());
+    // merge: unknown, cube 2 listed as missing.
+    let m = dir.orbitcnf().args(["merge", "sp", "--json"]).run();
+    m.code(UNKNOWN);
+    let v = m.json();
+    assert_eq!(v["verdict"], "unknown");
+    assert_eq!(v["pending"][0]["index"], 2, "{v}");
+    assert_eq!(v["pending"][0]["state"], "missing");
+    // Rerun only the pending cubes.
+    let todo = pending(&dir, "sp");
+    assert_eq!(todo, vec!["2"]);
+    dir.program("parallel")
+        .args([
+            "--will-cite",
+            "-j",
+            "2",
+            bin(),
+            "run-cube",
+            "sp",
+            "{}",
+            "-q",
+            ":::",
+        ])
+        .args(&todo)
+        .run()
+        .code(0);
+    assert!(pending(&dir, "sp").is_empty());
+    // merge re-checks every cube's proof; --proof assembles one proof of formula.cnf.
+    let m = dir
+        .orbitcnf()
+        .args(["merge", "sp", "--json", "--proof", "all.lrat"])
+        .run();
+    m.code(INFEASIBLE);
+    let v = m.json();
+    assert_eq!(v["verdict"], monolithic(&dir, &q));
+    assert_eq!(v["certified"].as_array().unwrap().len(), n);
+    assert_eq!(v["certificate"]["kind"], "combined-proof");
+    dir.orbitcnf()
+        .args(["verify-proof", "sp/formula.cnf", "all.lrat"])
+        .run()
+        .code(0)
+        .stdout_has("accepted");
+    // Rerunning everything solves nothing again.
+    dir.orbitcnf()
+        .args(["run-cube", "sp", "0"])
+        .run()
+        .code(0)
+        .stdout_has("already solved");
+}
+
+/// GNU parallel is killed, workers and all, once the first result appears.
+#[test]
+fn parallel_killed_after_the_first_result_then_rerun_finds_the_orbit() {
+    if !have_tool("parallel") {
+        return;
+    }
+    let dir = TestDir::new();
+    let q = Q::cube(-1, 1, 3, 8);
+    let n = cube_count(&split(&dir, &q, 8, "sp"));
+    let slow = script(
+        &dir,
+        "slow.sh",
+        &format!("sleep 0.4\nexec {} run-cube sp \"$1\" -q\n", bin()),
+    );
+    let mut cmd = std::process::Command::new("parallel");
+    cmd.current_dir(dir.root())
+        .args(["--will-cite", "-j", "2", &slow, "{}", ":::"])
+        .args((0..n).map(|i| i.to_string()))
+        .stdin(std::process::Stdio::null())
+        .stdout(std::process::Stdio::null())
+        .stderr(std::process::Stdio::null());
+    use std::os::unix::process::CommandExt;
+    cmd.process_group(0);
+    let mut child = cmd.spawn().expect("start parallel");
+    let results = dir.path("sp/results");
+    let t0 = Instant::now();
+    let count = |p: &Path| {
+        std::fs::read_dir(p)
+            .map(|d| {
+                d.filter(|e| {
+                    e.as_ref()
+                        .is_ok_and(|e| e.file_name().to_string_lossy().ends_with(".json"))
+                })
+                .count()
+            })
+            .unwrap_or(0)
+    };
+    while count(&results) == 0 && t0.elapsed() < Duration::from_secs(60) {
+        std::thread::sleep(Duration::from_millis(10));
+    }
+    // Kill parallel and every worker it started (its process group).
+    let pgid = child.id();
+    std::process::Command::new("sh")
+        .args(["-c", &format!("kill -KILL -{pgid}")])
+        .status()
+        .expect("kill the process group");
+    let _ = child.wait();
+    let done = count(&results);
+    assert!(
+        done >= 1 && done < n,
+        "{done} of {n} results after the kill"
+    );
+    let todo = pending(&dir, "sp");
+    assert_eq!(todo.len(), n - done);
+    dir.program("parallel")
+        .args([
+            "--will-cite",
+            "-j",
+            "2",
+            bin(),
+            "run-cube",
+            "sp",
+            "{}",
+            "-q",
+            ":::",
+        ])
+        .args(&todo)
+        .run()
+        .code(0);
+    let m = dir.orbitcnf().args(["merge", "sp", "--json"]).run();
+    m.code(FEASIBLE);
+    let v = m.json();
+    assert_eq!(v["verdict"], monolithic(&dir, &q));
+    let orbit = orbit_of(&v).expect("an orbit");
+    assert_isometric_cycle(&q.bounds, &orbit, q.period, "merged orbit");
+    assert!(v["pending"].as_array().unwrap().is_empty(), "{v}");
+}
+
+#[test]
+fn decide_jobs_agrees_with_decide_and_certifies_the_whole_cnf() {
+    let dir = TestDir::new();
+    for q in [
+        Q::cube(-1, 1, 3, 8),
+        Q::cube(-1, 1, 3, 9),
+        Q::cube(-1, 1, 2, 5),
+        Q::cube(0, 3, 2, 5),
+    ] {
+        let want = monolithic(&dir, &q);
+        let run = dir
+            .orbitcnf()
+            .arg("decide")
+            .args(q.args())
+            .args(["--jobs", "2", "--cubes", "5", "--json", "--proof", "p.lrat"])
+            .run();
+        let v = check_report(&dir, &q, &run);
+        assert_eq!(v["verdict"], want.as_str(), "{}", q.label());
+        assert!(
+            v["stats"]["solver"]
+                .as_str()
+                .unwrap()
+                .contains("on 2 threads"),
+            "{v}"
+        );
+        if want == "infeasible" {
+            assert_eq!(v["certificate"]["kind"], "checked-proof", "{v}");
+            // The assembled proof refutes exactly the CNF `encode` writes.
+            dir.orbitcnf()
+                .arg("encode")
+                .args(q.args())
+                .args(["-o", "f.cnf"])
+                .run()
+                .code(0);
+            dir.orbitcnf()
+                .args(["verify-proof", "f.cnf", "p.lrat"])
+                .run()
+                .code(0);
+        }
+    }
+    // A bundle from a parallel run passes check-bundle.
+    let q = Q::cube(-1, 1, 3, 9);
+    dir.orbitcnf()
+        .arg("decide")
+        .args(q.args())
+        .args(["--jobs", "2", "--bundle", "b"])
+        .run()
+        .code(INFEASIBLE);
+    dir.orbitcnf()
+        .args(["check-bundle", "b"])
+        .run()
+        .code(0)
+        .stdout_has("INFEASIBLE, certified");
+    // --jobs with an external solver is refused, with the way to do it.
+    dir.orbitcnf()
+        .arg("decide")
+        .args(q.args())
+        .args(["--jobs", "2", "--solver", "external:cadical"])
+        .run()
+        .error_with(&["run-cube"]);
+}
+
+#[test]
+fn cadical_as_external_solver_on_feasible_infeasible_and_limited_questions() {
+    if !have_tool("cadical") {
+        return;
+    }
+    let dir = TestDir::new();
+    let ext = ["--solver", "external:cadical -q"];
+    // Feasible: the model is checked, decoded and verified.
+    let q = Q::cube(-1, 1, 3, 8);
+    let run = dir
+        .orbitcnf()
+        .arg("decide")
+        .args(q.args())
+        .args(ext)
+        .arg("--json")
+        .run();
+    let v = check_report(&dir, &q, &run);
+    assert_eq!(v["verdict"], "feasible");
+    assert!(v["stats"]["solver"].as_str().unwrap().contains("cadical"));
+    // Infeasible without a proof: an uncertified claim.
+    let q = Q::cube(-1, 1, 3, 9);
+    let run = dir
+        .orbitcnf()
+        .arg("decide")
+        .args(q.args())
+        .args(ext)
+        .arg("--json")
+        .run();
+    let v = check_report(&dir, &q, &run);
+    assert_eq!(v["verdict"], "infeasible");
+    assert_eq!(v["certificate"]["kind"], "solver-claim");
+    // With a DRAT proof: checked through rate when rate is installed.
+    let run = dir
+        .orbitcnf()
+        .arg("decide")
+        .args(q.args())
+        .args(ext)
+        .args(["--proof-arg", "{}", "--json"])
+        .run();
+    let v = check_report(&dir, &q, &run);
+    assert_eq!(v["verdict"], "infeasible");
+    let rate = std::env::var_os("PATH")
+        .is_some_and(|p| std::env::split_paths(&p).any(|d| d.join("rate").is_file()));
+    if rate {
+        assert_eq!(v["certificate"]["kind"], "checked-proof", "{v}");
+    } else {
+        eprintln!("note: rate is not installed; the DRAT proof stays unchecked");
+        assert_eq!(v["certificate"]["kind"], "solver-claim", "{v}");
+        assert!(
+            v["stats"]["solver"]
+                .as_str()
+                .unwrap()
+                .contains("not checked")
+        );
+    }
+    // Time limit: orbitcnf kills CaDiCaL and answers unknown (exit 0).
+    let hard = Q::cube(-1, 1, 4, 17);
+    let t0 = Instant::now();
+    let run = dir
+        .orbitcnf()
+        .arg("decide")
+        .args(hard.args())
+        .args(PLAIN)
+        .args(ext)
+        .args(["--time-limit", "1", "--json"])
+        .run();
+    run.code(UNKNOWN);
+    assert!(t0.elapsed() < Duration::from_secs(20));
+    let v = run.json();
+    assert_eq!(v["verdict"], "unknown");
+    assert!(v["reason"].as_str().unwrap().contains("time limit"), "{v}");
+    // CaDiCaL's own limit: `c UNKNOWN`, no status line, exit 0.
+    let run = dir
+        .orbitcnf()
+        .arg("decide")
+        .args(hard.args())
+        .args(PLAIN)
+        .args(["--solver", "external:cadical -q -t 1", "--json"])
+        .run();
+    run.code(UNKNOWN);
+    assert!(
+        run.json()["reason"].as_str().unwrap().contains("c UNKNOWN"),
+        "{}",
+        run.stdout
+    );
+}
+
+#[test]
+fn cadical_solves_cubes_and_merge_marks_them_uncertified() {
+    if !have_tool("cadical") {
+        return;
+    }
+    let dir = TestDir::new();
+    let q = Q::cube(-1, 1, 3, 9);
+    let n = cube_count(&split(&dir, &q, 4, "sp"));
+    for i in 0..n {
+        dir.orbitcnf()
+            .args([
+                "run-cube",
+                "sp",
+                &i.to_string(),
+                "--solver",
+                "external:cadical -q",
+            ])
+            .run()
+            .code(0)
+            .stdout_has("uncertified");
+    }
+    let m = dir.orbitcnf().args(["merge", "sp", "--json"]).run();
+    m.code(INFEASIBLE);
+    let v = m.json();
+    assert_eq!(v["certificate"]["kind"], "partly-uncertified");
+    assert_eq!(v["uncertified"].as_array().unwrap().len(), n);
+    // A standalone cube file is a CNF that `decode` reads back.
+    let run = dir
+        .program("cadical")
+        .args(["-q", "sp/cubes/cube-0000.cnf"])
+        .run();
+    run.code(INFEASIBLE);
+    dir.write("out.txt", &run.stdout);
+    dir.orbitcnf()
+        .args(["decode", "sp/cubes/cube-0000.cnf", "out.txt"])
+        .run()
+        .code(INFEASIBLE);
+}
+
+/// Fake solvers that lie: each is caught with a one-line error, never a verdict.
+#[test]
+fn lying_solvers_are_caught() {
+    let dir = TestDir::new();
+    let q = Q::cube(-1, 1, 2, 4);
+    let fake = |name: &str, body: &str| script(&dir, name, body);
+    let cases: Vec<(String, Vec<&str>)> = vec![
+        (
+            fake(
+                "wrong-model.sh",
+                "echo 's SATISFIABLE'\necho 'v 0'\nexit 10\n",
+            ),
+            vec!["its model is wrong", "falsifies clause"],
+        ),
+        (
+            fake(
+                "sat-exit-20.sh",
+                "echo 's SATISFIABLE'\necho 'v 0'\nexit 20\n",
+            ),
+            vec!["s SATISFIABLE contradicts its exit code 20"],
+        ),
+        (
+            fake("unsat-exit-10.sh", "echo 's UNSATISFIABLE'\nexit 10\n"),
+            vec!["s UNSATISFIABLE contradicts its exit code 10"],
+        ),
+        (
+            fake("silent-exit-20.sh", "exit 20\n"),
+            vec!["(no status line) contradicts its exit code 20"],
+        ),
+        (
+            fake("segfault.sh", "echo 'c starting' >&2\nkill -SEGV $$\n"),
+            vec!["crashed", "signal 11", "SIGSEGV"],
+        ),
+        (
+            fake("exit-3.sh", "echo 'out of memory' >&2\nexit 3\n"),
+            vec!["exited with code 3", "out of memory"],
+        ),
+        (
+            fake("garbage.sh", "echo 'hello, I am a solver'\nexit 10\n"),
+            vec!["not in competition form", "unexpected line"],
+        ),
+        (
+            fake(
+                "two-status.sh",
+                "echo 's UNSATISFIABLE'\necho 's SATISFIABLE'\nexit 20\n",
+            ),
+            vec!["not in competition form", "a second status line"],
+        ),
+        (
+            fake(
+                "bad-literal.sh",
+                "echo 's SATISFIABLE'\necho 'v 1 999999 0'\nexit 10\n",
+            ),
+            vec!["its model is wrong", "variable 999999"],
+        ),
+        (
+            "/nonexistent/solver".to_string(),
+            vec!["was not found", "installed"],
+        ),
+    ];
+    for (solver, needles) in &cases {
+        dir.orbitcnf()
+            .arg("decide")
+            .args(q.args())
+            .args(["--solver", &format!("external:{solver}")])
+            .run()
+            .error_with(needles);
+    }
+    // UNSAT with a proof asked for but none written, and with a bogus LRAT proof.
+    let infeasible = Q::cube(-1, 1, 2, 5);
+    let no_proof = fake("no-proof.sh", "echo 's UNSATISFIABLE'\nexit 20\n");
+    dir.orbitcnf()
+        .arg("decide")
+        .args(infeasible.args())
+        .args([
+            "--solver",
+            &format!("external:{no_proof}"),
+            "--proof-arg",
+            "{}",
+        ])
+        .run()
+        .error_with(&["left no proof file"]);
+    let bogus = fake(
+        "bogus-proof.sh",
+        "echo '99999 0 1 2 0' > \"$2\"\necho 's UNSATISFIABLE'\nexit 20\n",
+    );
+    dir.orbitcnf()
+        .arg("decide")
+        .args(infeasible.args())
+        .args([
+            "--solver",
+            &format!("external:{bogus}"),
+            "--proof-arg",
+            "{}",
+        ])
+        .args(["--proof-format", "lrat"])
+        .run()
+        .error_with(&["rejected by orbitcnf's checker"]);
+    // An external solver's time limit kills a solver that never answers.
+    let sleeper = fake("sleeper.sh", "exec sleep 30\n");
+    let t0 = Instant::now();
+    let run = dir
+        .orbitcnf()
+        .arg("decide")
+        .args(q.args())
+        .args([
+            "--solver",
+            &format!("external:{sleeper}"),
+            "--time-limit",
+            "0.5",
+        ])
+        .run();
+    run.code(UNKNOWN).stdout_has("time limit");
+    assert!(t0.elapsed() < Duration::from_secs(10));
+    // In run-cube, a lying solver's failure is recorded, and merge lists it.
+    dir.orbitcnf()
+        .arg("split")
+        .args(q.args())
+        .args(["--cubes", "2", "--out", "sp"])
+        .run()
+        .code(0);
+    dir.orbitcnf()
+        .args([
+            "run-cube",
+            "sp",
+            "0",
+            "--solver",
+            &format!("external:{}", cases[0].0),
+        ])
+        .run()
+        .error_with(&["its model is wrong"]);
+    let r: Value = serde_json::from_str(&dir.read("sp/results/cube-0000.json")).unwrap();
+    assert_eq!(r["status"], "error");
+    // Cube 0 failed and the others were never run: unknown, with cube 0 listed as an error.
+    let m = dir.orbitcnf().args(["merge", "sp", "--json"]).run();
+    m.code(UNKNOWN);
+    let v = m.json();
+    assert!(
+        v["pending"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .any(|p| p["index"] == 0 && p["state"] == "error"),
+        "{v}"
+    );
+    // Bad indices and folders are errors.
+    dir.orbitcnf()
+        .args(["run-cube", "sp", "99"])
+        .run()
+        .error_with(&["out of range"]);
+    dir.orbitcnf().args(["merge", "nowhere"]).run().code(ERROR);
+}
+
+#[test]
+fn merge_rejects_a_tampered_split_and_a_tampered_proof() {
+    let dir = TestDir::new();
+    let q = Q::cube(-1, 1, 2, 5);
+    let n = cube_count(&split(&dir, &q, 3, "sp"));
+    for i in 0..n {
+        dir.orbitcnf()
+            .args(["run-cube", "sp", &i.to_string(), "-q"])
+            .run()
+            .code(0);
+    }
+    dir.orbitcnf().args(["merge", "sp"]).run().code(INFEASIBLE);
+    // A proof file changed after the fact: that cube is listed, the verdict is unknown.
+    let p = dir.path("sp/results/cube-0000.lrat");
+    let mut bytes = std::fs::read(&p).unwrap();
+    bytes.extend_from_slice(b"c tampered\n");
+    std::fs::write(&p, bytes).unwrap();
+    let m = dir.orbitcnf().args(["merge", "sp", "--json"]).run();
+    m.code(UNKNOWN);
+    assert_eq!(m.json()["pending"][0]["state"], "rejected");
+    // A cube file changed: merge refuses the whole split.
+    let c = dir.path("sp/cubes/cube-0001.cnf");
+    let text = std::fs::read_to_string(&c).unwrap();
+    std::fs::write(&c, text.replacen("p cnf", "c x\np cnf", 1)).unwrap();
+    dir.orbitcnf()
+        .args(["merge", "sp"])
+        .run()
+        .error_with(&["cube-0001.cnf", "SHA-256"]);
+}

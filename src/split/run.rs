@@ -188,6 +188,8 @@ pub fn run_cube(
         }
     }
     let bytes = entry.file.read_checked(dir)?;
+    let results = dir.join(RESULTS_DIR);
+    std::fs::create_dir_all(&results).map_err(|e| Error::io(&results, e))?;
     let cube_path = dir.join(&entry.file.name);
     let cube_name = cube_path.display().to_string();
     let text = String::from_utf8(bytes)
@@ -280,6 +282,8 @@ pub fn run_cube(
 }
 
 fn write_result(dir: &Path, r: &CubeResult) -> Result<()> {
+    let results = dir.join(RESULTS_DIR);
+    std::fs::create_dir_all(&results).map_err(|e| Error::io(&results, e))?;
     let text = serde_json::to_string_pretty(r).expect("results serialise") + "\n";
     write_atomically(&result_path(dir, r.index), text.as_bytes())
 }

@@ -39,6 +39,7 @@ impl Var {
     }
 
     /// The negative literal.
+    #[allow(clippy::should_implement_trait)] // a variable is not negated, it has a negative literal
     pub fn neg(self) -> Lit {
         Lit(-(self.0 as i32))
     }

@@ -29,8 +29,9 @@ pub enum Error {
 
     /// The CNF would exceed the configured size limit.
     #[error(
-        "the CNF would be too large: about {clauses} clauses over {vars} variables \
-         (limit {limit} clauses); raise --max-clauses if you mean it"
+        "the CNF would be too large: about {} clauses over {} variables \
+         (limit {limit} clauses); raise --max-clauses if you mean it",
+        human(*clauses), human(*vars)
     )]
     TooLarge {
         /// Estimated number of clauses.
@@ -120,6 +121,15 @@ pub enum Error {
         /// What went wrong.
         failure: crate::solve::external::ExternalFailure,
     },
+}
+
+/// A count for messages: exact below a trillion, in scientific notation above.
+fn human(n: u64) -> String {
+    if n < 1_000_000_000_000 {
+        n.to_string()
+    } else {
+        format!("{:.2e}", n as f64)
+    }
 }
 
 /// Shorthand for results with the library's [`Error`].

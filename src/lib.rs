@@ -11,6 +11,9 @@
 //!
 //! The pipeline in one call is [`decide::decide`].
 
+// Index loops follow the mathematics (x_{i,c}, g(k)); iterator chains would hide the indices.
+#![allow(clippy::needless_range_loop)]
+
 pub mod bench;
 pub mod brute;
 pub mod bundle;

@@ -399,6 +399,16 @@ pub fn estimate(q: &Question, options: &EncodeOptions) -> Vec<FamilyCount> {
 /// estimated size when the estimate exceeds `max_clauses`.
 pub fn encode(q: &Question, options: &EncodeOptions, max_clauses: u64) -> Result<Encoding> {
     options.symmetry.validate()?;
+    // The exact counts are u64 sums; first rule out sizes where they could
+    // overflow, with a floating-point estimate of the dominant families.
+    let (rough_clauses, rough_vars) = rough_size(q);
+    if rough_clauses > max_clauses as f64 || rough_clauses > 1e15 || rough_vars > 1e12 {
+        return Err(Error::TooLarge {
+            clauses: rough_clauses.min(u64::MAX as f64) as u64,
+            vars: rough_vars.min(u64::MAX as f64) as u64,
+            limit: max_clauses,
+        });
+    }
     let est = estimate(q, options);
     let clauses: u64 = est.iter().map(|f| f.clauses).sum();
     let vars: u64 = est.iter().map(|f| f.vars).sum();
@@ -449,6 +459,16 @@ pub fn encode(q: &Question, options: &EncodeOptions, max_clauses: u64) -> Result
         }
     }
     Ok(enc.finish(q, &o))
+}
+
+/// Clauses and variables of the base families, in floating point (no overflow).
+fn rough_size(q: &Question) -> (f64, f64) {
+    let p = q.period as f64;
+    let pairs = p * (p - 1.0) / 2.0;
+    let sides: Vec<f64> = (0..q.dim()).map(|c| q.grid.side(c) as f64).collect();
+    let clauses = pairs * sides.iter().map(|s| 2.0 * s * s + 4.0 * s).sum::<f64>();
+    let vars = (p + 2.0 * pairs) * sides.iter().sum::<f64>();
+    (clauses, vars)
 }
 
 /// The cyclic offset class `min(|i − j|, p − |i − j|)` of positions `i ≠ j`.

@@ -20,12 +20,12 @@ use crate::solve::bundled::Bundled;
 use crate::varmap::Meaning;
 use crate::{decide, verify};
 
-/// Every valid combination of the options: 8 × 4 × 2 = 64.
+/// Every valid combination of the options: 8 × 4 × 4 = 128.
 fn all_combinations() -> Vec<EncodeOptions> {
     let mut out = Vec::new();
     for mask in 0..8u8 {
         for level in 0..4u8 {
-            for (count, packing) in [(false, false), (true, true)] {
+            for (count, packing) in [(false, false), (true, false), (false, true), (true, true)] {
                 let symmetry = Symmetry {
                     translate: mask & 1 != 0,
                     multiplier: mask & 2 != 0,
@@ -37,6 +37,7 @@ fn all_combinations() -> Vec<EncodeOptions> {
                 out.push(EncodeOptions {
                     symmetry,
                     count,
+                    packing,
                     ..EncodeOptions::default()
                 });
             }
@@ -92,7 +93,7 @@ fn agree_on(grids: &[Grid], combos: &[EncodeOptions], extra: u128) {
 #[test]
 fn brute_force_agrees_under_every_combination_in_dimensions_one_and_two() {
     let combos = all_combinations();
-    assert_eq!(combos.len(), 64);
+    assert_eq!(combos.len(), 128);
     let mut grids = boxes(1, 6);
     grids.extend(boxes(2, 4));
     agree_on(&grids, &combos, 2);

@@ -702,6 +702,40 @@ mod tests {
     }
 
     #[test]
+    fn cube_proofs_lift_to_one_proof_of_the_formula() {
+        let e = enc("-1..1", 2, 5);
+        let cubes = profile_cubes(&e, 3).unwrap();
+        let mut lifted = Vec::new();
+        for c in &cubes {
+            let cnf = run::cube_cnf(&e.cnf, c);
+            let mut proof = Vec::new();
+            let sinks = crate::proof::ProofSinks {
+                lrat: Some(&mut proof),
+                lrat_binary: c.index % 2 == 0,
+                ..Default::default()
+            };
+            let out = crate::proof::solve_with_proof_sinks(&cnf, sinks, None).unwrap();
+            assert_eq!(out.outcome, Outcome::Unsat);
+            // Without the cube's units the proof refers to clauses that do not exist.
+            if !c.literals.is_empty() {
+                assert!(lift::lift_cube(&e.cnf, &[], &proof).is_err());
+            }
+            lifted.push(lift::lift_cube(&e.cnf, &c.lits(), &proof).unwrap());
+        }
+        let cov = coverage_cnf(&e, &cubes);
+        let (cov_proof, _) = refute_coverage(&e, &cov).unwrap();
+        let all = lift::assemble(&e.cnf, &coverage_sources(&e), &lifted, &cov_proof).unwrap();
+        let options = LratOptions {
+            ids_follow_cnf: true,
+            ..LratOptions::default()
+        };
+        check_lrat_with(&e.cnf, &all, &options).unwrap();
+        // Leaving out one cube's derivation breaks the chain: the checker rejects it.
+        let partial = lift::assemble(&e.cnf, &coverage_sources(&e), &lifted[1..], &cov_proof);
+        assert!(partial.map_or(true, |p| check_lrat_with(&e.cnf, &p, &options).is_err()));
+    }
+
+    #[test]
     fn one_cube_is_the_whole_space() {
         let e = enc("0..1", 2, 3); // L = 1: the profile is fixed
         let cubes = profile_cubes(&e, 8).unwrap();

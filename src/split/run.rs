@@ -550,7 +550,7 @@ pub fn merge(dir: &Path, combined: Option<&Path>) -> Result<MergeReport> {
                 None => report.uncertified.push(i),
                 Some(p) => {
                     let cube_cnf = cube_cnf(&enc.cnf, &entry.cube);
-                    match check_cube_proof(dir, p, &cube_cnf) {
+                    match check_cube_proof(dir, i, p, &cube_cnf) {
                         Ok(bytes) => {
                             report.certified.push(i);
                             if combined.is_some() {
@@ -621,7 +621,18 @@ pub fn cube_cnf(f: &Cnf, cube: &Cube) -> Cnf {
     cnf
 }
 
-fn check_cube_proof(dir: &Path, p: &ProofRecord, cnf: &Cnf) -> Result<Vec<u8>> {
+fn check_cube_proof(dir: &Path, index: usize, p: &ProofRecord, cnf: &Cnf) -> Result<Vec<u8>> {
+    if p.file != proof_name(index) {
+        return Err(Error::parse(
+            result_path(dir, index).display().to_string(),
+            0,
+            format!(
+                "names the proof {:?}, expected {:?}",
+                p.file,
+                proof_name(index)
+            ),
+        ));
+    }
     let path = dir.join(RESULTS_DIR).join(&p.file);
     let bytes = std::fs::read(&path).map_err(|e| Error::io(&path, e))?;
     if sha256_hex(&bytes) != p.sha256 {

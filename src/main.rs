@@ -151,7 +151,8 @@ struct QuestionArgs {
         long,
         value_name = "SPEC",
         default_value = "-1..1",
-        allow_hyphen_values = true
+        allow_hyphen_values = true,
+        value_parser = parse_grid_text
     )]
     grid: String,
     /// The minimal period p asked for.
@@ -275,6 +276,18 @@ struct CheckArgs {
     json: bool,
 }
 
+/// Accepts `-1..1` after `--grid` but not a flag that follows a missing value.
+fn parse_grid_text(s: &str) -> Result<String, String> {
+    if s.starts_with("--")
+        || (s.starts_with('-') && s[1..].starts_with(|c: char| c.is_ascii_alphabetic()))
+    {
+        return Err(format!(
+            "{s:?} is a flag, not a grid; give a value such as --grid=-1..1"
+        ));
+    }
+    Ok(s.to_string())
+}
+
 fn parse_seconds(s: &str) -> Result<Duration, String> {
     let v: f64 = s
         .parse()
@@ -296,13 +309,25 @@ fn main() -> ExitCode {
                 let _ = e.print();
                 return ExitCode::SUCCESS;
             }
+            if e.kind() == ErrorKind::DisplayHelpOnMissingArgumentOrSubcommand {
+                eprintln!(
+                    "orbitcnf: error: no command given; try 'orbitcnf decide' \
+                     (the default question) or see 'orbitcnf --help'"
+                );
+                return ExitCode::from(1);
+            }
+            // clap's message spans several lines (the error, the missing
+            // arguments, a tip, the usage); keep all but the usage, on one line.
             let text = e.render().to_string();
-            let first = text
+            let parts: Vec<&str> = text
                 .lines()
-                .next()
-                .unwrap_or("bad arguments")
-                .trim_start_matches("error: ");
-            eprintln!("orbitcnf: error: {first} (see 'orbitcnf --help')");
+                .map(str::trim)
+                .take_while(|l| !l.starts_with("Usage:"))
+                .filter(|l| !l.is_empty())
+                .collect();
+            let msg = parts.join(" ");
+            let msg = msg.trim_start_matches("error: ");
+            eprintln!("orbitcnf: error: {msg} (see 'orbitcnf --help')");
             return ExitCode::from(1);
         }
     };
@@ -595,6 +620,7 @@ The results store (--store DIR, default ./orbitcnf-results):
                            proof path and SHA-256, statistics, limits, tool
                            version, run id, start and finish times
   DIR/proofs/<key>.<run>.lrat   the LRAT proofs of infeasible answers
+                           (they can be large: about 3 GB for all of {-1,0,1}^4)
   <key> is the SHA-256 of question, resolved encoding options and formulation.
   Every file is written to a temporary file, fsynced and renamed into place, so
   a sweep killed at any moment keeps every answer it completed; run the same
@@ -634,7 +660,8 @@ struct SpectrumArgs {
         long,
         value_name = "SPEC",
         default_value = "-1..1",
-        allow_hyphen_values = true
+        allow_hyphen_values = true,
+        value_parser = parse_grid_text
     )]
     grid: String,
     /// The periods: `A..B` (inclusive), `P`, or a comma-separated list of both.
@@ -656,7 +683,7 @@ struct SpectrumArgs {
     store: PathBuf,
     /// Keep no store: decide every period afresh and keep no files (proofs
     /// are still checked, in memory).
-    #[arg(long)]
+    #[arg(long, conflicts_with = "store")]
     no_store: bool,
     /// Re-check every reused stored answer in full: the proof file against its
     /// SHA-256 and with the LRAT checker against a fresh encoding.

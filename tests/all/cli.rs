@@ -278,7 +278,6 @@ fn bad_encoding_options_are_errors() {
 /// missing arguments on the lines after it, so the user is told that some
 /// arguments are missing but not which.
 #[test]
-#[ignore = "bug: the error for a missing required argument does not name it"]
 fn a_missing_required_argument_is_named() {
     let dir = TestDir::new();
     dir.orbitcnf()
@@ -297,7 +296,6 @@ fn a_missing_required_argument_is_named() {
 /// which reads as if deciding had failed. It should say that a command is
 /// missing (or show the usage).
 #[test]
-#[ignore = "bug: no subcommand prints the about line as the error"]
 fn no_subcommand_says_a_command_is_missing() {
     let run = TestDir::new().orbitcnf().run();
     run.code(ERROR);

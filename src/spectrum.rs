@@ -508,7 +508,14 @@ pub fn run(cfg: &SweepConfig) -> Result<Spectrum> {
     }
 
     let total = cfg.periods.len();
-    let mut progress = Progress::new(cfg.progress, grid.to_string(), total, t0, cfg.jobs);
+    let mut progress = Progress::new(
+        cfg.progress,
+        grid.to_string(),
+        total,
+        t0,
+        cfg.jobs,
+        limits.time_seconds,
+    );
     let n_tasks = queue.len();
     let queue = Mutex::new(queue);
     let stop = AtomicBool::new(false);
@@ -863,11 +870,19 @@ struct Progress {
     total: usize,
     t0: Instant,
     jobs: usize,
+    limit: Option<f64>,
     last: Option<Instant>,
 }
 
 impl Progress {
-    fn new(wanted: bool, grid: String, total: usize, t0: Instant, jobs: usize) -> Progress {
+    fn new(
+        wanted: bool,
+        grid: String,
+        total: usize,
+        t0: Instant,
+        jobs: usize,
+        limit: Option<f64>,
+    ) -> Progress {
         Progress {
             on: wanted && std::io::stderr().is_terminal(),
             drawn: false,
@@ -875,6 +890,7 @@ impl Progress {
             total,
             t0,
             jobs,
+            limit,
             last: None,
         }
     }
@@ -903,14 +919,26 @@ impl Progress {
             .map(|r| r.seconds)
             .collect();
         let remaining = queued + running.len();
+        let lanes = self.jobs.min(remaining).max(1);
+        // With a time limit no period runs longer: an upper bound on what is left.
+        let at_most = self.limit.map(|t| {
+            let waves = queued.div_ceil(lanes) as f64 + if running.is_empty() { 0.0 } else { 1.0 };
+            format!(", at most {}", duration_words(waves * t))
+        });
         let estimate = if remaining == 0 {
             "finishing".to_string()
         } else if solved.is_empty() {
-            "estimate after the first solved period".to_string()
+            format!(
+                "estimate after the first solved period{}",
+                at_most.unwrap_or_default()
+            )
         } else {
             let mean = solved.iter().sum::<f64>() / solved.len() as f64;
-            let lanes = self.jobs.min(remaining).max(1) as f64;
-            format!("≈ {} left", duration_words(mean * remaining as f64 / lanes))
+            format!(
+                "≈ {} left{}",
+                duration_words(mean * remaining as f64 / lanes as f64),
+                at_most.unwrap_or_default()
+            )
         };
         let mut shown: Vec<String> = running
             .iter()

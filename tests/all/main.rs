@@ -16,4 +16,5 @@ mod instances;
 mod proofs;
 mod published;
 mod scaleout;
+mod spectrum;
 mod util;

@@ -1,0 +1,377 @@
+//! `orbitcnf spectrum`: whole spectra with checked certificates, the results
+//! store surviving SIGKILL, retries of unknown answers, and contradictions.
+//!
+//! Expected answers: on {−1,0,1}^3 and {0,1,2,3}^3 the periods are exactly
+//! 1..8 (every p ≤ 2^n by the unit-cube construction; p ≤ 8 for n = 3 by
+//! Lyons and Nussbaum 1992 [recalled]); the default sweep covers 1..12, the
+//! Lemmens–Scheutzow bound max_k 2^k·C(3,k) = 12 (Ergodic Theory Dynam.
+//! Systems 25 (2005) 861–871). Every feasible answer's orbit is verified here
+//! by the crate's checker and by the test suite's own; every stored proof is
+//! re-checked by `orbitcnf verify-proof` against a fresh `orbitcnf encode`.
+
+use std::collections::BTreeMap;
+use std::path::{Path, PathBuf};
+use std::process::{Command, Stdio};
+use std::time::{Duration, Instant};
+
+use serde_json::Value;
+
+use orbitcnf::store::Store;
+
+use crate::util::{ERROR, TestDir, assert_isometric_cycle, bin};
+
+/// Every answer file of a store, by name, with its bytes.
+fn answer_files(store: &Path) -> BTreeMap<String, String> {
+    let dir = store.join("answers");
+    let mut out = BTreeMap::new();
+    if let Ok(entries) = std::fs::read_dir(&dir) {
+        for e in entries.flatten() {
+            let name = e.file_name().to_string_lossy().into_owned();
+            if name.ends_with(".json") && !name.starts_with('.') {
+                let text = std::fs::read_to_string(e.path()).expect("read an answer file");
+                out.insert(name, text);
+            }
+        }
+    }
+    out
+}
+
+fn rows(report: &Value) -> &Vec<Value> {
+    report["rows"].as_array().expect("rows")
+}
+
+/// `(period, verdict, how, backing, orbit)` per row: what must not depend on
+/// when or in how many runs the spectrum was computed.
+fn essentials(report: &Value) -> Vec<(u64, String, String, String, Value)> {
+    rows(report)
+        .iter()
+        .map(|r| {
+            (
+                r["period"].as_u64().unwrap(),
+                r["verdict"].as_str().unwrap().to_string(),
+                r["how"].as_str().unwrap().to_string(),
+                r["answer"]["backing"].as_str().unwrap().to_string(),
+                r["answer"]["orbit"].clone(),
+            )
+        })
+        .collect()
+}
+
+/// Checks a full default spectrum of an n = 3 box: 1..8 feasible by
+/// construction with verified orbits, 9..12 infeasible by the solver with
+/// stored proofs that `orbitcnf verify-proof` accepts against a fresh
+/// encoding, and that the library's [`Store::recheck`] accepts too.
+fn check_three_dimensional_spectrum(grid: &str, bounds: &[(i64, i64)]) {
+    let dir = TestDir::new();
+    let run = dir
+        .orbitcnf()
+        .args(["spectrum", "--dim", "3", &format!("--grid={grid}")])
+        .args(["--store", "results", "--json"])
+        .run();
+    run.code(0);
+    if !run.stderr.is_empty() {
+        run.fail(
+            "stderr",
+            "empty (no progress line without a terminal)",
+            "output",
+        );
+    }
+    let report = run.json();
+    assert_eq!(report["summary"]["all_decided"], true);
+    let rows = rows(&report);
+    let periods: Vec<u64> = rows.iter().map(|r| r["period"].as_u64().unwrap()).collect();
+    assert_eq!(periods, (1..=12).collect::<Vec<_>>(), "{grid}");
+    let store = Store::open(&dir.path("results")).expect("open the store");
+    for r in rows {
+        let p = r["period"].as_u64().unwrap() as usize;
+        let answer = &r["answer"];
+        if p <= 8 {
+            assert_eq!(r["verdict"], "feasible", "{grid} p = {p}");
+            assert_eq!(r["how"], "construction", "{grid} p = {p}");
+            assert_eq!(answer["backing"], "checked-orbit");
+            let orbit: Vec<Vec<i64>> = serde_json::from_value(answer["orbit"].clone()).unwrap();
+            orbitcnf::verify::check_orbit(bounds, &orbit).expect("the crate's check");
+            assert_isometric_cycle(bounds, &orbit, p, &format!("{grid} p = {p}"));
+        } else {
+            assert_eq!(r["verdict"], "infeasible", "{grid} p = {p}");
+            assert_eq!(r["how"], "solver", "{grid} p = {p}");
+            assert_eq!(answer["backing"], "checked-proof");
+            let rel = answer["proof"]["file"].as_str().expect("a kept proof");
+            let proof = dir.path("results").join(rel);
+            assert!(proof.starts_with(dir.path("results/proofs")));
+            let cnf = dir.path(&format!("p{p}.cnf"));
+            dir.orbitcnf()
+                .args(["encode", "--dim", "3", &format!("--grid={grid}")])
+                .args(["--period", &p.to_string(), "--output"])
+                .arg(&cnf)
+                .run()
+                .code(0);
+            dir.orbitcnf()
+                .arg("verify-proof")
+                .arg(&cnf)
+                .arg(&proof)
+                .run()
+                .code(0)
+                .stdout_has("accepted");
+            let key = answer["key"].as_str().unwrap();
+            let stored = store.get(key).expect("the answer is in the store");
+            let recheck = store.recheck(stored).expect("recheck");
+            assert!(recheck.proof.is_some(), "{grid} p = {p}: proof re-checked");
+        }
+    }
+    // A second run reuses everything and prints the same table rows.
+    let again = dir
+        .orbitcnf()
+        .args(["spectrum", "--dim", "3", &format!("--grid={grid}")])
+        .args(["--store", "results", "--json", "--recheck"])
+        .run();
+    again.code(0);
+    let again = again.json();
+    assert_eq!(again["summary"]["reused"], 12);
+    assert_eq!(essentials(&again), essentials(&report));
+}
+
+#[test]
+fn spectrum_of_the_ternary_cube_is_1_to_8_with_checked_certificates() {
+    check_three_dimensional_spectrum("-1..1", &[(-1, 1); 3]);
+}
+
+#[test]
+fn spectrum_of_the_quaternary_cube_is_1_to_8_with_checked_certificates() {
+    check_three_dimensional_spectrum("0..3", &[(0, 3); 3]);
+}
+
+#[test]
+fn spectrum_table_csv_and_markdown_agree() {
+    let dir = TestDir::new();
+    let base = ["spectrum", "--dim", "2", "--grid=-1..1", "--store", "r"];
+    let table = dir.orbitcnf().args(base).run();
+    table.code(0).stdout_has("every period decided");
+    for p in 1..=4 {
+        table.stdout_has(&format!("    {p}  feasible    construction"));
+    }
+    let csv = dir.orbitcnf().args(base).arg("--csv").run();
+    csv.code(0);
+    let lines: Vec<&str> = csv.stdout.lines().collect();
+    assert_eq!(lines.len(), 5, "{}", csv.stdout);
+    assert!(lines[0].starts_with("period,verdict,how,source"));
+    assert!(lines[1].starts_with("1,feasible,construction,stored,"));
+    let md = dir.orbitcnf().args(base).args(["--markdown", "s.md"]).run();
+    md.code(0);
+    let page = dir.read("s.md");
+    for needle in [
+        "| 4 | feasible | construction (stored) |",
+        "Lemmens and M. Scheutzow",
+        "Ergodic Theory Dynam. Systems 25 (2005) 861–871",
+        "Lyons and R. D. Nussbaum",
+        "[recalled]",
+        "A prime period is at most 2^n",
+    ] {
+        assert!(page.contains(needle), "missing {needle:?} in\n{page}");
+    }
+    // Bad input is a one-line error, not a panic.
+    dir.orbitcnf()
+        .args([
+            "spectrum",
+            "--dim",
+            "2",
+            "--grid=-1..1",
+            "--periods",
+            "3..10",
+        ])
+        .arg("--no-store")
+        .run()
+        .error_with(&["period 10 exceeds the 9 points"]);
+    dir.orbitcnf()
+        .args(["spectrum", "--grid=0..1", "--periods", "x", "--no-store"])
+        .run()
+        .error_with(&["--periods"]);
+    dir.orbitcnf()
+        .args(["spectrum", "--grid=0..1", "--jobs", "0", "--no-store"])
+        .run()
+        .error_with(&["--jobs must be at least 1"]);
+}
+
+#[test]
+fn spectrum_survives_sigkill_without_losing_or_recomputing_answers() {
+    let dir = TestDir::new();
+    let store = dir.path("killed");
+    let args = |store: &Path| -> Vec<String> {
+        vec![
+            "spectrum".into(),
+            "--dim".into(),
+            "3".into(),
+            "--grid=0..3".into(),
+            "--periods".into(),
+            "6..10".into(),
+            "--jobs".into(),
+            "1".into(),
+            "--json".into(),
+            "--store".into(),
+            store.display().to_string(),
+        ]
+    };
+    let mut child = Command::new(bin())
+        .args(args(&store))
+        .stdin(Stdio::null())
+        .stdout(Stdio::null())
+        .stderr(Stdio::null())
+        .spawn()
+        .expect("start the sweep");
+    // Periods 6..8 are constructed at once; wait for the first solver answer (p = 9) too.
+    let t0 = Instant::now();
+    while answer_files(&store).len() < 4 {
+        assert!(
+            t0.elapsed() < Duration::from_secs(50),
+            "no solver answer within 50 s"
+        );
+        std::thread::sleep(Duration::from_millis(10));
+    }
+    assert!(
+        child.try_wait().expect("poll the sweep").is_none(),
+        "the sweep finished before it could be killed; the test needs it running"
+    );
+    child.kill().expect("SIGKILL the sweep");
+    let status = child.wait().expect("reap the sweep");
+    assert!(!status.success(), "killed, not finished");
+    let before = answer_files(&store);
+    assert_eq!(
+        before.len(),
+        4,
+        "p = 6..9 stored, p = 10 lost with the kill"
+    );
+    let killed_run: Vec<String> = before
+        .values()
+        .map(|t| serde_json::from_str::<Value>(t).unwrap()["run_id"].to_string())
+        .collect();
+    assert!(killed_run.windows(2).all(|w| w[0] == w[1]), "one run");
+
+    // Rerun: completes the sweep, reuses every completed answer untouched.
+    let rerun = dir.orbitcnf().args(args(&store)).run();
+    rerun.code(0);
+    let rerun = rerun.json();
+    let after = answer_files(&store);
+    assert_eq!(after.len(), 5);
+    for (name, text) in &before {
+        assert_eq!(
+            after.get(name),
+            Some(text),
+            "{name} was rewritten by the rerun"
+        );
+    }
+    let reused: Vec<u64> = rows(&rerun)
+        .iter()
+        .filter(|r| r["reused"] == true)
+        .map(|r| r["period"].as_u64().unwrap())
+        .collect();
+    assert_eq!(reused.len(), before.len(), "reused periods {reused:?}");
+    for r in rows(&rerun) {
+        let from_killed = r["answer"]["run_id"].to_string() == killed_run[0];
+        assert_eq!(r["reused"] == true, from_killed, "row {r}");
+    }
+
+    // The same report as an uninterrupted run.
+    let fresh = dir.orbitcnf().args(args(&dir.path("fresh"))).run();
+    fresh.code(0);
+    assert_eq!(essentials(&rerun), essentials(&fresh.json()));
+}
+
+#[test]
+fn spectrum_unknowns_are_kept_and_retried_only_with_larger_limits() {
+    let dir = TestDir::new();
+    let base = [
+        "spectrum",
+        "--dim",
+        "2",
+        "--grid=-1..1",
+        "--periods",
+        "3..6",
+    ];
+    let small = dir
+        .orbitcnf()
+        .args(base)
+        .args(["--max-clauses", "10", "--json"])
+        .run();
+    small.code(2);
+    let small = small.json();
+    let verdicts: Vec<&str> = rows(&small)
+        .iter()
+        .map(|r| r["verdict"].as_str().unwrap())
+        .collect();
+    assert_eq!(verdicts, ["feasible", "feasible", "unknown", "unknown"]);
+    assert!(
+        rows(&small)[2]["certificate"]
+            .as_str()
+            .unwrap()
+            .contains("too large")
+    );
+    // Same limits: the unknowns are reused, not retried.
+    let same = dir
+        .orbitcnf()
+        .args(base)
+        .args(["--max-clauses", "10", "--json"])
+        .run();
+    same.code(2);
+    assert_eq!(same.json()["summary"]["reused"], 4);
+    // Larger limits: retried and decided.
+    let larger = dir.orbitcnf().args(base).arg("--json").run();
+    larger.code(0);
+    let larger = larger.json();
+    assert_eq!(larger["summary"]["reused"], 2);
+    assert_eq!(rows(&larger)[2]["verdict"], "infeasible");
+    assert_eq!(rows(&larger)[3]["verdict"], "infeasible");
+}
+
+/// Writes a copy of the stored answer `a` under other options with verdict
+/// `verdict` and run id `run`, with the key and file name it needs.
+fn forge(store: &Path, a: &Value, verdict: &str, run: &str) -> PathBuf {
+    let mut f: orbitcnf::store::Answer = serde_json::from_value(a.clone()).unwrap();
+    f.options.count = !f.options.count;
+    f.verdict = match verdict {
+        "feasible" => orbitcnf::Verdict::Feasible,
+        _ => orbitcnf::Verdict::Infeasible,
+    };
+    f.run_id = run.into();
+    f.key = orbitcnf::store::key(&f.question, &f.options);
+    let path = store.join("answers").join(format!("{}.json", f.key));
+    std::fs::write(&path, serde_json::to_string_pretty(&f).unwrap()).unwrap();
+    path
+}
+
+#[test]
+fn spectrum_reports_a_stored_contradiction_naming_both_runs() {
+    let dir = TestDir::new();
+    let base = ["spectrum", "--dim", "2", "--grid=-1..1", "--store", "r"];
+    let first = dir
+        .orbitcnf()
+        .args(base)
+        .args(["--periods", "3,5", "--json"])
+        .run();
+    first.code(0);
+    let first = first.json();
+    let infeasible5 = &rows(&first)[1]["answer"];
+    assert_eq!(infeasible5["verdict"], "infeasible");
+    let genuine_run = infeasible5["run_id"].as_str().unwrap().to_string();
+
+    // Another stored answer to the same question (other options) says feasible.
+    let forged = forge(&dir.path("r"), infeasible5, "feasible", "forged-run-1");
+    let run = dir.orbitcnf().args(base).args(["--periods", "5"]).run();
+    run.code(ERROR)
+        .stderr_has("CONTRADICTION")
+        .stderr_has("p = 5");
+    run.stderr_has(&genuine_run).stderr_has("forged-run-1");
+    run.stderr_has("infeasible by solver")
+        .stderr_has("feasible by solver");
+    std::fs::remove_file(forged).unwrap();
+
+    // A stored answer that contradicts the construction (the genuine one removed).
+    let feasible3 = &rows(&first)[0]["answer"];
+    let genuine = format!("r/answers/{}.json", feasible3["key"].as_str().unwrap());
+    std::fs::remove_file(dir.path(&genuine)).unwrap();
+    forge(&dir.path("r"), feasible3, "infeasible", "forged-run-2");
+    let run = dir.orbitcnf().args(base).args(["--periods", "3"]).run();
+    run.code(ERROR)
+        .stderr_has("CONTRADICTION")
+        .stderr_has("forged-run-2");
+    run.stderr_has("exists by construction");
+}

@@ -24,7 +24,6 @@
 use super::{Encoder, Term, points};
 use crate::cnf::FamilyCount;
 use crate::question::Question;
-use crate::varmap::Meaning;
 
 /// The family's label.
 pub const FAMILY: &str = "count-occupancy";
@@ -33,17 +32,7 @@ pub const FAMILY: &str = "count-occupancy";
 pub fn add(e: &mut Encoder, q: &Question) {
     let p = q.period;
     let pts: Vec<Vec<i64>> = q.grid.points().collect();
-    let mut index = 0u64;
-    let mut aux = |e: &mut Encoder| {
-        index += 1;
-        Term::Lit(
-            e.var(Meaning::Aux {
-                family: FAMILY.into(),
-                index,
-            })
-            .pos(),
-        )
-    };
+    let aux = |e: &mut Encoder| e.aux(FAMILY);
     let mut occ = Vec::with_capacity(pts.len());
     for z in &pts {
         let o = aux(e);

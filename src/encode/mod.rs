@@ -312,6 +312,19 @@ impl Encoder {
         v
     }
 
+    /// A fresh auxiliary variable of `family`, numbered by the map's size so
+    /// that its meaning is unique.
+    pub fn aux(&mut self, family: &str) -> Term {
+        let index = self.map.len() as u64;
+        Term::Lit(
+            self.var(Meaning::Aux {
+                family: family.to_string(),
+                index,
+            })
+            .pos(),
+        )
+    }
+
     /// The variable registered with meaning `m`.
     ///
     /// # Panics

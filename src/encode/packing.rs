@@ -43,7 +43,6 @@ use super::{Encoder, Term, points, profile};
 use crate::cnf::FamilyCount;
 use crate::grid::Grid;
 use crate::question::Question;
-use crate::varmap::Meaning;
 
 /// The family's label.
 pub const FAMILY: &str = "pack-window";
@@ -92,17 +91,7 @@ fn distinct(weights: &[u64]) -> Vec<u64> {
 pub fn add(e: &mut Encoder, q: &Question) {
     let pts: Vec<Vec<i64>> = q.grid.points().collect();
     let p = q.period;
-    let mut index = 0u64;
-    let mut fresh = |e: &mut Encoder| {
-        index += 1;
-        Term::Lit(
-            e.var(Meaning::Aux {
-                family: FAMILY.into(),
-                index,
-            })
-            .pos(),
-        )
-    };
+    let fresh = |e: &mut Encoder| e.aux(FAMILY);
     for t in thresholds(q) {
         let (total, weights) = windows(&q.grid, t);
         let values = distinct(&weights);

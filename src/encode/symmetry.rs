@@ -38,7 +38,6 @@ use crate::cnf::FamilyCount;
 use crate::grid::{Grid, Point};
 use crate::isometry::{self, index_of, type_key};
 use crate::question::Question;
-use crate::varmap::Meaning;
 
 /// Label of step 1.
 pub const TRANSLATE: &str = "sym-translate";
@@ -162,7 +161,6 @@ pub fn count_translate(q: &Question) -> FamilyCount {
 pub fn add_multiplier(e: &mut Encoder, q: &Question) {
     let k_max = q.period / 2;
     let l = q.grid.diameter() as i64;
-    let mut index = 0u64;
     for map in multiplier_maps(q.period) {
         let mut eq_prev = Term::True;
         for k in 1..=k_max {
@@ -170,14 +168,7 @@ pub fn add_multiplier(e: &mut Encoder, q: &Question) {
             let last = k == k_max;
             if h == k {
                 if !last {
-                    index += 1;
-                    let eq = Term::Lit(
-                        e.var(Meaning::Aux {
-                            family: MULTIPLIER.into(),
-                            index,
-                        })
-                        .pos(),
-                    );
+                    let eq = e.aux(MULTIPLIER);
                     e.clause(&[!eq_prev, eq]);
                     eq_prev = eq;
                 }
@@ -188,14 +179,7 @@ pub fn add_multiplier(e: &mut Encoder, q: &Question) {
                 e.clause(&[!eq_prev, !gk, hk]);
             }
             if !last {
-                index += 1;
-                let eq = Term::Lit(
-                    e.var(Meaning::Aux {
-                        family: MULTIPLIER.into(),
-                        index,
-                    })
-                    .pos(),
-                );
+                let eq = e.aux(MULTIPLIER);
                 for v in 1..=l {
                     let (g0, g1) = (profile::ge(e, q, k, v), profile::ge(e, q, k, v + 1));
                     let (h0, h1) = (profile::ge(e, q, h, v), profile::ge(e, q, h, v + 1));
@@ -240,17 +224,7 @@ pub fn count_multiplier(q: &Question) -> FamilyCount {
 pub fn add_rotate(e: &mut Encoder, q: &Question) {
     let (ranks, n) = type_ranks(&q.grid);
     let pts: Vec<Point> = q.grid.points().collect();
-    let mut index = 0u64;
-    let mut fresh = |e: &mut Encoder| {
-        index += 1;
-        Term::Lit(
-            e.var(Meaning::Aux {
-                family: ROTATE.into(),
-                index,
-            })
-            .pos(),
-        )
-    };
+    let fresh = |e: &mut Encoder| e.aux(ROTATE);
     // b[t]: x_0 has rank ≥ t, for t = 1..n-1 (index 0 unused).
     let mut b = vec![Term::True; n];
     for slot in b.iter_mut().skip(1) {

@@ -43,7 +43,9 @@ use std::rc::Rc;
 use std::time::{Duration, Instant};
 
 use varisat::solver::SolverError;
-use varisat::{ExtendFormula, ProofFormat, Solver};
+#[cfg(test)]
+use varisat::ExtendFormula;
+use varisat::{ProofFormat, Solver};
 use varisat_lrat::WriteLrat;
 
 use super::lrat::{LratOptions, LratSummary, check_lrat_with};
@@ -163,16 +165,7 @@ pub fn solve_with_proof_sinks(
                 ProofFormat::BinaryDrat,
             );
         }
-        let mut buf: Vec<varisat::Lit> = Vec::new();
-        for clause in cnf.clauses() {
-            buf.clear();
-            buf.extend(
-                clause
-                    .iter()
-                    .map(|l| varisat::Lit::from_dimacs(l.dimacs() as isize)),
-            );
-            solver.add_clause(&buf);
-        }
+        crate::solve::bundled::load(&mut solver, cnf);
         answer = solver.solve();
         if let Ok(true) = answer {
             model = solver.model();

@@ -38,16 +38,7 @@ impl Backend for Bundled {
         let (meter, learned, timed_out) = Meter::new(start, limits, None);
         let mut solver = Solver::new();
         solver.write_proof(meter, ProofFormat::BinaryDrat);
-        let mut buf: Vec<varisat::Lit> = Vec::new();
-        for clause in cnf.clauses() {
-            buf.clear();
-            buf.extend(
-                clause
-                    .iter()
-                    .map(|l| varisat::Lit::from_dimacs(l.dimacs() as isize)),
-            );
-            solver.add_clause(&buf);
-        }
+        load(&mut solver, cnf);
         let answer = solver.solve();
         let outcome = match answer {
             Ok(true) => {
@@ -84,6 +75,21 @@ impl Backend for Bundled {
             },
             proof: None,
         })
+    }
+}
+
+/// Adds every clause of `cnf` to `solver`, in order (so clause `i` keeps
+/// position `i`, which the LRAT numbering relies on).
+pub(crate) fn load(solver: &mut Solver<'_>, cnf: &Cnf) {
+    let mut buf: Vec<varisat::Lit> = Vec::new();
+    for clause in cnf.clauses() {
+        buf.clear();
+        buf.extend(
+            clause
+                .iter()
+                .map(|l| varisat::Lit::from_dimacs(l.dimacs() as isize)),
+        );
+        solver.add_clause(&buf);
     }
 }
 

@@ -43,8 +43,6 @@ use std::rc::Rc;
 use std::time::{Duration, Instant};
 
 use varisat::solver::SolverError;
-#[cfg(test)]
-use varisat::ExtendFormula;
 use varisat::{ProofFormat, Solver};
 use varisat_lrat::WriteLrat;
 
@@ -436,6 +434,7 @@ mod tests {
     use crate::cnf::Lit;
     use crate::proof::lrat::{LratError, LratFormat, LratReason, check_lrat};
     use crate::proof::testgen::{dimacs, php, random_3sat};
+    use varisat::ExtendFormula;
 
     fn strict() -> LratOptions {
         LratOptions {

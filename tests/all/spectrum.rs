@@ -240,9 +240,9 @@ fn spectrum_survives_sigkill_without_losing_or_recomputing_answers() {
         4,
         "p = 6..9 stored, p = 10 lost with the kill"
     );
-    let killed_run: Vec<String> = before
+    let killed_run: Vec<Value> = before
         .values()
-        .map(|t| serde_json::from_str::<Value>(t).unwrap()["run_id"].to_string())
+        .map(|t| serde_json::from_str::<Value>(t).unwrap()["run_id"].clone())
         .collect();
     assert!(killed_run.windows(2).all(|w| w[0] == w[1]), "one run");
 
@@ -266,7 +266,7 @@ fn spectrum_survives_sigkill_without_losing_or_recomputing_answers() {
         .collect();
     assert_eq!(reused.len(), before.len(), "reused periods {reused:?}");
     for r in rows(&rerun) {
-        let from_killed = r["answer"]["run_id"].to_string() == killed_run[0];
+        let from_killed = r["answer"]["run_id"] == killed_run[0];
         assert_eq!(r["reused"] == true, from_killed, "row {r}");
     }
 

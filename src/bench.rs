@@ -1,12 +1,16 @@
 //! The benchmark: a fixed set of questions solved under several encodings in one run.
 //!
-//! Each case is solved with the default encoding, with `--symmetry none`
+//! Each case is solved with the default encoding, without the
+//! subgroup-profile clauses (`--no-classes`), with `--symmetry none`
 //! (redundant constraints kept) and with the plain reference encoding (no
 //! symmetry breaking, no redundant constraints), each under a time limit; the
 //! report prints time and conflicts per run and the ratios of the baselines to
 //! the default. Every answer goes through the same checked pipeline as
 //! `decide`, so a benchmark run is also a consistency check: a verdict that
 //! differs between encodings is reported as an error.
+//!
+//! [`run_spectrum`] times the whole spectrum of `{−1,0,1}^4` (`p = 1..32`)
+//! the way `orbitcnf spectrum` runs it, without a store, against its target.
 
 use std::time::Duration;
 
@@ -56,8 +60,10 @@ pub fn cases(quick: bool) -> Vec<Case> {
         case("t4-p17", "-1..1", 4, 17, Some(20.0)),
     ];
     if !quick {
-        v.push(case("t4-p18", "-1..1", 4, 18, None));
-        v.push(case("t4-p20", "-1..1", 4, 20, None));
+        v.push(case("t4-p18", "-1..1", 4, 18, Some(60.0)));
+        v.push(case("t4-p20", "-1..1", 4, 20, Some(60.0)));
+        v.push(case("t4-p21", "-1..1", 4, 21, Some(60.0)));
+        v.push(case("t4-p24", "-1..1", 4, 24, Some(60.0)));
     }
     v
 }
@@ -65,7 +71,7 @@ pub fn cases(quick: bool) -> Vec<Case> {
 /// One solve of one case under one encoding.
 #[derive(Clone, Debug, Serialize)]
 pub struct Run {
-    /// The encoding's name: `default`, `symmetry-none` or `plain`.
+    /// The encoding's name: `default`, `no-classes`, `symmetry-none` or `plain`.
     pub encoding: String,
     /// The verdict.
     pub verdict: Verdict,
@@ -106,10 +112,18 @@ pub struct ProofCost {
     pub steps: u64,
 }
 
-/// The encodings compared: the default and the two baselines.
+/// The encodings compared: the default and three baselines (the default
+/// without the subgroup-profile clauses, without symmetry breaking, and plain).
 pub fn encodings() -> Vec<(&'static str, EncodeOptions)> {
     vec![
         ("default", EncodeOptions::default()),
+        (
+            "no-classes",
+            EncodeOptions {
+                classes: false,
+                ..EncodeOptions::default()
+            },
+        ),
         (
             "symmetry-none",
             EncodeOptions {
@@ -203,18 +217,24 @@ pub fn run_case(case: &Case, limit: Duration, baselines: bool) -> Result<Row> {
 /// The table header of [`format_row`].
 pub fn header() -> String {
     format!(
-        "{:<8} {:<11} {:>9} {:>10} {:>7} | {:>9} {:>10} {:>8} | {:>9} {:>10} {:>8}",
+        "{:<8} {:<11} {:>9} {:>10} {:>7} | {:>9} {:>10} {:>8} | {:>9} {:>10} {:>8} | {:>9} {:>10} {:>8} | {:>9} {:>8} {:>10}",
         "case",
         "verdict",
         "default s",
         "conflicts",
         "target",
+        "no-class",
+        "conflicts",
+        "ratio",
         "sym-none",
         "conflicts",
         "ratio",
         "plain s",
         "conflicts",
-        "ratio"
+        "ratio",
+        "LRAT s",
+        "check s",
+        "MB"
     )
 }
 
@@ -266,7 +286,7 @@ pub fn format_row(row: &Row) -> String {
         line.push_str(" | ");
         line.push_str(&fmt_run(r));
     }
-    for _ in row.runs.len()..3 {
+    for _ in row.runs.len()..4 {
         line.push_str(&format!(" | {:>9} {:>10} {:>8}", "-", "-", "-"));
     }
     if let Some(p) = &row.proof {
@@ -278,4 +298,97 @@ pub fn format_row(row: &Row) -> String {
         ));
     }
     line
+}
+
+/// The wall-time target of the `{−1,0,1}^4` spectrum, in seconds.
+pub const SPECTRUM_TARGET_SECONDS: f64 = 900.0;
+
+/// The figures of one timed spectrum.
+#[derive(Clone, Debug, Serialize)]
+pub struct SpectrumFigures {
+    /// The grid swept.
+    pub grid: String,
+    /// The periods swept.
+    pub periods: String,
+    /// Worker threads.
+    pub jobs: usize,
+    /// Wall-clock seconds for the whole sweep.
+    pub seconds: f64,
+    /// The target.
+    pub target_seconds: f64,
+    /// Periods answered by construction, by the solver, and left unknown.
+    pub by_construction: usize,
+    /// Periods answered by the solver (each infeasible one with a checked LRAT proof).
+    pub by_solver: usize,
+    /// Periods left unknown.
+    pub unknown: usize,
+    /// Periods the solver answered "infeasible" without a checked proof (must be 0).
+    pub uncertified: usize,
+    /// The slowest solver period and its seconds.
+    pub slowest: Option<(usize, f64)>,
+}
+
+/// Sweeps `{−1,0,1}^4` over `p = 1..32` with `jobs` workers and `limit` per
+/// period, without a store, and reports the figures.
+///
+/// # Errors
+/// Pipeline errors of the sweep.
+pub fn run_spectrum(jobs: usize, limit: Duration) -> Result<SpectrumFigures> {
+    let grid = Grid::parse("-1..1", Some(4)).expect("valid grid");
+    let mut cfg = crate::spectrum::SweepConfig::new(grid);
+    cfg.jobs = jobs.max(1);
+    cfg.time_limit = Some(limit);
+    cfg.progress = true;
+    let start = std::time::Instant::now();
+    let sp = crate::spectrum::run(&cfg)?;
+    let seconds = start.elapsed().as_secs_f64();
+    let uncertified = sp
+        .rows
+        .iter()
+        .filter(|r| {
+            r.verdict == Verdict::Infeasible
+                && r.answer.backing != crate::store::Backing::CheckedProof
+        })
+        .count();
+    let slowest = sp
+        .rows
+        .iter()
+        .filter(|r| r.how == crate::store::How::Solver)
+        .map(|r| (r.period, r.seconds))
+        .max_by(|a, b| a.1.total_cmp(&b.1));
+    Ok(SpectrumFigures {
+        grid: sp.grid.clone(),
+        periods: crate::spectrum::ranges_words(&cfg.periods),
+        jobs: cfg.jobs,
+        seconds,
+        target_seconds: SPECTRUM_TARGET_SECONDS,
+        by_construction: sp.summary.by_construction,
+        by_solver: sp.summary.by_solver,
+        unknown: sp.summary.unknown,
+        uncertified,
+        slowest,
+    })
+}
+
+/// One line for [`SpectrumFigures`].
+pub fn format_spectrum(f: &SpectrumFigures) -> String {
+    let decided = f.by_construction + f.by_solver;
+    let ok = f.unknown == 0 && f.uncertified == 0 && f.seconds <= f.target_seconds;
+    format!(
+        "spectrum {} p = {}, {} job(s): {:.1} s wall ({} {} s); {} decided ({} by construction, {} by the solver with checked proofs), {} unknown, {} uncertified{}",
+        f.grid,
+        f.periods,
+        f.jobs,
+        f.seconds,
+        if ok { "ok" } else { "MISS" },
+        f.target_seconds,
+        decided,
+        f.by_construction,
+        f.by_solver,
+        f.unknown,
+        f.uncertified,
+        f.slowest
+            .map(|(p, s)| format!("; slowest p = {p} in {s:.1} s"))
+            .unwrap_or_default()
+    )
 }

@@ -122,7 +122,8 @@ struct CheckBundleArgs {
 
 #[derive(Args, Debug)]
 struct BenchArgs {
-    /// Leave out the cases that take minutes ({-1,0,1}^4 with p = 18 and 20).
+    /// Leave out the cases whose baselines take minutes ({-1,0,1}^4 with
+    /// p = 18, 20, 21 and 24).
     #[arg(long)]
     quick: bool,
     /// Time limit per run, in seconds; a baseline that hits it shows `>LIMIT`.
@@ -137,6 +138,14 @@ struct BenchArgs {
     /// Print one JSON object per case (JSON Lines) instead of the table.
     #[arg(long)]
     json: bool,
+    /// Instead of the cases: time the whole spectrum of {-1,0,1}^4
+    /// (p = 1..32, every answer certified) with --jobs workers, against its
+    /// 15-minute target.
+    #[arg(long)]
+    spectrum: bool,
+    /// Worker threads for --spectrum (default: the number of cores).
+    #[arg(long, value_name = "N")]
+    jobs: Option<usize>,
 }
 
 #[derive(Args, Debug)]
@@ -190,6 +199,12 @@ struct EncodingArgs {
     /// "too many pairwise far points" by weighted counting over windows).
     #[arg(long)]
     no_packing: bool,
+    /// Leave out the exclusion of impossible subgroup profiles (on by
+    /// default; one clause per profile whose close offsets are the multiples
+    /// of a divisor of p and which the window count rules out; see
+    /// encodings/redundant.md).
+    #[arg(long)]
+    no_classes: bool,
 }
 
 impl EncodingArgs {
@@ -198,6 +213,7 @@ impl EncodingArgs {
             symmetry: Symmetry::parse(&self.symmetry)?,
             count: !self.no_count,
             packing: !self.no_packing,
+            classes: !self.no_classes,
             ..EncodeOptions::default()
         })
     }
@@ -525,6 +541,17 @@ fn verify_proof(a: VerifyProofArgs) -> Result<u8, Error> {
 }
 
 fn bench(a: BenchArgs) -> Result<u8, Error> {
+    if a.spectrum {
+        let jobs = a.jobs.unwrap_or_else(orbitcnf::spectrum::default_jobs);
+        let f = orbitcnf::bench::run_spectrum(jobs, a.time_limit)?;
+        let line = if a.json {
+            serde_json::to_string(&f).expect("serialises")
+        } else {
+            orbitcnf::bench::format_spectrum(&f)
+        };
+        print(&format!("{line}\n"))?;
+        return Ok(0);
+    }
     let mut cases = orbitcnf::bench::cases(a.quick);
     if let Some(only) = &a.only {
         let names: Vec<&str> = only.split(',').map(str::trim).collect();

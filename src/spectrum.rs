@@ -1047,7 +1047,7 @@ impl Spectrum {
 
     fn options_words(&self) -> String {
         format!(
-            "{} (symmetry {}, count {}, packing {})",
+            "{} (symmetry {}, count {}, packing {}, classes {})",
             self.options.formulation,
             if self.options.symmetry == Symmetry::ALL {
                 "all".to_string()
@@ -1055,7 +1055,8 @@ impl Spectrum {
                 self.options.symmetry.names()
             },
             if self.options.count { "on" } else { "off" },
-            if self.options.packing { "on" } else { "off" }
+            if self.options.packing { "on" } else { "off" },
+            if self.options.classes { "on" } else { "off" }
         )
     }
 

@@ -222,7 +222,7 @@ impl Answer {
     /// The answer in words for messages: verdict, how, run, time, version.
     pub fn describe(&self) -> String {
         format!(
-            "{} by {} (run {}, finished {}, orbitcnf {}, symmetry {}, count {}, packing {})",
+            "{} by {} (run {}, finished {}, orbitcnf {}, symmetry {}, count {}, packing {}, classes {})",
             self.verdict.word(),
             self.how.word(),
             self.run_id,
@@ -230,7 +230,8 @@ impl Answer {
             self.tool_version,
             self.options.symmetry.names(),
             on_off(self.options.count),
-            on_off(self.options.packing)
+            on_off(self.options.packing),
+            on_off(self.options.classes)
         )
     }
 }

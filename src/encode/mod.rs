@@ -16,6 +16,7 @@
 //! [`VarMap`]; the same formula then feeds the bundled solver or the DIMACS
 //! writer, so `encode` writes exactly what `decide` solves.
 
+pub mod classes;
 pub mod coords;
 pub mod count;
 pub mod distance;
@@ -179,6 +180,10 @@ pub struct EncodeOptions {
     pub count: bool,
     /// The redundant weighted packing bound ([`packing`]).
     pub packing: bool,
+    /// The exclusion of impossible subgroup profiles ([`classes`]). Absent
+    /// in headers written before the family existed, which read as off.
+    #[serde(default)]
+    pub classes: bool,
 }
 
 impl Default for EncodeOptions {
@@ -189,6 +194,7 @@ impl Default for EncodeOptions {
             symmetry: Symmetry::ALL,
             count: true,
             packing: true,
+            classes: true,
         }
     }
 }
@@ -201,6 +207,7 @@ impl EncodeOptions {
             symmetry: Symmetry::NONE,
             count: false,
             packing: false,
+            classes: false,
         }
     }
 
@@ -213,6 +220,7 @@ impl EncodeOptions {
         if !point_eq_ok {
             o.count = false;
             o.packing = false;
+            o.classes = false;
             o.symmetry.rotate = false;
             o.symmetry.isometry = false;
         }
@@ -380,6 +388,9 @@ pub fn estimate(q: &Question, options: &EncodeOptions) -> Vec<FamilyCount> {
     if o.packing {
         out.push(packing::count(q));
     }
+    if o.classes {
+        out.push(classes::count(q));
+    }
     if s.translate {
         out.push(symmetry::count_translate(q));
     }
@@ -447,6 +458,9 @@ pub fn encode(q: &Question, options: &EncodeOptions, max_clauses: u64) -> Result
     }
     if o.packing {
         enc.family(packing::FAMILY, |e| packing::add(e, q));
+    }
+    if o.classes {
+        enc.family(classes::FAMILY, |e| classes::add(e, q));
     }
     if s.translate {
         enc.family(symmetry::TRANSLATE, |e| symmetry::add_translate(e, q));

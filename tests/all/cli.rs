@@ -176,7 +176,13 @@ fn a_time_limit_gives_unknown_with_exit_0() {
     assert_times_out(
         &dir,
         "1",
-        &["--symmetry", "none", "--no-count", "--no-packing"],
+        &[
+            "--symmetry",
+            "none",
+            "--no-count",
+            "--no-packing",
+            "--no-classes",
+        ],
     );
     // The text form says so too.
     let run = dir
@@ -198,7 +204,13 @@ fn every_encoding_option_gives_checked_answers() {
         &[],
         &["--symmetry", "all"],
         &["--symmetry", "none"],
-        &["--symmetry", "none", "--no-count", "--no-packing"],
+        &[
+            "--symmetry",
+            "none",
+            "--no-count",
+            "--no-packing",
+            "--no-classes",
+        ],
         &["--no-count"],
         &["--no-packing"],
         &["--symmetry", "translate"],

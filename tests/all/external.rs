@@ -4,14 +4,15 @@
 //!
 //! Each question is encoded twice: with the default options (symmetry
 //! breaking and redundant constraints) and in the plain formulation
-//! (`--symmetry none --no-count --no-packing`), so that an external solver
+//! (`--symmetry none --no-count --no-packing --no-classes`), so that an external solver
 //! also checks that the additions change no verdict.
 //!
 //! A missing solver skips the test with a note, unless the environment
 //! variable `CI` is set: then the test fails, since `.ci/run` installs them.
 
 use crate::util::{
-    Expect, FEASIBLE, INFEASIBLE, Q, Run, TestDir, UNKNOWN, assert_decides, check_report, have_tool,
+    Expect, FEASIBLE, INFEASIBLE, PLAIN, Q, Run, TestDir, UNKNOWN, assert_decides, check_report,
+    have_tool,
 };
 
 /// Questions with known answers that the bundled solver decides in well under a second.
@@ -31,9 +32,6 @@ fn cases() -> Vec<(Q, Expect)> {
         (Q::cube(-1, 1, 4, 16), Expect::Feasible),
     ]
 }
-
-/// The plain formulation's options.
-const PLAIN: &[&str] = &["--symmetry", "none", "--no-count", "--no-packing"];
 
 /// Encodes `q` with `encode_args`, runs `solver` on the file, and decodes the solver's output.
 /// The solver's exit code and its decoded verdict must both be `expect`

@@ -21,12 +21,9 @@ use std::time::{Duration, Instant};
 use serde_json::Value;
 
 use crate::util::{
-    ERROR, FEASIBLE, INFEASIBLE, Q, TestDir, UNKNOWN, assert_isometric_cycle, bin, check_report,
-    have_tool, orbit_of,
+    ERROR, FEASIBLE, INFEASIBLE, PLAIN, Q, TestDir, UNKNOWN, assert_isometric_cycle, bin,
+    check_report, have_tool, orbit_of,
 };
-
-/// The plain formulation's options (no symmetry breaking, no redundant constraints).
-const PLAIN: &[&str] = &["--symmetry", "none", "--no-count", "--no-packing"];
 
 /// `orbitcnf split` of `q` into about `cubes` cubes in `dir/name`; returns the manifest.
 fn split(dir: &TestDir, q: &Q, cubes: usize, name: &str) -> Value {

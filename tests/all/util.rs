@@ -36,6 +36,15 @@ pub const UNKNOWN: i32 = 0;
 /// Exit code of an error.
 pub const ERROR: i32 = 1;
 
+/// The plain formulation's options (no symmetry breaking, no redundant constraints).
+pub const PLAIN: &[&str] = &[
+    "--symmetry",
+    "none",
+    "--no-count",
+    "--no-packing",
+    "--no-classes",
+];
+
 /// The path of the binary under test.
 pub fn bin() -> &'static str {
     env!("CARGO_BIN_EXE_orbitcnf")

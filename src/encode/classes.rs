@@ -1,0 +1,231 @@
+//! Family `pack-classes`: profiles whose close offsets form a subgroup.
+//!
+//! Fix a threshold `t` and call an offset `k` *close* when `g(k) ≤ t` and
+//! *far* otherwise. Suppose that for some `d | p`, `1 ≤ d < p`, the close
+//! offsets are exactly the nonzero multiples of `d`. Then the positions fall
+//! into `d` residue classes of `s = p/d` points each, with every pair inside a
+//! class close and every pair across classes far. Inside a class the points
+//! are pairwise within `t`, so (coordinate by coordinate, since a set of
+//! values of spread at most `t` fits one interval of length `t`) they lie in
+//! one window of side `t` (see [`super::packing`]); across classes no window
+//! holds two points. So the sets of windows the classes meet are disjoint, and
+//! if `c_t(s)` is the least number of windows that `s` distinct points of one
+//! window can meet together,
+//!
+//! ```text
+//!     d · c_t(p/d)  ≤  W_t.
+//! ```
+//!
+//! When this fails the profile is impossible and one clause says so:
+//! `⋁_{d∤k} ¬G[k,t+1] ∨ ⋁_{d|k} G[k,t+1]` over `1 ≤ k ≤ ⌊p/2⌋`.
+//!
+//! On `{−1,0,1}^n` with `t = 1` the windows are the corner boxes, a point `z`
+//! lies in the windows of the corners `v` that agree with `z` where `z ≠ 0`,
+//! and the points of the window of `v` correspond to subsets of coordinates
+//! (their zero sets). `s` distinct points of that window meet the windows of
+//! the down-closure of their zero sets, which has at least `s` members, so
+//! `c_1(s) = s` and every subgroup profile with `p > 2^n` is impossible: for
+//! `d = 1` (all distances 1) this is the pigeonhole principle, for `p = 18`,
+//! `n = 4` it also rules out "distance 1 exactly at even offsets" (two classes
+//! of 9), "at multiples of 3" and "at multiples of 6". Resolution needs
+//! exponentially long refutations of such pigeonhole cores; one clause per
+//! profile spares the solver from finding them.
+//!
+//! `c_t(s)` is not computed as a number: [`classes_meet_at_least`] decides
+//! `c_t(s) ≥ ⌊W_t/d⌋ + 1` by a depth-first search over the points of each
+//! window that stops as soon as the windows met reach that bound. The search
+//! has a node budget; when it runs out the bound is taken as unproven and no
+//! clause is added, which keeps the family sound.
+//!
+//! Variables: none. Clauses: one per pair `(t, d)`, `1 ≤ t < L` with
+//! `W_t ≤` [`packing::MAX_WINDOWS`], `d | p`, `d < p`, for which the search
+//! proves the bound; [`count`] runs the same search.
+//!
+//! Soundness: each clause is the negation of a profile that the inequality
+//! above rules out on every isometric cycle, so no solution is lost.
+
+use super::{Encoder, packing, profile};
+use crate::cnf::FamilyCount;
+use crate::question::Question;
+
+/// The family's label.
+pub const FAMILY: &str = "pack-classes";
+
+/// Nodes the window search may visit for one `(t, d)` before giving up.
+const SEARCH_BUDGET: u64 = 2_000_000;
+
+/// The pairs `(t, d)` for which the family adds a clause.
+pub fn ruled_out(q: &Question) -> Vec<(u64, usize)> {
+    let p = q.period;
+    if p < 2 {
+        return Vec::new();
+    }
+    let mut out = Vec::new();
+    for t in 1..q.grid.diameter() {
+        let (total, _) = packing::windows(&q.grid, t);
+        if total > packing::MAX_WINDOWS {
+            continue;
+        }
+        let sets = packing::window_sets(&q.grid, t);
+        for d in (1..p).filter(|d| p % d == 0) {
+            let need = total / d as u64 + 1;
+            if classes_meet_at_least(&sets, total, p / d, need) {
+                out.push((t, d));
+            }
+        }
+    }
+    out
+}
+
+/// Adds one clause per profile ruled out by [`ruled_out`].
+pub fn add(e: &mut Encoder, q: &Question) {
+    for (t, d) in ruled_out(q) {
+        let clause: Vec<_> = (1..=q.period / 2)
+            .map(|k| {
+                let far = profile::ge(e, q, k, t as i64 + 1);
+                if k % d == 0 { far } else { !far }
+            })
+            .collect();
+        e.clause(&clause);
+    }
+}
+
+/// Whether every `s` distinct grid points lying in one common window meet at
+/// least `need` windows together. `sets[z]` lists the windows containing
+/// grid point `z`; `windows` is their number. `false` when some `s` points of
+/// a window meet fewer, when no window holds `s` points is `true`, and
+/// `false` as well when the search exceeds its budget (unproven).
+pub fn classes_meet_at_least(sets: &[Vec<u32>], windows: u64, s: usize, need: u64) -> bool {
+    if need <= 1 || s == 0 {
+        return need <= 1;
+    }
+    let words = (windows as usize).div_ceil(64);
+    let masks: Vec<Vec<u64>> = sets
+        .iter()
+        .map(|ids| {
+            let mut m = vec![0u64; words];
+            for &w in ids {
+                m[w as usize / 64] |= 1 << (w % 64);
+            }
+            m
+        })
+        .collect();
+    let mut budget = SEARCH_BUDGET;
+    for w0 in 0..windows as u32 {
+        let inside: Vec<usize> = (0..sets.len())
+            .filter(|&z| sets[z].binary_search(&w0).is_ok())
+            .collect();
+        if inside.len() < s {
+            continue;
+        }
+        let mut union = vec![0u64; words];
+        match fewer_exists(&masks, &inside, 0, s, need, &mut union, &mut budget) {
+            Some(false) => {}
+            Some(true) | None => return false,
+        }
+    }
+    true
+}
+
+/// Depth-first: can `left` more points from `inside[from..]` be added to the
+/// current `union` keeping it below `need` windows? `None` when out of budget.
+fn fewer_exists(
+    masks: &[Vec<u64>],
+    inside: &[usize],
+    from: usize,
+    left: usize,
+    need: u64,
+    union: &mut Vec<u64>,
+    budget: &mut u64,
+) -> Option<bool> {
+    if left == 0 {
+        return Some(true);
+    }
+    for idx in from..inside.len() {
+        if inside.len() - idx < left {
+            break;
+        }
+        *budget = budget.checked_sub(1)?;
+        let saved = union.clone();
+        for (u, m) in union.iter_mut().zip(&masks[inside[idx]]) {
+            *u |= m;
+        }
+        let size: u64 = union.iter().map(|w| u64::from(w.count_ones())).sum();
+        if size < need && fewer_exists(masks, inside, idx + 1, left - 1, need, union, budget)? {
+            return Some(true);
+        }
+        *union = saved;
+    }
+    Some(false)
+}
+
+/// Exact counts of this family for `q`.
+pub fn count(q: &Question) -> FamilyCount {
+    FamilyCount {
+        family: FAMILY.into(),
+        vars: 0,
+        clauses: ruled_out(q).len() as u64,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::grid::Grid;
+
+    fn q(spec: &str, dim: usize, p: usize) -> Question {
+        Question::new(Grid::parse(spec, Some(dim)).unwrap(), p).unwrap()
+    }
+
+    #[test]
+    fn distinct_points_of_a_corner_box_meet_as_many_corner_boxes() {
+        // c_1(s) = s on {−1,0,1}^n: s points meet at least s windows, and
+        // some s points (a down-set of zero sets) meet exactly s.
+        let g = Grid::parse("-1..1", Some(3)).unwrap();
+        let sets = packing::window_sets(&g, 1);
+        for s in 1..=8 {
+            assert!(classes_meet_at_least(&sets, 8, s, s as u64), "s = {s}");
+            assert!(!classes_meet_at_least(&sets, 8, s, s as u64 + 1), "s = {s}");
+        }
+    }
+
+    #[test]
+    fn subgroup_profiles_above_two_to_the_n_are_ruled_out() {
+        // p = 18 on {−1,0,1}^4: d = 1, 2, 3, 6 give 18 > 16; d = 9 gives
+        // nine classes of two, 9 · 2 = 18 > 16 as well.
+        assert_eq!(
+            ruled_out(&q("-1..1", 4, 18)),
+            vec![(1, 1), (1, 2), (1, 3), (1, 6), (1, 9)]
+        );
+        // p = 16 = 2^4 is realised, so no subgroup profile may be excluded.
+        assert_eq!(ruled_out(&q("-1..1", 4, 16)), vec![]);
+        // p = 9 on {−1,0,1}^3: d = 1 and d = 3 (3 · 3 > 8).
+        assert_eq!(ruled_out(&q("-1..1", 3, 9)), vec![(1, 1), (1, 3)]);
+        assert_eq!(count(&q("-1..1", 4, 18)).clauses, 5);
+    }
+
+    #[test]
+    fn the_family_is_active_where_cycles_exist() {
+        // The brute-force agreement tests (`soundness.rs`) only test this
+        // family if it adds clauses to questions that have solutions. On
+        // {0,1}^2 × {0,1,2} (a box those tests cover) with p = 6 there are
+        // two windows of side 1, so three classes of close pairs, far from
+        // each other, cannot exist; 6-cycles do.
+        let question = Question::new(Grid::parse("0..1,0..1,0..2", None).unwrap(), 6).unwrap();
+        assert_eq!(ruled_out(&question), vec![(1, 3)]);
+        assert!(crate::brute::find_cycle(question.grid.ranges(), 6).is_some());
+    }
+
+    #[test]
+    fn the_clause_reads_the_profile() {
+        let question = q("-1..1", 3, 9);
+        let enc = crate::encode::encode(
+            &question,
+            &crate::encode::EncodeOptions::default(),
+            u64::MAX,
+        )
+        .unwrap();
+        let fam = enc.families.iter().find(|f| f.family == FAMILY);
+        assert_eq!(fam.map(|f| f.clauses), Some(2));
+    }
+}

@@ -6,6 +6,12 @@
 //! rotation of the indices: every cycle has a rotation whose first point is
 //! its lexicographically smallest, so the search insists on that. It is
 //! exhaustive otherwise, and meant for boxes of at most a few dozen points.
+//!
+//! The same search with the one-sided `t(y, z) = max_c (y_c − z_c)` on
+//! ordered pairs in place of the norm finds periodic orbits of topical maps
+//! ([`find_topical_cycle`]): the profile then has one entry per offset
+//! `1..p−1`, and a pair at positions `l < m` fixes both `T(m − l) = t(x_l, x_m)`
+//! and `T(p − m + l) = t(x_m, x_l)`.
 
 /// Searches the box `bounds` for an isometric cycle of `p` distinct points.
 /// Returns one if it exists, `None` if none exists.
@@ -16,6 +22,24 @@ pub fn find_cycle(bounds: &[(i64, i64)], p: usize) -> Option<Vec<Vec<i64>>> {
 /// Up to `limit` isometric cycles of `p` points in the box, each starting at
 /// its lexicographically smallest point, in the order the search meets them.
 pub fn all_cycles(bounds: &[(i64, i64)], p: usize, limit: usize) -> Vec<Vec<Vec<i64>>> {
+    search(bounds, p, limit, false)
+}
+
+/// Searches the box for `p` distinct points with `t(x_i, x_{i+k})`
+/// independent of `i` for every `k`: a periodic orbit of a topical map.
+pub fn find_topical_cycle(bounds: &[(i64, i64)], p: usize) -> Option<Vec<Vec<i64>>> {
+    all_topical_cycles(bounds, p, 1).pop()
+}
+
+/// Up to `limit` topical cycles of `p` points, each starting at its
+/// lexicographically smallest point.
+pub fn all_topical_cycles(bounds: &[(i64, i64)], p: usize, limit: usize) -> Vec<Vec<Vec<i64>>> {
+    search(bounds, p, limit, true)
+}
+
+/// The search behind both kinds: `one_sided` picks `t` over ordered pairs
+/// instead of the sup-norm over unordered ones.
+fn search(bounds: &[(i64, i64)], p: usize, limit: usize, one_sided: bool) -> Vec<Vec<Vec<i64>>> {
     let mut pts = vec![Vec::with_capacity(bounds.len())];
     for &(a, b) in bounds {
         pts = pts
@@ -40,7 +64,7 @@ pub fn all_cycles(bounds: &[(i64, i64)], p: usize, limit: usize) -> Vec<Vec<Vec<
                     pts[a]
                         .iter()
                         .zip(&pts[b])
-                        .map(|(x, y)| (x - y).abs())
+                        .map(|(x, y)| if one_sided { x - y } else { (x - y).abs() })
                         .max()
                         .unwrap_or(0)
                 })
@@ -48,11 +72,20 @@ pub fn all_cycles(bounds: &[(i64, i64)], p: usize, limit: usize) -> Vec<Vec<Vec<
         })
         .collect();
     let mut seq: Vec<usize> = Vec::with_capacity(p);
-    let mut profile: Vec<i64> = vec![-1; p / 2 + 1];
+    // Unset entries are i64::MIN (a one-sided value can be negative).
+    let mut profile: Vec<i64> = vec![i64::MIN; p + 1];
     let mut found: Vec<Vec<usize>> = Vec::new();
     for first in 0..n {
         seq.push(first);
-        if extend(&dist, p, &mut seq, &mut profile, &mut found, limit) {
+        if extend(
+            &dist,
+            p,
+            one_sided,
+            &mut seq,
+            &mut profile,
+            &mut found,
+            limit,
+        ) {
             break;
         }
         seq.pop();
@@ -67,6 +100,7 @@ pub fn all_cycles(bounds: &[(i64, i64)], p: usize, limit: usize) -> Vec<Vec<Vec<
 fn extend(
     dist: &[Vec<i64>],
     p: usize,
+    one_sided: bool,
     seq: &mut Vec<usize>,
     profile: &mut Vec<i64>,
     found: &mut Vec<Vec<usize>>,
@@ -84,20 +118,26 @@ fn extend(
         }
         let saved = profile.clone();
         let mut ok = true;
-        for (l, &prev) in seq.iter().enumerate() {
+        'pairs: for (l, &prev) in seq.iter().enumerate() {
             let d = m - l;
-            let k = d.min(p - d);
-            let got = dist[prev][cand];
-            if profile[k] < 0 {
-                profile[k] = got;
-            } else if profile[k] != got {
-                ok = false;
-                break;
+            let checks = if one_sided {
+                [(d, dist[prev][cand]), (p - d, dist[cand][prev])]
+            } else {
+                let k = d.min(p - d);
+                [(k, dist[prev][cand]), (k, dist[prev][cand])]
+            };
+            for (k, got) in checks {
+                if profile[k] == i64::MIN {
+                    profile[k] = got;
+                } else if profile[k] != got {
+                    ok = false;
+                    break 'pairs;
+                }
             }
         }
         if ok {
             seq.push(cand);
-            if extend(dist, p, seq, profile, found, limit) {
+            if extend(dist, p, one_sided, seq, profile, found, limit) {
                 return true;
             }
             seq.pop();
@@ -119,5 +159,19 @@ mod tests {
         assert_eq!(find_cycle(&[(0, 0)], 1), Some(vec![vec![0]]));
         // {0,1}^2: every cyclic order of the 4 points is isometric; 3 start at (0,0).
         assert_eq!(all_cycles(&[(0, 1), (0, 1)], 4, 100).len(), 6);
+    }
+
+    #[test]
+    fn topical_cycles_on_the_square_are_antichains() {
+        // On {0,1}^2 the only antichain of two points is {(0,1), (1,0)}.
+        let b = [(0, 1), (0, 1)];
+        assert_eq!(
+            all_topical_cycles(&b, 2, 100),
+            vec![vec![vec![0, 1], vec![1, 0]]]
+        );
+        assert!(find_topical_cycle(&b, 3).is_none());
+        // A segment carries no topical 2-cycle: two points of a line are comparable.
+        assert!(find_topical_cycle(&[(0, 3)], 2).is_none());
+        assert_eq!(find_topical_cycle(&[(0, 3)], 1), Some(vec![vec![0]]));
     }
 }

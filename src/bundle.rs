@@ -20,7 +20,7 @@ use crate::orbit_file;
 use crate::proof::{LratOptions, LratSummary, check_lrat_with};
 use crate::question::{Question, QuestionRecord};
 use crate::report::Verdict;
-use crate::verify::{self, OrbitCheck};
+use crate::verify::OrbitCheck;
 
 /// The manifest's file name.
 pub const MANIFEST: &str = "manifest.json";
@@ -113,7 +113,7 @@ pub fn write_bundle(
             Verdict::Infeasible
         }
         Evidence::Orbit(orbit) => {
-            let text = orbit_file::to_json(&q.grid, orbit) + "\n";
+            let text = orbit_file::to_json(&q.grid, q.class, orbit) + "\n";
             write_atomically(&dir.join(ORBIT), text.as_bytes())?;
             files.push(entry(ORBIT, text.as_bytes()));
             Verdict::Feasible
@@ -238,7 +238,7 @@ pub fn check_bundle(dir: &Path) -> Result<BundleCheck> {
                     "the orbit is not for the bundle's question",
                 ));
             }
-            out.orbit = Some(verify::check_orbit(f.grid.ranges(), &f.orbit)?);
+            out.orbit = Some(q.check_orbit(&f.orbit)?);
         }
         other => {
             return Err(Error::parse(

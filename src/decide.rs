@@ -16,7 +16,6 @@ use crate::question::Question;
 use crate::report::{Certificate, Report, SizeStats, Verdict, Witness};
 use crate::solve::{Backend, Limits, Outcome, SolveStats, check_model};
 use crate::varmap::VarMap;
-use crate::verify;
 
 /// Decides `q`: encodes it with `options`, solves with `backend` within
 /// `limits`, and returns a report whose verdict is backed by a checked witness
@@ -81,7 +80,7 @@ pub fn witness(
 ) -> Result<Witness> {
     check_model(cnf, model, path, lines)?;
     let orbit = decode::orbit(q, map, model)?;
-    let check = verify::check_orbit(q.grid.ranges(), &orbit)?;
+    let check = q.check_orbit(&orbit)?;
     Ok(Witness { orbit, check })
 }
 

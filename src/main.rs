@@ -11,6 +11,7 @@ use orbitcnf::Verdict;
 use orbitcnf::bundle::Evidence;
 use orbitcnf::encode::{self, DEFAULT_MAX_CLAUSES, EncodeOptions, Symmetry};
 use orbitcnf::proof::LratOptions;
+use orbitcnf::question::MapClass;
 use orbitcnf::solve::{Limits, bundled::Bundled, certified::Certified};
 use orbitcnf::{Error, Grid, Question, decide, dimacs, orbit_file, verify};
 
@@ -27,6 +28,9 @@ Exit codes (the SAT convention):
 /// with ‖f(x) − f(y)‖∞ ≤ ‖x − y‖∞ that has a periodic point of minimal period
 /// p? On a box this holds iff D contains p distinct points x_0..x_{p−1} whose
 /// distances ‖x_i − x_{i+k}‖∞ do not depend on i (an isometric cycle).
+/// With --class topical it asks instead for p distinct points of D forming an
+/// orbit of a topical map R^n → R^n: t(x_i, x_{i+k}) = max_c (x_{i,c} − x_{i+k,c})
+/// must not depend on i.
 /// orbitcnf encodes that as CNF, solves it, and checks every orbit it reports.
 #[derive(Parser, Debug)]
 #[command(name = "orbitcnf", version, after_help = EXIT_CODES, max_term_width = 100)]
@@ -167,6 +171,8 @@ struct QuestionArgs {
     /// The minimal period p asked for.
     #[arg(long, short = 'p', value_name = "P", default_value_t = 8)]
     period: usize,
+    #[command(flatten)]
+    class: ClassArgs,
     /// Refuse to build formulas with more clauses than this.
     #[arg(long, value_name = "N", default_value_t = DEFAULT_MAX_CLAUSES)]
     max_clauses: u64,
@@ -179,8 +185,25 @@ impl QuestionArgs {
                 "the dimension must be at least 1 (got --dim 0)".into(),
             ));
         }
-        Question::new(Grid::parse(&self.grid, self.dim)?, self.period)
+        Ok(
+            Question::new(Grid::parse(&self.grid, self.dim)?, self.period)?
+                .with_class(self.class.class),
+        )
     }
+}
+
+/// The map class flag, shared by every command that builds questions.
+#[derive(Args, Debug)]
+struct ClassArgs {
+    /// The class of maps: `nonexpansive` (sup-norm nonexpansive maps D → D,
+    /// the default) or `topical` (p distinct points of D forming an orbit of
+    /// a topical map R^n → R^n; see encodings/topical.md).
+    #[arg(long = "class", value_name = "CLASS", default_value = "nonexpansive", value_parser = parse_class)]
+    class: MapClass,
+}
+
+fn parse_class(s: &str) -> Result<MapClass, String> {
+    s.parse().map_err(|e: Error| e.to_string())
 }
 
 #[derive(Args, Debug)]
@@ -284,6 +307,13 @@ struct CheckArgs {
     /// Also build the extension f on the whole grid and check it by exhaustion.
     #[arg(long)]
     map: bool,
+    /// Check the orbit as one of this map class (`nonexpansive` or
+    /// `topical`) instead of the class the file names (default nonexpansive).
+    /// For topical orbits --map checks the unclamped extension (order-preserving,
+    /// nonexpansive, f(x + s·1) = f(x) + s·1 on the grid) and the clamped map
+    /// of the grid into itself (order-preserving, nonexpansive).
+    #[arg(long = "class", value_name = "CLASS", value_parser = parse_class)]
+    class: Option<MapClass>,
     /// With --map: write the map as JSON to FILE instead of printing the table.
     #[arg(long, value_name = "FILE", requires = "map")]
     map_out: Option<PathBuf>,
@@ -585,8 +615,14 @@ fn bench(a: BenchArgs) -> Result<u8, Error> {
 fn check(a: CheckArgs) -> Result<u8, Error> {
     let text = std::fs::read_to_string(&a.orbit).map_err(|e| Error::io(&a.orbit, e))?;
     let f = orbit_file::parse(&text, &a.orbit.display().to_string())?;
+    let class = a.class.unwrap_or(f.class);
+    let topical = class == MapClass::Topical;
     let bounds = f.grid.ranges();
-    let orbit_check = verify::check_orbit(bounds, &f.orbit)?;
+    let orbit_check = if topical {
+        verify::check_topical_orbit(bounds, &f.orbit)?
+    } else {
+        verify::check_orbit(bounds, &f.orbit)?
+    };
     let mut json = serde_json::json!({
         "grid": f.grid.spec(),
         "period": f.orbit.len(),
@@ -596,11 +632,35 @@ fn check(a: CheckArgs) -> Result<u8, Error> {
         "grid         {}\norbit check  passed: {orbit_check}\nprofile      {:?}\n",
         f.grid, orbit_check.profile
     );
+    if topical {
+        json["class"] = class.name().into();
+        text = format!("class        topical\n{text}");
+    }
     if a.map {
-        let table = verify::extend(bounds, &f.orbit)?;
-        let map_check = verify::check_map(&table, &f.orbit)?;
-        text.push_str(&format!("map check    passed: {map_check}\n"));
-        json["map_check"] = serde_json::to_value(&map_check).expect("serialises");
+        let (table, formula) = if topical {
+            // The witness is the unclamped f, topical on all of R^n; the
+            // clamped one is the map D → D, order-preserving and nonexpansive.
+            let free = verify::extend_topical(bounds, &f.orbit, false)?;
+            let free_check = verify::check_topical_map(&free, &f.orbit, true)?;
+            let clamped = verify::extend_topical(bounds, &f.orbit, true)?;
+            let clamped_check = verify::check_topical_map(&clamped, &f.orbit, false)?;
+            text.push_str(&format!(
+                "map check    passed: f_c(x) = min_j (x_{{j+1,c}} + t(x, x_j)) is {free_check}\n\
+                 clamped map  passed: clamp(f) on the grid {clamped_check}\n"
+            ));
+            json["map_check"] = serde_json::to_value(&free_check).expect("serialises");
+            json["clamped_map_check"] = serde_json::to_value(&clamped_check).expect("serialises");
+            (
+                free,
+                "f_c(x) = min_j (x_{j+1,c} + max_d (x_d − x_{j,d})), topical on R^n (not clamped)",
+            )
+        } else {
+            let table = verify::extend(bounds, &f.orbit)?;
+            let map_check = verify::check_map(&table, &f.orbit)?;
+            text.push_str(&format!("map check    passed: {map_check}\n"));
+            json["map_check"] = serde_json::to_value(&map_check).expect("serialises");
+            (table, "f_c(x) = clamp(min_j (x_{j+1,c} + ‖x − x_j‖∞))")
+        };
         let entries: Vec<serde_json::Value> = table
             .entries
             .iter()
@@ -614,9 +674,7 @@ fn check(a: CheckArgs) -> Result<u8, Error> {
             }
             None => {
                 json["map"] = serde_json::Value::Array(entries);
-                text.push_str(
-                    "map          x -> f(x), f_c(x) = clamp(min_j (x_{j+1,c} + ‖x − x_j‖∞))\n",
-                );
+                text.push_str(&format!("map          x -> f(x), {formula}\n"));
                 for (z, fz) in &table.entries {
                     text.push_str(&format!("             {z:?} -> {fz:?}\n"));
                 }

@@ -3,12 +3,15 @@
 //! Two JSON forms are read: the plain one,
 //! `{"grid": "-1..1,-1..1", "orbit": [[-1,-1], [-1,1], [1,1], [1,-1]]}`
 //! (`"dim"` optional, for a grid given as one range), and the report printed
-//! by `decide --json`, whose `question` holds `dim` and `grid`.
+//! by `decide --json`, whose `question` holds `dim` and `grid`. Either may
+//! name the map class (`"class": "topical"`); without it the orbit is read
+//! as one of a nonexpansive map.
 
 use serde_json::Value;
 
 use crate::error::{Error, Result};
 use crate::grid::{Grid, Point};
+use crate::question::MapClass;
 
 /// An orbit with the grid it lives in.
 #[derive(Clone, Debug, PartialEq, Eq)]
@@ -17,6 +20,8 @@ pub struct OrbitFile {
     pub grid: Grid,
     /// The points `x_0..x_{p−1}`.
     pub orbit: Vec<Point>,
+    /// The class of maps the orbit belongs to.
+    pub class: MapClass,
 }
 
 /// Parses an orbit file's text; `path` names it in errors.
@@ -43,6 +48,11 @@ pub fn parse(text: &str, path: &str) -> Result<OrbitFile> {
         ),
     };
     let grid = Grid::parse(spec, dim).map_err(|e| bad(e.to_string()))?;
+    let class = match holder.get("class") {
+        None | Some(Value::Null) => MapClass::default(),
+        Some(Value::String(name)) => name.parse().map_err(|e: Error| bad(e.to_string()))?,
+        Some(other) => return Err(bad(format!("\"class\" must be a string, not {other}"))),
+    };
     let list = v
         .get("orbit")
         .or_else(|| v.get("points"))
@@ -65,10 +75,15 @@ pub fn parse(text: &str, path: &str) -> Result<OrbitFile> {
         }
         orbit.push(x);
     }
-    Ok(OrbitFile { grid, orbit })
+    Ok(OrbitFile { grid, orbit, class })
 }
 
-/// The plain JSON form of an orbit file.
-pub fn to_json(grid: &Grid, orbit: &[Point]) -> String {
-    serde_json::json!({ "grid": grid.spec(), "orbit": orbit }).to_string()
+/// The plain JSON form of an orbit file; the class is written only when it
+/// is not the default.
+pub fn to_json(grid: &Grid, class: MapClass, orbit: &[Point]) -> String {
+    let mut doc = serde_json::json!({ "grid": grid.spec(), "orbit": orbit });
+    if !class.is_default() {
+        doc["class"] = class.name().into();
+    }
+    doc.to_string()
 }

@@ -5,11 +5,65 @@
 //! On a box this is equivalent to the existence of an *isometric cycle*: `p`
 //! distinct points `x_0..x_{p−1}` of `D` with `‖x_i − x_{i+k}‖∞` independent
 //! of `i` for every `k` (see `encodings/isometric-cycle.md`).
+//!
+//! With [`MapClass::Topical`] the question is instead: do `p` distinct
+//! points of `D` form a periodic orbit of a *topical* map `R^n → R^n`
+//! (order-preserving and commuting with `x ↦ x + s·1`)? That holds iff
+//! `t(x_i, x_{i+k}) = max_c (x_{i,c} − x_{i+k,c})` is independent of `i` for
+//! every `k` (see `encodings/topical.md`).
 
 use serde::{Deserialize, Serialize};
 
 use crate::error::{Error, Result};
 use crate::grid::Grid;
+use crate::verify::{self, CheckFailure, OrbitCheck};
+
+/// The class of maps a [`Question`] asks about.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Hash, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum MapClass {
+    /// Maps `f: D → D`, nonexpansive in the sup-norm (the default).
+    #[default]
+    Nonexpansive,
+    /// Topical maps `R^n → R^n` (order-preserving, `f(x + s·1) = f(x) + s·1`)
+    /// with a periodic orbit of `p` points of `D`.
+    Topical,
+}
+
+impl MapClass {
+    /// The class's name on the command line and in records.
+    pub fn name(self) -> &'static str {
+        match self {
+            MapClass::Nonexpansive => "nonexpansive",
+            MapClass::Topical => "topical",
+        }
+    }
+
+    /// Whether this is the default class (records leave the default out).
+    pub fn is_default(&self) -> bool {
+        *self == MapClass::Nonexpansive
+    }
+}
+
+impl std::str::FromStr for MapClass {
+    type Err = Error;
+
+    fn from_str(s: &str) -> Result<MapClass> {
+        match s.trim() {
+            "nonexpansive" => Ok(MapClass::Nonexpansive),
+            "topical" => Ok(MapClass::Topical),
+            other => Err(Error::Options(format!(
+                "unknown map class {other:?}; choose nonexpansive or topical"
+            ))),
+        }
+    }
+}
+
+impl std::fmt::Display for MapClass {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(self.name())
+    }
+}
 
 /// A period question on an integer box.
 #[derive(Clone, Debug, PartialEq, Eq)]
@@ -18,6 +72,8 @@ pub struct Question {
     pub grid: Grid,
     /// The minimal period p asked for.
     pub period: usize,
+    /// The class of maps asked about.
+    pub class: MapClass,
 }
 
 /// The serialised form of a [`Question`], as written in JSON reports and CNF headers.
@@ -29,6 +85,10 @@ pub struct QuestionRecord {
     pub grid: String,
     /// The period p.
     pub period: usize,
+    /// The map class; left out when it is the default, so that records of
+    /// nonexpansive questions read as before classes existed.
+    #[serde(default, skip_serializing_if = "MapClass::is_default")]
+    pub class: MapClass,
 }
 
 impl Question {
@@ -51,7 +111,17 @@ impl Question {
                 grid.spec()
             )));
         }
-        Ok(Question { grid, period })
+        Ok(Question {
+            grid,
+            period,
+            class: MapClass::default(),
+        })
+    }
+
+    /// The same question about maps of `class`.
+    pub fn with_class(mut self, class: MapClass) -> Question {
+        self.class = class;
+        self
     }
 
     /// The dimension n.
@@ -65,6 +135,7 @@ impl Question {
             dim: self.dim(),
             grid: self.grid.spec(),
             period: self.period,
+            class: self.class,
         }
     }
 
@@ -73,11 +144,21 @@ impl Question {
     /// # Errors
     /// As [`Grid::parse`] and [`Question::new`].
     pub fn from_record(r: &QuestionRecord) -> Result<Question> {
-        Question::new(Grid::parse(&r.grid, Some(r.dim))?, r.period)
+        Ok(Question::new(Grid::parse(&r.grid, Some(r.dim))?, r.period)?.with_class(r.class))
     }
 
     /// One-line statement of the question.
     pub fn statement(&self) -> String {
+        if self.class == MapClass::Topical {
+            return format!(
+                "{} distinct points of {} (n = {}) forming a periodic orbit of a topical map R^{} → R^{}",
+                self.period,
+                self.grid,
+                self.dim(),
+                self.dim(),
+                self.dim()
+            );
+        }
         format!(
             "a sup-norm nonexpansive map on {} (n = {}) with a periodic point of minimal period {}",
             self.grid,
@@ -85,12 +166,37 @@ impl Question {
             self.period
         )
     }
+
+    /// Checks `orbit` with the independent verifier for this question's class:
+    /// [`verify::check_orbit`] or [`verify::check_topical_orbit`].
+    ///
+    /// # Errors
+    /// The verifier's [`verify::CheckFailure`].
+    pub fn check_orbit(&self, orbit: &[Vec<i64>]) -> std::result::Result<OrbitCheck, CheckFailure> {
+        match self.class {
+            MapClass::Nonexpansive => verify::check_orbit(self.grid.ranges(), orbit),
+            MapClass::Topical => verify::check_topical_orbit(self.grid.ranges(), orbit),
+        }
+    }
 }
 
 /// Number of coordinates whose range has more than one point: the dimension
 /// the box really has. A side of one point adds nothing to any distance.
 pub fn effective_dim(grid: &Grid) -> usize {
     (0..grid.dim()).filter(|&c| grid.side(c) > 0).count()
+}
+
+/// `C(n, ⌊n/2⌋)`, the largest antichain of `{0,1}^n` (Sperner): every period
+/// of a topical map on R^n is at most this (B. Lemmens and M. Scheutzow, On
+/// the dynamics of sup-norm non-expansive maps, Ergodic Theory Dynam. Systems
+/// 25 (2005) 861–871, proving a conjecture of Gunawardena and Sparrow).
+/// Saturates at `u128::MAX`.
+pub fn topical_bound(n: usize) -> u128 {
+    let mut binom = 1u128;
+    for k in 1..=n / 2 {
+        binom = binom.saturating_mul((n - k + 1) as u128) / k as u128;
+    }
+    binom
 }
 
 /// `max_k 2^k·C(n,k)`: every period of a sup-norm nonexpansive map on a
@@ -119,6 +225,34 @@ mod tests {
         // Values for n = 1..8 as tabulated in MATH.md from the formula of the paper.
         let got: Vec<u128> = (1..=8).map(lemmens_scheutzow_bound).collect();
         assert_eq!(got, vec![2, 4, 12, 32, 80, 240, 672, 1792]);
+    }
+
+    #[test]
+    fn topical_bound_values_match_the_table_in_math_md() {
+        // C(n, ⌊n/2⌋) for n = 1..8 (Lemmens and Scheutzow 2005; values as in MATH.md §7).
+        let got: Vec<u128> = (1..=8).map(topical_bound).collect();
+        assert_eq!(got, vec![1, 2, 3, 6, 10, 20, 35, 70]);
+    }
+
+    #[test]
+    fn the_class_round_trips_and_is_left_out_when_default() {
+        let g = Grid::parse("0..1", Some(3)).unwrap();
+        let q = Question::new(g, 3).unwrap();
+        let plain = serde_json::to_string(&q.record()).unwrap();
+        assert!(!plain.contains("class"), "{plain}");
+        let t = q.clone().with_class(MapClass::Topical);
+        let text = serde_json::to_string(&t.record()).unwrap();
+        assert!(text.contains("\"class\":\"topical\""), "{text}");
+        let back: QuestionRecord = serde_json::from_str(&text).unwrap();
+        assert_eq!(Question::from_record(&back).unwrap(), t);
+        assert_eq!("topical".parse::<MapClass>().unwrap(), MapClass::Topical);
+        assert!(
+            "sideways"
+                .parse::<MapClass>()
+                .unwrap_err()
+                .to_string()
+                .contains("unknown map class \"sideways\"")
+        );
     }
 
     #[test]

@@ -11,7 +11,7 @@ use serde::Serialize;
 use crate::cnf::{Cnf, FamilyCount};
 use crate::encode::EncodeOptions;
 use crate::grid::Point;
-use crate::question::{Question, QuestionRecord};
+use crate::question::{MapClass, Question, QuestionRecord};
 use crate::solve::SolveStats;
 use crate::solve::certified::ProofInfo;
 use crate::verify::OrbitCheck;
@@ -128,7 +128,8 @@ pub struct Report {
     /// The orbit `x_0..x_{p−1}`, when feasible.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub orbit: Option<Vec<Point>>,
-    /// `‖x_0 − x_k‖∞` for `k = 1..=⌊p/2⌋`, when feasible.
+    /// `‖x_0 − x_k‖∞` for `k = 1..=⌊p/2⌋` (topical: `t(x_0, x_k)` for
+    /// `k = 1..p−1`), when feasible.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub profile: Option<Vec<i64>>,
     /// The independent check of the orbit, when feasible.
@@ -181,6 +182,20 @@ impl Report {
 
     /// The report for people.
     pub fn to_text(&self) -> String {
+        let topical = self.question.class == MapClass::Topical;
+        let (cycle, quantity, writeups) = if topical {
+            (
+                "topical",
+                "t(x_0, x_k) = max_c (x_{0,c} − x_{k,c})",
+                "encodings/topical.md, encodings/symmetry.md",
+            )
+        } else {
+            (
+                "isometric",
+                "‖x_0 − x_k‖∞",
+                "encodings/symmetry.md, encodings/redundant.md",
+            )
+        };
         let mut s = String::new();
         let _ = writeln!(s, "question     {}", self.statement);
         match self.verdict {
@@ -190,7 +205,7 @@ impl Report {
             Verdict::Infeasible => {
                 let _ = writeln!(
                     s,
-                    "verdict      INFEASIBLE: no such map exists (no isometric {}-cycle in the grid)",
+                    "verdict      INFEASIBLE: no such map exists (no {cycle} {}-cycle in the grid)",
                     self.question.period
                 );
             }
@@ -211,7 +226,7 @@ impl Report {
             let shown: Vec<String> = profile.iter().map(|d| d.to_string()).collect();
             let _ = writeln!(
                 s,
-                "profile      ‖x_0 − x_k‖∞ for k = 1..{}: {}",
+                "profile      {quantity} for k = 1..{}: {}",
                 profile.len(),
                 if shown.is_empty() {
                     "(none: a fixed point)".into()
@@ -251,7 +266,7 @@ impl Report {
                 let _ = writeln!(
                     s,
                     "             the proof covers the CNF with its symmetry-breaking and redundant clauses; \
-                     their soundness: encodings/symmetry.md, encodings/redundant.md"
+                     their soundness: {writeups}"
                 );
             }
             Certificate::None => {}

@@ -765,7 +765,7 @@ fn constructed(
             q.period
         ))
     })?;
-    let check = verify::check_orbit(q.grid.ranges(), &orbit)?;
+    let check = q.check_orbit(&orbit)?;
     a.map_checked_points = map_check(&q.grid, &orbit)?;
     a.verdict = Verdict::Feasible;
     a.backing = Backing::CheckedOrbit;
@@ -821,7 +821,7 @@ fn solved(task: &Task, cfg: &SweepConfig, limits: &RunLimits, run_id: &str) -> R
                     let orbit = report.orbit.clone().unwrap_or_default();
                     // decide has checked it; checking again here costs little
                     // and keeps the stored evidence self-contained.
-                    let check = verify::check_orbit(q.grid.ranges(), &orbit)?;
+                    let check = q.check_orbit(&orbit)?;
                     a.map_checked_points = map_check(&q.grid, &orbit)?;
                     a.profile = Some(check.profile);
                     a.orbit = Some(orbit);

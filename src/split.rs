@@ -162,10 +162,10 @@ pub fn value_literals(enc: &Encoding, k: usize, value: i64) -> Result<Vec<Lit>> 
 /// As [`value_literals`].
 pub fn profile_cubes(enc: &Encoding, target: usize) -> Result<Vec<Cube>> {
     let q = &enc.question;
-    let k_max = q.period / 2;
+    let k_max = crate::encode::profile_len(q);
     let l = q.grid.diameter() as i64;
     let maps = if enc.options.symmetry.multiplier {
-        symmetry::multiplier_maps(q.period)
+        symmetry::multiplier_maps_for(q)
     } else {
         Vec::new()
     };
@@ -383,7 +383,7 @@ pub struct CoverageEntry {
 pub struct SplitRule {
     /// `profile-prefix`.
     pub rule: String,
-    /// `K = ⌊p/2⌋`, the profile's length.
+    /// `K`, the profile's length: `⌊p/2⌋`, or `p − 1` for topical maps.
     pub offsets: usize,
     /// `L`, the largest profile value.
     pub max_value: i64,
@@ -466,7 +466,7 @@ pub fn refute_coverage(enc: &Encoding, cnf: &Cnf) -> Result<(Vec<u8>, LratSummar
     match out.outcome {
         Outcome::Unsat => {}
         Outcome::Sat(model) => {
-            let k_max = enc.question.period / 2;
+            let k_max = crate::encode::profile_len(&enc.question);
             let l = enc.question.grid.diameter() as i64;
             let g: Vec<String> = (1..=k_max)
                 .map(|k| {
@@ -557,7 +557,7 @@ pub fn write_split(
         requested_cubes: target,
         split: SplitRule {
             rule: "profile-prefix".into(),
-            offsets: q.period / 2,
+            offsets: crate::encode::profile_len(q),
             max_value: q.grid.diameter() as i64,
             multiplier_pruning: enc.options.symmetry.multiplier,
         },

@@ -57,7 +57,7 @@ use crate::grid::Point;
 use crate::proof::{LratOptions, LratSummary, check_lrat_with};
 use crate::question::{Question, QuestionRecord};
 use crate::report::Verdict;
-use crate::verify::{self, OrbitCheck};
+use crate::verify::OrbitCheck;
 
 /// Sub-folder of the answer files.
 pub const ANSWERS_DIR: &str = "answers";
@@ -93,7 +93,7 @@ impl How {
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(rename_all = "kebab-case")]
 pub enum Backing {
-    /// The orbit, checked by [`verify::check_orbit`] (feasible answers).
+    /// The orbit, checked by [`crate::verify::check_orbit`] (feasible answers).
     CheckedOrbit,
     /// An LRAT proof accepted by orbitcnf's own checker (infeasible answers).
     CheckedProof,
@@ -519,7 +519,7 @@ impl Store {
     }
 
     /// Checks a stored answer again from its evidence alone: a feasible
-    /// answer's orbit with [`verify::check_orbit`]; an infeasible answer's
+    /// answer's orbit with [`crate::verify::check_orbit`]; an infeasible answer's
     /// proof file against its recorded SHA-256 and then with orbitcnf's LRAT
     /// checker against a fresh encoding of the question under the recorded
     /// options.
@@ -569,7 +569,7 @@ impl Store {
     }
 
     /// The cheap check made on every stored answer a sweep reuses: a
-    /// feasible answer's orbit is checked with [`verify::check_orbit`]; an
+    /// feasible answer's orbit is checked with [`crate::verify::check_orbit`]; an
     /// infeasible answer's kept proof must exist with its recorded size.
     ///
     /// # Errors
@@ -621,7 +621,7 @@ fn check_stored_orbit(q: &Question, a: &Answer, file: &str) -> Result<OrbitCheck
             ),
         ));
     }
-    Ok(verify::check_orbit(q.grid.ranges(), orbit)?)
+    Ok(q.check_orbit(orbit)?)
 }
 
 /// Reads one answer file; `Ok(None)` when it does not exist.

@@ -6,6 +6,13 @@
 //! verdict is printed only after [`check_orbit`] has passed, and `check --map`
 //! additionally builds the map on the whole box with [`extend`] and checks it
 //! by exhaustion with [`check_map`].
+//!
+//! For topical maps the orbit condition uses the one-sided quantity
+//! `t(y, z) = max_c (y_c − z_c)` ([`check_topical_orbit`]); the extension
+//! `f_c(z) = min_j (x_{j+1,c} + t(z, x_j))` ([`extend_topical`]) is checked by
+//! [`check_topical_map`] for order-preservation, nonexpansiveness, the orbit,
+//! and either homogeneity on the grid (unclamped) or staying in the box
+//! (clamped).
 
 use std::fmt;
 
@@ -65,6 +72,46 @@ pub enum CheckFailure {
         /// `‖x_i − x_j‖∞`.
         got: i64,
     },
+    /// A one-sided distance `t(x_i, x_{i+k})` along the cycle is not constant.
+    #[error(
+        "one-sided distance not preserved at offset {k}: t(x_0, x_{k}) = {expected} but t(x_{i}, x_{j}) = {got}"
+    )]
+    OneSidedChanged {
+        /// The offset.
+        k: usize,
+        /// Start of the offending pair.
+        i: usize,
+        /// End of the offending pair (`i + k` mod p).
+        j: usize,
+        /// `t(x_0, x_k)`.
+        expected: i64,
+        /// `t(x_i, x_j)`.
+        got: i64,
+    },
+    /// The map does not preserve the coordinatewise order on some pair.
+    #[error("the map is not order-preserving: {y:?} ≤ {z:?} but {fy:?} ≰ {fz:?}")]
+    NotOrderPreserving {
+        /// The smaller point.
+        y: Vec<i64>,
+        /// The larger point.
+        z: Vec<i64>,
+        /// Image of `y`.
+        fy: Vec<i64>,
+        /// Image of `z`.
+        fz: Vec<i64>,
+    },
+    /// The map does not commute with adding a multiple of `1`.
+    #[error("the map is not homogeneous: f({z:?}) = {fz:?} but f(z + {s}·1) = {fzs:?}")]
+    NotHomogeneous {
+        /// The point.
+        z: Vec<i64>,
+        /// The shift along `1`.
+        s: i64,
+        /// Image of `z`.
+        fz: Vec<i64>,
+        /// Image of `z + s·1`.
+        fzs: Vec<i64>,
+    },
     /// The map sends a point outside the box.
     #[error("the map sends {from:?} to {to:?}, outside the box")]
     MapLeavesBox {
@@ -120,13 +167,23 @@ pub struct OrbitCheck {
     pub profile: Vec<i64>,
     /// Ordered pairs `(i, i+k)` whose distance was compared, `p·(p−1)`.
     pub pairs_checked: u64,
+    /// True when the one-sided `t` was checked ([`check_topical_orbit`]);
+    /// then `profile` holds `t(x_0, x_k)` for `k = 1..p−1`. Left out of JSON
+    /// when false.
+    #[serde(skip_serializing_if = "std::ops::Not::not")]
+    pub one_sided: bool,
 }
 
 impl fmt::Display for OrbitCheck {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        let what = if self.one_sided {
+            "one-sided distances t(x_i, x_{i+k})"
+        } else {
+            "distances"
+        };
         write!(
             f,
-            "{} distinct points in the box, all {} distances along the cycle preserved",
+            "{} distinct points in the box, all {} {what} along the cycle preserved",
             self.period, self.pairs_checked
         )
     }
@@ -166,6 +223,118 @@ fn inside(bounds: &[(i64, i64)], z: &[i64]) -> bool {
 /// # Errors
 /// The first [`CheckFailure`] found.
 pub fn check_orbit(bounds: &[(i64, i64)], points: &[Vec<i64>]) -> Result<OrbitCheck, CheckFailure> {
+    check_points(bounds, points)?;
+    let p = points.len();
+    let pairs_checked = constant_along_cycle(points, dist).map_err(
+        |Mismatch {
+             k,
+             i,
+             j,
+             expected,
+             got,
+         }| CheckFailure::DistanceChanged {
+            k,
+            i,
+            j,
+            expected,
+            got,
+        },
+    )?;
+    let profile = (1..=p / 2).map(|k| dist(&points[0], &points[k])).collect();
+    Ok(OrbitCheck {
+        period: p,
+        profile,
+        pairs_checked,
+        one_sided: false,
+    })
+}
+
+/// The first pair `(x_i, x_{i+k})` where `quantity` differs from `(x_0, x_k)`.
+struct Mismatch {
+    k: usize,
+    i: usize,
+    j: usize,
+    expected: i64,
+    got: i64,
+}
+
+/// Compares `quantity(x_i, x_{i+k})` with `quantity(x_0, x_k)` for every
+/// offset `k` and position `i`; the number of ordered pairs compared.
+fn constant_along_cycle(
+    points: &[Vec<i64>],
+    quantity: fn(&[i64], &[i64]) -> i64,
+) -> Result<u64, Mismatch> {
+    let p = points.len();
+    let mut pairs_checked = 0u64;
+    for k in 1..p {
+        let expected = quantity(&points[0], &points[k]);
+        for i in 0..p {
+            let j = (i + k) % p;
+            let got = quantity(&points[i], &points[j]);
+            pairs_checked += 1;
+            if got != expected {
+                return Err(Mismatch {
+                    k,
+                    i,
+                    j,
+                    expected,
+                    got,
+                });
+            }
+        }
+    }
+    Ok(pairs_checked)
+}
+
+/// `t(y, z) = max_c (y_c − z_c)`, the one-sided distance of topical maps.
+fn one_sided(y: &[i64], z: &[i64]) -> i64 {
+    let mut m = i64::MIN;
+    for (a, b) in y.iter().zip(z) {
+        m = m.max(a - b);
+    }
+    m
+}
+
+/// Checks that `points` is a periodic orbit of a topical map: every point in
+/// the box, all distinct, and `t(x_i, x_{i+k}) = t(x_0, x_k)` for every `i`
+/// and `k` (indices mod p), with `t(y, z) = max_c (y_c − z_c)`. The profile
+/// returned is `t(x_0, x_k)` for `k = 1..p−1`.
+///
+/// # Errors
+/// The first [`CheckFailure`] found.
+pub fn check_topical_orbit(
+    bounds: &[(i64, i64)],
+    points: &[Vec<i64>],
+) -> Result<OrbitCheck, CheckFailure> {
+    check_points(bounds, points)?;
+    let p = points.len();
+    let pairs_checked = constant_along_cycle(points, one_sided).map_err(
+        |Mismatch {
+             k,
+             i,
+             j,
+             expected,
+             got,
+         }| CheckFailure::OneSidedChanged {
+            k,
+            i,
+            j,
+            expected,
+            got,
+        },
+    )?;
+    let profile = (1..p).map(|k| one_sided(&points[0], &points[k])).collect();
+    Ok(OrbitCheck {
+        period: p,
+        profile,
+        pairs_checked,
+        one_sided: true,
+    })
+}
+
+/// The checks both orbit conditions share: a well-formed box, at least one
+/// point, every point of the right length and inside, no point repeated.
+fn check_points(bounds: &[(i64, i64)], points: &[Vec<i64>]) -> Result<(), CheckFailure> {
     check_box(bounds)?;
     let p = points.len();
     if p == 0 {
@@ -198,30 +367,7 @@ pub fn check_orbit(bounds: &[(i64, i64)], points: &[Vec<i64>]) -> Result<OrbitCh
             });
         }
     }
-    let mut pairs_checked = 0u64;
-    for k in 1..p {
-        let expected = dist(&points[0], &points[k]);
-        for i in 0..p {
-            let j = (i + k) % p;
-            let got = dist(&points[i], &points[j]);
-            pairs_checked += 1;
-            if got != expected {
-                return Err(CheckFailure::DistanceChanged {
-                    k,
-                    i,
-                    j,
-                    expected,
-                    got,
-                });
-            }
-        }
-    }
-    let profile = (1..=p / 2).map(|k| dist(&points[0], &points[k])).collect();
-    Ok(OrbitCheck {
-        period: p,
-        profile,
-        pairs_checked,
-    })
+    Ok(())
 }
 
 /// Largest box on which [`check_map`] checks every pair.
@@ -270,6 +416,18 @@ fn box_size(bounds: &[(i64, i64)]) -> u128 {
 /// [`CheckFailure::TooLargeForMap`] above [`MAP_CHECK_LIMIT`] points, or a
 /// malformed box or orbit.
 pub fn extend(bounds: &[(i64, i64)], orbit: &[Vec<i64>]) -> Result<MapTable, CheckFailure> {
+    extension(bounds, orbit, dist, true)
+}
+
+/// `f_c(z) = min_j ( x_{j+1,c} + reach(z, x_j) )` on every point of the box,
+/// clamped into the box when `clamp` is set: the construction behind
+/// [`extend`] (`reach` the norm) and [`extend_topical`] (`reach = t`).
+fn extension(
+    bounds: &[(i64, i64)],
+    orbit: &[Vec<i64>],
+    reach: fn(&[i64], &[i64]) -> i64,
+    clamp: bool,
+) -> Result<MapTable, CheckFailure> {
     check_box(bounds)?;
     if orbit.is_empty() {
         return Err(CheckFailure::Empty);
@@ -288,10 +446,14 @@ pub fn extend(bounds: &[(i64, i64)], orbit: &[Vec<i64>]) -> Result<MapTable, Che
             let image = (0..bounds.len())
                 .map(|c| {
                     let m = (0..p)
-                        .map(|j| orbit[(j + 1) % p][c] + dist(&z, &orbit[j]))
+                        .map(|j| orbit[(j + 1) % p][c] + reach(&z, &orbit[j]))
                         .min()
                         .unwrap_or(z[c]);
-                    m.clamp(bounds[c].0, bounds[c].1)
+                    if clamp {
+                        m.clamp(bounds[c].0, bounds[c].1)
+                    } else {
+                        m
+                    }
                 })
                 .collect();
             (z, image)
@@ -335,14 +497,7 @@ impl fmt::Display for MapCheck {
 pub fn check_map(map: &MapTable, orbit: &[Vec<i64>]) -> Result<MapCheck, CheckFailure> {
     let bounds = &map.bounds;
     check_orbit(bounds, orbit)?;
-    let expected = box_points(bounds);
-    let mut args: Vec<&Vec<i64>> = map.entries.iter().map(|(z, _)| z).collect();
-    args.sort();
-    if args.len() != expected.len() || args.iter().zip(&expected).any(|(a, b)| *a != b) {
-        return Err(CheckFailure::BadBox(
-            "the map table does not list every point of the box once".into(),
-        ));
-    }
+    lists_every_point_once(map)?;
     for (z, fz) in &map.entries {
         if !inside(bounds, fz) {
             return Err(CheckFailure::MapLeavesBox {
@@ -368,6 +523,31 @@ pub fn check_map(map: &MapTable, orbit: &[Vec<i64>]) -> Result<MapCheck, CheckFa
             }
         }
     }
+    moves_the_orbit_along(map, orbit)?;
+    let p = orbit.len();
+    Ok(MapCheck {
+        points_checked: n as u64,
+        pairs_checked,
+        period: p,
+    })
+}
+
+/// A table that does not list every point of the box exactly once is
+/// reported as [`CheckFailure::BadBox`].
+fn lists_every_point_once(map: &MapTable) -> Result<(), CheckFailure> {
+    let expected = box_points(&map.bounds);
+    let mut args: Vec<&Vec<i64>> = map.entries.iter().map(|(z, _)| z).collect();
+    args.sort();
+    if args.len() != expected.len() || args.iter().zip(&expected).any(|(a, b)| *a != b) {
+        return Err(CheckFailure::BadBox(
+            "the map table does not list every point of the box once".into(),
+        ));
+    }
+    Ok(())
+}
+
+/// `map` sends `orbit[j]` to `orbit[j+1]` for every `j`.
+fn moves_the_orbit_along(map: &MapTable, orbit: &[Vec<i64>]) -> Result<(), CheckFailure> {
     let p = orbit.len();
     for (index, x) in orbit.iter().enumerate() {
         let got = map
@@ -386,10 +566,156 @@ pub fn check_map(map: &MapTable, orbit: &[Vec<i64>]) -> Result<MapCheck, CheckFa
             });
         }
     }
-    Ok(MapCheck {
+    Ok(())
+}
+
+/// Builds the topical extension of the shift `x_j ↦ x_{j+1}` on the points of
+/// the box: `f_c(z) = min_j ( x_{j+1,c} + t(z, x_j) )`, `t(z, y) = max_d (z_d − y_d)`,
+/// then, when `clamp` is set, `clamp_[a_c, b_c]` coordinatewise.
+///
+/// Each `z ↦ x_{j+1,c} + t(z, x_j)` is order-preserving and commutes with
+/// `z ↦ z + s·1`, and so does a minimum of such maps: the unclamped `f` is
+/// topical on all of R^n, and on a cycle with constant `t` along every offset
+/// it sends `x_j` to `x_{j+1}` (`encodings/topical.md`). Its values may leave
+/// the box. The clamp keeps order-preservation and nonexpansiveness and
+/// gives a map of the box into itself, but in general not homogeneity.
+/// [`check_topical_map`] confirms this by exhaustion.
+///
+/// # Errors
+/// As [`extend`].
+pub fn extend_topical(
+    bounds: &[(i64, i64)],
+    orbit: &[Vec<i64>],
+    clamp: bool,
+) -> Result<MapTable, CheckFailure> {
+    extension(bounds, orbit, one_sided, clamp)
+}
+
+/// What [`check_topical_map`] established.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize)]
+pub struct TopicalMapCheck {
+    /// Points of the box in the table.
+    pub points_checked: u64,
+    /// Unordered pairs of distinct points checked for nonexpansiveness.
+    pub pairs_checked: u64,
+    /// Pairs `y ≤ z` (coordinatewise, `y ≠ z`) checked for `f(y) ≤ f(z)`.
+    pub ordered_pairs_checked: u64,
+    /// Pairs `(z, z + s·1)`, `s ≥ 1`, both in the box, checked for
+    /// `f(z + s·1) = f(z) + s·1`; `None` when homogeneity was not asked for.
+    pub homogeneity_checked: Option<u64>,
+    /// Points whose image lies outside the box (0 when the box was required).
+    pub images_outside_box: u64,
+    /// The orbit's length, checked to be moved along by the map.
+    pub period: usize,
+}
+
+impl fmt::Display for TopicalMapCheck {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        write!(
+            f,
+            "order-preserving on all {} comparable pairs, nonexpansive on all {} pairs, ",
+            self.ordered_pairs_checked, self.pairs_checked
+        )?;
+        match self.homogeneity_checked {
+            Some(h) => write!(
+                f,
+                "f(z + s·1) = f(z) + s·1 on all {h} pairs in the grid ({} of {} images outside the box), ",
+                self.images_outside_box, self.points_checked
+            )?,
+            None => write!(f, "maps all {} points into the box, ", self.points_checked)?,
+        }
+        write!(
+            f,
+            "moves the orbit along itself (minimal period {})",
+            self.period
+        )
+    }
+}
+
+/// Checks by exhaustion over the box that `map` is order-preserving and
+/// nonexpansive on every pair of points and sends `orbit[j]` to `orbit[j+1]`,
+/// after [`check_topical_orbit`] on the orbit. With `homogeneous` it also
+/// checks `f(z + s·1) = f(z) + s·1` whenever `z` and `z + s·1` are both in
+/// the box (images may then lie outside the box); without it, every image
+/// must lie in the box.
+///
+/// # Errors
+/// The first [`CheckFailure`] found; a table that does not list every point
+/// of the box exactly once is reported as [`CheckFailure::BadBox`].
+pub fn check_topical_map(
+    map: &MapTable,
+    orbit: &[Vec<i64>],
+    homogeneous: bool,
+) -> Result<TopicalMapCheck, CheckFailure> {
+    let bounds = &map.bounds;
+    check_topical_orbit(bounds, orbit)?;
+    lists_every_point_once(map)?;
+    let mut images_outside_box = 0u64;
+    for (z, fz) in &map.entries {
+        if fz.len() != bounds.len() || !inside(bounds, fz) {
+            if !homogeneous || fz.len() != bounds.len() {
+                return Err(CheckFailure::MapLeavesBox {
+                    from: z.clone(),
+                    to: fz.clone(),
+                });
+            }
+            images_outside_box += 1;
+        }
+    }
+    let leq = |y: &[i64], z: &[i64]| y.iter().zip(z).all(|(a, b)| a <= b);
+    let n = map.entries.len();
+    let (mut pairs_checked, mut ordered_pairs_checked) = (0u64, 0u64);
+    let mut homogeneity = 0u64;
+    for a in 0..n {
+        let (y, fy) = &map.entries[a];
+        for (z, fz) in &map.entries[a + 1..] {
+            let (before, after) = (dist(y, z), dist(fy, fz));
+            pairs_checked += 1;
+            if after > before {
+                return Err(CheckFailure::Expands {
+                    y: y.clone(),
+                    z: z.clone(),
+                    before,
+                    after,
+                });
+            }
+            for (u, fu, w, fw) in [(y, fy, z, fz), (z, fz, y, fy)] {
+                if !leq(u, w) {
+                    continue;
+                }
+                ordered_pairs_checked += 1;
+                if !leq(fu, fw) {
+                    return Err(CheckFailure::NotOrderPreserving {
+                        y: u.clone(),
+                        z: w.clone(),
+                        fy: fu.clone(),
+                        fz: fw.clone(),
+                    });
+                }
+                // w = u + s·1 with s ≥ 1: every coordinate moved by the same s.
+                let s = w[0] - u[0];
+                if homogeneous && s > 0 && u.iter().zip(w.iter()).all(|(a, b)| b - a == s) {
+                    homogeneity += 1;
+                    if fu.iter().zip(fw.iter()).any(|(a, b)| b - a != s) {
+                        return Err(CheckFailure::NotHomogeneous {
+                            z: u.clone(),
+                            s,
+                            fz: fu.clone(),
+                            fzs: fw.clone(),
+                        });
+                    }
+                }
+            }
+        }
+    }
+    moves_the_orbit_along(map, orbit)?;
+    Ok(TopicalMapCheck {
         points_checked: n as u64,
         pairs_checked,
-        period: p,
+        ordered_pairs_checked,
+        homogeneity_checked: homogeneous.then_some(homogeneity),
+        images_outside_box,
+        period: orbit.len(),
     })
 }
 
@@ -439,6 +765,71 @@ mod tests {
             e(vec![vec![0, 0], vec![1, 0], vec![-1, 0]]),
             CheckFailure::DistanceChanged { k: 1, .. }
         ));
+    }
+
+    #[test]
+    fn accepts_a_topical_cycle_and_both_extensions() {
+        // The three points of weight 1 in {0,1}^3: t = 1 between any two.
+        let b = [(0, 1), (0, 1), (0, 1)];
+        let orbit = vec![vec![1, 0, 0], vec![0, 1, 0], vec![0, 0, 1]];
+        let c = check_topical_orbit(&b, &orbit).unwrap();
+        assert_eq!((c.profile.clone(), c.pairs_checked), (vec![1, 1], 6));
+        let free = extend_topical(&b, &orbit, false).unwrap();
+        let m = check_topical_map(&free, &orbit, true).unwrap();
+        // 8 points: 28 pairs; comparable pairs = 3^3 − 8 = 19; z, z + 1 in the box: (0,0,0), (1,1,1).
+        assert_eq!(
+            (
+                m.pairs_checked,
+                m.ordered_pairs_checked,
+                m.homogeneity_checked
+            ),
+            (28, 19, Some(1))
+        );
+        // f(1,1,1)_c = min_j (x_{j+1,c} + 1) = 1 and f(0,0,0) = 0: inside here.
+        assert_eq!(m.images_outside_box, 0);
+        let clamped = extend_topical(&b, &orbit, true).unwrap();
+        assert!(check_topical_map(&clamped, &orbit, false).is_ok());
+    }
+
+    #[test]
+    fn rejects_topical_failures() {
+        let b = [(0, 2), (0, 2)];
+        // Isometric (all distances 1 or 2 in a pattern) but not topical:
+        // (0,0) → (1,1) is comparable, t((0,0),(1,1)) = −1.
+        let e = check_topical_orbit(&b, &[vec![0, 0], vec![1, 1]]).unwrap_err();
+        assert!(
+            matches!(e, CheckFailure::OneSidedChanged { k: 1, .. }),
+            "{e}"
+        );
+        let orbit = vec![vec![1, 0], vec![0, 1]];
+        let mut m = extend_topical(&b, &orbit, false).unwrap();
+        assert!(check_topical_map(&m, &orbit, true).is_ok());
+        // Break order-preservation at (0,0) ≤ (0,1) = orbit point 1 ↦ (1,0).
+        let at = m
+            .entries
+            .iter()
+            .position(|(z, _)| z == &vec![0, 0])
+            .unwrap();
+        m.entries[at].1 = vec![2, 0];
+        assert!(matches!(
+            check_topical_map(&m, &orbit, true),
+            Err(CheckFailure::NotOrderPreserving { .. } | CheckFailure::Expands { .. })
+        ));
+        // Break homogeneity: f(2,2) must be f(1,1) + 1·1 = (2,2); take (2,1).
+        // (Pairs are met in table order, so (0,0), (2,2) with s = 2 comes first.)
+        let mut h = extend_topical(&b, &orbit, false).unwrap();
+        let at = h
+            .entries
+            .iter()
+            .position(|(z, _)| z == &vec![2, 2])
+            .unwrap();
+        assert_eq!(h.entries[at].1, vec![2, 2]);
+        h.entries[at].1 = vec![2, 1];
+        let err = check_topical_map(&h, &orbit, true).unwrap_err();
+        assert!(
+            matches!(err, CheckFailure::NotHomogeneous { s: 2, .. }),
+            "{err}"
+        );
     }
 
     #[test]

@@ -38,17 +38,42 @@ pub const FAMILY_LOWER: &str = "dist-lower";
 
 /// Adds `‖x_i − x_j‖∞ ≤ g(k)` for every pair.
 pub fn add_upper(e: &mut Encoder, q: &Question) {
+    upper(e, q, false);
+}
+
+/// Adds `‖x_i − x_j‖∞ ≥ g(k)` for every pair, with witness variables.
+pub fn add_lower(e: &mut Encoder, q: &Question) {
+    lower(e, q, false);
+}
+
+/// The profile offsets of the ordered pairs `(i, j)` and `(j, i)`, `i < j`:
+/// both `offset_class(i, j)` for the norm, `j − i` and `p − j + i` for the
+/// one-sided `t` of [`super::topical`].
+fn offsets(i: usize, j: usize, p: usize, one_sided: bool) -> (usize, usize) {
+    if one_sided {
+        (j - i, p - (j - i))
+    } else {
+        let k = offset_class(i, j, p);
+        (k, k)
+    }
+}
+
+/// The upper-bound clauses, in the one loop order both classes share:
+/// `P(u,w) ≤ t ⇒ x_{u,c} − x_{w,c} ≤ t` for both orders of every pair, where
+/// `P` is `g` (norm) or `T` (`one_sided`) at the pair's offset.
+pub(super) fn upper(e: &mut Encoder, q: &Question, one_sided: bool) {
     let g = &q.grid;
-    for (i, j, k) in pairs(q.period) {
+    for (i, j, _) in pairs(q.period) {
+        let (kij, kji) = offsets(i, j, q.period, one_sided);
         for c in 0..g.dim() {
             let s = g.side(c) as i64;
             for t in 1..s {
-                let above = profile::ge(e, q, k, t + 1);
+                let above = [profile::ge(e, q, kij, t + 1), profile::ge(e, q, kji, t + 1)];
                 for v in g.lo(c) + 1..=g.hi(c) - t {
-                    for (u, w) in [(i, j), (j, i)] {
+                    for (u, w, a) in [(i, j, above[0]), (j, i, above[1])] {
                         let far = coords::ge(e, q, u, c, v + t);
                         let near = coords::ge(e, q, w, c, v);
-                        e.clause(&[above, !far, near]);
+                        e.clause(&[a, !far, near]);
                     }
                 }
             }
@@ -56,13 +81,15 @@ pub fn add_upper(e: &mut Encoder, q: &Question) {
     }
 }
 
-/// Adds `‖x_i − x_j‖∞ ≥ g(k)` for every pair, with witness variables.
-pub fn add_lower(e: &mut Encoder, q: &Question) {
+/// The witness variables and lower-bound clauses: `P(u,w) ≥ t ⇒` some
+/// `D[u,w,c,t]`. For the norm one clause covers both orders of a pair (the
+/// distance is symmetric); for `one_sided` each order has its own clause.
+pub(super) fn lower(e: &mut Encoder, q: &Question, one_sided: bool) {
     let g = &q.grid;
     let l = g.diameter() as i64;
     let mut witnesses: Vec<Term> = Vec::new();
-    for (i, j, k) in pairs(q.period) {
-        debug_assert_eq!(k, offset_class(i, j, q.period));
+    for (i, j, _) in pairs(q.period) {
+        let (kij, kji) = offsets(i, j, q.period, one_sided);
         for (u, w) in [(i, j), (j, i)] {
             for c in 0..g.dim() {
                 for t in 1..=g.side(c) as i64 {
@@ -86,26 +113,33 @@ pub fn add_lower(e: &mut Encoder, q: &Question) {
                 }
             }
         }
+        let groups: &[&[(usize, usize, usize)]] = if one_sided {
+            &[&[(i, j, kij)], &[(j, i, kji)]]
+        } else {
+            &[&[(i, j, kij), (j, i, kji)]]
+        };
         for t in 1..=l {
-            witnesses.clear();
-            witnesses.push(!profile::ge(e, q, k, t));
-            for (u, w) in [(i, j), (j, i)] {
-                for c in (0..g.dim()).filter(|&c| g.side(c) as i64 >= t) {
-                    let m = Meaning::Diff {
-                        i: u,
-                        j: w,
-                        c,
-                        value: t,
-                    };
-                    witnesses.push(Term::Lit(e.get(&m).pos()));
+            for group in groups {
+                witnesses.clear();
+                witnesses.push(!profile::ge(e, q, group[0].2, t));
+                for &(u, w, _) in *group {
+                    for c in (0..g.dim()).filter(|&c| g.side(c) as i64 >= t) {
+                        let m = Meaning::Diff {
+                            i: u,
+                            j: w,
+                            c,
+                            value: t,
+                        };
+                        witnesses.push(Term::Lit(e.get(&m).pos()));
+                    }
                 }
+                e.clause(&witnesses);
             }
-            e.clause(&witnesses);
         }
     }
 }
 
-fn num_pairs(q: &Question) -> u64 {
+pub(super) fn num_pairs(q: &Question) -> u64 {
     let p = q.period as u64;
     p * p.saturating_sub(1) / 2
 }

@@ -7,6 +7,13 @@
 //! the points are distinct, so a model is an orbit of minimal period `p` of the
 //! shift, which extends to a nonexpansive map of the whole box.
 //!
+//! For topical maps ([`MapClass::Topical`]) the formulation is
+//! [`TOPICAL_FORMULATION`]: the same coordinates, the profile over the
+//! unfolded offsets `1..p−1` of the one-sided `t(x_i, x_{i+k})`, the
+//! families of [`topical`] in place of those of [`distance`], and the
+//! symmetry steps adapted as [`symmetry`] describes; the redundant counting
+//! families and `sym-reverse` are not used (`encodings/topical.md`).
+//!
 //! Each constraint family lives in its own module and is written up in
 //! `encodings/`; every family reports its variable and clause counts, and
 //! [`estimate`] predicts them exactly from the question alone, before any
@@ -24,6 +31,7 @@ pub mod packing;
 pub mod points;
 pub mod profile;
 pub mod symmetry;
+pub mod topical;
 
 #[cfg(test)]
 mod soundness;
@@ -32,11 +40,31 @@ use serde::{Deserialize, Serialize};
 
 use crate::cnf::{Cnf, FamilyCount, Lit, Var};
 use crate::error::{Error, Result};
-use crate::question::Question;
+use crate::question::{MapClass, Question};
 use crate::varmap::{Meaning, VarMap};
 
 /// Name and version of the formulation, recorded in every CNF header.
 pub const FORMULATION: &str = "isometric-cycle/1";
+
+/// Name and version of the topical formulation ([`topical`]).
+pub const TOPICAL_FORMULATION: &str = "topical-cycle/1";
+
+/// The formulation that encodes questions of `class`.
+pub fn formulation(class: MapClass) -> &'static str {
+    match class {
+        MapClass::Nonexpansive => FORMULATION,
+        MapClass::Topical => TOPICAL_FORMULATION,
+    }
+}
+
+/// The number `K` of profile offsets: `⌊p/2⌋` for the symmetric norm,
+/// `p − 1` for the one-sided `t` of topical maps.
+pub fn profile_len(q: &Question) -> usize {
+    match q.class {
+        MapClass::Nonexpansive => q.period / 2,
+        MapClass::Topical => q.period - 1,
+    }
+}
 
 /// Default limit on the number of clauses [`encode`] will build.
 pub const DEFAULT_MAX_CLAUSES: u64 = 20_000_000;
@@ -172,7 +200,8 @@ impl Symmetry {
 #[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct EncodeOptions {
-    /// The formulation; always [`FORMULATION`] for this version.
+    /// The formulation: [`FORMULATION`], or [`TOPICAL_FORMULATION`] once
+    /// [`EncodeOptions::resolve`] has seen a topical question.
     pub formulation: String,
     /// Symmetry-breaking families.
     pub symmetry: Symmetry,
@@ -216,6 +245,13 @@ impl EncodeOptions {
     /// the CNF header records.
     pub fn resolve(&self, q: &Question) -> EncodeOptions {
         let mut o = self.clone();
+        o.formulation = formulation(q.class).to_string();
+        if q.class == MapClass::Topical {
+            // The counting families and step 6 are argued for the norm only.
+            o.count = false;
+            o.packing = false;
+            o.symmetry.reverse = false;
+        }
         let point_eq_ok = q.period as u128 * q.grid.num_points() <= POINT_EQ_LIMIT;
         if !point_eq_ok {
             o.count = false;
@@ -227,7 +263,7 @@ impl EncodeOptions {
         if !o.symmetry.isometry || q.period < 2 {
             o.symmetry.stabilizer = false;
         }
-        if o.symmetry.stabilizer && symmetry::stabilizer_classes(&q.grid).is_none() {
+        if o.symmetry.stabilizer && symmetry::stabilizer_classes(q).is_none() {
             o.symmetry.stabilizer = false;
         }
         if !o.symmetry.stabilizer || q.period < 3 {
@@ -373,12 +409,22 @@ impl Encoder {
 pub fn estimate(q: &Question, options: &EncodeOptions) -> Vec<FamilyCount> {
     let o = options.resolve(q);
     let s = o.symmetry;
-    let mut out = vec![
-        coords::count(q),
-        profile::count(q),
-        distance::count_upper(q),
-        distance::count_lower(q),
-    ];
+    let topical = q.class == MapClass::Topical;
+    let mut out = if topical {
+        vec![
+            coords::count(q),
+            profile::count(q),
+            topical::count_upper(q),
+            topical::count_lower(q),
+        ]
+    } else {
+        vec![
+            coords::count(q),
+            profile::count(q),
+            distance::count_upper(q),
+            distance::count_lower(q),
+        ]
+    };
     if o.needs_points() {
         out.push(points::count(q));
     }
@@ -399,12 +445,15 @@ pub fn estimate(q: &Question, options: &EncodeOptions) -> Vec<FamilyCount> {
     }
     if s.rotate {
         out.push(symmetry::count_rotate(q));
+        if topical {
+            out.push(symmetry::count_sort(q));
+        }
     }
     if s.isometry {
         out.push(symmetry::count_isometry(q));
     }
     if s.stabilizer || s.reverse {
-        let classes = symmetry::stabilizer_classes(&q.grid).unwrap_or_default();
+        let classes = symmetry::stabilizer_classes(q).unwrap_or_default();
         if s.stabilizer {
             out.push(symmetry::count_stabilizer(&classes));
         }
@@ -446,10 +495,16 @@ pub fn encode(q: &Question, options: &EncodeOptions, max_clauses: u64) -> Result
     let o = options.resolve(q);
     let s = o.symmetry;
     let mut enc = Encoder::new();
+    let topical = q.class == MapClass::Topical;
     enc.family(coords::FAMILY, |e| coords::add(e, q));
     enc.family(profile::FAMILY, |e| profile::add(e, q));
-    enc.family(distance::FAMILY_UPPER, |e| distance::add_upper(e, q));
-    enc.family(distance::FAMILY_LOWER, |e| distance::add_lower(e, q));
+    if topical {
+        enc.family(topical::FAMILY_UPPER, |e| topical::add_upper(e, q));
+        enc.family(topical::FAMILY_LOWER, |e| topical::add_lower(e, q));
+    } else {
+        enc.family(distance::FAMILY_UPPER, |e| distance::add_upper(e, q));
+        enc.family(distance::FAMILY_LOWER, |e| distance::add_lower(e, q));
+    }
     if o.needs_points() {
         enc.family(points::FAMILY, |e| points::add(e, q));
     }
@@ -470,12 +525,15 @@ pub fn encode(q: &Question, options: &EncodeOptions, max_clauses: u64) -> Result
     }
     if s.rotate {
         enc.family(symmetry::ROTATE, |e| symmetry::add_rotate(e, q));
+        if topical {
+            enc.family(symmetry::SORT, |e| symmetry::add_sort(e, q));
+        }
     }
     if s.isometry {
         enc.family(symmetry::ISOMETRY, |e| symmetry::add_isometry(e, q));
     }
     if s.stabilizer || s.reverse {
-        let classes = symmetry::stabilizer_classes(&q.grid).unwrap_or_default();
+        let classes = symmetry::stabilizer_classes(q).unwrap_or_default();
         if s.stabilizer {
             enc.family(symmetry::STABILIZER, |e| {
                 symmetry::add_stabilizer(e, q, &classes)
@@ -529,31 +587,80 @@ mod tests {
             ("5..5", 2, 1),
             ("0..1", 1, 2),
         ] {
-            let question = q(spec, dim, p);
-            let opts = EncodeOptions::default();
-            let e = encode(&question, &opts, u64::MAX).unwrap();
-            assert_eq!(
-                e.families,
-                estimate(&question, &opts),
-                "{spec} n={dim} p={p}"
-            );
-            let total: u64 = e.families.iter().map(|f| f.clauses).sum();
-            assert_eq!(total as usize, e.cnf.num_clauses());
-            assert_eq!(e.map.len() as u32, e.cnf.num_vars());
+            assert_estimate_is_exact(&q(spec, dim, p), &EncodeOptions::default());
         }
+    }
+
+    /// `estimate` predicts every family of `encode`, and the totals add up.
+    fn assert_estimate_is_exact(question: &Question, opts: &EncodeOptions) -> Encoding {
+        let e = encode(question, opts, u64::MAX).unwrap();
+        assert_eq!(e.families, estimate(question, opts), "{question:?}");
+        let total: u64 = e.families.iter().map(|f| f.clauses).sum();
+        assert_eq!(total as usize, e.cnf.num_clauses());
+        assert_eq!(e.map.len() as u32, e.cnf.num_vars());
+        e
+    }
+
+    #[test]
+    fn estimate_is_exact_for_every_topical_family() {
+        for (spec, dim, p) in [
+            ("0..1", 3, 3),
+            ("0..1", 4, 7),
+            ("0..2", 3, 5),
+            ("0..1,-1..1,0..3", 3, 4),
+            ("0..0,0..2", 2, 2),
+            ("5..5", 2, 1),
+            ("0..1", 1, 1),
+            ("0..1", 2, 2),
+        ] {
+            let question = q(spec, dim, p).with_class(MapClass::Topical);
+            for opts in [EncodeOptions::default(), EncodeOptions::plain()] {
+                let e = assert_estimate_is_exact(&question, &opts);
+                assert_eq!(e.options.formulation, TOPICAL_FORMULATION);
+            }
+        }
+    }
+
+    /// `(family, vars, clauses)` in the order added.
+    fn family_counts(e: &Encoding) -> Vec<(&str, u64, u64)> {
+        e.families
+            .iter()
+            .map(|f| (f.family.as_str(), f.vars, f.clauses))
+            .collect()
+    }
+
+    #[test]
+    fn clause_counts_of_a_topical_question() {
+        // {0,1,2}^2, p = 3: s = (2, 2), L = 2, K = p − 1 = 2, 3 pairs
+        // (formulas in encodings/topical.md).
+        // coord-order 3·4 / 3·2; profile K·L = 4 / 4; tdist-upper 3·(2 + 2) = 12;
+        // tdist-lower 3·2·4 = 24 vars, 3·(2L + 2·(2·5)) = 3·24 = 72 clauses.
+        let t = q("0..2", 2, 3).with_class(MapClass::Topical);
+        let e = encode(&t, &EncodeOptions::plain(), u64::MAX).unwrap();
+        assert_eq!(
+            family_counts(&e),
+            vec![
+                ("coord-order", 12, 6),
+                ("profile", 4, 4),
+                ("tdist-upper", 0, 12),
+                ("tdist-lower", 24, 72),
+            ]
+        );
+        // The default adds: sym-translate one clause per coordinate; sym-sort with
+        // N = 9, P = 1: 1 + 1·2 + 2·8 = 19 vars, 1 + 2·2 + 2·17 = 39 clauses.
+        let d = encode(&t, &EncodeOptions::default(), u64::MAX).unwrap();
+        let sort = d.families.iter().find(|f| f.family == "sym-sort").unwrap();
+        assert_eq!((sort.vars, sort.clauses), (19, 39));
+        let names: Vec<&str> = d.families.iter().map(|f| f.family.as_str()).collect();
+        assert!(!names.contains(&"count-occupancy") && !names.contains(&"sym-reverse"));
     }
 
     #[test]
     fn clause_counts_of_the_cube_question() {
         // {-1,0,1}^3, p = 8: S = 6, L = 2, K = 4, 28 pairs (formulas in encodings/isometric-cycle.md).
         let e = encode(&q("-1..1", 3, 8), &EncodeOptions::plain(), u64::MAX).unwrap();
-        let got: Vec<(&str, u64, u64)> = e
-            .families
-            .iter()
-            .map(|f| (f.family.as_str(), f.vars, f.clauses))
-            .collect();
         assert_eq!(
-            got,
+            family_counts(&e),
             vec![
                 ("coord-order", 48, 24),
                 ("profile", 8, 8),

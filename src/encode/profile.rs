@@ -1,7 +1,12 @@
-//! Family `profile`: the distance profile `g(k)`, `1 ≤ k ≤ ⌊p/2⌋`.
+//! Family `profile`: the distance profile `g(k)`, `1 ≤ k ≤ K`.
 //!
 //! On an isometric cycle `‖x_i − x_{i+k}‖∞ = g(k)` for all `i`, and
-//! `g(k) = g(p − k)`, so offsets `k ≤ ⌊p/2⌋` suffice.
+//! `g(k) = g(p − k)`, so offsets `k ≤ K = ⌊p/2⌋` suffice. Under the topical
+//! formulation the same variables hold the one-sided profile
+//! `T(k) = t(x_i, x_{i+k}) = max_c (x_{i,c} − x_{i+k,c})`, which is not
+//! symmetric, so `K = p − 1` ([`super::profile_len`]); `T(k) ≥ 1` for
+//! `k ≢ 0` on every such orbit (`encodings/topical.md`), so the unit below
+//! is sound there too.
 //!
 //! Variables: `G[k,t] ⇔ g(k) ≥ t` for `1 ≤ t ≤ L`, where `L` is the box's
 //! diameter `max_c (b_c − a_c)`; no two points of the box are farther apart.
@@ -9,11 +14,11 @@
 //! Clauses: the unit `G[k,1]` (points at nonzero offset are distinct, which
 //! makes the period minimal) and `G[k,t+1] → G[k,t]` for `1 ≤ t < L`.
 //!
-//! Counts: `K·L` variables and `K·L` clauses, `K = ⌊p/2⌋`.
+//! Counts: `K·L` variables and `K·L` clauses.
 //!
 //! Soundness: the models are exactly the order encodings of values
 //! `g(k) ∈ [1, L]`, the only values a distance between distinct points of the
-//! box can take.
+//! box can take (for `T`: `t(y, z) ≤ max_c s_c` on the box, and `T ≥ 1`).
 
 use super::{Encoder, Term};
 use crate::cnf::FamilyCount;
@@ -26,7 +31,7 @@ pub const FAMILY: &str = "profile";
 /// Adds the profile variables and their clauses.
 pub fn add(e: &mut Encoder, q: &Question) {
     let l = q.grid.diameter() as i64;
-    for k in 1..=q.period / 2 {
+    for k in 1..=super::profile_len(q) {
         for value in 1..=l {
             e.var(Meaning::Profile { k, value });
         }
@@ -52,7 +57,7 @@ pub fn ge(e: &Encoder, q: &Question, k: usize, t: i64) -> Term {
 
 /// Exact counts of this family for `q`.
 pub fn count(q: &Question) -> FamilyCount {
-    let kl = (q.period / 2) as u64 * q.grid.diameter();
+    let kl = super::profile_len(q) as u64 * q.grid.diameter();
     FamilyCount {
         family: FAMILY.into(),
         vars: kl,

@@ -13,7 +13,7 @@ use super::{EncodeOptions, Symmetry, encode};
 use crate::brute;
 use crate::grid::{Grid, Point};
 use crate::isometry;
-use crate::question::{Question, effective_dim, lemmens_scheutzow_bound};
+use crate::question::{MapClass, Question, effective_dim, lemmens_scheutzow_bound, topical_bound};
 use crate::report::Verdict;
 use crate::solve::Limits;
 use crate::solve::bundled::Bundled;
@@ -68,12 +68,26 @@ fn boxes(dim: usize, max_points: i64) -> Vec<Grid> {
 }
 
 fn agree_on(grids: &[Grid], combos: &[EncodeOptions], extra: u128) {
+    agree_on_class(grids, combos, extra, MapClass::Nonexpansive);
+}
+
+/// Verdicts of `decide` under every option set in `combos` equal those of
+/// the brute force of `class`, for `p` up to the class's published bound plus
+/// `extra`; every orbit is verified.
+fn agree_on_class(grids: &[Grid], combos: &[EncodeOptions], extra: u128, class: MapClass) {
     for g in grids {
-        let bound = lemmens_scheutzow_bound(effective_dim(g)) + extra;
+        let n = effective_dim(g);
+        let bound = match class {
+            MapClass::Nonexpansive => lemmens_scheutzow_bound(n),
+            MapClass::Topical => topical_bound(n),
+        } + extra;
         let max_p = bound.min(g.num_points()) as usize;
         for p in 1..=max_p {
-            let brute = brute::find_cycle(g.ranges(), p);
-            let q = Question::new(g.clone(), p).unwrap();
+            let brute = match class {
+                MapClass::Nonexpansive => brute::find_cycle(g.ranges(), p),
+                MapClass::Topical => brute::find_topical_cycle(g.ranges(), p),
+            };
+            let q = Question::new(g.clone(), p).unwrap().with_class(class);
             for o in combos {
                 let r = decide::decide(&q, o, &mut Bundled, &Limits::default(), u64::MAX).unwrap();
                 let want = if brute.is_some() {
@@ -81,9 +95,19 @@ fn agree_on(grids: &[Grid], combos: &[EncodeOptions], extra: u128) {
                 } else {
                     Verdict::Infeasible
                 };
-                assert_eq!(r.verdict, want, "{} p={p} options {:?}", g.spec(), o);
+                assert_eq!(
+                    r.verdict,
+                    want,
+                    "{class} {} p={p} options {:?}",
+                    g.spec(),
+                    o
+                );
                 if let Some(orbit) = &r.orbit {
-                    verify::check_orbit(g.ranges(), orbit).unwrap();
+                    match class {
+                        MapClass::Nonexpansive => verify::check_orbit(g.ranges(), orbit),
+                        MapClass::Topical => verify::check_topical_orbit(g.ranges(), orbit),
+                    }
+                    .unwrap();
                 }
             }
         }
@@ -134,10 +158,14 @@ fn brute_force_agrees_in_dimension_three_under_every_combination() {
 }
 
 /// All images of `cycle` under translations inside the box, the box's
-/// isometries and the re-indexings `i ↦ a·i + r`, `gcd(a, p) = 1`.
-fn images(g: &Grid, cycle: &[Point]) -> Vec<Vec<Point>> {
+/// isometries (only the unreflected ones for `Topical`) and the
+/// re-indexings `i ↦ a·i + r`, `gcd(a, p) = 1`.
+fn images(g: &Grid, cycle: &[Point], class: MapClass) -> Vec<Vec<Point>> {
     let p = cycle.len();
-    let group = isometry::elements(g, 1 << 20).unwrap();
+    let mut group = isometry::elements(g, 1 << 20).unwrap();
+    if class == MapClass::Topical {
+        group.retain(|s| s.flip.iter().all(|f| !f));
+    }
     let mut out = Vec::new();
     let n = g.dim();
     let mut shifts: Vec<Vec<i64>> = vec![vec![]];
@@ -177,8 +205,15 @@ fn gcd(a: usize, b: usize) -> usize {
 }
 
 fn some_image_satisfies_all_breaks(g: &Grid, p: usize, limit: usize) -> usize {
-    let cycles = brute::all_cycles(g.ranges(), p, limit);
-    let q = Question::new(g.clone(), p).unwrap();
+    image_check(g, p, limit, MapClass::Nonexpansive)
+}
+
+fn image_check(g: &Grid, p: usize, limit: usize, class: MapClass) -> usize {
+    let cycles = match class {
+        MapClass::Nonexpansive => brute::all_cycles(g.ranges(), p, limit),
+        MapClass::Topical => brute::all_topical_cycles(g.ranges(), p, limit),
+    };
+    let q = Question::new(g.clone(), p).unwrap().with_class(class);
     let enc = encode(&q, &EncodeOptions::default(), u64::MAX).unwrap();
     let mut solver = Solver::new();
     for clause in enc.cnf.clauses() {
@@ -190,7 +225,7 @@ fn some_image_satisfies_all_breaks(g: &Grid, p: usize, limit: usize) -> usize {
     }
     for cycle in &cycles {
         let mut ok = false;
-        for image in images(g, cycle) {
+        for image in images(g, cycle, class) {
             let mut assumptions = Vec::new();
             for (i, x) in image.iter().enumerate() {
                 for c in 0..g.dim() {
@@ -245,4 +280,52 @@ fn every_brute_force_cycle_has_an_image_satisfying_all_breaks() {
         }
     }
     assert!(checked > 300, "only {checked} cycles checked");
+}
+
+/// The combinations that act on topical questions (count, packing and
+/// `reverse` are switched off for them): 8 × 3 = 24.
+fn topical_combinations() -> Vec<EncodeOptions> {
+    all_combinations()
+        .into_iter()
+        .filter(|o| !o.count && !o.packing && !o.symmetry.reverse)
+        .collect()
+}
+
+#[test]
+fn topical_brute_force_agrees_under_every_combination_in_dimensions_one_and_two() {
+    let combos = topical_combinations();
+    assert_eq!(combos.len(), 24);
+    let mut grids = boxes(1, 4);
+    grids.extend(boxes(2, 4));
+    agree_on_class(&grids, &combos, 3, MapClass::Topical);
+}
+
+#[test]
+fn topical_brute_force_agrees_in_dimension_three() {
+    let combos = [
+        EncodeOptions::default(),
+        EncodeOptions::plain(),
+        EncodeOptions {
+            symmetry: Symmetry::parse("translate,rotate").unwrap(),
+            ..EncodeOptions::default()
+        },
+    ];
+    agree_on_class(&boxes(3, 3), &combos, 2, MapClass::Topical);
+}
+
+#[test]
+fn every_topical_brute_force_cycle_has_an_image_satisfying_all_breaks() {
+    let mut checked = 0;
+    for g in boxes(2, 4) {
+        for p in 1..=(g.num_points().min(4) as usize) {
+            checked += image_check(&g, p, 40, MapClass::Topical);
+        }
+    }
+    for (spec, ps) in [("0..1", 1..=3), ("0..2", 1..=4), ("0..1,0..2,0..2", 1..=4)] {
+        let g = Grid::parse(spec, Some(3)).unwrap();
+        for p in ps {
+            checked += image_check(&g, p, 30, MapClass::Topical);
+        }
+    }
+    assert!(checked > 100, "only {checked} topical cycles checked");
 }

@@ -32,12 +32,24 @@
 //!
 //! Steps 5 and 6 enumerate the box's isometries and are switched off
 //! (recorded in the header's options) when that group is large.
+//!
+//! **Topical class** (`encodings/topical.md`). The one-sided condition is
+//! invariant under *all* translations, the coordinate permutations of the
+//! box (no reflections: `t(−y, −z) = t(z, y)`), rotations, and every
+//! multiplier `a ∈ (Z/p)^*` acting on the unfolded profile `T(1..p−1)` by
+//! `k ↦ a·k mod p`. The steps change accordingly: step 1 asks for a point on
+//! the *lower* face of every coordinate; step 2 ranges over all units
+//! `a ≠ 1`; step 3 is unchanged (types are invariant under permutations) and
+//! is joined by `sym-sort` ([`add_sort`]): when the profile is constant,
+//! every re-indexing keeps the condition, so the points are sorted; step 4
+//! uses the orbits of the permutations ([`representatives_for`]); step 5
+//! the stabiliser within the permutations; step 6 is never used.
 
 use super::{Encoder, Term, coords, points, profile};
 use crate::cnf::FamilyCount;
 use crate::grid::{Grid, Point};
 use crate::isometry::{self, index_of, type_key};
-use crate::question::Question;
+use crate::question::{MapClass, Question};
 
 /// Label of step 1.
 pub const TRANSLATE: &str = "sym-translate";
@@ -51,6 +63,8 @@ pub const ISOMETRY: &str = "sym-isometry";
 pub const STABILIZER: &str = "sym-stabilizer";
 /// Label of step 6.
 pub const REVERSE: &str = "sym-reverse";
+/// Label of the topical sorting step, added with step 3.
+pub const SORT: &str = "sym-sort";
 
 /// Largest `|group|·|D|` for which steps 5 and 6 enumerate the group.
 pub const STABILIZER_WORK_LIMIT: u128 = 20_000_000;
@@ -87,14 +101,45 @@ pub fn representatives(g: &Grid) -> Vec<usize> {
     rep
 }
 
-/// For each representative `r`, the smallest point of every grid point's orbit
-/// under the stabiliser of `r`; `None` when the group is too large to list.
-pub fn stabilizer_classes(g: &Grid) -> Option<Vec<(usize, Vec<usize>)>> {
+/// The representatives of step 4 for `q`'s class: [`representatives`] for
+/// the norm; for topical maps the smallest point of each orbit of the
+/// coordinate permutations, which are the points whose offsets `z_c − a_c`
+/// do not decrease along each class of coordinates of equal side (sorting
+/// the offsets of a class into its positions gives the smallest index).
+pub fn representatives_for(q: &Question) -> Vec<usize> {
+    let g = &q.grid;
+    if q.class == MapClass::Nonexpansive {
+        return representatives(g);
+    }
+    let live: Vec<usize> = (0..g.dim()).filter(|&c| g.side(c) > 0).collect();
+    g.points()
+        .enumerate()
+        .filter(|(_, z)| {
+            live.iter().enumerate().all(|(n, &c)| {
+                live[n + 1..]
+                    .iter()
+                    .filter(|&&d| g.side(d) == g.side(c))
+                    .all(|&d| z[c] - g.lo(c) <= z[d] - g.lo(d))
+            })
+        })
+        .map(|(i, _)| i)
+        .collect()
+}
+
+/// For each representative `r` ([`representatives_for`]), the smallest point
+/// of every grid point's orbit under the stabiliser of `r` in the class's
+/// group (all isometries, or the unreflected ones for topical maps); `None`
+/// when the group is too large to list.
+pub fn stabilizer_classes(q: &Question) -> Option<Vec<(usize, Vec<usize>)>> {
+    let g = &q.grid;
     let pts: Vec<Point> = g.points().collect();
     let limit = STABILIZER_WORK_LIMIT / (pts.len() as u128).max(1);
-    let group = isometry::elements(g, limit)?;
+    let mut group = isometry::elements(g, limit)?;
+    if q.class == MapClass::Topical {
+        group.retain(|s| s.flip.iter().all(|f| !f));
+    }
     Some(
-        representatives(g)
+        representatives_for(q)
             .into_iter()
             .map(|r| {
                 let stab: Vec<_> = group
@@ -130,18 +175,36 @@ pub fn multiplier_maps(p: usize) -> Vec<Vec<usize>> {
     out
 }
 
+/// The multipliers of step 2 for `q`'s class, as maps of the offsets
+/// `1..=K` ([`super::profile_len`]): [`multiplier_maps`] for the norm; for
+/// topical maps every unit `a ≠ 1` of `Z/p` as `k ↦ a·k mod p`.
+pub fn multiplier_maps_for(q: &Question) -> Vec<Vec<usize>> {
+    let p = q.period;
+    if q.class == MapClass::Nonexpansive {
+        return multiplier_maps(p);
+    }
+    (2..p)
+        .filter(|&a| gcd(a, p) == 1)
+        .map(|a| (0..p).map(|k| a * k % p).collect())
+        .collect()
+}
+
 fn gcd(a: usize, b: usize) -> usize {
     if b == 0 { a } else { gcd(b, a % b) }
 }
 
-/// Step 1.
+/// Step 1. For topical maps only the lower face: every translation is a
+/// symmetry there and no reflection has to be accommodated later.
 pub fn add_translate(e: &mut Encoder, q: &Question) {
     let g = &q.grid;
+    let upper = q.class == MapClass::Nonexpansive;
     for c in (0..g.dim()).filter(|&c| g.side(c) > 0) {
         let mut lits = Vec::with_capacity(2 * q.period);
         for i in 0..q.period {
             lits.push(!coords::ge(e, q, i, c, g.lo(c) + 1));
-            lits.push(coords::ge(e, q, i, c, g.hi(c)));
+            if upper {
+                lits.push(coords::ge(e, q, i, c, g.hi(c)));
+            }
         }
         e.clause(&lits);
     }
@@ -159,9 +222,9 @@ pub fn count_translate(q: &Question) -> FamilyCount {
 
 /// Step 2.
 pub fn add_multiplier(e: &mut Encoder, q: &Question) {
-    let k_max = q.period / 2;
+    let k_max = super::profile_len(q);
     let l = q.grid.diameter() as i64;
-    for map in multiplier_maps(q.period) {
+    for map in multiplier_maps_for(q) {
         let mut eq_prev = Term::True;
         for k in 1..=k_max {
             let h = map[k];
@@ -193,10 +256,10 @@ pub fn add_multiplier(e: &mut Encoder, q: &Question) {
 
 /// Exact counts of step 2.
 pub fn count_multiplier(q: &Question) -> FamilyCount {
-    let k_max = q.period / 2;
+    let k_max = super::profile_len(q);
     let l = q.grid.diameter();
     let (mut vars, mut clauses) = (0u64, 0u64);
-    for map in multiplier_maps(q.period) {
+    for map in multiplier_maps_for(q) {
         for k in 1..=k_max {
             let last = k == k_max;
             if map[k] == k {
@@ -275,7 +338,7 @@ pub fn count_rotate(q: &Question) -> FamilyCount {
 /// Step 4.
 pub fn add_isometry(e: &mut Encoder, q: &Question) {
     let pts: Vec<Point> = q.grid.points().collect();
-    let lits: Vec<Term> = representatives(&q.grid)
+    let lits: Vec<Term> = representatives_for(q)
         .iter()
         .map(|&r| points::at(e, 0, &pts[r]))
         .collect();
@@ -346,6 +409,91 @@ pub fn count_reverse(classes: &[(usize, Vec<usize>)]) -> FamilyCount {
         family: REVERSE.into(),
         vars: 0,
         clauses,
+    }
+}
+
+/// The order `≺` of the topical sorting step: higher type rank first, then
+/// smaller index. `ord[z]` is the position of grid point `z` (by index) in it.
+pub fn sort_order(g: &Grid) -> Vec<usize> {
+    let (ranks, _) = type_ranks(g);
+    let mut order: Vec<usize> = (0..ranks.len()).collect();
+    order.sort_by_key(|&z| (std::cmp::Reverse(ranks[z]), z));
+    let mut ord = vec![0; order.len()];
+    for (r, &z) in order.iter().enumerate() {
+        ord[z] = r;
+    }
+    ord
+}
+
+/// The topical sorting step (`sym-sort`, with step 3): if the profile is
+/// constant, `x_0 ≺ x_1 ≺ … ≺ x_{p−1}` in the order of [`sort_order`].
+///
+/// Variables: `s` ("sorted"); `d[k,t]` for `2 ≤ k ≤ p−1`, `1 ≤ t ≤ L`, with
+/// `d → (T(1) ≥ t) ≠ (T(k) ≥ t)`; `W[j,r]` for `1 ≤ j ≤ p−1`, `1 ≤ r < N`,
+/// with `W[j,r] → W[j,r+1] ∨ [x_j = z_r]` (`z_r` the point at position `r`
+/// of `≺`; `W[j,N]` is false), so `W[j,r]` implies `ord(x_j) ≥ r`.
+/// Clauses: `s ∨ ⋁ d` (a constant profile forces `s`), the `d` and `W`
+/// definitions, and `s ∧ [x_i = z] → W[i+1, ord(z)+1]` (just `¬s ∨ ¬[x_i = z]`
+/// for the last point of `≺`), for `0 ≤ i < p−1`.
+/// Counts, `P = max(p−2, 0)`: `1 + P·L + (p−1)(N−1)` variables and
+/// `1 + 2P·L + (p−1)(2N−1)` clauses.
+pub fn add_sort(e: &mut Encoder, q: &Question) {
+    let g = &q.grid;
+    let p = q.period;
+    let l = g.diameter() as i64;
+    let pts: Vec<Point> = g.points().collect();
+    let ord = sort_order(g);
+    let mut by_rank = vec![0; ord.len()];
+    for (z, &r) in ord.iter().enumerate() {
+        by_rank[r] = z;
+    }
+    let s = e.aux(SORT);
+    let mut any = vec![s];
+    for k in 2..p {
+        for t in 1..=l {
+            let d = e.aux(SORT);
+            let (a, b) = (profile::ge(e, q, 1, t), profile::ge(e, q, k, t));
+            e.clause(&[!d, a, b]);
+            e.clause(&[!d, !a, !b]);
+            any.push(d);
+        }
+    }
+    e.clause(&any);
+    let n = pts.len();
+    // w[j][r] for j = 1..p-1 (index j-1), r = 1..n-1 (index r; 0 unused).
+    let mut w: Vec<Vec<Term>> = Vec::with_capacity(p.saturating_sub(1));
+    for _ in 1..p {
+        let mut row = vec![Term::True; n + 1];
+        for slot in row.iter_mut().take(n).skip(1) {
+            *slot = e.aux(SORT);
+        }
+        row[n] = Term::False;
+        w.push(row);
+    }
+    for (j, row) in w.iter().enumerate() {
+        for r in 1..n {
+            let at = points::at(e, j + 1, &pts[by_rank[r]]);
+            e.clause(&[!row[r], row[r + 1], at]);
+        }
+    }
+    for i in 0..p.saturating_sub(1) {
+        for (z, point) in pts.iter().enumerate() {
+            let at = points::at(e, i, point);
+            e.clause(&[!s, !at, w[i][ord[z] + 1]]);
+        }
+    }
+}
+
+/// Exact counts of [`add_sort`].
+pub fn count_sort(q: &Question) -> FamilyCount {
+    let p = q.period as u64;
+    let n = q.grid.num_points() as u64;
+    let pl = p.saturating_sub(2) * q.grid.diameter();
+    let p1 = p - 1;
+    FamilyCount {
+        family: SORT.into(),
+        vars: 1 + pl + p1 * (n - 1),
+        clauses: 1 + 2 * pl + p1 * (2 * n - 1),
     }
 }
 

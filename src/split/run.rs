@@ -31,7 +31,7 @@ use crate::proof::{LratOptions, LratSummary, check_lrat_with};
 use crate::question::{Question, QuestionRecord};
 use crate::report::Verdict;
 use crate::solve::{Backend, Limits, Outcome};
-use crate::verify::{self, OrbitCheck};
+use crate::verify::OrbitCheck;
 
 /// The format tag of [`CubeResult`].
 pub const RESULT_FORMAT: &str = "orbitcnf-cube-result/1";
@@ -660,7 +660,7 @@ fn check_orbit(q: &Question, orbit: &[Point]) -> Result<OrbitCheck> {
             q.period
         )));
     }
-    Ok(verify::check_orbit(q.grid.ranges(), orbit)?)
+    Ok(q.check_orbit(orbit)?)
 }
 
 /// The indices of the cubes without a final result (missing, unknown,

@@ -165,7 +165,14 @@ impl Report {
             verdict,
             question: q.record(),
             statement: q.statement(),
-            options: options.clone(),
+            // A topical report shows its own formulation and the families
+            // switched off for it; nonexpansive reports echo the options as
+            // given, as they always have.
+            options: if q.class.is_default() {
+                options.clone()
+            } else {
+                options.resolve(q)
+            },
             profile: check.as_ref().map(|c| c.profile.clone()),
             orbit,
             check,

@@ -7,6 +7,8 @@
 //!   PicoSAT, read back by `decode`.
 //! - `instances`: one generated test per file in `instances/` (see `build.rs`).
 //!
+//! - `topical`: the topical map class (`--class topical`), published bound and brute force.
+//!
 //! No verdict is trusted alone: every feasible answer's orbit is verified.
 
 mod brute;
@@ -17,4 +19,5 @@ mod proofs;
 mod published;
 mod scaleout;
 mod spectrum;
+mod topical;
 mod util;

@@ -27,7 +27,10 @@ pub enum Meaning {
         /// Threshold.
         value: i64,
     },
-    /// `g(k) ≥ value`, where `g(k) = ‖x_i − x_{i+k}‖∞` for every `i`.
+    /// `g(k) ≥ value`, where `g(k) = ‖x_i − x_{i+k}‖∞` for every `i`. Under
+    /// the formulation `topical-cycle/1` the same kind holds the one-sided
+    /// `T(k) = max_c (x_{i,c} − x_{i+k,c}) ≥ value`, for `1 ≤ k ≤ p − 1`; the
+    /// header's formulation line tells the two apart.
     Profile {
         /// Cyclic offset.
         k: usize,

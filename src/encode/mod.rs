@@ -247,9 +247,12 @@ impl EncodeOptions {
         let mut o = self.clone();
         o.formulation = formulation(q.class).to_string();
         if q.class == MapClass::Topical {
-            // The counting families and step 6 are argued for the norm only.
+            // The counting families, the subgroup-profile clauses (which
+            // read the folded, symmetric profile) and step 6 are argued for
+            // the norm only.
             o.count = false;
             o.packing = false;
+            o.classes = false;
             o.symmetry.reverse = false;
         }
         let point_eq_ok = q.period as u128 * q.grid.num_points() <= POINT_EQ_LIMIT;

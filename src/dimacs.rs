@@ -112,16 +112,38 @@ pub fn write_cnf(enc: &Encoding, path: &Path) -> Result<()> {
 /// # Errors
 /// [`Error::Io`] naming the path.
 pub fn write_atomically(path: &Path, bytes: &[u8]) -> Result<()> {
+    let mut tmp = temp_beside(path)?;
+    tmp.write_all(bytes).map_err(|e| Error::io(path, e))?;
+    persist(tmp, path)?;
+    Ok(())
+}
+
+/// A temporary file in the folder of `path`, so that [`persist`] can rename
+/// it into place atomically. It is deleted if dropped unpersisted.
+///
+/// # Errors
+/// [`Error::Io`] naming the path.
+pub fn temp_beside(path: &Path) -> Result<tempfile::NamedTempFile> {
     let dir = match path.parent() {
         Some(d) if !d.as_os_str().is_empty() => d,
         _ => Path::new("."),
     };
-    let mut tmp = tempfile::NamedTempFile::new_in(dir).map_err(|e| Error::io(path, e))?;
-    tmp.write_all(bytes).map_err(|e| Error::io(path, e))?;
-    tmp.as_file().sync_all().map_err(|e| Error::io(path, e))?;
-    make_readable(tmp.as_file()).map_err(|e| Error::io(path, e))?;
+    tempfile::NamedTempFile::new_in(dir).map_err(|e| Error::io(path, e))
+}
+
+/// Syncs `tmp`, gives it the usual permissions and renames it to `path`;
+/// returns its size in bytes. Readers of `path` see the old file or the
+/// whole new one, never a part.
+///
+/// # Errors
+/// [`Error::Io`] naming the path.
+pub fn persist(tmp: tempfile::NamedTempFile, path: &Path) -> Result<u64> {
+    let file = tmp.as_file();
+    file.sync_all().map_err(|e| Error::io(path, e))?;
+    make_readable(file).map_err(|e| Error::io(path, e))?;
+    let bytes = file.metadata().map_err(|e| Error::io(path, e))?.len();
     tmp.persist(path).map_err(|e| Error::io(path, e.error))?;
-    Ok(())
+    Ok(bytes)
 }
 
 /// Gives a file the usual permissions of a user's output (temporary files start private).

@@ -65,6 +65,7 @@
 //! a CNF with a different clause count at step 1.
 
 use std::fmt;
+use std::io::Read;
 use std::path::{Path, PathBuf};
 
 use crate::cnf::Cnf;
@@ -163,6 +164,9 @@ pub enum LratReason {
     /// The proof ends in the middle of a step.
     #[error("the proof ends in the middle of a step")]
     Truncated,
+    /// The proof could not be read.
+    #[error("reading the proof failed: {0}")]
+    Io(String),
     /// An added clause's id is not above every id used before (the CNF's
     /// clauses have `1..=m`), so it would reuse or go back.
     #[error("clause id {id} is not above the previous id {previous}")]
@@ -303,21 +307,23 @@ pub fn check_lrat(cnf: &Cnf, proof: impl AsRef<[u8]>) -> Result<LratSummary, Lra
     check_lrat_with(cnf, proof, &LratOptions::default())
 }
 
-/// Reads the file at `path` and checks it with [`check_lrat_with`].
+/// Checks the proof in the file at `path` with [`check_lrat_read`], reading
+/// it in pieces: the proof is never held in memory as a whole.
 ///
 /// # Errors
-/// [`LratFileError::Io`] when the file cannot be read,
-/// [`LratFileError::Rejected`] when the proof is rejected.
+/// [`LratFileError::Io`] when the file cannot be opened,
+/// [`LratFileError::Rejected`] when the proof is rejected (a read error
+/// midway is [`LratReason::Io`]).
 pub fn check_lrat_file(
     cnf: &Cnf,
     path: &Path,
     options: &LratOptions,
 ) -> Result<LratSummary, LratFileError> {
-    let bytes = std::fs::read(path).map_err(|source| LratFileError::Io {
+    let file = std::fs::File::open(path).map_err(|source| LratFileError::Io {
         path: path.to_path_buf(),
         source,
     })?;
-    check_lrat_with(cnf, &bytes, options).map_err(|source| LratFileError::Rejected {
+    check_lrat_read(cnf, file, options).map_err(|source| LratFileError::Rejected {
         path: path.to_path_buf(),
         source,
     })
@@ -332,16 +338,56 @@ pub fn check_lrat_with(
     proof: impl AsRef<[u8]>,
     options: &LratOptions,
 ) -> Result<LratSummary, LratError> {
-    let proof = proof.as_ref();
-    let format = options.format.unwrap_or_else(|| LratFormat::detect(proof));
+    check_lrat_read(cnf, proof.as_ref(), options)
+}
+
+/// Checks an LRAT proof read from `source` that `cnf` is unsatisfiable,
+/// with `options`. The proof is read in pieces, so its size is bounded by
+/// the disk, not by memory; only the clauses it keeps alive are stored.
+///
+/// # Errors
+/// [`LratError`] naming the step, the clause id and the reason.
+pub fn check_lrat_read(
+    cnf: &Cnf,
+    source: impl Read,
+    options: &LratOptions,
+) -> Result<LratSummary, LratError> {
+    check_read(cnf, source, options, Reader::LOOKAHEAD)
+}
+
+/// [`check_lrat_read`] with the first lookahead given (tests use tiny ones
+/// to cut steps at every possible byte).
+fn check_read(
+    cnf: &Cnf,
+    source: impl Read,
+    options: &LratOptions,
+    lookahead: usize,
+) -> Result<LratSummary, LratError> {
     let num_vars = cnf.num_vars();
     let mut reader = Reader {
-        format,
-        buf: proof,
+        format: LratFormat::Text,
+        src: Box::new(source),
+        eof: false,
+        lookahead: lookahead.max(1),
+        buf: Vec::new(),
+        base: 0,
         pos: 0,
         line: 1,
         num_vars,
     };
+    if let Err(e) = reader.fill(1) {
+        return Err(LratError {
+            step: 1,
+            id: None,
+            line: 0,
+            offset: 0,
+            reason: LratReason::Io(e.to_string()),
+        });
+    }
+    let format = options
+        .format
+        .unwrap_or_else(|| LratFormat::detect(&reader.buf));
+    reader.format = format;
     let mut db = Db::new(cnf);
     let mut prop = Propagator::new(num_vars);
     let mut step = RawStep::default();
@@ -466,30 +512,103 @@ impl RawStep {
     }
 }
 
-/// A tokenizer over either encoding.
+/// A tokenizer over either encoding, reading its source in pieces.
+///
+/// `buf` holds the bytes from absolute offset `base` on; a step is parsed
+/// from `buf` as if it were the whole proof. When the piece ends inside the
+/// step, parsing fails (every step ends with an explicit `0`, so a cut step
+/// can never parse as complete), and [`Reader::next_step`] rereads the step
+/// with twice the lookahead until it parses or the source is exhausted.
 struct Reader<'a> {
     format: LratFormat,
-    buf: &'a [u8],
+    src: Box<dyn Read + 'a>,
+    /// Whether `src` has been read to its end.
+    eof: bool,
+    /// Bytes to have in `buf` past the start of a step before parsing it.
+    lookahead: usize,
+    buf: Vec<u8>,
+    /// Absolute offset of `buf[0]` in the proof.
+    base: usize,
     pos: usize,
     line: usize,
     num_vars: u32,
 }
 
 impl Reader<'_> {
+    /// The first lookahead: far more than any step orbitcnf's solver writes.
+    const LOOKAHEAD: usize = 1 << 20;
+
+    /// Drops the bytes before `pos` and reads until `need` bytes follow it
+    /// or the source ends.
+    fn fill(&mut self, need: usize) -> std::io::Result<()> {
+        if self.pos > 0 {
+            self.buf.drain(..self.pos);
+            self.base += self.pos;
+            self.pos = 0;
+        }
+        let mut chunk = [0u8; 64 * 1024];
+        while !self.eof && self.buf.len() < need {
+            match self.src.read(&mut chunk) {
+                Ok(0) => self.eof = true,
+                Ok(n) => self.buf.extend_from_slice(&chunk[..n]),
+                Err(e) if e.kind() == std::io::ErrorKind::Interrupted => {}
+                Err(e) => return Err(e),
+            }
+        }
+        Ok(())
+    }
+
+    /// Absolute offset of the current position.
+    fn at(&self) -> usize {
+        self.base + self.pos
+    }
+
     /// Reads the next step into `step`; `Ok(false)` at the end of the proof.
     fn next_step(&mut self, step: &mut RawStep) -> Result<bool, LratReason> {
-        match self.format {
-            LratFormat::Text => self.next_text(step),
-            LratFormat::Binary => self.next_binary(step),
+        // Refill only when less than half the lookahead is left, so that
+        // moving the buffer's tail costs O(1) per byte read.
+        if !self.eof && self.buf.len() - self.pos < self.lookahead / 2 {
+            self.fill(self.lookahead)
+                .map_err(|e| LratReason::Io(e.to_string()))?;
+        }
+        let line = self.line;
+        loop {
+            let start = self.pos;
+            let got = match self.format {
+                LratFormat::Text => self.next_text(step),
+                LratFormat::Binary => self.next_binary(step),
+            };
+            if got.is_ok() || self.eof {
+                return got;
+            }
+            // The piece may end inside the step: reread it with more bytes.
+            self.pos = start;
+            self.line = line;
+            step.clear();
+            self.lookahead = self.lookahead.saturating_mul(2);
+            self.fill(self.lookahead)
+                .map_err(|e| LratReason::Io(e.to_string()))?;
         }
     }
 
     /// Bytes left after the current position, whitespace aside (text).
     fn tail_len(&mut self) -> usize {
         if self.format == LratFormat::Text {
-            self.skip_ws();
+            loop {
+                self.skip_ws();
+                if self.pos < self.buf.len() || self.eof || self.fill(Self::LOOKAHEAD).is_err() {
+                    break;
+                }
+            }
         }
-        self.buf.len() - self.pos
+        let mut total = self.buf.len() - self.pos;
+        self.pos = self.buf.len();
+        while !self.eof && self.fill(Self::LOOKAHEAD).is_ok() {
+            // `fill` dropped what was counted; `buf` holds only new bytes.
+            total += self.buf.len();
+            self.pos = self.buf.len();
+        }
+        total
     }
 
     fn lit_code(&self, lit: i64) -> Result<u32, LratReason> {
@@ -520,9 +639,10 @@ impl Reader<'_> {
         loop {
             self.skip_ws();
             match self.buf.get(self.pos) {
+                None if !self.eof => return Err(LratReason::Truncated),
                 None => {
                     step.line = self.line;
-                    step.offset = self.pos;
+                    step.offset = self.at();
                     return Ok(false);
                 }
                 Some(b'c') => {
@@ -537,7 +657,7 @@ impl Reader<'_> {
             }
         }
         step.line = self.line;
-        step.offset = self.pos;
+        step.offset = self.at();
         let id = self.int()?;
         if id <= 0 {
             return Err(LratReason::Malformed(format!(
@@ -589,6 +709,8 @@ impl Reader<'_> {
     /// After a token: whitespace or the end must follow.
     fn end_of_token(&self) -> Result<(), LratReason> {
         match self.buf.get(self.pos) {
+            // The piece ends here but the proof does not: the token may go on.
+            None if !self.eof => Err(LratReason::Truncated),
             None | Some(b' ' | b'\t' | b'\r' | b'\n') => Ok(()),
             Some(_) => Err(self.unexpected()),
         }
@@ -599,7 +721,7 @@ impl Reader<'_> {
         let shown = self.buf[self.pos..end].escape_ascii().to_string();
         LratReason::Malformed(format!(
             "expected a number at byte {}, found \"{shown}\"",
-            self.pos
+            self.at()
         ))
     }
 
@@ -615,6 +737,7 @@ impl Reader<'_> {
             Some(_) => false,
         };
         let start = self.pos;
+        let at = self.at();
         let mut value: i64 = 0;
         while let Some(&b) = self.buf.get(self.pos) {
             if !b.is_ascii_digit() {
@@ -623,9 +746,7 @@ impl Reader<'_> {
             value = value
                 .checked_mul(10)
                 .and_then(|v| v.checked_add(i64::from(b - b'0')))
-                .ok_or_else(|| {
-                    LratReason::Malformed(format!("number too large at byte {start}"))
-                })?;
+                .ok_or_else(|| LratReason::Malformed(format!("number too large at byte {at}")))?;
             self.pos += 1;
         }
         if self.pos == start {
@@ -641,7 +762,7 @@ impl Reader<'_> {
     // ---- binary ----
 
     fn leb(&mut self) -> Result<u64, LratReason> {
-        let start = self.pos;
+        let start = self.at();
         let mut value: u64 = 0;
         let mut shift = 0u32;
         loop {
@@ -663,7 +784,7 @@ impl Reader<'_> {
 
     /// A positive id in the `2·x` encoding.
     fn leb_id(&mut self, what: &str) -> Result<u64, LratReason> {
-        let at = self.pos;
+        let at = self.at();
         let v = self.leb()?;
         if v & 1 == 1 || v == 0 {
             return Err(LratReason::Malformed(format!(
@@ -675,9 +796,13 @@ impl Reader<'_> {
 
     fn next_binary(&mut self, step: &mut RawStep) -> Result<bool, LratReason> {
         step.line = 0;
-        step.offset = self.pos;
+        step.offset = self.at();
         let Some(&b) = self.buf.get(self.pos) else {
-            return Ok(false);
+            return if self.eof {
+                Ok(false)
+            } else {
+                Err(LratReason::Truncated)
+            };
         };
         self.pos += 1;
         match b {
@@ -685,7 +810,7 @@ impl Reader<'_> {
                 step.kind = Kind::Add;
                 step.id = self.leb_id("the clause id")?;
                 loop {
-                    let at = self.pos;
+                    let at = self.at();
                     let v = self.leb()?;
                     if v == 0 {
                         break;
@@ -707,7 +832,7 @@ impl Reader<'_> {
                     step.lits.push(v as u32);
                 }
                 loop {
-                    let at = self.pos;
+                    let at = self.at();
                     let v = self.leb()?;
                     if v == 0 {
                         break;
@@ -741,7 +866,7 @@ impl Reader<'_> {
             }
             other => Err(LratReason::Malformed(format!(
                 "expected 'a' or 'd' at byte {}, found 0x{other:02x}",
-                self.pos - 1
+                self.at() - 1
             ))),
         }
     }
@@ -1163,6 +1288,75 @@ mod tests {
         );
         assert!(reject("5 1 0 3 0\n").reason.is_rup_failure());
         assert!(!reject("5 1 0 9 0\n").reason.is_rup_failure());
+    }
+
+    /// A source that hands out at most three bytes per read.
+    struct Trickle<'a>(&'a [u8]);
+
+    impl Read for Trickle<'_> {
+        fn read(&mut self, out: &mut [u8]) -> std::io::Result<usize> {
+            let n = self.0.len().min(out.len()).min(3);
+            out[..n].copy_from_slice(&self.0[..n]);
+            self.0 = &self.0[n..];
+            Ok(n)
+        }
+    }
+
+    #[test]
+    fn reading_in_pieces_gives_the_same_answers() {
+        use crate::encode::{EncodeOptions, encode};
+        use crate::grid::Grid;
+        use crate::proof::{ProofSinks, solve_with_proof_sinks};
+        use crate::question::Question;
+        let q = Question::new(Grid::parse("-1..1", Some(2)).unwrap(), 5).unwrap();
+        let enc = encode(&q, &EncodeOptions::default(), u64::MAX).unwrap();
+        let options = LratOptions {
+            ids_follow_cnf: true,
+            ..LratOptions::default()
+        };
+        for binary in [false, true] {
+            let mut proof = Vec::new();
+            let sinks = ProofSinks {
+                lrat: Some(&mut proof),
+                lrat_binary: binary,
+                drat: None,
+                drat_binary: false,
+            };
+            solve_with_proof_sinks(&enc.cnf, sinks, None).unwrap();
+            let whole = check_lrat_with(&enc.cnf, &proof, &options).unwrap();
+            for lookahead in [1, 2, 3, 7, 64, 1000] {
+                let pieces = check_read(&enc.cnf, Trickle(&proof), &options, lookahead);
+                assert_eq!(
+                    pieces.as_ref(),
+                    Ok(&whole),
+                    "binary {binary}, lookahead {lookahead}"
+                );
+            }
+            // A cut proof is rejected the same way whole and in pieces.
+            let cut = &proof[..proof.len() / 2];
+            let whole = check_lrat_with(&enc.cnf, cut, &options).unwrap_err();
+            let pieces = check_read(&enc.cnf, Trickle(cut), &options, 5).unwrap_err();
+            assert_eq!(pieces, whole);
+        }
+        // Hand-made proofs, good and bad, with comments and tails.
+        for p in [
+            GOOD,
+            "c made by hand\n5 1 0 1 2 0\nc more\n\n9 2 -2 0 0\n20 0 5 3 4 0\n21 0 0\n",
+            "5 1 0 1 2 0\n6 0 5 3 4 x\n",
+            "5 1 0 1 2 0 junk\n",
+            "5 1 0 1 2 0\n5 d 1 2 0\n6 0 5 3 4 0\n  trailing words\n",
+        ] {
+            let whole = check_lrat(&square(), p);
+            for lookahead in 1..12 {
+                let pieces = check_read(
+                    &square(),
+                    Trickle(p.as_bytes()),
+                    &LratOptions::default(),
+                    lookahead,
+                );
+                assert_eq!(pieces, whole, "{p:?} lookahead {lookahead}");
+            }
+        }
     }
 
     #[test]

@@ -233,8 +233,8 @@ pub fn solve_with_proofs(
     drat: Option<&Path>,
     time_limit: Option<Duration>,
 ) -> Result<ProofOutcome> {
-    let lrat_tmp = lrat.map(temp_beside).transpose()?;
-    let drat_tmp = drat.map(temp_beside).transpose()?;
+    let lrat_tmp = lrat.map(crate::dimacs::temp_beside).transpose()?;
+    let drat_tmp = drat.map(crate::dimacs::temp_beside).transpose()?;
     let mut lrat_file = lrat_tmp.as_ref().map(|t| t.as_file());
     let mut drat_file = drat_tmp.as_ref().map(|t| t.as_file());
     let sinks = ProofSinks {
@@ -251,8 +251,7 @@ pub fn solve_with_proofs(
     }
     for (tmp, path) in [(lrat_tmp, lrat), (drat_tmp, drat)] {
         if let (Some(tmp), Some(path)) = (tmp, path) {
-            tmp.as_file().sync_all().map_err(|e| Error::io(path, e))?;
-            tmp.persist(path).map_err(|e| Error::io(path, e.error))?;
+            crate::dimacs::persist(tmp, path)?;
         }
     }
     Ok(out)
@@ -304,14 +303,6 @@ pub fn certify(cnf: &Cnf, time_limit: Option<Duration>) -> Result<Certification>
         lrat: Some(summary),
         check_seconds: t.elapsed().as_secs_f64(),
     })
-}
-
-fn temp_beside(path: &Path) -> Result<tempfile::NamedTempFile> {
-    let dir = match path.parent() {
-        Some(d) if !d.as_os_str().is_empty() => d,
-        _ => Path::new("."),
-    };
-    tempfile::NamedTempFile::new_in(dir).map_err(|e| Error::io(path, e))
 }
 
 /// The first point where reading the clauses in order refutes the CNF, with

@@ -2,10 +2,11 @@
 //! comes with an LRAT proof that orbitcnf's own checker has accepted.
 //!
 //! varisat writes the LRAT proof through `varisat-lrat` (see
-//! [`crate::proof::produce`]); the proof is kept in memory, checked by
-//! [`crate::proof::lrat`] against the very CNF that was solved (clause `i` is
-//! LRAT clause `i + 1`, derived clauses must start at `m + 1`), and written to
-//! a file when asked. A binary DRAT proof of the same run passes through the
+//! [`crate::proof::produce`]) into a temporary file, which
+//! [`crate::proof::lrat`] reads back in pieces and checks against the very
+//! CNF that was solved (clause `i` is LRAT clause `i + 1`, derived clauses
+//! must start at `m + 1`); the file is then renamed into place when asked
+//! for and deleted otherwise, so memory does not grow with the proof. A binary DRAT proof of the same run passes through the
 //! same metering sink as [`super::bundled`] (conflict count, progress line,
 //! deadline) and can be kept for external checkers such as `rate`.
 //! A rejected proof is an error, never a verdict.
@@ -20,9 +21,10 @@ use serde::Serialize;
 use super::bundled::{Meter, clear_progress};
 use super::{Backend, Limits, Outcome, SolveResult, SolveStats};
 use crate::cnf::Cnf;
-use crate::dimacs::write_atomically;
+use crate::dimacs::{persist, temp_beside};
 use crate::error::{Error, Result};
-use crate::proof::{LratOptions, LratSummary, ProofSinks, check_lrat_with, solve_with_proof_sinks};
+use crate::proof::lrat::{LratFileError, check_lrat_file};
+use crate::proof::{LratOptions, LratSummary, ProofSinks, solve_with_proof_sinks};
 
 /// The bundled solver, certifying its UNSAT answers.
 #[derive(Clone, Debug, Default)]
@@ -59,16 +61,15 @@ impl Backend for Certified {
 
     fn solve(&mut self, cnf: &Cnf, limits: &Limits) -> Result<SolveResult> {
         let start = Instant::now();
-        let drat_tmp = match &self.drat {
-            Some(path) => {
-                let dir = path
-                    .parent()
-                    .filter(|d| !d.as_os_str().is_empty())
-                    .unwrap_or(std::path::Path::new("."));
-                Some(tempfile::NamedTempFile::new_in(dir).map_err(|e| Error::io(path, e))?)
-            }
-            None => None,
-        };
+        // The LRAT proof goes to a file, beside its destination when there
+        // is one, and is checked from there in pieces: a proof of gigabytes
+        // then costs disk, not memory.
+        let lrat_path = self
+            .lrat
+            .clone()
+            .unwrap_or_else(|| std::env::temp_dir().join("orbitcnf-proof.lrat"));
+        let lrat_tmp = temp_beside(&lrat_path)?;
+        let drat_tmp = self.drat.as_deref().map(temp_beside).transpose()?;
         let inner: Option<Box<dyn Write>> = match (&drat_tmp, &self.drat) {
             (Some(t), Some(path)) => Some(Box::new(BufWriter::new(
                 t.reopen().map_err(|e| Error::io(path, e))?,
@@ -76,7 +77,10 @@ impl Backend for Certified {
             _ => None,
         };
         let (mut meter, learned, _) = Meter::new(start, limits, inner);
-        let mut lrat: Vec<u8> = Vec::new();
+        let mut lrat = BufWriter::with_capacity(
+            1 << 20,
+            lrat_tmp.reopen().map_err(|e| Error::io(&lrat_path, e))?,
+        );
         let sinks = ProofSinks {
             lrat: Some(&mut lrat),
             lrat_binary: false,
@@ -100,35 +104,37 @@ impl Backend for Certified {
                 proof: None,
             });
         }
+        lrat.flush().map_err(|e| Error::io(&lrat_path, e))?;
+        drop(lrat);
         let t = Instant::now();
         let options = LratOptions {
             ids_follow_cnf: true,
             ..LratOptions::default()
         };
-        let summary = check_lrat_with(cnf, &lrat, &options)?;
+        let summary = check_lrat_file(cnf, lrat_tmp.path(), &options).map_err(|e| match e {
+            LratFileError::Io { path, source } => Error::io(&path, source),
+            LratFileError::Rejected { source, .. } => Error::from(source),
+        })?;
         let check_seconds = t.elapsed().as_secs_f64();
-        if let Some(path) = &self.lrat {
-            write_atomically(path, &lrat)?;
-        }
+        let lrat_bytes = match &self.lrat {
+            Some(path) => persist(lrat_tmp, path)?,
+            None => lrat_tmp
+                .as_file()
+                .metadata()
+                .map_err(|e| Error::io(&lrat_path, e))?
+                .len(),
+        };
         let mut drat_bytes = None;
         if let (Some(tmp), Some(path)) = (drat_tmp, &self.drat) {
             flushed.map_err(|e| Error::io(path, e))?;
-            tmp.as_file().sync_all().map_err(|e| Error::io(path, e))?;
-            crate::dimacs::make_readable(tmp.as_file()).map_err(|e| Error::io(path, e))?;
-            drat_bytes = Some(
-                tmp.as_file()
-                    .metadata()
-                    .map_err(|e| Error::io(path, e))?
-                    .len(),
-            );
-            tmp.persist(path).map_err(|e| Error::io(path, e.error))?;
+            drat_bytes = Some(persist(tmp, path)?);
         }
         Ok(SolveResult {
             outcome: Outcome::Unsat,
             stats,
             proof: Some(ProofInfo {
                 lrat: summary,
-                lrat_bytes: lrat.len() as u64,
+                lrat_bytes,
                 lrat_file: self.lrat.clone(),
                 drat_file: self.drat.clone(),
                 drat_bytes,

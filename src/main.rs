@@ -346,7 +346,27 @@ fn parse_seconds(s: &str) -> Result<Duration, String> {
     Ok(Duration::from_secs_f64(v))
 }
 
+/// `--grid` accepts values that start with a minus (`--grid -1..1`), so
+/// `--grid --dim 2` would take `--dim` as the grid and then stumble over
+/// the `2`; say what really went wrong.
+fn grid_missing_its_value() -> Option<String> {
+    let args: Vec<String> = std::env::args().collect();
+    args.windows(2).find_map(|w| {
+        (w[0] == "--grid" && w[1].starts_with("--")).then(|| {
+            format!(
+                "orbitcnf: error: --grid needs a value, but is followed by the option '{}'; \
+                 write e.g. --grid=-1..1 (see 'orbitcnf decide --help')",
+                w[1]
+            )
+        })
+    })
+}
+
 fn main() -> ExitCode {
+    if let Some(message) = grid_missing_its_value() {
+        eprintln!("{message}");
+        return ExitCode::from(1);
+    }
     let cli = match Cli::try_parse() {
         Ok(cli) => cli,
         Err(e) => {

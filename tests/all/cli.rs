@@ -411,6 +411,12 @@ fn bad_time_limits_and_missing_arguments_are_errors() {
         .run()
         .code(ERROR);
     dir.orbitcnf().arg("check").run().code(ERROR);
+    // `--grid` takes values starting with a minus, so a forgotten value
+    // would swallow the next option; the message names both.
+    dir.orbitcnf()
+        .args(["decide", "--grid", "--dim", "2", "-p", "3"])
+        .run()
+        .error_with(&["--grid needs a value", "'--dim'", "--grid=-1..1"]);
 }
 
 /// Checks the shape of the "too large" message: it gives the estimated size

@@ -716,7 +716,10 @@ How each period is answered, cheapest first:
                 re-checked, its proof file present; --recheck re-checks proofs)
   construction  p ≤ 2^n' (n' = coordinates with more than one value): p vertices
                 of a unit cube, pairwise at distance 1; the orbit is checked, and
-                on small boxes its extension to a nonexpansive map as well
+                on small boxes its extension to a nonexpansive map as well.
+                With --class topical: p ≤ C(n',⌊n'/2⌋) points of the middle layer
+                of a unit cube (t = 1 between any two); the orbit and, on small
+                boxes, the topical extension and its clamp are checked
   solver        everything else: `decide` with the certified solver; infeasible
                 answers carry an LRAT proof accepted by orbitcnf's own checker
 
@@ -736,7 +739,8 @@ The results store (--store DIR, default ./orbitcnf-results):
   same question (under any options) is a CONTRADICTION: an error naming both
   runs. So is an answer that contradicts a published theorem (feasible above
   max_k 2^k·C(n',k), a feasible prime above 2^n', feasible above 2^n' when
-  n' ≤ 3, or infeasible at p ≤ 2^n').
+  n' ≤ 3, or infeasible at p ≤ 2^n'; with --class topical: feasible above
+  C(n',⌊n'/2⌋), or infeasible at or below it). The class is part of the key.
 
 Output: a table on stdout; --json prints one JSON object (the whole spectrum,
 each row with its stored answer); --csv one line per period after a header;
@@ -751,7 +755,8 @@ Exit codes:
 Examples:
   orbitcnf spectrum --dim 3 --grid=-1..1
   orbitcnf spectrum --dim 4 --grid=-1..1 --jobs 2 --time-limit 600 --markdown t4.md
-  orbitcnf spectrum --dim 2 --grid=0..3 --periods 5..8 --no-store --json";
+  orbitcnf spectrum --dim 2 --grid=0..3 --periods 5..8 --no-store --json
+  orbitcnf spectrum --class topical --dim 4 --grid=0..1";
 
 #[derive(Args, Debug)]
 struct SpectrumArgs {
@@ -771,9 +776,13 @@ struct SpectrumArgs {
     grid: String,
     /// The periods: `A..B` (inclusive), `P`, or a comma-separated list of both.
     /// Default: 1 up to the proven bound max_k 2^k·C(n',k) (Lemmens and
-    /// Scheutzow 2005), capped by the number of grid points.
+    /// Scheutzow 2005); with --class topical 1 up to one past the proven
+    /// bound C(n',⌊n'/2⌋) (same paper), so the first excluded period is
+    /// decided too. Capped by the number of grid points.
     #[arg(long, value_name = "LIST")]
     periods: Option<String>,
+    #[command(flatten)]
+    class: ClassArgs,
     #[command(flatten)]
     encoding: EncodingArgs,
     /// Give up on a period after this many seconds of solving; it is reported
@@ -819,7 +828,7 @@ fn spectrum(a: SpectrumArgs) -> Result<u8, Error> {
         ));
     }
     let grid = Grid::parse(&a.grid, a.dim)?;
-    let mut cfg = spectrum::SweepConfig::new(grid);
+    let mut cfg = spectrum::SweepConfig::for_class(grid, a.class.class);
     if let Some(list) = &a.periods {
         cfg.periods = spectrum::parse_periods(list)?;
     }

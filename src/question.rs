@@ -149,22 +149,7 @@ impl Question {
 
     /// One-line statement of the question.
     pub fn statement(&self) -> String {
-        if self.class == MapClass::Topical {
-            return format!(
-                "{} distinct points of {} (n = {}) forming a periodic orbit of a topical map R^{} → R^{}",
-                self.period,
-                self.grid,
-                self.dim(),
-                self.dim(),
-                self.dim()
-            );
-        }
-        format!(
-            "a sup-norm nonexpansive map on {} (n = {}) with a periodic point of minimal period {}",
-            self.grid,
-            self.dim(),
-            self.period
-        )
+        statement(&self.grid, self.class, &self.period.to_string())
     }
 
     /// Checks `orbit` with the independent verifier for this question's class:
@@ -177,6 +162,20 @@ impl Question {
             MapClass::Nonexpansive => verify::check_orbit(self.grid.ranges(), orbit),
             MapClass::Topical => verify::check_topical_orbit(self.grid.ranges(), orbit),
         }
+    }
+}
+
+/// The question about `class` on `grid`, with the period written as `period`
+/// (a number, or `p` for a whole sweep): one line for reports.
+pub fn statement(grid: &Grid, class: MapClass, period: &str) -> String {
+    let n = grid.dim();
+    match class {
+        MapClass::Topical => format!(
+            "{period} distinct points of {grid} (n = {n}) forming a periodic orbit of a topical map R^{n} → R^{n}"
+        ),
+        MapClass::Nonexpansive => format!(
+            "a sup-norm nonexpansive map on {grid} (n = {n}) with a periodic point of minimal period {period}"
+        ),
     }
 }
 

@@ -2,11 +2,20 @@
 //!
 //! # Design
 //!
-//! A sweep ([`run`]) takes a box `D` and a set of periods (by default
-//! `1..=min(B(n'), |D|)`, where `n'` is the number of coordinates with more
-//! than one value and `B(n) = max_k 2^k·C(n,k)` is the Lemmens–Scheutzow
-//! bound, so no period outside the range can occur) and answers each period
-//! in one of three ways, cheapest first:
+//! A sweep ([`run`]) takes a box `D`, a map class ([`MapClass`]) and a set of
+//! periods and answers each period in one of three ways, cheapest first. The
+//! default periods ([`default_periods`]) depend on the class; `n'` is the
+//! number of coordinates with more than one value:
+//!
+//! - nonexpansive maps: `1..=min(B(n'), |D|)` with `B(n) = max_k 2^k·C(n,k)`
+//!   the Lemmens–Scheutzow bound, so no period outside the range can occur;
+//! - topical maps: `1..=min(C(n', ⌊n'/2⌋) + 1, |D|)`. Every period up to
+//!   `C(n', ⌊n'/2⌋)` is constructed and every larger one is excluded by
+//!   Lemmens and Scheutzow's topical theorem, so the sweep would be all
+//!   theory; the one period past the bound is included so that the solver
+//!   decides it and the theorem is tested against a checked proof.
+//!
+//! The three ways:
 //!
 //! 1. **From the results store** ([`crate::store`]): a decided answer stored
 //!    under the same key (question, resolved encoding options, formulation)
@@ -15,13 +24,18 @@
 //!    *unknown* is reused unless this run's limits are larger
 //!    ([`crate::store::RunLimits::exceeds`]): a longer `--time-limit` (or none),
 //!    or a larger `--max-clauses`. Then it is retried.
-//! 2. **By construction** ([`construct`]), for `p ≤ 2^n'`: the points of the
+//! 2. **By construction** ([`construct`]), for `p` up to
+//!    [`construction_limit`]. Nonexpansive, `p ≤ 2^n'`: the points of the
 //!    unit cube `Π_c {a_c, a_c + 1}` (over the coordinates of side ≥ 1, the
 //!    others fixed at `a_c`) are pairwise at distance exactly 1, so any `p` of
-//!    them in any order are an isometric `p`-cycle. The orbit is checked with
-//!    [`verify::check_orbit`], and on boxes of at most [`MAP_CHECK_POINTS`]
-//!    points the nonexpansive extension is built and checked by exhaustion
-//!    ([`verify::extend`], [`verify::check_map`]). No solver runs.
+//!    them in any order are an isometric `p`-cycle ([`unit_cube`]). Topical,
+//!    `p ≤ C(n', ⌊n'/2⌋)`: points of the middle layer of that cube
+//!    ([`middle_layer`]). The orbit is checked with the class's check
+//!    ([`Question::check_orbit`]), and on boxes of at most
+//!    [`MAP_CHECK_POINTS`] points the class's extension is built and checked
+//!    by exhaustion ([`verify::extend`] and [`verify::check_map`];
+//!    [`verify::extend_topical`] and [`verify::check_topical_map`]). No
+//!    solver runs.
 //! 3. **By the solver**: [`decide::decide`] with the [`Certified`] back-end, so
 //!    a feasible answer carries a checked orbit and an infeasible one an LRAT
 //!    proof accepted by orbitcnf's own checker; with a store the proof is kept
@@ -68,7 +82,7 @@ use crate::dimacs::VERSION;
 use crate::encode::{DEFAULT_MAX_CLAUSES, EncodeOptions, Symmetry};
 use crate::error::{Error, Result};
 use crate::grid::{Grid, Point};
-use crate::question::{self, Question};
+use crate::question::{self, MapClass, Question};
 use crate::report::{Certificate, Verdict};
 use crate::solve::Limits;
 use crate::solve::certified::Certified;
@@ -89,6 +103,9 @@ pub const MAP_CHECK_POINTS: u128 = 2048;
 pub struct SweepConfig {
     /// The box.
     pub grid: Grid,
+    /// The class of maps asked about. Changing it does not change
+    /// [`SweepConfig::periods`]; [`SweepConfig::for_class`] sets both.
+    pub class: MapClass,
     /// The periods, increasing and distinct ([`parse_periods`], [`default_periods`]).
     pub periods: Vec<usize>,
     /// The encoding options, as given (each period resolves them for itself).
@@ -109,12 +126,19 @@ pub struct SweepConfig {
 }
 
 impl SweepConfig {
-    /// A sweep of the default periods of `grid` with the default encoding,
-    /// all cores, no time limit, no store and no progress line.
+    /// A sweep of the default periods of `grid` for nonexpansive maps with
+    /// the default encoding, all cores, no time limit, no store and no
+    /// progress line.
     pub fn new(grid: Grid) -> SweepConfig {
+        SweepConfig::for_class(grid, MapClass::Nonexpansive)
+    }
+
+    /// As [`SweepConfig::new`], for maps of `class` (with its default periods).
+    pub fn for_class(grid: Grid, class: MapClass) -> SweepConfig {
         SweepConfig {
-            periods: default_periods(&grid),
+            periods: default_periods(&grid, class),
             grid,
+            class,
             options: EncodeOptions::default(),
             jobs: default_jobs(),
             time_limit: None,
@@ -131,17 +155,40 @@ pub fn default_jobs() -> usize {
     std::thread::available_parallelism().map_or(1, |n| n.get())
 }
 
-/// `2^n'`: every period up to this is answered by [`construct`]. Saturates.
-pub fn construction_limit(grid: &Grid) -> u128 {
+/// Every period up to this is answered by [`construct`]: `2^n'` for
+/// nonexpansive maps, `C(n', ⌊n'/2⌋)` for topical maps. Saturates.
+pub fn construction_limit(grid: &Grid, class: MapClass) -> u128 {
     let n = question::effective_dim(grid);
-    if n >= 128 { u128::MAX } else { 1u128 << n }
+    match class {
+        MapClass::Nonexpansive if n >= 128 => u128::MAX,
+        MapClass::Nonexpansive => 1u128 << n,
+        MapClass::Topical => question::topical_bound(n),
+    }
 }
 
-/// `1..=min(B(n'), |D|)` with `B` the Lemmens–Scheutzow bound: every period
-/// that can occur on `grid`.
-pub fn default_periods(grid: &Grid) -> Vec<usize> {
-    let bound = question::lemmens_scheutzow_bound(question::effective_dim(grid));
-    let top = bound.min(grid.num_points()).min(MAX_PERIODS as u128 + 1) as usize;
+/// The proven upper bound on the periods of `class` in dimension `n'`, both
+/// from Lemmens and Scheutzow (2005): `max_k 2^k·C(n',k)` for sup-norm
+/// nonexpansive maps, `C(n', ⌊n'/2⌋)` for topical maps. Saturates.
+pub fn period_bound(grid: &Grid, class: MapClass) -> u128 {
+    let n = question::effective_dim(grid);
+    match class {
+        MapClass::Nonexpansive => question::lemmens_scheutzow_bound(n),
+        MapClass::Topical => question::topical_bound(n),
+    }
+}
+
+/// The default periods of a sweep, capped by the number of grid points:
+/// `1..=B` with `B` the class's [`period_bound`] (every period that can
+/// occur) for nonexpansive maps, and `1..=B + 1` for topical maps, where
+/// every period up to `B` is constructed, so that the first excluded period
+/// is decided by the solver as well (see the module documentation).
+pub fn default_periods(grid: &Grid, class: MapClass) -> Vec<usize> {
+    let bound = period_bound(grid, class);
+    let top = match class {
+        MapClass::Nonexpansive => bound,
+        MapClass::Topical => bound.saturating_add(1),
+    };
+    let top = top.min(grid.num_points()).min(MAX_PERIODS as u128 + 1) as usize;
     (1..=top).collect()
 }
 
@@ -193,18 +240,36 @@ pub fn parse_periods(text: &str) -> Result<Vec<usize>> {
     Ok(out)
 }
 
+/// A `p`-cycle of `class` on `grid` built without solving, when
+/// `1 ≤ p ≤` [`construction_limit`]: [`unit_cube`] for nonexpansive maps,
+/// [`middle_layer`] for topical maps. `None` above the limit.
+pub fn construct(grid: &Grid, class: MapClass, p: usize) -> Option<Vec<Point>> {
+    if p == 0 || p as u128 > construction_limit(grid, class) {
+        return None;
+    }
+    Some(match class {
+        MapClass::Nonexpansive => unit_cube(grid, p),
+        MapClass::Topical => middle_layer(grid, p),
+    })
+}
+
+/// The coordinates of side ≥ 1 and the lower corner `(a_c)_c` of `grid`:
+/// the unit cube both constructions live in is `lower + {0,1}^active`.
+fn unit_cube_frame(grid: &Grid) -> (Vec<usize>, Point) {
+    let active = (0..grid.dim()).filter(|&c| grid.side(c) > 0).collect();
+    let lower = (0..grid.dim()).map(|c| grid.lo(c)).collect();
+    (active, lower)
+}
+
 /// `p` points of the unit cube `Π_c {a_c, a_c + 1}` over the coordinates of
-/// side ≥ 1 (the others fixed at `a_c`), when `1 ≤ p ≤ 2^n'`: point `i`
+/// side ≥ 1 (the others fixed at `a_c`), for `1 ≤ p ≤ 2^n'`: point `i`
 /// adds the binary digits of `i` to the lower corner. Distinct points of the
 /// cube differ by exactly 1 in some coordinate and by at most 1 in every
 /// coordinate, so all distances are 1 and any order is an isometric cycle.
-pub fn construct(grid: &Grid, p: usize) -> Option<Vec<Point>> {
-    if p == 0 || p as u128 > construction_limit(grid) {
-        return None;
-    }
-    let active: Vec<usize> = (0..grid.dim()).filter(|&c| grid.side(c) > 0).collect();
-    let lower: Point = (0..grid.dim()).map(|c| grid.lo(c)).collect();
-    let orbit = (0..p)
+/// Callers keep `p ≤ 2^n'` ([`construct`] does); above it points repeat.
+pub fn unit_cube(grid: &Grid, p: usize) -> Vec<Point> {
+    let (active, lower) = unit_cube_frame(grid);
+    (0..p)
         .map(|i| {
             let mut z = lower.clone();
             for (bit, &c) in active.iter().enumerate() {
@@ -214,15 +279,50 @@ pub fn construct(grid: &Grid, p: usize) -> Option<Vec<Point>> {
             }
             z
         })
-        .collect();
-    Some(orbit)
+        .collect()
+}
+
+/// The first `p` points, in lexicographic order of their sets of raised
+/// coordinates, of the middle layer of the unit cube of [`unit_cube`]: the
+/// points with exactly `⌊n'/2⌋` of the `n'` coordinates of side ≥ 1 raised
+/// from `a_c` to `a_c + 1`. For `1 ≤ p ≤ C(n', ⌊n'/2⌋)` they are a topical
+/// `p`-cycle in any order [derived]: two distinct points `y ≠ z` of one
+/// layer are incomparable 0/1 offsets from the corner with the same number
+/// of ones, so some coordinate has `y_c − z_c = 1` and none has more, and
+/// `t(y, z) = max_c (y_c − z_c) = 1` for every ordered pair (the fixed
+/// coordinates contribute 0). So `t(x_i, x_{i+k}) = 1` for all `i` and
+/// `k ≢ 0`. Callers keep `p` in range ([`construct`] does); above it the
+/// list is shorter than `p`.
+pub fn middle_layer(grid: &Grid, p: usize) -> Vec<Point> {
+    let (active, lower) = unit_cube_frame(grid);
+    let (n, k) = (active.len(), active.len() / 2);
+    // The k-subsets of 0..n in lexicographic order: `chosen` is increasing;
+    // the next subset raises the last entry that can still move right and
+    // resets the entries after it.
+    let mut chosen: Vec<usize> = (0..k).collect();
+    let mut out = Vec::with_capacity(p);
+    while out.len() < p {
+        let mut z = lower.clone();
+        for &j in &chosen {
+            z[active[j]] += 1;
+        }
+        out.push(z);
+        let Some(i) = (0..k).rev().find(|&i| chosen[i] < n - k + i) else {
+            break;
+        };
+        chosen[i] += 1;
+        for j in i + 1..k {
+            chosen[j] = chosen[j - 1] + 1;
+        }
+    }
+    out
 }
 
 /// What the published theorems say about a period.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
 #[serde(rename_all = "kebab-case")]
 pub enum Status {
-    /// The period occurs (the `2^n` construction).
+    /// The period occurs (the class's construction).
     Exists,
     /// A theorem excludes it.
     Excluded,
@@ -245,6 +345,9 @@ pub const CITE_LS: &str = "B. Lemmens and M. Scheutzow, On the dynamics of sup-n
 /// The case n ≤ 3 with its source (recalled, not read).
 pub const CITE_LN: &str = "R. Lyons and R. D. Nussbaum, On transitive and commutative finite groups of \
      isometries, in Fixed Point Theory and Applications, World Scientific, 1992 [recalled]";
+/// The topical bound with its source (read, as recorded in MATH.md §7).
+pub const CITE_LS_TOPICAL: &str = "B. Lemmens and M. Scheutzow, On the dynamics of sup-norm non-expansive maps, \
+     Ergodic Theory Dynam. Systems 25 (2005) 861–871, proving a conjecture of J. Gunawardena and C. Sparrow";
 /// The prime-period theorem with its source (recalled, not read).
 pub const CITE_PRIME: &str = "Lyons and Nussbaum; a proof is in B. Lemmens and R. D. Nussbaum, \
      Nonlinear Perron–Frobenius Theory, Cambridge University Press, 2012 [recalled]";
@@ -253,13 +356,20 @@ fn is_prime(p: usize) -> bool {
     p >= 2 && (2..).take_while(|d| d * d <= p).all(|d| p % d != 0)
 }
 
-/// What is published about period `p` on `grid`, in terms of the effective
-/// dimension `n'` (a box with `n'` sides of length ≥ 1 is isometric to a
-/// subset of `R^{n'}`, so every bound for `R^{n'}` applies).
-pub fn published(grid: &Grid, p: usize) -> Published {
+/// What is published about period `p` of `class` on `grid`, in terms of the
+/// effective dimension `n'`. A box with `n'` sides of length ≥ 1 is
+/// isometric to a subset of `R^{n'}`, so every bound for `R^{n'}` applies to
+/// nonexpansive maps. For topical maps, dropping the fixed coordinates keeps
+/// `t` on the orbit (they add a 0 to a maximum that is ≥ 1 on distinct
+/// integer points of a cycle), so the orbit is a topical cycle in `R^{n'}`
+/// and the `n'` bound applies too [derived].
+pub fn published(grid: &Grid, class: MapClass, p: usize) -> Published {
+    if class == MapClass::Topical {
+        return published_topical(grid, p);
+    }
     let n = question::effective_dim(grid);
-    let two_n = construction_limit(grid);
-    let ls = question::lemmens_scheutzow_bound(n);
+    let two_n = construction_limit(grid, class);
+    let ls = period_bound(grid, class);
     let p128 = p as u128;
     if p >= 1 && p128 <= two_n {
         return Published {
@@ -298,11 +408,40 @@ pub fn published(grid: &Grid, p: usize) -> Published {
     }
 }
 
-/// The theorem that `verdict` for period `p` on `grid` contradicts, if any:
-/// feasible where a theorem excludes the period, or infeasible where the
-/// construction exists.
-pub fn theorem_conflict(grid: &Grid, p: usize, verdict: Verdict) -> Option<String> {
-    let pubd = published(grid, p);
+/// The topical half of [`published`]: there is no open period, because the
+/// middle-layer construction reaches the Lemmens–Scheutzow bound
+/// `C(n', ⌊n'/2⌋)` exactly. None of the nonexpansive theorems is shown.
+fn published_topical(grid: &Grid, p: usize) -> Published {
+    let n = question::effective_dim(grid);
+    let bound = period_bound(grid, MapClass::Topical);
+    let words = format!("C({n},{}) = {bound}", n / 2);
+    if p >= 1 && p as u128 <= bound {
+        Published {
+            status: Status::Exists,
+            reasons: vec![format!(
+                "p ≤ {words}: any p points of the middle layer of a unit cube, with t = 1 between any two [derived]"
+            )],
+        }
+    } else {
+        Published {
+            status: Status::Excluded,
+            reasons: vec![format!(
+                "p > {words} (Lemmens and Scheutzow 2005, the Gunawardena–Sparrow conjecture)"
+            )],
+        }
+    }
+}
+
+/// The theorem that `verdict` for period `p` of `class` on `grid`
+/// contradicts, if any: feasible where a theorem excludes the period, or
+/// infeasible where the construction exists.
+pub fn theorem_conflict(
+    grid: &Grid,
+    class: MapClass,
+    p: usize,
+    verdict: Verdict,
+) -> Option<String> {
+    let pubd = published(grid, class, p);
     match (pubd.status, verdict) {
         (Status::Excluded, Verdict::Feasible) => Some(format!(
             "published theorems exclude the period ({})",
@@ -346,7 +485,7 @@ impl Row {
             reused,
             seconds: answer.stats.seconds,
             certificate: certificate_words(&answer),
-            published: published(grid, answer.question.period),
+            published: published(grid, answer.question.class, answer.question.period),
             answer,
         }
     }
@@ -356,9 +495,15 @@ impl Row {
 /// `LRAT proof checked (1234 steps): proofs/….lrat`, `none: time limit …`.
 pub fn certificate_words(a: &Answer) -> String {
     match a.backing {
-        Backing::CheckedOrbit => match a.map_checked_points {
-            Some(n) => format!("orbit checked; map checked on {n} points"),
-            None => "orbit checked".into(),
+        Backing::CheckedOrbit => match (a.map_checked_points, a.question.class) {
+            (Some(n), MapClass::Nonexpansive) => {
+                format!("orbit checked; map checked on {n} points")
+            }
+            (Some(n), MapClass::Topical) => {
+                format!("topical orbit checked; topical map and its clamp checked on {n} points")
+            }
+            (None, MapClass::Nonexpansive) => "orbit checked".into(),
+            (None, MapClass::Topical) => "topical orbit checked".into(),
         },
         Backing::CheckedProof => match &a.proof {
             Some(p) => match &p.file {
@@ -402,11 +547,17 @@ pub struct Spectrum {
     pub grid_name: String,
     /// The dimension n.
     pub dim: usize,
+    /// The class of maps asked about.
+    pub class: MapClass,
+    /// The question answered for every period, in words ([`question::statement`]
+    /// with the period written `p`).
+    pub question: String,
     /// Coordinates with more than one value: the dimension that counts for the bounds.
     pub effective_dim: usize,
-    /// `2^n'`.
+    /// The class's [`construction_limit`]: `2^n'`, or `C(n', ⌊n'/2⌋)` for topical maps.
     pub construction_limit: u64,
-    /// The Lemmens–Scheutzow bound `max_k 2^k·C(n',k)`.
+    /// The class's Lemmens–Scheutzow bound ([`period_bound`]):
+    /// `max_k 2^k·C(n',k)`, or `C(n', ⌊n'/2⌋)` for topical maps.
     pub lemmens_scheutzow_bound: u64,
     /// The periods swept.
     pub periods: Vec<usize>,
@@ -469,7 +620,7 @@ pub fn run(cfg: &SweepConfig) -> Result<Spectrum> {
     let questions: Vec<Question> = cfg
         .periods
         .iter()
-        .map(|&p| Question::new(cfg.grid.clone(), p))
+        .map(|&p| Ok(Question::new(cfg.grid.clone(), p)?.with_class(cfg.class)))
         .collect::<Result<_>>()?;
     let mut store = cfg.store.as_deref().map(Store::open).transpose()?;
     let run_id = store::run_id();
@@ -491,7 +642,7 @@ pub fn run(cfg: &SweepConfig) -> Result<Spectrum> {
                 continue;
             }
         }
-        if q.period as u128 <= construction_limit(grid) {
+        if q.period as u128 <= construction_limit(grid, q.class) {
             constructible.push((q, key));
         } else {
             let proof = store.as_ref().map(|s| s.proof_path(&key, &run_id));
@@ -607,10 +758,11 @@ pub fn run(cfg: &SweepConfig) -> Result<Spectrum> {
         grid: grid.spec(),
         grid_name: grid.to_string(),
         dim: grid.dim(),
+        class: cfg.class,
+        question: question::statement(grid, cfg.class, "p"),
         effective_dim: n,
-        construction_limit: u64::try_from(construction_limit(grid)).unwrap_or(u64::MAX),
-        lemmens_scheutzow_bound: u64::try_from(question::lemmens_scheutzow_bound(n))
-            .unwrap_or(u64::MAX),
+        construction_limit: u64::try_from(construction_limit(grid, cfg.class)).unwrap_or(u64::MAX),
+        lemmens_scheutzow_bound: u64::try_from(period_bound(grid, cfg.class)).unwrap_or(u64::MAX),
         periods: cfg.periods.clone(),
         options: cfg.options.clone(),
         store: cfg.store.clone(),
@@ -641,7 +793,7 @@ fn reusable(
         for b in &all[i + 1..] {
             store::check_agree(a, &s.describe_file(&a.key), b, &s.describe_file(&b.key))?;
         }
-        if let Some(theorem) = theorem_conflict(grid, q.period, a.verdict) {
+        if let Some(theorem) = theorem_conflict(grid, q.class, q.period, a.verdict) {
             return Err(Error::Contradiction {
                 question: store::question_words(&record),
                 first: theorem,
@@ -671,7 +823,7 @@ fn finish(
     a: Answer,
 ) -> Result<()> {
     let p = a.question.period;
-    if let Some(theorem) = theorem_conflict(grid, p, a.verdict) {
+    if let Some(theorem) = theorem_conflict(grid, a.question.class, p, a.verdict) {
         let orbit = a
             .orbit
             .as_ref()
@@ -737,18 +889,37 @@ fn base_answer(
     }
 }
 
-/// Builds and checks the extension of `orbit` on boxes of at most
-/// [`MAP_CHECK_POINTS`] points; the number of points checked.
-fn map_check(grid: &Grid, orbit: &[Point]) -> Result<Option<u64>> {
+/// Builds and checks the extension of `orbit` for `q`'s class on boxes of at
+/// most [`MAP_CHECK_POINTS`] points; the number of points checked.
+///
+/// For topical questions both maps `check --map` checks: the unclamped
+/// extension, topical on R^n (order-preserving, nonexpansive and
+/// homogeneous on the grid, its values possibly outside the box), and its
+/// clamp, an order-preserving nonexpansive map of the box into itself.
+fn map_check(q: &Question, orbit: &[Point]) -> Result<Option<u64>> {
+    let grid = &q.grid;
     if grid.num_points() > MAP_CHECK_POINTS {
         return Ok(None);
     }
-    let table = verify::extend(grid.ranges(), orbit)?;
-    let check = verify::check_map(&table, orbit)?;
-    Ok(Some(check.points_checked))
+    let bounds = grid.ranges();
+    let points = match q.class {
+        MapClass::Nonexpansive => {
+            let table = verify::extend(bounds, orbit)?;
+            verify::check_map(&table, orbit)?.points_checked
+        }
+        MapClass::Topical => {
+            let free = verify::extend_topical(bounds, orbit, false)?;
+            let points = verify::check_topical_map(&free, orbit, true)?.points_checked;
+            let clamped = verify::extend_topical(bounds, orbit, true)?;
+            verify::check_topical_map(&clamped, orbit, false)?;
+            points
+        }
+    };
+    Ok(Some(points))
 }
 
-/// The answer by construction for `q` (which must have `p ≤ 2^n'`).
+/// The answer by construction for `q` (which must have `p` at most the
+/// class's [`construction_limit`]).
 fn constructed(
     q: &Question,
     key: String,
@@ -759,14 +930,16 @@ fn constructed(
     let started = SystemTime::now();
     let t = Instant::now();
     let mut a = base_answer(q, key, options, limits, run_id, How::Construction, started);
-    let orbit = construct(&q.grid, q.period).ok_or_else(|| {
+    let orbit = construct(&q.grid, q.class, q.period).ok_or_else(|| {
         Error::Question(format!(
-            "period {} is above 2^n' and cannot be constructed",
-            q.period
+            "period {} is above the construction limit {} of {} maps and cannot be constructed",
+            q.period,
+            construction_limit(&q.grid, q.class),
+            q.class
         ))
     })?;
     let check = q.check_orbit(&orbit)?;
-    a.map_checked_points = map_check(&q.grid, &orbit)?;
+    a.map_checked_points = map_check(q, &orbit)?;
     a.verdict = Verdict::Feasible;
     a.backing = Backing::CheckedOrbit;
     a.profile = Some(check.profile);
@@ -822,7 +995,7 @@ fn solved(task: &Task, cfg: &SweepConfig, limits: &RunLimits, run_id: &str) -> R
                     // decide has checked it; checking again here costs little
                     // and keeps the stored evidence self-contained.
                     let check = q.check_orbit(&orbit)?;
-                    a.map_checked_points = map_check(&q.grid, &orbit)?;
+                    a.map_checked_points = map_check(q, &orbit)?;
                     a.profile = Some(check.profile);
                     a.orbit = Some(orbit);
                     a.backing = Backing::CheckedOrbit;
@@ -1045,18 +1218,23 @@ impl Spectrum {
             .collect()
     }
 
+    /// The options as given, with what the class alone switches off
+    /// ([`EncodeOptions::for_class`]); each row's answer has them resolved
+    /// in full.
     fn options_words(&self) -> String {
+        let o = self.options.for_class(self.class);
+        let on_off = |b: bool| if b { "on" } else { "off" };
         format!(
             "{} (symmetry {}, count {}, packing {}, classes {})",
-            self.options.formulation,
-            if self.options.symmetry == Symmetry::ALL {
+            o.formulation,
+            if o.symmetry == Symmetry::ALL {
                 "all".to_string()
             } else {
-                self.options.symmetry.names()
+                o.symmetry.names()
             },
-            if self.options.count { "on" } else { "off" },
-            if self.options.packing { "on" } else { "off" },
-            if self.options.classes { "on" } else { "off" }
+            on_off(o.count),
+            on_off(o.packing),
+            on_off(o.classes)
         )
     }
 
@@ -1090,6 +1268,7 @@ impl Spectrum {
             self.effective_dim,
             ranges_words(&self.periods)
         );
+        let _ = writeln!(s, "question     for each p: {}", self.question);
         let _ = writeln!(s, "encoding     {}", self.options_words());
         let store = self
             .store
@@ -1125,23 +1304,34 @@ impl Spectrum {
             duration_words(self.elapsed_seconds),
             self.jobs
         );
-        let _ = writeln!(
-            s,
-            "published    p ≤ 2^{n} = {} exist (construction); p > {} excluded (Lemmens and Scheutzow 2005){}; \
-             prime p > {} excluded [recalled]",
-            self.construction_limit,
-            self.lemmens_scheutzow_bound,
-            if self.effective_dim <= 3 {
-                format!(
-                    "; n' ≤ 3: exactly 1..{} (Lyons and Nussbaum 1992 [recalled])",
-                    self.construction_limit
-                )
-            } else {
-                String::new()
-            },
-            self.construction_limit,
-            n = self.effective_dim,
-        );
+        if self.class == MapClass::Topical {
+            let _ = writeln!(
+                s,
+                "published    p ≤ C({n},{}) = {b} exist (middle layer of a unit cube [derived]); \
+                 p > {b} excluded (Lemmens and Scheutzow 2005)",
+                self.effective_dim / 2,
+                b = self.lemmens_scheutzow_bound,
+                n = self.effective_dim,
+            );
+        } else {
+            let _ = writeln!(
+                s,
+                "published    p ≤ 2^{n} = {} exist (construction); p > {} excluded (Lemmens and Scheutzow 2005){}; \
+                 prime p > {} excluded [recalled]",
+                self.construction_limit,
+                self.lemmens_scheutzow_bound,
+                if self.effective_dim <= 3 {
+                    format!(
+                        "; n' ≤ 3: exactly 1..{} (Lyons and Nussbaum 1992 [recalled])",
+                        self.construction_limit
+                    )
+                } else {
+                    String::new()
+                },
+                self.construction_limit,
+                n = self.effective_dim,
+            );
+        }
         let _ = writeln!(
             s,
             "             every answer agrees with them (a disagreement is an error)"
@@ -1189,27 +1379,49 @@ impl Spectrum {
         s
     }
 
+    /// The published-bounds list of a topical sweep: the middle-layer
+    /// construction and the topical theorem, and none of the nonexpansive
+    /// theorems (which bound a larger class and would mislead here).
+    fn topical_bounds_markdown(&self, s: &mut String) {
+        let (n, b) = (self.effective_dim, self.lemmens_scheutzow_bound);
+        let _ = writeln!(
+            s,
+            "- **Every p ≤ C(n,⌊n/2⌋) occurs** (construction [derived]): the C(n,⌊n/2⌋) points of the middle layer \
+             of a unit cube `Π {{a_c, a_c+1}}` are incomparable 0/1 offsets with the same number of ones, so \
+             t(y, z) = max_c (y_c − z_c) = 1 for any two of them, and any p of them, in any order, are a periodic \
+             orbit of a topical map. Here C({n},{}) = {b}.",
+            n / 2
+        );
+        let _ = writeln!(
+            s,
+            "- **p ≤ C(n,⌊n/2⌋)** for every periodic orbit of a topical map on R^n: {CITE_LS_TOPICAL}. \
+             Here the bound is {b}, so the periods are exactly 1..{b}."
+        );
+    }
+
     /// A Markdown page: the computed answers beside the published bounds,
     /// with the sources.
     pub fn to_markdown(&self) -> String {
         let mut s = String::new();
         let n = self.effective_dim;
-        let _ = writeln!(
-            s,
-            "# Periods of sup-norm nonexpansive maps on {}\n",
-            self.grid_name
-        );
+        let title = match self.class {
+            MapClass::Nonexpansive => "sup-norm nonexpansive maps on",
+            MapClass::Topical => "topical maps with an orbit in",
+        };
+        let _ = writeln!(s, "# Periods of {title} {}\n", self.grid_name);
         let _ = writeln!(
             s,
             "Box `{}`: dimension n = {}, effective dimension n' = {n} (coordinates with more than one value). \
-             Periods {} computed by orbitcnf {} (run `{}`, finished {}) with the formulation {}.\n",
+             Periods {} computed by orbitcnf {} (run `{}`, finished {}) with the formulation {}.\n\n\
+             The question, for each period p: {}.\n",
             self.grid,
             self.dim,
             ranges_words(&self.periods),
             self.tool_version,
             self.run_id,
             self.finished_at,
-            self.options_words()
+            self.options_words(),
+            self.question
         );
         let _ = writeln!(s, "Summary: {}.\n", self.summary_words());
         let _ = writeln!(
@@ -1235,35 +1447,39 @@ impl Spectrum {
             );
         }
         let _ = writeln!(s, "\n## Published bounds\n");
-        let _ = writeln!(
-            s,
-            "- **Every p ≤ 2^n occurs** (construction): the {} vertices of a unit cube `Π {{a_c, a_c+1}}` are pairwise \
-             at distance 1, so any p of them, in any order, are an isometric p-cycle. Here 2^{n} = {}.",
-            self.construction_limit, self.construction_limit
-        );
-        let _ = writeln!(
-            s,
-            "- **p ≤ max_k 2^k·C(n,k)** for every sup-norm nonexpansive map on a subset of R^n: {CITE_LS}. \
-             Here the bound is {}.",
-            self.lemmens_scheutzow_bound
-        );
-        let _ = writeln!(
-            s,
-            "- **n ≤ 3: the periods are exactly 1..2^n** (p ≤ 8 for n = 3; with the construction): {CITE_LN}. {}",
-            if n <= 3 {
-                format!(
-                    "It applies here: the periods are exactly 1..{}.",
-                    self.construction_limit
-                )
-            } else {
-                "It does not apply here (n' > 3).".into()
-            }
-        );
-        let _ = writeln!(
-            s,
-            "- **A prime period is at most 2^n**: {CITE_PRIME}. Here it excludes the primes above {}.",
-            self.construction_limit
-        );
+        if self.class == MapClass::Topical {
+            self.topical_bounds_markdown(&mut s);
+        } else {
+            let _ = writeln!(
+                s,
+                "- **Every p ≤ 2^n occurs** (construction): the {} vertices of a unit cube `Π {{a_c, a_c+1}}` are pairwise \
+                 at distance 1, so any p of them, in any order, are an isometric p-cycle. Here 2^{n} = {}.",
+                self.construction_limit, self.construction_limit
+            );
+            let _ = writeln!(
+                s,
+                "- **p ≤ max_k 2^k·C(n,k)** for every sup-norm nonexpansive map on a subset of R^n: {CITE_LS}. \
+                 Here the bound is {}.",
+                self.lemmens_scheutzow_bound
+            );
+            let _ = writeln!(
+                s,
+                "- **n ≤ 3: the periods are exactly 1..2^n** (p ≤ 8 for n = 3; with the construction): {CITE_LN}. {}",
+                if n <= 3 {
+                    format!(
+                        "It applies here: the periods are exactly 1..{}.",
+                        self.construction_limit
+                    )
+                } else {
+                    "It does not apply here (n' > 3).".into()
+                }
+            );
+            let _ = writeln!(
+                s,
+                "- **A prime period is at most 2^n**: {CITE_PRIME}. Here it excludes the primes above {}.",
+                self.construction_limit
+            );
+        }
         let open: Vec<usize> = self
             .rows
             .iter()
@@ -1301,15 +1517,17 @@ mod tests {
             (grid("0..2,5..5,0..1", 3), 4),
             (grid("7..7", 2), 1),
         ] {
-            assert_eq!(construction_limit(&g), limit);
+            let class = MapClass::Nonexpansive;
+            assert_eq!(construction_limit(&g, class), limit);
+            let q = |p| Question::new(g.clone(), p).unwrap();
             for p in 1..=limit as usize {
-                let orbit = construct(&g, p).unwrap();
+                let orbit = construct(&g, class, p).unwrap();
                 let check = verify::check_orbit(g.ranges(), &orbit).unwrap();
                 assert!(check.profile.iter().all(|&d| d == 1));
-                map_check(&g, &orbit).unwrap().unwrap();
+                map_check(&q(p), &orbit).unwrap().unwrap();
             }
-            assert!(construct(&g, limit as usize + 1).is_none());
-            assert!(construct(&g, 0).is_none());
+            assert!(construct(&g, class, limit as usize + 1).is_none());
+            assert!(construct(&g, class, 0).is_none());
         }
     }
 
@@ -1320,37 +1538,162 @@ mod tests {
         for bad in ["", "0..3", "4..2", "x", "1..", "1,,2", "1..100000"] {
             assert!(parse_periods(bad).is_err(), "{bad}");
         }
+        let ne = MapClass::Nonexpansive;
         assert_eq!(
-            default_periods(&grid("-1..1", 3)),
+            default_periods(&grid("-1..1", 3), ne),
             (1..=12).collect::<Vec<_>>()
         );
         assert_eq!(
-            default_periods(&grid("-1..1", 4)),
+            default_periods(&grid("-1..1", 4), ne),
             (1..=32).collect::<Vec<_>>()
         );
         // Capped by the number of points: {0,1}^3 has 8.
         assert_eq!(
-            default_periods(&grid("0..1", 3)),
+            default_periods(&grid("0..1", 3), ne),
             (1..=8).collect::<Vec<_>>()
         );
+        // Topical: one past C(n', ⌊n'/2⌋), with n' the effective dimension.
+        let t = MapClass::Topical;
+        let upto = |top: usize| (1..=top).collect::<Vec<_>>();
+        assert_eq!(default_periods(&grid("0..1", 4), t), upto(7));
+        assert_eq!(default_periods(&grid("0..2", 3), t), upto(4));
+        assert_eq!(default_periods(&grid("0..1,3..3,0..5", 3), t), upto(3));
+        // ... capped by the points: {0,1} has C(1,0) = 1, 1 + 1 = 2 = |D|;
+        // a single point has n' = 0 and only p = 1.
+        assert_eq!(default_periods(&grid("0..1", 1), t), upto(2));
+        assert_eq!(default_periods(&grid("4..4", 2), t), upto(1));
         assert_eq!(ranges_words(&[1, 2, 3, 5, 7, 8]), "1..3, 5, 7..8");
     }
 
     #[test]
     fn spectrum_published_statuses() {
+        let ne = MapClass::Nonexpansive;
         let t3 = grid("-1..1", 3);
-        assert_eq!(published(&t3, 8).status, Status::Exists);
-        assert_eq!(published(&t3, 9).status, Status::Excluded);
-        assert_eq!(published(&t3, 13).reasons.len(), 3);
+        assert_eq!(published(&t3, ne, 8).status, Status::Exists);
+        assert_eq!(published(&t3, ne, 9).status, Status::Excluded);
+        assert_eq!(published(&t3, ne, 13).reasons.len(), 3);
         let t4 = grid("-1..1", 4);
-        assert_eq!(published(&t4, 16).status, Status::Exists);
-        assert_eq!(published(&t4, 17).status, Status::Excluded);
-        assert_eq!(published(&t4, 18).status, Status::Open);
-        assert_eq!(published(&t4, 33).status, Status::Excluded);
-        assert!(theorem_conflict(&t4, 17, Verdict::Feasible).is_some());
-        assert!(theorem_conflict(&t4, 18, Verdict::Feasible).is_none());
-        assert!(theorem_conflict(&t4, 3, Verdict::Infeasible).is_some());
-        assert!(theorem_conflict(&t4, 3, Verdict::Unknown).is_none());
+        assert_eq!(published(&t4, ne, 16).status, Status::Exists);
+        assert_eq!(published(&t4, ne, 17).status, Status::Excluded);
+        assert_eq!(published(&t4, ne, 18).status, Status::Open);
+        assert_eq!(published(&t4, ne, 33).status, Status::Excluded);
+        assert!(theorem_conflict(&t4, ne, 17, Verdict::Feasible).is_some());
+        assert!(theorem_conflict(&t4, ne, 18, Verdict::Feasible).is_none());
+        assert!(theorem_conflict(&t4, ne, 3, Verdict::Infeasible).is_some());
+        assert!(theorem_conflict(&t4, ne, 3, Verdict::Unknown).is_none());
+    }
+
+    #[test]
+    fn spectrum_published_statuses_of_topical_maps() {
+        // Lemmens and Scheutzow (2005): topical periods on R^4 are at most
+        // C(4,2) = 6; the middle layer gives 1..6 [derived]. Nothing is open,
+        // and none of the nonexpansive theorems (2^n, n ≤ 3, primes) is cited.
+        let t = MapClass::Topical;
+        let b4 = grid("0..1", 4);
+        for p in 1..=6 {
+            assert_eq!(published(&b4, t, p).status, Status::Exists, "p = {p}");
+        }
+        for p in [7, 11, 16] {
+            let pubd = published(&b4, t, p);
+            assert_eq!(pubd.status, Status::Excluded, "p = {p}");
+            assert_eq!(pubd.reasons.len(), 1);
+            assert!(pubd.reasons[0].contains("C(4,2) = 6"), "{:?}", pubd.reasons);
+        }
+        // p = 7 is prime and ≤ 2^4 = 16: only the topical bound excludes it;
+        // p = 13 is a nonexpansive period of {-1,0,1}^4 but not a topical one.
+        let text = format!("{:?}", published(&b4, t, 13));
+        assert!(!text.contains("prime") && !text.contains("2^"), "{text}");
+        assert!(theorem_conflict(&b4, t, 7, Verdict::Feasible).is_some());
+        assert!(theorem_conflict(&b4, t, 6, Verdict::Infeasible).is_some());
+        assert!(theorem_conflict(&b4, t, 7, Verdict::Infeasible).is_none());
+        // The fixed coordinate does not count: n' = 3, C(3,1) = 3.
+        let flat = grid("0..2,1..1,0..2,0..2", 4);
+        assert_eq!(published(&flat, t, 3).status, Status::Exists);
+        assert_eq!(published(&flat, t, 4).status, Status::Excluded);
+    }
+
+    #[test]
+    fn spectrum_middle_layer_gives_checked_topical_cycles_up_to_the_bound() {
+        // Every p ≤ C(n', ⌊n'/2⌋) on boxes with unequal sides, one-point
+        // sides and n' = 0..6: the orbit passes the topical check with t = 1
+        // everywhere, and both extensions pass the topical map check.
+        let t = MapClass::Topical;
+        for (g, limit) in [
+            (grid("0..1", 4), 6),
+            (grid("0..1", 5), 10),
+            (grid("0..1", 6), 20),
+            (grid("-1..1", 3), 3),
+            (grid("0..2,5..5,0..1", 3), 2),
+            (grid("0..1,0..3,-2..0,7..7,1..2", 5), 6),
+            (grid("0..3", 1), 1),
+            (grid("7..7", 2), 1),
+        ] {
+            assert_eq!(construction_limit(&g, t), limit, "{g}");
+            let q = |p| Question::new(g.clone(), p).unwrap().with_class(t);
+            for p in 1..=limit as usize {
+                let orbit = construct(&g, t, p).unwrap();
+                assert_eq!(orbit.len(), p);
+                let check = verify::check_topical_orbit(g.ranges(), &orbit)
+                    .unwrap_or_else(|e| panic!("{g} p = {p}: {e}"));
+                assert!(check.profile.iter().all(|&d| d == 1), "{g} p = {p}");
+                if g.num_points() <= 64 {
+                    assert!(map_check(&q(p), &orbit).unwrap().is_some());
+                }
+            }
+            // The whole layer is used, and no more.
+            assert_eq!(middle_layer(&g, limit as usize + 5).len(), limit as usize);
+            assert!(construct(&g, t, limit as usize + 1).is_none());
+            assert!(construct(&g, t, 0).is_none());
+        }
+        // The layer of {0,1}^4 in order: the 2-subsets 01, 02, 03, 12, 13, 23.
+        assert_eq!(
+            middle_layer(&grid("0..1", 4), 6),
+            vec![
+                vec![1, 1, 0, 0],
+                vec![1, 0, 1, 0],
+                vec![1, 0, 0, 1],
+                vec![0, 1, 1, 0],
+                vec![0, 1, 0, 1],
+                vec![0, 0, 1, 1],
+            ]
+        );
+        // A unit-cube cycle is not topical: (0,0) ≤ (1,0) gives t = 0.
+        let cube = construct(&grid("0..1", 2), MapClass::Nonexpansive, 2).unwrap();
+        assert!(verify::check_topical_orbit(grid("0..1", 2).ranges(), &cube).is_err());
+    }
+
+    #[test]
+    fn spectrum_of_a_topical_square_without_store() {
+        // {0,1,2}^2: C(2,1) = 2 (Lemmens and Scheutzow 2005); the default
+        // periods are 1..3 and p = 3 is refuted with a checked proof.
+        let mut cfg = SweepConfig::for_class(grid("0..2", 2), MapClass::Topical);
+        assert_eq!(cfg.periods, vec![1, 2, 3]);
+        cfg.jobs = 1;
+        let s = run(&cfg).unwrap();
+        assert_eq!(s.periods_with(Verdict::Feasible), vec![1, 2]);
+        assert_eq!(s.periods_with(Verdict::Infeasible), vec![3]);
+        assert_eq!(s.rows[1].how, How::Construction);
+        assert_eq!(s.rows[2].answer.backing, Backing::CheckedProof);
+        assert_eq!(s.rows[2].answer.options.formulation, "topical-cycle/1");
+        assert!(
+            s.rows[1].certificate.contains("topical map"),
+            "{}",
+            s.rows[1].certificate
+        );
+        let table = s.to_table();
+        assert!(
+            table.contains("forming a periodic orbit of a topical map"),
+            "{table}"
+        );
+        assert!(
+            table.contains("topical-cycle/1") && table.contains("count off"),
+            "{table}"
+        );
+        let md = s.to_markdown();
+        assert!(md.contains("# Periods of topical maps"), "{md}");
+        for absent in ["prime", "Lyons", "2^n", "max_k"] {
+            assert!(!md.contains(absent), "{absent:?} in\n{md}");
+        }
     }
 
     #[test]

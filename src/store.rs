@@ -73,7 +73,8 @@ const KEY_DOMAIN: &[u8] = b"orbitcnf-store-key/1\n";
 #[serde(rename_all = "kebab-case")]
 pub enum How {
     /// Built without solving: `p ≤ 2^n'` points of a unit cube, pairwise at
-    /// distance 1 (see [`crate::spectrum::construct`]).
+    /// distance 1, or for topical questions `p ≤ C(n', ⌊n'/2⌋)` points of its
+    /// middle layer (see [`crate::spectrum::construct`]).
     Construction,
     /// Decided by [`crate::decide::decide`] with the certified solver.
     Solver,
@@ -367,9 +368,15 @@ pub fn check_agree(a: &Answer, a_where: &str, b: &Answer, b_where: &str) -> Resu
     Ok(())
 }
 
-/// `grid G (n = N), p = P`, for messages.
+/// `grid G (n = N), p = P`, for messages, with `, topical maps` after it
+/// for a topical question.
 pub fn question_words(q: &QuestionRecord) -> String {
-    format!("grid {} (n = {}), p = {}", q.grid, q.dim, q.period)
+    let class = if q.class.is_default() {
+        String::new()
+    } else {
+        format!(", {} maps", q.class)
+    };
+    format!("grid {} (n = {}), p = {}{class}", q.grid, q.dim, q.period)
 }
 
 /// What [`Store::put`] did.
@@ -669,6 +676,7 @@ mod tests {
     use super::*;
     use crate::encode::FORMULATION;
     use crate::grid::Grid;
+    use crate::question::MapClass;
 
     fn answer(period: usize, verdict: Verdict, options: EncodeOptions, run: &str) -> Answer {
         let q = Question::new(Grid::parse("-1..1", Some(2)).unwrap(), period).unwrap();
@@ -709,6 +717,37 @@ mod tests {
         assert_ne!(a.key, b.key);
         assert_ne!(a.key, c.key);
         assert_eq!(a.key, key(&a.question, &a.options));
+    }
+
+    #[test]
+    fn nonexpansive_keys_are_unchanged_by_classes_and_topical_keys_differ() {
+        // The literal is sha256sum of the key input written out by hand (the
+        // domain line, then the JSON of question, options and formulation as
+        // stores made before map classes existed spell it), so stores
+        // written by older versions are still found.
+        let record = |class| QuestionRecord {
+            dim: 2,
+            grid: "-1..1,-1..1".into(),
+            period: 5,
+            class,
+        };
+        let options = EncodeOptions::default();
+        assert_eq!(
+            key(&record(MapClass::Nonexpansive), &options),
+            "919a13f12f7ea9ba7fad8be039643be110cc2be1c86f0584daa814ef61caafc5"
+        );
+        let topical = record(MapClass::Topical);
+        assert_ne!(
+            key(&topical, &options),
+            key(&record(MapClass::Nonexpansive), &options)
+        );
+        let q = Question::from_record(&topical).unwrap();
+        let plain = q.clone().with_class(MapClass::Nonexpansive);
+        assert_ne!(key_for(&q, &options), key_for(&plain, &options));
+        assert_eq!(
+            question_words(&topical),
+            "grid -1..1,-1..1 (n = 2), p = 5, topical maps"
+        );
     }
 
     #[test]

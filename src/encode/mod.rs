@@ -240,13 +240,14 @@ impl EncodeOptions {
         }
     }
 
-    /// The options as they apply to `q`: families that cannot act on `q`, or
-    /// whose tables would be too large, are switched off. The result is what
-    /// the CNF header records.
-    pub fn resolve(&self, q: &Question) -> EncodeOptions {
+    /// The part of [`EncodeOptions::resolve`] that depends on the class
+    /// alone: the class's formulation, and for topical questions the
+    /// families argued for the norm only switched off. A sweep reports its
+    /// options this way, since the rest of the resolution varies by period.
+    pub fn for_class(&self, class: MapClass) -> EncodeOptions {
         let mut o = self.clone();
-        o.formulation = formulation(q.class).to_string();
-        if q.class == MapClass::Topical {
+        o.formulation = formulation(class).to_string();
+        if class == MapClass::Topical {
             // The counting families, the subgroup-profile clauses (which
             // read the folded, symmetric profile) and step 6 are argued for
             // the norm only.
@@ -255,6 +256,14 @@ impl EncodeOptions {
             o.classes = false;
             o.symmetry.reverse = false;
         }
+        o
+    }
+
+    /// The options as they apply to `q`: families that cannot act on `q`, or
+    /// whose tables would be too large, are switched off. The result is what
+    /// the CNF header records.
+    pub fn resolve(&self, q: &Question) -> EncodeOptions {
+        let mut o = self.for_class(q.class);
         let point_eq_ok = q.period as u128 * q.grid.num_points() <= POINT_EQ_LIMIT;
         if !point_eq_ok {
             o.count = false;

@@ -330,6 +330,17 @@ pub enum Status {
     Open,
 }
 
+impl Status {
+    /// The word used in reports: `exists`, `excluded` or `open`.
+    pub fn word(self) -> &'static str {
+        match self {
+            Status::Exists => "exists",
+            Status::Excluded => "excluded",
+            Status::Open => "open",
+        }
+    }
+}
+
 /// The published facts that bear on one period.
 #[derive(Clone, Debug, PartialEq, Eq, Serialize)]
 pub struct Published {
@@ -1364,11 +1375,10 @@ impl Spectrum {
                 proof.and_then(|p| p.file.clone()).unwrap_or_default(),
                 proof.and_then(|p| p.sha256.clone()).unwrap_or_default(),
                 format!(
-                    "{:?}: {}",
-                    r.published.status,
+                    "{}: {}",
+                    r.published.status.word(),
                     r.published.reasons.join("; ")
-                )
-                .to_lowercase(),
+                ),
                 a.run_id.clone(),
                 a.finished_at.clone(),
             ];
@@ -1430,9 +1440,8 @@ impl Spectrum {
         );
         for r in &self.rows {
             let published = match r.published.status {
-                Status::Exists => format!("exists: {}", r.published.reasons.join("; ")),
-                Status::Excluded => format!("excluded: {}", r.published.reasons.join("; ")),
                 Status::Open => "open".into(),
+                status => format!("{}: {}", status.word(), r.published.reasons.join("; ")),
             };
             let _ = writeln!(
                 s,

@@ -18,6 +18,7 @@ use serde_json::Value;
 
 use orbitcnf::store::Store;
 
+use crate::topical::assert_topical_cycle;
 use crate::util::{ERROR, TestDir, assert_isometric_cycle, bin};
 
 /// Every answer file of a store, by name, with its bytes.
@@ -55,6 +56,41 @@ fn essentials(report: &Value) -> Vec<(u64, String, String, String, Value)> {
             )
         })
         .collect()
+}
+
+/// Asserts that the infeasible spectrum row `row` (stored in `dir/results`)
+/// has a kept proof that `orbitcnf verify-proof` accepts against a fresh
+/// `orbitcnf encode QUESTION --period P`, and that [`Store::recheck`]
+/// accepts as well.
+fn assert_stored_proof_accepted(dir: &TestDir, store: &Store, row: &Value, question: &[&str]) {
+    let p = row["period"].as_u64().unwrap().to_string();
+    let answer = &row["answer"];
+    assert_eq!(answer["backing"], "checked-proof", "{question:?} p = {p}");
+    let rel = answer["proof"]["file"].as_str().expect("a kept proof");
+    let proof = dir.path("results").join(rel);
+    assert!(proof.starts_with(dir.path("results/proofs")));
+    let cnf = dir.path(&format!("p{p}.cnf"));
+    dir.orbitcnf()
+        .arg("encode")
+        .args(question)
+        .args(["--period", &p, "--output"])
+        .arg(&cnf)
+        .run()
+        .code(0);
+    dir.orbitcnf()
+        .arg("verify-proof")
+        .arg(&cnf)
+        .arg(&proof)
+        .run()
+        .code(0)
+        .stdout_has("accepted");
+    let key = answer["key"].as_str().unwrap();
+    let stored = store.get(key).expect("the answer is in the store");
+    let recheck = store.recheck(stored).expect("recheck");
+    assert!(
+        recheck.proof.is_some(),
+        "{question:?} p = {p}: proof re-checked"
+    );
 }
 
 /// Checks a full default spectrum of an n = 3 box: 1..8 feasible by
@@ -95,28 +131,8 @@ fn check_three_dimensional_spectrum(grid: &str, bounds: &[(i64, i64)]) {
         } else {
             assert_eq!(r["verdict"], "infeasible", "{grid} p = {p}");
             assert_eq!(r["how"], "solver", "{grid} p = {p}");
-            assert_eq!(answer["backing"], "checked-proof");
-            let rel = answer["proof"]["file"].as_str().expect("a kept proof");
-            let proof = dir.path("results").join(rel);
-            assert!(proof.starts_with(dir.path("results/proofs")));
-            let cnf = dir.path(&format!("p{p}.cnf"));
-            dir.orbitcnf()
-                .args(["encode", "--dim", "3", &format!("--grid={grid}")])
-                .args(["--period", &p.to_string(), "--output"])
-                .arg(&cnf)
-                .run()
-                .code(0);
-            dir.orbitcnf()
-                .arg("verify-proof")
-                .arg(&cnf)
-                .arg(&proof)
-                .run()
-                .code(0)
-                .stdout_has("accepted");
-            let key = answer["key"].as_str().unwrap();
-            let stored = store.get(key).expect("the answer is in the store");
-            let recheck = store.recheck(stored).expect("recheck");
-            assert!(recheck.proof.is_some(), "{grid} p = {p}: proof re-checked");
+            let question = ["--dim", "3", &format!("--grid={grid}")];
+            assert_stored_proof_accepted(&dir, &store, r, &question);
         }
     }
     // A second run reuses everything and prints the same table rows.
@@ -374,4 +390,190 @@ fn spectrum_reports_a_stored_contradiction_naming_both_runs() {
         .stderr_has("CONTRADICTION")
         .stderr_has("forged-run-2");
     run.stderr_has("exists by construction");
+}
+
+// ---- The topical class ----
+//
+// Expected answers: every period of a topical map on R^n is at most
+// C(n, ⌊n/2⌋) (B. Lemmens and M. Scheutzow, Ergodic Theory Dynam. Systems 25
+// (2005) 861–871, proving the Gunawardena–Sparrow conjecture [paper, per
+// MATH.md §7]), and every period up to it occurs on the middle layer of a unit
+// cube [derived]. So on {0,1}^4 the topical periods are exactly 1..6 and on
+// {0,1,2}^3 exactly 1..3; the default sweep goes one period further. The
+// orbits are checked here by `topical::assert_topical_cycle` (no crate code)
+// and by the crate's topical check; the proofs by `verify-proof` against a
+// fresh `encode --class topical` and by the store's recheck.
+
+/// Runs the default topical spectrum of `{lo..hi}^n`, expects exactly
+/// `1..=bound` feasible by construction and `bound + 1` infeasible by the
+/// solver, checks every certificate, and a second run reuses all of it.
+/// Returns the report.
+fn check_topical_spectrum(n: usize, lo: i64, hi: i64, bound: u64) -> Value {
+    let dir = TestDir::new();
+    let grid = format!("--grid={lo}..{hi}");
+    let dim = n.to_string();
+    let question = ["--dim", &dim, &grid, "--class", "topical"];
+    let run = dir
+        .orbitcnf()
+        .arg("spectrum")
+        .args(question)
+        .args(["--store", "results", "--json"])
+        .run();
+    run.code(0);
+    let report = run.json();
+    assert_eq!(report["class"], "topical", "{}", run.shown);
+    let statement = report["question"].as_str().unwrap();
+    assert!(
+        statement.contains("periodic orbit of a topical map"),
+        "{statement}"
+    );
+    assert_eq!(report["lemmens_scheutzow_bound"], bound);
+    let periods: Vec<u64> = rows(&report)
+        .iter()
+        .map(|r| r["period"].as_u64().unwrap())
+        .collect();
+    assert_eq!(periods, (1..=bound + 1).collect::<Vec<_>>());
+    let bounds = vec![(lo, hi); n];
+    let points = ((hi - lo + 1) as u64).pow(n as u32);
+    let store = Store::open(&dir.path("results")).expect("open the store");
+    for r in rows(&report) {
+        let p = r["period"].as_u64().unwrap() as usize;
+        let answer = &r["answer"];
+        assert_eq!(answer["question"]["class"], "topical");
+        if p as u64 <= bound {
+            assert_eq!(r["verdict"], "feasible", "p = {p}");
+            assert_eq!(r["how"], "construction", "p = {p}");
+            assert_eq!(answer["backing"], "checked-orbit");
+            assert_eq!(answer["map_checked_points"], points, "p = {p}");
+            let orbit: Vec<Vec<i64>> = serde_json::from_value(answer["orbit"].clone()).unwrap();
+            orbitcnf::verify::check_topical_orbit(&bounds, &orbit).expect("the crate's check");
+            assert_topical_cycle(&bounds, &orbit, p, &format!("{grid} p = {p}"));
+        } else {
+            assert_eq!(r["verdict"], "infeasible", "p = {p}");
+            assert_eq!(r["how"], "solver", "p = {p}");
+            assert_eq!(answer["options"]["formulation"], "topical-cycle/1");
+            assert_stored_proof_accepted(&dir, &store, r, &question);
+        }
+    }
+    let again = dir
+        .orbitcnf()
+        .arg("spectrum")
+        .args(question)
+        .args(["--store", "results", "--json", "--recheck"])
+        .run();
+    again.code(0);
+    let again = again.json();
+    assert_eq!(again["summary"]["reused"], bound + 1);
+    assert_eq!(essentials(&again), essentials(&report));
+    report
+}
+
+#[test]
+fn topical_spectrum_of_the_binary_4_cube_is_1_to_6_with_checked_certificates() {
+    check_topical_spectrum(4, 0, 1, 6);
+}
+
+#[test]
+fn topical_spectrum_of_the_ternary_3_cube_is_1_to_3_with_checked_certificates() {
+    check_topical_spectrum(3, 0, 2, 3);
+}
+
+#[test]
+fn topical_spectrum_reports_name_the_topical_bound_and_no_nonexpansive_theorem() {
+    let dir = TestDir::new();
+    let base = [
+        "spectrum",
+        "--class",
+        "topical",
+        "--dim",
+        "4",
+        "--grid=0..1",
+        "--store",
+        "r",
+    ];
+    let table = dir.orbitcnf().args(base).run();
+    table.code(0).stdout_has("every period decided");
+    table
+        .stdout_has("question     for each p: p distinct points of {0,1}^4 (n = 4)")
+        .stdout_has("topical-cycle/1")
+        .stdout_has("p ≤ C(4,2) = 6 exist")
+        .stdout_has("    7  infeasible  solver");
+    for p in 1..=6 {
+        table.stdout_has(&format!("    {p}  feasible    construction"));
+    }
+    let csv = dir.orbitcnf().args(base).arg("--csv").run();
+    csv.code(0);
+    let lines: Vec<&str> = csv.stdout.lines().collect();
+    assert_eq!(lines.len(), 8, "{}", csv.stdout);
+    assert!(lines[1].starts_with("1,feasible,construction,stored,"));
+    assert!(lines[6].contains("exists: p ≤ C(4,2) = 6"), "{}", lines[6]);
+    assert!(lines[7].starts_with("7,infeasible,solver,stored,"));
+    assert!(lines[7].contains("excluded: p > C(4,2) = 6 (Lemmens and Scheutzow 2005"));
+    let md = dir.orbitcnf().args(base).args(["--markdown", "t.md"]).run();
+    md.code(0);
+    let page = dir.read("t.md");
+    for needle in [
+        "# Periods of topical maps with an orbit in {0,1}^4",
+        "forming a periodic orbit of a topical map R^4 → R^4",
+        "| 7 | infeasible | solver (stored) |",
+        "Ergodic Theory Dynam. Systems 25 (2005) 861–871",
+        "Gunawardena",
+        "middle layer",
+        "[derived]",
+    ] {
+        assert!(page.contains(needle), "missing {needle:?} in\n{page}");
+    }
+    for absent in ["Lyons", "prime", "2^n", "max_k", "isometric"] {
+        assert!(!page.contains(absent), "{absent:?} in\n{page}");
+    }
+    // The text and CSV name no nonexpansive theorem either.
+    for out in [&table.stdout, &csv.stdout] {
+        assert!(!out.contains("prime") && !out.contains("2^"), "{out}");
+    }
+}
+
+#[test]
+fn topical_and_nonexpansive_answers_are_kept_apart_and_a_topical_contradiction_is_loud() {
+    // p = 7 on {0,1}^4: a nonexpansive period (7 ≤ 2^4, construction), but
+    // not a topical one (7 > C(4,2) = 6, Lemmens and Scheutzow 2005). In one
+    // store both answers stand, under different keys, with no contradiction.
+    let dir = TestDir::new();
+    let base = ["spectrum", "--dim", "4", "--grid=0..1", "--store", "r"];
+    let plain = dir
+        .orbitcnf()
+        .args(base)
+        .args(["--periods", "7", "--json"])
+        .run();
+    plain.code(0);
+    let plain = plain.json();
+    assert_eq!(rows(&plain)[0]["verdict"], "feasible");
+    assert!(rows(&plain)[0]["answer"]["question"].get("class").is_none());
+    let topical = ["--class", "topical", "--periods", "7", "--json"];
+    let t = dir.orbitcnf().args(base).args(topical).run();
+    t.code(0);
+    let t = t.json();
+    let row = &rows(&t)[0];
+    assert_eq!(row["verdict"], "infeasible");
+    assert_eq!(row["reused"], false);
+    assert_ne!(row["answer"]["key"], rows(&plain)[0]["answer"]["key"]);
+    assert_eq!(answer_files(&dir.path("r")).len(), 2);
+
+    // A stored topical answer that contradicts the topical theorem.
+    let genuine = format!("r/answers/{}.json", row["answer"]["key"].as_str().unwrap());
+    std::fs::remove_file(dir.path(&genuine)).unwrap();
+    forge(&dir.path("r"), &row["answer"], "feasible", "forged-topical");
+    let run = dir.orbitcnf().args(base).args(topical).run();
+    run.code(ERROR)
+        .stderr_has("CONTRADICTION")
+        .stderr_has("p = 7, topical maps")
+        .stderr_has("published theorems exclude the period")
+        .stderr_has("C(4,2) = 6")
+        .stderr_has("forged-topical");
+    // The nonexpansive answer is untouched by it.
+    dir.orbitcnf()
+        .args(base)
+        .args(["--periods", "7"])
+        .run()
+        .code(0)
+        .stdout_has("    7  feasible    construction  stored");
 }

@@ -35,7 +35,7 @@ fn binomial(n: usize, k: usize) -> usize {
 
 /// Asserts that `orbit` has `p` distinct points in the box with
 /// `t(x_i, x_{i+k}) = t(x_0, x_k)` for all `i, k`.
-fn assert_topical_cycle(bounds: &[(i64, i64)], orbit: &[Vec<i64>], p: usize, context: &str) {
+pub fn assert_topical_cycle(bounds: &[(i64, i64)], orbit: &[Vec<i64>], p: usize, context: &str) {
     assert_eq!(orbit.len(), p, "{context}: length");
     for x in orbit {
         assert_eq!(x.len(), bounds.len(), "{context}: dimension of {x:?}");

@@ -15,21 +15,30 @@
 //! - `grid`: as for `--grid`, one range for every coordinate or one per coordinate;
 //! - `dim`: the dimension n (must match the number of ranges when several are given);
 //! - `period`: the minimal period p;
+//! - `class` (optional): `nonexpansive` (the default) or `topical`, as for
+//!   `--class`; any other value fails the test, naming the value;
 //! - `expected`: `feasible` or `infeasible`;
 //! - `source`: where the answer comes from — a theorem with its citation, a
 //!   construction, or `brute force: …`, in which case the test also runs
-//!   `orbitcnf::brute::find_cycle` and requires it to agree;
+//!   `orbitcnf::brute::find_cycle` (`find_topical_cycle` for the topical
+//!   class) and requires it to agree;
 //! - `ignore` (optional): a reason to skip the instance by default
 //!   (`cargo test -- --ignored` runs it).
 //!
-//! Each test decides the instance with `orbitcnf decide --json`, checks the
-//! verdict, and verifies a feasible answer's orbit with `orbitcnf check` and
-//! the checker in `util`.
+//! Each test decides the instance with `orbitcnf decide --json` (with
+//! `--class topical` for topical instances) and checks the verdict. A
+//! nonexpansive feasible answer's orbit is verified with `orbitcnf check`
+//! and the checker in `util`; a topical one with the checker in `topical`
+//! and `orbitcnf check --map` (order-preservation, homogeneity and the
+//! orbit by exhaustion), and a topical infeasible answer must carry an LRAT
+//! proof accepted by orbitcnf's checker (see `topical::decide_topical`).
 
 use std::collections::BTreeSet;
 
+use orbitcnf::question::MapClass;
 use serde_json::Value;
 
+use crate::topical::{assert_topical_cycle, decide_topical};
 use crate::util::{Expect, Q, TestDir, assert_decides, assert_isometric_cycle};
 
 include!(concat!(env!("OUT_DIR"), "/instance_tests.rs"));
@@ -37,11 +46,14 @@ include!(concat!(env!("OUT_DIR"), "/instance_tests.rs"));
 /// A parsed instance file.
 struct Instance {
     q: Q,
+    class: MapClass,
     expect: Expect,
     source: String,
 }
 
-const FIELDS: [&str; 6] = ["grid", "dim", "period", "expected", "source", "ignore"];
+const FIELDS: [&str; 7] = [
+    "grid", "dim", "period", "class", "expected", "source", "ignore",
+];
 
 fn parse(name: &str, text: &str) -> Instance {
     let bad = |why: &str| -> ! { panic!("instances/{name}: {why}") };
@@ -64,6 +76,15 @@ fn parse(name: &str, text: &str) -> Instance {
     let (spec, dim, period) = (string("grid"), number("dim"), number("period"));
     let expect = Expect::parse(&string("expected"))
         .unwrap_or_else(|| bad("\"expected\" must be \"feasible\" or \"infeasible\""));
+    let class = match v.get("class") {
+        None => MapClass::Nonexpansive,
+        Some(Value::String(c)) => c.parse().unwrap_or_else(|_| {
+            bad(&format!(
+                "unknown \"class\" {c:?}; choose nonexpansive or topical"
+            ))
+        }),
+        Some(_) => bad("\"class\" must be a string: nonexpansive or topical"),
+    };
     let source = string("source");
     if source.trim().len() < 10 {
         bad("\"source\" must say where the answer comes from");
@@ -93,6 +114,7 @@ fn parse(name: &str, text: &str) -> Instance {
     };
     Instance {
         q: Q::boxed(&bounds, period),
+        class,
         expect,
         source,
     }
@@ -102,28 +124,45 @@ fn parse(name: &str, text: &str) -> Instance {
 pub fn run_instance(name: &str, text: &str) {
     let inst = parse(name, text);
     let dir = TestDir::new();
-    assert_decides(&dir, &inst.q, inst.expect);
+    let (bounds, p) = (&inst.q.bounds, inst.q.period);
+    let feasible = inst.expect == Expect::Feasible;
+    match inst.class {
+        MapClass::Nonexpansive => {
+            assert_decides(&dir, &inst.q, inst.expect);
+        }
+        MapClass::Topical => {
+            decide_topical(&dir, &inst.q, &[], feasible);
+        }
+    }
     if inst.source.starts_with("brute force") {
-        let found = orbitcnf::brute::find_cycle(&inst.q.bounds, inst.q.period);
-        if let Some(c) = &found {
-            assert_isometric_cycle(&inst.q.bounds, c, inst.q.period, name);
+        let found = match inst.class {
+            MapClass::Nonexpansive => orbitcnf::brute::find_cycle(bounds, p),
+            MapClass::Topical => orbitcnf::brute::find_topical_cycle(bounds, p),
+        };
+        match (&found, inst.class) {
+            (Some(c), MapClass::Nonexpansive) => assert_isometric_cycle(bounds, c, p, name),
+            (Some(c), MapClass::Topical) => assert_topical_cycle(bounds, c, p, name),
+            (None, _) => {}
         }
         assert_eq!(
             found.is_some(),
-            inst.expect == Expect::Feasible,
+            feasible,
             "instances/{name}: brute force found {found:?}"
         );
     }
 }
 
-/// The collection covers what it should: n = 1..4 (counting sides with more
-/// than one point), both verdicts, unequal sides and one-point sides.
+/// The collection covers what it should: for nonexpansive maps n = 1..4,
+/// both verdicts, unequal sides and one-point sides; for topical maps both
+/// verdicts, a brute-force instance and a one-point side.
 #[test]
 fn instance_files_cover_dimensions_1_to_4_and_both_verdicts() {
     let dir = concat!(env!("CARGO_MANIFEST_DIR"), "/instances");
     let mut dims = BTreeSet::new();
     let mut verdicts = BTreeSet::new();
+    let mut topical_verdicts = BTreeSet::new();
     let (mut unequal, mut one_point, mut count) = (false, false, 0);
+    let (mut topical_brute, mut topical_one_point) = (false, false);
     for entry in std::fs::read_dir(dir).expect("instances/") {
         let path = entry.unwrap().path();
         if path.extension().is_none_or(|x| x != "json") {
@@ -132,17 +171,49 @@ fn instance_files_cover_dimensions_1_to_4_and_both_verdicts() {
         let name = path.file_name().unwrap().to_string_lossy().into_owned();
         let inst = parse(&name, &std::fs::read_to_string(&path).unwrap());
         let b = &inst.q.bounds;
+        count += 1;
+        if inst.class == MapClass::Topical {
+            topical_verdicts.insert(inst.expect.word());
+            topical_brute |= inst.source.starts_with("brute force");
+            topical_one_point |= b.iter().any(|(lo, hi)| lo == hi);
+            continue;
+        }
         dims.insert(b.len());
         verdicts.insert(inst.expect.word());
         unequal |= b.windows(2).any(|w| w[0].1 - w[0].0 != w[1].1 - w[1].0);
         one_point |= b.iter().any(|(lo, hi)| lo == hi);
-        count += 1;
     }
-    assert!((15..=30).contains(&count), "{count} instance files");
+    assert!((15..=40).contains(&count), "{count} instance files");
     assert_eq!(dims, (1..=4).collect(), "dimensions covered");
     assert_eq!(verdicts.len(), 2, "{verdicts:?}");
     assert!(
         unequal && one_point,
         "unequal sides {unequal}, one-point sides {one_point}"
     );
+    assert_eq!(topical_verdicts.len(), 2, "topical {topical_verdicts:?}");
+    assert!(
+        topical_brute && topical_one_point,
+        "topical brute force {topical_brute}, one-point side {topical_one_point}"
+    );
+}
+
+#[test]
+#[should_panic(
+    expected = "instances/bad.json: unknown \"class\" \"sideways\"; choose nonexpansive or topical"
+)]
+fn an_unknown_class_in_an_instance_file_names_it() {
+    parse(
+        "bad.json",
+        r#"{"grid": "0..1", "dim": 2, "period": 2, "class": "sideways",
+            "expected": "feasible", "source": "a test of the parser only"}"#,
+    );
+}
+
+#[test]
+fn the_class_of_an_instance_file_defaults_to_nonexpansive() {
+    let text = r#"{"grid": "0..1", "dim": 2, "period": 2,
+                   "expected": "feasible", "source": "a test of the parser only"}"#;
+    assert_eq!(parse("plain.json", text).class, MapClass::Nonexpansive);
+    let topical = text.replace("\"period\": 2,", "\"period\": 2, \"class\": \"topical\",");
+    assert_eq!(parse("t.json", &topical).class, MapClass::Topical);
 }

@@ -74,7 +74,7 @@ fn orbit_of(v: &Value) -> Vec<Vec<i64>> {
 
 /// Decides `q` as a topical question and checks everything the answer
 /// claims: the orbit here and with `check --map`, or the checked proof.
-fn decide_topical(dir: &TestDir, q: &Q, extra: &[&str], feasible: bool) -> Value {
+pub fn decide_topical(dir: &TestDir, q: &Q, extra: &[&str], feasible: bool) -> Value {
     let run = dir
         .orbitcnf()
         .arg("decide")

@@ -52,7 +52,7 @@ impl std::str::FromStr for MapClass {
         match s.trim() {
             "nonexpansive" => Ok(MapClass::Nonexpansive),
             "topical" => Ok(MapClass::Topical),
-            other => Err(Error::Options(format!(
+            other => Err(Error::Question(format!(
                 "unknown map class {other:?}; choose nonexpansive or topical"
             ))),
         }

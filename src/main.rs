@@ -389,7 +389,8 @@ fn main() -> ExitCode {
                 .lines()
                 .map(str::trim)
                 .take_while(|l| !l.starts_with("Usage:"))
-                .filter(|l| !l.is_empty())
+                // Our own pointer to the help replaces clap's.
+                .filter(|l| !l.is_empty() && !l.starts_with("For more information"))
                 .collect();
             let msg = parts.join(" ");
             let msg = msg.trim_start_matches("error: ");

@@ -61,12 +61,16 @@ fn search(bounds: &[(i64, i64)], p: usize, limit: usize, one_sided: bool) -> Vec
         .map(|a| {
             (0..n)
                 .map(|b| {
-                    pts[a]
-                        .iter()
-                        .zip(&pts[b])
-                        .map(|(x, y)| if one_sided { x - y } else { (x - y).abs() })
-                        .max()
-                        .unwrap_or(0)
+                    if one_sided {
+                        pts[a]
+                            .iter()
+                            .zip(&pts[b])
+                            .map(|(x, y)| x - y)
+                            .max()
+                            .unwrap_or(0)
+                    } else {
+                        sup_distance(&pts[a], &pts[b])
+                    }
                 })
                 .collect()
         })
@@ -94,6 +98,16 @@ fn search(bounds: &[(i64, i64)], p: usize, limit: usize, one_sided: bool) -> Vec
         .into_iter()
         .map(|c| c.iter().map(|&i| pts[i].clone()).collect())
         .collect()
+}
+
+/// The sup-norm distance, computed here for the brute force and the tests
+/// that check lemmas on its cycles (no encoder code involved).
+pub fn sup_distance(a: &[i64], b: &[i64]) -> i64 {
+    a.iter()
+        .zip(b)
+        .map(|(x, y)| (x - y).abs())
+        .max()
+        .unwrap_or(0)
 }
 
 /// Extends `seq`; records complete cycles in `found` and returns true once `limit` are found.

@@ -222,10 +222,9 @@ struct EncodingArgs {
     /// "too many pairwise far points" by weighted counting over windows).
     #[arg(long)]
     no_packing: bool,
-    /// Leave out the exclusion of impossible subgroup profiles (on by
-    /// default; one clause per profile whose close offsets are the multiples
-    /// of a divisor of p and which the window count rules out; see
-    /// encodings/redundant.md).
+    /// Leave out the profile exclusions (on by default): one clause per
+    /// subgroup profile the window count rules out, and "a triangle-free close
+    /// graph has at most one edge per window"; see encodings/redundant.md.
     #[arg(long)]
     no_classes: bool,
 }

@@ -228,4 +228,31 @@ mod tests {
         let fam = enc.families.iter().find(|f| f.family == FAMILY);
         assert_eq!(fam.map(|f| f.clauses), Some(2));
     }
+
+    #[test]
+    fn no_brute_force_cycle_has_an_excluded_profile() {
+        // Independent of the encoding: the profiles `ruled_out` names never
+        // occur on cycles that brute force finds.
+        let mut tested = 0;
+        for (spec, max_p) in [
+            ("0..1,0..1,0..2", 8),
+            ("0..1,0..2,0..3", 8),
+            ("-1..1,-1..1,0..1", 8),
+        ] {
+            let g = Grid::parse(spec, None).unwrap();
+            for p in 2..=max_p {
+                let rules = ruled_out(&Question::new(g.clone(), p).unwrap());
+                for cycle in crate::brute::all_cycles(g.ranges(), p, 300) {
+                    let dist = |a: &[i64], b: &[i64]| crate::brute::sup_distance(a, b) as u64;
+                    for &(t, d) in &rules {
+                        let subgroup =
+                            (1..=p / 2).all(|k| (dist(&cycle[0], &cycle[k]) <= t) == (k % d == 0));
+                        assert!(!subgroup, "{spec} p={p} t={t} d={d}: {cycle:?}");
+                    }
+                    tested += 1;
+                }
+            }
+        }
+        assert!(tested > 300, "only {tested} cycles");
+    }
 }

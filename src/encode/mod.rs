@@ -27,6 +27,7 @@ pub mod classes;
 pub mod coords;
 pub mod count;
 pub mod distance;
+pub mod edges;
 pub mod packing;
 pub mod points;
 pub mod profile;
@@ -209,8 +210,9 @@ pub struct EncodeOptions {
     pub count: bool,
     /// The redundant weighted packing bound ([`packing`]).
     pub packing: bool,
-    /// The exclusion of impossible subgroup profiles ([`classes`]). Absent
-    /// in headers written before the family existed, which read as off.
+    /// The profile exclusions: impossible subgroup profiles ([`classes`])
+    /// and the edge count of triangle-free close graphs ([`edges`]). Absent
+    /// in headers written before these families existed, which read as off.
     #[serde(default)]
     pub classes: bool,
 }
@@ -448,6 +450,7 @@ pub fn estimate(q: &Question, options: &EncodeOptions) -> Vec<FamilyCount> {
     }
     if o.classes {
         out.push(classes::count(q));
+        out.push(edges::count(q));
     }
     if s.translate {
         out.push(symmetry::count_translate(q));
@@ -528,6 +531,7 @@ pub fn encode(q: &Question, options: &EncodeOptions, max_clauses: u64) -> Result
     }
     if o.classes {
         enc.family(classes::FAMILY, |e| classes::add(e, q));
+        enc.family(edges::FAMILY, |e| edges::add(e, q));
     }
     if s.translate {
         enc.family(symmetry::TRANSLATE, |e| symmetry::add_translate(e, q));

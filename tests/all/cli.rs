@@ -135,16 +135,16 @@ fn the_text_report_shows_a_checked_orbit() {
         .stdout_has("verdict      INFEASIBLE");
 }
 
-/// Runs `decide` on {−1,0,1}^4 with p = 17 and a time limit, with `extra`
+/// Runs `decide` on {−1,0,1}^5 with p = 33 (no answer within minutes) and a time limit, with `extra`
 /// encoding options, and asserts an unknown answer well within 30 s.
 fn assert_times_out(dir: &TestDir, limit: &str, extra: &[&str]) {
     let run = dir
         .orbitcnf()
-        .args(["decide", "--dim", "4", "--grid=-1..1", "--period", "17"])
+        .args(["decide", "--dim", "5", "--grid=-1..1", "--period", "33"])
         .args(["--time-limit", limit, "--json"])
         .args(extra)
         .run();
-    let v = check_report(dir, &Q::cube(-1, 1, 4, 17), &run);
+    let v = check_report(dir, &Q::cube(-1, 1, 5, 33), &run);
     run.code(UNKNOWN);
     assert_eq!(v["verdict"], "unknown");
     assert_eq!(v["certificate"]["kind"], "none");
@@ -187,7 +187,7 @@ fn a_time_limit_gives_unknown_with_exit_0() {
     // The text form says so too.
     let run = dir
         .orbitcnf()
-        .args(["decide", "--dim", "4", "--grid=-1..1", "-p", "17"])
+        .args(["decide", "--dim", "5", "--grid=-1..1", "-p", "33"])
         .args(["--time-limit", "0.5", "--quiet", "--symmetry", "none"])
         .run();
     run.code(UNKNOWN).stdout_has("verdict      UNKNOWN");

@@ -1,4 +1,5 @@
-//! Independent brute-force search for isometric cycles on small boxes.
+//! Independent brute-force searches: isometric cycles on small boxes and
+//! point sets, and every nonexpansive self-map of a small point set.
 //!
 //! This shares no code with the encoders: it enumerates sequences of distinct
 //! points by depth-first search, keeping the distance profile seen so far and
@@ -53,6 +54,17 @@ fn search(bounds: &[(i64, i64)], p: usize, limit: usize, one_sided: bool) -> Vec
             })
             .collect();
     }
+    cycles_among(&pts, p, limit, one_sided)
+}
+
+/// Up to `limit` isometric cycles of `p` points among `pts` (any finite set,
+/// in any order), each starting at its first point in the order of `pts`.
+pub fn cycles_in(pts: &[Vec<i64>], p: usize, limit: usize) -> Vec<Vec<Vec<i64>>> {
+    cycles_among(pts, p, limit, false)
+}
+
+/// The search among the points `pts`, for either kind of cycle.
+fn cycles_among(pts: &[Vec<i64>], p: usize, limit: usize, one_sided: bool) -> Vec<Vec<Vec<i64>>> {
     if p == 0 || p > pts.len() || limit == 0 {
         return Vec::new();
     }
@@ -125,7 +137,7 @@ fn extend(
         return found.len() >= limit;
     }
     let m = seq.len();
-    // Points are indexed in lexicographic order, so "after the first" is "> seq[0]".
+    // Every cycle has a rotation starting at its point of least index, so "after the first" is "> seq[0]".
     for cand in seq[0] + 1..dist.len() {
         if seq.contains(&cand) {
             continue;
@@ -161,6 +173,98 @@ fn extend(
     false
 }
 
+fn sup(y: &[i64], z: &[i64]) -> i64 {
+    y.iter()
+        .zip(z)
+        .map(|(a, b)| (a - b).abs())
+        .max()
+        .unwrap_or(0)
+}
+
+/// Calls `visit` with every nonexpansive map of `pts` to itself, as the list
+/// of image indices, until `visit` returns true; returns whether it did.
+///
+/// Depth-first over f(0), f(1), …: a choice for f(k) is kept only if it is
+/// within `d(k, j)` of f(j) for every earlier j, so every branch that
+/// survives to the end is a nonexpansive map and every nonexpansive map is
+/// reached. Meant for sets of up to about 9 points.
+pub fn each_nonexpansive_map(pts: &[Vec<i64>], mut visit: impl FnMut(&[usize]) -> bool) -> bool {
+    let n = pts.len();
+    let d: Vec<Vec<i64>> = (0..n)
+        .map(|a| (0..n).map(|b| sup(&pts[a], &pts[b])).collect())
+        .collect();
+    fn go(d: &[Vec<i64>], f: &mut Vec<usize>, visit: &mut dyn FnMut(&[usize]) -> bool) -> bool {
+        let k = f.len();
+        if k == d.len() {
+            return visit(f);
+        }
+        for w in 0..d.len() {
+            if (0..k).all(|j| d[w][f[j]] <= d[k][j]) {
+                f.push(w);
+                if go(d, f, visit) {
+                    return true;
+                }
+                f.pop();
+            }
+        }
+        false
+    }
+    go(&d, &mut Vec::with_capacity(n), &mut visit)
+}
+
+/// The minimal periods of the periodic points of the map `f` (image indices).
+pub fn periods_of(f: &[usize]) -> Vec<usize> {
+    let mut out = Vec::new();
+    for start in 0..f.len() {
+        let mut z = f[start];
+        let mut len = 1;
+        while z != start && len <= f.len() {
+            z = f[z];
+            len += 1;
+        }
+        if z == start && !out.contains(&len) {
+            out.push(len);
+        }
+    }
+    out.sort_unstable();
+    out
+}
+
+/// Every p for which some nonexpansive map `pts → pts` has a periodic point
+/// of minimal period p, by enumerating all such maps.
+pub fn map_periods(pts: &[Vec<i64>]) -> Vec<usize> {
+    let mut seen = vec![false; pts.len() + 1];
+    each_nonexpansive_map(pts, |f| {
+        for p in periods_of(f) {
+            seen[p] = true;
+        }
+        false
+    });
+    (1..=pts.len()).filter(|&p| seen[p]).collect()
+}
+
+/// A nonexpansive map of `pts` to itself with a periodic point of minimal
+/// period `p`, as `(map as image indices, orbit as indices)`, if one exists.
+pub fn find_map(pts: &[Vec<i64>], p: usize) -> Option<(Vec<usize>, Vec<usize>)> {
+    let mut found = None;
+    each_nonexpansive_map(pts, |f| {
+        for start in 0..f.len() {
+            let mut orbit = vec![start];
+            let mut z = f[start];
+            while z != start && orbit.len() <= p {
+                orbit.push(z);
+                z = f[z];
+            }
+            if z == start && orbit.len() == p {
+                found = Some((f.to_vec(), orbit));
+                return true;
+            }
+        }
+        false
+    });
+    found
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -187,5 +291,23 @@ mod tests {
         // A segment carries no topical 2-cycle: two points of a line are comparable.
         assert!(find_topical_cycle(&[(0, 3)], 2).is_none());
         assert_eq!(find_topical_cycle(&[(0, 3)], 1), Some(vec![vec![0]]));
+    }
+
+    #[test]
+    fn maps_of_tiny_sets_are_all_enumerated() {
+        // {0,1}: all 4 self-maps are nonexpansive; periods 1 and 2.
+        let two = vec![vec![0], vec![1]];
+        let mut count = 0;
+        each_nonexpansive_map(&two, |_| {
+            count += 1;
+            false
+        });
+        assert_eq!(count, 4);
+        assert_eq!(map_periods(&two), vec![1, 2]);
+        // {0,1,2}: a 3-cycle sends the neighbours 1, 2 to 2, 0 (or 0, 2 to …), stretching a pair.
+        assert_eq!(map_periods(&[vec![0], vec![1], vec![2]]), vec![1, 2]);
+        assert_eq!(periods_of(&[1, 0, 2, 4, 5, 3]), vec![1, 2, 3]);
+        let (f, orbit) = find_map(&two, 2).unwrap();
+        assert_eq!((f, orbit), (vec![1, 0], vec![0, 1]));
     }
 }

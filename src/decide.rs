@@ -16,6 +16,7 @@ use crate::question::Question;
 use crate::report::{Certificate, Report, SizeStats, Verdict, Witness};
 use crate::solve::{Backend, Limits, Outcome, SolveStats, check_model};
 use crate::varmap::VarMap;
+use crate::verify;
 
 /// Decides `q`: encodes it with `options`, solves with `backend` within
 /// `limits`, and returns a report whose verdict is backed by a checked witness
@@ -38,7 +39,15 @@ pub fn decide(
     let size = SizeStats::of(&enc.cnf, enc.families.clone(), encode_seconds);
     let (verdict, witness, certificate, reason) = match result.outcome {
         Outcome::Sat(model) => {
-            let w = witness(q, &enc.cnf, &enc.map, &model, "<memory>", None)?;
+            let w = witness(
+                q,
+                &enc.options,
+                &enc.cnf,
+                &enc.map,
+                &model,
+                "<memory>",
+                None,
+            )?;
             (Verdict::Feasible, Some(w), Certificate::Witness, None)
         }
         Outcome::Unsat => {
@@ -65,13 +74,16 @@ pub fn decide(
 }
 
 /// Checks `model` against every clause of `cnf`, decodes the orbit and verifies it.
+/// In the full-map formulation (`options` as recorded with the CNF) the map
+/// is decoded too, and [`verify::check_self_map`] checks it on all of D.
 ///
 /// # Errors
 /// [`crate::Error::ModelViolates`] for a falsified clause (located through
 /// `path` and `lines`), [`crate::Error::Decode`], or [`crate::Error::Check`]
-/// when the decoded orbit fails the independent check.
+/// when the decoded orbit or map fails the independent check.
 pub fn witness(
     q: &Question,
+    options: &EncodeOptions,
     cnf: &Cnf,
     map: &VarMap,
     model: &[bool],
@@ -79,9 +91,29 @@ pub fn witness(
     lines: Option<&[usize]>,
 ) -> Result<Witness> {
     check_model(cnf, model, path, lines)?;
+    if options.is_full_map() {
+        let orbit = decode::full_map_orbit(q, map, model)?;
+        let table = decode::full_map(q, map, model)?;
+        let domain = q.domain().points().to_vec();
+        let map_check = verify::check_self_map(&domain, &table, &orbit)?;
+        // An orbit of a nonexpansive map is an isometric cycle (encodings/full-map.md),
+        // so this second check must pass too; it also yields the distance profile.
+        let check = verify::check_orbit(q.grid.ranges(), &orbit)?;
+        return Ok(Witness {
+            orbit,
+            check,
+            map: Some(table),
+            map_check: Some(map_check),
+        });
+    }
     let orbit = decode::orbit(q, map, model)?;
     let check = q.check_orbit(&orbit)?;
-    Ok(Witness { orbit, check })
+    Ok(Witness {
+        orbit,
+        check,
+        map: None,
+        map_check: None,
+    })
 }
 
 /// Interprets a solver's output for a CNF file written by `orbitcnf encode`.
@@ -111,6 +143,7 @@ pub fn decode_answer(
             let model = dimacs::model_to_assignment(lits, file.cnf.num_vars(), output_path)?;
             let w = witness(
                 q,
+                &file.options,
                 &file.cnf,
                 &file.map,
                 &model,

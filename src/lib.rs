@@ -26,6 +26,7 @@ pub mod error;
 pub mod grid;
 pub mod isometry;
 pub mod orbit_file;
+pub mod points;
 pub mod proof;
 pub mod question;
 pub mod report;

@@ -15,7 +15,8 @@
 use serde::{Deserialize, Serialize};
 
 use crate::error::{Error, Result};
-use crate::grid::Grid;
+use crate::grid::{Grid, Point};
+use crate::points::PointSet;
 use crate::verify::{self, CheckFailure, OrbitCheck};
 
 /// The class of maps a [`Question`] asks about.
@@ -65,15 +66,18 @@ impl std::fmt::Display for MapClass {
     }
 }
 
-/// A period question on an integer box.
+/// A period question on an integer box, or on a finite point set.
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub struct Question {
-    /// The domain D.
+    /// The domain D when `points` is `None`; otherwise the bounding box of the points.
     pub grid: Grid,
     /// The minimal period p asked for.
     pub period: usize,
     /// The class of maps asked about.
     pub class: MapClass,
+    /// A domain that need not be a box: then D is this set, and only the
+    /// full-map formulation answers the question (`encodings/full-map.md`).
+    pub points: Option<PointSet>,
 }
 
 /// The serialised form of a [`Question`], as written in JSON reports and CNF headers.
@@ -89,6 +93,10 @@ pub struct QuestionRecord {
     /// nonexpansive questions read as before classes existed.
     #[serde(default, skip_serializing_if = "MapClass::is_default")]
     pub class: MapClass,
+    /// The points of D, when D was given as a point set; absent for boxes,
+    /// so that box records stay as they were.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub points: Option<Vec<Point>>,
 }
 
 impl Question {
@@ -115,7 +123,44 @@ impl Question {
             grid,
             period,
             class: MapClass::default(),
+            points: None,
         })
+    }
+
+    /// A validated question on the point set `d`; `grid` becomes its bounding box.
+    ///
+    /// # Errors
+    /// [`Error::Question`] when `period` is 0 or exceeds `|D|`.
+    pub fn on_points(d: PointSet, period: usize) -> Result<Question> {
+        if period == 0 || period > d.len() {
+            return Err(Error::Question(format!(
+                "period {period} is not between 1 and the {} points of D; \
+                 an orbit of minimal period p has p distinct points",
+                d.len()
+            )));
+        }
+        Ok(Question {
+            grid: d.bounding_box(),
+            period,
+            class: MapClass::default(),
+            points: Some(d),
+        })
+    }
+
+    /// `|D|`, saturating for huge boxes.
+    pub fn num_points(&self) -> u128 {
+        match &self.points {
+            Some(d) => d.len() as u128,
+            None => self.grid.num_points(),
+        }
+    }
+
+    /// The points of D in lexicographic order: the set, or every point of the box.
+    pub fn domain(&self) -> PointSet {
+        match &self.points {
+            Some(d) => d.clone(),
+            None => PointSet::from_grid(&self.grid),
+        }
     }
 
     /// The same question about maps of `class`.
@@ -136,19 +181,47 @@ impl Question {
             grid: self.grid.spec(),
             period: self.period,
             class: self.class,
+            points: self.points.as_ref().map(|d| d.points().to_vec()),
         }
     }
 
     /// Rebuilds a question from its record.
     ///
     /// # Errors
-    /// As [`Grid::parse`] and [`Question::new`].
+    /// As [`Grid::parse`], [`Question::new`] and [`Question::on_points`]; a
+    /// record whose `grid` is not the bounding box of its `points` is an
+    /// [`Error::Question`].
     pub fn from_record(r: &QuestionRecord) -> Result<Question> {
-        Ok(Question::new(Grid::parse(&r.grid, Some(r.dim))?, r.period)?.with_class(r.class))
+        let grid = Grid::parse(&r.grid, Some(r.dim))?;
+        let q = match &r.points {
+            None => Question::new(grid, r.period)?,
+            Some(pts) => {
+                let q = Question::on_points(PointSet::new(pts.clone())?, r.period)?;
+                if q.grid != grid {
+                    return Err(Error::Question(format!(
+                        "the record's grid {} is not the bounding box {} of its points",
+                        grid.spec(),
+                        q.grid.spec()
+                    )));
+                }
+                q
+            }
+        };
+        Ok(q.with_class(r.class))
     }
 
-    /// One-line statement of the question.
+    /// One-line statement of the question. On a point set it says that the
+    /// question is about maps of D itself, not of a box.
     pub fn statement(&self) -> String {
+        if let Some(d) = &self.points {
+            return format!(
+                "a periodic orbit of a nonexpansive map D → D (sup-norm) with minimal period {}, \
+                 D = {d} (|D| = {}, n = {})",
+                self.period,
+                d.len(),
+                self.dim()
+            );
+        }
         statement(&self.grid, self.class, &self.period.to_string())
     }
 
@@ -251,6 +324,36 @@ mod tests {
                 .unwrap_err()
                 .to_string()
                 .contains("unknown map class \"sideways\"")
+        );
+    }
+
+    #[test]
+    fn point_questions_round_trip_and_box_records_are_unchanged() {
+        let g = Grid::parse("-1..1", Some(2)).unwrap();
+        let json = serde_json::to_string(&Question::new(g, 4).unwrap().record()).unwrap();
+        assert_eq!(json, r#"{"dim":2,"grid":"-1..1,-1..1","period":4}"#);
+        let d = PointSet::parse("0 0\n3 1\n", "t").unwrap();
+        let q = Question::on_points(d, 2).unwrap();
+        let json = serde_json::to_string(&q.record()).unwrap();
+        assert_eq!(
+            json,
+            r#"{"dim":2,"grid":"0..3,0..1","period":2,"points":[[0,0],[3,1]]}"#
+        );
+        assert_eq!(Question::from_record(&q.record()).unwrap(), q);
+        assert!(
+            q.statement()
+                .starts_with("a periodic orbit of a nonexpansive map D → D")
+        );
+        let mut r = q.record();
+        r.grid = "0..4,0..1".into();
+        let e = Question::from_record(&r).unwrap_err().to_string();
+        assert!(e.contains("not the bounding box"), "{e}");
+        let e = Question::on_points(q.points.unwrap(), 3)
+            .unwrap_err()
+            .to_string();
+        assert!(
+            e.contains("period 3 is not between 1 and the 2 points"),
+            "{e}"
         );
     }
 

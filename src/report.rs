@@ -14,7 +14,7 @@ use crate::grid::Point;
 use crate::question::{MapClass, Question, QuestionRecord};
 use crate::solve::SolveStats;
 use crate::solve::certified::ProofInfo;
-use crate::verify::OrbitCheck;
+use crate::verify::{OrbitCheck, SelfMapCheck};
 
 /// The answer to a question.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
@@ -76,6 +76,10 @@ pub struct Witness {
     pub orbit: Vec<Point>,
     /// What the independent check established.
     pub check: OrbitCheck,
+    /// The whole map `(z, f(z))` on D, in the full-map formulation.
+    pub map: Option<Vec<(Point, Point)>>,
+    /// What the independent check of that map established.
+    pub map_check: Option<SelfMapCheck>,
 }
 
 /// Size of the formula and time to build it.
@@ -135,6 +139,12 @@ pub struct Report {
     /// The independent check of the orbit, when feasible.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub check: Option<OrbitCheck>,
+    /// The map on all of D as `[z, f(z)]` pairs (full-map formulation, feasible).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub map: Option<Vec<(Point, Point)>>,
+    /// The independent check of that map (full-map formulation, feasible).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub map_check: Option<SelfMapCheck>,
     /// What backs the verdict.
     pub certificate: Certificate,
     /// Why the verdict is unknown, when it is.
@@ -157,18 +167,18 @@ impl Report {
         size: SizeStats,
         solve: SolveStats,
     ) -> Report {
-        let (orbit, check) = match witness {
-            Some(w) => (Some(w.orbit), Some(w.check)),
-            None => (None, None),
+        let (orbit, check, map, map_check) = match witness {
+            Some(w) => (Some(w.orbit), Some(w.check), w.map, w.map_check),
+            None => (None, None, None, None),
         };
         Report {
             verdict,
             question: q.record(),
             statement: q.statement(),
-            // A topical report shows its own formulation and the families
-            // switched off for it; nonexpansive reports echo the options as
-            // given, as they always have.
-            options: if q.class.is_default() {
+            // A topical or full-map report shows its own formulation and the
+            // families switched off for it; nonexpansive reports on boxes echo
+            // the options as given, as they always have.
+            options: if q.class.is_default() && q.points.is_none() && !options.is_full_map() {
                 options.clone()
             } else {
                 options.resolve(q)
@@ -176,6 +186,8 @@ impl Report {
             profile: check.as_ref().map(|c| c.profile.clone()),
             orbit,
             check,
+            map,
+            map_check,
             certificate,
             reason,
             stats: Stats { size, solve },
@@ -208,6 +220,14 @@ impl Report {
         match self.verdict {
             Verdict::Feasible => {
                 let _ = writeln!(s, "verdict      FEASIBLE");
+            }
+            Verdict::Infeasible if self.options.is_full_map() => {
+                let _ = writeln!(
+                    s,
+                    "verdict      INFEASIBLE: no such map exists (no nonexpansive map D → D has a \
+                     periodic point of minimal period {})",
+                    self.question.period
+                );
             }
             Verdict::Infeasible => {
                 let _ = writeln!(
@@ -244,6 +264,23 @@ impl Report {
         }
         if let Some(check) = &self.check {
             let _ = writeln!(s, "check        passed: {check}");
+        }
+        if let Some(mc) = &self.map_check {
+            let _ = writeln!(s, "map check    passed: {mc}");
+        }
+        if let Some(map) = &self.map {
+            let show = |z: &Point| {
+                let c: Vec<String> = z.iter().map(|v| format!("{v:>2}")).collect();
+                format!("({})", c.join(", "))
+            };
+            for (row, (z, fz)) in map.iter().enumerate() {
+                let label = if row == 0 {
+                    "map          "
+                } else {
+                    "             "
+                };
+                let _ = writeln!(s, "{label}{} -> {}", show(z), show(fz));
+            }
         }
         match &self.certificate {
             Certificate::Witness => {}

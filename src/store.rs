@@ -730,6 +730,7 @@ mod tests {
             grid: "-1..1,-1..1".into(),
             period: 5,
             class,
+            points: None,
         };
         let options = EncodeOptions::default();
         assert_eq!(

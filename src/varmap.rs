@@ -66,6 +66,14 @@ pub enum Meaning {
         /// The grid point.
         z: Vec<i64>,
     },
+    /// `f(z) = w`: the map sends the point `z` of D to the point `w` of D
+    /// (full-map formulation, `encodings/full-map.md`).
+    Map {
+        /// The argument.
+        z: Vec<i64>,
+        /// The image.
+        w: Vec<i64>,
+    },
     /// An auxiliary variable of a constraint family, with no meaning for decoding.
     Aux {
         /// The family's label.
@@ -82,13 +90,29 @@ impl fmt::Display for Meaning {
             Meaning::Profile { k, value } => write!(f, "profile k={k} ge={value}"),
             Meaning::Diff { i, j, c, value } => write!(f, "diff i={i} j={j} c={c} ge={value}"),
             Meaning::Value { i, c, value } => write!(f, "value i={i} c={c} eq={value}"),
-            Meaning::At { i, z } => {
-                let coords: Vec<String> = z.iter().map(|v| v.to_string()).collect();
-                write!(f, "at i={i} z={}", coords.join(","))
-            }
+            Meaning::At { i, z } => write!(f, "at i={i} z={}", join(z)),
+            Meaning::Map { z, w } => write!(f, "map z={} w={}", join(z), join(w)),
             Meaning::Aux { family, index } => write!(f, "aux family={family} index={index}"),
         }
     }
+}
+
+/// Coordinates as `0,-1,2`, the form `at` and `map` lines use.
+fn join(z: &[i64]) -> String {
+    z.iter()
+        .map(|v| v.to_string())
+        .collect::<Vec<_>>()
+        .join(",")
+}
+
+/// Parses the `0,-1,2` form of a point in field `name` of a `kind` line.
+fn point_field(kind: &str, name: &str, text: &str) -> Result<Vec<i64>, String> {
+    text.split(',')
+        .map(|t| {
+            t.parse::<i64>()
+                .map_err(|_| format!("{kind}: {name}: {t:?} is not an integer"))
+        })
+        .collect()
 }
 
 impl FromStr for Meaning {
@@ -163,14 +187,15 @@ impl FromStr for Meaning {
             }
             "at" => {
                 expect(&["i", "z"])?;
-                let z = take("z")?
-                    .split(',')
-                    .map(|t| {
-                        t.parse::<i64>()
-                            .map_err(|_| format!("at: {t:?} is not an integer"))
-                    })
-                    .collect::<Result<Vec<i64>, String>>()?;
+                let z = point_field(kind, "z", take("z")?)?;
                 Ok(Meaning::At { i: idx("i")?, z })
+            }
+            "map" => {
+                expect(&["z", "w"])?;
+                Ok(Meaning::Map {
+                    z: point_field(kind, "z", take("z")?)?,
+                    w: point_field(kind, "w", take("w")?)?,
+                })
             }
             "aux" => {
                 expect(&["family", "index"])?;
@@ -282,6 +307,14 @@ mod tests {
             Meaning::Aux {
                 family: "count".into(),
                 index: 7,
+            },
+            Meaning::At {
+                i: 2,
+                z: vec![0, -1],
+            },
+            Meaning::Map {
+                z: vec![-2, 2],
+                w: vec![0, 1],
             },
         ];
         for m in all {

@@ -146,6 +146,25 @@ pub enum CheckFailure {
         /// The next orbit point.
         want: Vec<i64>,
     },
+    /// A point of a finite domain is listed twice, or has the wrong dimension.
+    #[error("the domain is malformed: {0}")]
+    BadDomain(String),
+    /// The map sends a point of a finite domain outside the domain.
+    #[error("the map sends {from:?} to {to:?}, which is not a point of D")]
+    MapLeavesDomain {
+        /// The point.
+        from: Vec<i64>,
+        /// Its image.
+        to: Vec<i64>,
+    },
+    /// An orbit point is not a point of the finite domain.
+    #[error("orbit point {index} {point:?} is not a point of D")]
+    OrbitLeavesDomain {
+        /// Position on the orbit.
+        index: usize,
+        /// The point.
+        point: Vec<i64>,
+    },
     /// The box is too large to check a map on it by exhaustion.
     #[error(
         "the box has {points} points; checking a map on every pair is limited to {limit} points"
@@ -507,23 +526,8 @@ pub fn check_map(map: &MapTable, orbit: &[Vec<i64>]) -> Result<MapCheck, CheckFa
         }
     }
     let n = map.entries.len();
-    let mut pairs_checked = 0u64;
-    for a in 0..n {
-        let (y, fy) = &map.entries[a];
-        for (z, fz) in &map.entries[a + 1..] {
-            let (before, after) = (dist(y, z), dist(fy, fz));
-            pairs_checked += 1;
-            if after > before {
-                return Err(CheckFailure::Expands {
-                    y: y.clone(),
-                    z: z.clone(),
-                    before,
-                    after,
-                });
-            }
-        }
-    }
-    moves_the_orbit_along(map, orbit)?;
+    let pairs_checked = nonexpansive_on_all_pairs(&map.entries)?;
+    moves_the_orbit_along(&map.entries, orbit)?;
     let p = orbit.len();
     Ok(MapCheck {
         points_checked: n as u64,
@@ -547,11 +551,13 @@ fn lists_every_point_once(map: &MapTable) -> Result<(), CheckFailure> {
 }
 
 /// `map` sends `orbit[j]` to `orbit[j+1]` for every `j`.
-fn moves_the_orbit_along(map: &MapTable, orbit: &[Vec<i64>]) -> Result<(), CheckFailure> {
+fn moves_the_orbit_along(
+    entries: &[(Vec<i64>, Vec<i64>)],
+    orbit: &[Vec<i64>],
+) -> Result<(), CheckFailure> {
     let p = orbit.len();
     for (index, x) in orbit.iter().enumerate() {
-        let got = map
-            .entries
+        let got = entries
             .iter()
             .find(|(z, _)| z == x)
             .map(|(_, fz)| fz.clone())
@@ -708,7 +714,7 @@ pub fn check_topical_map(
             }
         }
     }
-    moves_the_orbit_along(map, orbit)?;
+    moves_the_orbit_along(&map.entries, orbit)?;
     Ok(TopicalMapCheck {
         points_checked: n as u64,
         pairs_checked,
@@ -719,9 +725,171 @@ pub fn check_topical_map(
     })
 }
 
+/// Compares the distance of every unordered pair of arguments with that of
+/// their images; returns the number of pairs compared.
+fn nonexpansive_on_all_pairs(entries: &[(Vec<i64>, Vec<i64>)]) -> Result<u64, CheckFailure> {
+    let mut pairs_checked = 0u64;
+    for a in 0..entries.len() {
+        let (y, fy) = &entries[a];
+        for (z, fz) in &entries[a + 1..] {
+            let (before, after) = (dist(y, z), dist(fy, fz));
+            pairs_checked += 1;
+            if after > before {
+                return Err(CheckFailure::Expands {
+                    y: y.clone(),
+                    z: z.clone(),
+                    before,
+                    after,
+                });
+            }
+        }
+    }
+    Ok(pairs_checked)
+}
+
+/// What [`check_self_map`] established.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize)]
+pub struct SelfMapCheck {
+    /// Points of D, each checked to be mapped into D.
+    pub points_checked: u64,
+    /// Unordered pairs of distinct points of D checked for nonexpansiveness.
+    pub pairs_checked: u64,
+    /// The minimal period established for the orbit.
+    pub period: usize,
+}
+
+impl fmt::Display for SelfMapCheck {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        write!(
+            f,
+            "maps all {} points of D into D, nonexpansive on all {} pairs, \
+             moves the orbit along itself (minimal period {})",
+            self.points_checked, self.pairs_checked, self.period
+        )
+    }
+}
+
+/// Checks a map of a finite set D to itself: `table` lists every point of
+/// `domain` exactly once as an argument, every image lies in D, no pair of
+/// points is moved farther apart in the sup-norm, and the orbit consists of
+/// distinct points of D with `f(x_j) = x_{j+1 mod p}`, so x_0 has minimal
+/// period p. Plain arithmetic on the given lists; nothing else is trusted.
+///
+/// # Errors
+/// The first [`CheckFailure`] found.
+pub fn check_self_map(
+    domain: &[Vec<i64>],
+    table: &[(Vec<i64>, Vec<i64>)],
+    orbit: &[Vec<i64>],
+) -> Result<SelfMapCheck, CheckFailure> {
+    let Some(first) = domain.first() else {
+        return Err(CheckFailure::BadDomain("D has no points".into()));
+    };
+    let n = first.len();
+    if let Some(z) = domain.iter().find(|z| z.len() != n) {
+        return Err(CheckFailure::BadDomain(format!(
+            "point {z:?} has {} coordinates, the first point {}",
+            z.len(),
+            n
+        )));
+    }
+    let mut pts: Vec<&Vec<i64>> = domain.iter().collect();
+    pts.sort();
+    if let Some(w) = pts.windows(2).find(|w| w[0] == w[1]) {
+        return Err(CheckFailure::BadDomain(format!(
+            "point {:?} listed twice",
+            w[0]
+        )));
+    }
+    let in_d = |z: &Vec<i64>| pts.binary_search(&z).is_ok();
+    let mut args: Vec<&Vec<i64>> = table.iter().map(|(z, _)| z).collect();
+    args.sort();
+    if args != pts {
+        return Err(CheckFailure::BadDomain(
+            "the map table does not list every point of D exactly once".into(),
+        ));
+    }
+    for (z, fz) in table {
+        if !in_d(fz) {
+            return Err(CheckFailure::MapLeavesDomain {
+                from: z.clone(),
+                to: fz.clone(),
+            });
+        }
+    }
+    let pairs_checked = nonexpansive_on_all_pairs(table)?;
+    let p = orbit.len();
+    if p == 0 {
+        return Err(CheckFailure::Empty);
+    }
+    for (index, x) in orbit.iter().enumerate() {
+        if !in_d(x) {
+            return Err(CheckFailure::OrbitLeavesDomain {
+                index,
+                point: x.clone(),
+            });
+        }
+        if let Some(second) = (index + 1..p).find(|&j| orbit[j] == *x) {
+            return Err(CheckFailure::Repeated {
+                first: index,
+                second,
+                point: x.clone(),
+            });
+        }
+    }
+    moves_the_orbit_along(table, orbit)?;
+    Ok(SelfMapCheck {
+        points_checked: table.len() as u64,
+        pairs_checked,
+        period: p,
+    })
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn self_maps_of_a_finite_set_are_checked_point_by_point() {
+        // D = {0, 1, 5} on a line; f swaps 0 and 1 and sends 5 to 1 (fixing 5 would stretch {1, 5}).
+        let d = vec![vec![0], vec![1], vec![5]];
+        let f = |t: &[(i64, i64)]| -> Vec<(Vec<i64>, Vec<i64>)> {
+            t.iter().map(|&(a, b)| (vec![a], vec![b])).collect()
+        };
+        let orbit = vec![vec![0], vec![1]];
+        let ok = check_self_map(&d, &f(&[(0, 1), (1, 0), (5, 1)]), &orbit).unwrap();
+        assert_eq!((ok.points_checked, ok.pairs_checked, ok.period), (3, 3, 2));
+        let e = |t: &[(i64, i64)], o: &[Vec<i64>]| check_self_map(&d, &f(t), o).unwrap_err();
+        assert!(matches!(
+            e(&[(0, 1), (1, 0), (5, 2)], &orbit),
+            CheckFailure::MapLeavesDomain { .. }
+        ));
+        // 0 ↦ 5 and 1 ↦ 0 stretch the pair {0, 1} from distance 1 to 5.
+        assert!(matches!(
+            e(&[(0, 5), (1, 0), (5, 1)], &[vec![0], vec![5], vec![1]]),
+            CheckFailure::Expands { .. }
+        ));
+        assert!(matches!(
+            e(&[(0, 1), (1, 0)], &orbit),
+            CheckFailure::BadDomain(_)
+        ));
+        assert!(matches!(
+            e(&[(0, 1), (1, 0), (5, 1)], &[vec![0], vec![5]]),
+            CheckFailure::NotTheShift { index: 0, .. }
+        ));
+        assert!(matches!(
+            e(&[(0, 1), (1, 0), (5, 1)], &[vec![0], vec![1], vec![0]]),
+            CheckFailure::Repeated {
+                first: 0,
+                second: 2,
+                ..
+            }
+        ));
+        assert!(matches!(
+            e(&[(0, 1), (1, 0), (5, 1)], &[vec![3]]),
+            CheckFailure::OrbitLeavesDomain { index: 0, .. }
+        ));
+    }
 
     fn square() -> Vec<Vec<i64>> {
         vec![vec![-1, -1], vec![-1, 1], vec![1, 1], vec![1, -1]]

@@ -28,6 +28,7 @@ pub mod coords;
 pub mod count;
 pub mod distance;
 pub mod edges;
+pub mod fullmap;
 pub mod packing;
 pub mod points;
 pub mod profile;
@@ -201,8 +202,10 @@ impl Symmetry {
 #[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct EncodeOptions {
-    /// The formulation: [`FORMULATION`], or [`TOPICAL_FORMULATION`] once
-    /// [`EncodeOptions::resolve`] has seen a topical question.
+    /// The formulation: [`FORMULATION`] (isometric cycles on boxes), or
+    /// [`TOPICAL_FORMULATION`] once [`EncodeOptions::resolve`] has seen a
+    /// topical question, or [`fullmap::FORMULATION`] (the whole map, any
+    /// finite domain).
     pub formulation: String,
     /// Symmetry-breaking families.
     pub symmetry: Symmetry,
@@ -242,6 +245,19 @@ impl EncodeOptions {
         }
     }
 
+    /// Every family on, in the full-map formulation ([`fullmap`]).
+    pub fn full_map() -> EncodeOptions {
+        EncodeOptions {
+            formulation: fullmap::FORMULATION.to_string(),
+            ..EncodeOptions::default()
+        }
+    }
+
+    /// Whether these options (once resolved) use the full-map formulation.
+    pub fn is_full_map(&self) -> bool {
+        self.formulation == fullmap::FORMULATION
+    }
+
     /// The part of [`EncodeOptions::resolve`] that depends on the class
     /// alone: the class's formulation, and for topical questions the
     /// families argued for the norm only switched off. A sweep reports its
@@ -262,9 +278,13 @@ impl EncodeOptions {
     }
 
     /// The options as they apply to `q`: families that cannot act on `q`, or
-    /// whose tables would be too large, are switched off. The result is what
-    /// the CNF header records.
+    /// whose tables would be too large, are switched off. A question on a
+    /// point set always takes the full-map formulation, the only one that
+    /// answers it. The result is what the CNF header records.
     pub fn resolve(&self, q: &Question) -> EncodeOptions {
+        if q.points.is_some() || self.is_full_map() {
+            return fullmap::resolve(self, q);
+        }
         let mut o = self.for_class(q.class);
         let point_eq_ok = q.period as u128 * q.grid.num_points() <= POINT_EQ_LIMIT;
         if !point_eq_ok {
@@ -422,6 +442,9 @@ impl Encoder {
 /// family, with `options` as [`EncodeOptions::resolve`] leaves them.
 pub fn estimate(q: &Question, options: &EncodeOptions) -> Vec<FamilyCount> {
     let o = options.resolve(q);
+    if o.is_full_map() {
+        return fullmap::estimate(q, &o);
+    }
     let s = o.symmetry;
     let topical = q.class == MapClass::Topical;
     let mut out = if topical {
@@ -487,26 +510,25 @@ pub fn estimate(q: &Question, options: &EncodeOptions) -> Vec<FamilyCount> {
 /// estimated size when the estimate exceeds `max_clauses`.
 pub fn encode(q: &Question, options: &EncodeOptions, max_clauses: u64) -> Result<Encoding> {
     options.symmetry.validate()?;
-    // The exact counts are u64 sums; first rule out sizes where they could
-    // overflow, with a floating-point estimate of the dominant families.
-    let (rough_clauses, rough_vars) = rough_size(q);
-    if rough_clauses > max_clauses as f64 || rough_clauses > 1e15 || rough_vars > 1e12 {
-        return Err(Error::TooLarge {
-            clauses: rough_clauses.min(u64::MAX as f64) as u64,
-            vars: rough_vars.min(u64::MAX as f64) as u64,
-            limit: max_clauses,
-        });
+    let known = [FORMULATION, TOPICAL_FORMULATION, fullmap::FORMULATION];
+    if !known.contains(&options.formulation.as_str()) {
+        return Err(Error::Options(format!(
+            "unknown formulation {:?}; this version knows {}",
+            options.formulation,
+            known.join(", ")
+        )));
     }
-    let est = estimate(q, options);
-    let clauses: u64 = est.iter().map(|f| f.clauses).sum();
-    let vars: u64 = est.iter().map(|f| f.vars).sum();
-    if clauses > max_clauses || vars > i32::MAX as u64 / 2 {
-        return Err(Error::TooLarge {
-            clauses,
-            vars,
-            limit: max_clauses,
-        });
+    if q.points.is_some() || options.is_full_map() {
+        if q.class != MapClass::Nonexpansive {
+            return Err(Error::Options(format!(
+                "the full-map formulation (and so --points) encodes nonexpansive maps D → D only, \
+                 not the {} class",
+                q.class
+            )));
+        }
+        return fullmap::encode(q, &options.resolve(q), max_clauses);
     }
+    refuse_oversized(rough_size(q), max_clauses, || estimate(q, options))?;
     let o = options.resolve(q);
     let s = o.symmetry;
     let mut enc = Encoder::new();
@@ -562,6 +584,40 @@ pub fn encode(q: &Question, options: &EncodeOptions, max_clauses: u64) -> Result
     Ok(enc.finish(q, &o))
 }
 
+/// Refuses a formula above `max_clauses` clauses (or too many variables for
+/// DIMACS). The exact counts `exact` are u64 sums, so sizes where they could
+/// overflow are first ruled out with `rough`, a floating-point estimate
+/// `(clauses, variables)` of the dominant families that never exceeds the
+/// exact count.
+///
+/// # Errors
+/// [`Error::TooLarge`] with the best size known.
+pub(crate) fn refuse_oversized(
+    rough: (f64, f64),
+    max_clauses: u64,
+    exact: impl FnOnce() -> Vec<FamilyCount>,
+) -> Result<()> {
+    let (rough_clauses, rough_vars) = rough;
+    if rough_clauses > max_clauses as f64 || rough_clauses > 1e15 || rough_vars > 1e12 {
+        return Err(Error::TooLarge {
+            clauses: rough_clauses.min(u64::MAX as f64) as u64,
+            vars: rough_vars.min(u64::MAX as f64) as u64,
+            limit: max_clauses,
+        });
+    }
+    let est = exact();
+    let clauses: u64 = est.iter().map(|f| f.clauses).sum();
+    let vars: u64 = est.iter().map(|f| f.vars).sum();
+    if clauses > max_clauses || vars > i32::MAX as u64 / 2 {
+        return Err(Error::TooLarge {
+            clauses,
+            vars,
+            limit: max_clauses,
+        });
+    }
+    Ok(())
+}
+
 /// Clauses and variables of the base families, in floating point (no overflow).
 fn rough_size(q: &Question) -> (f64, f64) {
     let p = q.period as f64;
@@ -608,7 +664,7 @@ mod tests {
     }
 
     /// `estimate` predicts every family of `encode`, and the totals add up.
-    fn assert_estimate_is_exact(question: &Question, opts: &EncodeOptions) -> Encoding {
+    pub(crate) fn assert_estimate_is_exact(question: &Question, opts: &EncodeOptions) -> Encoding {
         let e = encode(question, opts, u64::MAX).unwrap();
         assert_eq!(e.families, estimate(question, opts), "{question:?}");
         let total: u64 = e.families.iter().map(|f| f.clauses).sum();
@@ -638,7 +694,7 @@ mod tests {
     }
 
     /// `(family, vars, clauses)` in the order added.
-    fn family_counts(e: &Encoding) -> Vec<(&str, u64, u64)> {
+    pub(crate) fn family_counts(e: &Encoding) -> Vec<(&str, u64, u64)> {
         e.families
             .iter()
             .map(|f| (f.family.as_str(), f.vars, f.clauses))
@@ -684,6 +740,29 @@ mod tests {
                 ("dist-lower", 336, 896),
             ]
         );
+    }
+
+    #[test]
+    fn every_formulation_of_this_version_is_accepted_and_others_are_named() {
+        // Options read back from a header or a store are already resolved, so
+        // each formulation name must be accepted again.
+        let box_q = q("0..1", 2, 2);
+        for class in [MapClass::Nonexpansive, MapClass::Topical] {
+            let t = box_q.clone().with_class(class);
+            let resolved = EncodeOptions::default().resolve(&t);
+            assert!(
+                encode(&t, &resolved, u64::MAX).is_ok(),
+                "{}",
+                resolved.formulation
+            );
+        }
+        assert!(encode(&box_q, &EncodeOptions::full_map(), u64::MAX).is_ok());
+        let odd = EncodeOptions {
+            formulation: "sideways/9".into(),
+            ..EncodeOptions::default()
+        };
+        let e = encode(&box_q, &odd, u64::MAX).unwrap_err().to_string();
+        assert!(e.contains("unknown formulation \"sideways/9\""), "{e}");
     }
 
     #[test]

@@ -188,7 +188,7 @@ pub fn decide_parallel(
     for (i, r) in runs.iter().enumerate() {
         if let Some(CubeRun::Sat(model)) = r {
             let cnf = super::run::cube_cnf(&enc.cnf, &cubes[i]);
-            let w = witness(q, &cnf, &enc.map, model, "<memory>", None)?;
+            let w = witness(q, &enc.options, &cnf, &enc.map, model, "<memory>", None)?;
             let solver = format!("{solver}; orbit from cube {i} ({})", cubes[i].describe());
             return Ok(report(
                 Verdict::Feasible,

@@ -229,6 +229,7 @@ pub fn run_cube(
         Outcome::Sat(model) => {
             match decide::witness(
                 &file.question,
+                &file.options,
                 &file.cnf,
                 &file.map,
                 &model,

@@ -1,0 +1,252 @@
+//! The full-map formulation `full-map/1`: the whole map f: D → D as CNF.
+//!
+//! On a box a period is the same as an isometric cycle (the cycle extends to
+//! the box), but on a finite set D that is not a box a nonexpansive map of
+//! the cycle need not extend to D → D. This formulation therefore encodes the
+//! map itself, for any finite D ⊂ Z^n (a [`crate::points::PointSet`], or every
+//! point of a box). Points of D are numbered `0..N` in lexicographic order,
+//! `N = |D|`; `d(z, z') = ‖z − z'‖∞`.
+//!
+//! **Variables.** `m(z, w)` (`Meaning::Map`): f(z) = w, for z, w ∈ D, `N²`
+//! of them. `o(i, z)` (`Meaning::At`): x_i = z, for positions `0 ≤ i < p`,
+//! `pN` of them. Symmetry breaking adds `N − 1` auxiliaries.
+//!
+//! **Families** (in this order; counts in `encodings/full-map.md`):
+//! - `map-choice` ([`map`]): exactly one image per point;
+//! - `map-nonexp` ([`map`]): ¬m(z,w) ∨ ¬m(z',w') whenever d(w,w') > d(z,z');
+//! - `orbit-place` ([`orbit`]): exactly one point per position, at most one
+//!   position per point;
+//! - `orbit-step` ([`orbit`]): o(i,z) ∧ m(z,w) → o(i+1 mod p, w);
+//! - `fm-rotate`, `fm-isometry` ([`symmetry`]): optional breaks.
+//!
+//! **Why exact.** A model gives a function f (map-choice) that expands no
+//! pair (map-nonexp), and p distinct points (orbit-place) with
+//! f(x_i) = x_{i+1 mod p} (orbit-step, since f(x_i) is the unique w with
+//! m(x_i, w)). So f^p(x_0) = x_0 while f^d(x_0) = x_d ≠ x_0 for 0 < d < p:
+//! the minimal period is p. Conversely a nonexpansive f with a periodic point
+//! x_0 of minimal period p gives a model with x_i = f^i(x_0); the breaks keep
+//! some image of every such solution (`encodings/full-map.md`).
+
+pub mod map;
+pub mod orbit;
+pub mod symmetry;
+
+use crate::cnf::{FamilyCount, Var};
+use crate::encode::{EncodeOptions, Encoder, Encoding, Symmetry, refuse_oversized};
+use crate::error::Result;
+use crate::points::PointSet;
+use crate::question::Question;
+use crate::varmap::Meaning;
+
+/// Name and version of the formulation, recorded in every CNF header.
+pub const FORMULATION: &str = "full-map/1";
+
+/// Largest `n!·2^n·N` for which the ambient isometries of D are computed.
+pub const ISOMETRY_LIMIT: u128 = 20_000_000;
+
+/// The domain with its distance table, shared by the families.
+#[derive(Clone, Debug)]
+pub struct Domain {
+    /// The points of D in lexicographic order.
+    pub set: PointSet,
+    /// `d(z, z')` for point numbers `z, z'`, row-major `N × N`.
+    pub dist: Vec<i64>,
+}
+
+impl Domain {
+    /// The domain of `q` (its point set, or every point of its box).
+    pub fn of(q: &Question) -> Domain {
+        let set = q.domain();
+        let pts = set.points();
+        let n = pts.len();
+        let mut dist = vec![0; n * n];
+        for a in 0..n {
+            for b in 0..n {
+                dist[a * n + b] = crate::grid::sup_dist(&pts[a], &pts[b]);
+            }
+        }
+        Domain { set, dist }
+    }
+
+    /// `N = |D|`.
+    pub fn len(&self) -> usize {
+        self.set.len()
+    }
+
+    /// Always false: D has a point.
+    pub fn is_empty(&self) -> bool {
+        self.set.is_empty()
+    }
+
+    /// `d(z, z')` by point numbers.
+    pub fn d(&self, z: usize, w: usize) -> i64 {
+        self.dist[z * self.len() + w]
+    }
+}
+
+/// The options as they apply to the full-map formulation of `q`: the
+/// cycle-only families (count, packing, classes and the symmetry steps other than
+/// `rotate` and `isometry`) are off; `rotate` needs `p ≥ 2`, `isometry` a
+/// nontrivial, computable isometry group.
+pub fn resolve(options: &EncodeOptions, q: &Question) -> EncodeOptions {
+    let s = options.symmetry;
+    let isometry = s.isometry
+        && q.domain()
+            .isometries(ISOMETRY_LIMIT)
+            .is_some_and(|g| g.len() > 1);
+    EncodeOptions {
+        formulation: FORMULATION.to_string(),
+        symmetry: Symmetry {
+            rotate: s.rotate && q.period >= 2,
+            isometry,
+            ..Symmetry::NONE
+        },
+        count: false,
+        packing: false,
+        classes: false,
+    }
+}
+
+/// Exact per-family counts for `q` with `o` (already resolved).
+pub fn estimate(q: &Question, o: &EncodeOptions) -> Vec<FamilyCount> {
+    let dom = Domain::of(q);
+    let mut out = vec![
+        map::count_choice(&dom),
+        map::count_nonexp(&dom),
+        orbit::count_place(&dom, q.period),
+        orbit::count_step(&dom, q.period),
+    ];
+    if o.symmetry.rotate {
+        out.push(symmetry::count_rotate(&dom, q.period));
+    }
+    if o.symmetry.isometry {
+        out.push(symmetry::count_isometry(&dom));
+    }
+    out
+}
+
+/// Encodes `q` in the full-map formulation with `o` (already resolved).
+///
+/// # Errors
+/// [`crate::Error::TooLarge`] when the formula would exceed `max_clauses`.
+pub fn encode(q: &Question, o: &EncodeOptions, max_clauses: u64) -> Result<Encoding> {
+    // map-choice alone has N·C(N, 2) ≈ N³/2 clauses: a lower bound that rules
+    // out overflow of the exact u64 counts before the N² distance table is built.
+    let n = q.num_points() as f64;
+    let rough = (n * n * (n - 1.0) / 2.0, n * n + q.period as f64 * n);
+    refuse_oversized(rough, max_clauses, || estimate(q, o))?;
+    let dom = Domain::of(q);
+    let p = q.period;
+    let mut enc = Encoder::new();
+    enc.family(map::FAMILY_CHOICE, |e| map::add_choice(e, &dom));
+    let m = map_vars(&enc, &dom);
+    enc.family(map::FAMILY_NONEXP, |e| map::add_nonexp(e, &dom, &m));
+    enc.family(orbit::FAMILY_PLACE, |e| orbit::add_place(e, &dom, p));
+    let o_vars = orbit_vars(&enc, &dom, p);
+    enc.family(orbit::FAMILY_STEP, |e| {
+        orbit::add_step(e, &dom, p, &m, &o_vars)
+    });
+    if o.symmetry.rotate {
+        enc.family(symmetry::ROTATE, |e| {
+            symmetry::add_rotate(e, &dom, p, &o_vars)
+        });
+    }
+    if o.symmetry.isometry {
+        enc.family(symmetry::ISOMETRY, |e| {
+            symmetry::add_isometry(e, &dom, &o_vars)
+        });
+    }
+    Ok(enc.finish(q, o))
+}
+
+/// `m(z, w)` for point numbers, row-major `N × N`.
+fn map_vars(e: &Encoder, dom: &Domain) -> Vec<Var> {
+    let pts = dom.set.points();
+    let mut out = Vec::with_capacity(pts.len() * pts.len());
+    for z in pts {
+        for w in pts {
+            out.push(e.get(&Meaning::Map {
+                z: z.clone(),
+                w: w.clone(),
+            }));
+        }
+    }
+    out
+}
+
+/// `o(i, z)` for positions and point numbers, row-major `p × N`.
+fn orbit_vars(e: &Encoder, dom: &Domain, p: usize) -> Vec<Var> {
+    let mut out = Vec::with_capacity(p * dom.len());
+    for i in 0..p {
+        for z in dom.set.points() {
+            out.push(e.get(&Meaning::At { i, z: z.clone() }));
+        }
+    }
+    out
+}
+
+/// `C(k, 2)` in `u64`.
+pub(crate) fn pairs_of(k: usize) -> u64 {
+    let k = k as u64;
+    k * k.saturating_sub(1) / 2
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::grid::Grid;
+
+    fn corners_plus_one() -> Question {
+        let d = PointSet::parse("-2 -2\n-2 2\n2 -2\n2 2\n0 1\n", "t").unwrap();
+        Question::on_points(d, 4).unwrap()
+    }
+
+    #[test]
+    fn counts_of_the_five_point_set_are_pinned() {
+        // N = 5, p = 4. Distances: corners pairwise 4; (0,1) is at 2 from the
+        // top corners and 3 from the bottom ones. Ordered pairs (w,w') by
+        // distance: 0: 5, 2: 4, 3: 4, 4: 12. map-nonexp sums, over the 10
+        // unordered pairs {z,z'}, the ordered pairs farther apart than d(z,z'):
+        // 6 corner pairs (d = 4) give 0, 2 pairs at d = 2 give 16 each, 2 pairs
+        // at d = 3 give 12 each: 56.
+        let q = corners_plus_one();
+        let e = crate::encode::encode(&q, &EncodeOptions::default(), u64::MAX).unwrap();
+        assert_eq!(
+            crate::encode::tests::family_counts(&e),
+            vec![
+                // N² vars; N + N·C(N,2) = 5 + 50 clauses.
+                ("map-choice", 25, 55),
+                ("map-nonexp", 0, 56),
+                // pN vars; p + p·C(N,2) + N·C(p,2) = 4 + 40 + 30.
+                ("orbit-place", 20, 74),
+                // p·N² = 100.
+                ("orbit-step", 0, 100),
+                // N − 1 vars; (N − 1) + (N − 2) + (p − 1)·N = 4 + 3 + 15.
+                ("fm-rotate", 4, 22),
+                // The reflection x ↦ −x pairs the corners: 5 − 3 classes.
+                ("fm-isometry", 0, 2),
+            ]
+        );
+        assert_eq!(e.options.formulation, FORMULATION);
+        assert_eq!(e.families, estimate(&q, &e.options));
+    }
+
+    #[test]
+    fn estimate_is_exact_on_boxes_and_sets() {
+        let mut qs = vec![corners_plus_one()];
+        for (spec, dim, p) in [
+            ("0..2", 2, 4),
+            ("0..1", 1, 1),
+            ("0..3,0..1", 2, 3),
+            ("5", 1, 1),
+        ] {
+            qs.push(Question::new(Grid::parse(spec, Some(dim)).unwrap(), p).unwrap());
+        }
+        let lshape = PointSet::parse("0 0\n0 1\n1 0\n", "l").unwrap();
+        qs.push(Question::on_points(lshape, 2).unwrap());
+        for q in qs {
+            let o = EncodeOptions::full_map();
+            crate::encode::tests::assert_estimate_is_exact(&q, &o);
+        }
+    }
+}

@@ -10,6 +10,7 @@ use clap::{Args, Parser, Subcommand};
 use orbitcnf::Verdict;
 use orbitcnf::bundle::Evidence;
 use orbitcnf::encode::{self, DEFAULT_MAX_CLAUSES, EncodeOptions, Symmetry};
+use orbitcnf::points::PointSet;
 use orbitcnf::proof::LratOptions;
 use orbitcnf::question::MapClass;
 use orbitcnf::solve::{Limits, bundled::Bundled, certified::Certified};
@@ -168,6 +169,12 @@ struct QuestionArgs {
         value_parser = parse_grid_text
     )]
     grid: String,
+    /// A domain that need not be a box: a file with one integer point per
+    /// line (`0 1` or `0,1`; `#` comments) or JSON `[[0,1],[2,2]]`. The
+    /// question becomes "a periodic orbit of a nonexpansive map D → D",
+    /// answered with the full-map formulation (encodings/full-map.md).
+    #[arg(long, value_name = "FILE", conflicts_with_all = ["grid", "dim"])]
+    points: Option<PathBuf>,
     /// The minimal period p asked for.
     #[arg(long, short = 'p', value_name = "P", default_value_t = 8)]
     period: usize,
@@ -185,10 +192,11 @@ impl QuestionArgs {
                 "the dimension must be at least 1 (got --dim 0)".into(),
             ));
         }
-        Ok(
-            Question::new(Grid::parse(&self.grid, self.dim)?, self.period)?
-                .with_class(self.class.class),
-        )
+        let q = match &self.points {
+            Some(path) => Question::on_points(PointSet::read(path)?, self.period)?,
+            None => Question::new(Grid::parse(&self.grid, self.dim)?, self.period)?,
+        };
+        Ok(q.with_class(self.class.class))
     }
 }
 
@@ -227,17 +235,39 @@ struct EncodingArgs {
     /// graph has at most one edge per window"; see encodings/redundant.md.
     #[arg(long)]
     no_classes: bool,
+    /// The formulation: `cycle` (isometric cycles; boxes only; the default
+    /// on boxes) or `full-map` (the whole map f: D → D; the only one for
+    /// --points, and available on boxes for comparison).
+    #[arg(long, value_name = "NAME", value_parser = ["cycle", "full-map"])]
+    formulation: Option<String>,
 }
 
 impl EncodingArgs {
     fn options(&self) -> Result<EncodeOptions, Error> {
+        let base = match self.formulation.as_deref() {
+            Some("full-map") => EncodeOptions::full_map(),
+            _ => EncodeOptions::default(),
+        };
         Ok(EncodeOptions {
             symmetry: Symmetry::parse(&self.symmetry)?,
             count: !self.no_count,
             packing: !self.no_packing,
             classes: !self.no_classes,
-            ..EncodeOptions::default()
+            ..base
         })
+    }
+
+    /// The options for `q`: a point set refuses the cycle formulation, which
+    /// would answer a different question there.
+    fn options_for(&self, q: &Question) -> Result<EncodeOptions, Error> {
+        if q.points.is_some() && self.formulation.as_deref() == Some("cycle") {
+            return Err(Error::Options(
+                "--formulation cycle answers the question only on boxes: on a point set an \
+                 isometric cycle need not extend to a map D → D; use full-map (the default with --points)"
+                    .into(),
+            ));
+        }
+        self.options()
     }
 }
 
@@ -432,7 +462,7 @@ fn run(cli: Cli) -> Result<u8, Error> {
                 time: a.time_limit,
                 progress: !a.quiet && !a.json,
             };
-            let options = a.encoding.options()?;
+            let options = a.encoding.options_for(&q)?;
             if let Some(code) = decide_scaled(&a, &q, &options, &limits)? {
                 return Ok(code);
             }
@@ -480,7 +510,7 @@ fn run(cli: Cli) -> Result<u8, Error> {
         }
         Command::Encode(a) => {
             let q = a.question.question()?;
-            let enc = encode::encode(&q, &a.encoding.options()?, a.question.max_clauses)?;
+            let enc = encode::encode(&q, &a.encoding.options_for(&q)?, a.question.max_clauses)?;
             if a.output.as_os_str() == "-" {
                 let bytes = dimacs::render_cnf(&enc);
                 let mut out = io::stdout().lock();

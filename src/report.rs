@@ -307,10 +307,15 @@ impl Report {
                         f.display()
                     );
                 }
+                let why = if self.options.is_full_map() {
+                    "encodings/full-map.md"
+                } else {
+                    writeups
+                };
                 let _ = writeln!(
                     s,
                     "             the proof covers the CNF with its symmetry-breaking and redundant clauses; \
-                     their soundness: {writeups}"
+                     their soundness: {why}"
                 );
             }
             Certificate::None => {}

@@ -6,6 +6,7 @@
 //! - `external`: CNFs written by `encode`, solved by Debian's CaDiCaL and
 //!   PicoSAT, read back by `decode`.
 //! - `instances`: one generated test per file in `instances/` (see `build.rs`).
+//! - `points`: finite domains that are not boxes (full-map formulation).
 //!
 //! - `topical`: the topical map class (`--class topical`), published bound and brute force.
 //!
@@ -15,6 +16,7 @@ mod brute;
 mod cli;
 mod external;
 mod instances;
+mod points;
 mod proofs;
 mod published;
 mod scaleout;

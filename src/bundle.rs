@@ -4,7 +4,8 @@
 //! version, verdict, the chain of trust in words, and the SHA-256 of every
 //! other file), `formula.cnf` (the exact CNF that was solved, with its
 //! orbitcnf header), and either `proof.lrat` (infeasible) or `orbit.json`
-//! (feasible). [`check_bundle`] re-encodes the question, compares the CNF
+//! (feasible; in the full-map formulation `map.json`, the orbit with the
+//! whole map f: D → D, since there the orbit alone proves nothing). [`check_bundle`] re-encodes the question, compares the CNF
 //! byte for byte, checks the hashes, and checks the proof with orbitcnf's
 //! LRAT checker or the orbit with the independent verifier.
 
@@ -20,7 +21,7 @@ use crate::orbit_file;
 use crate::proof::{LratOptions, LratSummary, check_lrat_with};
 use crate::question::{Question, QuestionRecord};
 use crate::report::Verdict;
-use crate::verify::OrbitCheck;
+use crate::verify::{self, OrbitCheck, SelfMapCheck};
 
 /// The manifest's file name.
 pub const MANIFEST: &str = "manifest.json";
@@ -30,6 +31,18 @@ pub const FORMULA: &str = "formula.cnf";
 pub const PROOF: &str = "proof.lrat";
 /// The orbit's file name (feasible answers).
 pub const ORBIT: &str = "orbit.json";
+/// The orbit and map file of feasible full-map answers: `{"orbit": […], "map": [[z, f(z)], …]}`.
+pub const MAP: &str = "map.json";
+
+/// The contents of [`MAP`].
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct MapFile {
+    /// `x_0..x_{p−1}`.
+    pub orbit: Vec<Vec<i64>>,
+    /// `(z, f(z))` for every z ∈ D.
+    pub map: Vec<(Vec<i64>, Vec<i64>)>,
+}
 
 const TRUST: &str = "Chain of trust (encodings/trust.md): (1) formula.cnf encodes the question: \
 the isometric-cycle reduction and its clauses are argued in encodings/isometric-cycle.md and tested \
@@ -38,6 +51,14 @@ verdict: encodings/symmetry.md and encodings/redundant.md, tested against brute 
 infeasible answer, proof.lrat is an LRAT refutation of formula.cnf exactly, checked by orbitcnf's own \
 checker (and checkable by any LRAT checker); for a feasible answer, orbit.json is checked directly, \
 with no trust in the CNF at all.";
+
+const TRUST_FULL_MAP: &str = "Chain of trust (encodings/trust.md, encodings/full-map.md): (1) formula.cnf \
+encodes the question on the point set D of the manifest: the full-map clauses (every point's image, \
+nonexpansiveness on every pair, the orbit moved along by f) are argued in encodings/full-map.md and \
+tested against brute force over all maps; (2) its symmetry-breaking clauses keep every verdict: \
+encodings/full-map.md §5, tested the same way; (3) for an infeasible answer, proof.lrat is an LRAT \
+refutation of formula.cnf exactly, checked by orbitcnf's own checker; for a feasible answer, map.json \
+(the orbit and the whole map D → D) is checked directly, with no trust in the CNF at all.";
 
 /// One file of a bundle with its digest.
 #[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
@@ -112,6 +133,16 @@ pub fn write_bundle(
             files.push(entry(PROOF, &bytes));
             Verdict::Infeasible
         }
+        Evidence::Map { orbit, map } => {
+            let doc = MapFile {
+                orbit: orbit.to_vec(),
+                map: map.to_vec(),
+            };
+            let text = serde_json::to_string(&doc).expect("map file serialises") + "\n";
+            write_atomically(&dir.join(MAP), text.as_bytes())?;
+            files.push(entry(MAP, text.as_bytes()));
+            Verdict::Feasible
+        }
         Evidence::Orbit(orbit) => {
             let text = orbit_file::to_json(&q.grid, q.class, orbit) + "\n";
             write_atomically(&dir.join(ORBIT), text.as_bytes())?;
@@ -125,7 +156,12 @@ pub fn write_bundle(
         options: enc.options.clone(),
         verdict: verdict.word().into(),
         files,
-        trust: TRUST.into(),
+        trust: if enc.options.is_full_map() {
+            TRUST_FULL_MAP
+        } else {
+            TRUST
+        }
+        .into(),
     };
     let text = serde_json::to_string_pretty(&manifest).expect("manifest serialises") + "\n";
     write_atomically(&dir.join(MANIFEST), text.as_bytes())?;
@@ -139,6 +175,13 @@ pub enum Evidence<'a> {
     Proof(&'a Path),
     /// The orbit of a feasible answer.
     Orbit(&'a [Vec<i64>]),
+    /// The orbit and the whole map of a feasible full-map answer.
+    Map {
+        /// `x_0..x_{p−1}`.
+        orbit: &'a [Vec<i64>],
+        /// `(z, f(z))` for every z ∈ D.
+        map: &'a [(Vec<i64>, Vec<i64>)],
+    },
 }
 
 /// What [`check_bundle`] established.
@@ -152,6 +195,9 @@ pub struct BundleCheck {
     pub proof: Option<LratSummary>,
     /// For feasible bundles: the checked orbit.
     pub orbit: Option<OrbitCheck>,
+    /// For feasible full-map bundles: the checked map.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub map: Option<SelfMapCheck>,
 }
 
 /// Re-checks a bundle end to end.
@@ -203,6 +249,7 @@ pub fn check_bundle(dir: &Path) -> Result<BundleCheck> {
         manifest: manifest.clone(),
         proof: None,
         orbit: None,
+        map: None,
     };
     match manifest.verdict.as_str() {
         "infeasible" => {
@@ -219,6 +266,29 @@ pub fn check_bundle(dir: &Path) -> Result<BundleCheck> {
                 ..LratOptions::default()
             };
             out.proof = Some(check_lrat_with(&file.cnf, &proof, &options)?);
+        }
+        "feasible" if manifest.options.is_full_map() => {
+            if !listed(MAP) {
+                return Err(Error::parse(
+                    &mname,
+                    0,
+                    format!("a feasible full-map bundle needs {MAP}"),
+                ));
+            }
+            let mpath = dir.join(MAP);
+            let shown = mpath.display().to_string();
+            let f: MapFile = serde_json::from_slice(&read(&mpath)?)
+                .map_err(|e| Error::parse(&shown, e.line(), format!("not a map file: {e}")))?;
+            if f.orbit.len() != q.period {
+                return Err(Error::parse(
+                    shown,
+                    0,
+                    "the orbit is not for the bundle's question",
+                ));
+            }
+            let domain = q.domain().points().to_vec();
+            out.map = Some(verify::check_self_map(&domain, &f.map, &f.orbit)?);
+            out.orbit = Some(verify::check_orbit(q.grid.ranges(), &f.orbit)?);
         }
         "feasible" => {
             if !listed(ORBIT) {

@@ -485,7 +485,10 @@ fn run(cli: Cli) -> Result<u8, Error> {
                     decide::decide(&q, &options, &mut backend, &limits, a.question.max_clauses)?;
                 if let Some(dir) = &a.bundle {
                     let evidence = match (&report.orbit, &lrat) {
-                        (Some(orbit), _) => Some(Evidence::Orbit(orbit)),
+                        (Some(orbit), _) => Some(match &report.map {
+                            Some(map) => Evidence::Map { orbit, map },
+                            None => Evidence::Orbit(orbit),
+                        }),
                         (None, Some(path)) if report.verdict == Verdict::Infeasible => {
                             Some(Evidence::Proof(path))
                         }
@@ -577,6 +580,16 @@ fn run(cli: Cli) -> Result<u8, Error> {
                 ),
                 _ => String::new(),
             };
+            let mut text = text;
+            if let Some(pts) = &c.manifest.question.points {
+                text.push_str(&format!(
+                    "domain       the {} points of the manifest (the grid above is their bounding box)\n",
+                    pts.len()
+                ));
+            }
+            if let Some(m) = &c.map {
+                text.push_str(&format!("map          certified: {m}\n"));
+            }
             print(&if a.json {
                 serde_json::to_string(&c).expect("serialises") + "\n"
             } else {
@@ -1133,7 +1146,7 @@ fn split_cmd(a: SplitArgs) -> Result<u8, Error> {
     let m = split::write_split(
         &a.out,
         &q,
-        &a.encoding.options()?,
+        &a.encoding.options_for(&q)?,
         a.cubes,
         a.question.max_clauses,
     )?;
@@ -1143,14 +1156,18 @@ fn split_cmd(a: SplitArgs) -> Result<u8, Error> {
         serde_json::to_string(&m).expect("serialises") + "\n"
     } else {
         format!(
-            "question     {}\ncubes        {n} (asked for {}), prefixes of the distance profile g(1..{})\n\
+            "question     {}\ncubes        {n} (asked for {}), {}\n\
              coverage     checked: LRAT proof of {} steps refutes coverage.cnf, so every model lies in a cube\n\
              written      {d}/manifest.json, formula.cnf, cubes.icnf, coverage.cnf, coverage.lrat, cubes/cube-NNNN.cnf\n\
              next         orbitcnf run-cube {d} INDEX   for INDEX in 0..{}   (docs/cluster.md: Slurm, GNU parallel)\n\
              \x20            orbitcnf merge {d}\n",
             q.statement(),
             a.cubes,
-            m.split.offsets,
+            if m.split.rule == "start-point" {
+                "one per start point x_0 (full-map formulation)".to_string()
+            } else {
+                format!("prefixes of the distance profile g(1..{})", m.split.offsets)
+            },
             m.coverage.lrat_steps,
             n.saturating_sub(1),
         )

@@ -55,7 +55,7 @@ use sha2::{Digest, Sha256};
 
 use crate::cnf::{Cnf, FamilyCount, Lit};
 use crate::dimacs::{VERSION, render_cnf, write_atomically};
-use crate::encode::{EncodeOptions, Encoding, encode, profile, symmetry};
+use crate::encode::{EncodeOptions, Encoding, encode, fullmap, profile, symmetry};
 use crate::error::{Error, Result};
 use crate::proof::{LratOptions, LratSummary, certify, check_lrat_with};
 use crate::question::{Question, QuestionRecord};
@@ -81,15 +81,19 @@ pub const FORMAT: &str = "orbitcnf-split/1";
 /// The family label of a cube's unit clauses in its CNF header.
 pub const CUBE_FAMILY: &str = "cube";
 
-/// One cube: a prefix of the distance profile, as literals over `G[k,t]`.
+/// One cube: a prefix of the distance profile, as literals over `G[k,t]`;
+/// in the full-map formulation, the start point x_0 instead.
 #[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
 pub struct Cube {
     /// Position in the cube list, from 0.
     pub index: usize,
-    /// `g(1..=prefix.len())`.
+    /// `g(1..=prefix.len())` (empty for full-map cubes).
     pub prefix: Vec<i64>,
     /// The assumption literals (DIMACS numbers), in profile order.
     pub literals: Vec<i32>,
+    /// Full-map cubes: the point x_0 is fixed to (`encodings/full-map.md` §8).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub start: Option<Vec<i64>>,
 }
 
 impl Cube {
@@ -100,6 +104,10 @@ impl Cube {
 
     /// The prefix in words: `g(1..3) = 1 2 2`, or `the whole space`.
     pub fn describe(&self) -> String {
+        if let Some(z) = &self.start {
+            let c: Vec<String> = z.iter().map(|v| v.to_string()).collect();
+            return format!("x_0 = ({})", c.join(", "));
+        }
         if self.prefix.is_empty() {
             return "the whole space".into();
         }
@@ -202,9 +210,67 @@ pub fn profile_cubes(enc: &Encoding, target: usize) -> Result<Vec<Cube>> {
                 index,
                 prefix,
                 literals,
+                start: None,
             })
         })
         .collect()
+}
+
+/// The cubes of `enc`: [`profile_cubes`] in the cycle formulation,
+/// [`start_cubes`] in the full-map formulation.
+///
+/// # Errors
+/// As [`profile_cubes`] and [`start_cubes`].
+pub fn cubes(enc: &Encoding, target: usize) -> Result<Vec<Cube>> {
+    if enc.options.is_full_map() {
+        start_cubes(enc, target)
+    } else {
+        profile_cubes(enc, target)
+    }
+}
+
+/// Full-map cubes: for `target ≥ 2`, one cube `o(0, z)` per point z that
+/// x_0 may take (every point of D, less those the `fm-isometry` units
+/// exclude), however many that is; for `target = 1`, the whole space.
+///
+/// # Errors
+/// [`Error::Options`] when the encoding lacks a variable `o(0, z)`.
+pub fn start_cubes(enc: &Encoding, target: usize) -> Result<Vec<Cube>> {
+    let d = enc.question.domain();
+    if target <= 1 {
+        return Ok(vec![Cube {
+            index: 0,
+            prefix: Vec::new(),
+            literals: Vec::new(),
+            start: None,
+        }]);
+    }
+    let excluded: Vec<i32> = family_range(enc, fullmap::symmetry::ISOMETRY)
+        .into_iter()
+        .flatten()
+        .filter_map(|i| match enc.cnf.clause(i) {
+            [l] => Some(-l.dimacs()),
+            _ => None,
+        })
+        .collect();
+    let mut out = Vec::new();
+    for z in d.points() {
+        let m = Meaning::At { i: 0, z: z.clone() };
+        let v = enc
+            .map
+            .get(&m)
+            .ok_or_else(|| Error::Options(format!("the encoding has no variable for {m}")))?;
+        if excluded.contains(&v.pos().dimacs()) {
+            continue;
+        }
+        out.push(Cube {
+            index: out.len(),
+            prefix: Vec::new(),
+            literals: vec![v.pos().dimacs()],
+            start: Some(z.clone()),
+        });
+    }
+    Ok(out)
 }
 
 /// The clause index range of each family of `enc`, by label.
@@ -221,9 +287,16 @@ fn family_range(enc: &Encoding, family: &str) -> Option<std::ops::Range<usize>> 
 }
 
 /// The indices (in `enc.cnf`) of the clauses that the coverage check keeps:
-/// the `profile` family, then `sym-multiplier` when present.
+/// the `profile` family, then `sym-multiplier` when present; in the full-map
+/// formulation `orbit-place` (whose first clause says x_0 is some point),
+/// then `fm-isometry` when present.
 pub fn coverage_sources(enc: &Encoding) -> Vec<usize> {
-    [profile::FAMILY, symmetry::MULTIPLIER]
+    let families = if enc.options.is_full_map() {
+        [fullmap::orbit::FAMILY_PLACE, fullmap::symmetry::ISOMETRY]
+    } else {
+        [profile::FAMILY, symmetry::MULTIPLIER]
+    };
+    families
         .iter()
         .filter_map(|f| family_range(enc, f))
         .flatten()
@@ -272,9 +345,14 @@ pub fn render_icnf(enc: &Encoding, cubes: &[Cube]) -> Vec<u8> {
     let mut out = Vec::with_capacity(enc.cnf.num_lits() * 6);
     out.extend_from_slice(
         format!(
-            "c orbitcnf {VERSION} split of: {}\nc {} cubes over the distance profile; cube i is the i-th 'a' line (from 0)\np inccnf\n",
+            "c orbitcnf {VERSION} split of: {}\nc {} cubes over {}; cube i is the i-th 'a' line (from 0)\np inccnf\n",
             enc.question.statement(),
-            cubes.len()
+            cubes.len(),
+            if enc.options.is_full_map() {
+                "the start point x_0"
+            } else {
+                "the distance profile"
+            }
         )
         .as_bytes(),
     );
@@ -291,9 +369,14 @@ pub fn render_icnf(enc: &Encoding, cubes: &[Cube]) -> Vec<u8> {
 /// The coverage CNF as plain DIMACS with a comment saying what it is.
 pub fn render_coverage(enc: &Encoding, cnf: &Cnf, cubes: &[Cube]) -> Vec<u8> {
     let kept = coverage_sources(enc).len();
+    let kept_what = if enc.options.is_full_map() {
+        "the orbit placement and isometry clauses"
+    } else {
+        "the profile order encoding and the multiplier lex-leader clauses"
+    };
     let mut out = format!(
         "c orbitcnf {VERSION} coverage check for the split of: {}\n\
-         c clauses 1..{kept}: the profile order encoding and the multiplier lex-leader clauses of formula.cnf\n\
+         c clauses 1..{kept}: {kept_what} of formula.cnf\n\
          c clauses {}..{}: the negation of cube 0, 1, ...; unsatisfiable iff every model of formula.cnf lies in a cube\n\
          p cnf {} {}\n",
         enc.question.statement(),
@@ -465,6 +548,12 @@ pub fn refute_coverage(enc: &Encoding, cnf: &Cnf) -> Result<(Vec<u8>, LratSummar
     let out = crate::proof::solve_with_proof_sinks(cnf, sinks, None)?;
     match out.outcome {
         Outcome::Unsat => {}
+        Outcome::Sat(_) if enc.options.is_full_map() => {
+            return Err(Error::Solver {
+                solver: "coverage check".into(),
+                reason: "the cubes miss a start point x_0; no split was written".into(),
+            });
+        }
         Outcome::Sat(model) => {
             let k_max = crate::encode::profile_len(&enc.question);
             let l = enc.question.grid.diameter() as i64;
@@ -526,7 +615,7 @@ pub fn write_split(
         )));
     }
     let enc = encode(q, options, max_clauses)?;
-    let cubes = profile_cubes(&enc, target)?;
+    let cubes = cubes(&enc, target)?;
     let coverage = coverage_cnf(&enc, &cubes);
     let (proof, summary) = refute_coverage(&enc, &coverage)?;
     for sub in [CUBES_DIR, RESULTS_DIR] {
@@ -555,11 +644,20 @@ pub fn write_split(
         question: q.record(),
         options: enc.options.clone(),
         requested_cubes: target,
-        split: SplitRule {
-            rule: "profile-prefix".into(),
-            offsets: crate::encode::profile_len(q),
-            max_value: q.grid.diameter() as i64,
-            multiplier_pruning: enc.options.symmetry.multiplier,
+        split: if enc.options.is_full_map() {
+            SplitRule {
+                rule: "start-point".into(),
+                offsets: 0,
+                max_value: 0,
+                multiplier_pruning: false,
+            }
+        } else {
+            SplitRule {
+                rule: "profile-prefix".into(),
+                offsets: crate::encode::profile_len(q),
+                max_value: q.grid.diameter() as i64,
+                multiplier_pruning: enc.options.symmetry.multiplier,
+            }
         },
         formula,
         icnf,

@@ -1,6 +1,6 @@
 //! `decide --jobs K`: the cubes of an internal split, solved by `K` threads.
 //!
-//! The question is encoded once, split into cubes ([`super::profile_cubes`])
+//! The question is encoded once, split into cubes ([`super::cubes`])
 //! and the coverage CNF refuted ([`super::refute_coverage`]); then `K`
 //! threads take cubes in index order and solve `F ∧ cube` with the bundled
 //! solver. With certification (the default) each thread writes the cube's
@@ -25,7 +25,7 @@ use std::sync::Mutex;
 use std::sync::atomic::{AtomicBool, AtomicUsize, Ordering};
 use std::time::{Duration, Instant};
 
-use super::{Cube, coverage_cnf, coverage_sources, lift, profile_cubes, refute_coverage};
+use super::{Cube, coverage_cnf, coverage_sources, cubes as make_cubes, lift, refute_coverage};
 use crate::cnf::Cnf;
 use crate::decide::witness;
 use crate::dimacs::write_atomically;
@@ -109,7 +109,7 @@ pub fn decide_parallel(
     let encode_seconds = t0.elapsed().as_secs_f64();
     let start = Instant::now();
     let deadline = limits.time.map(|t| start + t);
-    let cubes = profile_cubes(&enc, opts.cubes)?;
+    let cubes = make_cubes(&enc, opts.cubes)?;
     let coverage = coverage_cnf(&enc, &cubes);
     let (coverage_proof, _) = refute_coverage(&enc, &coverage)?;
     let n = cubes.len();

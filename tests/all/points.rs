@@ -22,16 +22,20 @@
 
 use std::collections::HashSet;
 
+use serde_json::Value;
+
 use orbitcnf::brute;
 use orbitcnf::encode::{DEFAULT_MAX_CLAUSES, EncodeOptions, Symmetry};
 use orbitcnf::points::PointSet;
 use orbitcnf::report::Certificate;
-use orbitcnf::solve::Limits;
 use orbitcnf::solve::bundled::Bundled;
 use orbitcnf::solve::certified::Certified;
+use orbitcnf::solve::{Backend, Limits, Outcome};
 use orbitcnf::{Question, Report, Verdict, decide};
 
-use crate::util::{Q, assert_isometric_cycle, decide_lib, dist};
+use crate::util::{
+    FEASIBLE, INFEASIBLE, Q, Run, TestDir, assert_isometric_cycle, decide_lib, dist, orbit_of,
+};
 
 /// The corners of {−2,2}^2 plus (0,1): the example of the project notes
 /// (MATH.md §2), where isometric 3- and 4-cycles exist but maps have only
@@ -328,4 +332,291 @@ fn on_boxes_up_to_side_3_in_dimensions_1_and_2_full_map_and_cycle_agree() {
             assert_eq!(full, cycle, "{}: full map vs cycle", q.label());
         }
     }
+}
+
+// ---------------------------------------------------------------- the command line
+
+/// The map of a JSON report, as `(z, f(z))` pairs.
+fn map_of(v: &Value) -> Vec<(Vec<i64>, Vec<i64>)> {
+    let point = |p: &Value| -> Vec<i64> {
+        p.as_array()
+            .expect("a point is an array")
+            .iter()
+            .map(|c| c.as_i64().expect("an integer coordinate"))
+            .collect()
+    };
+    v["map"]
+        .as_array()
+        .unwrap_or_else(|| panic!("no map in {v}"))
+        .iter()
+        .map(|e| (point(&e[0]), point(&e[1])))
+        .collect()
+}
+
+/// Writes `pts` to `name` in the line form, with a comment and a blank line.
+fn write_points(dir: &TestDir, name: &str, pts: &[Vec<i64>]) -> String {
+    let mut text = String::from("# a test set\n\n");
+    for z in pts {
+        let c: Vec<String> = z.iter().map(|v| v.to_string()).collect();
+        text.push_str(&c.join(" "));
+        text.push('\n');
+    }
+    dir.write(name, text);
+    name.to_string()
+}
+
+/// Checks a feasible `--json` report on the point set `pts` with our own checker.
+fn assert_feasible_report(run: &Run, pts: &[Vec<i64>], p: usize) -> Value {
+    run.code(FEASIBLE);
+    let v = run.json();
+    assert_eq!(v["verdict"], "feasible");
+    assert_eq!(v["options"]["formulation"], "full-map/1");
+    assert_eq!(
+        v["question"]["points"].as_array().map(Vec::len),
+        Some(pts.len())
+    );
+    let orbit = orbit_of(&v).expect("an orbit");
+    assert_self_map(pts, &map_of(&v), &orbit, p, &run.shown);
+    assert_eq!(
+        v["map_check"]["pairs_checked"],
+        (pts.len() * (pts.len() - 1) / 2) as u64
+    );
+    v
+}
+
+/// Runs `orbitcnf decide --points FILE -p P EXTRA…`.
+fn decide_points(dir: &TestDir, file: &str, p: usize, extra: &[&str]) -> Run {
+    dir.orbitcnf()
+        .args(["decide", "--points", file, "-p", &p.to_string()])
+        .args(extra)
+        .run()
+}
+
+/// The square {-1,0,1}^2 in the full-map formulation, as decide's flags.
+const SQUARE_FULL_MAP: [&str; 5] = ["--dim", "2", "--grid=-1..1", "--formulation", "full-map"];
+
+fn owned(pts: &[&[i64]]) -> Vec<Vec<i64>> {
+    pts.iter().map(|z| z.to_vec()).collect()
+}
+
+#[test]
+fn decide_with_points_says_which_question_it_answered() {
+    let dir = TestDir::new();
+    let pts = owned(JETTIES);
+    let file = write_points(&dir, "jetties.txt", &pts);
+    decide_points(&dir, &file, 4, &["-q"])
+        .code(FEASIBLE)
+        .stdout_has("question     a periodic orbit of a nonexpansive map D → D")
+        .stdout_has(
+            "map check    passed: maps all 6 points of D into D, nonexpansive on all 15 pairs",
+        )
+        .stdout_has("map          (");
+    assert_feasible_report(&decide_points(&dir, &file, 4, &["--json"]), &pts, 4);
+    // Period 3: an isometric 3-cycle exists, but no map has it (brute force agrees).
+    assert!(brute::find_map(&pts, 3).is_none());
+    decide_points(&dir, &file, 3, &["-q"])
+        .code(INFEASIBLE)
+        .stdout_has("no nonexpansive map D → D has a periodic point of minimal period 3")
+        .stdout_has("accepted by orbitcnf's own checker")
+        .stdout_has("encodings/full-map.md");
+}
+
+#[test]
+fn encode_then_decode_reads_the_map_from_the_header_alone() {
+    let dir = TestDir::new();
+    let pts = owned(PIER);
+    let file = write_points(&dir, "pier.txt", &pts);
+    dir.orbitcnf()
+        .args(["encode", "--points", &file, "-p", "3", "-o", "pier3.cnf"])
+        .run()
+        .code(0);
+    let text = dir.read("pier3.cnf");
+    assert!(text.contains("c question {\"dim\":2,\"grid\":\"0..2,0..3\",\"period\":3,\"points\":[[0,0],[0,3],[2,0],[2,1],[2,3]]}"));
+    assert!(text.contains("formulation=full-map/1"));
+    // The point file is gone: decoding needs only the CNF.
+    std::fs::remove_file(dir.path(&file)).unwrap();
+    let cnf = orbitcnf::dimacs::read_cnf_file(&dir.path("pier3.cnf")).unwrap();
+    let model = match Bundled.solve(&cnf.cnf, &Limits::default()).unwrap().outcome {
+        Outcome::Sat(m) => m,
+        other => panic!("pier, p = 3: expected a model, got {other:?}"),
+    };
+    let lits: Vec<String> = model
+        .iter()
+        .enumerate()
+        .map(|(i, &b)| {
+            if b {
+                (i + 1).to_string()
+            } else {
+                format!("-{}", i + 1)
+            }
+        })
+        .collect();
+    dir.write(
+        "out.txt",
+        format!("s SATISFIABLE\nv {} 0\n", lits.join(" ")),
+    );
+    let run = dir
+        .orbitcnf()
+        .args(["decode", "pier3.cnf", "out.txt", "--json"])
+        .run();
+    assert_feasible_report(&run, &pts, 3);
+    dir.write("unsat.txt", "s UNSATISFIABLE\n");
+    dir.orbitcnf()
+        .args(["decode", "pier3.cnf", "unsat.txt"])
+        .run()
+        .code(INFEASIBLE)
+        .stdout_has("no proof was checked");
+}
+
+#[test]
+fn the_full_map_formulation_runs_on_a_box_too() {
+    let dir = TestDir::new();
+    let run = dir
+        .orbitcnf()
+        .arg("decide")
+        .args(SQUARE_FULL_MAP)
+        .args(["-p", "4", "--json"])
+        .run();
+    run.code(FEASIBLE);
+    let v = run.json();
+    assert_eq!(v["options"]["formulation"], "full-map/1");
+    assert!(v["question"].get("points").is_none());
+    let grid: Vec<Vec<i64>> = (-1..=1)
+        .flat_map(|a| (-1..=1).map(move |b| vec![a, b]))
+        .collect();
+    assert_self_map(&grid, &map_of(&v), &orbit_of(&v).unwrap(), 4, &run.shown);
+    // Period 5 on {-1,0,1}^2: p ≤ 4 for n = 2 (B. Lemmens and M. Scheutzow,
+    // Ergodic Theory Dynam. Systems 25 (2005) 861–871), with a checked proof.
+    dir.orbitcnf()
+        .arg("decide")
+        .args(SQUARE_FULL_MAP)
+        .args(["-p", "5"])
+        .run()
+        .code(INFEASIBLE)
+        .stdout_has("accepted by orbitcnf's own checker");
+}
+
+#[test]
+fn bundles_of_point_questions_carry_the_map_and_are_rechecked() {
+    let dir = TestDir::new();
+    let pts = owned(NOTES_FIVE);
+    let file = write_points(&dir, "five.txt", &pts);
+    for (p, code, needle) in [
+        (
+            2,
+            FEASIBLE,
+            "map          certified: maps all 5 points of D into D",
+        ),
+        (4, INFEASIBLE, "INFEASIBLE, certified: LRAT proof"),
+    ] {
+        let b = format!("b{p}");
+        decide_points(&dir, &file, p, &["-q", "--bundle", &b]).code(code);
+        dir.orbitcnf()
+            .args(["check-bundle", &b])
+            .run()
+            .code(0)
+            .stdout_has(needle)
+            .stdout_has("domain       the 5 points of the manifest");
+    }
+    // An edited map.json is refused: first by its digest, and, with the
+    // digest in the manifest updated too, by the map check itself.
+    let mut doc: Value = serde_json::from_str(&dir.read("b2/map.json")).unwrap();
+    doc["map"][0][1] = serde_json::json!([1, 1]);
+    let edited = doc.to_string() + "\n";
+    dir.write("b2/map.json", &edited);
+    dir.orbitcnf()
+        .args(["check-bundle", "b2"])
+        .run()
+        .error_with(&["map.json does not match its SHA-256"]);
+    let mut manifest: Value = serde_json::from_str(&dir.read("b2/manifest.json")).unwrap();
+    for f in manifest["files"].as_array_mut().unwrap() {
+        if f["name"] == "map.json" {
+            f["sha256"] = orbitcnf::split::sha256_hex(edited.as_bytes()).into();
+            f["bytes"] = edited.len().into();
+        }
+    }
+    dir.write("b2/manifest.json", manifest.to_string());
+    dir.orbitcnf()
+        .args(["check-bundle", "b2"])
+        .run()
+        .error_with(&["check failed", "[1, 1], which is not a point of D"]);
+}
+
+#[test]
+fn split_run_cube_and_merge_work_on_point_questions() {
+    let dir = TestDir::new();
+    let file = write_points(&dir, "five.txt", &owned(NOTES_FIVE));
+    dir.orbitcnf()
+        .args([
+            "split", "--points", &file, "-p", "3", "--cubes", "8", "--out", "sp",
+        ])
+        .run()
+        .code(0)
+        .stdout_has("one per start point x_0 (full-map formulation)");
+    // The reflection x ↦ −x pairs the corners: x_0 has 3 possible classes.
+    let manifest: Value = serde_json::from_str(&dir.read("sp/manifest.json")).unwrap();
+    assert_eq!(manifest["cubes"].as_array().map(Vec::len), Some(3));
+    assert_eq!(manifest["split"]["rule"], "start-point");
+    for i in 0..3 {
+        dir.orbitcnf()
+            .args(["run-cube", "sp", &i.to_string()])
+            .run()
+            .code(0);
+    }
+    dir.orbitcnf()
+        .args(["merge", "sp"])
+        .run()
+        .code(INFEASIBLE)
+        .stdout_has("all 3 cubes refuted");
+    let jobs = ["--jobs", "2", "--cubes", "4"];
+    let run = decide_points(&dir, &file, 2, &[&jobs[..], &["--json"]].concat());
+    assert_feasible_report(&run, &owned(NOTES_FIVE), 2);
+    decide_points(&dir, &file, 4, &jobs)
+        .code(INFEASIBLE)
+        .stdout_has("accepted by orbitcnf's own checker");
+}
+
+#[test]
+fn bad_point_files_and_flag_mixes_are_one_line_errors() {
+    let dir = TestDir::new();
+    for (name, text, needles) in [
+        (
+            "dim.txt",
+            "0 0\n1 1\n# next line is wrong\n2 2 2\n",
+            &["dim.txt:4:", "has 3 coordinates", "(line 1) has 2"][..],
+        ),
+        (
+            "dup.txt",
+            "0 0\n1 1\n0,0\n",
+            &["dup.txt:3:", "repeats the point on line 1"][..],
+        ),
+        (
+            "frac.txt",
+            "0 0\n0.5 1\n",
+            &["frac.txt:2:", "\"0.5\" is not an integer"][..],
+        ),
+        (
+            "empty.txt",
+            "# only a comment\n",
+            &["empty.txt:0:", "no points"][..],
+        ),
+        (
+            "json.txt",
+            "[[0,0],\n [1,z]]\n",
+            &["json.txt:2:", "\"z\" is not an integer"][..],
+        ),
+    ] {
+        dir.write(name, text);
+        decide_points(&dir, name, 1, &[]).error_with(needles);
+    }
+    dir.orbitcnf()
+        .args(["decide", "--points", "missing.txt"])
+        .run()
+        .error_with(&["missing.txt"]);
+    let file = write_points(&dir, "five.txt", &owned(NOTES_FIVE));
+    decide_points(&dir, &file, 6, &[])
+        .error_with(&["period 6 is not between 1 and the 5 points of D"]);
+    decide_points(&dir, &file, 3, &["--formulation", "cycle"])
+        .error_with(&["--formulation cycle answers the question only on boxes"]);
+    decide_points(&dir, &file, 1, &["--grid=0..1"]).error_with(&["--grid"]);
 }

@@ -260,7 +260,12 @@ impl EncodingArgs {
     /// The options for `q`: a point set refuses the cycle formulation, which
     /// would answer a different question there.
     fn options_for(&self, q: &Question) -> Result<EncodeOptions, Error> {
-        if q.points.is_some() && self.formulation.as_deref() == Some("cycle") {
+        self.options_on(q.points.is_some())
+    }
+
+    /// As [`EncodingArgs::options_for`], knowing only whether the domain is a point set.
+    fn options_on(&self, point_set: bool) -> Result<EncodeOptions, Error> {
+        if point_set && self.formulation.as_deref() == Some("cycle") {
             return Err(Error::Options(
                 "--formulation cycle answers the question only on boxes: on a point set an \
                  isometric cycle need not extend to a map D → D; use full-map (the default with --points)"
@@ -817,6 +822,11 @@ struct SpectrumArgs {
         value_parser = parse_grid_text
     )]
     grid: String,
+    /// A domain that need not be a box (one integer point per line, or JSON
+    /// `[[0,1],[2,2]]`): every period is decided by the full-map solver, up
+    /// to |D| and the Lemmens–Scheutzow bound.
+    #[arg(long, value_name = "FILE", conflicts_with_all = ["grid", "dim"])]
+    points: Option<PathBuf>,
     /// The periods: `A..B` (inclusive), `P`, or a comma-separated list of both.
     /// Default: 1 up to the proven bound max_k 2^k·C(n',k) (Lemmens and
     /// Scheutzow 2005); with --class topical 1 up to one past the proven
@@ -870,12 +880,23 @@ fn spectrum(a: SpectrumArgs) -> Result<u8, Error> {
             "the dimension must be at least 1 (got --dim 0)".into(),
         ));
     }
-    let grid = Grid::parse(&a.grid, a.dim)?;
-    let mut cfg = spectrum::SweepConfig::for_class(grid, a.class.class);
+    let mut cfg = match &a.points {
+        Some(path) => {
+            if a.class.class != MapClass::Nonexpansive {
+                return Err(Error::Options(
+                    "spectrum --points decides nonexpansive maps D → D only (the full-map \
+                     formulation); --class topical needs a box"
+                        .into(),
+                ));
+            }
+            spectrum::SweepConfig::on_points(PointSet::read(path)?)
+        }
+        None => spectrum::SweepConfig::for_class(Grid::parse(&a.grid, a.dim)?, a.class.class),
+    };
     if let Some(list) = &a.periods {
         cfg.periods = spectrum::parse_periods(list)?;
     }
-    cfg.options = a.encoding.options()?;
+    cfg.options = a.encoding.options_on(cfg.points.is_some())?;
     cfg.jobs = a.jobs.unwrap_or_else(spectrum::default_jobs);
     cfg.time_limit = a.time_limit;
     cfg.max_clauses = a.max_clauses;

@@ -82,7 +82,8 @@ use crate::dimacs::VERSION;
 use crate::encode::{DEFAULT_MAX_CLAUSES, EncodeOptions, Symmetry};
 use crate::error::{Error, Result};
 use crate::grid::{Grid, Point};
-use crate::question::{self, MapClass, Question};
+use crate::points::PointSet;
+use crate::question::{self, MapClass, Question, QuestionRecord};
 use crate::report::{Certificate, Verdict};
 use crate::solve::Limits;
 use crate::solve::certified::Certified;
@@ -101,8 +102,11 @@ pub const MAP_CHECK_POINTS: u128 = 2048;
 /// What to sweep and how.
 #[derive(Clone, Debug)]
 pub struct SweepConfig {
-    /// The box.
+    /// The box (for a point set, its bounding box).
     pub grid: Grid,
+    /// A domain that is not a box: every period is then decided by the
+    /// full-map solver (the unit-cube construction needs a box).
+    pub points: Option<PointSet>,
     /// The class of maps asked about. Changing it does not change
     /// [`SweepConfig::periods`]; [`SweepConfig::for_class`] sets both.
     pub class: MapClass,
@@ -138,6 +142,7 @@ impl SweepConfig {
         SweepConfig {
             periods: default_periods(&grid, class),
             grid,
+            points: None,
             class,
             options: EncodeOptions::default(),
             jobs: default_jobs(),
@@ -147,6 +152,19 @@ impl SweepConfig {
             progress: false,
             recheck: false,
         }
+    }
+}
+
+impl SweepConfig {
+    /// A sweep of the point set `d` for nonexpansive maps D → D: periods
+    /// `1..=min(B(n'), |D|)` with `B` the Lemmens–Scheutzow bound for the
+    /// bounding box's effective dimension (it holds for every subset of
+    /// R^n'), otherwise as [`SweepConfig::new`].
+    pub fn on_points(d: PointSet) -> SweepConfig {
+        let mut cfg = SweepConfig::new(d.bounding_box());
+        cfg.periods.retain(|&p| p <= d.len());
+        cfg.points = Some(d);
+        cfg
     }
 }
 
@@ -452,7 +470,36 @@ pub fn theorem_conflict(
     p: usize,
     verdict: Verdict,
 ) -> Option<String> {
-    let pubd = published(grid, class, p);
+    conflict_with(published(grid, class, p), verdict)
+}
+
+/// [`published`] for the question of `record`: on a point set (inside the
+/// box `grid`) the upper bounds still hold, as D is a subset of R^n', but the
+/// unit-cube construction does not, so "exists" becomes "open".
+pub fn published_for(record: &QuestionRecord, grid: &Grid) -> Published {
+    let pubd = published(grid, record.class, record.period);
+    if record.points.is_none() || pubd.status != Status::Exists {
+        return pubd;
+    }
+    Published {
+        status: Status::Open,
+        reasons: vec![
+            "the unit-cube construction needs a box; D is a point set, decided by the full-map solver"
+                .into(),
+        ],
+    }
+}
+
+/// [`theorem_conflict`] for the question of `record` ([`published_for`]).
+pub fn theorem_conflict_for(
+    record: &QuestionRecord,
+    grid: &Grid,
+    verdict: Verdict,
+) -> Option<String> {
+    conflict_with(published_for(record, grid), verdict)
+}
+
+fn conflict_with(pubd: Published, verdict: Verdict) -> Option<String> {
     match (pubd.status, verdict) {
         (Status::Excluded, Verdict::Feasible) => Some(format!(
             "published theorems exclude the period ({})",
@@ -496,7 +543,7 @@ impl Row {
             reused,
             seconds: answer.stats.seconds,
             certificate: certificate_words(&answer),
-            published: published(grid, answer.question.class, answer.question.period),
+            published: published_for(&answer.question, grid),
             answer,
         }
     }
@@ -556,6 +603,9 @@ pub struct Spectrum {
     pub grid: String,
     /// The box for people (`{-1,0,1}^2`).
     pub grid_name: String,
+    /// The points of D when D is a point set (then `grid` is its bounding box).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub points: Option<Vec<Point>>,
     /// The dimension n.
     pub dim: usize,
     /// The class of maps asked about.
@@ -631,7 +681,10 @@ pub fn run(cfg: &SweepConfig) -> Result<Spectrum> {
     let questions: Vec<Question> = cfg
         .periods
         .iter()
-        .map(|&p| Ok(Question::new(cfg.grid.clone(), p)?.with_class(cfg.class)))
+        .map(|&p| match &cfg.points {
+            Some(d) => Question::on_points(d.clone(), p),
+            None => Ok(Question::new(cfg.grid.clone(), p)?.with_class(cfg.class)),
+        })
         .collect::<Result<_>>()?;
     let mut store = cfg.store.as_deref().map(Store::open).transpose()?;
     let run_id = store::run_id();
@@ -653,7 +706,7 @@ pub fn run(cfg: &SweepConfig) -> Result<Spectrum> {
                 continue;
             }
         }
-        if q.period as u128 <= construction_limit(grid, q.class) {
+        if q.points.is_none() && q.period as u128 <= construction_limit(grid, q.class) {
             constructible.push((q, key));
         } else {
             let proof = store.as_ref().map(|s| s.proof_path(&key, &run_id));
@@ -767,15 +820,34 @@ pub fn run(cfg: &SweepConfig) -> Result<Spectrum> {
     Ok(Spectrum {
         tool_version: VERSION.into(),
         grid: grid.spec(),
-        grid_name: grid.to_string(),
+        grid_name: match &cfg.points {
+            Some(d) => format!("D = {d}"),
+            None => grid.to_string(),
+        },
+        points: cfg.points.as_ref().map(|d| d.points().to_vec()),
         dim: grid.dim(),
         class: cfg.class,
-        question: question::statement(grid, cfg.class, "p"),
+        question: match &cfg.points {
+            Some(_) => {
+                "a periodic orbit of a nonexpansive map D → D (sup-norm) with minimal period p"
+                    .into()
+            }
+            None => question::statement(grid, cfg.class, "p"),
+        },
         effective_dim: n,
         construction_limit: u64::try_from(construction_limit(grid, cfg.class)).unwrap_or(u64::MAX),
         lemmens_scheutzow_bound: u64::try_from(period_bound(grid, cfg.class)).unwrap_or(u64::MAX),
         periods: cfg.periods.clone(),
-        options: cfg.options.clone(),
+        // A point set always takes the full-map formulation; say so.
+        options: match &cfg.points {
+            Some(d) => {
+                let top = cfg.periods.iter().copied().max().unwrap_or(1);
+                Question::on_points(d.clone(), top)
+                    .map(|q| cfg.options.resolve(&q))
+                    .unwrap_or_else(|_| cfg.options.clone())
+            }
+            None => cfg.options.clone(),
+        },
         store: cfg.store.clone(),
         run_id,
         started_at,
@@ -804,7 +876,7 @@ fn reusable(
         for b in &all[i + 1..] {
             store::check_agree(a, &s.describe_file(&a.key), b, &s.describe_file(&b.key))?;
         }
-        if let Some(theorem) = theorem_conflict(grid, q.class, q.period, a.verdict) {
+        if let Some(theorem) = theorem_conflict_for(&record, grid, a.verdict) {
             return Err(Error::Contradiction {
                 question: store::question_words(&record),
                 first: theorem,
@@ -834,7 +906,7 @@ fn finish(
     a: Answer,
 ) -> Result<()> {
     let p = a.question.period;
-    if let Some(theorem) = theorem_conflict(grid, a.question.class, p, a.verdict) {
+    if let Some(theorem) = theorem_conflict_for(&a.question, grid, a.verdict) {
         let orbit = a
             .orbit
             .as_ref()
@@ -887,6 +959,7 @@ fn base_answer(
         backing: Backing::None,
         orbit: None,
         profile: None,
+        map: None,
         map_checked_points: None,
         proof: None,
         reason: None,
@@ -1006,7 +1079,15 @@ fn solved(task: &Task, cfg: &SweepConfig, limits: &RunLimits, run_id: &str) -> R
                     // decide has checked it; checking again here costs little
                     // and keeps the stored evidence self-contained.
                     let check = q.check_orbit(&orbit)?;
-                    a.map_checked_points = map_check(q, &orbit)?;
+                    a.map_checked_points = match &report.map {
+                        // Full map: decide checked the decoded map on all of D.
+                        Some(map) => {
+                            let mc = verify::check_self_map(q.domain().points(), map, &orbit)?;
+                            a.map = Some(map.clone());
+                            Some(mc.points_checked)
+                        }
+                        None => map_check(q, &orbit)?,
+                    };
                     a.profile = Some(check.profile);
                     a.orbit = Some(orbit);
                     a.backing = Backing::CheckedOrbit;
@@ -1325,22 +1406,32 @@ impl Spectrum {
                 n = self.effective_dim,
             );
         } else {
+            // On a point set the bounds hold (D ⊂ R^n') but the construction needs a box.
+            let cl = self.construction_limit;
+            let on_points = self.points.is_some();
+            let small = if self.effective_dim > 3 {
+                String::new()
+            } else if on_points {
+                format!("; n' ≤ 3: p ≤ {cl} (Lyons and Nussbaum 1992 [recalled])")
+            } else {
+                format!("; n' ≤ 3: exactly 1..{cl} (Lyons and Nussbaum 1992 [recalled])")
+            };
+            let (head, tail) = if on_points {
+                (
+                    String::new(),
+                    "; the unit-cube construction needs a box, so every period of D went to the full-map solver",
+                )
+            } else {
+                (
+                    format!("p ≤ 2^{} = {cl} exist (construction); ", self.effective_dim),
+                    "",
+                )
+            };
             let _ = writeln!(
                 s,
-                "published    p ≤ 2^{n} = {} exist (construction); p > {} excluded (Lemmens and Scheutzow 2005){}; \
-                 prime p > {} excluded [recalled]",
-                self.construction_limit,
+                "published    {head}p > {} excluded (Lemmens and Scheutzow 2005){small}; \
+                 prime p > {cl} excluded [recalled]{tail}",
                 self.lemmens_scheutzow_bound,
-                if self.effective_dim <= 3 {
-                    format!(
-                        "; n' ≤ 3: exactly 1..{} (Lyons and Nussbaum 1992 [recalled])",
-                        self.construction_limit
-                    )
-                } else {
-                    String::new()
-                },
-                self.construction_limit,
-                n = self.effective_dim,
             );
         }
         let _ = writeln!(

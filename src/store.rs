@@ -57,7 +57,7 @@ use crate::grid::Point;
 use crate::proof::{LratOptions, LratSummary, check_lrat_with};
 use crate::question::{Question, QuestionRecord};
 use crate::report::Verdict;
-use crate::verify::OrbitCheck;
+use crate::verify::{self, OrbitCheck};
 
 /// Sub-folder of the answer files.
 pub const ANSWERS_DIR: &str = "answers";
@@ -187,6 +187,11 @@ pub struct Answer {
     /// `‖x_0 − x_k‖∞` for `k = 1..=⌊p/2⌋`, for a feasible answer.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub profile: Option<Vec<i64>>,
+    /// The whole map `(z, f(z))` on D of a feasible full-map answer, so that
+    /// the stored evidence is self-contained (the orbit alone proves nothing
+    /// on a point set).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub map: Option<Vec<(Point, Point)>>,
     /// Points of the box on which the extension of the orbit's shift to a
     /// nonexpansive map was built and checked by exhaustion, when it was.
     #[serde(default, skip_serializing_if = "Option::is_none")]
@@ -628,6 +633,16 @@ fn check_stored_orbit(q: &Question, a: &Answer, file: &str) -> Result<OrbitCheck
             ),
         ));
     }
+    if a.options.is_full_map() {
+        let Some(map) = &a.map else {
+            return Err(Error::parse(
+                file,
+                0,
+                "a feasible full-map answer without its map",
+            ));
+        };
+        verify::check_self_map(q.domain().points(), map, orbit)?;
+    }
     Ok(q.check_orbit(orbit)?)
 }
 
@@ -692,6 +707,7 @@ mod tests {
             backing: Backing::None,
             orbit: None,
             profile: None,
+            map: None,
             map_checked_points: None,
             proof: None,
             reason: None,

@@ -620,3 +620,66 @@ fn bad_point_files_and_flag_mixes_are_one_line_errors() {
         .error_with(&["--formulation cycle answers the question only on boxes"]);
     decide_points(&dir, &file, 1, &["--grid=0..1"]).error_with(&["--grid"]);
 }
+
+#[test]
+fn spectrum_of_a_point_set_matches_brute_force_and_reuses_its_store() {
+    let dir = TestDir::new();
+    let pts = owned(JETTIES);
+    let file = write_points(&dir, "jetties.txt", &pts);
+    let sweep = |extra: &[&str]| {
+        let run = dir
+            .orbitcnf()
+            .args(["spectrum", "--points", &file, "-q", "-j", "1", "--json"])
+            .args(extra)
+            .run();
+        run.code(0);
+        run.json()
+    };
+    let v = sweep(&["--store", "st"]);
+    assert_eq!(v["options"]["formulation"], "full-map/1");
+    assert_eq!(v["points"].as_array().map(Vec::len), Some(6));
+    let rows = v["rows"].as_array().unwrap();
+    // Periods 1..4: the bound p ≤ 4 for n = 2 (Lemmens and Scheutzow 2005) cuts |D| = 6.
+    assert_eq!(rows.len(), 4);
+    let mut feasible = Vec::new();
+    for r in rows {
+        let p = r["period"].as_u64().unwrap() as usize;
+        assert_eq!(
+            r["how"], "solver",
+            "p = {p}: no construction on a point set"
+        );
+        if r["verdict"] == "feasible" {
+            let a = &r["answer"];
+            let orbit = orbit_of(a).unwrap();
+            assert_self_map(&pts, &map_of(a), &orbit, p, &format!("spectrum row {p}"));
+            feasible.push(p);
+        } else {
+            assert_eq!(r["verdict"], "infeasible");
+            assert_eq!(r["answer"]["backing"], "checked-proof", "p = {p}");
+        }
+    }
+    assert_eq!(
+        feasible,
+        brute::map_periods(&pts)
+            .into_iter()
+            .filter(|&p| p <= 4)
+            .collect::<Vec<_>>()
+    );
+    // A second sweep reuses every stored answer, re-checking the stored maps.
+    let again = sweep(&["--store", "st"]);
+    assert!(
+        again["rows"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .all(|r| r["reused"] == true)
+    );
+    let table = dir
+        .orbitcnf()
+        .args(["spectrum", "--points", &file, "-q", "-j", "1", "--no-store"])
+        .run();
+    table
+        .code(0)
+        .stdout_has("spectrum     D = {(0,1), (1,2), (1,3), (3,0), (3,1), (3,2)}")
+        .stdout_has("the unit-cube construction needs a box");
+}

@@ -25,6 +25,12 @@
 //! - `ignore` (optional): a reason to skip the instance by default
 //!   (`cargo test -- --ignored` runs it).
 //!
+//! A domain that is not a box is given by `points` (a list of integer
+//! points, `[[0,1],[2,2]]`) instead of `grid` and `dim`; it is decided with
+//! `decide --points` (the full-map formulation), a feasible answer's map is
+//! checked by `points::assert_self_map`, and a `brute force` source runs
+//! `orbitcnf::brute::find_map` over every nonexpansive self-map of the set.
+//!
 //! Each test decides the instance with `orbitcnf decide --json` (with
 //! `--class topical` for topical instances) and checks the verdict. A
 //! nonexpansive feasible answer's orbit is verified with `orbitcnf check`
@@ -45,14 +51,17 @@ include!(concat!(env!("OUT_DIR"), "/instance_tests.rs"));
 
 /// A parsed instance file.
 struct Instance {
+    /// The box, or the bounding box of `points`.
     q: Q,
     class: MapClass,
+    /// The domain, when it is a point set.
+    points: Option<Vec<Vec<i64>>>,
     expect: Expect,
     source: String,
 }
 
-const FIELDS: [&str; 7] = [
-    "grid", "dim", "period", "class", "expected", "source", "ignore",
+const FIELDS: [&str; 8] = [
+    "grid", "dim", "period", "class", "expected", "source", "ignore", "points",
 ];
 
 fn parse(name: &str, text: &str) -> Instance {
@@ -73,7 +82,7 @@ fn parse(name: &str, text: &str) -> Instance {
         v[k].as_u64()
             .unwrap_or_else(|| bad(&format!("\"{k}\" must be a whole number"))) as usize
     };
-    let (spec, dim, period) = (string("grid"), number("dim"), number("period"));
+    let period = number("period");
     let expect = Expect::parse(&string("expected"))
         .unwrap_or_else(|| bad("\"expected\" must be \"feasible\" or \"infeasible\""));
     let class = match v.get("class") {
@@ -92,6 +101,34 @@ fn parse(name: &str, text: &str) -> Instance {
     if v.get("ignore").is_some_and(|i| !i.is_string()) {
         bad("\"ignore\" must be a string (the reason)");
     }
+    if let Some(list) = v.get("points") {
+        if v.get("grid").is_some() || v.get("dim").is_some() {
+            bad("give either \"points\" or \"grid\" and \"dim\", not both");
+        }
+        if class != MapClass::Nonexpansive {
+            bad("\"points\" instances are about nonexpansive maps D → D only");
+        }
+        let pts: Vec<Vec<i64>> = serde_json::from_value(list.clone())
+            .unwrap_or_else(|e| bad(&format!("\"points\" must be a list of integer lists: {e}")));
+        let n = pts.first().map_or(0, Vec::len);
+        if n == 0 || pts.iter().any(|z| z.len() != n) {
+            bad("\"points\" must be nonempty points of one dimension");
+        }
+        let bounds: Vec<(i64, i64)> = (0..n)
+            .map(|c| {
+                let vals = pts.iter().map(|z| z[c]);
+                (vals.clone().min().unwrap(), vals.max().unwrap())
+            })
+            .collect();
+        return Instance {
+            q: Q::boxed(&bounds, period),
+            class,
+            points: Some(pts),
+            expect,
+            source,
+        };
+    }
+    let (spec, dim) = (string("grid"), number("dim"));
     let ranges: Vec<(i64, i64)> = spec
         .split(',')
         .map(|r| {
@@ -115,14 +152,53 @@ fn parse(name: &str, text: &str) -> Instance {
     Instance {
         q: Q::boxed(&bounds, period),
         class,
+        points: None,
         expect,
         source,
+    }
+}
+
+/// Decides a point-set instance with `decide --points --json` and checks it.
+fn run_points_instance(name: &str, inst: &Instance, pts: &[Vec<i64>]) {
+    let dir = TestDir::new();
+    let file = dir.write("d.json", serde_json::to_string(pts).unwrap());
+    let p = inst.q.period;
+    let run = dir
+        .orbitcnf()
+        .arg("decide")
+        .arg("--points")
+        .arg(&file)
+        .args(["-p", &p.to_string(), "--json"])
+        .run();
+    run.code(inst.expect.code());
+    let v = run.json();
+    if inst.expect == Expect::Feasible {
+        let orbit = crate::util::orbit_of(&v).expect("an orbit");
+        let map: Vec<(Vec<i64>, Vec<i64>)> =
+            serde_json::from_value(v["map"].clone()).expect("a map in the report");
+        crate::points::assert_self_map(pts, &map, &orbit, p, name);
+    } else {
+        assert_eq!(
+            v["certificate"]["kind"], "checked-proof",
+            "instances/{name}"
+        );
+    }
+    if inst.source.starts_with("brute force") {
+        let found = orbitcnf::brute::find_map(pts, p);
+        assert_eq!(
+            found.is_some(),
+            inst.expect == Expect::Feasible,
+            "instances/{name}: brute force found {found:?}"
+        );
     }
 }
 
 /// The body of every generated test.
 pub fn run_instance(name: &str, text: &str) {
     let inst = parse(name, text);
+    if let Some(pts) = &inst.points {
+        return run_points_instance(name, &inst, pts);
+    }
     let dir = TestDir::new();
     let (bounds, p) = (&inst.q.bounds, inst.q.period);
     let feasible = inst.expect == Expect::Feasible;
@@ -154,7 +230,8 @@ pub fn run_instance(name: &str, text: &str) {
 
 /// The collection covers what it should: for nonexpansive maps n = 1..4,
 /// both verdicts, unequal sides and one-point sides; for topical maps both
-/// verdicts, a brute-force instance and a one-point side.
+/// verdicts, a brute-force instance and a one-point side; and a few domains
+/// that are not boxes.
 #[test]
 fn instance_files_cover_dimensions_1_to_4_and_both_verdicts() {
     let dir = concat!(env!("CARGO_MANIFEST_DIR"), "/instances");
@@ -163,6 +240,7 @@ fn instance_files_cover_dimensions_1_to_4_and_both_verdicts() {
     let mut topical_verdicts = BTreeSet::new();
     let (mut unequal, mut one_point, mut count) = (false, false, 0);
     let (mut topical_brute, mut topical_one_point) = (false, false);
+    let mut point_sets = 0;
     for entry in std::fs::read_dir(dir).expect("instances/") {
         let path = entry.unwrap().path();
         if path.extension().is_none_or(|x| x != "json") {
@@ -172,6 +250,10 @@ fn instance_files_cover_dimensions_1_to_4_and_both_verdicts() {
         let inst = parse(&name, &std::fs::read_to_string(&path).unwrap());
         let b = &inst.q.bounds;
         count += 1;
+        if inst.points.is_some() {
+            point_sets += 1;
+            continue;
+        }
         if inst.class == MapClass::Topical {
             topical_verdicts.insert(inst.expect.word());
             topical_brute |= inst.source.starts_with("brute force");
@@ -183,7 +265,8 @@ fn instance_files_cover_dimensions_1_to_4_and_both_verdicts() {
         unequal |= b.windows(2).any(|w| w[0].1 - w[0].0 != w[1].1 - w[1].0);
         one_point |= b.iter().any(|(lo, hi)| lo == hi);
     }
-    assert!((15..=40).contains(&count), "{count} instance files");
+    assert!((15..=50).contains(&count), "{count} instance files");
+    assert!(point_sets >= 4, "{point_sets} point-set instances");
     assert_eq!(dims, (1..=4).collect(), "dimensions covered");
     assert_eq!(verdicts.len(), 2, "{verdicts:?}");
     assert!(

@@ -262,8 +262,20 @@ impl Report {
                 }
             );
         }
-        if let Some(check) = &self.check {
-            let _ = writeln!(s, "check        passed: {check}");
+        match (&self.check, &self.map_check) {
+            // Full map: the orbit's points lie in D (the map check says so);
+            // the cycle check confirms the distances, as they must be.
+            (Some(c), Some(_)) => {
+                let _ = writeln!(
+                    s,
+                    "check        passed: {} distinct points of D, all {} distances along the cycle preserved",
+                    c.period, c.pairs_checked
+                );
+            }
+            (Some(check), None) => {
+                let _ = writeln!(s, "check        passed: {check}");
+            }
+            _ => {}
         }
         if let Some(mc) = &self.map_check {
             let _ = writeln!(s, "map check    passed: {mc}");

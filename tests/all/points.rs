@@ -618,6 +618,9 @@ fn bad_point_files_and_flag_mixes_are_one_line_errors() {
         .error_with(&["period 6 is not between 1 and the 5 points of D"]);
     decide_points(&dir, &file, 3, &["--formulation", "cycle"])
         .error_with(&["--formulation cycle answers the question only on boxes"]);
+    decide_points(&dir, &file, 2, &["--class", "topical"]).error_with(&[
+        "the full-map formulation (and so --points) encodes nonexpansive maps D → D only",
+    ]);
     decide_points(&dir, &file, 1, &["--grid=0..1"]).error_with(&["--grid"]);
 }
 

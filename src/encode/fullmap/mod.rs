@@ -231,6 +231,87 @@ mod tests {
         assert_eq!(e.families, estimate(&q, &e.options));
     }
 
+    /// The model of `enc` that describes the map `f` (image indices) with the
+    /// orbit `orbit` (point indices), `fm-rotate`'s chain filled in.
+    fn model_of(enc: &Encoding, f: &[usize], orbit: &[usize]) -> Vec<bool> {
+        let pts = enc.question.domain().points().to_vec();
+        let at = |z: &[i64]| pts.iter().position(|w| w.as_slice() == z).unwrap();
+        let mut rotate_index = 0usize;
+        enc.map
+            .iter()
+            .map(|(_, m)| match m {
+                Meaning::Map { z, w } => f[at(z)] == at(w),
+                Meaning::At { i, z } => orbit[*i] == at(z),
+                Meaning::Aux { family, .. } if family == symmetry::ROTATE => {
+                    // Registered for w = 1..N−1 in order: a(w) ⇔ index of x_0 ≥ w.
+                    rotate_index += 1;
+                    orbit[0] >= rotate_index
+                }
+                other => panic!("unexpected variable {other}"),
+            })
+            .collect()
+    }
+
+    #[test]
+    fn every_brute_force_solution_has_an_image_that_satisfies_every_break() {
+        // The soundness argument of encodings/full-map.md §5, checked by
+        // exhaustion: for every nonexpansive self-map f and every periodic
+        // orbit of f, some isometry σ of D and some rotation give a model of
+        // the CNF with all breaks (σ∘f∘σ⁻¹ with the orbit σ(x_r), σ(x_{r+1}), …).
+        for text in [
+            "-2 -2\n-2 2\n2 -2\n2 2\n0 1\n",
+            "0 0\n1 0\n-1 0\n0 1\n0 -1\n",
+            "0 0\n0 1\n1 0\n1 1\n",
+        ] {
+            let d = PointSet::parse(text, "t").unwrap();
+            let group = d.isometries(u128::MAX).unwrap();
+            assert!(group.len() > 1, "{d}");
+            let n = d.len();
+            let mut encodings = Vec::new();
+            for p in 1..=n {
+                let q = Question::on_points(d.clone(), p).unwrap();
+                let e = crate::encode::encode(&q, &EncodeOptions::default(), u64::MAX).unwrap();
+                assert!(e.options.symmetry.isometry && e.options.symmetry.rotate == (p >= 2));
+                encodings.push(e);
+            }
+            let mut checked = 0;
+            crate::brute::each_nonexpansive_map(d.points(), |f| {
+                'starts: for start in 0..n {
+                    let mut orbit = vec![start];
+                    while f[*orbit.last().unwrap()] != start {
+                        orbit.push(f[*orbit.last().unwrap()]);
+                        if orbit.len() > n {
+                            continue 'starts; // start is not periodic
+                        }
+                    }
+                    let enc = &encodings[orbit.len() - 1];
+                    let satisfied = group.iter().any(|s| {
+                        // σ as a permutation of indices, and its inverse.
+                        let mut inv = vec![0; n];
+                        for (a, &b) in s.iter().enumerate() {
+                            inv[b] = a;
+                        }
+                        let g: Vec<usize> = (0..n).map(|z| s[f[inv[z]]]).collect();
+                        (0..orbit.len()).any(|r| {
+                            let o: Vec<usize> = (0..orbit.len())
+                                .map(|i| s[orbit[(r + i) % orbit.len()]])
+                                .collect();
+                            let model = model_of(enc, &g, &o);
+                            enc.cnf.clauses().all(|c| c.iter().any(|l| l.holds(&model)))
+                        })
+                    });
+                    assert!(
+                        satisfied,
+                        "{d}: f = {f:?}, orbit {orbit:?} has no surviving image"
+                    );
+                    checked += 1;
+                }
+                false
+            });
+            assert!(checked > n, "{d}: {checked} solutions checked");
+        }
+    }
+
     #[test]
     fn estimate_is_exact_on_boxes_and_sets() {
         let mut qs = vec![corners_plus_one()];

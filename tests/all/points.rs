@@ -686,3 +686,50 @@ fn spectrum_of_a_point_set_matches_brute_force_and_reuses_its_store() {
         .stdout_has("spectrum     D = {(0,1), (1,2), (1,3), (3,0), (3,1), (3,2)}")
         .stdout_has("the unit-cube construction needs a box");
 }
+
+#[test]
+fn external_solvers_answer_point_questions_through_encode_and_decode() {
+    // CaDiCaL and PicoSAT (Debian packages; see tests/all/external.rs for the
+    // skip rule) solve the CNF that encode writes; decode checks the model
+    // against every clause and the decoded map on all of D. Verdicts: brute
+    // force over all maps (brute::find_map).
+    let dir = TestDir::new();
+    for (name, set) in [("pier", PIER), ("jetties", JETTIES)] {
+        let pts = owned(set);
+        let file = write_points(&dir, &format!("{name}.txt"), &pts);
+        for p in 2..=4 {
+            let expect = brute::find_map(&pts, p).is_some();
+            let cnf = format!("{name}{p}.cnf");
+            dir.orbitcnf()
+                .args([
+                    "encode",
+                    "--points",
+                    &file,
+                    "-p",
+                    &p.to_string(),
+                    "-o",
+                    &cnf,
+                ])
+                .run()
+                .code(0);
+            for solver in ["cadical", "picosat"] {
+                if !crate::util::have_tool(solver) {
+                    continue;
+                }
+                let run = dir.program(solver).arg(&cnf).run();
+                let code = if expect { FEASIBLE } else { INFEASIBLE };
+                run.code(code);
+                dir.write("out.txt", &run.stdout);
+                let decoded = dir
+                    .orbitcnf()
+                    .args(["decode", &cnf, "out.txt", "--json"])
+                    .run();
+                if expect {
+                    assert_feasible_report(&decoded, &pts, p);
+                } else {
+                    decoded.code(INFEASIBLE);
+                }
+            }
+        }
+    }
+}

@@ -223,7 +223,8 @@ struct EncodingArgs {
     #[arg(long, value_name = "LIST", default_value = "all")]
     symmetry: String,
     /// Leave out the redundant occupancy count (on by default; it lets the
-    /// solver refute "p points in fewer than p places" quickly).
+    /// solver refute "p points in fewer than p places" quickly). In the
+    /// full-map formulation: leave out the redundant orbit distance profile.
     #[arg(long)]
     no_count: bool,
     /// Leave out the redundant packing bound (on by default; it refutes

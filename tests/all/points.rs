@@ -168,16 +168,22 @@ fn decide_checked(q: &Question, options: &EncodeOptions, certify: bool, context:
     report
 }
 
-/// The full-map verdicts on D for p = 1..|D|, with the default and the plain options.
+/// The full-map verdicts on D for p = 1..|D|, with the default, no breaks, and the plain options.
 fn full_map_periods(pts: &[Vec<i64>], name: &str) -> Vec<usize> {
     let d = point_set(pts);
     let mut feasible = Vec::new();
     for p in 1..=d.len() {
         let q = Question::on_points(d.clone(), p).unwrap();
         let mut verdicts = Vec::new();
-        for symmetry in [Symmetry::ALL, Symmetry::NONE] {
+        // Default; no symmetry breaking; and plain (no breaks, no orbit-profile).
+        for (symmetry, count) in [
+            (Symmetry::ALL, true),
+            (Symmetry::NONE, true),
+            (Symmetry::NONE, false),
+        ] {
             let options = EncodeOptions {
                 symmetry,
+                count,
                 ..EncodeOptions::full_map()
             };
             let r = decide_checked(&q, &options, false, &format!("{name}, p = {p}"));

@@ -17,6 +17,8 @@
 //! - `orbit-place` ([`orbit`]): exactly one point per position, at most one
 //!   position per point;
 //! - `orbit-step` ([`orbit`]): o(i,z) ∧ m(z,w) → o(i+1 mod p, w);
+//! - `orbit-profile` ([`profile`]): optional, redundant: the orbit is an
+//!   isometric cycle (on with the option `count`);
 //! - `fm-rotate`, `fm-isometry` ([`symmetry`]): optional breaks.
 //!
 //! **Why exact.** A model gives a function f (map-choice) that expands no
@@ -29,6 +31,7 @@
 
 pub mod map;
 pub mod orbit;
+pub mod profile;
 pub mod symmetry;
 
 use crate::cnf::{FamilyCount, Var};
@@ -84,8 +87,9 @@ impl Domain {
     }
 }
 
-/// The options as they apply to the full-map formulation of `q`: the
-/// cycle-only families (count, packing, classes and the symmetry steps other than
+/// The options as they apply to the full-map formulation of `q`: `count`
+/// switches the redundant `orbit-profile` (which needs `p ≥ 2`); the
+/// cycle-only families (packing, classes and the symmetry steps other than
 /// `rotate` and `isometry`) are off; `rotate` needs `p ≥ 2`, `isometry` a
 /// nontrivial, computable isometry group.
 pub fn resolve(options: &EncodeOptions, q: &Question) -> EncodeOptions {
@@ -101,7 +105,7 @@ pub fn resolve(options: &EncodeOptions, q: &Question) -> EncodeOptions {
             isometry,
             ..Symmetry::NONE
         },
-        count: false,
+        count: options.count && q.period >= 2,
         packing: false,
         classes: false,
     }
@@ -116,6 +120,9 @@ pub fn estimate(q: &Question, o: &EncodeOptions) -> Vec<FamilyCount> {
         orbit::count_place(&dom, q.period),
         orbit::count_step(&dom, q.period),
     ];
+    if o.count {
+        out.push(profile::count(&dom, q.period));
+    }
     if o.symmetry.rotate {
         out.push(symmetry::count_rotate(&dom, q.period));
     }
@@ -146,6 +153,9 @@ pub fn encode(q: &Question, o: &EncodeOptions, max_clauses: u64) -> Result<Encod
     enc.family(orbit::FAMILY_STEP, |e| {
         orbit::add_step(e, &dom, p, &m, &o_vars)
     });
+    if o.count {
+        enc.family(profile::FAMILY, |e| profile::add(e, &dom, p, &o_vars));
+    }
     if o.symmetry.rotate {
         enc.family(symmetry::ROTATE, |e| {
             symmetry::add_rotate(e, &dom, p, &o_vars)
@@ -221,6 +231,9 @@ mod tests {
                 ("orbit-place", 20, 74),
                 // p·N² = 100.
                 ("orbit-step", 0, 100),
+                // K = 2, L = 4: K·(L − 1) vars; K·(L − 2) + C(p,2)·Σ_{z≠z'}([d ≥ 2] + [d < L])
+                // = 4 + 6·(4·2 + 4·2 + 12·1) = 4 + 168.
+                ("orbit-profile", 6, 172),
                 // N − 1 vars; (N − 1) + (N − 2) + (p − 1)·N = 4 + 3 + 15.
                 ("fm-rotate", 4, 22),
                 // The reflection x ↦ −x pairs the corners: 5 − 3 classes.
@@ -232,7 +245,8 @@ mod tests {
     }
 
     /// The model of `enc` that describes the map `f` (image indices) with the
-    /// orbit `orbit` (point indices), `fm-rotate`'s chain filled in.
+    /// orbit `orbit` (point indices), the orbit's profile and `fm-rotate`'s
+    /// chain filled in.
     fn model_of(enc: &Encoding, f: &[usize], orbit: &[usize]) -> Vec<bool> {
         let pts = enc.question.domain().points().to_vec();
         let at = |z: &[i64]| pts.iter().position(|w| w.as_slice() == z).unwrap();
@@ -242,6 +256,10 @@ mod tests {
             .map(|(_, m)| match m {
                 Meaning::Map { z, w } => f[at(z)] == at(w),
                 Meaning::At { i, z } => orbit[*i] == at(z),
+                // g(k) ≥ t for the orbit's profile g(k) = d(x_0, x_k).
+                Meaning::Profile { k, value } => {
+                    crate::grid::sup_dist(&pts[orbit[0]], &pts[orbit[*k]]) >= *value
+                }
                 Meaning::Aux { family, .. } if family == symmetry::ROTATE => {
                     // Registered for w = 1..N−1 in order: a(w) ⇔ index of x_0 ≥ w.
                     rotate_index += 1;

@@ -26,9 +26,10 @@ use std::path::Path;
 use crate::error::{Error, Result};
 use crate::grid::{Grid, MAX_COORD, MAX_DIM, Point};
 
-/// Largest number of points accepted in a file; the full-map CNF grows like
-/// `|D|^4`, so sets near this size are refused by the clause limit anyway.
-pub const MAX_POINTS: usize = 10_000;
+/// Largest number of points accepted; the full-map CNF grows like `|D|^4`,
+/// so sets near this size are refused by the clause limit anyway, and the
+/// `|D|²` distance table stays small even when that limit is lifted.
+pub const MAX_POINTS: usize = 2_000;
 
 /// A nonempty finite set of distinct points of Z^n, in lexicographic order.
 #[derive(Clone, Debug, PartialEq, Eq, Hash)]
@@ -165,7 +166,10 @@ impl PointSet {
     /// signed permutations times points to try (`n!·2^n·|D|`).
     pub fn isometries(&self, limit: u128) -> Option<Vec<Vec<usize>>> {
         let n = self.dim();
-        let candidates = (1..=n as u128).product::<u128>() << n;
+        // n!·2^n, saturating: MAX_DIM = 64 would overflow u128.
+        let candidates = (1..=n as u128)
+            .fold(1u128, |acc, k| acc.saturating_mul(k))
+            .saturating_mul(1u128 << n.min(127));
         if candidates.saturating_mul(self.len() as u128) > limit {
             return None;
         }
@@ -476,6 +480,8 @@ mod tests {
         );
         assert!(msg("[[0,1]").contains("not closed"));
         assert!(msg("0 0\n5000000000 0\n").starts_with("d.txt:2: coordinate 5000000000"));
+        let many: String = (0..=MAX_POINTS).map(|i| format!("{i}\n")).collect();
+        assert!(msg(&many).contains("2001 points exceed the supported maximum 2000"));
     }
 
     #[test]
@@ -491,5 +497,8 @@ mod tests {
         let l = PointSet::parse("10 10\n10 11\n11 10\n", "l").unwrap();
         assert_eq!(l.isometries(u128::MAX).unwrap().len(), 2);
         assert!(l.isometries(3).is_none());
+        // In dimension 40 the n!·2^n candidates are far too many: refused, no overflow.
+        let wide = PointSet::new(vec![vec![0; 40], vec![1; 40]]).unwrap();
+        assert!(wide.isometries(u128::MAX / 2).is_none());
     }
 }

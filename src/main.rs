@@ -684,6 +684,9 @@ fn bench(a: BenchArgs) -> Result<u8, Error> {
 fn check(a: CheckArgs) -> Result<u8, Error> {
     let text = std::fs::read_to_string(&a.orbit).map_err(|e| Error::io(&a.orbit, e))?;
     let f = orbit_file::parse(&text, &a.orbit.display().to_string())?;
+    if let Some(points) = &f.points {
+        return check_on_points(&a, &f, points);
+    }
     let class = a.class.unwrap_or(f.class);
     let topical = class == MapClass::Topical;
     let bounds = f.grid.ranges();
@@ -730,32 +733,93 @@ fn check(a: CheckArgs) -> Result<u8, Error> {
             json["map_check"] = serde_json::to_value(&map_check).expect("serialises");
             (table, "f_c(x) = clamp(min_j (x_{j+1,c} + ‖x − x_j‖∞))")
         };
-        let entries: Vec<serde_json::Value> = table
-            .entries
-            .iter()
-            .map(|(z, fz)| serde_json::json!({"x": z, "f": fz}))
-            .collect();
-        match &a.map_out {
-            Some(path) => {
-                let doc = serde_json::json!({"grid": f.grid.spec(), "map": entries});
-                dimacs::write_atomically(path, (doc.to_string() + "\n").as_bytes())?;
-                text.push_str(&format!("map          written to {}\n", path.display()));
-            }
-            None => {
-                json["map"] = serde_json::Value::Array(entries);
-                text.push_str(&format!("map          x -> f(x), {formula}\n"));
-                for (z, fz) in &table.entries {
-                    text.push_str(&format!("             {z:?} -> {fz:?}\n"));
-                }
-            }
-        }
+        let doc = serde_json::json!({"grid": f.grid.spec()});
+        show_map(&a, &table.entries, doc, formula, &mut json, &mut text)?;
     }
-    print(&if a.json {
+    print_check(a.json, &json, text)
+}
+
+/// Prints `check`'s findings: the JSON object with `--json`, else the text.
+fn print_check(as_json: bool, json: &serde_json::Value, text: String) -> Result<u8, Error> {
+    print(&if as_json {
         json.to_string() + "\n"
     } else {
         text
     })?;
     Ok(0)
+}
+
+/// The `--map` output of `check`: the table `(x, f(x))` written to
+/// `--map-out` as `doc` plus `"map"`, or added to the JSON and the text.
+fn show_map(
+    a: &CheckArgs,
+    map: &[(Vec<i64>, Vec<i64>)],
+    mut doc: serde_json::Value,
+    formula: &str,
+    json: &mut serde_json::Value,
+    text: &mut String,
+) -> Result<(), Error> {
+    let entries: Vec<serde_json::Value> = map
+        .iter()
+        .map(|(z, fz)| serde_json::json!({"x": z, "f": fz}))
+        .collect();
+    match &a.map_out {
+        Some(path) => {
+            doc["map"] = serde_json::Value::Array(entries);
+            dimacs::write_atomically(path, (doc.to_string() + "\n").as_bytes())?;
+            text.push_str(&format!("map          written to {}\n", path.display()));
+        }
+        None => {
+            json["map"] = serde_json::Value::Array(entries);
+            text.push_str(&format!("map          x -> f(x), {formula}\n"));
+            for (z, fz) in map {
+                text.push_str(&format!("             {z:?} -> {fz:?}\n"));
+            }
+        }
+    }
+    Ok(())
+}
+
+/// `check` for an orbit on a point set: the file must carry the map, which
+/// is checked on all of D (the box extension does not apply off boxes).
+fn check_on_points(
+    a: &CheckArgs,
+    f: &orbit_file::OrbitFile,
+    points: &[Vec<i64>],
+) -> Result<u8, Error> {
+    let name = a.orbit.display().to_string();
+    let map = f.map.as_ref().ok_or_else(|| {
+        Error::parse(
+            &name,
+            0,
+            "an orbit on a point set is checked with its map, and the file has no \"map\" \
+             (the report of decide --points --json has one)",
+        )
+    })?;
+    let map_check = verify::check_self_map(points, map, &f.orbit)?;
+    let orbit_check = verify::check_orbit(f.grid.ranges(), &f.orbit)?;
+    let mut json = serde_json::json!({
+        "grid": f.grid.spec(),
+        "points": points,
+        "period": f.orbit.len(),
+        "orbit_check": orbit_check,
+        "map_check": map_check,
+    });
+    let mut text = format!(
+        "domain       {} points of Z^{} (bounding box {})\norbit check  passed: {} distinct points of D, \
+         all {} distances along the cycle preserved\nprofile      {:?}\nmap check    passed: {map_check}\n",
+        points.len(),
+        f.grid.dim(),
+        f.grid,
+        orbit_check.period,
+        orbit_check.pairs_checked,
+        orbit_check.profile
+    );
+    if a.map {
+        let doc = serde_json::json!({"points": points});
+        show_map(a, map, doc, "as given in the file", &mut json, &mut text)?;
+    }
+    print_check(a.json, &json, text)
 }
 
 const SPECTRUM_HELP: &str = "\

@@ -5,7 +5,9 @@
 //! (`"dim"` optional, for a grid given as one range), and the report printed
 //! by `decide --json`, whose `question` holds `dim` and `grid`. Either may
 //! name the map class (`"class": "topical"`); without it the orbit is read
-//! as one of a nonexpansive map.
+//! as one of a nonexpansive map. A report on a point set (`decide --points
+//! --json`) also carries the points of D (`question.points`) and the whole
+//! map (`map`, `[[z, f(z)], …]`), which `check` then verifies on D.
 
 use serde_json::Value;
 
@@ -22,6 +24,10 @@ pub struct OrbitFile {
     pub orbit: Vec<Point>,
     /// The class of maps the orbit belongs to.
     pub class: MapClass,
+    /// The points of D, when the orbit lives on a point set.
+    pub points: Option<Vec<Point>>,
+    /// The map `(z, f(z))` on D, when the file gives one.
+    pub map: Option<Vec<(Point, Point)>>,
 }
 
 /// Parses an orbit file's text; `path` names it in errors.
@@ -75,7 +81,27 @@ pub fn parse(text: &str, path: &str) -> Result<OrbitFile> {
         }
         orbit.push(x);
     }
-    Ok(OrbitFile { grid, orbit, class })
+    let points = match holder.get("points") {
+        None | Some(Value::Null) => None,
+        Some(list) => Some(
+            serde_json::from_value::<Vec<Point>>(list.clone())
+                .map_err(|e| bad(format!("\"points\" must be a list of integer points: {e}")))?,
+        ),
+    };
+    let map = match v.get("map") {
+        None | Some(Value::Null) => None,
+        Some(list) => Some(
+            serde_json::from_value::<Vec<(Point, Point)>>(list.clone())
+                .map_err(|e| bad(format!("\"map\" must be a list of [z, f(z)] pairs: {e}")))?,
+        ),
+    };
+    Ok(OrbitFile {
+        grid,
+        orbit,
+        class,
+        points,
+        map,
+    })
 }
 
 /// The plain JSON form of an orbit file; the class is written only when it

@@ -739,3 +739,38 @@ fn external_solvers_answer_point_questions_through_encode_and_decode() {
         }
     }
 }
+
+#[test]
+fn check_verifies_the_map_of_a_point_set_report() {
+    let dir = TestDir::new();
+    let pts = owned(JETTIES);
+    let file = write_points(&dir, "jetties.txt", &pts);
+    let report = decide_points(&dir, &file, 4, &["--json"]);
+    assert_feasible_report(&report, &pts, 4);
+    dir.write("r.json", &report.stdout);
+    dir.orbitcnf()
+        .args(["check", "r.json"])
+        .run()
+        .code(0)
+        .stdout_has("map check    passed: maps all 6 points of D into D");
+    // x_0 sent to itself: not the shift (and, here, a stretched pair, which
+    // the check meets first).
+    let mut v = report.json();
+    let x0 = v["orbit"][0].clone();
+    for e in v["map"].as_array_mut().unwrap() {
+        if e[0] == x0 {
+            e[1] = x0.clone();
+        }
+    }
+    dir.write("bad.json", v.to_string());
+    dir.orbitcnf()
+        .args(["check", "bad.json"])
+        .run()
+        .error_with(&["check failed"]);
+    v.as_object_mut().unwrap().remove("map");
+    dir.write("nomap.json", v.to_string());
+    dir.orbitcnf()
+        .args(["check", "nomap.json"])
+        .run()
+        .error_with(&["checked with its map", "has no \"map\""]);
+}

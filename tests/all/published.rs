@@ -266,3 +266,40 @@ fn a_four_dimensional_box_with_a_one_point_side_has_the_periods_of_n3() {
     assert_decides(&dir, &Q::boxed(&b, 8), Expect::Feasible);
     assert_decides(&dir, &Q::boxed(&b, 9), Expect::Infeasible);
 }
+
+// ------------------------------------------------ n = 4
+
+/// {−1,0,1}^4, the prime periods between 2^4 and the bound 32: a prime
+/// period is at most 2^n (R. Lyons and R. D. Nussbaum 1992; proof in B.
+/// Lemmens and R. D. Nussbaum, Nonlinear Perron–Frobenius Theory, 2012
+/// [recalled]). Each refutation comes with a checked LRAT proof.
+#[test]
+fn n4_prime_periods_above_16_are_infeasible_on_minus1_0_1_cube() {
+    let dir = TestDir::new();
+    for p in [17, 19, 23, 29, 31] {
+        assert_decides(&dir, &Q::cube(-1, 1, 4, p), Expect::Infeasible);
+    }
+}
+
+/// {−1,0,1}^4 above the bound max_k 2^k·C(4,k) = 32 (Lemmens and Scheutzow
+/// 2005 [paper]): a sample here, every p = 33..81 in the ignored test below.
+#[test]
+fn n4_periods_above_the_bound_are_infeasible_on_minus1_0_1_cube() {
+    let dir = TestDir::new();
+    assert_eq!(ls_bound(4), 32);
+    for p in [33, 48, 81] {
+        assert_decides(&dir, &Q::cube(-1, 1, 4, p), Expect::Infeasible);
+    }
+}
+
+/// Every p = 33..81 on {−1,0,1}^4 (Lemmens and Scheutzow 2005 [paper]);
+/// about two minutes of solving on 2 cores, so run on purpose:
+/// `cargo test --release -- --ignored every_n4_period_above`.
+#[test]
+#[ignore]
+fn every_n4_period_above_the_bound_is_infeasible_on_minus1_0_1_cube() {
+    let dir = TestDir::new();
+    for p in ls_bound(4) + 1..=81 {
+        assert_decides(&dir, &Q::cube(-1, 1, 4, p), Expect::Infeasible);
+    }
+}

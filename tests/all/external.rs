@@ -149,7 +149,8 @@ fn cadical_with_a_time_limit_decodes_to_unknown() {
 /// breaking (`--symmetry none`): the verdicts then rest on neither varisat
 /// nor the symmetry arguments of `encodings/symmetry.md`. CaDiCaL's DRAT
 /// proof goes through `rate` to LRAT and orbitcnf's checker. Minutes per
-/// period (65 s to 5 min each on 2 shared cores), so run on purpose:
+/// period (CaDiCaL alone took 42 s to 4.5 min for most, more than 5 min for
+/// p = 24, on 2 shared cores), so run on purpose:
 /// `cargo test --release -- --ignored composite_n4`.
 #[test]
 #[ignore]

@@ -306,7 +306,7 @@ pub const SPECTRUM_TARGET_SECONDS: f64 = 900.0;
 /// The figures of one timed spectrum.
 #[derive(Clone, Debug, Serialize)]
 pub struct SpectrumFigures {
-    /// The grid swept.
+    /// The grid swept, as `{-1,0,1}^4`.
     pub grid: String,
     /// The periods swept.
     pub periods: String,
@@ -335,6 +335,7 @@ pub struct SpectrumFigures {
 /// Pipeline errors of the sweep.
 pub fn run_spectrum(jobs: usize, limit: Duration) -> Result<SpectrumFigures> {
     let grid = Grid::parse("-1..1", Some(4)).expect("valid grid");
+    let shown = grid.to_string();
     let mut cfg = crate::spectrum::SweepConfig::new(grid);
     cfg.jobs = jobs.max(1);
     cfg.time_limit = Some(limit);
@@ -357,7 +358,7 @@ pub fn run_spectrum(jobs: usize, limit: Duration) -> Result<SpectrumFigures> {
         .map(|r| (r.period, r.seconds))
         .max_by(|a, b| a.1.total_cmp(&b.1));
     Ok(SpectrumFigures {
-        grid: sp.grid.clone(),
+        grid: shown,
         periods: crate::spectrum::ranges_words(&cfg.periods),
         jobs: cfg.jobs,
         seconds,

@@ -31,8 +31,11 @@ Exit codes (the SAT convention):
 /// distances ‖x_i − x_{i+k}‖∞ do not depend on i (an isometric cycle).
 /// With --class topical it asks instead for p distinct points of D forming an
 /// orbit of a topical map R^n → R^n: t(x_i, x_{i+k}) = max_c (x_{i,c} − x_{i+k,c})
-/// must not depend on i.
-/// orbitcnf encodes that as CNF, solves it, and checks every orbit it reports.
+/// must not depend on i. With --points FILE, D is any finite set of integer
+/// points, and the whole map f: D → D is encoded (a cycle of preserved
+/// distances need not extend to such a D).
+/// orbitcnf encodes that as CNF, solves it, and checks every orbit it
+/// reports; by default every "no" comes with a checked LRAT proof.
 #[derive(Parser, Debug)]
 #[command(name = "orbitcnf", version, after_help = EXIT_CODES, max_term_width = 100)]
 struct Cli {
@@ -65,8 +68,9 @@ enum Command {
     /// or the output of `decide --json`.
     Check(CheckArgs),
     /// Run the fixed benchmark set: each question under the default encoding,
-    /// `--symmetry none` and the plain reference encoding, with times,
-    /// conflicts and ratios printed in one table.
+    /// without the profile exclusions (`--no-classes`), `--symmetry none` and
+    /// the plain reference encoding, with times, conflicts and ratios printed
+    /// in one table; or, with --spectrum, time the whole {-1,0,1}^4 spectrum.
     Bench(BenchArgs),
     /// Check an LRAT proof of unsatisfiability against a CNF with orbitcnf's
     /// own checker (independent of the solver's). Exit 0 when accepted, 1

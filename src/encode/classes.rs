@@ -32,10 +32,11 @@
 //! profile spares the solver from finding them.
 //!
 //! `c_t(s)` is not computed as a number: [`classes_meet_at_least`] decides
-//! `c_t(s) ≥ ⌊W_t/d⌋ + 1` by a depth-first search over the points of each
-//! window that stops as soon as the windows met reach that bound. The search
-//! has a node budget; when it runs out the bound is taken as unproven and no
-//! clause is added, which keeps the family sound.
+//! `c_t(s) ≥ ⌊W_t/d⌋ + 1` by a search, in each window, over the unions of
+//! window sets smaller than that bound, asking whether one of them holds `s`
+//! points. The search has a budget of unions visited; when it runs out the
+//! bound is taken as unproven and no clause is added, which keeps the family
+//! sound.
 //!
 //! Variables: none. Clauses: one per pair `(t, d)`, `1 ≤ t < L` with
 //! `W_t ≤` [`packing::MAX_WINDOWS`], `d | p`, `d < p`, for which the search
@@ -51,7 +52,7 @@ use crate::question::Question;
 /// The family's label.
 pub const FAMILY: &str = "pack-classes";
 
-/// Nodes the window search may visit for one `(t, d)` before giving up.
+/// Unions the window search may visit for one `(t, d)` before giving up.
 const SEARCH_BUDGET: u64 = 2_000_000;
 
 /// The pairs `(t, d)` for which the family adds a clause.
@@ -118,8 +119,7 @@ pub fn classes_meet_at_least(sets: &[Vec<u32>], windows: u64, s: usize, need: u6
         if inside.len() < s {
             continue;
         }
-        let mut union = vec![0u64; words];
-        match fewer_exists(&masks, &inside, 0, s, need, &mut union, &mut budget) {
+        match fewer_exist(&masks, &inside, s, need, &mut budget) {
             Some(false) => {}
             Some(true) | None => return false,
         }
@@ -127,34 +127,41 @@ pub fn classes_meet_at_least(sets: &[Vec<u32>], windows: u64, s: usize, need: u6
     true
 }
 
-/// Depth-first: can `left` more points from `inside[from..]` be added to the
-/// current `union` keeping it below `need` windows? `None` when out of budget.
-fn fewer_exists(
+/// Is there a union `U` of fewer than `need` windows that contains the
+/// window sets of at least `s` of the points `inside`? The search runs over
+/// the unions themselves (a union is reached by adding the window set of one
+/// point not yet inside it) and visits each union once; many sets of points
+/// share a union, which is what keeps it small. Every set of points is
+/// found through its own union, whose partial unions are no larger, so the
+/// search is complete. `None` when it visits more than `budget` unions.
+fn fewer_exist(
     masks: &[Vec<u64>],
     inside: &[usize],
-    from: usize,
-    left: usize,
+    s: usize,
     need: u64,
-    union: &mut Vec<u64>,
     budget: &mut u64,
 ) -> Option<bool> {
-    if left == 0 {
-        return Some(true);
-    }
-    for idx in from..inside.len() {
-        if inside.len() - idx < left {
-            break;
-        }
+    let size = |u: &[u64]| -> u64 { u.iter().map(|w| u64::from(w.count_ones())).sum() };
+    let within = |m: &[u64], u: &[u64]| m.iter().zip(u).all(|(a, b)| a & !b == 0);
+    let start = vec![0u64; masks.first().map_or(0, Vec::len)];
+    let mut seen: std::collections::HashSet<Vec<u64>> = std::collections::HashSet::new();
+    let mut stack = vec![start.clone()];
+    seen.insert(start);
+    while let Some(u) = stack.pop() {
         *budget = budget.checked_sub(1)?;
-        let saved = union.clone();
-        for (u, m) in union.iter_mut().zip(&masks[inside[idx]]) {
-            *u |= m;
-        }
-        let size: u64 = union.iter().map(|w| u64::from(w.count_ones())).sum();
-        if size < need && fewer_exists(masks, inside, idx + 1, left - 1, need, union, budget)? {
+        let covered = inside.iter().filter(|&&z| within(&masks[z], &u)).count();
+        if covered >= s {
             return Some(true);
         }
-        *union = saved;
+        for &z in inside {
+            if within(&masks[z], &u) {
+                continue;
+            }
+            let next: Vec<u64> = u.iter().zip(&masks[z]).map(|(a, b)| a | b).collect();
+            if size(&next) < need && seen.insert(next.clone()) {
+                stack.push(next);
+            }
+        }
     }
     Some(false)
 }
@@ -202,6 +209,10 @@ mod tests {
         // p = 9 on {−1,0,1}^3: d = 1 and d = 3 (3 · 3 > 8).
         assert_eq!(ruled_out(&q("-1..1", 3, 9)), vec![(1, 1), (1, 3)]);
         assert_eq!(count(&q("-1..1", 4, 18)).clauses, 5);
+        // p = 33 on {−1,0,1}^5: d = 3 needs eleven points of a 32-point
+        // corner box meeting at most ten boxes, a search the union-based
+        // walk finishes and a walk over point sets did not.
+        assert_eq!(ruled_out(&q("-1..1", 5, 33)), vec![(1, 1), (1, 3), (1, 11)]);
     }
 
     #[test]

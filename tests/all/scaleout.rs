@@ -670,3 +670,41 @@ fn merge_rejects_a_tampered_split_and_a_tampered_proof() {
         .run()
         .error_with(&["cube-0001.cnf", "SHA-256"]);
 }
+
+/// {−1,0,1}^5 with p = 33, the first period above 2^5, split into 64 cubes,
+/// each refuted by CaDiCaL with a DRAT proof that `rate` and orbitcnf's
+/// checker accept, and merged with the coverage proof. No published answer
+/// is known to us; this replays the computation the README reports (about a
+/// minute on 2 cores), so run on purpose:
+/// `cargo test --release -- --ignored n5_period_33`.
+#[test]
+#[ignore]
+fn n5_period_33_is_refuted_by_certified_cubes() {
+    for tool in ["cadical", "rate"] {
+        assert!(have_tool(tool), "this check needs `{tool}` on PATH");
+    }
+    let dir = TestDir::new();
+    dir.orbitcnf()
+        .args(["split", "--dim", "5", "--grid=-1..1", "-p", "33"])
+        .args(["--cubes", "64", "--out", "t5"])
+        .run()
+        .code(0);
+    for i in 0..64 {
+        dir.orbitcnf()
+            .args([
+                "run-cube",
+                "t5",
+                &i.to_string(),
+                "--solver",
+                "external:cadical -q",
+            ])
+            .args(["--proof-arg", "{}"])
+            .run()
+            .code(0);
+    }
+    dir.orbitcnf()
+        .args(["merge", "t5"])
+        .run()
+        .code(INFEASIBLE)
+        .stdout_has("64 refuted with a re-checked LRAT proof, 0 on the solver's word only");
+}

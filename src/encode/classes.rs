@@ -32,7 +32,11 @@
 //! profile spares the solver from finding them.
 //!
 //! `c_t(s)` is not computed as a number: [`classes_meet_at_least`] decides
-//! `c_t(s) ≥ ⌊W_t/d⌋ + 1` by a search, in each window, over the unions of
+//! `c_t(s) ≥ ⌊W_t/d⌋ + 1` window by window. When the points of a window can
+//! each be given a distinct window containing them (a saturating matching),
+//! any `s` of them meet at least `s` windows, which settles the case
+//! `s ≥ ⌊W_t/d⌋ + 1` at once (on `{−1,0,1}^n` this is every `p > 2^n`).
+//! Otherwise a search, over the unions of
 //! window sets smaller than that bound, asking whether one of them holds `s`
 //! points. The search has a budget of unions visited; when it runs out the
 //! bound is taken as unproven and no clause is added, which keeps the family
@@ -119,12 +123,55 @@ pub fn classes_meet_at_least(sets: &[Vec<u32>], windows: u64, s: usize, need: u6
         if inside.len() < s {
             continue;
         }
+        if need > windows {
+            // Every union is smaller than `need`: s points here are too few windows.
+            return false;
+        }
+        if s as u64 >= need && saturating_matching(sets, &inside) {
+            // Each point has a window of its own, so any s of them meet at
+            // least s ≥ need windows (Hall's condition, read backwards).
+            continue;
+        }
         match fewer_exist(&masks, &inside, s, need, &mut budget) {
             Some(false) => {}
             Some(true) | None => return false,
         }
     }
     true
+}
+
+/// Whether the points `inside` can each be given a distinct window that
+/// contains them (a matching saturating them in the point–window incidence
+/// graph; Kuhn's augmenting paths). If so, any set of them meets at least as
+/// many windows as it has points. On `{−1,0,1}^n` with `t = 1` the point
+/// with zero set `Z` in the corner box of `v` gets the box of `v` flipped on
+/// `Z`, so this always succeeds there.
+fn saturating_matching(sets: &[Vec<u32>], inside: &[usize]) -> bool {
+    fn augment(
+        z: usize,
+        sets: &[Vec<u32>],
+        owner: &mut std::collections::HashMap<u32, usize>,
+        seen: &mut std::collections::HashSet<u32>,
+    ) -> bool {
+        for &w in &sets[z] {
+            if seen.insert(w) {
+                let free = match owner.get(&w) {
+                    None => true,
+                    Some(&other) => augment(other, sets, owner, seen),
+                };
+                if free {
+                    owner.insert(w, z);
+                    return true;
+                }
+            }
+        }
+        false
+    }
+    let mut owner = std::collections::HashMap::new();
+    inside.iter().all(|&z| {
+        let mut seen = std::collections::HashSet::new();
+        augment(z, sets, &mut owner, &mut seen)
+    })
 }
 
 /// Is there a union `U` of fewer than `need` windows that contains the
@@ -210,9 +257,15 @@ mod tests {
         assert_eq!(ruled_out(&q("-1..1", 3, 9)), vec![(1, 1), (1, 3)]);
         assert_eq!(count(&q("-1..1", 4, 18)).clauses, 5);
         // p = 33 on {−1,0,1}^5: d = 3 needs eleven points of a 32-point
-        // corner box meeting at most ten boxes, a search the union-based
-        // walk finishes and a walk over point sets did not.
+        // corner box meeting at most ten boxes; a plain walk over point sets
+        // ran out of budget here.
         assert_eq!(ruled_out(&q("-1..1", 5, 33)), vec![(1, 1), (1, 3), (1, 11)]);
+        // p = 70 on {−1,0,1}^6: every proper divisor, settled by matchings
+        // (a walk over unions alone runs out of budget for d = 1 and 2).
+        assert_eq!(
+            ruled_out(&q("-1..1", 6, 70)),
+            [1, 2, 5, 7, 10, 14, 35].map(|d| (1, d)).to_vec()
+        );
     }
 
     #[test]

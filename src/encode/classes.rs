@@ -56,7 +56,8 @@ use crate::question::Question;
 /// The family's label.
 pub const FAMILY: &str = "pack-classes";
 
-/// Unions the window search may visit for one `(t, d)` before giving up.
+/// Unions the window search may visit for one `(t, d)` before giving up,
+/// divided by the words (64 windows each) that one union takes.
 const SEARCH_BUDGET: u64 = 2_000_000;
 
 /// The pairs `(t, d)` for which the family adds a clause.
@@ -115,7 +116,9 @@ pub fn classes_meet_at_least(sets: &[Vec<u32>], windows: u64, s: usize, need: u6
             m
         })
         .collect();
-    let mut budget = SEARCH_BUDGET;
+    // The budget counts words of stored unions, so memory stays bounded
+    // (about 100 MB at most) however many windows the grid has.
+    let mut budget = SEARCH_BUDGET / words.max(1) as u64;
     for w0 in 0..windows as u32 {
         let inside: Vec<usize> = (0..sets.len())
             .filter(|&z| sets[z].binary_search(&w0).is_ok())

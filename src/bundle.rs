@@ -12,9 +12,9 @@
 use std::path::{Path, PathBuf};
 
 use serde::{Deserialize, Serialize};
-use sha2::{Digest, Sha256};
 
-use crate::dimacs::{self, VERSION, render_cnf, write_atomically};
+use crate::artifact::{FileEntry, sha256_hex, write_atomically};
+use crate::dimacs::{self, VERSION, render_cnf};
 use crate::encode::{EncodeOptions, encode};
 use crate::error::{Error, Result};
 use crate::orbit_file;
@@ -60,17 +60,6 @@ encodings/full-map.md §5, tested the same way; (3) for an infeasible answer, pr
 refutation of formula.cnf exactly, checked by orbitcnf's own checker; for a feasible answer, map.json \
 (the orbit and the whole map D → D) is checked directly, with no trust in the CNF at all.";
 
-/// One file of a bundle with its digest.
-#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
-pub struct FileEntry {
-    /// File name inside the bundle.
-    pub name: String,
-    /// Hex SHA-256 of its bytes.
-    pub sha256: String,
-    /// Its size.
-    pub bytes: u64,
-}
-
 /// The manifest of a bundle.
 #[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
 pub struct Manifest {
@@ -86,21 +75,6 @@ pub struct Manifest {
     pub files: Vec<FileEntry>,
     /// What each file establishes.
     pub trust: String,
-}
-
-fn sha256_hex(bytes: &[u8]) -> String {
-    Sha256::digest(bytes)
-        .iter()
-        .map(|b| format!("{b:02x}"))
-        .collect()
-}
-
-fn entry(name: &str, bytes: &[u8]) -> FileEntry {
-    FileEntry {
-        name: name.into(),
-        sha256: sha256_hex(bytes),
-        bytes: bytes.len() as u64,
-    }
 }
 
 fn read(path: &Path) -> Result<Vec<u8>> {
@@ -123,14 +97,14 @@ pub fn write_bundle(
     let enc = encode(q, options, u64::MAX)?;
     let cnf = render_cnf(&enc);
     write_atomically(&dir.join(FORMULA), &cnf)?;
-    let mut files = vec![entry(FORMULA, &cnf)];
+    let mut files = vec![FileEntry::of(FORMULA, &cnf)];
     let verdict = match evidence {
         Evidence::Proof(path) => {
             let bytes = read(path)?;
             if path != dir.join(PROOF) {
                 write_atomically(&dir.join(PROOF), &bytes)?;
             }
-            files.push(entry(PROOF, &bytes));
+            files.push(FileEntry::of(PROOF, &bytes));
             Verdict::Infeasible
         }
         Evidence::Map { orbit, map } => {
@@ -140,13 +114,13 @@ pub fn write_bundle(
             };
             let text = serde_json::to_string(&doc).expect("map file serialises") + "\n";
             write_atomically(&dir.join(MAP), text.as_bytes())?;
-            files.push(entry(MAP, text.as_bytes()));
+            files.push(FileEntry::of(MAP, text.as_bytes()));
             Verdict::Feasible
         }
         Evidence::Orbit(orbit) => {
             let text = orbit_file::to_json(&q.grid, q.class, orbit) + "\n";
             write_atomically(&dir.join(ORBIT), text.as_bytes())?;
-            files.push(entry(ORBIT, text.as_bytes()));
+            files.push(FileEntry::of(ORBIT, text.as_bytes()));
             Verdict::Feasible
         }
     };

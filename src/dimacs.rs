@@ -25,8 +25,8 @@
 use std::io::Write;
 use std::path::Path;
 
-use sha2::{Digest, Sha256};
 
+use crate::artifact::{sha256_hex, write_atomically};
 use crate::cnf::{Cnf, Lit, Var};
 use crate::encode::{EncodeOptions, Encoding};
 use crate::error::{Error, Result};
@@ -75,7 +75,7 @@ pub fn render_cnf(enc: &Encoding) -> Vec<u8> {
         }
         body.extend_from_slice(b"0\n");
     }
-    let digest = hex(&Sha256::digest(&body));
+    let digest = sha256_hex(&body);
     let mut out = Vec::with_capacity(body.len() + 80);
     let _ = writeln!(out, "{DIGEST_PREFIX}{digest}");
     out.extend_from_slice(&body);
@@ -95,67 +95,12 @@ fn itoa_buf() -> IntBuf {
     IntBuf(String::with_capacity(12))
 }
 
-fn hex(bytes: &[u8]) -> String {
-    bytes.iter().map(|b| format!("{b:02x}")).collect()
-}
-
 /// Writes `enc` to `path` (atomically: a temporary file renamed into place).
 ///
 /// # Errors
 /// [`Error::Io`] naming the path.
 pub fn write_cnf(enc: &Encoding, path: &Path) -> Result<()> {
     write_atomically(path, &render_cnf(enc))
-}
-
-/// Writes `bytes` to `path` through a temporary file in the same folder.
-///
-/// # Errors
-/// [`Error::Io`] naming the path.
-pub fn write_atomically(path: &Path, bytes: &[u8]) -> Result<()> {
-    let mut tmp = temp_beside(path)?;
-    tmp.write_all(bytes).map_err(|e| Error::io(path, e))?;
-    persist(tmp, path)?;
-    Ok(())
-}
-
-/// A temporary file in the folder of `path`, so that [`persist`] can rename
-/// it into place atomically. It is deleted if dropped unpersisted.
-///
-/// # Errors
-/// [`Error::Io`] naming the path.
-pub fn temp_beside(path: &Path) -> Result<tempfile::NamedTempFile> {
-    let dir = match path.parent() {
-        Some(d) if !d.as_os_str().is_empty() => d,
-        _ => Path::new("."),
-    };
-    tempfile::NamedTempFile::new_in(dir).map_err(|e| Error::io(path, e))
-}
-
-/// Syncs `tmp`, gives it the usual permissions and renames it to `path`;
-/// returns its size in bytes. Readers of `path` see the old file or the
-/// whole new one, never a part.
-///
-/// # Errors
-/// [`Error::Io`] naming the path.
-pub fn persist(tmp: tempfile::NamedTempFile, path: &Path) -> Result<u64> {
-    let file = tmp.as_file();
-    file.sync_all().map_err(|e| Error::io(path, e))?;
-    make_readable(file).map_err(|e| Error::io(path, e))?;
-    let bytes = file.metadata().map_err(|e| Error::io(path, e))?.len();
-    tmp.persist(path).map_err(|e| Error::io(path, e.error))?;
-    Ok(bytes)
-}
-
-/// Gives a file the usual permissions of a user's output (temporary files start private).
-pub fn make_readable(file: &std::fs::File) -> std::io::Result<()> {
-    #[cfg(unix)]
-    {
-        use std::os::unix::fs::PermissionsExt;
-        file.set_permissions(std::fs::Permissions::from_mode(0o644))?;
-    }
-    #[cfg(not(unix))]
-    let _ = file;
-    Ok(())
 }
 
 /// A CNF file read back, header and all.
@@ -281,7 +226,7 @@ pub fn parse_cnf_file(text: &str, path: &str) -> Result<CnfFile> {
              (write the file with 'orbitcnf encode')",
             )
         })?;
-    let got = hex(&Sha256::digest(body.as_bytes()));
+    let got = sha256_hex(body.as_bytes());
     if want.trim() != got {
         return Err(Error::parse(
             path,

@@ -23,14 +23,15 @@ pub enum Error {
     #[error("invalid question: {0}")]
     Question(String),
 
-    /// Encoding options that do not fit together.
-    #[error("invalid encoding options: {0}")]
+    /// Options that do not fit together or do not fit the question; the
+    /// message says which and why.
+    #[error("{0}")]
     Options(String),
 
     /// The CNF would exceed the configured size limit.
     #[error(
         "the CNF would be too large: about {} clauses over {} variables \
-         (limit {limit} clauses); raise --max-clauses if you mean it",
+         (the limit is {limit} clauses)",
         human(*clauses), human(*vars)
     )]
     TooLarge {
@@ -42,8 +43,9 @@ pub enum Error {
         limit: u64,
     },
 
-    /// A file could not be parsed; `line` is 1-based.
-    #[error("{path}:{line}: {reason}")]
+    /// A file could not be parsed; `line` is 1-based, 0 for the whole file
+    /// (then the message shows no line number).
+    #[error("{}: {reason}", at_line(path, *line))]
     Parse {
         /// The file (or a description of the stream).
         path: String,
@@ -65,7 +67,8 @@ pub enum Error {
 
     /// A solver's model falsifies a clause of the CNF it claims to satisfy.
     #[error(
-        "{path}:{line}: the model falsifies clause {index} ({clause}); the solver's answer is wrong"
+        "{}: the model falsifies clause {index} ({clause}); the solver's answer is wrong",
+        at_line(path, *line)
     )]
     ModelViolates {
         /// The CNF file (or `<memory>`).
@@ -123,6 +126,15 @@ pub enum Error {
     },
 }
 
+/// `path:line`, or `path` alone for line 0 (a problem of the whole file).
+fn at_line(path: &str, line: usize) -> String {
+    if line == 0 {
+        path.to_string()
+    } else {
+        format!("{path}:{line}")
+    }
+}
+
 /// A count for messages: exact below a trillion, in scientific notation above.
 fn human(n: u64) -> String {
     if n < 1_000_000_000_000 {
@@ -142,6 +154,11 @@ impl Error {
             path: path.into(),
             source,
         }
+    }
+
+    /// An [`Error::Parse`] about the whole file `path` (no line number).
+    pub fn file(path: impl Into<String>, reason: impl Into<String>) -> Error {
+        Error::parse(path, 0, reason)
     }
 
     /// An [`Error::Parse`] at `line` of `path`.

@@ -14,6 +14,7 @@
 // Index loops follow the mathematics (x_{i,c}, g(k)); iterator chains would hide the indices.
 #![allow(clippy::needless_range_loop)]
 
+pub mod artifact;
 pub mod bench;
 pub mod brute;
 pub mod bundle;

@@ -441,6 +441,10 @@ fn main() -> ExitCode {
         Ok(code) => ExitCode::from(code),
         Err(e) => {
             let mut msg = e.to_string();
+            // The library names no flags; the binary says which one helps.
+            if matches!(e, Error::TooLarge { .. }) {
+                msg.push_str("; raise --max-clauses if you mean it");
+            }
             let mut src = std::error::Error::source(&e);
             while let Some(s) = src {
                 let t = s.to_string();
@@ -770,7 +774,7 @@ fn show_map(
     match &a.map_out {
         Some(path) => {
             doc["map"] = serde_json::Value::Array(entries);
-            dimacs::write_atomically(path, (doc.to_string() + "\n").as_bytes())?;
+            orbitcnf::artifact::write_atomically(path, (doc.to_string() + "\n").as_bytes())?;
             text.push_str(&format!("map          written to {}\n", path.display()));
         }
         None => {
@@ -974,7 +978,7 @@ fn spectrum(a: SpectrumArgs) -> Result<u8, Error> {
     cfg.recheck = a.recheck;
     let s = spectrum::run(&cfg)?;
     if let Some(path) = &a.markdown {
-        dimacs::write_atomically(path, s.to_markdown().as_bytes())?;
+        orbitcnf::artifact::write_atomically(path, s.to_markdown().as_bytes())?;
     }
     print(&if a.json {
         s.to_json() + "\n"

@@ -472,7 +472,7 @@ mod tests {
             msg("0 1\n2 2\n0,1\n"),
             "d.txt:3: the point (0, 1) repeats the point on line 1; each point must be given once"
         );
-        assert!(msg("# nothing\n\n").starts_with("d.txt:0: no points"));
+        assert!(msg("# nothing\n\n").starts_with("d.txt: no points"));
         assert_eq!(msg("[[0,1],\n[2,x]]"), "d.txt:2: \"x\" is not an integer");
         assert_eq!(
             msg("[[0,1],\n[2]]"),

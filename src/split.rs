@@ -51,10 +51,11 @@ pub mod run;
 use std::path::Path;
 
 use serde::{Deserialize, Serialize};
-use sha2::{Digest, Sha256};
 
 use crate::cnf::{Cnf, FamilyCount, Lit};
-use crate::dimacs::{VERSION, render_cnf, write_atomically};
+pub use crate::artifact::FileEntry;
+use crate::artifact::{sha256_hex, write_atomically};
+use crate::dimacs::{VERSION, render_cnf};
 use crate::encode::{EncodeOptions, Encoding, encode, fullmap, profile, symmetry};
 use crate::error::{Error, Result};
 use crate::proof::{LratOptions, LratSummary, certify, check_lrat_with};
@@ -392,52 +393,6 @@ pub fn render_coverage(enc: &Encoding, cnf: &Cnf, cubes: &[Cube]) -> Vec<u8> {
     out
 }
 
-/// Hex SHA-256.
-pub fn sha256_hex(bytes: &[u8]) -> String {
-    Sha256::digest(bytes)
-        .iter()
-        .map(|b| format!("{b:02x}"))
-        .collect()
-}
-
-/// A file of a split with its digest.
-#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
-pub struct FileEntry {
-    /// Path relative to the split folder.
-    pub name: String,
-    /// Hex SHA-256 of its bytes.
-    pub sha256: String,
-    /// Its size.
-    pub bytes: u64,
-}
-
-impl FileEntry {
-    fn of(name: &str, bytes: &[u8]) -> FileEntry {
-        FileEntry {
-            name: name.into(),
-            sha256: sha256_hex(bytes),
-            bytes: bytes.len() as u64,
-        }
-    }
-
-    /// Reads the file under `dir` and checks its digest.
-    ///
-    /// # Errors
-    /// [`Error::Io`], or [`Error::Parse`] when the digest differs.
-    pub fn read_checked(&self, dir: &Path) -> Result<Vec<u8>> {
-        let path = dir.join(&self.name);
-        let bytes = std::fs::read(&path).map_err(|e| Error::io(&path, e))?;
-        if sha256_hex(&bytes) != self.sha256 {
-            return Err(Error::parse(
-                path.display().to_string(),
-                0,
-                format!("does not match its SHA-256 in {MANIFEST}"),
-            ));
-        }
-        Ok(bytes)
-    }
-}
-
 /// A cube as the manifest lists it.
 #[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
 pub struct CubeEntry {
@@ -721,13 +676,13 @@ pub fn verify_split(dir: &Path, m: &SplitManifest) -> Result<(Encoding, Cnf, Lra
         if sha256_hex(&render_cnf(&cube_encoding(&enc, &c.cube))) != c.file.sha256 {
             return Err(differs(&c.file.name));
         }
-        c.file.read_checked(dir)?;
+        c.file.read_checked(dir, MANIFEST)?;
     }
     let coverage = coverage_cnf(&enc, &cubes);
     if sha256_hex(&render_coverage(&enc, &coverage, &cubes)) != m.coverage.cnf.sha256 {
         return Err(differs(COVERAGE));
     }
-    let proof = m.coverage.proof.read_checked(dir)?;
+    let proof = m.coverage.proof.read_checked(dir, MANIFEST)?;
     let options = LratOptions {
         ids_follow_cnf: true,
         ..LratOptions::default()

@@ -43,14 +43,13 @@
 //! proofs under its own run id, so one run never replaces another's proof.
 
 use std::collections::BTreeMap;
-use std::io::Read;
 use std::path::{Path, PathBuf};
 use std::time::{SystemTime, UNIX_EPOCH};
 
 use serde::{Deserialize, Serialize};
-use sha2::{Digest, Sha256};
 
-use crate::dimacs::write_atomically;
+pub use crate::artifact::sha256_file;
+use crate::artifact::{sha256_hex, sync_dir, write_atomically};
 use crate::encode::{self, EncodeOptions};
 use crate::error::{Error, Result};
 use crate::grid::Point;
@@ -285,40 +284,14 @@ pub fn key(question: &QuestionRecord, resolved: &EncodeOptions) -> String {
         options: resolved,
         formulation: &resolved.formulation,
     };
-    let json = serde_json::to_vec(&input).expect("key input serialises");
-    let mut h = Sha256::new();
-    h.update(KEY_DOMAIN);
-    h.update(&json);
-    hex(&h.finalize())
+    let mut bytes = KEY_DOMAIN.to_vec();
+    bytes.extend(serde_json::to_vec(&input).expect("key input serialises"));
+    sha256_hex(&bytes)
 }
 
 /// The key of `q` under `options` as they resolve for `q`.
 pub fn key_for(q: &Question, options: &EncodeOptions) -> String {
     key(&q.record(), &options.resolve(q))
-}
-
-fn hex(bytes: &[u8]) -> String {
-    bytes.iter().map(|b| format!("{b:02x}")).collect()
-}
-
-/// Hex SHA-256 and size of a file, read in chunks.
-///
-/// # Errors
-/// [`Error::Io`] naming the file.
-pub fn sha256_file(path: &Path) -> Result<(String, u64)> {
-    let mut f = std::fs::File::open(path).map_err(|e| Error::io(path, e))?;
-    let mut h = Sha256::new();
-    let mut buf = vec![0u8; 1 << 20];
-    let mut total = 0u64;
-    loop {
-        let n = f.read(&mut buf).map_err(|e| Error::io(path, e))?;
-        if n == 0 {
-            break;
-        }
-        total += n as u64;
-        h.update(&buf[..n]);
-    }
-    Ok((hex(&h.finalize()), total))
 }
 
 /// `t` as UTC in RFC 3339 with milliseconds: `2025-01-31T23:59:59.123Z`.
@@ -421,6 +394,8 @@ impl Store {
         for sub in [ANSWERS_DIR, PROOFS_DIR] {
             let d = root.join(sub);
             std::fs::create_dir_all(&d).map_err(|e| Error::io(&d, e))?;
+            // Killed runs leave temporary answer and proof files behind.
+            crate::artifact::sweep_stale(&d, true);
         }
         let mut store = Store {
             root: root.to_path_buf(),
@@ -558,7 +533,7 @@ impl Store {
                 let path = self.resolve(rel);
                 let bytes = std::fs::read(&path).map_err(|e| Error::io(&path, e))?;
                 let want = a.proof.as_ref().and_then(|p| p.sha256.as_deref());
-                if want != Some(hex(&Sha256::digest(&bytes)).as_str()) {
+                if want != Some(sha256_hex(&bytes).as_str()) {
                     return Err(Error::parse(
                         file,
                         0,
@@ -673,17 +648,6 @@ fn read_answer(path: &Path) -> Result<Option<Answer>> {
         ));
     }
     Ok(Some(a))
-}
-
-/// Makes a rename in `dir` durable (best effort: not every platform can
-/// `fsync` a folder, and the answer is already complete without it).
-fn sync_dir(dir: &Path) {
-    #[cfg(unix)]
-    if let Ok(f) = std::fs::File::open(dir) {
-        let _ = f.sync_all();
-    }
-    #[cfg(not(unix))]
-    let _ = dir;
 }
 
 #[cfg(test)]

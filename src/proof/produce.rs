@@ -233,8 +233,8 @@ pub fn solve_with_proofs(
     drat: Option<&Path>,
     time_limit: Option<Duration>,
 ) -> Result<ProofOutcome> {
-    let lrat_tmp = lrat.map(crate::dimacs::temp_beside).transpose()?;
-    let drat_tmp = drat.map(crate::dimacs::temp_beside).transpose()?;
+    let lrat_tmp = lrat.map(crate::artifact::temp_beside).transpose()?;
+    let drat_tmp = drat.map(crate::artifact::temp_beside).transpose()?;
     let mut lrat_file = lrat_tmp.as_ref().map(|t| t.as_file());
     let mut drat_file = drat_tmp.as_ref().map(|t| t.as_file());
     let sinks = ProofSinks {
@@ -251,7 +251,7 @@ pub fn solve_with_proofs(
     }
     for (tmp, path) in [(lrat_tmp, lrat), (drat_tmp, drat)] {
         if let (Some(tmp), Some(path)) = (tmp, path) {
-            crate::dimacs::persist(tmp, path)?;
+            crate::artifact::persist(tmp, path)?;
         }
     }
     Ok(out)

@@ -618,7 +618,7 @@ impl External {
         let keep_raw = |bytes: &[u8]| -> Result<Option<(PathBuf, u64)>> {
             match &req.keep_raw {
                 Some(p) => {
-                    dimacs::write_atomically(p, bytes)?;
+                    crate::artifact::write_atomically(p, bytes)?;
                     Ok(Some((p.clone(), bytes.len() as u64)))
                 }
                 None => Ok(None),
@@ -680,7 +680,7 @@ impl External {
         })?;
         let check_seconds = t.elapsed().as_secs_f64();
         if let Some(p) = &req.keep_lrat {
-            dimacs::write_atomically(p, &lrat)?;
+            crate::artifact::write_atomically(p, &lrat)?;
         }
         let kept = keep_raw(&raw_bytes)?;
         Ok(SolveResult {

@@ -28,7 +28,7 @@ use std::time::{Duration, Instant};
 use super::{Cube, coverage_cnf, coverage_sources, cubes as make_cubes, lift, refute_coverage};
 use crate::cnf::Cnf;
 use crate::decide::witness;
-use crate::dimacs::write_atomically;
+use crate::artifact::write_atomically;
 use crate::encode::{EncodeOptions, encode};
 use crate::error::{Error, Result};
 use crate::proof::{LratOptions, ProofSinks, check_lrat_with, solve_with_proof_sinks};

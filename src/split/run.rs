@@ -21,10 +21,12 @@ use std::time::Instant;
 
 use serde::{Deserialize, Serialize};
 
-use super::{Cube, RESULTS_DIR, SplitManifest, coverage_sources, lift, sha256_hex, verify_split};
+use super::{Cube, MANIFEST, RESULTS_DIR, SplitManifest, coverage_sources, lift, verify_split};
+use crate::artifact::sha256_hex;
 use crate::cnf::Cnf;
 use crate::decide;
-use crate::dimacs::{self, VERSION, write_atomically};
+use crate::artifact::write_atomically;
+use crate::dimacs::{self, VERSION};
 use crate::error::{Error, Result};
 use crate::grid::Point;
 use crate::proof::{LratOptions, LratSummary, check_lrat_with};
@@ -187,9 +189,10 @@ pub fn run_cube(
             }
         }
     }
-    let bytes = entry.file.read_checked(dir)?;
+    let bytes = entry.file.read_checked(dir, MANIFEST)?;
     let results = dir.join(RESULTS_DIR);
     std::fs::create_dir_all(&results).map_err(|e| Error::io(&results, e))?;
+    crate::artifact::sweep_stale(&results, true);
     let cube_path = dir.join(&entry.file.name);
     let cube_name = cube_path.display().to_string();
     let text = String::from_utf8(bytes)
@@ -585,7 +588,7 @@ pub fn merge(dir: &Path, combined: Option<&Path>) -> Result<MergeReport> {
                     .iter()
                     .map(|(c, p)| lift::lift_cube(&enc.cnf, &c.lits(), p))
                     .collect::<Result<Vec<_>>>()?;
-                let proof = m.coverage.proof.read_checked(dir)?;
+                let proof = m.coverage.proof.read_checked(dir, MANIFEST)?;
                 let bytes = lift::assemble(&enc.cnf, &coverage_sources(&enc), &lifted, &proof)?;
                 let summary = check_lrat_with(
                     &enc.cnf,

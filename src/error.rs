@@ -31,7 +31,7 @@ pub enum Error {
     /// The CNF would exceed the configured size limit.
     #[error(
         "the CNF would be too large: about {} clauses over {} variables \
-         (the limit is {limit} clauses)",
+         (limit {limit} clauses)",
         human(*clauses), human(*vars)
     )]
     TooLarge {

@@ -116,7 +116,9 @@ impl FileEntry {
         if bytes.len() as u64 != self.bytes || sha256_hex(&bytes) != self.sha256 {
             return Err(Error::file(
                 path.display().to_string(),
-                format!("does not match its size and SHA-256 in {manifest}; it was changed after it was written"),
+                format!(
+                    "does not match its size and SHA-256 in {manifest}; it was changed after it was written"
+                ),
             ));
         }
         Ok(bytes)
@@ -133,7 +135,9 @@ impl FileEntry {
         if bytes != self.bytes || sha != self.sha256 {
             return Err(Error::file(
                 path.display().to_string(),
-                format!("does not match its size and SHA-256 in {manifest}; it was changed after it was written"),
+                format!(
+                    "does not match its size and SHA-256 in {manifest}; it was changed after it was written"
+                ),
             ));
         }
         Ok(())
@@ -271,6 +275,36 @@ fn abandoned(path: &Path) -> bool {
     }
 }
 
+/// Whether [`replace_dir`] may put a new folder in place of `dir`: it does
+/// not exist, is empty, or `replaceable` accepts it. Callers check this
+/// before long work whose result goes there.
+///
+/// # Errors
+/// [`Error::Options`] when `dir` may not be replaced; [`Error::Io`].
+pub fn may_replace(dir: &Path, replaceable: &dyn Fn(&Path) -> bool) -> Result<()> {
+    if !dir.exists() {
+        return Ok(());
+    }
+    if !dir.is_dir() {
+        return Err(Error::Options(format!(
+            "{} exists and is not a folder",
+            dir.display()
+        )));
+    }
+    let empty = std::fs::read_dir(dir)
+        .map_err(|e| Error::io(dir, e))?
+        .next()
+        .is_none();
+    if empty || replaceable(dir) {
+        Ok(())
+    } else {
+        Err(Error::Options(format!(
+            "{} exists and is not a folder orbitcnf wrote; refusing to replace it",
+            dir.display()
+        )))
+    }
+}
+
 /// Builds a folder with `fill` in a temporary folder beside `dir`, then puts
 /// it in place of `dir`: readers see the old folder or the whole new one,
 /// and no file of an old folder survives next to new ones. An existing
@@ -288,19 +322,8 @@ pub fn replace_dir<T>(
 ) -> Result<T> {
     let parent = folder_of(dir);
     std::fs::create_dir_all(parent).map_err(|e| Error::io(parent, e))?;
+    may_replace(dir, &replaceable)?;
     let exists = dir.exists();
-    if exists {
-        let empty = std::fs::read_dir(dir)
-            .map_err(|e| Error::io(dir, e))?
-            .next()
-            .is_none();
-        if !empty && !replaceable(dir) {
-            return Err(Error::Options(format!(
-                "{} exists and is not a folder orbitcnf wrote; refusing to replace it",
-                dir.display()
-            )));
-        }
-    }
     let _ = sweep_stale(parent, false);
     let fresh = tempfile::Builder::new()
         .prefix(TEMP_PREFIX)
@@ -410,7 +433,10 @@ mod tests {
         })
         .unwrap();
         assert_eq!(std::fs::read(dir.join("manifest.json")).unwrap(), b"2");
-        assert!(!dir.join("stale.txt").exists(), "no file of the old folder survives");
+        assert!(
+            !dir.join("stale.txt").exists(),
+            "no file of the old folder survives"
+        );
         // A failing fill leaves the old folder as it was and no litter.
         let err = replace_dir(&dir, is_ours, |_| -> Result<()> {
             Err(Error::Options("stop".into()))

@@ -19,9 +19,10 @@ use serde::Serialize;
 use crate::decide::decide;
 use crate::encode::{DEFAULT_MAX_CLAUSES, EncodeOptions, Symmetry};
 use crate::error::{Error, Result};
+use crate::evidence::Evidence;
 use crate::grid::Grid;
 use crate::question::Question;
-use crate::report::{Certificate, Verdict};
+use crate::report::Verdict;
 use crate::solve::Limits;
 use crate::solve::bundled::Bundled;
 use crate::solve::certified::Certified;
@@ -135,6 +136,27 @@ pub fn encodings() -> Vec<(&'static str, EncodeOptions)> {
     ]
 }
 
+/// The cases to run: all (or the quick ones), or those named in `only`
+/// (comma-separated).
+///
+/// # Errors
+/// [`crate::Error::Options`] naming an unknown case and listing the known ones.
+pub fn select(quick: bool, only: Option<&str>) -> Result<Vec<Case>> {
+    let mut chosen = cases(quick);
+    if let Some(only) = only {
+        let names: Vec<&str> = only.split(',').map(str::trim).collect();
+        if let Some(bad) = names.iter().find(|n| !chosen.iter().any(|c| c.name == **n)) {
+            let all: Vec<String> = cases(false).into_iter().map(|c| c.name).collect();
+            return Err(crate::Error::Options(format!(
+                "no benchmark case {bad:?}; cases are {}",
+                all.join(", ")
+            )));
+        }
+        chosen.retain(|c| names.contains(&c.name.as_str()));
+    }
+    Ok(chosen)
+}
+
 /// Runs `case` under every encoding of [`encodings`] (or only the default
 /// when `baselines` is false), each within `limit`.
 ///
@@ -196,7 +218,7 @@ pub fn run_case(case: &Case, limit: Duration, baselines: bool) -> Result<Row> {
             &limits,
             DEFAULT_MAX_CLAUSES,
         )?;
-        if let Certificate::CheckedProof(info) = &r.certificate {
+        if let Evidence::CheckedProof(info) = &r.certificate {
             proof = Some(ProofCost {
                 solve_seconds: r.stats.solve.seconds,
                 check_seconds: info.check_seconds,

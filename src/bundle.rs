@@ -13,15 +13,16 @@ use std::path::{Path, PathBuf};
 
 use serde::{Deserialize, Serialize};
 
-use crate::artifact::{FileEntry, sha256_hex, write_atomically};
-use crate::dimacs::{self, VERSION, render_cnf};
+use crate::artifact::{FileEntry, write_atomically};
+use crate::dimacs::{VERSION, render_cnf};
 use crate::encode::{EncodeOptions, encode};
 use crate::error::{Error, Result};
+use crate::evidence;
 use crate::orbit_file;
-use crate::proof::{LratOptions, LratSummary, check_lrat_with};
+use crate::proof::LratSummary;
 use crate::question::{Question, QuestionRecord};
 use crate::report::Verdict;
-use crate::verify::{self, OrbitCheck, SelfMapCheck};
+use crate::verify::{OrbitCheck, SelfMapCheck};
 
 /// The manifest's file name.
 pub const MANIFEST: &str = "manifest.json";
@@ -81,80 +82,105 @@ fn read(path: &Path) -> Result<Vec<u8>> {
     std::fs::read(path).map_err(|e| Error::io(path, e))
 }
 
-/// Writes a bundle for `q` into `dir` (created if needed). `evidence` is the
-/// LRAT proof's path (infeasible) or the orbit (feasible); the manifest is
-/// written last, so a bundle without one is incomplete.
+/// Whether `dir` holds a bundle (so that writing a new one may replace it).
+fn is_bundle(dir: &Path) -> bool {
+    dir.join(MANIFEST).is_file()
+}
+
+/// Whether a bundle may be written to `dir` (see [`write_bundle`]); checked
+/// before solving, so that no work is lost to a wrong folder.
 ///
 /// # Errors
-/// [`Error::Io`] for the files; encoding errors.
+/// [`Error::Options`] for a folder that is neither empty nor a bundle.
+pub fn check_target(dir: &Path) -> Result<()> {
+    crate::artifact::may_replace(dir, &is_bundle)
+}
+
+/// Writes a bundle for `q` into `dir`. The folder is built beside `dir` and
+/// then put in its place ([`crate::artifact::replace_dir`]), so a reader
+/// sees the old bundle or the whole new one, and no file of an old bundle
+/// survives beside new ones; an existing `dir` that is neither empty nor a
+/// bundle is refused. Which file carries a witness follows from the
+/// formulation: `map.json` (orbit and map) on point sets, `orbit.json`
+/// otherwise.
+///
+/// # Errors
+/// [`Error::Io`] for the files; [`Error::Options`] for a `dir` that is not a
+/// bundle; [`Error::Decode`] for a full-map witness without its map;
+/// encoding errors.
 pub fn write_bundle(
     dir: &Path,
     q: &Question,
     options: &EncodeOptions,
     evidence: Evidence<'_>,
 ) -> Result<Manifest> {
-    std::fs::create_dir_all(dir).map_err(|e| Error::io(dir, e))?;
     let enc = encode(q, options, u64::MAX)?;
     let cnf = render_cnf(&enc);
-    write_atomically(&dir.join(FORMULA), &cnf)?;
-    let mut files = vec![FileEntry::of(FORMULA, &cnf)];
-    let verdict = match evidence {
-        Evidence::Proof(path) => {
-            let bytes = read(path)?;
-            if path != dir.join(PROOF) {
-                write_atomically(&dir.join(PROOF), &bytes)?;
+    crate::artifact::replace_dir(dir, is_bundle, |tmp| {
+        write_atomically(&tmp.join(FORMULA), &cnf)?;
+        let mut files = vec![FileEntry::of(FORMULA, &cnf)];
+        let verdict = match evidence {
+            Evidence::Proof(path) => {
+                let to = tmp.join(PROOF);
+                // A hard link costs nothing for a proof of gigabytes; across
+                // file systems the proof is copied.
+                if std::fs::hard_link(path, &to).is_err() {
+                    std::fs::copy(path, &to).map_err(|e| Error::io(path, e))?;
+                }
+                files.push(FileEntry::of_file(tmp, PROOF)?);
+                Verdict::Infeasible
             }
-            files.push(FileEntry::of(PROOF, &bytes));
-            Verdict::Infeasible
-        }
-        Evidence::Map { orbit, map } => {
-            let doc = MapFile {
-                orbit: orbit.to_vec(),
-                map: map.to_vec(),
-            };
-            let text = serde_json::to_string(&doc).expect("map file serialises") + "\n";
-            write_atomically(&dir.join(MAP), text.as_bytes())?;
-            files.push(FileEntry::of(MAP, text.as_bytes()));
-            Verdict::Feasible
-        }
-        Evidence::Orbit(orbit) => {
-            let text = orbit_file::to_json(&q.grid, q.class, orbit) + "\n";
-            write_atomically(&dir.join(ORBIT), text.as_bytes())?;
-            files.push(FileEntry::of(ORBIT, text.as_bytes()));
-            Verdict::Feasible
-        }
-    };
-    let manifest = Manifest {
-        orbitcnf_version: VERSION.into(),
-        question: q.record(),
-        options: enc.options.clone(),
-        verdict: verdict.word().into(),
-        files,
-        trust: if enc.options.is_full_map() {
-            TRUST_FULL_MAP
-        } else {
-            TRUST
-        }
-        .into(),
-    };
-    let text = serde_json::to_string_pretty(&manifest).expect("manifest serialises") + "\n";
-    write_atomically(&dir.join(MANIFEST), text.as_bytes())?;
-    Ok(manifest)
+            Evidence::Witness { orbit, map } if enc.options.is_full_map() => {
+                let map = map.ok_or_else(|| {
+                    Error::Decode("a feasible answer on a point set needs its map D → D".into())
+                })?;
+                let doc = MapFile {
+                    orbit: orbit.to_vec(),
+                    map: map.to_vec(),
+                };
+                let text = serde_json::to_string(&doc).expect("map file serialises") + "\n";
+                write_atomically(&tmp.join(MAP), text.as_bytes())?;
+                files.push(FileEntry::of(MAP, text.as_bytes()));
+                Verdict::Feasible
+            }
+            Evidence::Witness { orbit, .. } => {
+                let text = orbit_file::to_json(&q.grid, q.class, orbit) + "\n";
+                write_atomically(&tmp.join(ORBIT), text.as_bytes())?;
+                files.push(FileEntry::of(ORBIT, text.as_bytes()));
+                Verdict::Feasible
+            }
+        };
+        let manifest = Manifest {
+            orbitcnf_version: VERSION.into(),
+            question: q.record(),
+            options: enc.options.clone(),
+            verdict: verdict.word().into(),
+            files,
+            trust: if enc.options.is_full_map() {
+                TRUST_FULL_MAP
+            } else {
+                TRUST
+            }
+            .into(),
+        };
+        let text = serde_json::to_string_pretty(&manifest).expect("manifest serialises") + "\n";
+        write_atomically(&tmp.join(MANIFEST), text.as_bytes())?;
+        Ok(manifest)
+    })
 }
 
 /// What a bundle carries besides the CNF.
 #[derive(Clone, Copy, Debug)]
 pub enum Evidence<'a> {
-    /// The LRAT proof of an infeasible answer, at this path.
+    /// The checked LRAT proof of an infeasible answer, at this path.
     Proof(&'a Path),
-    /// The orbit of a feasible answer.
-    Orbit(&'a [Vec<i64>]),
-    /// The orbit and the whole map of a feasible full-map answer.
-    Map {
+    /// The checked witness of a feasible answer: the orbit, and on a point
+    /// set the whole map.
+    Witness {
         /// `x_0..x_{p−1}`.
         orbit: &'a [Vec<i64>],
-        /// `(z, f(z))` for every z ∈ D.
-        map: &'a [(Vec<i64>, Vec<i64>)],
+        /// `(z, f(z))` for every z ∈ D (full-map formulation).
+        map: Option<&'a [(Vec<i64>, Vec<i64>)]>,
     },
 }
 
@@ -174,50 +200,81 @@ pub struct BundleCheck {
     pub map: Option<SelfMapCheck>,
 }
 
-/// Re-checks a bundle end to end.
+impl BundleCheck {
+    /// The findings for people, one line per fact.
+    pub fn to_text(&self) -> String {
+        let q = &self.manifest.question;
+        let mut text = format!(
+            "bundle       {}\nquestion     grid {} (n = {}), period {}\n\
+             formula      identical to a fresh encoding; all hashes match\n",
+            self.dir.display(),
+            q.grid,
+            q.dim,
+            q.period
+        );
+        match (&self.proof, &self.orbit) {
+            (Some(p), _) => text.push_str(&format!(
+                "verdict      INFEASIBLE, certified: LRAT proof of {} steps accepted (empty clause at id {})\n",
+                p.steps, p.empty_clause_id
+            )),
+            (None, Some(o)) => text.push_str(&format!("verdict      FEASIBLE, certified: {o}\n")),
+            _ => {}
+        }
+        if let Some(pts) = &q.points {
+            text.push_str(&format!(
+                "domain       the {} points of the manifest (the grid above is their bounding box)\n",
+                pts.len()
+            ));
+        }
+        if let Some(m) = &self.map {
+            text.push_str(&format!("map          certified: {m}\n"));
+        }
+        text
+    }
+}
+
+/// Re-checks a bundle end to end: every file against its digest, the CNF
+/// against a fresh encoding of the question, and the evidence through
+/// [`crate::evidence`].
 ///
 /// # Errors
 /// [`Error::Parse`] for a missing or malformed manifest, a digest that does
 /// not match, or a CNF that differs from a fresh encoding of the question;
-/// [`Error::Proof`] for a rejected proof; [`Error::Check`] for a bad orbit.
+/// [`Error::Proof`] for a rejected proof; [`Error::Check`] for a bad orbit
+/// or map.
 pub fn check_bundle(dir: &Path) -> Result<BundleCheck> {
     let mpath = dir.join(MANIFEST);
     let mname = mpath.display().to_string();
     let manifest: Manifest = serde_json::from_slice(&read(&mpath)?)
         .map_err(|e| Error::parse(&mname, e.line(), format!("not a bundle manifest: {e}")))?;
     for f in &manifest.files {
-        let bytes = read(&dir.join(&f.name))?;
-        if sha256_hex(&bytes) != f.sha256 {
-            return Err(Error::parse(
+        f.verify(dir, MANIFEST)?;
+    }
+    let listed = |name: &str| -> Result<PathBuf> {
+        if manifest.files.iter().any(|f| f.name == name) {
+            Ok(dir.join(name))
+        } else {
+            Err(Error::file(
                 &mname,
-                0,
-                format!("{} does not match its SHA-256 in the manifest", f.name),
-            ));
+                format!(
+                    "a {} bundle needs {name}, and the manifest lists none",
+                    manifest.verdict
+                ),
+            ))
         }
-    }
-    let listed = |name: &str| manifest.files.iter().any(|f| f.name == name);
-    if !listed(FORMULA) {
-        return Err(Error::parse(
-            &mname,
-            0,
-            format!("the manifest lists no {FORMULA}"),
-        ));
-    }
+    };
+    let cnf_path = listed(FORMULA)?;
     let q = Question::from_record(&manifest.question)?;
-    let fresh = render_cnf(&encode(&q, &manifest.options, u64::MAX)?);
-    let cnf_path = dir.join(FORMULA);
-    let stored = read(&cnf_path)?;
-    if fresh != stored {
-        return Err(Error::parse(
+    let enc = encode(&q, &manifest.options, u64::MAX)?;
+    if render_cnf(&enc) != read(&cnf_path)? {
+        return Err(Error::file(
             cnf_path.display().to_string(),
-            0,
             format!(
                 "differs from a fresh encoding of the question (bundle written by orbitcnf {}, this is {VERSION})",
                 manifest.orbitcnf_version
             ),
         ));
     }
-    let file = dimacs::read_cnf_file(&cnf_path)?;
     let mut out = BundleCheck {
         dir: dir.to_path_buf(),
         manifest: manifest.clone(),
@@ -225,71 +282,35 @@ pub fn check_bundle(dir: &Path) -> Result<BundleCheck> {
         orbit: None,
         map: None,
     };
+    let options = &manifest.options;
     match manifest.verdict.as_str() {
         "infeasible" => {
-            if !listed(PROOF) {
-                return Err(Error::parse(
-                    &mname,
-                    0,
-                    format!("an infeasible bundle needs {PROOF}"),
-                ));
-            }
-            let proof = read(&dir.join(PROOF))?;
-            let options = LratOptions {
-                ids_follow_cnf: true,
-                ..LratOptions::default()
-            };
-            out.proof = Some(check_lrat_with(&file.cnf, &proof, &options)?);
+            let check = evidence::check_proof_file(&enc.cnf, &listed(PROOF)?)?;
+            out.proof = Some(check.summary);
         }
-        "feasible" if manifest.options.is_full_map() => {
-            if !listed(MAP) {
-                return Err(Error::parse(
-                    &mname,
-                    0,
-                    format!("a feasible full-map bundle needs {MAP}"),
-                ));
-            }
-            let mpath = dir.join(MAP);
+        "feasible" if options.is_full_map() => {
+            let mpath = listed(MAP)?;
             let shown = mpath.display().to_string();
             let f: MapFile = serde_json::from_slice(&read(&mpath)?)
                 .map_err(|e| Error::parse(&shown, e.line(), format!("not a map file: {e}")))?;
-            if f.orbit.len() != q.period {
-                return Err(Error::parse(
-                    shown,
-                    0,
-                    "the orbit is not for the bundle's question",
-                ));
-            }
-            let domain = q.domain().points().to_vec();
-            out.map = Some(verify::check_self_map(&domain, &f.map, &f.orbit)?);
-            out.orbit = Some(verify::check_orbit(q.grid.ranges(), &f.orbit)?);
+            let w = evidence::check_witness(&q, options, &f.orbit, Some(&f.map))?;
+            out.orbit = Some(w.orbit);
+            out.map = w.map;
         }
         "feasible" => {
-            if !listed(ORBIT) {
-                return Err(Error::parse(
-                    &mname,
-                    0,
-                    format!("a feasible bundle needs {ORBIT}"),
-                ));
-            }
-            let opath = dir.join(ORBIT);
+            let opath = listed(ORBIT)?;
             let text = String::from_utf8_lossy(&read(&opath)?).into_owned();
             let f = orbit_file::parse(&text, &opath.display().to_string())?;
-            if f.grid != q.grid || f.orbit.len() != q.period {
-                return Err(Error::parse(
+            if f.grid != q.grid || f.class != q.class {
+                return Err(Error::file(
                     opath.display().to_string(),
-                    0,
                     "the orbit is not for the bundle's question",
                 ));
             }
-            out.orbit = Some(q.check_orbit(&f.orbit)?);
+            out.orbit = Some(evidence::check_witness(&q, options, &f.orbit, None)?.orbit);
         }
         other => {
-            return Err(Error::parse(
-                &mname,
-                0,
-                format!("unknown verdict {other:?}"),
-            ));
+            return Err(Error::file(&mname, format!("unknown verdict {other:?}")));
         }
     }
     Ok(out)

@@ -1,22 +1,37 @@
-//! The pipeline: encode, solve, check the model, decode, verify.
+//! The pipeline: encode, solve, check the model, decode, verify — and the
+//! one place where a decision's evidence is written out.
 //!
 //! A feasible verdict is only ever produced by [`witness`], after the model
-//! has satisfied every clause and the decoded orbit has passed the
-//! independent [`crate::verify::check_orbit`]. A model that fails either is an
-//! error, never a verdict.
+//! has satisfied every clause and the decoded orbit (and map) has passed
+//! [`crate::evidence::check_witness`]. A model that fails either is an
+//! error, never a verdict. An infeasible verdict carries the solver's
+//! checked proof, or, where the user accepted it, the solver's unchecked
+//! claim ([`Evidence::SolverClaim`]); without that acceptance an unchecked
+//! claim becomes an unknown verdict ([`require_checked`]).
+//!
+//! [`run`] is the whole of `decide`: it picks the back-end ([`Solver`]),
+//! routes the proof to where it is wanted ([`Outputs`]) and writes the
+//! certificate bundle from the report — the same code for every back-end,
+//! so a bundle always carries what its formulation needs.
 
+use std::path::{Path, PathBuf};
 use std::time::Instant;
 
+use crate::bundle;
 use crate::cnf::Cnf;
 use crate::decode;
 use crate::dimacs::{self, CnfFile, SolverAnswer, Status};
 use crate::encode::{self, EncodeOptions};
-use crate::error::Result;
+use crate::error::{Error, Result};
+use crate::evidence::{self, Evidence};
 use crate::question::Question;
-use crate::report::{Certificate, Report, SizeStats, Verdict, Witness};
+use crate::report::{Report, SizeStats, Verdict, Witness};
+use crate::solve::bundled::Bundled;
+use crate::solve::certified::Certified;
+use crate::solve::external::External;
 use crate::solve::{Backend, Limits, Outcome, SolveStats, check_model};
+use crate::split::jobs::{JobsOptions, decide_parallel};
 use crate::varmap::VarMap;
-use crate::verify;
 
 /// Decides `q`: encodes it with `options`, solves with `backend` within
 /// `limits`, and returns a report whose verdict is backed by a checked witness
@@ -48,18 +63,18 @@ pub fn decide(
                 "<memory>",
                 None,
             )?;
-            (Verdict::Feasible, Some(w), Certificate::Witness, None)
+            (Verdict::Feasible, Some(w), Evidence::Witness, None)
         }
         Outcome::Unsat => {
             let certificate = match result.proof {
-                Some(info) => Certificate::CheckedProof(info),
-                None => Certificate::SolverClaim {
+                Some(info) => Evidence::CheckedProof(info),
+                None => Evidence::SolverClaim {
                     solver: result.stats.solver.clone(),
                 },
             };
             (Verdict::Infeasible, None, certificate, None)
         }
-        Outcome::Unknown(why) => (Verdict::Unknown, None, Certificate::None, Some(why)),
+        Outcome::Unknown(why) => (Verdict::Unknown, None, Evidence::None, Some(why)),
     };
     Ok(Report::new(
         q,
@@ -73,9 +88,9 @@ pub fn decide(
     ))
 }
 
-/// Checks `model` against every clause of `cnf`, decodes the orbit and verifies it.
-/// In the full-map formulation (`options` as recorded with the CNF) the map
-/// is decoded too, and [`verify::check_self_map`] checks it on all of D.
+/// Checks `model` against every clause of `cnf`, decodes the orbit (and in
+/// the full-map formulation the map) and checks them as the witness of a
+/// feasible answer ([`evidence::check_witness`]).
 ///
 /// # Errors
 /// [`crate::Error::ModelViolates`] for a falsified clause (located through
@@ -91,44 +106,40 @@ pub fn witness(
     lines: Option<&[usize]>,
 ) -> Result<Witness> {
     check_model(cnf, model, path, lines)?;
-    if options.is_full_map() {
-        let orbit = decode::full_map_orbit(q, map, model)?;
-        let table = decode::full_map(q, map, model)?;
-        let domain = q.domain().points().to_vec();
-        let map_check = verify::check_self_map(&domain, &table, &orbit)?;
-        // An orbit of a nonexpansive map is an isometric cycle (encodings/full-map.md),
-        // so this second check must pass too; it also yields the distance profile.
-        let check = verify::check_orbit(q.grid.ranges(), &orbit)?;
-        return Ok(Witness {
-            orbit,
-            check,
-            map: Some(table),
-            map_check: Some(map_check),
-        });
-    }
-    let orbit = decode::orbit(q, map, model)?;
-    let check = q.check_orbit(&orbit)?;
+    let (orbit, table) = if options.is_full_map() {
+        (
+            decode::full_map_orbit(q, map, model)?,
+            Some(decode::full_map(q, map, model)?),
+        )
+    } else {
+        (decode::orbit(q, map, model)?, None)
+    };
+    let checked = evidence::check_witness(q, options, &orbit, table.as_deref())?;
     Ok(Witness {
         orbit,
-        check,
-        map: None,
-        map_check: None,
+        check: checked.orbit,
+        map: table,
+        map_check: checked.map,
     })
 }
 
 /// Interprets a solver's output for a CNF file written by `orbitcnf encode`.
 ///
-/// A satisfiable answer goes through [`witness`]; an unsatisfiable one is
-/// reported as the external solver's claim (no proof is checked here).
+/// A satisfiable answer goes through [`witness`]. An unsatisfiable one is
+/// backed by the LRAT proof at `proof` when one is given (checked here
+/// against the file's clauses), and is otherwise the solver's unchecked
+/// claim (see [`require_checked`]).
 ///
 /// # Errors
-/// As [`witness`], and [`crate::Error::Parse`] for a model that names unknown
-/// variables or gives a variable both signs.
+/// As [`witness`]; [`crate::Error::Parse`] for a model that names unknown
+/// variables or gives a variable both signs; [`crate::Error::Proof`] for a
+/// rejected proof, and an error for a proof of a satisfiable answer.
 pub fn decode_answer(
     file: &CnfFile,
     cnf_path: &str,
     answer: &SolverAnswer,
     output_path: &str,
+    proof: Option<&Path>,
 ) -> Result<Report> {
     let q = &file.question;
     let size = SizeStats::of(&file.cnf, Vec::new(), 0.0);
@@ -137,6 +148,12 @@ pub fn decode_answer(
         seconds: 0.0,
         conflicts: None,
     };
+    if let (Some(p), false) = (proof, answer.status == Status::Unsat) {
+        return Err(Error::Options(format!(
+            "a proof ({}) backs only an unsatisfiable answer, and {output_path} is not one",
+            p.display()
+        )));
+    }
     let (verdict, witness, certificate, reason) = match answer.status {
         Status::Sat => {
             let lits = answer.model.as_deref().unwrap_or_default();
@@ -150,22 +167,21 @@ pub fn decode_answer(
                 cnf_path,
                 Some(&file.clause_lines),
             )?;
-            (Verdict::Feasible, Some(w), Certificate::Witness, None)
+            (Verdict::Feasible, Some(w), Evidence::Witness, None)
         }
-        Status::Unsat => (
-            Verdict::Infeasible,
-            None,
-            Certificate::SolverClaim {
-                solver: "the external solver".into(),
-            },
-            None,
-        ),
-        Status::Unknown => (
-            Verdict::Unknown,
-            None,
-            Certificate::None,
-            answer.note.clone(),
-        ),
+        Status::Unsat => {
+            let certificate = match proof {
+                Some(p) => Evidence::CheckedProof(evidence::proof_info(
+                    evidence::check_proof_file(&file.cnf, p)?,
+                    Some(p.to_path_buf()),
+                )),
+                None => Evidence::SolverClaim {
+                    solver: "the external solver".into(),
+                },
+            };
+            (Verdict::Infeasible, None, certificate, None)
+        }
+        Status::Unknown => (Verdict::Unknown, None, Evidence::None, answer.note.clone()),
     };
     Ok(Report::new(
         q,
@@ -177,4 +193,208 @@ pub fn decode_answer(
         size,
         stats,
     ))
+}
+
+/// Turns an infeasible verdict that rests on a solver's unchecked word into
+/// an unknown one, saying why; every other report is returned as it is.
+/// This is the default everywhere: an unchecked refutation counts only
+/// where the user accepted such claims.
+pub fn require_checked(mut report: Report) -> Report {
+    if report.verdict == Verdict::Infeasible && !report.certified {
+        let who = match &report.certificate {
+            Evidence::SolverClaim { solver } => solver.clone(),
+            _ => "the solver".into(),
+        };
+        report.reason = Some(format!(
+            "{who} claims that no such map exists, but no proof was checked; \
+             give a proof to check, or accept unchecked claims"
+        ));
+        report.verdict = Verdict::Unknown;
+        report.certificate = Evidence::None;
+    }
+    report
+}
+
+/// Which solver answers a question, and how its answers are certified.
+#[derive(Clone, Debug)]
+pub enum Solver {
+    /// The bundled solver (varisat). With `certify`, every unsatisfiable
+    /// answer comes with an LRAT proof that orbitcnf's checker accepted;
+    /// without, it is the solver's claim.
+    Bundled {
+        /// Produce and check proofs.
+        certify: bool,
+    },
+    /// Any DIMACS solver run as a child process (with its proof request, if any).
+    External(External),
+    /// Cubes of an internal split on threads, with the bundled solver.
+    Cubes(JobsOptions),
+}
+
+/// Where the evidence of a decision goes besides the report.
+#[derive(Clone, Debug, Default)]
+pub struct Outputs {
+    /// The checked LRAT proof of an infeasible answer.
+    pub proof: Option<PathBuf>,
+    /// The solver's own proof (binary DRAT of the bundled solver, or an
+    /// external solver's proof file).
+    pub raw_proof: Option<PathBuf>,
+    /// A certificate bundle ([`crate::bundle`]).
+    pub bundle: Option<PathBuf>,
+}
+
+/// One decision to make.
+#[derive(Clone, Debug)]
+pub struct Request {
+    /// The question.
+    pub question: Question,
+    /// The encoding options.
+    pub options: EncodeOptions,
+    /// The solver.
+    pub solver: Solver,
+    /// Where evidence goes.
+    pub outputs: Outputs,
+    /// Time limit and progress.
+    pub limits: Limits,
+    /// The encoder's clause limit.
+    pub max_clauses: u64,
+    /// Whether an infeasible verdict may rest on a solver's unchecked claim
+    /// (it is then marked so); otherwise such an answer is unknown.
+    pub accept_claims: bool,
+}
+
+/// What became of the requested certificate bundle.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub enum BundleOutcome {
+    /// None was asked for.
+    NotAsked,
+    /// Written to this folder.
+    Written(PathBuf),
+    /// Not written, for this reason (nothing was created or changed).
+    NotWritten(String),
+}
+
+/// A decision and what was written for it.
+#[derive(Clone, Debug)]
+pub struct Decision {
+    /// The report.
+    pub report: Report,
+    /// The bundle.
+    pub bundle: BundleOutcome,
+}
+
+/// Makes the decision `req` asks for: solve with the chosen back-end, keep
+/// the unchecked claims only where accepted, write the proof where asked,
+/// and write the certificate bundle from the report.
+///
+/// # Errors
+/// Invalid combinations of solver and outputs ([`Error::Options`]); as
+/// [`decide`]; I/O errors of the outputs.
+pub fn run(req: &Request) -> Result<Decision> {
+    let q = &req.question;
+    if let Some(dir) = &req.outputs.bundle {
+        bundle::check_target(dir)?;
+    }
+    // A bundle of an infeasible answer needs the checked proof as a file
+    // even when no proof file is asked for: it is written beside the bundle
+    // under a temporary name, linked into the bundle, and removed. (A
+    // solver that gives no proof can still back a feasible bundle.)
+    let proves = match &req.solver {
+        Solver::Bundled { certify } => *certify,
+        Solver::External(ext) => ext.proof.is_some(),
+        Solver::Cubes(opts) => opts.certify,
+    };
+    let temp_proof = match (&req.outputs.proof, &req.outputs.bundle) {
+        (None, Some(dir)) if proves => Some(crate::artifact::temp_beside(dir)?.into_temp_path()),
+        _ => None,
+    };
+    let lrat = req
+        .outputs
+        .proof
+        .clone()
+        .or_else(|| temp_proof.as_ref().map(|t| t.to_path_buf()));
+    let report = match &req.solver {
+        Solver::Bundled { certify: false } => {
+            if lrat.is_some() || req.outputs.raw_proof.is_some() {
+                return Err(Error::Options(
+                    "a proof needs certification, which was turned off".into(),
+                ));
+            }
+            decide(q, &req.options, &mut Bundled, &req.limits, req.max_clauses)?
+        }
+        Solver::Bundled { certify: true } => {
+            let mut backend = Certified {
+                lrat: lrat.clone(),
+                drat: req.outputs.raw_proof.clone(),
+            };
+            decide(q, &req.options, &mut backend, &req.limits, req.max_clauses)?
+        }
+        Solver::External(ext) => {
+            let mut ext = ext.clone();
+            match ext.proof.as_mut() {
+                Some(p) => {
+                    p.keep_lrat = lrat.clone();
+                    p.keep_raw = req.outputs.raw_proof.clone();
+                }
+                None if req.outputs.proof.is_some() || req.outputs.raw_proof.is_some() => {
+                    return Err(Error::Options(
+                        "a proof from an external solver needs a way to ask it for one".into(),
+                    ));
+                }
+                None => {}
+            }
+            decide(q, &req.options, &mut ext, &req.limits, req.max_clauses)?
+        }
+        Solver::Cubes(opts) => {
+            if req.outputs.raw_proof.is_some() {
+                return Err(Error::Options(
+                    "the proof of a run in cubes is assembled as LRAT; the solver's own \
+                     proof format is not available"
+                        .into(),
+                ));
+            }
+            let opts = JobsOptions {
+                lrat: lrat.clone(),
+                ..opts.clone()
+            };
+            decide_parallel(q, &req.options, &opts, &req.limits, req.max_clauses)?
+        }
+    };
+    let report = if req.accept_claims {
+        report
+    } else {
+        require_checked(report)
+    };
+    let bundle = match &req.outputs.bundle {
+        None => BundleOutcome::NotAsked,
+        Some(dir) => write_bundle_of(&report, q, &req.options, lrat.as_deref(), dir)?,
+    };
+    drop(temp_proof);
+    Ok(Decision { report, bundle })
+}
+
+/// Writes the bundle of `report` to `dir` when its verdict is certified.
+fn write_bundle_of(
+    report: &Report,
+    q: &Question,
+    options: &EncodeOptions,
+    proof: Option<&Path>,
+    dir: &Path,
+) -> Result<BundleOutcome> {
+    let evidence = match (&report.certificate, &report.orbit, proof) {
+        (Evidence::Witness, Some(orbit), _) => bundle::Evidence::Witness {
+            orbit,
+            map: report.map.as_deref(),
+        },
+        (Evidence::CheckedProof(_), _, Some(path)) => bundle::Evidence::Proof(path),
+        _ => {
+            let why = match report.verdict {
+                Verdict::Unknown => "the verdict is unknown",
+                _ => "the verdict is not certified",
+            };
+            return Ok(BundleOutcome::NotWritten(why.into()));
+        }
+    };
+    bundle::write_bundle(dir, q, options, evidence)?;
+    Ok(BundleOutcome::Written(dir.to_path_buf()))
 }

@@ -24,6 +24,7 @@ pub mod decode;
 pub mod dimacs;
 pub mod encode;
 pub mod error;
+pub mod evidence;
 pub mod grid;
 pub mod isometry;
 pub mod orbit_file;

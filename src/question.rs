@@ -17,7 +17,6 @@ use serde::{Deserialize, Serialize};
 use crate::error::{Error, Result};
 use crate::grid::{Grid, Point};
 use crate::points::PointSet;
-use crate::verify::{self, CheckFailure, OrbitCheck};
 
 /// The class of maps a [`Question`] asks about.
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Hash, Serialize, Deserialize)]
@@ -223,18 +222,6 @@ impl Question {
             );
         }
         statement(&self.grid, self.class, &self.period.to_string())
-    }
-
-    /// Checks `orbit` with the independent verifier for this question's class:
-    /// [`verify::check_orbit`] or [`verify::check_topical_orbit`].
-    ///
-    /// # Errors
-    /// The verifier's [`verify::CheckFailure`].
-    pub fn check_orbit(&self, orbit: &[Vec<i64>]) -> std::result::Result<OrbitCheck, CheckFailure> {
-        match self.class {
-            MapClass::Nonexpansive => verify::check_orbit(self.grid.ranges(), orbit),
-            MapClass::Topical => verify::check_topical_orbit(self.grid.ranges(), orbit),
-        }
     }
 }
 

@@ -10,10 +10,10 @@ use serde::Serialize;
 
 use crate::cnf::{Cnf, FamilyCount};
 use crate::encode::EncodeOptions;
+use crate::evidence::Evidence;
 use crate::grid::Point;
 use crate::question::{MapClass, Question, QuestionRecord};
 use crate::solve::SolveStats;
-use crate::solve::certified::ProofInfo;
 use crate::verify::{OrbitCheck, SelfMapCheck};
 
 /// The answer to a question.
@@ -28,8 +28,15 @@ pub enum Verdict {
     Unknown,
 }
 
+/// The exit code of an infeasible verdict that rests on a solver's unchecked
+/// word: not 20, so that a script testing for 20 never takes it for a
+/// certified refutation.
+pub const EXIT_UNCHECKED: i32 = 21;
+
 impl Verdict {
-    /// The process exit code: 10 feasible, 20 infeasible, 0 unknown (1 is for errors).
+    /// The process exit code of a checked verdict: 10 feasible, 20
+    /// infeasible, 0 unknown (1 is for errors; see [`Report::exit_code`] for
+    /// unchecked refutations).
     pub fn exit_code(self) -> i32 {
         match self {
             Verdict::Feasible => 10,
@@ -46,27 +53,6 @@ impl Verdict {
             Verdict::Unknown => "unknown",
         }
     }
-}
-
-/// What backs a verdict.
-#[derive(Clone, Debug, PartialEq, Serialize)]
-#[serde(tag = "kind", rename_all = "kebab-case")]
-pub enum Certificate {
-    /// The orbit itself, checked independently.
-    Witness,
-    /// A solver's claim of unsatisfiability, with no proof checked.
-    SolverClaim {
-        /// Who claims it.
-        solver: String,
-    },
-    /// An LRAT proof of unsatisfiability of the CNF solved, accepted by
-    /// orbitcnf's own checker. It certifies the CNF, symmetry-breaking and
-    /// redundant clauses included; that those keep every verdict is argued in
-    /// `encodings/symmetry.md` and `encodings/redundant.md` and tested against
-    /// brute force.
-    CheckedProof(ProofInfo),
-    /// Nothing (unknown verdicts).
-    None,
 }
 
 /// A checked orbit.
@@ -145,8 +131,11 @@ pub struct Report {
     /// The independent check of that map (full-map formulation, feasible).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub map_check: Option<SelfMapCheck>,
-    /// What backs the verdict.
-    pub certificate: Certificate,
+    /// What backs the verdict (see [`crate::evidence`]).
+    pub certificate: Evidence,
+    /// Whether the verdict rests on checked evidence: a checked orbit or a
+    /// checked proof (`false` for an unchecked solver claim and for unknown).
+    pub certified: bool,
     /// Why the verdict is unknown, when it is.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub reason: Option<String>,
@@ -162,7 +151,7 @@ impl Report {
         options: &EncodeOptions,
         verdict: Verdict,
         witness: Option<Witness>,
-        certificate: Certificate,
+        certificate: Evidence,
         reason: Option<String>,
         size: SizeStats,
         solve: SolveStats,
@@ -188,9 +177,20 @@ impl Report {
             check,
             map,
             map_check,
+            certified: certificate.is_checked(),
             certificate,
             reason,
             stats: Stats { size, solve },
+        }
+    }
+
+    /// The process exit code: 10 feasible, 20 infeasible with a checked
+    /// proof, 21 infeasible on a solver's unchecked word, 0 unknown (1 is
+    /// for errors).
+    pub fn exit_code(&self) -> i32 {
+        match (self.verdict, self.certified) {
+            (Verdict::Infeasible, false) => EXIT_UNCHECKED,
+            (v, _) => v.exit_code(),
         }
     }
 
@@ -221,20 +221,23 @@ impl Report {
             Verdict::Feasible => {
                 let _ = writeln!(s, "verdict      FEASIBLE");
             }
-            Verdict::Infeasible if self.options.is_full_map() => {
-                let _ = writeln!(
-                    s,
-                    "verdict      INFEASIBLE: no such map exists (no nonexpansive map D → D has a \
-                     periodic point of minimal period {})",
-                    self.question.period
-                );
-            }
             Verdict::Infeasible => {
-                let _ = writeln!(
-                    s,
-                    "verdict      INFEASIBLE: no such map exists (no {cycle} {}-cycle in the grid)",
-                    self.question.period
-                );
+                // An unchecked claim says so before anything else on its line.
+                let head = match &self.certificate {
+                    Evidence::SolverClaim { solver } => format!(
+                        "INFEASIBLE, UNCHECKED (the word of {solver}; no proof was checked)"
+                    ),
+                    _ => "INFEASIBLE".to_string(),
+                };
+                let what = if self.options.is_full_map() {
+                    format!(
+                        "no nonexpansive map D → D has a periodic point of minimal period {}",
+                        self.question.period
+                    )
+                } else {
+                    format!("no {cycle} {}-cycle in the grid", self.question.period)
+                };
+                let _ = writeln!(s, "verdict      {head}: no such map exists ({what})");
             }
             Verdict::Unknown => {
                 let why = self.reason.as_deref().unwrap_or("no answer");
@@ -295,14 +298,14 @@ impl Report {
             }
         }
         match &self.certificate {
-            Certificate::Witness => {}
-            Certificate::SolverClaim { solver } => {
+            Evidence::Witness => {}
+            Evidence::SolverClaim { solver } => {
                 let _ = writeln!(
                     s,
                     "certificate  the unsatisfiability claim of {solver}; no proof was checked"
                 );
             }
-            Certificate::CheckedProof(info) => {
+            Evidence::CheckedProof(info) => {
                 let _ = writeln!(
                     s,
                     "certificate  LRAT proof ({} steps, {} bytes) accepted by orbitcnf's own checker in {:.3} s",
@@ -330,7 +333,7 @@ impl Report {
                      their soundness: {why}"
                 );
             }
-            Certificate::None => {}
+            Evidence::None => {}
         }
         let st = &self.stats;
         let conflicts = st

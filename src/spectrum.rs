@@ -81,10 +81,11 @@ use crate::decide;
 use crate::dimacs::VERSION;
 use crate::encode::{DEFAULT_MAX_CLAUSES, EncodeOptions, Symmetry};
 use crate::error::{Error, Result};
+use crate::evidence::Evidence;
 use crate::grid::{Grid, Point};
 use crate::points::PointSet;
 use crate::question::{self, MapClass, Question, QuestionRecord};
-use crate::report::{Certificate, Verdict};
+use crate::report::Verdict;
 use crate::solve::Limits;
 use crate::solve::certified::Certified;
 use crate::store::{
@@ -1022,7 +1023,7 @@ fn constructed(
             q.class
         ))
     })?;
-    let check = q.check_orbit(&orbit)?;
+    let check = crate::evidence::check_witness(q, options, &orbit, None)?.orbit;
     a.map_checked_points = map_check(q, &orbit)?;
     a.verdict = Verdict::Feasible;
     a.backing = Backing::CheckedOrbit;
@@ -1078,22 +1079,27 @@ fn solved(task: &Task, cfg: &SweepConfig, limits: &RunLimits, run_id: &str) -> R
                     let orbit = report.orbit.clone().unwrap_or_default();
                     // decide has checked it; checking again here costs little
                     // and keeps the stored evidence self-contained.
-                    let check = q.check_orbit(&orbit)?;
-                    a.map_checked_points = match &report.map {
-                        // Full map: decide checked the decoded map on all of D.
-                        Some(map) => {
-                            let mc = verify::check_self_map(q.domain().points(), map, &orbit)?;
+                    let w = crate::evidence::check_witness(
+                        q,
+                        &report.options,
+                        &orbit,
+                        report.map.as_deref(),
+                    )?;
+                    let check = w.orbit;
+                    a.map_checked_points = match (&report.map, w.map) {
+                        // Full map: the decoded map was checked on all of D.
+                        (Some(map), Some(mc)) => {
                             a.map = Some(map.clone());
                             Some(mc.points_checked)
                         }
-                        None => map_check(q, &orbit)?,
+                        _ => map_check(q, &orbit)?,
                     };
                     a.profile = Some(check.profile);
                     a.orbit = Some(orbit);
                     a.backing = Backing::CheckedOrbit;
                 }
                 Verdict::Infeasible => match &report.certificate {
-                    Certificate::CheckedProof(info) => {
+                    Evidence::CheckedProof(info) => {
                         let (file, sha256) = match (&task.proof, &info.lrat_file) {
                             (Some((abs, rel)), Some(_)) => {
                                 let (digest, _) = store::sha256_file(abs)?;

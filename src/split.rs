@@ -52,9 +52,9 @@ use std::path::Path;
 
 use serde::{Deserialize, Serialize};
 
-use crate::cnf::{Cnf, FamilyCount, Lit};
 pub use crate::artifact::FileEntry;
 use crate::artifact::{sha256_hex, write_atomically};
+use crate::cnf::{Cnf, FamilyCount, Lit};
 use crate::dimacs::{VERSION, render_cnf};
 use crate::encode::{EncodeOptions, Encoding, encode, fullmap, profile, symmetry};
 use crate::error::{Error, Result};
@@ -455,6 +455,30 @@ pub struct SplitManifest {
 }
 
 impl SplitManifest {
+    /// What `split` wrote to `dir`, and what to do next, for people.
+    pub fn summary(&self, dir: &Path, statement: &str) -> String {
+        let d = dir.display();
+        let n = self.cubes.len();
+        format!(
+            "question     {statement}\ncubes        {n} (asked for {}), {}\n\
+             coverage     checked: LRAT proof of {} steps refutes coverage.cnf, so every model lies in a cube\n\
+             written      {d}/manifest.json, formula.cnf, cubes.icnf, coverage.cnf, coverage.lrat, cubes/cube-NNNN.cnf\n\
+             next         orbitcnf run-cube {d} INDEX   for INDEX in 0..{}   (docs/cluster.md: Slurm, GNU parallel)\n\
+             \x20            orbitcnf merge {d}\n",
+            self.requested_cubes,
+            if self.split.rule == "start-point" {
+                "one per start point x_0 (full-map formulation)".to_string()
+            } else {
+                format!(
+                    "prefixes of the distance profile g(1..{})",
+                    self.split.offsets
+                )
+            },
+            self.coverage.lrat_steps,
+            n.saturating_sub(1),
+        )
+    }
+
     /// Reads `dir/manifest.json`.
     ///
     /// # Errors
@@ -547,29 +571,48 @@ pub fn refute_coverage(enc: &Encoding, cnf: &Cnf) -> Result<(Vec<u8>, LratSummar
     Ok((proof, summary))
 }
 
+/// A split folder as [`write_split`] left it.
+#[derive(Clone, Debug)]
+pub struct SplitWritten {
+    /// The manifest.
+    pub manifest: SplitManifest,
+    /// Files of an existing split of the same question that were missing or
+    /// damaged and have been written again (empty for a new split).
+    pub restored: Vec<String>,
+}
+
 /// Splits `q` into about `target` cubes and writes the split folder `dir`
-/// (created if needed; it must not hold a split already).
+/// (created if needed). A folder that already holds a split of the same
+/// question, options and cube count is repaired: every file that is
+/// missing or differs from what this orbitcnf writes is written again
+/// (the encoding and the cubes are deterministic), and the results in
+/// `results/` are kept.
 ///
 /// # Errors
-/// [`Error::Options`] for `target = 0` or a folder that holds a split;
-/// encoding errors; [`Error::Io`]; a failed coverage check.
+/// [`Error::Options`] for `target = 0` or a folder that holds a split of
+/// another question; encoding errors; [`Error::Io`]; a failed coverage check.
 pub fn write_split(
     dir: &Path,
     q: &Question,
     options: &EncodeOptions,
     target: usize,
     max_clauses: u64,
-) -> Result<SplitManifest> {
+) -> Result<SplitWritten> {
     if target == 0 {
         return Err(Error::Options("--cubes must be at least 1".into()));
     }
-    if dir.join(MANIFEST).exists() {
-        return Err(Error::Options(format!(
-            "{} already holds a split ({MANIFEST}); choose another --out or remove it",
-            dir.display()
-        )));
-    }
     let enc = encode(q, options, max_clauses)?;
+    if dir.join(MANIFEST).exists() {
+        let old = SplitManifest::read(dir)?;
+        if old.question != q.record() || old.options != enc.options || old.requested_cubes != target
+        {
+            return Err(Error::Options(format!(
+                "{} already holds a split of another question, other options or another \
+                 cube count ({MANIFEST}); choose another folder or remove it",
+                dir.display()
+            )));
+        }
+    }
     let cubes = cubes(&enc, target)?;
     let coverage = coverage_cnf(&enc, &cubes);
     let (proof, summary) = refute_coverage(&enc, &coverage)?;
@@ -577,8 +620,22 @@ pub fn write_split(
         let d = dir.join(sub);
         std::fs::create_dir_all(&d).map_err(|e| Error::io(&d, e))?;
     }
+    let restored = std::cell::RefCell::new(Vec::new());
     let put = |name: &str, bytes: &[u8]| -> Result<FileEntry> {
-        write_atomically(&dir.join(name), bytes)?;
+        let path = dir.join(name);
+        match std::fs::read(&path) {
+            Ok(old) if old == bytes => {}
+            Ok(_) => {
+                restored.borrow_mut().push(name.to_string());
+                write_atomically(&path, bytes)?;
+            }
+            Err(_) => {
+                if dir.join(MANIFEST).exists() {
+                    restored.borrow_mut().push(name.to_string());
+                }
+                write_atomically(&path, bytes)?;
+            }
+        }
         Ok(FileEntry::of(name, bytes))
     };
     let formula = put(FORMULA, &render_cnf(&enc))?;
@@ -626,7 +683,10 @@ pub fn write_split(
     };
     let text = serde_json::to_string_pretty(&manifest).expect("manifest serialises") + "\n";
     write_atomically(&dir.join(MANIFEST), text.as_bytes())?;
-    Ok(manifest)
+    Ok(SplitWritten {
+        manifest,
+        restored: restored.into_inner(),
+    })
 }
 
 /// Re-checks a split against a fresh encoding: `formula.cnf`, every cube

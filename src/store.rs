@@ -56,7 +56,7 @@ use crate::grid::Point;
 use crate::proof::{LratOptions, LratSummary, check_lrat_with};
 use crate::question::{Question, QuestionRecord};
 use crate::report::Verdict;
-use crate::verify::{self, OrbitCheck};
+use crate::verify::OrbitCheck;
 
 /// Sub-folder of the answer files.
 pub const ANSWERS_DIR: &str = "answers";
@@ -595,30 +595,11 @@ impl Store {
 
 fn check_stored_orbit(q: &Question, a: &Answer, file: &str) -> Result<OrbitCheck> {
     let Some(orbit) = &a.orbit else {
-        return Err(Error::parse(file, 0, "a feasible answer without an orbit"));
+        return Err(Error::file(file, "a feasible answer without an orbit"));
     };
-    if orbit.len() != q.period {
-        return Err(Error::parse(
-            file,
-            0,
-            format!(
-                "the orbit has {} points but the period is {}",
-                orbit.len(),
-                q.period
-            ),
-        ));
-    }
-    if a.options.is_full_map() {
-        let Some(map) = &a.map else {
-            return Err(Error::parse(
-                file,
-                0,
-                "a feasible full-map answer without its map",
-            ));
-        };
-        verify::check_self_map(q.domain().points(), map, orbit)?;
-    }
-    Ok(q.check_orbit(orbit)?)
+    let w = crate::evidence::check_witness(q, &a.options, orbit, a.map.as_deref())
+        .map_err(|e| Error::file(file, e.to_string()))?;
+    Ok(w.orbit)
 }
 
 /// Reads one answer file; `Ok(None)` when it does not exist.

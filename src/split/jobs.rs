@@ -26,14 +26,15 @@ use std::sync::atomic::{AtomicBool, AtomicUsize, Ordering};
 use std::time::{Duration, Instant};
 
 use super::{Cube, coverage_cnf, coverage_sources, cubes as make_cubes, lift, refute_coverage};
+use crate::artifact::write_atomically;
 use crate::cnf::Cnf;
 use crate::decide::witness;
-use crate::artifact::write_atomically;
 use crate::encode::{EncodeOptions, encode};
 use crate::error::{Error, Result};
+use crate::evidence::Evidence;
 use crate::proof::{LratOptions, ProofSinks, check_lrat_with, solve_with_proof_sinks};
 use crate::question::Question;
-use crate::report::{Certificate, Report, SizeStats, Verdict};
+use crate::report::{Report, SizeStats, Verdict};
 use crate::solve::bundled::{Bundled, Meter};
 use crate::solve::certified::ProofInfo;
 use crate::solve::{Backend, Limits, Outcome, SolveStats};
@@ -193,7 +194,7 @@ pub fn decide_parallel(
             return Ok(report(
                 Verdict::Feasible,
                 Some(w),
-                Certificate::Witness,
+                Evidence::Witness,
                 None,
                 solver,
             ));
@@ -225,13 +226,13 @@ pub fn decide_parallel(
         return Ok(report(
             Verdict::Unknown,
             None,
-            Certificate::None,
+            Evidence::None,
             Some(reason),
             solver,
         ));
     }
     if !opts.certify {
-        let cert = Certificate::SolverClaim {
+        let cert = Evidence::SolverClaim {
             solver: solver.clone(),
         };
         return Ok(report(Verdict::Infeasible, None, cert, None, solver));
@@ -262,7 +263,7 @@ pub fn decide_parallel(
     Ok(report(
         Verdict::Infeasible,
         None,
-        Certificate::CheckedProof(info),
+        Evidence::CheckedProof(info),
         None,
         solver,
     ))

@@ -22,18 +22,18 @@ use std::time::Instant;
 use serde::{Deserialize, Serialize};
 
 use super::{Cube, MANIFEST, RESULTS_DIR, SplitManifest, coverage_sources, lift, verify_split};
-use crate::artifact::sha256_hex;
+use crate::artifact::{sha256_hex, write_atomically};
 use crate::cnf::Cnf;
 use crate::decide;
-use crate::artifact::write_atomically;
 use crate::dimacs::{self, VERSION};
 use crate::error::{Error, Result};
+use crate::evidence;
 use crate::grid::Point;
 use crate::proof::{LratOptions, LratSummary, check_lrat_with};
 use crate::question::{Question, QuestionRecord};
 use crate::report::Verdict;
 use crate::solve::{Backend, Limits, Outcome};
-use crate::verify::OrbitCheck;
+use crate::verify::{OrbitCheck, SelfMapCheck};
 
 /// The format tag of [`CubeResult`].
 pub const RESULT_FORMAT: &str = "orbitcnf-cube-result/1";
@@ -88,6 +88,10 @@ pub struct CubeResult {
     /// The verified orbit, when feasible.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub orbit: Option<Vec<Point>>,
+    /// The whole map `(z, f(z))` on D, when feasible in the full-map
+    /// formulation (there the orbit alone proves nothing).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub map: Option<Vec<(Point, Point)>>,
     /// The checked LRAT proof, when infeasible and certified.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub proof: Option<ProofRecord>,
@@ -100,6 +104,28 @@ pub struct CubeResult {
     pub seconds: f64,
     /// Conflicts, when the back-end reports them.
     pub conflicts: Option<u64>,
+}
+
+impl CubeResult {
+    /// The result in one line for people; `note` is appended (e.g. that the
+    /// cube had been solved before).
+    pub fn to_text(&self, note: &str) -> String {
+        let status = match self.status {
+            CubeStatus::Feasible => "feasible (orbit verified)".to_string(),
+            CubeStatus::Infeasible => match &self.proof {
+                Some(p) => format!("infeasible, LRAT proof checked ({} steps)", p.steps),
+                None => "infeasible, UNCHECKED (no proof; merge counts it only when unchecked claims are accepted)".to_string(),
+            },
+            CubeStatus::Unknown => {
+                format!("unknown: {}", self.reason.as_deref().unwrap_or("no answer"))
+            }
+            CubeStatus::Error => format!("error: {}", self.reason.as_deref().unwrap_or("?")),
+        };
+        format!(
+            "cube {}: {status}; {:.3} s with {}{note}\n",
+            self.index, self.seconds, self.solver
+        )
+    }
 }
 
 /// The result file of cube `index`.
@@ -205,6 +231,7 @@ pub fn run_cube(
         cube_sha256: entry.file.sha256.clone(),
         status: CubeStatus::Unknown,
         orbit: None,
+        map: None,
         proof: None,
         reason: None,
         solver: backend.name(),
@@ -242,6 +269,7 @@ pub fn run_cube(
                 Ok(w) => {
                     result.status = CubeStatus::Feasible;
                     result.orbit = Some(w.orbit);
+                    result.map = w.map;
                 }
                 Err(e) => return fail(result, e),
             }
@@ -356,6 +384,12 @@ pub struct MergeReport {
     /// The independent check of the orbit, when feasible.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub check: Option<OrbitCheck>,
+    /// The map on all of D, when feasible in the full-map formulation.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub map: Option<Vec<(Point, Point)>>,
+    /// The independent check of that map.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub map_check: Option<SelfMapCheck>,
     /// Cubes without a usable result, by index.
     pub pending: Vec<Pending>,
     /// The coverage proof, re-checked now.
@@ -367,9 +401,16 @@ pub struct MergeReport {
 }
 
 impl MergeReport {
-    /// The exit code: as [`Verdict::exit_code`].
+    /// The exit code: as [`Verdict::exit_code`], and
+    /// [`crate::report::EXIT_UNCHECKED`] for an infeasible verdict that
+    /// rests partly on solvers' unchecked claims.
     pub fn exit_code(&self) -> i32 {
-        self.verdict.exit_code()
+        match (&self.verdict, &self.certificate) {
+            (Verdict::Infeasible, MergeCertificate::PartlyUncertified) => {
+                crate::report::EXIT_UNCHECKED
+            }
+            (v, _) => v.exit_code(),
+        }
     }
 
     /// The report for people.
@@ -387,9 +428,14 @@ impl MergeReport {
                 );
             }
             Verdict::Infeasible => {
+                let head = if self.uncertified.is_empty() {
+                    "INFEASIBLE"
+                } else {
+                    "INFEASIBLE, UNCHECKED (some cubes rest on a solver's word)"
+                };
                 let _ = writeln!(
                     s,
-                    "verdict      INFEASIBLE: all {} cubes refuted, and the cubes cover the search space",
+                    "verdict      {head}: all {} cubes refuted, and the cubes cover the search space",
                     self.cubes
                 );
             }
@@ -412,6 +458,9 @@ impl MergeReport {
         }
         if let Some(check) = &self.check {
             let _ = writeln!(s, "check        passed: {check}");
+        }
+        if let Some(mc) = &self.map_check {
+            let _ = writeln!(s, "map check    passed: {mc}");
         }
         let _ = writeln!(
             s,
@@ -475,7 +524,10 @@ fn list(v: &[usize]) -> String {
         .join(" ")
 }
 
-/// Merges the results of the split in `dir`; with `combined`, also writes
+/// Merges the results of the split in `dir`. A cube refuted only on a
+/// solver's word counts as refuted when `accept_claims` holds (the verdict
+/// is then marked unchecked); otherwise it is listed as pending. With
+/// `combined`, also writes
 /// one LRAT proof of `formula.cnf` there (when every cube has a proof) and
 /// checks it.
 ///
@@ -483,7 +535,7 @@ fn list(v: &[usize]) -> String {
 /// A split that fails [`verify_split`]; unreadable result files;
 /// [`Error::Io`]. Missing, unknown, failed and rejected cubes are not
 /// errors: they are listed in [`MergeReport::pending`].
-pub fn merge(dir: &Path, combined: Option<&Path>) -> Result<MergeReport> {
+pub fn merge(dir: &Path, combined: Option<&Path>, accept_claims: bool) -> Result<MergeReport> {
     let m = SplitManifest::read(dir)?;
     let (enc, _coverage, coverage_summary) = verify_split(dir, &m)?;
     let q = Question::from_record(&m.question)?;
@@ -497,6 +549,8 @@ pub fn merge(dir: &Path, combined: Option<&Path>) -> Result<MergeReport> {
         feasible_cube: None,
         orbit: None,
         check: None,
+        map: None,
+        map_check: None,
         pending: Vec::new(),
         coverage: coverage_summary,
         certificate: MergeCertificate::None,
@@ -539,19 +593,29 @@ pub fn merge(dir: &Path, combined: Option<&Path>) -> Result<MergeReport> {
                         .push(pending("rejected", "feasible without an orbit".into()));
                     continue;
                 };
-                match check_orbit(&q, &orbit) {
-                    Ok(check) => {
+                match evidence::check_witness(&q, &m.options, &orbit, r.map.as_deref()) {
+                    Ok(w) => {
                         if report.orbit.is_none() {
                             report.feasible_cube = Some(i);
                             report.orbit = Some(orbit);
-                            report.check = Some(check);
+                            report.map = r.map.clone();
+                            report.check = Some(w.orbit);
+                            report.map_check = w.map;
                         }
                     }
                     Err(e) => report.pending.push(pending("rejected", e.to_string())),
                 }
             }
             CubeStatus::Infeasible => match &r.proof {
-                None => report.uncertified.push(i),
+                None if accept_claims => report.uncertified.push(i),
+                None => report.pending.push(pending(
+                    "unchecked",
+                    format!(
+                        "refuted only on the word of {} (no proof); solve it again with a proof, \
+                         or accept unchecked claims",
+                        r.solver
+                    ),
+                )),
                 Some(p) => {
                     let cube_cnf = cube_cnf(&enc.cnf, &entry.cube);
                     match check_cube_proof(dir, i, p, &cube_cnf) {
@@ -654,17 +718,6 @@ fn check_cube_proof(dir: &Path, index: usize, p: &ProofRecord, cnf: &Cnf) -> Res
         )
     })?;
     Ok(bytes)
-}
-
-fn check_orbit(q: &Question, orbit: &[Point]) -> Result<OrbitCheck> {
-    if orbit.len() != q.period {
-        return Err(Error::Decode(format!(
-            "the orbit has {} points, the period is {}",
-            orbit.len(),
-            q.period
-        )));
-    }
-    Ok(q.check_orbit(orbit)?)
 }
 
 /// The indices of the cubes without a final result (missing, unknown,

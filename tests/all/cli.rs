@@ -16,8 +16,8 @@ use orbitcnf::solve::bundled::Bundled;
 use orbitcnf::solve::{Backend, Limits, Outcome};
 
 use crate::util::{
-    ERROR, Expect, FEASIBLE, INFEASIBLE, Q, TestDir, UNKNOWN, assert_decides,
-    assert_isometric_cycle, check_report, cli_check, dist, orbit_of,
+    ERROR, Expect, FEASIBLE, INFEASIBLE, Q, TestDir, UNCHECKED, UNKNOWN, assert_certified,
+    assert_decides, assert_isometric_cycle, check_report, cli_check, dist, orbit_of,
 };
 
 // ---------------------------------------------------------------- help, exit codes
@@ -389,7 +389,8 @@ fn bad_time_limits_and_missing_arguments_are_errors() {
         ("0", "positive number of seconds"),
         ("-1", "time-limit"),
         ("abc", "is not a number of seconds"),
-        ("inf", "positive number of seconds"),
+        ("inf", "below 1e9 seconds"),
+        ("1e300", "below 1e9 seconds (about 31 years)"),
     ] {
         dir.orbitcnf()
             .args(["decide", "--dim", "1", "--grid=0..1", "-p", "2"])
@@ -642,7 +643,13 @@ fn decode_reports_unsat_and_unknown_answers() {
     let q = Q::cube(-1, 1, 2, 5);
     encode(&dir, &q, "q.cnf");
     let cases = [
-        ("c solved\ns UNSATISFIABLE\n", INFEASIBLE, None),
+        // A bare "s UNSATISFIABLE" is the solver's word: not a verdict
+        // unless the user accepts unchecked claims (below).
+        (
+            "c solved\ns UNSATISFIABLE\n",
+            UNKNOWN,
+            Some("no proof was checked"),
+        ),
         ("s UNKNOWN\n", UNKNOWN, Some("s UNKNOWN")),
         ("s INDETERMINATE\n", UNKNOWN, Some("s UNKNOWN")),
         // A solver stopped by a limit (CaDiCaL with -t) prints only comments.
@@ -664,10 +671,81 @@ fn decode_reports_unsat_and_unknown_answers() {
                 run.fail("the reason", r, got);
             }
             assert_eq!(v["certificate"]["kind"], "none");
-        } else {
-            assert_eq!(v["certificate"]["kind"], "solver-claim");
         }
+        assert_eq!(v["certified"], false);
     }
+}
+
+#[test]
+fn an_unchecked_refutation_never_passes_for_a_certified_one() {
+    let dir = TestDir::new();
+    let q = Q::cube(-1, 1, 2, 5);
+    encode(&dir, &q, "q.cnf");
+    dir.write("out.txt", "s UNSATISFIABLE\n");
+    // Accepted on the solver's word: said in the verdict line, in JSON and
+    // in the exit code.
+    let run = dir
+        .orbitcnf()
+        .args(["decode", "q.cnf", "out.txt", "--trust-solver"])
+        .run();
+    run.code(UNCHECKED)
+        .stdout_has("verdict      INFEASIBLE, UNCHECKED (the word of");
+    let run = dir
+        .orbitcnf()
+        .args(["decode", "q.cnf", "out.txt", "--trust-solver", "--json"])
+        .run();
+    let v = run.code(UNCHECKED).json();
+    assert_eq!(
+        (&v["verdict"], &v["certified"]),
+        (&"infeasible".into(), &false.into())
+    );
+    assert_eq!(v["certificate"]["kind"], "solver-claim");
+    // Backed by a proof of this very CNF: checked, certified, exit 20.
+    dir.orbitcnf()
+        .arg("decide")
+        .args(q.args())
+        .args(["--proof", "p.lrat", "-q"])
+        .run()
+        .code(INFEASIBLE);
+    let run = dir
+        .orbitcnf()
+        .args(["decode", "q.cnf", "out.txt", "--proof", "p.lrat", "--json"])
+        .run();
+    let v = run.code(INFEASIBLE).json();
+    assert_certified(&run, &v);
+    // A proof of another CNF is rejected, not believed.
+    dir.orbitcnf()
+        .args([
+            "decide",
+            "--dim",
+            "2",
+            "--grid=-1..1",
+            "-p",
+            "6",
+            "--proof",
+            "other.lrat",
+            "-q",
+        ])
+        .run()
+        .code(INFEASIBLE);
+    dir.orbitcnf()
+        .args(["decode", "q.cnf", "out.txt", "--proof", "other.lrat"])
+        .run()
+        .error_with(&["proof rejected"]);
+    // The solver's output may come on standard input.
+    dir.orbitcnf()
+        .args(["decode", "q.cnf", "-", "--trust-solver"])
+        .stdin("s UNSATISFIABLE\n")
+        .run()
+        .code(UNCHECKED);
+    let sat = Q::cube(-1, 1, 2, 4);
+    encode(&dir, &sat, "sat.cnf");
+    let model = model_of(&dir, "sat.cnf");
+    dir.orbitcnf()
+        .args(["decode", "sat.cnf", "-"])
+        .stdin(solver_output("SATISFIABLE", &model, 10))
+        .run()
+        .code(FEASIBLE);
 }
 
 #[test]

@@ -1,5 +1,6 @@
 //! The integration tests of orbitcnf, in one test binary.
 //!
+//! - `artifacts`: bundles, split folders, temporary files and odd arguments through the binary.
 //! - `cli`: the command line through the built binary.
 //! - `published`: published theorems and the project's derived facts.
 //! - `brute`: the solver against an independent brute-force search.
@@ -12,6 +13,7 @@
 //!
 //! No verdict is trusted alone: every feasible answer's orbit is verified.
 
+mod artifacts;
 mod brute;
 mod cli;
 mod external;

@@ -21,8 +21,8 @@ use std::time::{Duration, Instant};
 use serde_json::Value;
 
 use crate::util::{
-    ERROR, FEASIBLE, INFEASIBLE, PLAIN, Q, TestDir, UNKNOWN, assert_isometric_cycle, bin,
-    check_report, have_tool, orbit_of,
+    ERROR, FEASIBLE, INFEASIBLE, PLAIN, Q, TestDir, UNCHECKED, UNKNOWN, assert_isometric_cycle,
+    bin, check_report, have_tool, orbit_of,
 };
 
 /// `orbitcnf split` of `q` into about `cubes` cubes in `dir/name`; returns the manifest.
@@ -94,7 +94,11 @@ fn split_writes_a_checked_coverage_proof_and_hashes_every_file() {
     for e in &entries {
         let name = e["name"].as_str().unwrap();
         let bytes = std::fs::read(dir.path("sp").join(name)).unwrap();
-        assert_eq!(e["sha256"], orbitcnf::artifact::sha256_hex(&bytes), "{name}");
+        assert_eq!(
+            e["sha256"],
+            orbitcnf::artifact::sha256_hex(&bytes),
+            "{name}"
+        );
     }
     // The coverage CNF: the negation of every cube plus the profile's order
     // encoding (and the lex-leader clauses); its proof is accepted by our checker.
@@ -381,7 +385,7 @@ fn cadical_as_external_solver_on_feasible_infeasible_and_limited_questions() {
     let v = check_report(&dir, &q, &run);
     assert_eq!(v["verdict"], "feasible");
     assert!(v["stats"]["solver"].as_str().unwrap().contains("cadical"));
-    // Infeasible without a proof: an uncertified claim.
+    // Infeasible without a proof: the solver's claim is not a verdict …
     let q = Q::cube(-1, 1, 3, 9);
     let run = dir
         .orbitcnf()
@@ -391,7 +395,26 @@ fn cadical_as_external_solver_on_feasible_infeasible_and_limited_questions() {
         .arg("--json")
         .run();
     let v = check_report(&dir, &q, &run);
+    assert_eq!(v["verdict"], "unknown");
+    assert!(
+        v["reason"]
+            .as_str()
+            .unwrap()
+            .contains("no proof was checked"),
+        "{v}"
+    );
+    // … unless the user accepts it, and then it is marked unchecked.
+    let run = dir
+        .orbitcnf()
+        .arg("decide")
+        .args(q.args())
+        .args(ext)
+        .args(["--json", "--trust-solver"])
+        .run();
+    let v = check_report(&dir, &q, &run);
+    run.code(UNCHECKED);
     assert_eq!(v["verdict"], "infeasible");
+    assert_eq!(v["certified"], false);
     assert_eq!(v["certificate"]["kind"], "solver-claim");
     // With a DRAT proof: checked through rate when rate is installed.
     let run = dir
@@ -402,14 +425,12 @@ fn cadical_as_external_solver_on_feasible_infeasible_and_limited_questions() {
         .args(["--proof-arg", "{}", "--json"])
         .run();
     let v = check_report(&dir, &q, &run);
-    assert_eq!(v["verdict"], "infeasible");
-    let rate = std::env::var_os("PATH")
-        .is_some_and(|p| std::env::split_paths(&p).any(|d| d.join("rate").is_file()));
-    if rate {
+    if have_tool("rate") {
+        assert_eq!(v["verdict"], "infeasible");
         assert_eq!(v["certificate"]["kind"], "checked-proof", "{v}");
     } else {
-        eprintln!("note: rate is not installed; the DRAT proof stays unchecked");
-        assert_eq!(v["certificate"]["kind"], "solver-claim", "{v}");
+        // Without rate the DRAT proof stays unchecked, so the claim is no verdict.
+        assert_eq!(v["verdict"], "unknown", "{v}");
         assert!(
             v["stats"]["solver"]
                 .as_str()
@@ -468,13 +489,28 @@ fn cadical_solves_cubes_and_merge_marks_them_uncertified() {
             ])
             .run()
             .code(0)
-            .stdout_has("uncertified");
+            .stdout_has("infeasible, UNCHECKED (no proof");
     }
+    // Unchecked cubes are pending unless the user accepts solvers' claims …
     let m = dir.orbitcnf().args(["merge", "sp", "--json"]).run();
-    m.code(INFEASIBLE);
+    m.code(UNKNOWN);
+    let v = m.json();
+    assert_eq!(v["pending"].as_array().unwrap().len(), n);
+    assert_eq!(v["pending"][0]["state"], "unchecked");
+    // … and then the verdict says that it rests on them.
+    let m = dir
+        .orbitcnf()
+        .args(["merge", "sp", "--json", "--trust-solver"])
+        .run();
+    m.code(UNCHECKED);
     let v = m.json();
     assert_eq!(v["certificate"]["kind"], "partly-uncertified");
     assert_eq!(v["uncertified"].as_array().unwrap().len(), n);
+    dir.orbitcnf()
+        .args(["merge", "sp", "--trust-solver"])
+        .run()
+        .code(UNCHECKED)
+        .stdout_has("INFEASIBLE, UNCHECKED");
     // A standalone cube file is a CNF that `decode` reads back.
     let run = dir
         .program("cadical")
@@ -483,9 +519,14 @@ fn cadical_solves_cubes_and_merge_marks_them_uncertified() {
     run.code(INFEASIBLE);
     dir.write("out.txt", &run.stdout);
     dir.orbitcnf()
-        .args(["decode", "sp/cubes/cube-0000.cnf", "out.txt"])
+        .args([
+            "decode",
+            "sp/cubes/cube-0000.cnf",
+            "out.txt",
+            "--trust-solver",
+        ])
         .run()
-        .code(INFEASIBLE);
+        .code(UNCHECKED);
 }
 
 /// Fake solvers that lie: each is caught with a one-line error, never a verdict.

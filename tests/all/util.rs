@@ -31,6 +31,8 @@ use orbitcnf::{Grid, Question, Report, Verdict};
 pub const FEASIBLE: i32 = 10;
 /// Exit code of an infeasible answer.
 pub const INFEASIBLE: i32 = 20;
+/// Exit code of an infeasible answer that rests on a solver's unchecked word.
+pub const UNCHECKED: i32 = 21;
 /// Exit code of an unknown answer (and of commands with no verdict).
 pub const UNKNOWN: i32 = 0;
 /// Exit code of an error.
@@ -108,6 +110,7 @@ impl TestDir {
 pub struct Cmd {
     cmd: Command,
     shown: Vec<String>,
+    input: Option<Vec<u8>>,
 }
 
 impl Cmd {
@@ -120,6 +123,7 @@ impl Cmd {
         Cmd {
             cmd,
             shown: vec![short],
+            input: None,
         }
     }
 
@@ -142,15 +146,36 @@ impl Cmd {
         self
     }
 
+    /// Feeds `bytes` to the command's standard input (instead of none).
+    pub fn stdin(&mut self, bytes: impl Into<Vec<u8>>) -> &mut Cmd {
+        self.input = Some(bytes.into());
+        self.shown.push("< input".into());
+        self
+    }
+
     /// Runs the command to completion. Fails the test if the program could
     /// not be started, was killed by a signal, or panicked.
     pub fn run(&mut self) -> Run {
         let shown = self.shown.join(" ");
         let t0 = Instant::now();
-        let out = self
-            .cmd
-            .output()
-            .unwrap_or_else(|e| panic!("could not run `{shown}`: {e}"));
+        let out = match self.input.take() {
+            None => self.cmd.output(),
+            Some(bytes) => {
+                use std::io::Write;
+                self.cmd
+                    .stdin(Stdio::piped())
+                    .stdout(Stdio::piped())
+                    .stderr(Stdio::piped());
+                self.cmd.spawn().and_then(|mut child| {
+                    let mut pipe = child.stdin.take().expect("piped stdin");
+                    let fed = pipe.write_all(&bytes);
+                    drop(pipe);
+                    let out = child.wait_with_output();
+                    fed.and(out)
+                })
+            }
+        }
+        .unwrap_or_else(|e| panic!("could not run `{shown}`: {e}"));
         let run = Run {
             shown,
             code: out.status.code(),
@@ -472,7 +497,8 @@ pub fn check_report(dir: &TestDir, q: &Q, run: &Run) -> Value {
     let verdict = v["verdict"].as_str().unwrap_or("<missing>");
     let want_code = match verdict {
         "feasible" => FEASIBLE,
-        "infeasible" => INFEASIBLE,
+        "infeasible" if v["certified"] == true => INFEASIBLE,
+        "infeasible" => UNCHECKED,
         "unknown" => UNKNOWN,
         other => run.fail("the verdict", "feasible, infeasible or unknown", other),
     };
@@ -534,7 +560,39 @@ pub fn assert_decides(dir: &TestDir, q: &Q, expect: Expect) -> Value {
             v["verdict"].as_str().unwrap_or("<missing>"),
         );
     }
+    assert_certified(&run, &v);
     v
+}
+
+/// Asserts that the verdict of the report `v` rests on checked evidence: a
+/// feasible one on a witness, an infeasible one on an LRAT proof that
+/// orbitcnf's checker accepted (with its steps and empty clause), never on a
+/// solver's word.
+pub fn assert_certified(run: &Run, v: &Value) {
+    let kind = v["certificate"]["kind"].as_str().unwrap_or("<missing>");
+    match v["verdict"].as_str() {
+        Some("feasible") if kind != "witness" => run.fail("the certificate", "witness", kind),
+        Some("infeasible") => {
+            if kind != "checked-proof" {
+                run.fail("the certificate", "checked-proof", kind);
+            }
+            let steps = v["certificate"]["lrat"]["steps"].as_u64().unwrap_or(0);
+            let empty = v["certificate"]["lrat"]["empty_clause_id"]
+                .as_u64()
+                .unwrap_or(0);
+            if steps == 0 || empty == 0 {
+                run.fail(
+                    "a checked proof",
+                    "steps and an empty clause",
+                    &v["certificate"].to_string(),
+                );
+            }
+        }
+        _ => {}
+    }
+    if v["verdict"] != "unknown" && v["certified"] != true {
+        run.fail("\"certified\"", "true", &v["certified"].to_string());
+    }
 }
 
 /// Decides `q` through the library with the bundled solver and no limits;
@@ -581,6 +639,20 @@ pub fn decide_lib_with(q: &Q, options: &EncodeOptions) -> Report {
     report
 }
 
+/// Says that a test is skipped, and why, where the person running the tests
+/// sees it: libtest captures `eprintln!`, not a direct write to stderr.
+pub fn skip(why: &str) {
+    use std::io::Write;
+    let name = std::thread::current()
+        .name()
+        .unwrap_or("a test")
+        .to_string();
+    let _ = writeln!(
+        std::io::stderr(),
+        "SKIPPED {name}: {why} (under CI this test fails instead)"
+    );
+}
+
 /// Whether an external program is on the PATH. When it is missing the test
 /// fails if the environment variable `CI` is set (CI must install it), and
 /// otherwise prints a note and returns false, so the caller skips.
@@ -599,7 +671,7 @@ pub fn have_tool(name: &str) -> bool {
         if std::env::var_os("CI").is_some() {
             panic!("{name} is not installed, and CI is set: .ci/run must install it");
         }
-        eprintln!("note: {name} is not installed; skipping this test (it fails when CI is set)");
+        skip(&format!("{name} is not installed"));
     }
     found
 }

@@ -1,0 +1,467 @@
+//! Argument groups that several commands share, flattened into each
+//! command's arguments, with their parse tests beside them.
+//!
+//! What the user typed is validated here (values, combinations); the
+//! library's objects — [`Question`], [`EncodeOptions`], [`Solver`] — are
+//! built from it by the `question`, `options` and `solver` methods.
+
+use std::path::PathBuf;
+use std::time::Duration;
+
+use clap::Args;
+
+use orbitcnf::decide::Solver;
+use orbitcnf::encode::{DEFAULT_MAX_CLAUSES, EncodeOptions, Symmetry};
+use orbitcnf::points::PointSet;
+use orbitcnf::question::MapClass;
+use orbitcnf::solve::external::{External, ProofFormat, ProofRequest};
+use orbitcnf::split::jobs::JobsOptions;
+use orbitcnf::{Error, Grid, Question};
+
+/// The domain D: a box (`--grid`, `--dim`) or a point set (`--points`).
+#[derive(Args, Debug, Clone)]
+pub struct DomainArgs {
+    /// The dimension n; needed only when --grid gives one range for all coordinates.
+    #[arg(long, value_name = "N")]
+    pub dim: Option<usize>,
+    /// The grid: one inclusive range for every coordinate (`-1..1`) or one per
+    /// coordinate (`0..1,-1..1,0..3`). Write `--grid=-1..1` so the leading
+    /// minus is not taken for a flag.
+    #[arg(
+        long,
+        value_name = "SPEC",
+        default_value = "-1..1",
+        allow_hyphen_values = true,
+        value_parser = parse_grid_text
+    )]
+    pub grid: String,
+    /// A domain that need not be a box: a file with one integer point per
+    /// line (`0 1` or `0,1`; `#` comments) or JSON `[[0,1],[2,2]]`. The
+    /// question becomes "a periodic orbit of a nonexpansive map D → D",
+    /// answered with the full-map formulation (encodings/full-map.md).
+    #[arg(long, value_name = "FILE", conflicts_with_all = ["grid", "dim"])]
+    pub points: Option<PathBuf>,
+}
+
+impl DomainArgs {
+    /// Whether the domain is a point set.
+    pub fn is_points(&self) -> bool {
+        self.points.is_some()
+    }
+
+    /// The box, when the domain is one.
+    ///
+    /// # Errors
+    /// A bad grid or dimension.
+    pub fn grid(&self) -> Result<Grid, Error> {
+        if self.dim == Some(0) {
+            return Err(Error::Question(
+                "the dimension must be at least 1 (got --dim 0)".into(),
+            ));
+        }
+        Grid::parse(&self.grid, self.dim)
+    }
+
+    /// The point set, when the domain is one.
+    ///
+    /// # Errors
+    /// An unreadable or malformed point file.
+    pub fn point_set(&self) -> Result<Option<PointSet>, Error> {
+        self.points.as_deref().map(PointSet::read).transpose()
+    }
+
+    /// The question of period `period` about `class` on this domain.
+    ///
+    /// # Errors
+    /// A bad domain or period.
+    pub fn question(&self, period: usize, class: MapClass) -> Result<Question, Error> {
+        let q = match self.point_set()? {
+            Some(d) => Question::on_points(d, period)?,
+            None => Question::new(self.grid()?, period)?,
+        };
+        Ok(q.with_class(class))
+    }
+}
+
+/// Accepts `-1..1` after `--grid` but not a flag that follows a missing value.
+fn parse_grid_text(s: &str) -> Result<String, String> {
+    if s.starts_with("--")
+        || (s.starts_with('-') && s[1..].starts_with(|c: char| c.is_ascii_alphabetic()))
+    {
+        return Err(format!(
+            "{s:?} is a flag, not a grid; give a value such as --grid=-1..1"
+        ));
+    }
+    Ok(s.to_string())
+}
+
+/// The map class flag.
+#[derive(Args, Debug, Clone)]
+pub struct ClassArgs {
+    /// The class of maps: `nonexpansive` (sup-norm nonexpansive maps D → D,
+    /// the default) or `topical` (p distinct points of D forming an orbit of
+    /// a topical map R^n → R^n; see encodings/topical.md).
+    #[arg(long = "class", value_name = "CLASS", default_value = "nonexpansive", value_parser = parse_class)]
+    pub class: MapClass,
+}
+
+/// Parses a map class name.
+pub fn parse_class(s: &str) -> Result<MapClass, String> {
+    s.parse().map_err(|e: Error| e.to_string())
+}
+
+/// A whole question: domain, period and class.
+#[derive(Args, Debug, Clone)]
+pub struct QuestionArgs {
+    #[command(flatten)]
+    pub domain: DomainArgs,
+    /// The minimal period p asked for.
+    #[arg(long, short = 'p', value_name = "P", default_value_t = 8)]
+    pub period: usize,
+    #[command(flatten)]
+    pub class: ClassArgs,
+}
+
+impl QuestionArgs {
+    /// The question.
+    ///
+    /// # Errors
+    /// A bad domain or period.
+    pub fn question(&self) -> Result<Question, Error> {
+        self.domain.question(self.period, self.class.class)
+    }
+}
+
+/// How the question is encoded.
+#[derive(Args, Debug, Clone)]
+pub struct EncodingArgs {
+    /// Symmetry breaking: `all` (the default), `none`, or a comma-separated
+    /// list of translate, multiplier, rotate, isometry, stabilizer, reverse
+    /// (stabilizer needs isometry, reverse needs stabilizer). Every
+    /// combination is sound; see encodings/symmetry.md.
+    #[arg(long, value_name = "LIST", default_value = "all")]
+    pub symmetry: String,
+    /// Leave out the redundant occupancy count (on by default; it lets the
+    /// solver refute "p points in fewer than p places" quickly). In the
+    /// full-map formulation: leave out the redundant orbit distance profile.
+    #[arg(long)]
+    pub no_count: bool,
+    /// Leave out the redundant packing bound (on by default; it refutes
+    /// "too many pairwise far points" by weighted counting over windows).
+    #[arg(long)]
+    pub no_packing: bool,
+    /// Leave out the profile exclusions (on by default): one clause per
+    /// subgroup profile the window count rules out, and "a triangle-free close
+    /// graph has at most one edge per window"; see encodings/redundant.md.
+    #[arg(long)]
+    pub no_classes: bool,
+    /// The formulation: `cycle` (isometric cycles; boxes only; the default
+    /// on boxes) or `full-map` (the whole map f: D → D; the only one for
+    /// --points, and available on boxes for comparison).
+    #[arg(long, value_name = "NAME", value_parser = ["cycle", "full-map"])]
+    pub formulation: Option<String>,
+    /// Refuse to build formulas with more clauses than this.
+    #[arg(long, value_name = "N", default_value_t = DEFAULT_MAX_CLAUSES)]
+    pub max_clauses: u64,
+}
+
+impl EncodingArgs {
+    /// The options for a question on a box (`point_set` false) or a point
+    /// set: a point set refuses the cycle formulation, which would answer a
+    /// different question there.
+    ///
+    /// # Errors
+    /// A bad symmetry list, or the cycle formulation on a point set.
+    pub fn options(&self, point_set: bool) -> Result<EncodeOptions, Error> {
+        if point_set && self.formulation.as_deref() == Some("cycle") {
+            return Err(Error::Options(
+                "--formulation cycle answers the question only on boxes: on a point set an \
+                 isometric cycle need not extend to a map D → D; use full-map (the default with --points)"
+                    .into(),
+            ));
+        }
+        let base = match self.formulation.as_deref() {
+            Some("full-map") => EncodeOptions::full_map(),
+            _ => EncodeOptions::default(),
+        };
+        Ok(EncodeOptions {
+            symmetry: Symmetry::parse(&self.symmetry)?,
+            count: !self.no_count,
+            packing: !self.no_packing,
+            classes: !self.no_classes,
+            ..base
+        })
+    }
+}
+
+/// Parses a time limit in seconds: positive, finite, below 10^9.
+pub fn parse_seconds(s: &str) -> Result<Duration, String> {
+    let v: f64 = s
+        .parse()
+        .map_err(|_| format!("{s:?} is not a number of seconds"))?;
+    if !(v > 0.0) || v.is_nan() {
+        return Err(format!(
+            "the time limit must be a positive number of seconds, got {s}"
+        ));
+    }
+    if v >= 1e9 {
+        return Err(format!(
+            "the time limit must be below 1e9 seconds (about 31 years), got {s}; \
+             leave the option out for no limit"
+        ));
+    }
+    Ok(Duration::from_secs_f64(v))
+}
+
+/// Which SAT solver to use.
+#[derive(Args, Debug, Clone)]
+pub struct SolverArgs {
+    /// The SAT solver: `bundled` (varisat; infeasible answers come with an
+    /// LRAT proof checked by orbitcnf) or `external:'COMMAND ARGS'`, any
+    /// DIMACS solver that follows the competition conventions (prints `s` and
+    /// `v` lines, exits 10/20, or 0 for unknown), run as COMMAND ARGS CNF; e.g.
+    /// --solver external:'cadical -q'. Its model is checked against every
+    /// clause and decoded as `decode` does; a solver that crashes, lies or is
+    /// missing is an error, never a verdict. Without --proof-arg its
+    /// "unsatisfiable" is an unchecked claim (see --trust-solver).
+    #[arg(long, value_name = "SOLVER", default_value = "bundled")]
+    pub solver: String,
+    /// With an external solver: ask it for a proof of an "unsatisfiable"
+    /// answer. ARG is appended after the CNF path with every {} replaced by
+    /// the proof file's path (CaDiCaL and Kissat: --proof-arg '{}'); repeat
+    /// for several arguments. An LRAT proof is checked by orbitcnf's checker;
+    /// a DRAT proof is converted to LRAT by `rate` when it is on PATH and then
+    /// checked; without `rate` the answer stays unchecked and says so.
+    #[arg(long, value_name = "ARG", allow_hyphen_values = true)]
+    pub proof_arg: Vec<String>,
+    /// The format of the external solver's proof: drat (CaDiCaL's default,
+    /// text or binary) or lrat.
+    #[arg(long, value_name = "FORMAT", default_value = "drat")]
+    pub proof_format: ProofFormat,
+}
+
+impl SolverArgs {
+    /// The external solver with its proof request, or `None` for the bundled one.
+    ///
+    /// # Errors
+    /// An unknown solver, a bad command line, or a proof request that
+    /// contradicts `certify`.
+    pub fn external(&self, certify: bool) -> Result<Option<External>, Error> {
+        let s = self.solver.trim();
+        if s == "bundled" {
+            if !self.proof_arg.is_empty() {
+                return Err(Error::Options(
+                    "--proof-arg is for external solvers; the bundled solver always certifies"
+                        .into(),
+                ));
+            }
+            return Ok(None);
+        }
+        let Some(cmd) = s.strip_prefix("external:") else {
+            return Err(Error::Options(format!(
+                "unknown solver {s:?}; write --solver bundled or --solver external:'COMMAND ARGS'"
+            )));
+        };
+        let mut ext = External::parse(cmd)?;
+        if !self.proof_arg.is_empty() {
+            if !certify {
+                return Err(Error::Options(
+                    "--proof-arg and --no-certify contradict each other".into(),
+                ));
+            }
+            ext.proof = Some(ProofRequest {
+                args: self.proof_arg.clone(),
+                format: self.proof_format,
+                keep_lrat: None,
+                keep_raw: None,
+            });
+        }
+        Ok(Some(ext))
+    }
+}
+
+/// Whether refutations must be checked.
+#[derive(Args, Debug, Clone)]
+pub struct CertifyArgs {
+    /// Do not produce or check a proof for an infeasible answer (faster).
+    /// The verdict then rests on the solver's word: it is printed as
+    /// INFEASIBLE, UNCHECKED, marked "certified": false in JSON, and exits
+    /// with 21 instead of 20. Implies --trust-solver.
+    #[arg(long)]
+    pub no_certify: bool,
+    /// Accept a solver's unchecked claim that no such map exists (an
+    /// external solver without --proof-arg, or a `decode` without --proof)
+    /// as an infeasible verdict, marked UNCHECKED (exit 21). Without this, an
+    /// unchecked claim is reported as unknown (exit 0), so that nothing
+    /// unchecked can pass for a refutation.
+    #[arg(long)]
+    pub trust_solver: bool,
+}
+
+impl CertifyArgs {
+    /// Whether unchecked claims count as verdicts.
+    pub fn accept_claims(&self) -> bool {
+        self.no_certify || self.trust_solver
+    }
+}
+
+/// `decide`'s scale-out flags.
+#[derive(Args, Debug, Clone)]
+pub struct ScaleArgs {
+    #[command(flatten)]
+    pub solver: SolverArgs,
+    /// Split the question into cubes (as `orbitcnf split` does) and solve
+    /// them on K threads with the bundled solver. Each cube's LRAT proof is
+    /// checked, and an infeasible answer comes with one LRAT proof of the
+    /// whole CNF assembled from them, checked like a monolithic one.
+    #[arg(long, short = 'j', value_name = "K", default_value_t = 1)]
+    pub jobs: usize,
+    /// With --jobs: how many cubes to aim for (default: 8 per thread).
+    #[arg(long, value_name = "N")]
+    pub cubes: Option<usize>,
+}
+
+impl ScaleArgs {
+    /// The library's solver choice.
+    ///
+    /// # Errors
+    /// As [`SolverArgs::external`]; an external solver with --jobs.
+    pub fn solver(&self, certify: bool) -> Result<Solver, Error> {
+        let parallel = self.jobs != 1 || self.cubes.is_some();
+        match (self.solver.external(certify)?, parallel) {
+            (Some(_), true) => Err(Error::Options(
+                "--jobs runs the bundled solver; for an external solver use \
+                 `orbitcnf split` and `orbitcnf run-cube --solver …`"
+                    .into(),
+            )),
+            (Some(ext), false) => Ok(Solver::External(ext)),
+            (None, true) => Ok(Solver::Cubes(JobsOptions {
+                jobs: self.jobs,
+                cubes: self
+                    .cubes
+                    .unwrap_or_else(|| JobsOptions::default_cubes(self.jobs)),
+                certify,
+                lrat: None,
+            })),
+            (None, false) => Ok(Solver::Bundled { certify }),
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use clap::Parser;
+
+    use super::*;
+
+    #[derive(Parser, Debug)]
+    struct T {
+        #[command(flatten)]
+        q: QuestionArgs,
+        #[command(flatten)]
+        e: EncodingArgs,
+        #[command(flatten)]
+        s: ScaleArgs,
+        #[command(flatten)]
+        c: CertifyArgs,
+        #[arg(long, value_parser = parse_seconds)]
+        time_limit: Option<Duration>,
+    }
+
+    fn parse(args: &[&str]) -> Result<T, String> {
+        T::try_parse_from(std::iter::once("t").chain(args.iter().copied()))
+            .map_err(|e| e.to_string())
+    }
+
+    #[test]
+    fn domains_come_from_a_grid_or_a_point_file() {
+        let t = parse(&["--grid=-1..1", "--dim", "4", "-p", "17"]).unwrap();
+        let q = t.q.question().unwrap();
+        assert_eq!((q.grid.dim(), q.period), (4, 17));
+        assert!(parse(&["--grid", "-1..1", "--dim", "2"]).is_ok());
+        // A flag where the grid should be is refused (main names it; see
+        // `grid_missing_its_value`).
+        assert!(parse(&["--grid", "--dim", "2"]).is_err());
+        let e = parse(&["--grid", "-dim"]).unwrap_err();
+        assert!(e.contains("is a flag, not a grid"), "{e}");
+        let e = parse(&["--points", "d.txt", "--grid=0..1"]).unwrap_err();
+        assert!(e.contains("cannot be used with"), "{e}");
+        let zero = parse(&["--dim", "0"]).unwrap().q.question().unwrap_err();
+        assert!(zero.to_string().contains("at least 1"), "{zero}");
+    }
+
+    #[test]
+    fn the_cycle_formulation_is_refused_on_point_sets() {
+        let t = parse(&["--formulation", "cycle"]).unwrap();
+        assert!(t.e.options(false).is_ok());
+        let e = t.e.options(true).unwrap_err().to_string();
+        assert!(e.contains("only on boxes"), "{e}");
+        assert!(parse(&["--formulation", "loop"]).is_err());
+        assert!(
+            parse(&["--symmetry", "all"])
+                .unwrap()
+                .e
+                .options(false)
+                .is_ok()
+        );
+        assert!(
+            parse(&["--symmetry", "twist"])
+                .unwrap()
+                .e
+                .options(false)
+                .is_err()
+        );
+    }
+
+    #[test]
+    fn time_limits_are_positive_finite_and_not_absurd() {
+        assert_eq!(
+            parse(&["--time-limit", "1.5"]).unwrap().time_limit,
+            Some(Duration::from_millis(1500))
+        );
+        for (bad, says) in [
+            ("0", "positive"),
+            ("-3", "unexpected argument"),
+            ("NaN", "positive"),
+            ("soon", "not a number"),
+            ("1e300", "below 1e9 seconds"),
+            ("inf", "below 1e9 seconds"),
+        ] {
+            let e = parse(&["--time-limit", bad]).unwrap_err();
+            assert!(e.contains(says), "{bad}: {e}");
+        }
+    }
+
+    #[test]
+    fn solvers_and_certification_fit_together() {
+        let t = parse(&[]).unwrap();
+        assert!(matches!(
+            t.s.solver(true),
+            Ok(Solver::Bundled { certify: true })
+        ));
+        assert!(!t.c.accept_claims());
+        let t = parse(&["--no-certify"]).unwrap();
+        assert!(t.c.accept_claims());
+        let t = parse(&["--trust-solver"]).unwrap();
+        assert!(t.c.accept_claims());
+        let t = parse(&["-j", "2"]).unwrap();
+        assert!(matches!(t.s.solver(true), Ok(Solver::Cubes(o)) if o.cubes == 16));
+        let t = parse(&["--solver", "external:cadical -q", "-j", "2"]).unwrap();
+        assert!(t.s.solver(true).unwrap_err().to_string().contains("--jobs"));
+        let t = parse(&["--solver", "external:cadical", "--proof-arg", "{}"]).unwrap();
+        assert!(matches!(t.s.solver(true), Ok(Solver::External(e)) if e.proof.is_some()));
+        assert!(t.s.solver(false).is_err(), "--proof-arg with --no-certify");
+        let t = parse(&["--solver", "kissat"]).unwrap();
+        assert!(
+            t.s.solver(true)
+                .unwrap_err()
+                .to_string()
+                .contains("unknown solver")
+        );
+        let t = parse(&["--proof-arg", "{}"]).unwrap();
+        assert!(
+            t.s.solver(true).is_err(),
+            "--proof-arg with the bundled solver"
+        );
+    }
+}

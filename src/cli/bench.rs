@@ -1,0 +1,65 @@
+//! `bench`: the fixed benchmark set, or the timed {-1,0,1}^4 spectrum.
+
+use std::time::Duration;
+
+use clap::Args;
+
+use super::args::parse_seconds;
+use super::{Outcome, print, print_either};
+
+/// Arguments of `bench`.
+#[derive(Args, Debug)]
+pub struct BenchArgs {
+    /// Leave out the cases whose baselines take minutes ({-1,0,1}^4 with
+    /// p = 18, 20, 21 and 24).
+    #[arg(long)]
+    quick: bool,
+    /// Time limit per run, in seconds; a baseline that hits it shows `>LIMIT`.
+    #[arg(long, value_name = "SECS", value_parser = parse_seconds, default_value = "600")]
+    time_limit: Duration,
+    /// Only the default encoding, no baselines.
+    #[arg(long)]
+    no_baselines: bool,
+    /// Only the named cases (comma-separated, e.g. t4-p17,t3-p9).
+    #[arg(long, value_name = "NAMES")]
+    only: Option<String>,
+    /// Print one JSON object per case (JSON Lines) instead of the table.
+    #[arg(long)]
+    json: bool,
+    /// Instead of the cases: time the whole spectrum of {-1,0,1}^4
+    /// (p = 1..32, every answer certified) with --jobs workers, against its
+    /// 15-minute target.
+    #[arg(long)]
+    spectrum: bool,
+    /// Worker threads for --spectrum (default: the number of cores).
+    #[arg(long, value_name = "N")]
+    jobs: Option<usize>,
+}
+
+/// Runs `bench`.
+pub fn run(a: BenchArgs) -> Outcome {
+    use orbitcnf::bench;
+    if a.spectrum {
+        let jobs = a.jobs.unwrap_or_else(orbitcnf::spectrum::default_jobs);
+        let f = bench::run_spectrum(jobs, a.time_limit)?;
+        print_either(
+            a.json,
+            || serde_json::to_string(&f).expect("serialises"),
+            || bench::format_spectrum(&f) + "\n",
+        )?;
+        return Ok(0);
+    }
+    let cases = bench::select(a.quick, a.only.as_deref())?;
+    if !a.json {
+        print(&format!("{}\n", bench::header()))?;
+    }
+    for case in &cases {
+        let row = bench::run_case(case, a.time_limit, !a.no_baselines)?;
+        print_either(
+            a.json,
+            || serde_json::to_string(&row).expect("serialises"),
+            || bench::format_row(&row) + "\n",
+        )?;
+    }
+    Ok(0)
+}

@@ -1,0 +1,208 @@
+//! `split`, `run-cube` and `merge`: a question cut into cubes that are
+//! solved anywhere and combined here.
+
+use std::path::PathBuf;
+use std::time::Duration;
+
+use clap::Args;
+
+use orbitcnf::solve::bundled::Bundled;
+use orbitcnf::solve::certified::Certified;
+use orbitcnf::solve::{Backend, Limits};
+use orbitcnf::split::{self, run as cube_run};
+
+use super::args::{EncodingArgs, QuestionArgs, SolverArgs, parse_seconds};
+use super::{Outcome, code, print, print_either};
+
+/// The long help of `split`.
+pub const SPLIT_HELP: &str = "\
+How the space is cut: a cube fixes a prefix g(1..j) of the distance profile
+g(k) = ‖x_i − x_{i+k}‖∞; prefixes are refined breadth-first until there are
+at least --cubes of them (or every profile is fixed), and prefixes that no
+multiplier lex-leader extends are dropped. coverage.cnf (the profile's order
+encoding and lex-leader clauses of formula.cnf, plus the negation of every
+cube) is refuted and its LRAT proof checked before anything is written: every
+model of formula.cnf lies in some cube (encodings/cubes.md).
+
+The folder:
+  manifest.json        question, options, cube list, SHA-256 of every file
+  formula.cnf          the whole CNF (orbitcnf header)
+  cubes.icnf           the CNF in iCNF: 'p inccnf', the clauses, one 'a … 0' per cube
+  cubes/cube-NNNN.cnf  the CNF plus the cube's units; `orbitcnf decode` reads
+                       any solver's output on it
+  coverage.cnf, coverage.lrat   the coverage check and its proof
+  results/             filled by run-cube
+
+Then: orbitcnf run-cube DIR INDEX for every index (see docs/cluster.md for
+Slurm and GNU parallel), and orbitcnf merge DIR.";
+
+/// The long help of `run-cube`.
+pub const RUN_CUBE_HELP: &str = "\
+The result file is written atomically, so a killed run leaves no partial
+result; a cube that already has a final result (feasible or infeasible) is
+skipped unless --force, so rerunning every index redoes only what is missing.
+With the bundled solver an infeasible cube's LRAT proof is checked and kept as
+results/cube-NNNN.lrat; merge checks it again.
+
+Exit codes: 0 when a result was written (whatever the verdict: it is in the
+result file, and merge combines them), 1 on error (a failed or lying solver is
+recorded in the result file as status \"error\" before exiting).";
+
+/// The long help of `merge`.
+pub const MERGE_HELP: &str = "\
+merge re-encodes the question and checks that formula.cnf, every cube file and
+coverage.cnf are byte for byte what this orbitcnf writes, re-checks the
+coverage proof, re-verifies every orbit and re-checks every cube's LRAT proof
+against its cube CNF. The verdict is feasible if some cube is, infeasible if
+every cube is refuted, and unknown otherwise, with the missing or failed cubes
+listed by index (rerun them with run-cube, or get the list with --pending).
+
+Exit codes (the SAT convention):
+  10  feasible (the orbit is printed and checked)
+  20  infeasible (every cube refuted and the cubes cover the space)
+   0  unknown: some cube has no usable result (or --pending)
+   1  error: the split folder is damaged or from another orbitcnf version";
+
+/// Arguments of `split`.
+#[derive(Args, Debug)]
+pub struct SplitArgs {
+    #[command(flatten)]
+    question: QuestionArgs,
+    #[command(flatten)]
+    encoding: EncodingArgs,
+    /// How many cubes to aim for: prefixes of the profile are refined until
+    /// there are at least this many (fewer when the profile runs out).
+    #[arg(long, value_name = "N", default_value_t = 16)]
+    cubes: usize,
+    /// The folder to write (created). Run again on a folder that holds the
+    /// same split, it writes again any file that is missing or damaged and
+    /// keeps the results; a split of another question there is an error.
+    #[arg(long, value_name = "DIR")]
+    out: PathBuf,
+    /// Print the manifest as JSON instead of the summary.
+    #[arg(long)]
+    json: bool,
+}
+
+/// Runs `split`.
+pub fn run_split(a: SplitArgs) -> Outcome {
+    let q = a.question.question()?;
+    let options = a.encoding.options(q.points.is_some())?;
+    let w = split::write_split(&a.out, &q, &options, a.cubes, a.encoding.max_clauses)?;
+    if !w.restored.is_empty() {
+        eprintln!(
+            "the split in {} was repaired: written again: {}",
+            a.out.display(),
+            w.restored.join(", ")
+        );
+    }
+    print_either(
+        a.json,
+        || serde_json::to_string(&w.manifest).expect("serialises"),
+        || w.manifest.summary(&a.out, &q.statement()),
+    )?;
+    Ok(0)
+}
+
+/// Arguments of `run-cube`.
+#[derive(Args, Debug)]
+pub struct RunCubeArgs {
+    /// The split folder written by `orbitcnf split`.
+    dir: PathBuf,
+    /// The cube's index, from 0.
+    index: usize,
+    #[command(flatten)]
+    solver: SolverArgs,
+    /// Give up after this many seconds and record "unknown".
+    #[arg(long, value_name = "SECS", value_parser = parse_seconds)]
+    time_limit: Option<Duration>,
+    /// With the bundled solver: do not produce or check a proof (the result
+    /// is then an unchecked claim, which merge counts only with
+    /// --trust-solver).
+    #[arg(long)]
+    no_certify: bool,
+    /// Solve again even if the cube already has a final result.
+    #[arg(long)]
+    force: bool,
+    /// Print the result as JSON.
+    #[arg(long)]
+    json: bool,
+    /// Do not show the progress line on stderr.
+    #[arg(long, short)]
+    quiet: bool,
+}
+
+/// Runs `run-cube`.
+pub fn run_cube(a: RunCubeArgs) -> Outcome {
+    let limits = Limits {
+        time: a.time_limit,
+        progress: !a.quiet && !a.json,
+    };
+    let lrat = cube_run::lrat_target(&a.dir, a.index);
+    let mut external = a.solver.external(!a.no_certify)?;
+    if let Some(p) = external.as_mut().and_then(|e| e.proof.as_mut()) {
+        p.keep_lrat = Some(lrat.clone());
+    }
+    let mut bundled = Bundled;
+    let mut certified = Certified {
+        lrat: Some(lrat),
+        drat: None,
+    };
+    let backend: &mut dyn Backend = match (external.as_mut(), a.no_certify) {
+        (Some(ext), _) => ext,
+        (None, true) => &mut bundled,
+        (None, false) => &mut certified,
+    };
+    let outcome = cube_run::run_cube(&a.dir, a.index, backend, &limits, a.force)?;
+    let (r, note) = match &outcome {
+        cube_run::RunOutcome::Solved(r) => (r, ""),
+        cube_run::RunOutcome::AlreadyDone(r) => (r, " (already solved; --force solves again)"),
+    };
+    print_either(
+        a.json,
+        || serde_json::to_string(r).expect("serialises"),
+        || r.to_text(note),
+    )?;
+    Ok(0)
+}
+
+/// Arguments of `merge`.
+#[derive(Args, Debug)]
+pub struct MergeArgs {
+    /// The split folder.
+    dir: PathBuf,
+    /// When every cube is refuted with a proof: also assemble one LRAT proof
+    /// of formula.cnf from the cube proofs and the coverage proof, check it,
+    /// and write it to FILE (checkable with `orbitcnf verify-proof
+    /// DIR/formula.cnf FILE` or any LRAT checker).
+    #[arg(long, value_name = "FILE")]
+    proof: Option<PathBuf>,
+    /// Only print the indices of the cubes without a final result, one per
+    /// line (for rerunning them), and exit 0.
+    #[arg(long)]
+    pending: bool,
+    /// Count cubes refuted only on a solver's word (run-cube --no-certify,
+    /// or an external solver without a proof) as refuted; the verdict is
+    /// then INFEASIBLE, UNCHECKED (exit 21). Without this they are pending.
+    #[arg(long)]
+    trust_solver: bool,
+    /// Print one JSON object instead of text.
+    #[arg(long)]
+    json: bool,
+}
+
+/// Runs `merge`.
+pub fn run_merge(a: MergeArgs) -> Outcome {
+    if a.pending {
+        let idx = cube_run::pending_indices(&a.dir)?;
+        print(&idx.iter().map(|i| format!("{i}\n")).collect::<String>())?;
+        return Ok(0);
+    }
+    let r = cube_run::merge(&a.dir, a.proof.as_deref(), a.trust_solver)?;
+    print_either(
+        a.json,
+        || serde_json::to_string(&r).expect("serialises"),
+        || r.to_text(),
+    )?;
+    Ok(code(r.exit_code()))
+}

@@ -1,0 +1,175 @@
+//! `decide`, `encode` and `decode`: one question, solved here or elsewhere.
+
+use std::io::{Read, Write};
+use std::path::PathBuf;
+use std::time::Duration;
+
+use clap::Args;
+
+use orbitcnf::decide::{self, BundleOutcome, Outputs, Request};
+use orbitcnf::solve::Limits;
+use orbitcnf::{Error, dimacs, encode};
+
+use super::args::{CertifyArgs, EncodingArgs, QuestionArgs, ScaleArgs, parse_seconds};
+use super::{Outcome, code, print_either};
+
+/// Arguments of `decide`.
+#[derive(Args, Debug)]
+pub struct DecideArgs {
+    #[command(flatten)]
+    question: QuestionArgs,
+    #[command(flatten)]
+    encoding: EncodingArgs,
+    /// Give up after this many seconds and answer "unknown" (exit 0).
+    #[arg(long, value_name = "SECS", value_parser = parse_seconds)]
+    time_limit: Option<Duration>,
+    /// Print one JSON object instead of the text report.
+    #[arg(long)]
+    json: bool,
+    /// Do not show the progress line on stderr.
+    #[arg(long, short)]
+    quiet: bool,
+    /// Write the LRAT proof of an infeasible answer to FILE (text LRAT; the
+    /// proof is checked by orbitcnf's own checker in any case).
+    #[arg(long, value_name = "FILE", conflicts_with = "no_certify")]
+    proof: Option<PathBuf>,
+    /// Write a binary DRAT proof of an infeasible answer to FILE, for
+    /// external checkers such as rate or drat-trim.
+    #[arg(long, value_name = "FILE", conflicts_with = "no_certify")]
+    drat: Option<PathBuf>,
+    /// Write a certificate bundle to DIR: manifest.json, formula.cnf and
+    /// proof.lrat (infeasible) or orbit.json (feasible; map.json with the
+    /// whole map on a point set); re-check it with `orbitcnf check-bundle
+    /// DIR`. An existing bundle in DIR is replaced whole; an unknown or
+    /// unchecked verdict writes nothing.
+    #[arg(long, value_name = "DIR", conflicts_with = "no_certify")]
+    bundle: Option<PathBuf>,
+    #[command(flatten)]
+    certify: CertifyArgs,
+    #[command(flatten)]
+    scale: ScaleArgs,
+}
+
+/// Runs `decide`.
+pub fn run_decide(a: DecideArgs) -> Outcome {
+    let question = a.question.question()?;
+    let options = a.encoding.options(question.points.is_some())?;
+    let certify = !a.certify.no_certify;
+    let req = Request {
+        solver: a.scale.solver(certify)?,
+        outputs: Outputs {
+            proof: a.proof,
+            raw_proof: a.drat,
+            bundle: a.bundle,
+        },
+        limits: Limits {
+            time: a.time_limit,
+            progress: !a.quiet && !a.json,
+        },
+        max_clauses: a.encoding.max_clauses,
+        accept_claims: a.certify.accept_claims(),
+        question,
+        options,
+    };
+    let d = decide::run(&req)?;
+    match &d.bundle {
+        BundleOutcome::NotAsked => {}
+        BundleOutcome::Written(dir) => {
+            eprintln!("certificate bundle written to {}", dir.display());
+        }
+        BundleOutcome::NotWritten(why) => eprintln!("no bundle written: {why}"),
+    }
+    print_either(a.json, || d.report.to_json(), || d.report.to_text())?;
+    Ok(code(d.report.exit_code()))
+}
+
+/// Arguments of `encode`.
+#[derive(Args, Debug)]
+pub struct EncodeArgs {
+    #[command(flatten)]
+    question: QuestionArgs,
+    #[command(flatten)]
+    encoding: EncodingArgs,
+    /// Where to write the CNF (`-` for stdout).
+    #[arg(long, short, value_name = "FILE")]
+    output: PathBuf,
+}
+
+/// Runs `encode`.
+pub fn run_encode(a: EncodeArgs) -> Outcome {
+    let q = a.question.question()?;
+    let options = a.encoding.options(q.points.is_some())?;
+    let enc = encode::encode(&q, &options, a.encoding.max_clauses)?;
+    if a.output.as_os_str() == "-" {
+        let mut out = std::io::stdout().lock();
+        match out.write_all(&dimacs::render_cnf(&enc)) {
+            Err(e) if e.kind() != std::io::ErrorKind::BrokenPipe => {
+                return Err(Error::io("<stdout>", e));
+            }
+            _ => {}
+        }
+    } else {
+        dimacs::write_cnf(&enc, &a.output)?;
+        eprintln!(
+            "wrote {} ({} variables, {} clauses) for {}",
+            a.output.display(),
+            enc.cnf.num_vars(),
+            enc.cnf.num_clauses(),
+            q.statement()
+        );
+    }
+    Ok(0)
+}
+
+/// Arguments of `decode`.
+#[derive(Args, Debug)]
+pub struct DecodeArgs {
+    /// The CNF file written by `orbitcnf encode`.
+    cnf: PathBuf,
+    /// The solver's output: `s` line and `v` lines, as DIMACS solvers print
+    /// them (`-` reads standard input).
+    solver_output: PathBuf,
+    /// An LRAT proof (text or binary) backing an "unsatisfiable" answer; it
+    /// is checked against the CNF with orbitcnf's own checker. Without it an
+    /// "unsatisfiable" is the solver's unchecked claim (see --trust-solver).
+    #[arg(long, value_name = "FILE")]
+    proof: Option<PathBuf>,
+    /// Accept an "unsatisfiable" without a proof as an infeasible verdict,
+    /// marked UNCHECKED (exit 21); without this it is reported as unknown.
+    #[arg(long, conflicts_with = "proof")]
+    trust_solver: bool,
+    /// Print one JSON object instead of the text report.
+    #[arg(long)]
+    json: bool,
+}
+
+/// Runs `decode`.
+pub fn run_decode(a: DecodeArgs) -> Outcome {
+    let file = dimacs::read_cnf_file(&a.cnf)?;
+    let (text, out_path) = if a.solver_output.as_os_str() == "-" {
+        let mut text = String::new();
+        std::io::stdin()
+            .read_to_string(&mut text)
+            .map_err(|e| Error::io("<stdin>", e))?;
+        (text, "<stdin>".to_string())
+    } else {
+        let text = std::fs::read_to_string(&a.solver_output)
+            .map_err(|e| Error::io(&a.solver_output, e))?;
+        (text, a.solver_output.display().to_string())
+    };
+    let answer = dimacs::parse_solver_output(&text, &out_path)?;
+    let report = decide::decode_answer(
+        &file,
+        &a.cnf.display().to_string(),
+        &answer,
+        &out_path,
+        a.proof.as_deref(),
+    )?;
+    let report = if a.trust_solver {
+        report
+    } else {
+        decide::require_checked(report)
+    };
+    print_either(a.json, || report.to_json(), || report.to_text())?;
+    Ok(code(report.exit_code()))
+}

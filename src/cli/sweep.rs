@@ -1,0 +1,151 @@
+//! `spectrum`: every period of one domain, with a crash-safe results store.
+
+use std::path::PathBuf;
+use std::time::Duration;
+
+use clap::Args;
+
+use orbitcnf::Error;
+use orbitcnf::question::MapClass;
+use orbitcnf::spectrum::{self, SweepConfig};
+
+use super::args::{ClassArgs, DomainArgs, EncodingArgs, parse_seconds};
+use super::{Outcome, print};
+
+/// The long help of `spectrum`.
+pub const SPECTRUM_HELP: &str = "\
+How each period is answered, cheapest first:
+  stored        a decided answer in the results store under the same question,
+                resolved encoding options and formulation is reused (its orbit
+                re-checked, its proof file present; --recheck re-checks proofs)
+  construction  p ≤ 2^n' (n' = coordinates with more than one value): p vertices
+                of a unit cube, pairwise at distance 1; the orbit is checked, and
+                on small boxes its extension to a nonexpansive map as well.
+                With --class topical: p ≤ C(n',⌊n'/2⌋) points of the middle layer
+                of a unit cube (t = 1 between any two); the orbit and, on small
+                boxes, the topical extension and its clamp are checked
+  solver        everything else: `decide` with the certified solver; infeasible
+                answers carry an LRAT proof accepted by orbitcnf's own checker
+
+The results store (--store DIR, default ./orbitcnf-results):
+  DIR/answers/<key>.json   one answer per file: verdict, how decided, orbit,
+                           proof path and SHA-256, statistics, limits, tool
+                           version, run id, start and finish times
+  DIR/proofs/<key>.<run>.lrat   the LRAT proofs of infeasible answers
+                           (they can be large: about 3 GB for all of {-1,0,1}^4)
+  <key> is the SHA-256 of question, resolved encoding options and formulation.
+  Every file is written to a temporary file, fsynced and renamed into place, so
+  a sweep killed at any moment keeps every answer it completed; run the same
+  command again to continue. Decided answers are never recomputed or replaced.
+  An unknown answer is retried only when this run has a larger --time-limit
+  (or none) or a larger --max-clauses than the run that gave up.
+  A new or stored answer whose verdict differs from another stored answer to the
+  same question (under any options) is a CONTRADICTION: an error naming both
+  runs. So is an answer that contradicts a published theorem (feasible above
+  max_k 2^k·C(n',k), a feasible prime above 2^n', feasible above 2^n' when
+  n' ≤ 3, or infeasible at p ≤ 2^n'; with --class topical: feasible above
+  C(n',⌊n'/2⌋), or infeasible at or below it). The class is part of the key.
+
+Output: a table on stdout; --json prints one JSON object (the whole spectrum,
+each row with its stored answer); --csv one line per period after a header;
+--markdown FILE also writes a page with the published bounds beside the answers.
+The progress line on stderr appears only when stderr is a terminal.
+
+Exit codes:
+   0  every period was decided (feasible or infeasible)
+   2  the sweep finished but some periods are unknown (listed in the report)
+   1  error: bad input, a contradiction, a failed check or a misbehaving solver
+
+Examples:
+  orbitcnf spectrum --dim 3 --grid=-1..1
+  orbitcnf spectrum --dim 4 --grid=-1..1 --jobs 2 --time-limit 600 --markdown t4.md
+  orbitcnf spectrum --dim 2 --grid=0..3 --periods 5..8 --no-store --json
+  orbitcnf spectrum --class topical --dim 4 --grid=0..1";
+
+/// Arguments of `spectrum`.
+#[derive(Args, Debug)]
+pub struct SpectrumArgs {
+    #[command(flatten)]
+    domain: DomainArgs,
+    /// The periods: `A..B` (inclusive), `P`, or a comma-separated list of both.
+    /// Default: 1 up to the proven bound max_k 2^k·C(n',k) (Lemmens and
+    /// Scheutzow 2005); with --class topical 1 up to one past the proven
+    /// bound C(n',⌊n'/2⌋) (same paper), so the first excluded period is
+    /// decided too; with --points up to |D| and the first bound. Capped by
+    /// the number of grid points.
+    #[arg(long, value_name = "LIST")]
+    periods: Option<String>,
+    #[command(flatten)]
+    class: ClassArgs,
+    #[command(flatten)]
+    encoding: EncodingArgs,
+    /// Give up on a period after this many seconds of solving; it is reported
+    /// (and stored) as unknown, and retried by a later run with a larger limit.
+    #[arg(long, value_name = "SECS", value_parser = parse_seconds)]
+    time_limit: Option<Duration>,
+    /// Periods solved at the same time (default: the number of cores).
+    #[arg(long, short = 'j', value_name = "N")]
+    jobs: Option<usize>,
+    /// The results store's folder.
+    #[arg(long, value_name = "DIR", default_value = "./orbitcnf-results")]
+    store: PathBuf,
+    /// Keep no store: decide every period afresh and keep no files (proofs
+    /// are still checked, in memory).
+    #[arg(long, conflicts_with = "store")]
+    no_store: bool,
+    /// Re-check every reused stored answer in full: the proof file against its
+    /// SHA-256 and with the LRAT checker against a fresh encoding.
+    #[arg(long)]
+    recheck: bool,
+    /// Print one JSON object instead of the table.
+    #[arg(long, conflicts_with = "csv")]
+    json: bool,
+    /// Print CSV instead of the table.
+    #[arg(long)]
+    csv: bool,
+    /// Also write a Markdown page with the published bounds beside the answers.
+    #[arg(long, value_name = "FILE")]
+    markdown: Option<PathBuf>,
+    /// Do not show the progress line on stderr.
+    #[arg(long, short)]
+    quiet: bool,
+}
+
+/// Runs `spectrum`.
+pub fn run(a: SpectrumArgs) -> Outcome {
+    let mut cfg = match a.domain.point_set()? {
+        Some(d) => {
+            if a.class.class != MapClass::Nonexpansive {
+                return Err(Error::Options(
+                    "spectrum --points decides nonexpansive maps D → D only (the full-map \
+                     formulation); --class topical needs a box"
+                        .into(),
+                ));
+            }
+            SweepConfig::on_points(d)
+        }
+        None => SweepConfig::for_class(a.domain.grid()?, a.class.class),
+    };
+    if let Some(list) = &a.periods {
+        cfg.periods = spectrum::parse_periods(list)?;
+    }
+    cfg.options = a.encoding.options(a.domain.is_points())?;
+    cfg.jobs = a.jobs.unwrap_or_else(spectrum::default_jobs);
+    cfg.time_limit = a.time_limit;
+    cfg.max_clauses = a.encoding.max_clauses;
+    cfg.store = (!a.no_store).then(|| a.store.clone());
+    cfg.progress = !a.quiet;
+    cfg.recheck = a.recheck;
+    let s = spectrum::run(&cfg)?;
+    if let Some(path) = &a.markdown {
+        orbitcnf::artifact::write_atomically(path, s.to_markdown().as_bytes())?;
+    }
+    print(&if a.json {
+        s.to_json() + "\n"
+    } else if a.csv {
+        s.to_csv()
+    } else {
+        s.to_table()
+    })?;
+    Ok(if s.summary.all_decided { 0 } else { 2 })
+}

@@ -1,0 +1,193 @@
+//! One evidence layer: what backs a verdict, and the one way each kind of
+//! backing is checked.
+//!
+//! A verdict is only as good as what backs it ([`Evidence`]):
+//!
+//! * **feasible** — a [witness](Evidence::Witness): the orbit, and in the
+//!   full-map formulation the whole map `f: D → D`, checked by
+//!   [`check_witness`] with the independent verifier ([`crate::verify`],
+//!   which shares no code with the encoder);
+//! * **infeasible** — a [checked proof](Evidence::CheckedProof): an LRAT
+//!   refutation of the exact CNF of the question, accepted by orbitcnf's own
+//!   checker ([`check_refutation`], [`check_proof_file`]); or, only where the
+//!   user chose so, a [solver's claim](Evidence::SolverClaim), which nothing
+//!   checks and every output marks as unchecked;
+//! * **unknown** — [nothing](Evidence::None).
+//!
+//! `decide`, `decode`, certificate bundles, the results store, `spectrum`,
+//! `merge` and `check` all check through these functions, so a rule about
+//! what a witness or a proof must satisfy lives in one place. The dispatch
+//! is on the map class and the formulation: a nonexpansive orbit on a box is
+//! an isometric cycle, a topical one must keep `t(x, y) = max_c (x_c − y_c)`,
+//! and on a point set (full-map formulation) the orbit proves nothing without
+//! the map, which is checked on all of D.
+
+use std::path::{Path, PathBuf};
+use std::time::Instant;
+
+use serde::Serialize;
+
+use crate::cnf::Cnf;
+use crate::encode::{self, EncodeOptions};
+use crate::error::{Error, Result};
+use crate::grid::Point;
+use crate::proof::lrat::{LratFileError, check_lrat_file};
+use crate::proof::{LratOptions, LratSummary};
+use crate::question::{MapClass, Question};
+use crate::solve::certified::ProofInfo;
+use crate::verify::{self, OrbitCheck, SelfMapCheck};
+
+/// What backs a verdict.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+#[serde(tag = "kind", rename_all = "kebab-case")]
+pub enum Evidence {
+    /// The orbit itself (with the map, in the full-map formulation), checked
+    /// by [`check_witness`].
+    Witness,
+    /// A solver's claim of unsatisfiability, with no proof checked. Reports
+    /// say so in the verdict line; it backs an infeasible verdict only where
+    /// the user accepted unchecked claims.
+    SolverClaim {
+        /// Who claims it.
+        solver: String,
+    },
+    /// An LRAT proof of unsatisfiability of the CNF solved, accepted by
+    /// orbitcnf's own checker in this run. It certifies the CNF,
+    /// symmetry-breaking and redundant clauses included; that those keep
+    /// every verdict is argued in `encodings/` and tested against brute force.
+    CheckedProof(ProofInfo),
+    /// Nothing (unknown verdicts).
+    None,
+}
+
+impl Evidence {
+    /// Whether the evidence was checked: a witness or a checked proof.
+    pub fn is_checked(&self) -> bool {
+        matches!(self, Evidence::Witness | Evidence::CheckedProof(_))
+    }
+}
+
+/// What [`check_witness`] established.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize)]
+pub struct WitnessCheck {
+    /// The orbit's check (its profile included).
+    pub orbit: OrbitCheck,
+    /// The map's check, in the full-map formulation.
+    pub map: Option<SelfMapCheck>,
+}
+
+/// Checks `orbit` (and `map`) as the witness of a feasible answer to `q`
+/// in the formulation of `options`, with the independent verifier.
+///
+/// * full-map formulation (point sets): `map` must be given; it is checked
+///   to be a nonexpansive map of D into itself that moves the orbit along
+///   itself with minimal period p, and the orbit must then be an isometric
+///   cycle too (an orbit of a nonexpansive map always is);
+/// * a topical question: the orbit keeps every `t(x_i, x_{i+k})`;
+/// * otherwise: the orbit is an isometric p-cycle of distinct grid points.
+///
+/// # Errors
+/// [`Error::Check`] naming the first failure; [`Error::Decode`] when the
+/// orbit has the wrong length or a full-map witness has no map.
+pub fn check_witness(
+    q: &Question,
+    options: &EncodeOptions,
+    orbit: &[Point],
+    map: Option<&[(Point, Point)]>,
+) -> Result<WitnessCheck> {
+    if orbit.len() != q.period {
+        return Err(Error::Decode(format!(
+            "the orbit has {} points but the period is {}",
+            orbit.len(),
+            q.period
+        )));
+    }
+    if options.is_full_map() {
+        let map = map.ok_or_else(|| {
+            Error::Decode(
+                "a feasible answer on a point set is backed by its map D → D, and none is given"
+                    .into(),
+            )
+        })?;
+        let map_check = verify::check_self_map(q.domain().points(), map, orbit)?;
+        let orbit_check = verify::check_orbit(q.grid.ranges(), orbit)?;
+        return Ok(WitnessCheck {
+            orbit: orbit_check,
+            map: Some(map_check),
+        });
+    }
+    let bounds = q.grid.ranges();
+    let orbit_check = match q.class {
+        MapClass::Topical => verify::check_topical_orbit(bounds, orbit)?,
+        MapClass::Nonexpansive => verify::check_orbit(bounds, orbit)?,
+    };
+    Ok(WitnessCheck {
+        orbit: orbit_check,
+        map: None,
+    })
+}
+
+/// What [`check_proof_file`] established.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct ProofCheck {
+    /// The checker's summary.
+    pub summary: LratSummary,
+    /// The proof file's size in bytes.
+    pub bytes: u64,
+    /// Seconds the check took.
+    pub seconds: f64,
+}
+
+/// The checker's options for proofs of orbitcnf's CNFs: the CNF's clause `i`
+/// is LRAT clause `i + 1`, and derived clauses come after it.
+pub fn lrat_options() -> LratOptions {
+    LratOptions {
+        ids_follow_cnf: true,
+        ..LratOptions::default()
+    }
+}
+
+/// Checks the LRAT proof (text or binary) in `path` against `cnf` with
+/// orbitcnf's own checker, reading it in pieces.
+///
+/// # Errors
+/// [`Error::Io`] when the file cannot be read; [`Error::Proof`] naming the
+/// step and the reason when the proof is rejected.
+pub fn check_proof_file(cnf: &Cnf, path: &Path) -> Result<ProofCheck> {
+    let t = Instant::now();
+    let summary = check_lrat_file(cnf, path, &lrat_options()).map_err(|e| match e {
+        LratFileError::Io { path, source } => Error::io(&path, source),
+        LratFileError::Rejected { source, .. } => Error::from(source),
+    })?;
+    let bytes = std::fs::metadata(path)
+        .map_err(|e| Error::io(path, e))?
+        .len();
+    Ok(ProofCheck {
+        summary,
+        bytes,
+        seconds: t.elapsed().as_secs_f64(),
+    })
+}
+
+/// Checks the proof in `path` as the refutation of `q` under `options`: the
+/// question is encoded afresh, so the proof must refute exactly the CNF that
+/// this orbitcnf builds for it.
+///
+/// # Errors
+/// Encoding errors; as [`check_proof_file`].
+pub fn check_refutation(q: &Question, options: &EncodeOptions, path: &Path) -> Result<ProofCheck> {
+    let enc = encode::encode(q, options, u64::MAX)?;
+    check_proof_file(&enc.cnf, path)
+}
+
+/// The [`ProofInfo`] of a proof checked by [`check_proof_file`], kept at `file`.
+pub fn proof_info(check: ProofCheck, file: Option<PathBuf>) -> ProofInfo {
+    ProofInfo {
+        lrat: check.summary,
+        lrat_bytes: check.bytes,
+        lrat_file: file,
+        drat_file: None,
+        drat_bytes: None,
+        check_seconds: check.seconds,
+    }
+}

@@ -5,12 +5,13 @@ use std::path::PathBuf;
 use std::process::ExitCode;
 use std::time::Duration;
 
-use clap::{Args, Parser, Subcommand};
+use clap::{Args, Parser, Subcommand, ValueEnum};
 
 use orbitcnf::Verdict;
 use orbitcnf::bundle::Evidence;
 use orbitcnf::encode::{self, DEFAULT_MAX_CLAUSES, EncodeOptions, Symmetry};
 use orbitcnf::points::PointSet;
+use orbitcnf::progress::ProgressMode;
 use orbitcnf::proof::LratOptions;
 use orbitcnf::question::MapClass;
 use orbitcnf::solve::{Limits, bundled::Bundled, certified::Certified};
@@ -281,6 +282,44 @@ impl EncodingArgs {
     }
 }
 
+/// `--progress MODE` and `-q`, shared by the commands that can run long.
+#[derive(Args, Debug)]
+struct ProgressArgs {
+    /// Progress on stderr: `bar`, one line redrawn in place; `lines`, plain
+    /// timestamped lines for logs (`orbitcnf: progress: …`, one for every
+    /// decided period or finished cube and a status every 30 s); `off`; or
+    /// `auto`, the default: `bar` when stderr is a terminal (and no --json
+    /// report is asked of decide or run-cube), nothing otherwise.
+    #[arg(long, value_name = "MODE", value_enum, default_value_t = ProgressChoice::Auto)]
+    progress: ProgressChoice,
+    /// Show no progress on stderr (as --progress off).
+    #[arg(long, short, conflicts_with = "progress")]
+    quiet: bool,
+}
+
+/// The values of `--progress`.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
+enum ProgressChoice {
+    Auto,
+    Bar,
+    Lines,
+    Off,
+}
+
+impl ProgressArgs {
+    /// The mode asked for; `auto` stays quiet beside a machine-read report
+    /// (`quiet_auto`) as well as off a terminal.
+    fn mode(&self, quiet_auto: bool) -> ProgressMode {
+        match (self.quiet, self.progress) {
+            (true, _) | (false, ProgressChoice::Off) => ProgressMode::Off,
+            (false, ProgressChoice::Bar) => ProgressMode::Bar,
+            (false, ProgressChoice::Lines) => ProgressMode::Lines,
+            (false, ProgressChoice::Auto) if quiet_auto => ProgressMode::Off,
+            (false, ProgressChoice::Auto) => ProgressMode::auto(),
+        }
+    }
+}
+
 #[derive(Args, Debug)]
 struct DecideArgs {
     #[command(flatten)]
@@ -293,9 +332,8 @@ struct DecideArgs {
     /// Print one JSON object instead of the text report.
     #[arg(long)]
     json: bool,
-    /// Do not show the progress line on stderr.
-    #[arg(long, short)]
-    quiet: bool,
+    #[command(flatten)]
+    progress: ProgressArgs,
     /// Write the LRAT proof of an infeasible answer to FILE (text LRAT; the
     /// proof is checked by orbitcnf's own checker in any case).
     #[arg(long, value_name = "FILE", conflicts_with = "no_certify")]
@@ -474,7 +512,8 @@ fn run(cli: Cli) -> Result<u8, Error> {
             let q = a.question.question()?;
             let limits = Limits {
                 time: a.time_limit,
-                progress: !a.quiet && !a.json,
+                progress: a.progress.mode(a.json),
+                ..Limits::default()
             };
             let options = a.encoding.options_for(&q)?;
             if let Some(code) = decide_scaled(&a, &q, &options, &limits)? {
@@ -649,7 +688,7 @@ fn verify_proof(a: VerifyProofArgs) -> Result<u8, Error> {
 
 fn bench(a: BenchArgs) -> Result<u8, Error> {
     if a.spectrum {
-        let jobs = a.jobs.unwrap_or_else(orbitcnf::spectrum::default_jobs);
+        let jobs = a.jobs.unwrap_or_else(orbitcnf::pool::default_jobs);
         let f = orbitcnf::bench::run_spectrum(jobs, a.time_limit)?;
         let line = if a.json {
             serde_json::to_string(&f).expect("serialises")
@@ -938,9 +977,8 @@ struct SpectrumArgs {
     /// Also write a Markdown page with the published bounds beside the answers.
     #[arg(long, value_name = "FILE")]
     markdown: Option<PathBuf>,
-    /// Do not show the progress line on stderr.
-    #[arg(long, short)]
-    quiet: bool,
+    #[command(flatten)]
+    progress: ProgressArgs,
     /// Refuse to build formulas with more clauses than this (such a period is unknown).
     #[arg(long, value_name = "N", default_value_t = DEFAULT_MAX_CLAUSES)]
     max_clauses: u64,
@@ -970,11 +1008,11 @@ fn spectrum(a: SpectrumArgs) -> Result<u8, Error> {
         cfg.periods = spectrum::parse_periods(list)?;
     }
     cfg.options = a.encoding.options_on(cfg.points.is_some())?;
-    cfg.jobs = a.jobs.unwrap_or_else(spectrum::default_jobs);
+    cfg.jobs = a.jobs.unwrap_or_else(orbitcnf::pool::default_jobs);
     cfg.time_limit = a.time_limit;
     cfg.max_clauses = a.max_clauses;
     cfg.store = (!a.no_store).then(|| a.store.clone());
-    cfg.progress = !a.quiet;
+    cfg.progress = a.progress.mode(false);
     cfg.recheck = a.recheck;
     let s = spectrum::run(&cfg)?;
     if let Some(path) = &a.markdown {
@@ -1290,15 +1328,15 @@ struct RunCubeArgs {
     /// Print the result as JSON.
     #[arg(long)]
     json: bool,
-    /// Do not show the progress line on stderr.
-    #[arg(long, short)]
-    quiet: bool,
+    #[command(flatten)]
+    progress: ProgressArgs,
 }
 
 fn run_cube_cmd(a: RunCubeArgs) -> Result<u8, Error> {
     let limits = Limits {
         time: a.time_limit,
-        progress: !a.quiet && !a.json,
+        progress: a.progress.mode(a.json),
+        ..Limits::default()
     };
     let lrat = cube_run::lrat_target(&a.dir, a.index);
     // An external solver is asked for a proof only with --proof-arg.

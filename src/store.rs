@@ -73,7 +73,7 @@ const KEY_DOMAIN: &[u8] = b"orbitcnf-store-key/1\n";
 pub enum How {
     /// Built without solving: `p ≤ 2^n'` points of a unit cube, pairwise at
     /// distance 1, or for topical questions `p ≤ C(n', ⌊n'/2⌋)` points of its
-    /// middle layer (see [`crate::spectrum::construct`]).
+    /// middle layer (see [`crate::theory::construct`]).
     Construction,
     /// Decided by [`crate::decide::decide`] with the certified solver.
     Solver,

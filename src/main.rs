@@ -905,7 +905,13 @@ The results store (--store DIR, default ./orbitcnf-results):
 Output: a table on stdout; --json prints one JSON object (the whole spectrum,
 each row with its stored answer); --csv one line per period after a header;
 --markdown FILE also writes a page with the published bounds beside the answers.
-The progress line on stderr appears only when stderr is a terminal.
+Progress (--progress MODE): on a terminal one line redrawn in place; with
+--progress lines, for batch and cluster logs, one timestamped line on stderr
+for every decided period and a status line every 30 s:
+  orbitcnf: progress: 2025-01-31T23:59:59Z spectrum {-1,0,1}^4: p=17 infeasible
+  (solver, 12.3 s); 17/32 periods decided (...), 2 running: p=18 (40.0 s,
+  120000 conflicts), ...
+By default (auto) nothing is written when stderr is not a terminal.
 
 Exit codes:
    0  every period was decided (feasible or infeasible)

@@ -171,9 +171,10 @@ pub fn run(cfg: &SweepConfig) -> Result<Spectrum> {
     }
     progress.event(|| {
         format!(
-            "spectrum {}: finished: {}",
+            "spectrum {}: finished: {} in {}",
             watch.grid,
-            watch.words(&rows, &[], 0)
+            watch.decided(&rows),
+            duration_words(t0.elapsed().as_secs_f64())
         )
     });
 
@@ -311,6 +312,19 @@ struct Watch {
 }
 
 impl Watch {
+    /// `17/32 periods decided (16 feasible, 1 infeasible, 0 unknown)`.
+    fn decided(&self, rows: &BTreeMap<usize, Row>) -> String {
+        let count = |v: Verdict| rows.values().filter(|r| r.verdict == v).count();
+        format!(
+            "{}/{} periods decided ({} feasible, {} infeasible, {} unknown)",
+            rows.len(),
+            self.total,
+            count(Verdict::Feasible),
+            count(Verdict::Infeasible),
+            count(Verdict::Unknown),
+        )
+    }
+
     /// The state of the sweep: periods decided, the running ones (period,
     /// start, conflicts so far), time elapsed and an estimate of what is left.
     fn words(
@@ -320,7 +334,6 @@ impl Watch {
         queued: usize,
     ) -> String {
         let now = Instant::now();
-        let count = |v: Verdict| rows.values().filter(|r| r.verdict == v).count();
         let solved: Vec<f64> = rows
             .values()
             .filter(|r| !r.reused && r.how == How::Solver)
@@ -362,12 +375,8 @@ impl Watch {
             shown.push("…".into());
         }
         format!(
-            "{}/{} periods decided ({} feasible, {} infeasible, {} unknown), {} running{}{}, {} elapsed, {estimate}",
-            rows.len(),
-            self.total,
-            count(Verdict::Feasible),
-            count(Verdict::Infeasible),
-            count(Verdict::Unknown),
+            "{}, {} running{}{}, {} elapsed, {estimate}",
+            self.decided(rows),
             running.len(),
             if shown.is_empty() { "" } else { ": " },
             shown.join(", "),

@@ -167,10 +167,10 @@ pub fn decide_parallel(
                 )
             });
             runs[i] = Some(run);
-            progress.status(|| format!("solving {}", state_words(state)));
+            progress.status(|| format!("decide: {}", state_words(state)));
         }
         Event::Started(_) | Event::Tick => {
-            progress.status(|| format!("solving {}", state_words(state)));
+            progress.status(|| format!("decide: {}", state_words(state)));
         }
     });
     progress.clear();

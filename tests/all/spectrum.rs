@@ -577,3 +577,107 @@ fn topical_and_nonexpansive_answers_are_kept_apart_and_a_topical_contradiction_i
         .code(0)
         .stdout_has("    7  feasible    construction  stored");
 }
+
+// ---- Progress for logs ----
+
+/// Asserts that every line of `run`'s stderr is a progress line for a log
+/// (`orbitcnf: progress: YYYY-MM-DDTHH:MM:SSZ …`) and returns their texts.
+fn progress_lines(run: &crate::util::Run) -> Vec<String> {
+    let mut out = Vec::new();
+    for line in run.stderr.lines() {
+        let Some(rest) = line.strip_prefix("orbitcnf: progress: ") else {
+            run.fail("stderr", "only progress lines", line);
+        };
+        let (stamp, text) = rest.split_once(' ').unwrap_or((rest, ""));
+        let shape_ok = stamp.len() == 20
+            && stamp.ends_with('Z')
+            && stamp.as_bytes()[10] == b'T'
+            && stamp[..4].chars().all(|c| c.is_ascii_digit());
+        if !shape_ok {
+            run.fail("a UTC timestamp", "YYYY-MM-DDTHH:MM:SSZ", stamp);
+        }
+        out.push(text.to_string());
+    }
+    out
+}
+
+#[test]
+fn spectrum_writes_progress_lines_to_a_log() {
+    // stderr is a pipe here, as in a batch job: the default shows nothing
+    // (see check_three_dimensional_spectrum), --progress lines a line for the
+    // periods settled before solving, one per solved period, and a last one.
+    let dir = TestDir::new();
+    let run = dir
+        .orbitcnf()
+        .args([
+            "spectrum",
+            "--dim",
+            "2",
+            "--grid=-1..1",
+            "--periods",
+            "3..6",
+        ])
+        .args(["--no-store", "-j", "1", "--progress", "lines"])
+        .run();
+    run.code(0).stdout_has("every period decided");
+    let lines = progress_lines(&run);
+    let has = |needle: &str| lines.iter().filter(|l| l.contains(needle)).count();
+    assert_eq!(
+        has("spectrum {-1,0,1}^2: 2 of 4 periods decided before solving"),
+        1,
+        "{lines:#?}"
+    );
+    // {-1,0,1}^2: p = 5, 6 exceed max_k 2^k·C(2,k) = 4 (Lemmens and Scheutzow 2005).
+    assert_eq!(has("p=5 infeasible (solver"), 1, "{lines:#?}");
+    assert_eq!(has("p=6 infeasible (solver"), 1, "{lines:#?}");
+    // The line of p = 6 and the last one (status lines every 30 s may add more).
+    assert!(has("4/4 periods decided (2 feasible, 2 infeasible, 0 unknown)") >= 2);
+    assert!(lines.last().unwrap().contains("finished:"), "{lines:#?}");
+
+    // -q is --progress off; both at once is a usage error.
+    let quiet = dir
+        .orbitcnf()
+        .args(["spectrum", "--dim", "2", "--grid=-1..1", "--no-store", "-q"])
+        .run();
+    quiet.code(0);
+    assert!(quiet.stderr.is_empty(), "{}", quiet.stderr);
+    dir.orbitcnf()
+        .args([
+            "spectrum",
+            "--grid=0..1",
+            "--no-store",
+            "-q",
+            "--progress",
+            "lines",
+        ])
+        .run()
+        .error_with(&["--quiet", "--progress"]);
+}
+
+#[test]
+fn decide_jobs_writes_a_progress_line_for_every_finished_cube() {
+    // {-1,0,1}^3 has no period 9 (n ≤ 3: the periods are 1..8, Lyons and
+    // Nussbaum 1992 [recalled]); every one of the 4 cubes is refuted.
+    let dir = TestDir::new();
+    let run = dir
+        .orbitcnf()
+        .args(["decide", "--dim", "3", "--grid=-1..1", "-p", "9"])
+        .args(["--jobs", "2", "--cubes", "4", "--progress", "lines"])
+        .run();
+    run.code(20);
+    let lines = progress_lines(&run);
+    let cubes: Vec<&String> = lines
+        .iter()
+        .filter(|l| l.starts_with("decide: cube "))
+        .collect();
+    assert!(cubes.len() >= 4, "{lines:#?}");
+    for (i, line) in cubes.iter().enumerate() {
+        assert!(line.contains("refuted, proof checked and lifted"), "{line}");
+        let done = format!("; {}/{} cubes done", i + 1, cubes.len());
+        assert!(line.contains(&done), "{line} lacks {done:?}");
+    }
+    for i in 0..cubes.len() {
+        let cube = format!("decide: cube {i} (");
+        assert!(cubes.iter().any(|l| l.starts_with(&cube)), "{lines:#?}");
+    }
+}

@@ -335,7 +335,10 @@ pub struct Spectrum {
     pub lemmens_scheutzow_bound: u64,
     /// The periods swept.
     pub periods: Vec<usize>,
-    /// The encoding options as given.
+    /// The encoding options as given, with what the class and the kind of
+    /// domain switch off whatever the period
+    /// ([`EncodeOptions::for_domain`]): the formulation that ran, as every
+    /// report names it. Each row's answer has the options resolved in full.
     pub options: EncodeOptions,
     /// The store's folder, when there is one.
     pub store: Option<PathBuf>,

@@ -74,11 +74,9 @@ fn md_cell(s: &str) -> String {
 }
 
 impl Spectrum {
-    /// The options as given, with what the class alone switches off
-    /// ([`EncodeOptions::for_class`]); each row's answer has them resolved
-    /// in full.
+    /// [`Spectrum::options`] in words: the formulation and the families.
     fn options_words(&self) -> String {
-        let o = self.options.for_class(self.class);
+        let o = &self.options;
         let on_off = |b: bool| if b { "on" } else { "off" };
         format!(
             "{} (symmetry {}, count {}, packing {}, classes {})",
@@ -217,6 +215,21 @@ impl Spectrum {
         theory::statements(self.effective_dim, self.class, self.points.is_some())
     }
 
+    /// The domain for the page: ``Box `-1..1,-1..1` `` or, for a point set,
+    /// ``Point set D = {…} (|D| = 6) in the box `0..3,0..3` `` (the box then
+    /// gives n and n').
+    fn domain_words(&self) -> String {
+        match &self.points {
+            None => format!("Box `{}`", self.grid),
+            Some(p) => format!(
+                "Point set {} (|D| = {}) in the box `{}`",
+                self.grid_name,
+                p.len(),
+                self.grid
+            ),
+        }
+    }
+
     /// A Markdown page: the computed answers beside the published bounds,
     /// with the sources.
     pub fn to_markdown(&self) -> String {
@@ -229,10 +242,10 @@ impl Spectrum {
         let _ = writeln!(s, "# Periods of {title} {}\n", self.grid_name);
         let _ = writeln!(
             s,
-            "Box `{}`: dimension n = {}, effective dimension n' = {n} (coordinates with more than one value). \
+            "{}: dimension n = {}, effective dimension n' = {n} (coordinates with more than one value). \
              Periods {} computed by orbitcnf {} (run `{}`, finished {}) with the formulation {}.\n\n\
              The question, for each period p: {}.\n",
-            self.grid,
+            self.domain_words(),
             self.dim,
             ranges_words(&self.periods),
             self.tool_version,
@@ -281,8 +294,12 @@ impl Spectrum {
         let _ = writeln!(
             s,
             "\nEvery computed answer agrees with the theorems above (orbitcnf reports any disagreement \
-             as an error and writes no page). Feasible answers carry an orbit checked point by point; \
-             infeasible ones an LRAT proof of the CNF, accepted by orbitcnf's own checker."
+             as an error and writes no page). Feasible answers carry {}; \
+             infeasible ones an LRAT proof of the CNF, accepted by orbitcnf's own checker.",
+            match self.points {
+                None => "an orbit checked point by point",
+                Some(_) => "an orbit and the whole map D → D, checked point by point",
+            }
         );
         s
     }

@@ -202,16 +202,7 @@ pub fn run(cfg: &SweepConfig) -> Result<Spectrum> {
         construction_limit: u64::try_from(construction_limit(grid, cfg.class)).unwrap_or(u64::MAX),
         lemmens_scheutzow_bound: u64::try_from(period_bound(grid, cfg.class)).unwrap_or(u64::MAX),
         periods: cfg.periods.clone(),
-        // A point set always takes the full-map formulation; say so.
-        options: match &cfg.points {
-            Some(d) => {
-                let top = cfg.periods.iter().copied().max().unwrap_or(1);
-                Question::on_points(d.clone(), top)
-                    .map(|q| cfg.options.resolve(&q))
-                    .unwrap_or_else(|_| cfg.options.clone())
-            }
-            None => cfg.options.clone(),
-        },
+        options: cfg.options.for_domain(cfg.class, cfg.points.is_some()),
         store: cfg.store.clone(),
         run_id,
         started_at,

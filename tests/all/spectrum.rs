@@ -428,6 +428,8 @@ fn check_topical_spectrum(n: usize, lo: i64, hi: i64, bound: u64) -> Value {
         "{statement}"
     );
     assert_eq!(report["lemmens_scheutzow_bound"], bound);
+    // The sweep's encoding, as the table names it too.
+    assert_eq!(report["options"]["formulation"], "topical-cycle/1");
     let periods: Vec<u64> = rows(&report)
         .iter()
         .map(|r| r["period"].as_u64().unwrap())

@@ -893,6 +893,12 @@ The results store (--store DIR, default ./orbitcnf-results):
   Every file is written to a temporary file, fsynced and renamed into place, so
   a sweep killed at any moment keeps every answer it completed; run the same
   command again to continue. Decided answers are never recomputed or replaced.
+  A reused answer is checked first: its orbit and map again, its proof file for
+  presence and size (in full with --recheck); the report says whether a proof
+  was checked in this run or when it was. A file in DIR/answers/ that is not a
+  valid answer, and an answer whose evidence fails that check (a missing or
+  edited proof), is moved (never deleted) to DIR/quarantine/ with a warning,
+  listed in the report, and its period is decided again.
   An unknown answer is retried only when this run has a larger --time-limit
   (or none) or a larger --max-clauses than the run that gave up.
   A new or stored answer whose verdict differs from another stored answer to the

@@ -19,8 +19,14 @@
 //!
 //! 1. **From the results store** ([`crate::store`]): a decided answer stored
 //!    under the same key (question, resolved encoding options, formulation)
-//!    is reused after a cheap check (the orbit is re-verified; the proof file
-//!    must be present), or a full one with [`SweepConfig::recheck`]. A stored
+//!    is reused after a cheap check (the orbit, and the map where one was
+//!    checked, are checked again; the proof file must be present with its
+//!    recorded size), or a full one with [`SweepConfig::recheck`]; each row
+//!    says when its evidence was checked ([`Checked`]). An answer that fails
+//!    the check, and a file of the store that is not an answer at all, is
+//!    set aside with a warning ([`crate::store::Store::set_aside`], listed in
+//!    [`Spectrum::set_aside`]) and its period decided as if it were not
+//!    stored. A stored
 //!    *unknown* is reused unless this run's limits are larger
 //!    ([`crate::store::RunLimits::exceeds`]): a longer `--time-limit` (or none),
 //!    or a larger `--max-clauses`. Then it is retried.
@@ -91,7 +97,7 @@ use crate::pool;
 use crate::progress::ProgressMode;
 use crate::question::MapClass;
 use crate::report::Verdict;
-use crate::store::{Answer, How};
+use crate::store::{Answer, Backing, How, SetAside};
 use crate::theory::{Published, period_bound, published_for};
 
 pub use render::{certificate_words, ranges_words};
@@ -236,6 +242,48 @@ pub fn parse_periods(text: &str) -> Result<Vec<usize>> {
     Ok(out)
 }
 
+/// When the evidence behind a row's verdict was checked.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize)]
+#[serde(tag = "when", rename_all = "kebab-case")]
+pub enum Checked {
+    /// By this run, which computed the answer.
+    ThisRun,
+    /// Reused from the store and checked again by this run: a feasible
+    /// answer's orbit and map on every reuse, an infeasible answer's proof
+    /// with [`SweepConfig::recheck`].
+    Rechecked,
+    /// Reused from the store without checking the proof again (only that
+    /// its file is there, with its recorded size): it was checked by the
+    /// run that computed the answer.
+    Earlier {
+        /// That run.
+        run_id: String,
+        /// When it finished (UTC, RFC 3339).
+        finished_at: String,
+    },
+    /// Nothing was checked: an unknown answer, or a solver's claim.
+    Never,
+}
+
+impl Checked {
+    /// `now` for an answer whose evidence is checkable (an orbit or a
+    /// proof), [`Checked::Never`] for any other.
+    fn of(a: &Answer, now: Checked) -> Checked {
+        match a.backing {
+            Backing::CheckedOrbit | Backing::CheckedProof => now,
+            Backing::SolverClaim | Backing::None => Checked::Never,
+        }
+    }
+
+    /// [`Checked::Earlier`], by the run that computed `a`.
+    fn earlier(a: &Answer) -> Checked {
+        Checked::Earlier {
+            run_id: a.run_id.clone(),
+            finished_at: a.finished_at.clone(),
+        }
+    }
+}
+
 /// One period of a spectrum.
 #[derive(Clone, Debug, PartialEq, Serialize)]
 pub struct Row {
@@ -247,6 +295,8 @@ pub struct Row {
     pub how: How,
     /// Whether the answer was reused from the store rather than computed by this run.
     pub reused: bool,
+    /// When its evidence was checked.
+    pub checked: Checked,
     /// Seconds the answer took when it was computed.
     pub seconds: f64,
     /// What backs it, in words.
@@ -258,14 +308,16 @@ pub struct Row {
 }
 
 impl Row {
-    fn new(grid: &Grid, answer: Answer, reused: bool) -> Row {
+    fn new(grid: &Grid, answer: Answer, reused: bool, checked: Checked) -> Row {
+        let checked = Checked::of(&answer, checked);
         Row {
             period: answer.question.period,
             verdict: answer.verdict,
             how: answer.how,
             reused,
             seconds: answer.stats.seconds,
-            certificate: certificate_words(&answer),
+            certificate: certificate_words(&answer, &checked),
+            checked,
             published: published_for(&answer.question, grid),
             answer,
         }
@@ -287,6 +339,9 @@ pub struct Summary {
     pub by_solver: usize,
     /// Answers reused from the store.
     pub reused: usize,
+    /// Reused infeasible answers whose proof this run did not check again
+    /// ([`Checked::Earlier`]).
+    pub proofs_not_rechecked: usize,
     /// Whether every period was decided.
     pub all_decided: bool,
 }
@@ -302,6 +357,9 @@ impl Summary {
             by_construction: count(&|r| r.how == How::Construction),
             by_solver: count(&|r| r.how == How::Solver),
             reused: count(&|r| r.reused),
+            proofs_not_rechecked: count(&|r| {
+                r.verdict == Verdict::Infeasible && matches!(r.checked, Checked::Earlier { .. })
+            }),
             all_decided: rows.iter().all(|r| r.verdict != Verdict::Unknown),
         }
     }
@@ -358,6 +416,9 @@ pub struct Spectrum {
     pub summary: Summary,
     /// One row per period, increasing.
     pub rows: Vec<Row>,
+    /// Files of the store this run could not use and moved aside (their
+    /// periods were decided again).
+    pub set_aside: Vec<SetAside>,
 }
 
 impl Spectrum {

@@ -4,7 +4,7 @@
 
 use std::fmt::Write as _;
 
-use super::Spectrum;
+use super::{Checked, Spectrum};
 use crate::encode::Symmetry;
 use crate::progress::duration_words;
 use crate::question::MapClass;
@@ -12,9 +12,27 @@ use crate::report::Verdict;
 use crate::store::{Answer, Backing};
 use crate::theory::{self, Status};
 
-/// What backs `a`, in words: `orbit checked; map checked on 27 points`,
-/// `LRAT proof checked (1234 steps): proofs/….lrat`, `none: time limit …`.
-pub fn certificate_words(a: &Answer) -> String {
+/// What backs `a`, and when it was checked, in words: `orbit checked; map
+/// checked on 27 points`, `LRAT proof checked (1234 steps): proofs/….lrat`,
+/// `LRAT proof checked on 2025-01-31, not re-checked in this run (1234
+/// steps): proofs/….lrat`, `none: time limit …`.
+pub fn certificate_words(a: &Answer, checked: &Checked) -> String {
+    let when = match checked {
+        Checked::Earlier { finished_at, .. } => {
+            let day = finished_at.split('T').next().unwrap_or(finished_at);
+            format!(" on {day}, not re-checked in this run")
+        }
+        _ => String::new(),
+    };
+    let what = evidence_words(a, &when);
+    match checked {
+        Checked::Rechecked => format!("{what}; re-checked in this run"),
+        _ => what,
+    }
+}
+
+/// What backs `a`, in words, with `when` after the proof's "checked".
+fn evidence_words(a: &Answer, when: &str) -> String {
     match a.backing {
         Backing::CheckedOrbit => match (a.map_checked_points, a.question.class) {
             (Some(n), MapClass::Nonexpansive) => {
@@ -28,10 +46,10 @@ pub fn certificate_words(a: &Answer) -> String {
         },
         Backing::CheckedProof => match &a.proof {
             Some(p) => match &p.file {
-                Some(f) => format!("LRAT proof checked ({} steps): {f}", p.steps),
-                None => format!("LRAT proof checked ({} steps), not kept", p.steps),
+                Some(f) => format!("LRAT proof checked{when} ({} steps): {f}", p.steps),
+                None => format!("LRAT proof checked{when} ({} steps), not kept", p.steps),
             },
-            None => "LRAT proof checked".into(),
+            None => format!("LRAT proof checked{when}"),
         },
         Backing::SolverClaim => "the solver's claim, no proof checked".into(),
         Backing::None => format!("none: {}", a.reason.as_deref().unwrap_or("no answer")),
@@ -158,6 +176,16 @@ impl Spectrum {
             duration_words(self.elapsed_seconds),
             self.jobs
         );
+        if self.summary.proofs_not_rechecked > 0 {
+            let _ = writeln!(
+                s,
+                "             {} reused proof(s) not re-checked in this run (--recheck re-checks them)",
+                self.summary.proofs_not_rechecked
+            );
+        }
+        for f in &self.set_aside {
+            let _ = writeln!(s, "set aside    {}", f.describe());
+        }
         let shorts: Vec<String> = self
             .statements()
             .into_iter()
@@ -255,6 +283,16 @@ impl Spectrum {
             self.question
         );
         let _ = writeln!(s, "Summary: {}.\n", self.summary_words());
+        if !self.set_aside.is_empty() {
+            let _ = writeln!(
+                s,
+                "Stored files this run could not use were moved aside, and their periods decided again:\n"
+            );
+            for f in &self.set_aside {
+                let _ = writeln!(s, "- {}", md_cell(&f.describe()));
+            }
+            let _ = writeln!(s);
+        }
         let _ = writeln!(
             s,
             "| p | computed | how | time | certificate | published |\n|---:|---|---|---:|---|---|"

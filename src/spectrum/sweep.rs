@@ -6,7 +6,7 @@ use std::sync::atomic::{AtomicBool, AtomicU64, Ordering};
 use std::time::{Instant, SystemTime};
 
 use super::answer::{self, Task};
-use super::{MAX_PERIODS, Row, Spectrum, Summary, SweepConfig};
+use super::{Checked, MAX_PERIODS, Row, Spectrum, Summary, SweepConfig};
 use crate::dimacs::VERSION;
 use crate::error::{Error, Result};
 use crate::grid::Grid;
@@ -24,8 +24,11 @@ use crate::theory::{self, construction_limit, period_bound, theorem_conflict_for
 /// [`Error::Question`] for no periods, too many, or a period above the number
 /// of grid points; [`Error::Contradiction`] when two answers to a question
 /// disagree or an answer contradicts a published theorem; store errors
-/// ([`Error::Io`], [`Error::Parse`]); pipeline errors of a period (a failed
-/// check, a rejected proof, a solver failure).
+/// ([`Error::Io`]; [`Error::Parse`] for a bad file that cannot be moved
+/// aside); pipeline errors of a period (a failed check, a rejected proof, a
+/// solver failure). A stored file that cannot be used is not an error: it
+/// is set aside with a warning ([`Store::set_aside`]) and its period decided
+/// again.
 pub fn run(cfg: &SweepConfig) -> Result<Spectrum> {
     if cfg.jobs == 0 {
         return Err(Error::Options("--jobs must be at least 1".into()));
@@ -48,7 +51,10 @@ pub fn run(cfg: &SweepConfig) -> Result<Spectrum> {
             None => Ok(Question::new(cfg.grid.clone(), p)?.with_class(cfg.class)),
         })
         .collect::<Result<_>>()?;
+    let mut progress = Progress::new(cfg.progress);
     let mut store = cfg.store.as_deref().map(Store::open).transpose()?;
+    let mut warned = 0;
+    warn_set_aside(&store, &mut warned, &mut progress);
     let run_id = store::run_id();
     let started_at = store::utc_timestamp(SystemTime::now());
     let t0 = Instant::now();
@@ -62,9 +68,11 @@ pub fn run(cfg: &SweepConfig) -> Result<Spectrum> {
     let mut tasks = Vec::new();
     for q in questions {
         let key = store::key_for(&q, &cfg.options);
-        if let Some(s) = &store {
-            if let Some(a) = reusable(s, grid, &q, &key, &limits, cfg.recheck)? {
-                rows.insert(q.period, Row::new(grid, a, true));
+        if let Some(s) = &mut store {
+            let reused = reusable(s, grid, &q, &key, &limits, cfg.recheck)?;
+            warn_set_aside(&store, &mut warned, &mut progress);
+            if let Some((a, checked)) = reused {
+                rows.insert(q.period, Row::new(grid, a, true, checked));
                 continue;
             }
         }
@@ -82,6 +90,7 @@ pub fn run(cfg: &SweepConfig) -> Result<Spectrum> {
     for (q, key) in constructible {
         let a = answer::constructed(&q, key, &cfg.options, &limits, &run_id)?;
         finish(grid, &mut store, &mut rows, a)?;
+        warn_set_aside(&store, &mut warned, &mut progress);
     }
 
     let watch = Watch {
@@ -94,7 +103,6 @@ pub fn run(cfg: &SweepConfig) -> Result<Spectrum> {
         jobs: cfg.jobs,
         limit: limits.time_seconds,
     };
-    let mut progress = Progress::new(cfg.progress);
     progress.event(|| {
         let reused = rows.values().filter(|r| r.reused).count();
         format!(
@@ -127,7 +135,9 @@ pub fn run(cfg: &SweepConfig) -> Result<Spectrum> {
             .collect();
         if let Event::Finished(i, answer) = event {
             let p = tasks[i].question.period;
-            match (*answer).and_then(|a| finish(grid, &mut store, &mut rows, a)) {
+            let outcome = (*answer).and_then(|a| finish(grid, &mut store, &mut rows, a));
+            warn_set_aside(&store, &mut warned, &mut progress);
+            match outcome {
                 Ok(()) => progress.event(|| {
                     let r = &rows[&p];
                     format!(
@@ -212,19 +222,48 @@ pub fn run(cfg: &SweepConfig) -> Result<Spectrum> {
         time_limit_seconds: limits.time_seconds,
         summary,
         rows,
+        set_aside: store
+            .map(|s| s.set_aside_files().to_vec())
+            .unwrap_or_default(),
     })
 }
 
-/// The stored answer to reuse for `q`, after checking the store's answers
-/// to `q` against each other and against the theorems.
+/// Warns about the files `store` has set aside since the first `warned`,
+/// and counts them in.
+fn warn_set_aside(store: &Option<Store>, warned: &mut usize, progress: &mut Progress) {
+    let Some(s) = store else { return };
+    let all = s.set_aside_files();
+    for f in &all[(*warned).min(all.len())..] {
+        let is_answer = f
+            .file
+            .parent()
+            .is_some_and(|d| d.ends_with(store::ANSWERS_DIR));
+        let again = match (is_answer, f.period) {
+            (true, Some(_)) => "; its period is decided again",
+            (true, None) => "; it is not read",
+            (false, _) => "",
+        };
+        progress.warn(&format!(
+            "a stored file cannot be used and was set aside: {}{again}",
+            f.describe()
+        ));
+    }
+    *warned = all.len();
+}
+
+/// The stored answer to reuse for `q`, with when its evidence was checked,
+/// after checking the store's answers to `q` against each other and against
+/// the theorems. An answer whose evidence fails its check is set aside
+/// ([`Store::set_aside`]) and `None` returned, so that its period is
+/// decided again; only an I/O failure is an error.
 fn reusable(
-    s: &Store,
+    s: &mut Store,
     grid: &Grid,
     q: &Question,
     key: &str,
     limits: &RunLimits,
     recheck: bool,
-) -> Result<Option<Answer>> {
+) -> Result<Option<(Answer, Checked)>> {
     let record = q.record();
     let all: Vec<&Answer> = s.for_question(&record).collect();
     for (i, a) in all.iter().enumerate() {
@@ -239,18 +278,52 @@ fn reusable(
             });
         }
     }
-    let Some(a) = s.get(key) else {
+    let Some(a) = s.get(key).cloned() else {
         return Ok(None);
     };
     if !a.is_decided() && limits.exceeds(&a.limits) {
         return Ok(None);
     }
-    if recheck {
-        s.recheck(a)?;
+    match check_stored(s, q, &a, recheck) {
+        Ok(checked) => Ok(Some((a, checked))),
+        Err(e @ Error::Io { .. }) => Err(e),
+        Err(e) => {
+            s.set_aside(key, &store::why(&e));
+            Ok(None)
+        }
+    }
+}
+
+/// Checks the evidence of the stored answer `a` to `q` before it is reused:
+/// in full with `recheck` ([`Store::recheck`]), otherwise the quick check
+/// ([`Store::quick_check`]); a feasible answer's box extension is built and
+/// checked again too. Says what was checked in this run.
+fn check_stored(s: &Store, q: &Question, a: &Answer, recheck: bool) -> Result<Checked> {
+    let proof_checked = if recheck {
+        s.recheck(a)?.proof.is_some()
     } else {
         s.quick_check(a)?;
+        false
+    };
+    match a.verdict {
+        Verdict::Feasible => {
+            if let (Some(n), Some(orbit)) = (a.map_checked_points, &a.orbit) {
+                if !a.options.is_full_map() && answer::map_check(q, orbit)? != Some(n) {
+                    return Err(Error::parse(
+                        s.answer_path(&a.key).display().to_string(),
+                        0,
+                        format!(
+                            "the map was checked on {n} points, but the extension is not built on as many now"
+                        ),
+                    ));
+                }
+            }
+            Ok(Checked::Rechecked)
+        }
+        Verdict::Infeasible if proof_checked => Ok(Checked::Rechecked),
+        Verdict::Infeasible => Ok(Checked::earlier(a)),
+        Verdict::Unknown => Ok(Checked::Never),
     }
-    Ok(Some(a.clone()))
 }
 
 /// Checks a new answer against the theorems, stores it and records its row.
@@ -277,19 +350,22 @@ fn finish(
             ),
         });
     }
-    let (row_answer, reused) = match store {
+    let (row_answer, reused, checked) = match store {
         Some(s) => match s.put(a.clone())? {
-            Put::Written => (a, false),
+            Put::Written => (a, false, Checked::ThisRun),
             Put::Kept(stored) => {
+                // Another run stored the same verdict meanwhile; its answer
+                // stands, so this run's proof (never referenced) goes.
                 if let Some(f) = a.proof.as_ref().and_then(|p| p.file.as_ref()) {
                     let _ = std::fs::remove_file(s.resolve(f));
                 }
-                (*stored, true)
+                let checked = Checked::earlier(&stored);
+                (*stored, true, checked)
             }
         },
-        None => (a, false),
+        None => (a, false, Checked::ThisRun),
     };
-    rows.insert(p, Row::new(grid, row_answer, reused));
+    rows.insert(p, Row::new(grid, row_answer, reused, checked));
     Ok(())
 }
 

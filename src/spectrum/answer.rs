@@ -8,7 +8,6 @@ use std::time::{Instant, SystemTime};
 
 use super::{MAP_CHECK_POINTS, SweepConfig};
 use crate::decide;
-use crate::dimacs::VERSION;
 use crate::encode::EncodeOptions;
 use crate::error::{Error, Result};
 use crate::grid::Point;
@@ -16,7 +15,7 @@ use crate::question::{MapClass, Question};
 use crate::report::{Certificate, Verdict};
 use crate::solve::Limits;
 use crate::solve::certified::Certified;
-use crate::store::{self, Answer, AnswerStats, Backing, How, ProofRecord, RunLimits, SCHEMA};
+use crate::store::{self, Answer, AnswerStats, Backing, How, ProofRecord, RunLimits};
 use crate::theory::{construct, construction_limit};
 use crate::verify;
 
@@ -24,45 +23,8 @@ use crate::verify;
 pub(super) struct Task {
     /// The question.
     pub question: Question,
-    /// Its store key.
-    pub key: String,
     /// Where its proof goes in the store: absolute path, path relative to the store.
     pub proof: Option<(PathBuf, String)>,
-}
-
-fn base_answer(
-    q: &Question,
-    key: String,
-    options: &EncodeOptions,
-    limits: &RunLimits,
-    run_id: &str,
-    how: How,
-    started: SystemTime,
-) -> Answer {
-    let resolved = options.resolve(q);
-    Answer {
-        schema: SCHEMA.into(),
-        key,
-        question: q.record(),
-        formulation: resolved.formulation.clone(),
-        options: resolved,
-        verdict: Verdict::Unknown,
-        how,
-        backing: Backing::None,
-        orbit: None,
-        profile: None,
-        map: None,
-        map_checked_points: None,
-        proof: None,
-        reason: None,
-        limits: *limits,
-        stats: AnswerStats::default(),
-        solver: None,
-        tool_version: VERSION.into(),
-        run_id: run_id.into(),
-        started_at: store::utc_timestamp(started),
-        finished_at: String::new(),
-    }
 }
 
 /// Builds and checks the extension of `orbit` for `q`'s class on boxes of at
@@ -98,14 +60,14 @@ pub(super) fn map_check(q: &Question, orbit: &[Point]) -> Result<Option<u64>> {
 /// class's [`construction_limit`]).
 pub(super) fn constructed(
     q: &Question,
-    key: String,
     options: &EncodeOptions,
     limits: &RunLimits,
     run_id: &str,
 ) -> Result<Answer> {
     let started = SystemTime::now();
     let t = Instant::now();
-    let mut a = base_answer(q, key, options, limits, run_id, How::Construction, started);
+    let started_at = store::utc_timestamp(started);
+    let mut a = Answer::unknown(q, options, *limits, How::Construction, run_id, started_at);
     let orbit = construct(&q.grid, q.class, q.period).ok_or_else(|| {
         Error::Question(format!(
             "period {} is above the construction limit {} of {} maps and cannot be constructed",
@@ -137,15 +99,8 @@ pub(super) fn solved(
     let q = &task.question;
     let started = SystemTime::now();
     let t = Instant::now();
-    let mut a = base_answer(
-        q,
-        task.key.clone(),
-        &cfg.options,
-        limits,
-        run_id,
-        How::Solver,
-        started,
-    );
+    let started_at = store::utc_timestamp(started);
+    let mut a = Answer::unknown(q, &cfg.options, *limits, How::Solver, run_id, started_at);
     let mut backend = Certified {
         lrat: task.proof.as_ref().map(|(abs, _)| abs.clone()),
         drat: None,

@@ -77,18 +77,14 @@ pub fn run(cfg: &SweepConfig) -> Result<Spectrum> {
             }
         }
         if q.points.is_none() && q.period as u128 <= construction_limit(grid, q.class) {
-            constructible.push((q, key));
+            constructible.push(q);
         } else {
             let proof = store.as_ref().map(|s| s.proof_path(&key, &run_id));
-            tasks.push(Task {
-                question: q,
-                key,
-                proof,
-            });
+            tasks.push(Task { question: q, proof });
         }
     }
-    for (q, key) in constructible {
-        let a = answer::constructed(&q, key, &cfg.options, &limits, &run_id)?;
+    for q in constructible {
+        let a = answer::constructed(&q, &cfg.options, &limits, &run_id)?;
         finish(grid, &mut store, &mut rows, a)?;
         warn_set_aside(&store, &mut warned, &mut progress);
     }

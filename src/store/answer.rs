@@ -6,6 +6,7 @@ use std::time::{SystemTime, UNIX_EPOCH};
 use serde::{Deserialize, Serialize};
 
 use crate::artifact::sha256_hex;
+use crate::dimacs::VERSION;
 use crate::encode::EncodeOptions;
 use crate::error::{Error, Result};
 use crate::grid::Point;
@@ -169,6 +170,44 @@ pub struct Answer {
 }
 
 impl Answer {
+    /// An unknown answer to `q` under `options` (resolved here, and keyed
+    /// by [`key_for`]) with nothing behind it yet, computed by run `run_id`
+    /// of this orbitcnf under `limits`, started at `started_at`: what every
+    /// answer a run computes starts from.
+    pub fn unknown(
+        q: &Question,
+        options: &EncodeOptions,
+        limits: RunLimits,
+        how: How,
+        run_id: &str,
+        started_at: String,
+    ) -> Answer {
+        let resolved = options.resolve(q);
+        Answer {
+            schema: SCHEMA.into(),
+            key: key(&q.record(), &resolved),
+            question: q.record(),
+            formulation: resolved.formulation.clone(),
+            options: resolved,
+            verdict: Verdict::Unknown,
+            how,
+            backing: Backing::None,
+            orbit: None,
+            profile: None,
+            map: None,
+            map_checked_points: None,
+            proof: None,
+            reason: None,
+            limits,
+            stats: AnswerStats::default(),
+            solver: None,
+            tool_version: VERSION.into(),
+            run_id: run_id.into(),
+            started_at,
+            finished_at: String::new(),
+        }
+    }
+
     /// Whether the verdict is feasible or infeasible.
     pub fn is_decided(&self) -> bool {
         self.verdict != Verdict::Unknown
@@ -310,7 +349,6 @@ pub fn question_words(q: &QuestionRecord) -> String {
 #[cfg(test)]
 pub(crate) mod tests {
     use super::*;
-    use crate::encode::FORMULATION;
     use crate::grid::Grid;
     use crate::question::MapClass;
 
@@ -322,33 +360,16 @@ pub(crate) mod tests {
         run: &str,
     ) -> Answer {
         let q = Question::new(Grid::parse("-1..1", Some(2)).unwrap(), period).unwrap();
-        let resolved = options.resolve(&q);
-        Answer {
-            schema: SCHEMA.into(),
-            key: key(&q.record(), &resolved),
-            question: q.record(),
-            options: resolved,
-            formulation: FORMULATION.into(),
-            verdict,
-            how: How::Solver,
-            backing: Backing::None,
-            orbit: None,
-            profile: None,
-            map: None,
-            map_checked_points: None,
-            proof: None,
-            reason: None,
-            limits: RunLimits {
-                time_seconds: Some(1.0),
-                max_clauses: 10,
-            },
-            stats: AnswerStats::default(),
-            solver: None,
-            tool_version: "test".into(),
-            run_id: run.into(),
-            started_at: "2025-01-01T00:00:00.000Z".into(),
-            finished_at: "2025-01-01T00:00:01.000Z".into(),
-        }
+        let limits = RunLimits {
+            time_seconds: Some(1.0),
+            max_clauses: 10,
+        };
+        let started = "2025-01-01T00:00:00.000Z".to_string();
+        let mut a = Answer::unknown(&q, &options, limits, How::Solver, run, started);
+        a.verdict = verdict;
+        a.tool_version = "test".into();
+        a.finished_at = "2025-01-01T00:00:01.000Z".into();
+        a
     }
 
     #[test]

@@ -213,7 +213,10 @@ pub const SHORT_LS: &str = "Lemmens and Scheutzow 2005";
 pub const SHORT_LN: &str = "Lyons and Nussbaum 1992 [recalled]";
 
 fn is_prime(p: usize) -> bool {
-    p >= 2 && (2..).take_while(|d| d * d <= p).all(|d| p % d != 0)
+    p >= 2
+        && (2..)
+            .take_while(|d| d * d <= p)
+            .all(|d| !p.is_multiple_of(d))
 }
 
 /// What is published about period `p` of `class` on `grid`, in terms of the

@@ -154,11 +154,11 @@ impl Write for Meter {
         }
         let total = self.learned.fetch_add(added, Ordering::Relaxed) + added;
         let now = Instant::now();
-        if let Some(d) = self.deadline {
-            if now >= d {
-                self.timed_out.store(true, Ordering::Relaxed);
-                return Err(io::Error::other("orbitcnf time limit reached"));
-            }
+        if let Some(d) = self.deadline
+            && now >= d
+        {
+            self.timed_out.store(true, Ordering::Relaxed);
+            return Err(io::Error::other("orbitcnf time limit reached"));
         }
         if let Some(w) = self.inner.as_mut() {
             w.write_all(buf)?;

@@ -20,8 +20,8 @@ use serde::Serialize;
 
 use super::bundled::Meter;
 use super::{Backend, Limits, Outcome, SolveResult, SolveStats};
-use crate::cnf::Cnf;
 use crate::artifact::{persist, temp_beside};
+use crate::cnf::Cnf;
 use crate::error::{Error, Result};
 use crate::proof::lrat::{LratFileError, check_lrat_file};
 use crate::proof::{LratOptions, LratSummary, ProofSinks, solve_with_proof_sinks};

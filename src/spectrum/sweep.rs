@@ -303,16 +303,17 @@ fn check_stored(s: &Store, q: &Question, a: &Answer, recheck: bool) -> Result<Ch
     };
     match a.verdict {
         Verdict::Feasible => {
-            if let (Some(n), Some(orbit)) = (a.map_checked_points, &a.orbit) {
-                if !a.options.is_full_map() && answer::map_check(q, orbit)? != Some(n) {
-                    return Err(Error::parse(
-                        s.answer_path(&a.key).display().to_string(),
-                        0,
-                        format!(
-                            "the map was checked on {n} points, but the extension is not built on as many now"
-                        ),
-                    ));
-                }
+            if let (Some(n), Some(orbit)) = (a.map_checked_points, &a.orbit)
+                && !a.options.is_full_map()
+                && answer::map_check(q, orbit)? != Some(n)
+            {
+                return Err(Error::parse(
+                    s.answer_path(&a.key).display().to_string(),
+                    0,
+                    format!(
+                        "the map was checked on {n} points, but the extension is not built on as many now"
+                    ),
+                ));
             }
             Ok(Checked::Rechecked)
         }

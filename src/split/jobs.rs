@@ -26,9 +26,9 @@ use std::sync::atomic::{AtomicBool, AtomicU64, Ordering};
 use std::time::{Duration, Instant};
 
 use super::{Cube, coverage_cnf, coverage_sources, cubes as make_cubes, lift, refute_coverage};
+use crate::artifact::write_atomically;
 use crate::cnf::Cnf;
 use crate::decide::witness;
-use crate::artifact::write_atomically;
 use crate::encode::{EncodeOptions, encode};
 use crate::error::{Error, Result};
 use crate::pool::{self, Event};

@@ -341,10 +341,10 @@ impl Store {
                 &format!("the new answer of run {}", answer.run_id),
             )?;
         }
-        if let Some(stored) = self.answers.get(&answer.key) {
-            if stored.is_decided() {
-                return Ok(Put::Kept(Box::new(stored.clone())));
-            }
+        if let Some(stored) = self.answers.get(&answer.key)
+            && stored.is_decided()
+        {
+            return Ok(Put::Kept(Box::new(stored.clone())));
         }
         let text = serde_json::to_string_pretty(&answer).expect("answers serialise") + "\n";
         write_atomically(&path, text.as_bytes())?;
@@ -424,20 +424,20 @@ impl Store {
                 check_stored_orbit(&q, a, &file)?;
             }
             Verdict::Infeasible => {
-                if let Some(p) = &a.proof {
-                    if let Some(rel) = &p.file {
-                        let path = self.resolve(rel);
-                        let size = std::fs::metadata(&path).map(|m| m.len()).ok();
-                        if size != Some(p.bytes) {
-                            return Err(Error::parse(
-                                file,
-                                0,
-                                format!(
-                                    "its proof file {} is missing or has changed size",
-                                    path.display()
-                                ),
-                            ));
-                        }
+                if let Some(p) = &a.proof
+                    && let Some(rel) = &p.file
+                {
+                    let path = self.resolve(rel);
+                    let size = std::fs::metadata(&path).map(|m| m.len()).ok();
+                    if size != Some(p.bytes) {
+                        return Err(Error::parse(
+                            file,
+                            0,
+                            format!(
+                                "its proof file {} is missing or has changed size",
+                                path.display()
+                            ),
+                        ));
                     }
                 }
             }

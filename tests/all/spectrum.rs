@@ -41,6 +41,14 @@ fn rows(report: &Value) -> &Vec<Value> {
     report["rows"].as_array().expect("rows")
 }
 
+/// The verdict of every row, in order.
+fn verdicts(report: &Value) -> Vec<&str> {
+    rows(report)
+        .iter()
+        .map(|r| r["verdict"].as_str().unwrap())
+        .collect()
+}
+
 /// `(period, verdict, how, backing, orbit)` per row: what must not depend on
 /// when or in how many runs the spectrum was computed.
 fn essentials(report: &Value) -> Vec<(u64, String, String, String, Value)> {
@@ -310,11 +318,10 @@ fn spectrum_unknowns_are_kept_and_retried_only_with_larger_limits() {
         .run();
     small.code(2);
     let small = small.json();
-    let verdicts: Vec<&str> = rows(&small)
-        .iter()
-        .map(|r| r["verdict"].as_str().unwrap())
-        .collect();
-    assert_eq!(verdicts, ["feasible", "feasible", "unknown", "unknown"]);
+    assert_eq!(
+        verdicts(&small),
+        ["feasible", "feasible", "unknown", "unknown"]
+    );
     assert!(
         rows(&small)[2]["certificate"]
             .as_str()
@@ -730,11 +737,7 @@ fn sweep_past_bad_files(dir: &TestDir, extra: &[&str], bad: &[&str]) -> Value {
         .run();
     run.code(0);
     let v = run.json();
-    let verdicts: Vec<&str> = rows(&v)
-        .iter()
-        .map(|r| r["verdict"].as_str().unwrap())
-        .collect();
-    assert_eq!(verdicts, ["feasible", "infeasible"], "{}", run.stdout);
+    assert_eq!(verdicts(&v), ["feasible", "infeasible"], "{}", run.stdout);
     let set_aside = v["set_aside"].as_array().expect("set_aside");
     for name in bad {
         run.stderr_has("orbitcnf: warning: a stored file cannot be used and was set aside: ")

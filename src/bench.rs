@@ -21,6 +21,7 @@ use crate::encode::{DEFAULT_MAX_CLAUSES, EncodeOptions, Symmetry};
 use crate::error::{Error, Result};
 use crate::evidence::Evidence;
 use crate::grid::Grid;
+use crate::progress::ProgressMode;
 use crate::question::Question;
 use crate::report::Verdict;
 use crate::solve::Limits;
@@ -171,7 +172,8 @@ pub fn run_case(case: &Case, limit: Duration, baselines: bool) -> Result<Row> {
         }
         let limits = Limits {
             time: Some(limit),
-            progress: true,
+            progress: ProgressMode::auto(),
+            ..Limits::default()
         };
         let r = decide(
             &case.question,
@@ -208,7 +210,8 @@ pub fn run_case(case: &Case, limit: Duration, baselines: bool) -> Result<Row> {
     if runs[0].verdict == Verdict::Infeasible {
         let limits = Limits {
             time: Some(limit),
-            progress: true,
+            progress: ProgressMode::auto(),
+            ..Limits::default()
         };
         let mut backend = Certified::default();
         let r = decide(
@@ -361,7 +364,7 @@ pub fn run_spectrum(jobs: usize, limit: Duration) -> Result<SpectrumFigures> {
     let mut cfg = crate::spectrum::SweepConfig::new(grid);
     cfg.jobs = jobs.max(1);
     cfg.time_limit = Some(limit);
-    cfg.progress = true;
+    cfg.progress = ProgressMode::auto();
     let start = std::time::Instant::now();
     let sp = crate::spectrum::run(&cfg)?;
     let seconds = start.elapsed().as_secs_f64();

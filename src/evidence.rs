@@ -116,14 +116,20 @@ pub fn check_witness(
             map: Some(map_check),
         });
     }
+    Ok(WitnessCheck {
+        orbit: check_orbit(q, orbit)?,
+        map: None,
+    })
+}
+
+/// Checks `orbit` as an isometric cycle of `q`'s class on `q`'s box (a
+/// topical cycle for topical maps), without a map: what backs a feasible
+/// answer on a box, whose map is then built by exhaustion or extension.
+pub fn check_orbit(q: &Question, orbit: &[Point]) -> Result<OrbitCheck> {
     let bounds = q.grid.ranges();
-    let orbit_check = match q.class {
+    Ok(match q.class {
         MapClass::Topical => verify::check_topical_orbit(bounds, orbit)?,
         MapClass::Nonexpansive => verify::check_orbit(bounds, orbit)?,
-    };
-    Ok(WitnessCheck {
-        orbit: orbit_check,
-        map: None,
     })
 }
 

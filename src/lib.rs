@@ -29,6 +29,8 @@ pub mod grid;
 pub mod isometry;
 pub mod orbit_file;
 pub mod points;
+pub mod pool;
+pub mod progress;
 pub mod proof;
 pub mod question;
 pub mod report;
@@ -36,6 +38,7 @@ pub mod solve;
 pub mod spectrum;
 pub mod split;
 pub mod store;
+pub mod theory;
 pub mod varmap;
 pub mod verify;
 

@@ -8,15 +8,58 @@
 use std::path::PathBuf;
 use std::time::Duration;
 
-use clap::Args;
+use clap::{Args, ValueEnum};
 
 use orbitcnf::decide::Solver;
 use orbitcnf::encode::{DEFAULT_MAX_CLAUSES, EncodeOptions, Symmetry};
 use orbitcnf::points::PointSet;
+use orbitcnf::progress::ProgressMode;
 use orbitcnf::question::MapClass;
 use orbitcnf::solve::external::{External, ProofFormat, ProofRequest};
 use orbitcnf::split::jobs::JobsOptions;
 use orbitcnf::{Error, Grid, Question};
+
+/// `--progress MODE` and `-q`, shared by the commands that can run long.
+#[derive(Args, Debug, Clone)]
+pub struct ProgressArgs {
+    /// Progress on stderr: `bar`, one line redrawn in place; `lines`, plain
+    /// timestamped lines for logs (`orbitcnf: progress: …`, one for every
+    /// decided period or finished cube and a status every 30 s); `off`; or
+    /// `auto`, the default: `bar` when stderr is a terminal (and no --json
+    /// report is asked of decide or run-cube), nothing otherwise.
+    #[arg(long, value_name = "MODE", value_enum, default_value_t = ProgressChoice::Auto)]
+    pub progress: ProgressChoice,
+    /// Show no progress on stderr (as --progress off).
+    #[arg(long, short, conflicts_with = "progress")]
+    pub quiet: bool,
+}
+
+/// The values of `--progress`.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
+pub enum ProgressChoice {
+    /// A bar on a terminal, nothing otherwise.
+    Auto,
+    /// One line redrawn in place.
+    Bar,
+    /// Timestamped lines for logs.
+    Lines,
+    /// Nothing.
+    Off,
+}
+
+impl ProgressArgs {
+    /// The mode asked for; `auto` stays quiet beside a machine-read report
+    /// (`quiet_auto`) as well as off a terminal.
+    pub fn mode(&self, quiet_auto: bool) -> ProgressMode {
+        match (self.quiet, self.progress) {
+            (true, _) | (false, ProgressChoice::Off) => ProgressMode::Off,
+            (false, ProgressChoice::Bar) => ProgressMode::Bar,
+            (false, ProgressChoice::Lines) => ProgressMode::Lines,
+            (false, ProgressChoice::Auto) if quiet_auto => ProgressMode::Off,
+            (false, ProgressChoice::Auto) => ProgressMode::auto(),
+        }
+    }
+}
 
 /// The domain D: a box (`--grid`, `--dim`) or a point set (`--points`).
 #[derive(Args, Debug, Clone)]

@@ -40,7 +40,7 @@ pub struct BenchArgs {
 pub fn run(a: BenchArgs) -> Outcome {
     use orbitcnf::bench;
     if a.spectrum {
-        let jobs = a.jobs.unwrap_or_else(orbitcnf::spectrum::default_jobs);
+        let jobs = a.jobs.unwrap_or_else(orbitcnf::pool::default_jobs);
         let f = bench::run_spectrum(jobs, a.time_limit)?;
         print_either(
             a.json,

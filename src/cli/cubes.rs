@@ -11,7 +11,7 @@ use orbitcnf::solve::certified::Certified;
 use orbitcnf::solve::{Backend, Limits};
 use orbitcnf::split::{self, run as cube_run};
 
-use super::args::{EncodingArgs, QuestionArgs, SolverArgs, parse_seconds};
+use super::args::{EncodingArgs, ProgressArgs, QuestionArgs, SolverArgs, parse_seconds};
 use super::{Outcome, code, print, print_either};
 
 /// The long help of `split`.
@@ -127,16 +127,16 @@ pub struct RunCubeArgs {
     /// Print the result as JSON.
     #[arg(long)]
     json: bool,
-    /// Do not show the progress line on stderr.
-    #[arg(long, short)]
-    quiet: bool,
+    #[command(flatten)]
+    progress: ProgressArgs,
 }
 
 /// Runs `run-cube`.
 pub fn run_cube(a: RunCubeArgs) -> Outcome {
     let limits = Limits {
         time: a.time_limit,
-        progress: !a.quiet && !a.json,
+        progress: a.progress.mode(a.json),
+        ..Limits::default()
     };
     let lrat = cube_run::lrat_target(&a.dir, a.index);
     let mut external = a.solver.external(!a.no_certify)?;

@@ -10,7 +10,9 @@ use orbitcnf::decide::{self, BundleOutcome, Outputs, Request};
 use orbitcnf::solve::Limits;
 use orbitcnf::{Error, dimacs, encode};
 
-use super::args::{CertifyArgs, EncodingArgs, QuestionArgs, ScaleArgs, parse_seconds};
+use super::args::{
+    CertifyArgs, EncodingArgs, ProgressArgs, QuestionArgs, ScaleArgs, parse_seconds,
+};
 use super::{Outcome, code, print_either};
 
 /// Arguments of `decide`.
@@ -26,9 +28,8 @@ pub struct DecideArgs {
     /// Print one JSON object instead of the text report.
     #[arg(long)]
     json: bool,
-    /// Do not show the progress line on stderr.
-    #[arg(long, short)]
-    quiet: bool,
+    #[command(flatten)]
+    progress: ProgressArgs,
     /// Write the LRAT proof of an infeasible answer to FILE (text LRAT; the
     /// proof is checked by orbitcnf's own checker in any case).
     #[arg(long, value_name = "FILE", conflicts_with = "no_certify")]
@@ -64,7 +65,8 @@ pub fn run_decide(a: DecideArgs) -> Outcome {
         },
         limits: Limits {
             time: a.time_limit,
-            progress: !a.quiet && !a.json,
+            progress: a.progress.mode(a.json),
+            ..Limits::default()
         },
         max_clauses: a.encoding.max_clauses,
         accept_claims: a.certify.accept_claims(),

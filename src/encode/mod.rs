@@ -277,15 +277,28 @@ impl EncodeOptions {
         o
     }
 
+    /// The part of [`EncodeOptions::resolve`] that depends only on the class
+    /// and on whether D is a point set: the formulation that answers such
+    /// questions (full-map on a point set, or when asked for) and the
+    /// families it switches off whatever the period. A sweep over periods
+    /// reports its options this way, since the rest varies by period.
+    pub fn for_domain(&self, class: MapClass, point_set: bool) -> EncodeOptions {
+        if point_set || self.is_full_map() {
+            fullmap::for_domain(self)
+        } else {
+            self.for_class(class)
+        }
+    }
+
     /// The options as they apply to `q`: families that cannot act on `q`, or
     /// whose tables would be too large, are switched off. A question on a
     /// point set always takes the full-map formulation, the only one that
     /// answers it. The result is what the CNF header records.
     pub fn resolve(&self, q: &Question) -> EncodeOptions {
-        if q.points.is_some() || self.is_full_map() {
-            return fullmap::resolve(self, q);
+        let mut o = self.for_domain(q.class, q.points.is_some());
+        if o.is_full_map() {
+            return fullmap::resolve(&o, q);
         }
-        let mut o = self.for_class(q.class);
         let point_eq_ok = q.period as u128 * q.grid.num_points() <= POINT_EQ_LIMIT;
         if !point_eq_ok {
             o.count = false;

@@ -13,10 +13,11 @@ use super::{EncodeOptions, Symmetry, encode};
 use crate::brute;
 use crate::grid::{Grid, Point};
 use crate::isometry;
-use crate::question::{MapClass, Question, effective_dim, lemmens_scheutzow_bound, topical_bound};
+use crate::question::{MapClass, Question};
 use crate::report::Verdict;
 use crate::solve::Limits;
 use crate::solve::bundled::Bundled;
+use crate::theory::{effective_dim, lemmens_scheutzow_bound, topical_bound};
 use crate::varmap::Meaning;
 use crate::{decide, verify};
 

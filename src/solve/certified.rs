@@ -18,7 +18,7 @@ use std::time::Instant;
 
 use serde::Serialize;
 
-use super::bundled::{Meter, clear_progress};
+use super::bundled::Meter;
 use super::{Backend, Limits, Outcome, SolveResult, SolveStats};
 use crate::artifact::{persist, temp_beside};
 use crate::cnf::Cnf;
@@ -90,7 +90,6 @@ impl Backend for Certified {
         let out = solve_with_proof_sinks(cnf, sinks, limits.time);
         let flushed = meter.flush();
         drop(meter);
-        clear_progress(limits);
         let out = out?;
         let stats = SolveStats {
             solver: NAME.into(),

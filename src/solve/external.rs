@@ -46,7 +46,7 @@
 //! answer is [`Outcome::Unknown`]. Only the solver process itself is killed:
 //! a wrapper script should `exec` the solver so that no grandchild survives.
 
-use std::io::{BufWriter, IsTerminal, Read, Write};
+use std::io::{BufWriter, Read, Write};
 use std::path::{Path, PathBuf};
 use std::process::{Child, Command, ExitStatus, Stdio};
 use std::sync::mpsc;
@@ -57,6 +57,7 @@ use super::{Backend, Limits, Outcome, SolveResult, SolveStats, check_model};
 use crate::cnf::Cnf;
 use crate::dimacs::{self, Status};
 use crate::error::{Error, Result};
+use crate::progress::{Progress, duration_words};
 use crate::proof::{LratOptions, check_lrat_with};
 
 /// How much of a solver's standard output is kept; more is an error.
@@ -305,7 +306,7 @@ fn run_until(
     cmd: &mut Command,
     program: &str,
     deadline: Option<Instant>,
-    progress: Option<(&str, Instant)>,
+    mut progress: Option<(&str, Instant, &mut Progress)>,
 ) -> std::result::Result<Ended, ExternalFailure> {
     cmd.stdin(Stdio::null())
         .stdout(Stdio::piped())
@@ -322,7 +323,6 @@ fn run_until(
     let out_rx = reader(child.stdout.take(), MAX_OUTPUT_BYTES);
     let err_rx = reader(child.stderr.take(), 1 << 20);
     let mut pause = Duration::from_millis(1);
-    let mut last_report = Instant::now();
     let status = loop {
         match child.try_wait() {
             Ok(Some(status)) => break status,
@@ -341,14 +341,13 @@ fn run_until(
             let _ = child.wait();
             return Ok(Ended::TimedOut);
         }
-        if let Some((name, start)) = progress {
-            if last_report.elapsed() >= Duration::from_millis(250) {
-                last_report = Instant::now();
-                eprint!(
-                    "\r\x1b[Ksolving with {name}: {:.1} s",
-                    start.elapsed().as_secs_f64()
-                );
-            }
+        if let Some((name, start, sink)) = progress.as_mut() {
+            sink.status(|| {
+                format!(
+                    "solving with {name}: {}",
+                    duration_words(start.elapsed().as_secs_f64())
+                )
+            });
         }
         std::thread::sleep(pause);
         pause = (pause * 2).min(Duration::from_millis(20));
@@ -492,12 +491,15 @@ impl Backend for External {
             let p = proof_path.display().to_string();
             cmd.args(req.args.iter().map(|a| a.replace("{}", &p)));
         }
-        let show = limits.progress && std::io::stderr().is_terminal();
         let name = self.name();
-        let ended = run_until(&mut cmd, program, deadline, show.then_some((&*name, start)));
-        if show {
-            eprint!("\r\x1b[K");
-        }
+        let mut progress = Progress::new(limits.progress);
+        let ended = run_until(
+            &mut cmd,
+            program,
+            deadline,
+            Some((&*name, start, &mut progress)),
+        );
+        progress.clear();
         let stats = |conflicts| SolveStats {
             solver: name.clone(),
             seconds: start.elapsed().as_secs_f64(),

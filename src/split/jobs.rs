@@ -2,7 +2,7 @@
 //!
 //! The question is encoded once, split into cubes ([`super::cubes`])
 //! and the coverage CNF refuted ([`super::refute_coverage`]); then `K`
-//! threads take cubes in index order and solve `F ∧ cube` with the bundled
+//! threads of a [`crate::pool`] take cubes in index order and solve `F ∧ cube` with the bundled
 //! solver. With certification (the default) each thread writes the cube's
 //! LRAT proof in memory, checks it with orbitcnf's checker against
 //! `F ∧ cube`, and lifts it to a derivation of the cube's negation from `F`
@@ -19,10 +19,10 @@
 //! certification (`--no-certify`) there is no proof sink: running cubes then
 //! finish, and no new cube is started.
 
-use std::io::{self, IsTerminal, Write};
+use std::io::{self, Write};
 use std::path::PathBuf;
-use std::sync::Mutex;
-use std::sync::atomic::{AtomicBool, AtomicUsize, Ordering};
+use std::sync::Arc;
+use std::sync::atomic::{AtomicBool, AtomicU64, Ordering};
 use std::time::{Duration, Instant};
 
 use super::{Cube, coverage_cnf, coverage_sources, cubes as make_cubes, lift, refute_coverage};
@@ -32,6 +32,8 @@ use crate::decide::witness;
 use crate::encode::{EncodeOptions, encode};
 use crate::error::{Error, Result};
 use crate::evidence::Evidence;
+use crate::pool::{self, Event};
+use crate::progress::{Progress, duration_words};
 use crate::proof::{LratOptions, ProofSinks, check_lrat_with, solve_with_proof_sinks};
 use crate::question::Question;
 use crate::report::{Report, SizeStats, Verdict};
@@ -66,6 +68,19 @@ enum CubeRun {
     Unsat(Option<lift::LiftedCube>),
     Unknown(String),
     Failed(Error),
+}
+
+impl CubeRun {
+    /// The result in words, for progress lines.
+    fn words(&self) -> String {
+        match self {
+            CubeRun::Sat(_) => "satisfiable".into(),
+            CubeRun::Unsat(Some(_)) => "refuted, proof checked and lifted".into(),
+            CubeRun::Unsat(None) => "refuted (no proof)".into(),
+            CubeRun::Unknown(why) => format!("unknown: {why}"),
+            CubeRun::Failed(e) => format!("failed: {e}"),
+        }
+    }
 }
 
 /// A proof sink that fails once `stop` is set, which aborts varisat's solve.
@@ -114,55 +129,52 @@ pub fn decide_parallel(
     let coverage = coverage_cnf(&enc, &cubes);
     let (coverage_proof, _) = refute_coverage(&enc, &coverage)?;
     let n = cubes.len();
-    let next = AtomicUsize::new(0);
-    let done = AtomicUsize::new(0);
     let stop = AtomicBool::new(false);
-    let conflicts = AtomicUsize::new(0);
-    let runs: Mutex<Vec<Option<CubeRun>>> = Mutex::new((0..n).map(|_| None).collect());
+    let conflicts = Arc::new(AtomicU64::new(0));
+    let mut runs: Vec<Option<CubeRun>> = (0..n).map(|_| None).collect();
     let threads = opts.jobs.min(n);
-    let show = limits.progress && io::stderr().is_terminal();
-    std::thread::scope(|s| {
-        let handles: Vec<_> = (0..threads)
-            .map(|_| {
-                s.spawn(|| {
-                    loop {
-                        if stop.load(Ordering::Relaxed) {
-                            break;
-                        }
-                        let i = next.fetch_add(1, Ordering::Relaxed);
-                        if i >= n {
-                            break;
-                        }
-                        let run = solve_cube(
-                            &enc.cnf,
-                            &cubes[i],
-                            deadline,
-                            opts.certify,
-                            &stop,
-                            &conflicts,
-                        );
-                        if matches!(run, CubeRun::Sat(_)) {
-                            stop.store(true, Ordering::Relaxed);
-                        }
-                        runs.lock().expect("no worker panics")[i] = Some(run);
-                        done.fetch_add(1, Ordering::Relaxed);
-                    }
-                })
-            })
-            .collect();
-        while show && !handles.iter().all(|h| h.is_finished()) {
-            eprint!(
-                "\r\x1b[Ksolving {n} cubes on {threads} threads: {} done, {:.1} s",
-                done.load(Ordering::Relaxed),
-                start.elapsed().as_secs_f64()
-            );
-            std::thread::sleep(Duration::from_millis(250));
+    let mut progress = Progress::new(limits.progress);
+    let state_words = |s: &pool::State| {
+        format!(
+            "{}/{n} cubes done, {} running on {threads} threads, {}, {} conflicts",
+            s.finished,
+            s.running.len(),
+            duration_words(start.elapsed().as_secs_f64()),
+            conflicts.load(Ordering::Relaxed)
+        )
+    };
+    let work = |i: usize| {
+        let run = solve_cube(
+            &enc.cnf,
+            &cubes[i],
+            deadline,
+            opts.certify,
+            &stop,
+            &conflicts,
+        );
+        if matches!(run, CubeRun::Sat(_)) {
+            stop.store(true, Ordering::Relaxed);
+        }
+        run
+    };
+    pool::run(n, threads, &stop, work, |event, state| match event {
+        Event::Finished(i, run) => {
+            progress.event(|| {
+                format!(
+                    "decide: cube {i} ({}) {}; {}",
+                    cubes[i].describe(),
+                    run.words(),
+                    state_words(state)
+                )
+            });
+            runs[i] = Some(run);
+            progress.status(|| format!("decide: {}", state_words(state)));
+        }
+        Event::Started(_) | Event::Tick => {
+            progress.status(|| format!("decide: {}", state_words(state)));
         }
     });
-    if show {
-        eprint!("\r\x1b[K");
-    }
-    let runs = runs.into_inner().expect("no worker panics");
+    progress.clear();
     let size = SizeStats::of(&enc.cnf, enc.families.clone(), encode_seconds);
     let solver = format!(
         "{NAME}{}, {n} cubes on {threads} threads",
@@ -171,7 +183,7 @@ pub fn decide_parallel(
     let stats = |solver: String| SolveStats {
         solver,
         seconds: start.elapsed().as_secs_f64(),
-        conflicts: Some(conflicts.load(Ordering::Relaxed) as u64),
+        conflicts: Some(conflicts.load(Ordering::Relaxed)),
     };
     let report = |verdict, w, cert, reason, solver: String| {
         Report::new(
@@ -276,7 +288,7 @@ fn solve_cube(
     deadline: Option<Instant>,
     certify: bool,
     stop: &AtomicBool,
-    conflicts: &AtomicUsize,
+    conflicts: &Arc<AtomicU64>,
 ) -> CubeRun {
     let now = Instant::now();
     let time = deadline.map(|d| d.saturating_duration_since(now));
@@ -286,22 +298,20 @@ fn solve_cube(
     let cnf = super::run::cube_cnf(f, cube);
     let limits = Limits {
         time,
-        progress: false,
+        conflicts: Some(conflicts.clone()),
+        ..Limits::default()
     };
     if !certify {
         return match Bundled.solve(&cnf, &limits) {
-            Ok(r) => {
-                conflicts.fetch_add(r.stats.conflicts.unwrap_or(0) as usize, Ordering::Relaxed);
-                match r.outcome {
-                    Outcome::Sat(m) => CubeRun::Sat(m),
-                    Outcome::Unsat => CubeRun::Unsat(None),
-                    Outcome::Unknown(w) => CubeRun::Unknown(w),
-                }
-            }
+            Ok(r) => match r.outcome {
+                Outcome::Sat(m) => CubeRun::Sat(m),
+                Outcome::Unsat => CubeRun::Unsat(None),
+                Outcome::Unknown(w) => CubeRun::Unknown(w),
+            },
             Err(e) => CubeRun::Failed(e),
         };
     }
-    let (meter, learned, _) = Meter::new(now, &limits, None);
+    let (meter, _, _) = Meter::new(now, &limits, None);
     let mut sink = Cancel { inner: meter, stop };
     let mut lrat = Vec::new();
     let sinks = ProofSinks {
@@ -312,7 +322,6 @@ fn solve_cube(
     };
     let out = solve_with_proof_sinks(&cnf, sinks, time);
     drop(sink);
-    conflicts.fetch_add(learned.load(Ordering::Relaxed) as usize, Ordering::Relaxed);
     let out = match out {
         Ok(o) => o,
         Err(_) if stop.load(Ordering::Relaxed) => {

@@ -700,6 +700,57 @@ fn spectrum_of_a_point_set_matches_brute_force_and_reuses_its_store() {
 }
 
 #[test]
+fn spectrum_of_a_point_set_names_the_formulation_that_ran_in_every_report() {
+    // The table, the Markdown page and the JSON name one formulation: the
+    // full-map one, which answered every period (the answers say so too).
+    // Jetties has n' = 2, so the page must not claim that every p ≤ 2^2
+    // occurs or that "the periods are exactly 1..4": the unit-cube
+    // construction needs a box, and on this D p = 4 need not occur.
+    let dir = TestDir::new();
+    let file = write_points(&dir, "jetties.txt", &owned(JETTIES));
+    let base = ["spectrum", "--points", &file, "-q", "-j", "1", "--no-store"];
+    let table = dir.orbitcnf().args(base).args(["--markdown", "d.md"]).run();
+    table.code(0).stdout_has("encoding     full-map/1 (");
+    assert!(
+        !table.stdout.contains("isometric-cycle"),
+        "{}",
+        table.stdout
+    );
+    let page = dir.read("d.md");
+    assert!(page.contains("with the formulation full-map/1 ("), "{page}");
+    assert!(page.contains("Point set D = {(0,1), "), "{page}");
+    for absent in [
+        "isometric-cycle",
+        "Box `",
+        "Every p ≤ 2^n occurs",
+        "the periods are exactly 1..4",
+    ] {
+        assert!(!page.contains(absent), "{absent:?} in\n{page}");
+    }
+    let json = dir.orbitcnf().args(base).arg("--json").run();
+    json.code(0);
+    let v = json.json();
+    assert_eq!(v["options"]["formulation"], "full-map/1");
+    for r in v["rows"].as_array().unwrap() {
+        assert_eq!(r["answer"]["options"]["formulation"], "full-map/1");
+    }
+    // A box asked in the full-map formulation: the same word everywhere.
+    let boxed = dir
+        .orbitcnf()
+        .args([
+            "spectrum",
+            "--dim",
+            "2",
+            "--grid=0..1",
+            "--formulation",
+            "full-map",
+        ])
+        .args(["-q", "-j", "1", "--no-store"])
+        .run();
+    boxed.code(0).stdout_has("encoding     full-map/1 (");
+}
+
+#[test]
 fn external_solvers_answer_point_questions_through_encode_and_decode() {
     // CaDiCaL and PicoSAT (Debian packages; see tests/all/external.rs for the
     // skip rule) solve the CNF that encode writes; decode checks the model

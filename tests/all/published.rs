@@ -39,7 +39,7 @@ fn the_bound_has_the_values_tabulated_in_math_md() {
     // The library's copy of the bound agrees.
     for n in 1..=8 {
         assert_eq!(
-            orbitcnf::question::lemmens_scheutzow_bound(n),
+            orbitcnf::theory::lemmens_scheutzow_bound(n),
             ls_bound(n) as u128
         );
     }

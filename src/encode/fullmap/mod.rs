@@ -87,28 +87,37 @@ impl Domain {
     }
 }
 
-/// The options as they apply to the full-map formulation of `q`: `count`
-/// switches the redundant `orbit-profile` (which needs `p ≥ 2`); the
+/// The options of the full-map formulation, whatever the question: the
 /// cycle-only families (packing, classes and the symmetry steps other than
-/// `rotate` and `isometry`) are off; `rotate` needs `p ≥ 2`, `isometry` a
-/// nontrivial, computable isometry group.
-pub fn resolve(options: &EncodeOptions, q: &Question) -> EncodeOptions {
+/// `rotate` and `isometry`) are off.
+pub fn for_domain(options: &EncodeOptions) -> EncodeOptions {
     let s = options.symmetry;
-    let isometry = s.isometry
-        && q.domain()
-            .isometries(ISOMETRY_LIMIT)
-            .is_some_and(|g| g.len() > 1);
     EncodeOptions {
         formulation: FORMULATION.to_string(),
         symmetry: Symmetry {
-            rotate: s.rotate && q.period >= 2,
-            isometry,
+            rotate: s.rotate,
+            isometry: s.isometry,
             ..Symmetry::NONE
         },
-        count: options.count && q.period >= 2,
+        count: options.count,
         packing: false,
         classes: false,
     }
+}
+
+/// The options as they apply to the full-map formulation of `q`: those of
+/// [`for_domain`], where `count` switches the redundant `orbit-profile`
+/// (which needs `p ≥ 2`), `rotate` needs `p ≥ 2` and `isometry` a
+/// nontrivial, computable isometry group.
+pub fn resolve(options: &EncodeOptions, q: &Question) -> EncodeOptions {
+    let mut o = for_domain(options);
+    o.symmetry.rotate &= q.period >= 2;
+    o.symmetry.isometry = o.symmetry.isometry
+        && q.domain()
+            .isometries(ISOMETRY_LIMIT)
+            .is_some_and(|g| g.len() > 1);
+    o.count &= q.period >= 2;
+    o
 }
 
 /// Exact per-family counts for `q` with `o` (already resolved).

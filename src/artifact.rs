@@ -116,7 +116,9 @@ impl FileEntry {
         if bytes.len() as u64 != self.bytes || sha256_hex(&bytes) != self.sha256 {
             return Err(Error::file(
                 path.display().to_string(),
-                format!("does not match its size and SHA-256 in {manifest}; it was changed after it was written"),
+                format!(
+                    "does not match its size and SHA-256 in {manifest}; it was changed after it was written"
+                ),
             ));
         }
         Ok(bytes)
@@ -133,7 +135,9 @@ impl FileEntry {
         if bytes != self.bytes || sha != self.sha256 {
             return Err(Error::file(
                 path.display().to_string(),
-                format!("does not match its size and SHA-256 in {manifest}; it was changed after it was written"),
+                format!(
+                    "does not match its size and SHA-256 in {manifest}; it was changed after it was written"
+                ),
             ));
         }
         Ok(())
@@ -410,7 +414,10 @@ mod tests {
         })
         .unwrap();
         assert_eq!(std::fs::read(dir.join("manifest.json")).unwrap(), b"2");
-        assert!(!dir.join("stale.txt").exists(), "no file of the old folder survives");
+        assert!(
+            !dir.join("stale.txt").exists(),
+            "no file of the old folder survives"
+        );
         // A failing fill leaves the old folder as it was and no litter.
         let err = replace_dir(&dir, is_ours, |_| -> Result<()> {
             Err(Error::Options("stop".into()))

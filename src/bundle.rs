@@ -13,14 +13,15 @@ use std::path::{Path, PathBuf};
 
 use serde::{Deserialize, Serialize};
 
-use crate::artifact::{FileEntry, sha256_hex, write_atomically};
+use crate::artifact::{FileEntry, sha256_file, write_atomically};
 use crate::dimacs::{self, VERSION, render_cnf};
 use crate::encode::{EncodeOptions, encode};
 use crate::error::{Error, Result};
 use crate::orbit_file;
-use crate::proof::{LratOptions, LratSummary, check_lrat_with};
+use crate::proof::{LratOptions, LratSummary};
 use crate::question::{Question, QuestionRecord};
 use crate::report::Verdict;
+use crate::solve::refute::recheck_file;
 use crate::verify::{self, OrbitCheck, SelfMapCheck};
 
 /// The manifest's file name.
@@ -100,11 +101,11 @@ pub fn write_bundle(
     let mut files = vec![FileEntry::of(FORMULA, &cnf)];
     let verdict = match evidence {
         Evidence::Proof(path) => {
-            let bytes = read(path)?;
             if path != dir.join(PROOF) {
-                write_atomically(&dir.join(PROOF), &bytes)?;
+                write_atomically(&dir.join(PROOF), &read(path)?)?;
             }
-            files.push(FileEntry::of(PROOF, &bytes));
+            // A proof can be large: its digest is taken in pieces.
+            files.push(FileEntry::of_file(dir, PROOF)?);
             Verdict::Infeasible
         }
         Evidence::Map { orbit, map } => {
@@ -186,8 +187,8 @@ pub fn check_bundle(dir: &Path) -> Result<BundleCheck> {
     let manifest: Manifest = serde_json::from_slice(&read(&mpath)?)
         .map_err(|e| Error::parse(&mname, e.line(), format!("not a bundle manifest: {e}")))?;
     for f in &manifest.files {
-        let bytes = read(&dir.join(&f.name))?;
-        if sha256_hex(&bytes) != f.sha256 {
+        let (sha256, _) = sha256_file(&dir.join(&f.name))?;
+        if sha256 != f.sha256 {
             return Err(Error::parse(
                 &mname,
                 0,
@@ -234,12 +235,11 @@ pub fn check_bundle(dir: &Path) -> Result<BundleCheck> {
                     format!("an infeasible bundle needs {PROOF}"),
                 ));
             }
-            let proof = read(&dir.join(PROOF))?;
             let options = LratOptions {
                 ids_follow_cnf: true,
                 ..LratOptions::default()
             };
-            out.proof = Some(check_lrat_with(&file.cnf, &proof, &options)?);
+            out.proof = Some(recheck_file(&file.cnf, &dir.join(PROOF), &options)?.check?);
         }
         "feasible" if manifest.options.is_full_map() => {
             if !listed(MAP) {

@@ -25,7 +25,6 @@
 use std::io::Write;
 use std::path::Path;
 
-
 use crate::artifact::{sha256_hex, write_atomically};
 use crate::cnf::{Cnf, Lit, Var};
 use crate::encode::{EncodeOptions, Encoding};

@@ -11,7 +11,7 @@ use orbitcnf::Verdict;
 use orbitcnf::bundle::Evidence;
 use orbitcnf::encode::{self, DEFAULT_MAX_CLAUSES, EncodeOptions, Symmetry};
 use orbitcnf::points::PointSet;
-use orbitcnf::proof::LratOptions;
+use orbitcnf::proof::{LratFormat, LratOptions};
 use orbitcnf::question::MapClass;
 use orbitcnf::solve::{Limits, bundled::Bundled, certified::Certified};
 use orbitcnf::{Error, Grid, Question, decide, dimacs, orbit_file, verify};
@@ -494,6 +494,7 @@ fn run(cli: Cli) -> Result<u8, Error> {
                 let mut backend = Certified {
                     lrat: lrat.clone(),
                     drat: a.drat.clone(),
+                    format: LratFormat::Text,
                 };
                 let report =
                     decide::decide(&q, &options, &mut backend, &limits, a.question.max_clauses)?;
@@ -622,12 +623,11 @@ fn verify_proof(a: VerifyProofArgs) -> Result<u8, Error> {
     } else {
         dimacs::parse_dimacs(&text, &name)?.0
     };
-    let proof = std::fs::read(&a.proof).map_err(|e| Error::io(&a.proof, e))?;
     let options = LratOptions {
         ids_follow_cnf: true,
         ..LratOptions::default()
     };
-    let summary = orbitcnf::proof::check_lrat_with(&cnf, &proof, &options)?;
+    let summary = orbitcnf::solve::refute::recheck_file(&cnf, &a.proof, &options)?.check?;
     let out = if a.json {
         serde_json::json!({"accepted": true, "cnf": name, "proof": a.proof.display().to_string(), "summary": summary})
             .to_string()
@@ -1180,6 +1180,7 @@ fn decide_scaled(
                 .unwrap_or_else(|| JobsOptions::default_cubes(s.jobs)),
             certify: !a.no_certify,
             lrat: lrat.clone(),
+            format: LratFormat::Text,
         };
         split::jobs::decide_parallel(q, options, &opts, limits, a.question.max_clauses)?
     } else {
@@ -1308,6 +1309,7 @@ fn run_cube_cmd(a: RunCubeArgs) -> Result<u8, Error> {
     let mut certified = Certified {
         lrat: Some(lrat),
         drat: None,
+        format: LratFormat::Text,
     };
     let backend: &mut dyn orbitcnf::solve::Backend = match (external.as_mut(), a.no_certify) {
         (Some(ext), _) => ext,

@@ -1049,7 +1049,7 @@ fn solved(task: &Task, cfg: &SweepConfig, limits: &RunLimits, run_id: &str) -> R
     );
     let mut backend = Certified {
         lrat: task.proof.as_ref().map(|(abs, _)| abs.clone()),
-        drat: None,
+        ..Certified::default()
     };
     let solve_limits = Limits {
         time: cfg.time_limit,

@@ -3,12 +3,14 @@
 //! The question is encoded once, split into cubes ([`super::cubes`])
 //! and the coverage CNF refuted ([`super::refute_coverage`]); then `K`
 //! threads take cubes in index order and solve `F ∧ cube` with the bundled
-//! solver. With certification (the default) each thread writes the cube's
-//! LRAT proof in memory, checks it with orbitcnf's checker against
-//! `F ∧ cube`, and lifts it to a derivation of the cube's negation from `F`
-//! ([`super::lift`]). When every cube is refuted, the lifted proofs and the
-//! coverage proof are assembled into one LRAT proof of `F`, which orbitcnf's
-//! checker must accept before the answer is "infeasible"; the report is then
+//! solver. With certification (the default) each thread refutes its cube
+//! through [`crate::solve::refute::solve_bundled`] (a binary LRAT proof in a
+//! temporary file, checked by orbitcnf's checker against `F ∧ cube`), and
+//! lifts it to a derivation of the cube's negation from `F`
+//! ([`crate::proof::lift`]), streamed into another temporary file. When every
+//! cube is refuted, the lifted proofs and the coverage proof are assembled
+//! into one LRAT proof of `F` (written to a temporary file, in pieces), which
+//! orbitcnf's checker must accept before the answer is "infeasible"; the report is then
 //! the same as a monolithic `decide` (a checked LRAT proof of the very CNF
 //! `encode` writes). A satisfiable cube's model is checked against every
 //! clause and decoded into an orbit that is verified independently.
@@ -19,23 +21,25 @@
 //! certification (`--no-certify`) there is no proof sink: running cubes then
 //! finish, and no new cube is started.
 
-use std::io::{self, IsTerminal, Write};
+use std::io::{self, IsTerminal};
 use std::path::PathBuf;
 use std::sync::Mutex;
 use std::sync::atomic::{AtomicBool, AtomicUsize, Ordering};
 use std::time::{Duration, Instant};
 
-use super::{Cube, coverage_cnf, coverage_sources, cubes as make_cubes, lift, refute_coverage};
+use tempfile::NamedTempFile;
+
+use super::{Cube, coverage_cnf, coverage_sources, cubes as make_cubes, refute_coverage};
 use crate::cnf::Cnf;
 use crate::decide::witness;
-use crate::artifact::write_atomically;
 use crate::encode::{EncodeOptions, encode};
 use crate::error::{Error, Result};
-use crate::proof::{LratOptions, ProofSinks, check_lrat_with, solve_with_proof_sinks};
+use crate::proof::lift::{LiftedCube, assemble, lift_cube};
+use crate::proof::{LratFormat, LratOptions};
 use crate::question::Question;
 use crate::report::{Certificate, Report, SizeStats, Verdict};
-use crate::solve::bundled::{Bundled, Meter};
-use crate::solve::certified::ProofInfo;
+use crate::solve::bundled::Bundled;
+use crate::solve::refute::{ProofPlan, accept_proof, solve_bundled, temp_proof_file};
 use crate::solve::{Backend, Limits, Outcome, SolveStats};
 
 /// How [`decide_parallel`] runs.
@@ -50,6 +54,8 @@ pub struct JobsOptions {
     pub certify: bool,
     /// Where to write the assembled LRAT proof of an infeasible answer.
     pub lrat: Option<PathBuf>,
+    /// The encoding of the assembled proof.
+    pub format: LratFormat,
 }
 
 impl JobsOptions {
@@ -62,27 +68,11 @@ impl JobsOptions {
 
 enum CubeRun {
     Sat(Vec<bool>),
-    Unsat(Option<lift::LiftedCube>),
+    /// Refuted; with certification, the lifted derivation of the cube's
+    /// negation and the temporary file that holds it.
+    Unsat(Option<(LiftedCube, NamedTempFile)>),
     Unknown(String),
     Failed(Error),
-}
-
-/// A proof sink that fails once `stop` is set, which aborts varisat's solve.
-struct Cancel<'a> {
-    inner: Meter,
-    stop: &'a AtomicBool,
-}
-
-impl Write for Cancel<'_> {
-    fn write(&mut self, buf: &[u8]) -> io::Result<usize> {
-        if self.stop.load(Ordering::Relaxed) {
-            return Err(io::Error::other("another cube is satisfiable"));
-        }
-        self.inner.write(buf)
-    }
-    fn flush(&mut self) -> io::Result<()> {
-        self.inner.flush()
-    }
 }
 
 const NAME: &str = "varisat-0.2.2";
@@ -111,7 +101,7 @@ pub fn decide_parallel(
     let deadline = limits.time.map(|t| start + t);
     let cubes = make_cubes(&enc, opts.cubes)?;
     let coverage = coverage_cnf(&enc, &cubes);
-    let (coverage_proof, _) = refute_coverage(&enc, &coverage)?;
+    let coverage_proof = refute_coverage(&enc, &coverage)?;
     let n = cubes.len();
     let next = AtomicUsize::new(0);
     let done = AtomicUsize::new(0);
@@ -132,14 +122,8 @@ pub fn decide_parallel(
                         if i >= n {
                             break;
                         }
-                        let run = solve_cube(
-                            &enc.cnf,
-                            &cubes[i],
-                            deadline,
-                            opts.certify,
-                            &stop,
-                            &conflicts,
-                        );
+                        let run =
+                            solve_cube(&enc.cnf, &cubes[i], deadline, opts, &stop, &conflicts);
                         if matches!(run, CubeRun::Sat(_)) {
                             stop.store(true, Ordering::Relaxed);
                         }
@@ -236,29 +220,21 @@ pub fn decide_parallel(
         };
         return Ok(report(Verdict::Infeasible, None, cert, None, solver));
     }
-    let proof = lift::assemble(&enc.cnf, &coverage_sources(&enc), &lifted, &coverage_proof)?;
+    let pieces = lifted
+        .iter()
+        .map(|(lc, tmp)| Ok((*lc, tmp.reopen().map_err(|e| Error::io(tmp.path(), e))?)))
+        .collect::<Result<Vec<_>>>()?;
+    let tmp = temp_proof_file(opts.lrat.as_deref())?;
+    let out = io::BufWriter::new(tmp.reopen().map_err(|e| Error::io(tmp.path(), e))?);
+    let sources = coverage_sources(&enc);
+    let cov = coverage_proof.open()?;
+    assemble(&enc.cnf, &sources, pieces, cov, out, opts.format)?;
     drop(lifted);
-    let t = Instant::now();
-    let summary = check_lrat_with(
-        &enc.cnf,
-        &proof,
-        &LratOptions {
-            ids_follow_cnf: true,
-            ..LratOptions::default()
-        },
-    )?;
-    let check_seconds = t.elapsed().as_secs_f64();
-    if let Some(path) = &opts.lrat {
-        write_atomically(path, &proof)?;
-    }
-    let info = ProofInfo {
-        lrat: summary,
-        lrat_bytes: proof.len() as u64,
-        lrat_file: opts.lrat.clone(),
-        drat_file: None,
-        drat_bytes: None,
-        check_seconds,
+    let options = LratOptions {
+        ids_follow_cnf: true,
+        ..LratOptions::default()
     };
+    let info = accept_proof(&enc.cnf, tmp, opts.lrat.as_deref(), &options)?.info;
     Ok(report(
         Verdict::Infeasible,
         None,
@@ -268,12 +244,13 @@ pub fn decide_parallel(
     ))
 }
 
-/// Solves `F ∧ cube` within the deadline.
+/// Solves `F ∧ cube` within the deadline; with certification, through the
+/// one refutation path, then lifts the checked proof.
 fn solve_cube(
     f: &Cnf,
     cube: &Cube,
     deadline: Option<Instant>,
-    certify: bool,
+    opts: &JobsOptions,
     stop: &AtomicBool,
     conflicts: &AtomicUsize,
 ) -> CubeRun {
@@ -287,7 +264,7 @@ fn solve_cube(
         time,
         progress: false,
     };
-    if !certify {
+    if !opts.certify {
         return match Bundled.solve(&cnf, &limits) {
             Ok(r) => {
                 conflicts.fetch_add(r.stats.conflicts.unwrap_or(0) as usize, Ordering::Relaxed);
@@ -300,37 +277,34 @@ fn solve_cube(
             Err(e) => CubeRun::Failed(e),
         };
     }
-    let (meter, learned, _) = Meter::new(now, &limits, None);
-    let mut sink = Cancel { inner: meter, stop };
-    let mut lrat = Vec::new();
-    let sinks = ProofSinks {
-        lrat: Some(&mut lrat),
-        lrat_binary: true,
-        drat: Some(&mut sink),
-        drat_binary: true,
+    let plan = ProofPlan {
+        format: LratFormat::Binary,
+        ..ProofPlan::default()
     };
-    let out = solve_with_proof_sinks(&cnf, sinks, time);
-    drop(sink);
-    conflicts.fetch_add(learned.load(Ordering::Relaxed) as usize, Ordering::Relaxed);
-    let out = match out {
-        Ok(o) => o,
-        Err(_) if stop.load(Ordering::Relaxed) => {
-            return CubeRun::Unknown("stopped: another cube is satisfiable".into());
-        }
+    let r = match solve_bundled(&cnf, &limits, &plan, Some(stop)) {
+        Ok(r) => r,
         Err(e) => return CubeRun::Failed(e),
     };
-    match out.outcome {
-        Outcome::Sat(m) => CubeRun::Sat(m),
-        Outcome::Unknown(w) => CubeRun::Unknown(w),
-        Outcome::Unsat => {
-            let options = LratOptions {
-                ids_follow_cnf: true,
-                ..LratOptions::default()
+    conflicts.fetch_add(r.stats.conflicts.unwrap_or(0) as usize, Ordering::Relaxed);
+    match (r.outcome, r.proof) {
+        (Outcome::Sat(m), _) => CubeRun::Sat(m),
+        (Outcome::Unknown(_), _) if stop.load(Ordering::Relaxed) => {
+            CubeRun::Unknown("stopped: another cube is satisfiable".into())
+        }
+        (Outcome::Unknown(w), _) => CubeRun::Unknown(w),
+        (Outcome::Unsat, None) => CubeRun::Failed(Error::Solver {
+            solver: NAME.into(),
+            reason: "an UNSAT answer without its checked proof".into(),
+        }),
+        (Outcome::Unsat, Some(proof)) => {
+            let lifted = || -> Result<(LiftedCube, NamedTempFile)> {
+                let tmp = temp_proof_file(opts.lrat.as_deref())?;
+                let out = io::BufWriter::new(tmp.reopen().map_err(|e| Error::io(tmp.path(), e))?);
+                let src = io::BufReader::new(proof.open()?);
+                let lc = lift_cube(f, &cube.lits(), src, out, LratFormat::Binary)?;
+                Ok((lc, tmp))
             };
-            if let Err(e) = check_lrat_with(&cnf, &lrat, &options) {
-                return CubeRun::Failed(Error::Proof(e));
-            }
-            match lift::lift_cube(f, &cube.lits(), &lrat) {
+            match lifted() {
                 Ok(l) => CubeRun::Unsat(Some(l)),
                 Err(e) => CubeRun::Failed(e),
             }

@@ -2,6 +2,10 @@
 //! and checked, tampered proofs rejected with their reason, DRAT accepted by
 //! the external checker `rate`, and certificate bundles re-checked end to end.
 
+use orbitcnf::proof::LratFormat;
+use orbitcnf::proof::lrat::read::{LratReader, Step, StepKind};
+use orbitcnf::proof::lrat::write::LratWriter;
+
 use crate::util::{ERROR, INFEASIBLE, TestDir};
 
 /// Decides `{-1,0,1}^3` (or another grid) with a proof file and returns the JSON report.
@@ -73,32 +77,21 @@ fn infeasible_answers_of_published_cases_carry_checked_proofs() {
     }
 }
 
-/// Rewrites the first addition step of a text LRAT proof with `edit`.
-fn tamper_first_addition(text: &str, edit: impl Fn(&mut Vec<i64>, &mut Vec<i64>)) -> String {
+/// Rewrites the first addition step (with literals and two hints or more)
+/// of a text LRAT proof with `edit`, through orbitcnf's LRAT reader and writer.
+fn tamper_first_addition(text: &str, edit: impl Fn(&mut Vec<i32>, &mut Vec<i64>)) -> String {
+    let mut reader = LratReader::new(text.as_bytes(), None, u32::MAX).unwrap();
+    let mut writer = LratWriter::new(Vec::new(), LratFormat::Text);
+    let mut step = Step::default();
     let mut done = false;
-    text.lines()
-        .map(|line| {
-            let toks: Vec<&str> = line.split_whitespace().collect();
-            if done || toks.len() < 2 || toks[1] == "d" {
-                return line.to_string();
-            }
-            let id = toks[0];
-            let nums: Vec<i64> = toks[1..].iter().map(|t| t.parse().unwrap()).collect();
-            let zero = nums.iter().position(|&x| x == 0).unwrap();
-            let mut lits = nums[..zero].to_vec();
-            let mut hints: Vec<i64> = nums[zero + 1..nums.len() - 1].to_vec();
-            if lits.is_empty() || hints.len() < 2 {
-                return line.to_string();
-            }
-            edit(&mut lits, &mut hints);
+    while reader.next_step(&mut step).unwrap() {
+        if !done && step.kind == StepKind::Add && !step.lits.is_empty() && step.refs.len() >= 2 {
+            edit(&mut step.lits, &mut step.refs);
             done = true;
-            let l: Vec<String> = lits.iter().map(|x| x.to_string()).collect();
-            let h: Vec<String> = hints.iter().map(|x| x.to_string()).collect();
-            format!("{id} {} 0 {} 0", l.join(" "), h.join(" "))
-        })
-        .collect::<Vec<_>>()
-        .join("\n")
-        + "\n"
+        }
+        writer.step(&step).unwrap();
+    }
+    String::from_utf8(writer.finish().unwrap().0).unwrap()
 }
 
 #[test]

@@ -94,7 +94,11 @@ fn split_writes_a_checked_coverage_proof_and_hashes_every_file() {
     for e in &entries {
         let name = e["name"].as_str().unwrap();
         let bytes = std::fs::read(dir.path("sp").join(name)).unwrap();
-        assert_eq!(e["sha256"], orbitcnf::artifact::sha256_hex(&bytes), "{name}");
+        assert_eq!(
+            e["sha256"],
+            orbitcnf::artifact::sha256_hex(&bytes),
+            "{name}"
+        );
     }
     // The coverage CNF: the negation of every cube plus the profile's order
     // encoding (and the lex-leader clauses); its proof is accepted by our checker.

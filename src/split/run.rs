@@ -478,14 +478,14 @@ fn list(v: &[usize]) -> String {
 }
 
 /// Merges the results of the split in `dir`; with `combined`, also writes
-/// one LRAT proof of `formula.cnf` there (when every cube has a proof) and
-/// checks it.
+/// one LRAT proof of `formula.cnf` there, in the encoding `format` (when
+/// every cube has a proof), and checks it.
 ///
 /// # Errors
 /// A split that fails [`verify_split`]; unreadable result files;
 /// [`Error::Io`]. Missing, unknown, failed and rejected cubes are not
 /// errors: they are listed in [`MergeReport::pending`].
-pub fn merge(dir: &Path, combined: Option<&Path>) -> Result<MergeReport> {
+pub fn merge(dir: &Path, combined: Option<&Path>, format: LratFormat) -> Result<MergeReport> {
     let m = SplitManifest::read(dir)?;
     let (enc, _coverage, coverage_summary) = verify_split(dir, &m)?;
     let q = Question::from_record(&m.question)?;
@@ -586,7 +586,7 @@ pub fn merge(dir: &Path, combined: Option<&Path>) -> Result<MergeReport> {
         report.verdict = Verdict::Infeasible;
         if report.uncertified.is_empty() {
             if let Some(path) = combined {
-                let (bytes, summary) = combine(&enc, &m, dir, &proofs, path)?;
+                let (bytes, summary) = combine(&enc, &m, dir, &proofs, path, format)?;
                 report.certificate = MergeCertificate::CombinedProof {
                     file: path.to_path_buf(),
                     bytes,
@@ -614,14 +614,15 @@ pub fn cube_cnf(f: &Cnf, cube: &Cube) -> Cnf {
 }
 
 /// Lifts the cube proofs at `proofs` and assembles them with the split's
-/// coverage proof into one text LRAT proof of `formula.cnf`, checked and
-/// then written to `path`; returns its size and summary.
+/// coverage proof into one LRAT proof of `formula.cnf` in `format`, checked
+/// and then written to `path`; returns its size and summary.
 fn combine(
     enc: &crate::encode::Encoding,
     m: &SplitManifest,
     dir: &Path,
     proofs: &[(Cube, PathBuf)],
     path: &Path,
+    format: LratFormat,
 ) -> Result<(u64, LratSummary)> {
     let open = |p: &Path| std::fs::File::open(p).map_err(|e| Error::io(p, e));
     let mut lifted = Vec::with_capacity(proofs.len());
@@ -645,7 +646,7 @@ fn combine(
     let out = BufWriter::new(tmp.reopen().map_err(|e| Error::io(tmp.path(), e))?);
     let coverage = open(&dir.join(&m.coverage.proof.name))?;
     let sources = coverage_sources(enc);
-    assemble(&enc.cnf, &sources, pieces, coverage, out, LratFormat::Text)?;
+    assemble(&enc.cnf, &sources, pieces, coverage, out, format)?;
     drop(lifted);
     let options = LratOptions {
         ids_follow_cnf: true,

@@ -95,6 +95,19 @@ pub enum LratFormat {
     Binary,
 }
 
+impl std::str::FromStr for LratFormat {
+    type Err = String;
+    fn from_str(s: &str) -> Result<LratFormat, String> {
+        match s {
+            "text" => Ok(LratFormat::Text),
+            "binary" => Ok(LratFormat::Binary),
+            other => Err(format!(
+                "unknown LRAT encoding {other:?}; choose text or binary"
+            )),
+        }
+    }
+}
+
 impl LratFormat {
     /// The encoding of `proof`, judged by its first byte: `a` or `d` mean binary.
     pub fn detect(proof: &[u8]) -> LratFormat {

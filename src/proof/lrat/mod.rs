@@ -4,6 +4,10 @@
 //! * [`read::LratReader`] reads either encoding in pieces (bounded memory,
 //!   whatever the proof's size) and hands out one [`read::Step`] at a time.
 //! * [`write::LratWriter`] writes either encoding, step by step.
+//! * [`trim::trim`] keeps only the steps the empty clause depends on
+//!   (measured on {−1,0,1}^5, p = 33: 68% of the additions and 70% of the
+//!   bytes stay, for about four times the cost of a check, so nothing trims
+//!   by default).
 //! * [`check_lrat_read`] and its wrappers check a proof against a [`Cnf`].
 //!
 //! Everything here depends only on [`crate::cnf`]: no solver code, no
@@ -78,6 +82,7 @@
 
 mod check;
 pub mod read;
+pub mod trim;
 pub mod write;
 
 use std::fmt;

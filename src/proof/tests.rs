@@ -2,6 +2,8 @@
 //! accepted, every tampered one is rejected at the tampered step, and the
 //! DRAT proofs of the same runs pass `rate`, an independent checker.
 
+use std::io::Write;
+
 use crate::cnf::Cnf;
 use crate::proof::lrat::read::{Step, StepKind};
 use crate::proof::lrat::{LratError, LratFormat, LratReason, check_lrat, check_lrat_with};
@@ -218,7 +220,11 @@ fn rate() -> Option<std::process::Command> {
     if std::env::var_os("CI").is_some() {
         panic!("the DRAT checker `rate` is not on PATH; {hint}");
     }
-    eprintln!("note: skipping the DRAT second opinion: `rate` is not on PATH; {hint}");
+    // Written to the real stderr, so that libtest's capture does not hide the skip.
+    let _ = writeln!(
+        std::io::stderr(),
+        "note: skipping the DRAT second opinion: `rate` is not on PATH; {hint}"
+    );
     None
 }
 

@@ -94,8 +94,7 @@ pub struct ProofOutcome {
     pub route: ProofRoute,
     /// Wall-clock seconds, proof writing included.
     pub seconds: f64,
-    /// Bytes of LRAT written; `None` when none was asked for (or, for
-    /// [`solve_with_proofs`], when no file was kept because the answer is not UNSAT).
+    /// Bytes of LRAT written; `None` when none was asked for.
     pub lrat_bytes: Option<u64>,
     /// Bytes of DRAT written, as for `lrat_bytes`.
     pub drat_bytes: Option<u64>,

@@ -160,7 +160,11 @@ pub fn solve_bundled(
 ) -> Result<Refutation> {
     let start = Instant::now();
     let lrat_tmp = temp_proof_file(plan.lrat.as_deref())?;
-    let drat_tmp = plan.drat.as_deref().map(temp_beside).transpose()?;
+    let drat_tmp = plan
+        .drat
+        .as_deref()
+        .map(|d| temp_proof_file(Some(d)))
+        .transpose()?;
     let reopen = |t: &NamedTempFile| t.reopen().map_err(|e| Error::io(t.path(), e));
     let inner: Option<Box<dyn Write>> = match &drat_tmp {
         Some(t) => Some(Box::new(BufWriter::new(reopen(t)?))),

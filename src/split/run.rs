@@ -318,7 +318,7 @@ pub enum MergeCertificate {
         cubes: usize,
     },
     /// As `CubeProofs`, and one LRAT proof of `formula.cnf` assembled from
-    /// them ([`lift`]) and accepted by orbitcnf's checker.
+    /// them ([`crate::proof::lift`]) and accepted by orbitcnf's checker.
     CombinedProof {
         /// Where it was written.
         file: PathBuf,

@@ -8,7 +8,8 @@
 //!   (measured on {−1,0,1}^5, p = 33: 68% of the additions and 70% of the
 //!   bytes stay, for about four times the cost of a check, so nothing trims
 //!   by default).
-//! * [`check_lrat_read`] and its wrappers check a proof against a [`Cnf`].
+//! * [`check_lrat_read`] and its wrappers check a proof against a
+//!   [`Cnf`](crate::cnf::Cnf).
 //!
 //! Everything here depends only on [`crate::cnf`]: no solver code, no
 //! varisat checker (DEVELOPERS.md, dependency rules).
@@ -17,7 +18,7 @@
 //!
 //! An LRAT proof refers to clauses by positive integer *ids*. The clauses of
 //! the CNF have the ids `1..=m` in the order of the CNF (clause `i` of
-//! [`Cnf::clause`] has id `i + 1`); the proof then adds clauses under new ids
+//! [`Cnf::clause`](crate::cnf::Cnf::clause) has id `i + 1`); the proof then adds clauses under new ids
 //! and deletes clauses by id. Two encodings are read:
 //!
 //! * **Text.** One step per line (line breaks are not required between steps;

@@ -13,7 +13,7 @@
 //!
 //! The reader checks the syntax of each encoding and that every literal
 //! names a variable up to a bound; what the steps mean is for its users (the
-//! checker in [`super::check`], lifting in [`crate::proof::lift`]).
+//! checker in [`super::check_lrat_read`], lifting in [`crate::proof::lift`]).
 
 use std::io::Read;
 

@@ -293,11 +293,11 @@ struct Guard<W> {
 
 impl<W: Write> Write for Guard<W> {
     fn write(&mut self, buf: &[u8]) -> io::Result<usize> {
-        if let Some(d) = self.deadline {
-            if Instant::now() >= d {
-                self.timed_out.set(true);
-                return Err(io::Error::other("orbitcnf time limit reached"));
-            }
+        if let Some(d) = self.deadline
+            && Instant::now() >= d
+        {
+            self.timed_out.set(true);
+            return Err(io::Error::other("orbitcnf time limit reached"));
         }
         let n = self.inner.write(buf)?;
         self.bytes.set(self.bytes.get() + n as u64);

@@ -63,12 +63,12 @@ fn tamper_every_step(cnf: &Cnf) {
         }
         let (id, lits, hints) = (&line.id, &line.lits, &line.refs);
         // Change a literal: negate the first one.
-        if let Some(&l) = lits.first() {
-            if !lits.contains(&-l) {
-                let e = tampered(cnf, &lines, |t| t[k].lits[0] = -l);
-                assert_eq!((e.step, e.id), (step, Some(*id)), "{e}");
-                assert!(e.reason.is_rup_failure(), "{e}");
-            }
+        if let Some(&l) = lits.first()
+            && !lits.contains(&-l)
+        {
+            let e = tampered(cnf, &lines, |t| t[k].lits[0] = -l);
+            assert_eq!((e.step, e.id), (step, Some(*id)), "{e}");
+            assert!(e.reason.is_rup_failure(), "{e}");
         }
         // Drop the last hint, the conflict: the others still propagate.
         let e = tampered(cnf, &lines, |t| {

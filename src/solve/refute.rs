@@ -463,7 +463,7 @@ mod tests {
             .info;
         let bytes = std::fs::read(&path).unwrap();
         let stored = recheck_file(&cnf, &path, &strict()).unwrap();
-        assert_eq!(stored.sha256, crate::split::sha256_hex(&bytes));
+        assert_eq!(stored.sha256, crate::artifact::sha256_hex(&bytes));
         assert_eq!(stored.bytes, bytes.len() as u64);
         assert_eq!(stored.check.as_ref(), Ok(&info.lrat));
         let wrong = || Error::Options("another file".into());
@@ -482,7 +482,7 @@ mod tests {
         assert!(cut.check.is_err());
         assert_eq!(
             cut.sha256,
-            crate::split::sha256_hex(&bytes[..bytes.len() / 2])
+            crate::artifact::sha256_hex(&bytes[..bytes.len() / 2])
         );
         assert!(matches!(cut.accepted(None, wrong), Err(Error::Proof(_))));
         let missing = recheck_file(&cnf, &dir.path().join("none"), &strict());

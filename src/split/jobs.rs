@@ -54,7 +54,8 @@ pub struct JobsOptions {
     pub certify: bool,
     /// Where to write the assembled LRAT proof of an infeasible answer.
     pub lrat: Option<PathBuf>,
-    /// The encoding of the assembled proof.
+    /// The encoding of the assembled proof written to `lrat`; a proof that
+    /// is only checked, not kept, is binary.
     pub format: LratFormat,
 }
 
@@ -228,7 +229,11 @@ pub fn decide_parallel(
     let out = io::BufWriter::new(tmp.reopen().map_err(|e| Error::io(tmp.path(), e))?);
     let sources = coverage_sources(&enc);
     let cov = coverage_proof.open()?;
-    assemble(&enc.cnf, &sources, pieces, cov, out, opts.format)?;
+    let format = match opts.lrat {
+        Some(_) => opts.format,
+        None => LratFormat::Binary,
+    };
+    assemble(&enc.cnf, &sources, pieces, cov, out, format)?;
     drop(lifted);
     let options = LratOptions {
         ids_follow_cnf: true,

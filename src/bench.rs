@@ -108,7 +108,8 @@ pub struct ProofCost {
     pub solve_seconds: f64,
     /// Seconds for orbitcnf's checker to accept it.
     pub check_seconds: f64,
-    /// Size of the text LRAT proof.
+    /// Size of the LRAT proof (binary: the certified back-end writes a proof
+    /// it does not keep in binary).
     pub lrat_bytes: u64,
     /// Steps of the proof.
     pub steps: u64,

@@ -31,10 +31,10 @@ use crate::cnf::Cnf;
 use crate::encode::{self, EncodeOptions};
 use crate::error::{Error, Result};
 use crate::grid::Point;
-use crate::proof::lrat::{LratFileError, check_lrat_file};
 use crate::proof::{LratOptions, LratSummary};
 use crate::question::{MapClass, Question};
 use crate::solve::certified::ProofInfo;
+use crate::solve::refute::recheck_file;
 use crate::verify::{self, OrbitCheck, SelfMapCheck};
 
 /// What backs a verdict.
@@ -161,16 +161,10 @@ pub fn lrat_options() -> LratOptions {
 /// step and the reason when the proof is rejected.
 pub fn check_proof_file(cnf: &Cnf, path: &Path) -> Result<ProofCheck> {
     let t = Instant::now();
-    let summary = check_lrat_file(cnf, path, &lrat_options()).map_err(|e| match e {
-        LratFileError::Io { path, source } => Error::io(&path, source),
-        LratFileError::Rejected { source, .. } => Error::from(source),
-    })?;
-    let bytes = std::fs::metadata(path)
-        .map_err(|e| Error::io(path, e))?
-        .len();
+    let stored = recheck_file(cnf, path, &lrat_options())?;
     Ok(ProofCheck {
-        summary,
-        bytes,
+        summary: stored.check?,
+        bytes: stored.bytes,
         seconds: t.elapsed().as_secs_f64(),
     })
 }

@@ -14,6 +14,7 @@ use orbitcnf::decide::Solver;
 use orbitcnf::encode::{DEFAULT_MAX_CLAUSES, EncodeOptions, Symmetry};
 use orbitcnf::points::PointSet;
 use orbitcnf::progress::ProgressMode;
+use orbitcnf::proof::LratFormat;
 use orbitcnf::question::MapClass;
 use orbitcnf::solve::external::{External, ProofFormat, ProofRequest};
 use orbitcnf::split::jobs::JobsOptions;
@@ -385,6 +386,7 @@ impl ScaleArgs {
                     .unwrap_or_else(|| JobsOptions::default_cubes(self.jobs)),
                 certify,
                 lrat: None,
+                format: LratFormat::Text,
             })),
             (None, false) => Ok(Solver::Bundled { certify }),
         }

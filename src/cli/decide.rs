@@ -7,6 +7,7 @@ use std::time::Duration;
 use clap::Args;
 
 use orbitcnf::decide::{self, BundleOutcome, Outputs, Request};
+use orbitcnf::proof::LratFormat;
 use orbitcnf::solve::Limits;
 use orbitcnf::{Error, dimacs, encode};
 
@@ -38,6 +39,10 @@ pub struct DecideArgs {
     /// external checkers such as rate or drat-trim.
     #[arg(long, value_name = "FILE", conflicts_with = "no_certify")]
     drat: Option<PathBuf>,
+    /// The encoding of the LRAT proof written with --proof or --bundle:
+    /// text, or binary (about half the size, written and checked faster).
+    #[arg(long, value_name = "ENC", default_value = "text")]
+    proof_encoding: LratFormat,
     /// Write a certificate bundle to DIR: manifest.json, formula.cnf and
     /// proof.lrat (infeasible) or orbit.json (feasible; map.json with the
     /// whole map on a point set); re-check it with `orbitcnf check-bundle
@@ -62,6 +67,7 @@ pub fn run_decide(a: DecideArgs) -> Outcome {
             proof: a.proof,
             raw_proof: a.drat,
             bundle: a.bundle,
+            format: a.proof_encoding,
         },
         limits: Limits {
             time: a.time_limit,

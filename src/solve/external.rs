@@ -28,10 +28,12 @@
 //!   not in competition form, a status that contradicts the exit code, a model
 //!   that falsifies a clause, a program that cannot be started: each is an
 //!   [`Error::ExternalSolver`] with a typed [`ExternalFailure`], never a verdict.
-//! * An UNSAT answer without a proof is returned with no [`ProofInfo`], so the
+//! * An UNSAT answer without a proof is returned with no
+//!   [`super::refute::ProofInfo`], so the
 //!   report marks it [`crate::report::Certificate::SolverClaim`].
 //! * With a [`ProofRequest`] the solver is asked for a proof file. An LRAT
-//!   proof is checked by orbitcnf's own checker ([`check_lrat_with`]). A DRAT
+//!   proof is checked by orbitcnf's own checker through
+//!   [`super::refute::accept_proof`], in pieces from a file. A DRAT
 //!   proof (CaDiCaL's default, binary) is converted to LRAT by `rate`
 //!   (`rate -L OUT CNF PROOF`) when `rate` is on `PATH`, and the LRAT is then
 //!   checked by orbitcnf's checker, so neither the solver nor the converter
@@ -52,13 +54,14 @@ use std::process::{Child, Command, ExitStatus, Stdio};
 use std::sync::mpsc;
 use std::time::{Duration, Instant};
 
-use super::certified::ProofInfo;
+use super::refute::{accept_proof, temp_proof_file};
 use super::{Backend, Limits, Outcome, SolveResult, SolveStats, check_model};
+use crate::artifact::persist;
 use crate::cnf::Cnf;
 use crate::dimacs::{self, Status};
 use crate::error::{Error, Result};
 use crate::progress::{Progress, duration_words};
-use crate::proof::{LratOptions, check_lrat_with};
+use crate::proof::LratOptions;
 
 /// How much of a solver's standard output is kept; more is an error.
 pub const MAX_OUTPUT_BYTES: usize = 1 << 30;
@@ -612,26 +615,30 @@ impl External {
         deadline: Option<Instant>,
         mut stats: SolveStats,
     ) -> Result<SolveResult> {
-        let raw_bytes = std::fs::read(raw).map_err(|e| {
-            self.failure(ExternalFailure::Proof(format!(
-                "the solver answered UNSAT but left no proof file ({e})"
-            )))
-        })?;
-        let keep_raw = |bytes: &[u8]| -> Result<Option<(PathBuf, u64)>> {
+        let raw_bytes = std::fs::metadata(raw)
+            .map_err(|e| {
+                self.failure(ExternalFailure::Proof(format!(
+                    "the solver answered UNSAT but left no proof file ({e})"
+                )))
+            })?
+            .len();
+        let keep_raw = || -> Result<Option<PathBuf>> {
             match &req.keep_raw {
                 Some(p) => {
-                    crate::artifact::write_atomically(p, bytes)?;
-                    Ok(Some((p.clone(), bytes.len() as u64)))
+                    let tmp = temp_proof_file(Some(p))?;
+                    copy_into(raw, &tmp)?;
+                    persist(tmp, p)?;
+                    Ok(Some(p.clone()))
                 }
                 None => Ok(None),
             }
         };
-        let t = Instant::now();
-        let lrat = match req.format {
-            ProofFormat::Lrat => raw_bytes.clone(),
+        let lrat = temp_proof_file(req.keep_lrat.as_deref())?;
+        match req.format {
+            ProofFormat::Lrat => copy_into(raw, &lrat)?,
             ProofFormat::Drat => {
                 if !on_path(DRAT_CONVERTER) {
-                    keep_raw(&raw_bytes)?;
+                    keep_raw()?;
                     stats.solver = format!(
                         "{} (its DRAT proof was not checked: `{DRAT_CONVERTER}` is not on PATH)",
                         stats.solver
@@ -642,9 +649,8 @@ impl External {
                         proof: None,
                     });
                 }
-                let out = raw.with_extension("converted.lrat");
                 let mut cmd = Command::new(DRAT_CONVERTER);
-                cmd.arg("-L").arg(&out).arg(cnf_path).arg(raw);
+                cmd.arg("-L").arg(lrat.path()).arg(cnf_path).arg(raw);
                 let converter = |f: ExternalFailure| Error::ExternalSolver {
                     command: format!("{DRAT_CONVERTER} (DRAT to LRAT)"),
                     failure: f,
@@ -672,37 +678,36 @@ impl External {
                         }
                     }
                 }
-                std::fs::read(&out).map_err(|e| Error::io(&out, e))?
             }
-        };
-        let summary = check_lrat_with(cnf, &lrat, &LratOptions::default()).map_err(|e| {
-            self.failure(ExternalFailure::Proof(format!(
-                "the LRAT proof was rejected by orbitcnf's checker: {e}"
-            )))
-        })?;
-        let check_seconds = t.elapsed().as_secs_f64();
-        if let Some(p) = &req.keep_lrat {
-            crate::artifact::write_atomically(p, &lrat)?;
         }
-        let kept = keep_raw(&raw_bytes)?;
+        let checked = accept_proof(cnf, lrat, req.keep_lrat.as_deref(), &LratOptions::default())
+            .map_err(|e| match e {
+                Error::Proof(e) => self.failure(ExternalFailure::Proof(format!(
+                    "the LRAT proof was rejected by orbitcnf's checker: {e}"
+                ))),
+                e => e,
+            })?;
+        let mut info = checked.info;
+        if req.format == ProofFormat::Drat {
+            info.drat_file = keep_raw()?;
+            info.drat_bytes = info.drat_file.as_ref().map(|_| raw_bytes);
+        } else {
+            keep_raw()?;
+        }
         Ok(SolveResult {
             outcome: Outcome::Unsat,
             stats,
-            proof: Some(ProofInfo {
-                lrat: summary,
-                lrat_bytes: lrat.len() as u64,
-                lrat_file: req.keep_lrat.clone(),
-                drat_file: kept
-                    .as_ref()
-                    .filter(|_| req.format == ProofFormat::Drat)
-                    .map(|k| k.0.clone()),
-                drat_bytes: kept
-                    .filter(|_| req.format == ProofFormat::Drat)
-                    .map(|k| k.1),
-                check_seconds,
-            }),
+            proof: Some(info),
         })
     }
+}
+
+/// Copies the file at `from` into the temporary file `to`, in pieces.
+fn copy_into(from: &Path, to: &tempfile::NamedTempFile) -> Result<()> {
+    let mut src = std::fs::File::open(from).map_err(|e| Error::io(from, e))?;
+    let mut dst = to.as_file();
+    std::io::copy(&mut src, &mut dst).map_err(|e| Error::io(to.path(), e))?;
+    Ok(())
 }
 
 #[cfg(test)]

@@ -8,6 +8,7 @@
 pub mod bundled;
 pub mod certified;
 pub mod external;
+pub mod refute;
 
 use std::sync::Arc;
 use std::sync::atomic::AtomicU64;
@@ -63,7 +64,7 @@ pub struct SolveResult {
     /// How it went.
     pub stats: SolveStats,
     /// The checked proof behind an UNSAT answer, for back-ends that certify.
-    pub proof: Option<certified::ProofInfo>,
+    pub proof: Option<refute::ProofInfo>,
 }
 
 /// A SAT solver that orbitcnf can drive.

@@ -104,7 +104,7 @@ pub(super) fn solved(
     let mut a = Answer::unknown(q, &cfg.options, *limits, How::Solver, run_id, started_at);
     let mut backend = Certified {
         lrat: task.proof.as_ref().map(|(abs, _)| abs.clone()),
-        drat: None,
+        ..Certified::default()
     };
     let solve_limits = Limits {
         time: cfg.time_limit,

@@ -129,10 +129,7 @@ fn point_set(pts: &[Vec<i64>]) -> PointSet {
 /// orbit here (both must be present in the full-map formulation).
 fn decide_checked(q: &Question, options: &EncodeOptions, certify: bool, context: &str) -> Report {
     let report = if certify {
-        let mut backend = Certified {
-            lrat: None,
-            drat: None,
-        };
+        let mut backend = Certified::default();
         decide::decide(
             q,
             options,

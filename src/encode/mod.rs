@@ -36,6 +36,8 @@ pub mod symmetry;
 pub mod topical;
 
 #[cfg(test)]
+mod pinned;
+#[cfg(test)]
 mod soundness;
 
 use serde::{Deserialize, Serialize};

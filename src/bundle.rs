@@ -130,7 +130,7 @@ pub fn write_bundle(
         options: enc.options.clone(),
         verdict: verdict.word().into(),
         files,
-        trust: if enc.options.is_full_map() {
+        trust: if enc.options.formulation.encodes_map() {
             TRUST_FULL_MAP
         } else {
             TRUST
@@ -241,7 +241,7 @@ pub fn check_bundle(dir: &Path) -> Result<BundleCheck> {
             };
             out.proof = Some(check_lrat_with(&file.cnf, &proof, &options)?);
         }
-        "feasible" if manifest.options.is_full_map() => {
+        "feasible" if manifest.options.formulation.encodes_map() => {
             if !listed(MAP) {
                 return Err(Error::parse(
                     &mname,

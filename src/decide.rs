@@ -91,7 +91,7 @@ pub fn witness(
     lines: Option<&[usize]>,
 ) -> Result<Witness> {
     check_model(cnf, model, path, lines)?;
-    if options.is_full_map() {
+    if options.formulation.encodes_map() {
         let orbit = decode::full_map_orbit(q, map, model)?;
         let table = decode::full_map(q, map, model)?;
         let domain = q.domain().points().to_vec();

@@ -9,7 +9,7 @@ use clap::{Args, Parser, Subcommand};
 
 use orbitcnf::Verdict;
 use orbitcnf::bundle::Evidence;
-use orbitcnf::encode::{self, DEFAULT_MAX_CLAUSES, EncodeOptions, Symmetry};
+use orbitcnf::encode::{self, DEFAULT_MAX_CLAUSES, EncodeOptions, Formulation, Symmetry};
 use orbitcnf::points::PointSet;
 use orbitcnf::proof::LratOptions;
 use orbitcnf::question::MapClass;
@@ -243,14 +243,25 @@ struct EncodingArgs {
     /// The formulation: `cycle` (isometric cycles; boxes only; the default
     /// on boxes) or `full-map` (the whole map f: D → D; the only one for
     /// --points, and available on boxes for comparison).
-    #[arg(long, value_name = "NAME", value_parser = ["cycle", "full-map"])]
-    formulation: Option<String>,
+    #[arg(long, value_name = "NAME", value_parser = formulation_word())]
+    formulation: Option<Formulation>,
+}
+
+/// The words `--formulation` accepts: `cycle` asks for the class's cycle
+/// formulation, which the options spell [`Formulation::IsometricCycle`]
+/// until they are resolved for a question.
+fn formulation_word() -> impl clap::builder::TypedValueParser<Value = Formulation> {
+    use clap::builder::TypedValueParser;
+    clap::builder::PossibleValuesParser::new(["cycle", "full-map"]).map(|w| match w.as_str() {
+        "full-map" => Formulation::FullMap,
+        _ => Formulation::IsometricCycle,
+    })
 }
 
 impl EncodingArgs {
     fn options(&self) -> Result<EncodeOptions, Error> {
-        let base = match self.formulation.as_deref() {
-            Some("full-map") => EncodeOptions::full_map(),
+        let base = match self.formulation {
+            Some(Formulation::FullMap) => EncodeOptions::full_map(),
             _ => EncodeOptions::default(),
         };
         Ok(EncodeOptions {
@@ -270,7 +281,7 @@ impl EncodingArgs {
 
     /// As [`EncodingArgs::options_for`], knowing only whether the domain is a point set.
     fn options_on(&self, point_set: bool) -> Result<EncodeOptions, Error> {
-        if point_set && self.formulation.as_deref() == Some("cycle") {
+        if point_set && self.formulation == Some(Formulation::IsometricCycle) {
             return Err(Error::Options(
                 "--formulation cycle answers the question only on boxes: on a point set an \
                  isometric cycle need not extend to a map D → D; use full-map (the default with --points)"

@@ -178,7 +178,10 @@ impl Report {
             // A topical or full-map report shows its own formulation and the
             // families switched off for it; nonexpansive reports on boxes echo
             // the options as given, as they always have.
-            options: if q.class.is_default() && q.points.is_none() && !options.is_full_map() {
+            options: if q.class.is_default()
+                && q.points.is_none()
+                && !options.formulation.encodes_map()
+            {
                 options.clone()
             } else {
                 options.resolve(q)
@@ -221,7 +224,7 @@ impl Report {
             Verdict::Feasible => {
                 let _ = writeln!(s, "verdict      FEASIBLE");
             }
-            Verdict::Infeasible if self.options.is_full_map() => {
+            Verdict::Infeasible if self.options.formulation.encodes_map() => {
                 let _ = writeln!(
                     s,
                     "verdict      INFEASIBLE: no such map exists (no nonexpansive map D → D has a \
@@ -319,7 +322,7 @@ impl Report {
                         f.display()
                     );
                 }
-                let why = if self.options.is_full_map() {
+                let why = if self.options.formulation.encodes_map() {
                     "encodings/full-map.md"
                 } else {
                     writeups

@@ -952,7 +952,7 @@ fn base_answer(
         schema: SCHEMA.into(),
         key,
         question: q.record(),
-        formulation: resolved.formulation.clone(),
+        formulation: resolved.formulation,
         options: resolved,
         verdict: Verdict::Unknown,
         how,
@@ -1774,7 +1774,10 @@ mod tests {
         assert_eq!(s.periods_with(Verdict::Infeasible), vec![3]);
         assert_eq!(s.rows[1].how, How::Construction);
         assert_eq!(s.rows[2].answer.backing, Backing::CheckedProof);
-        assert_eq!(s.rows[2].answer.options.formulation, "topical-cycle/1");
+        assert_eq!(
+            s.rows[2].answer.options.formulation,
+            crate::encode::Formulation::TopicalCycle
+        );
         assert!(
             s.rows[1].certificate.contains("topical map"),
             "{}",

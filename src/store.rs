@@ -50,7 +50,7 @@ use serde::{Deserialize, Serialize};
 
 pub use crate::artifact::sha256_file;
 use crate::artifact::{sha256_hex, sync_dir, write_atomically};
-use crate::encode::{self, EncodeOptions};
+use crate::encode::{self, EncodeOptions, Formulation};
 use crate::error::{Error, Result};
 use crate::grid::Point;
 use crate::proof::{LratOptions, LratSummary, check_lrat_with};
@@ -171,8 +171,8 @@ pub struct Answer {
     pub question: QuestionRecord,
     /// The encoding options as resolved for the question.
     pub options: EncodeOptions,
-    /// The formulation version ([`crate::encode::FORMULATION`] when written).
-    pub formulation: String,
+    /// The formulation (the one in `options`), by its stable name.
+    pub formulation: Formulation,
     /// `feasible`, `infeasible` or `unknown`.
     #[serde(with = "verdict_word")]
     pub verdict: Verdict,
@@ -272,7 +272,7 @@ mod verdict_word {
 struct KeyInput<'a> {
     question: &'a QuestionRecord,
     options: &'a EncodeOptions,
-    formulation: &'a str,
+    formulation: Formulation,
 }
 
 /// The store key of a question under `resolved` options: the hex SHA-256 of
@@ -282,7 +282,7 @@ pub fn key(question: &QuestionRecord, resolved: &EncodeOptions) -> String {
     let input = KeyInput {
         question,
         options: resolved,
-        formulation: &resolved.formulation,
+        formulation: resolved.formulation,
     };
     let mut bytes = KEY_DOMAIN.to_vec();
     bytes.extend(serde_json::to_vec(&input).expect("key input serialises"));
@@ -608,7 +608,7 @@ fn check_stored_orbit(q: &Question, a: &Answer, file: &str) -> Result<OrbitCheck
             ),
         ));
     }
-    if a.options.is_full_map() {
+    if a.options.formulation.encodes_map() {
         let Some(map) = &a.map else {
             return Err(Error::parse(
                 file,
@@ -653,19 +653,19 @@ fn read_answer(path: &Path) -> Result<Option<Answer>> {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::encode::FORMULATION;
     use crate::grid::Grid;
     use crate::question::MapClass;
 
     fn answer(period: usize, verdict: Verdict, options: EncodeOptions, run: &str) -> Answer {
         let q = Question::new(Grid::parse("-1..1", Some(2)).unwrap(), period).unwrap();
         let resolved = options.resolve(&q);
+        let formulation = resolved.formulation;
         Answer {
             schema: SCHEMA.into(),
             key: key(&q.record(), &resolved),
             question: q.record(),
             options: resolved,
-            formulation: FORMULATION.into(),
+            formulation,
             verdict,
             how: How::Solver,
             backing: Backing::None,

@@ -8,7 +8,7 @@
 //! shift, which extends to a nonexpansive map of the whole box.
 //!
 //! For topical maps ([`MapClass::Topical`]) the formulation is
-//! [`TOPICAL_FORMULATION`]: the same coordinates, the profile over the
+//! [`Formulation::TopicalCycle`]: the same coordinates, the profile over the
 //! unfolded offsets `1..p−1` of the one-sided `t(x_i, x_{i+k})`, the
 //! families of [`topical`] in place of those of [`distance`], and the
 //! symmetry steps adapted as [`symmetry`] describes; the redundant counting
@@ -28,6 +28,7 @@ pub mod coords;
 pub mod count;
 pub mod distance;
 pub mod edges;
+pub mod formulation;
 pub mod fullmap;
 pub mod packing;
 pub mod points;
@@ -47,19 +48,7 @@ use crate::error::{Error, Result};
 use crate::question::{MapClass, Question};
 use crate::varmap::{Meaning, VarMap};
 
-/// Name and version of the formulation, recorded in every CNF header.
-pub const FORMULATION: &str = "isometric-cycle/1";
-
-/// Name and version of the topical formulation ([`topical`]).
-pub const TOPICAL_FORMULATION: &str = "topical-cycle/1";
-
-/// The formulation that encodes questions of `class`.
-pub fn formulation(class: MapClass) -> &'static str {
-    match class {
-        MapClass::Nonexpansive => FORMULATION,
-        MapClass::Topical => TOPICAL_FORMULATION,
-    }
-}
+pub use formulation::{Formulation, UnknownFormulation};
 
 /// The number `K` of profile offsets: `⌊p/2⌋` for the symmetric norm,
 /// `p − 1` for the one-sided `t` of topical maps.
@@ -204,11 +193,12 @@ impl Symmetry {
 #[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct EncodeOptions {
-    /// The formulation: [`FORMULATION`] (isometric cycles on boxes), or
-    /// [`TOPICAL_FORMULATION`] once [`EncodeOptions::resolve`] has seen a
-    /// topical question, or [`fullmap::FORMULATION`] (the whole map, any
-    /// finite domain).
-    pub formulation: String,
+    /// The formulation: [`Formulation::IsometricCycle`] (isometric cycles on
+    /// boxes; asked for, it means "the class's cycle formulation"), or
+    /// [`Formulation::TopicalCycle`] once [`EncodeOptions::resolve`] has seen
+    /// a topical question, or [`Formulation::FullMap`] (the whole map, any
+    /// finite domain). Serialised as its stable name.
+    pub formulation: Formulation,
     /// Symmetry-breaking families.
     pub symmetry: Symmetry,
     /// The redundant occupancy count ([`count`]).
@@ -226,7 +216,7 @@ impl Default for EncodeOptions {
     /// The strongest sound combination: every family on.
     fn default() -> EncodeOptions {
         EncodeOptions {
-            formulation: FORMULATION.to_string(),
+            formulation: Formulation::IsometricCycle,
             symmetry: Symmetry::ALL,
             count: true,
             packing: true,
@@ -239,7 +229,7 @@ impl EncodeOptions {
     /// The plain formulation: no symmetry breaking, no redundant constraints.
     pub fn plain() -> EncodeOptions {
         EncodeOptions {
-            formulation: FORMULATION.to_string(),
+            formulation: Formulation::IsometricCycle,
             symmetry: Symmetry::NONE,
             count: false,
             packing: false,
@@ -250,23 +240,22 @@ impl EncodeOptions {
     /// Every family on, in the full-map formulation ([`fullmap`]).
     pub fn full_map() -> EncodeOptions {
         EncodeOptions {
-            formulation: fullmap::FORMULATION.to_string(),
+            formulation: Formulation::FullMap,
             ..EncodeOptions::default()
         }
     }
 
-    /// Whether these options (once resolved) use the full-map formulation.
-    pub fn is_full_map(&self) -> bool {
-        self.formulation == fullmap::FORMULATION
-    }
-
     /// The part of [`EncodeOptions::resolve`] that depends on the class
-    /// alone: the class's formulation, and for topical questions the
-    /// families argued for the norm only switched off. A sweep reports its
-    /// options this way, since the rest of the resolution varies by period.
+    /// alone: the class's cycle formulation (the full-map formulation, when
+    /// asked for, stays), and for topical questions the families argued for
+    /// the norm only switched off. A sweep reports its options this way,
+    /// since the rest of the resolution varies by period.
     pub fn for_class(&self, class: MapClass) -> EncodeOptions {
         let mut o = self.clone();
-        o.formulation = formulation(class).to_string();
+        if o.formulation == Formulation::FullMap {
+            return o;
+        }
+        o.formulation = Formulation::of_class(class);
         if class == MapClass::Topical {
             // The counting families, the subgroup-profile clauses (which
             // read the folded, symmetric profile) and step 6 are argued for
@@ -284,7 +273,7 @@ impl EncodeOptions {
     /// point set always takes the full-map formulation, the only one that
     /// answers it. The result is what the CNF header records.
     pub fn resolve(&self, q: &Question) -> EncodeOptions {
-        if q.points.is_some() || self.is_full_map() {
+        if q.points.is_some() || self.formulation == Formulation::FullMap {
             return fullmap::resolve(self, q);
         }
         let mut o = self.for_class(q.class);
@@ -444,7 +433,7 @@ impl Encoder {
 /// family, with `options` as [`EncodeOptions::resolve`] leaves them.
 pub fn estimate(q: &Question, options: &EncodeOptions) -> Vec<FamilyCount> {
     let o = options.resolve(q);
-    if o.is_full_map() {
+    if o.formulation == Formulation::FullMap {
         return fullmap::estimate(q, &o);
     }
     let s = o.symmetry;
@@ -512,15 +501,7 @@ pub fn estimate(q: &Question, options: &EncodeOptions) -> Vec<FamilyCount> {
 /// estimated size when the estimate exceeds `max_clauses`.
 pub fn encode(q: &Question, options: &EncodeOptions, max_clauses: u64) -> Result<Encoding> {
     options.symmetry.validate()?;
-    let known = [FORMULATION, TOPICAL_FORMULATION, fullmap::FORMULATION];
-    if !known.contains(&options.formulation.as_str()) {
-        return Err(Error::Options(format!(
-            "unknown formulation {:?}; this version knows {}",
-            options.formulation,
-            known.join(", ")
-        )));
-    }
-    if q.points.is_some() || options.is_full_map() {
+    if q.points.is_some() || options.formulation == Formulation::FullMap {
         if q.class != MapClass::Nonexpansive {
             return Err(Error::Options(format!(
                 "the full-map formulation (and so --points) encodes nonexpansive maps D → D only, \
@@ -690,7 +671,7 @@ mod tests {
             let question = q(spec, dim, p).with_class(MapClass::Topical);
             for opts in [EncodeOptions::default(), EncodeOptions::plain()] {
                 let e = assert_estimate_is_exact(&question, &opts);
-                assert_eq!(e.options.formulation, TOPICAL_FORMULATION);
+                assert_eq!(e.options.formulation, Formulation::TopicalCycle);
             }
         }
     }
@@ -747,23 +728,25 @@ mod tests {
     #[test]
     fn every_formulation_of_this_version_is_accepted_and_others_are_named() {
         // Options read back from a header or a store are already resolved, so
-        // each formulation name must be accepted again.
+        // each formulation must be accepted again.
         let box_q = q("0..1", 2, 2);
         for class in [MapClass::Nonexpansive, MapClass::Topical] {
             let t = box_q.clone().with_class(class);
             let resolved = EncodeOptions::default().resolve(&t);
-            assert!(
-                encode(&t, &resolved, u64::MAX).is_ok(),
-                "{}",
-                resolved.formulation
-            );
+            assert_eq!(resolved.formulation, Formulation::of_class(class));
+            assert!(encode(&t, &resolved, u64::MAX).is_ok());
         }
         assert!(encode(&box_q, &EncodeOptions::full_map(), u64::MAX).is_ok());
-        let odd = EncodeOptions {
-            formulation: "sideways/9".into(),
-            ..EncodeOptions::default()
-        };
-        let e = encode(&box_q, &odd, u64::MAX).unwrap_err().to_string();
+        // Options naming a formulation this version does not know do not read.
+        let json = serde_json::to_string(&EncodeOptions::default()).unwrap();
+        assert!(
+            json.contains("\"formulation\":\"isometric-cycle/1\""),
+            "{json}"
+        );
+        let odd = json.replace("isometric-cycle/1", "sideways/9");
+        let e = serde_json::from_str::<EncodeOptions>(&odd)
+            .unwrap_err()
+            .to_string();
         assert!(e.contains("unknown formulation \"sideways/9\""), "{e}");
     }
 

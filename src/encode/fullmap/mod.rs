@@ -35,14 +35,11 @@ pub mod profile;
 pub mod symmetry;
 
 use crate::cnf::{FamilyCount, Var};
-use crate::encode::{EncodeOptions, Encoder, Encoding, Symmetry, refuse_oversized};
+use crate::encode::{EncodeOptions, Encoder, Encoding, Formulation, Symmetry, refuse_oversized};
 use crate::error::Result;
 use crate::points::PointSet;
 use crate::question::Question;
 use crate::varmap::Meaning;
-
-/// Name and version of the formulation, recorded in every CNF header.
-pub const FORMULATION: &str = "full-map/1";
 
 /// Largest `n!·2^n·N` for which the ambient isometries of D are computed.
 pub const ISOMETRY_LIMIT: u128 = 20_000_000;
@@ -99,7 +96,7 @@ pub fn resolve(options: &EncodeOptions, q: &Question) -> EncodeOptions {
             .isometries(ISOMETRY_LIMIT)
             .is_some_and(|g| g.len() > 1);
     EncodeOptions {
-        formulation: FORMULATION.to_string(),
+        formulation: Formulation::FullMap,
         symmetry: Symmetry {
             rotate: s.rotate && q.period >= 2,
             isometry,
@@ -240,7 +237,7 @@ mod tests {
                 ("fm-isometry", 0, 2),
             ]
         );
-        assert_eq!(e.options.formulation, FORMULATION);
+        assert_eq!(e.options.formulation, Formulation::FullMap);
         assert_eq!(e.families, estimate(&q, &e.options));
     }
 

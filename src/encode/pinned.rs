@@ -7,8 +7,6 @@
 //! (with the tool version blanked, so that a release does not move the pins)
 //! with a literal recorded from the encoder before the family table existed.
 
-use sha2::{Digest, Sha256};
-
 use super::{EncodeOptions, Symmetry, encode};
 use crate::grid::Grid;
 use crate::points::PointSet;
@@ -23,10 +21,7 @@ fn digest(q: &Question, o: &EncodeOptions) -> String {
     let text = String::from_utf8(crate::dimacs::render_cnf(&e)).unwrap();
     let version = format!("version={} ", crate::dimacs::VERSION);
     let blanked = text.replacen(&version, "version=X ", 1);
-    Sha256::digest(blanked.as_bytes())
-        .iter()
-        .map(|b| format!("{b:02x}"))
-        .collect()
+    crate::artifact::sha256_hex(blanked.as_bytes())
 }
 
 /// The questions and options whose CNF bytes are pinned: every family of

@@ -73,7 +73,7 @@ pub fn ruled_out(q: &Question) -> Vec<(u64, usize)> {
             continue;
         }
         let sets = packing::window_sets(&q.grid, t);
-        for d in (1..p).filter(|d| p % d == 0) {
+        for d in (1..p).filter(|&d| p.is_multiple_of(d)) {
             let need = total / d as u64 + 1;
             if classes_meet_at_least(&sets, total, p / d, need) {
                 out.push((t, d));

@@ -169,7 +169,7 @@ pub fn add(e: &mut Encoder, q: &Question) {
 /// Grouping `d` applies when every offset that `d` does not divide is far; its
 /// groups are the residue classes of the positions modulo `d`.
 pub fn groupings(p: usize) -> Vec<usize> {
-    (2..=p).rev().filter(|d| p % d == 0).collect()
+    (2..=p).rev().filter(|&d| p.is_multiple_of(d)).collect()
 }
 
 /// For every grid point, the sorted indices of the windows of side `t` containing it.

@@ -208,7 +208,7 @@ pub fn multiplier_counts(q: &Question) -> (u64, u64, u64, u64) {
                 mu,
                 k,
                 phi / 2 * (tau - 1) - k,
-                if p % 2 == 0 { mu } else { 0 },
+                if p.is_multiple_of(2) { mu } else { 0 },
             )
         }
         MapClass::Topical if p >= 2 => (phi - 1, p - 1, phi * (tau - 1) - (p - 1), 0),
@@ -318,7 +318,7 @@ mod tests {
     fn totients_and_divisor_counts() {
         let by_hand = |n: u64| {
             let phi = (1..=n).filter(|&a| gcd(a, n) == 1).count() as u64;
-            (phi, (1..=n).filter(|d| n % d == 0).count() as u64)
+            (phi, (1..=n).filter(|&d| n.is_multiple_of(d)).count() as u64)
         };
         for n in 1..=300 {
             assert_eq!(totient_and_divisors(n), by_hand(n), "n = {n}");

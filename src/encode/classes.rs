@@ -44,7 +44,8 @@
 //!
 //! Variables: none. Clauses: one per pair `(t, d)`, `1 ≤ t < L` with
 //! `W_t ≤` [`packing::MAX_WINDOWS`], `d | p`, `d < p`, for which the search
-//! proves the bound; [`count`] runs the same search.
+//! proves the bound ([`ruled_out`]; the encoding's context runs the search
+//! once, for [`size`] and [`add`] alike).
 //!
 //! Soundness: each clause is the negation of a profile that the inequality
 //! above rules out on every isometric cycle, so no solution is lost.

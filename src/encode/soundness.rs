@@ -177,31 +177,22 @@ fn brute_force_agrees_under_every_combination_in_dimensions_one_and_two() {
 /// combination is covered in dimensions one and two and by the ignored test.)
 fn representative_combinations() -> Vec<EncodeOptions> {
     let mut out = vec![EncodeOptions::default()];
-    for names in [
-        "none",
-        "translate",
-        "multiplier",
-        "rotate",
-        "isometry",
-        "isometry,stabilizer,reverse",
-    ] {
-        out.push(EncodeOptions {
-            symmetry: Symmetry::parse(names).unwrap(),
-            ..EncodeOptions::default()
-        });
-    }
-    for (count, packing, classes) in [
-        (false, true, true),
-        (true, false, true),
-        (true, true, false),
-    ] {
-        out.push(EncodeOptions {
-            count,
-            packing,
-            classes,
-            ..EncodeOptions::default()
-        });
-    }
+    out.extend(super::tests::variations(
+        &EncodeOptions::default(),
+        &[
+            "none",
+            "translate",
+            "multiplier",
+            "rotate",
+            "isometry",
+            "isometry,stabilizer,reverse",
+        ],
+        &[
+            (false, true, true),
+            (true, false, true),
+            (true, true, false),
+        ],
+    ));
     out
 }
 

@@ -61,33 +61,46 @@ fn boxes(dim: usize, max_side: i64) -> Vec<Grid> {
     out
 }
 
+/// `base` with each symmetry set of `names` in turn, then `base` with each
+/// `(count, packing, classes)` of `redundant` in turn.
+pub(crate) fn variations(
+    base: &EncodeOptions,
+    names: &[&str],
+    redundant: &[(bool, bool, bool)],
+) -> Vec<EncodeOptions> {
+    let symmetric = names.iter().map(|n| EncodeOptions {
+        symmetry: Symmetry::parse(n).unwrap(),
+        ..base.clone()
+    });
+    let counting = redundant
+        .iter()
+        .map(|&(count, packing, classes)| EncodeOptions {
+            count,
+            packing,
+            classes,
+            ..base.clone()
+        });
+    symmetric.chain(counting).collect()
+}
+
 /// The option sets tried on every question: the default, the plain
 /// formulation, and each optional family alone (with what it needs).
 fn option_sets() -> Vec<EncodeOptions> {
     let mut out = vec![EncodeOptions::default(), EncodeOptions::plain()];
-    for names in [
-        "translate",
-        "multiplier",
-        "rotate",
-        "isometry,stabilizer,reverse",
-    ] {
-        out.push(EncodeOptions {
-            symmetry: Symmetry::parse(names).unwrap(),
-            ..EncodeOptions::plain()
-        });
-    }
-    for (count, packing, classes) in [
-        (true, false, false),
-        (false, true, false),
-        (false, false, true),
-    ] {
-        out.push(EncodeOptions {
-            count,
-            packing,
-            classes,
-            ..EncodeOptions::plain()
-        });
-    }
+    out.extend(variations(
+        &EncodeOptions::plain(),
+        &[
+            "translate",
+            "multiplier",
+            "rotate",
+            "isometry,stabilizer,reverse",
+        ],
+        &[
+            (true, false, false),
+            (false, true, false),
+            (false, false, true),
+        ],
+    ));
     out
 }
 

@@ -107,7 +107,7 @@ pub fn witness(
     lines: Option<&[usize]>,
 ) -> Result<Witness> {
     check_model(cnf, model, path, lines)?;
-    let (orbit, table) = if options.is_full_map() {
+    let (orbit, table) = if options.formulation.encodes_map() {
         (
             decode::full_map_orbit(q, map, model)?,
             Some(decode::full_map(q, map, model)?),

@@ -55,6 +55,19 @@ pub enum Error {
         reason: String,
     },
 
+    /// A file names a formulation that this version does not know (a newer
+    /// version wrote it, or it was edited); `line` is 1-based.
+    #[error("{path}:{line}: {source}")]
+    UnknownFormulation {
+        /// The file.
+        path: String,
+        /// 1-based line of the name.
+        line: usize,
+        /// The name and the formulations this version knows.
+        #[source]
+        source: crate::encode::UnknownFormulation,
+    },
+
     /// Reading or writing a file failed.
     #[error("{}: {source}", path.display())]
     Io {

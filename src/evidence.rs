@@ -102,7 +102,7 @@ pub fn check_witness(
             q.period
         )));
     }
-    if options.is_full_map() {
+    if options.formulation.encodes_map() {
         let map = map.ok_or_else(|| {
             Error::Decode(
                 "a feasible answer on a point set is backed by its map D → D, and none is given"

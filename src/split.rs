@@ -55,7 +55,7 @@ pub use crate::artifact::FileEntry;
 use crate::artifact::{sha256_hex, write_atomically};
 use crate::cnf::{Cnf, FamilyCount, Lit};
 use crate::dimacs::{VERSION, render_cnf};
-use crate::encode::{EncodeOptions, Encoding, encode, fullmap, profile, symmetry};
+use crate::encode::{EncodeOptions, Encoding, Formulation, encode, fullmap, profile, symmetry};
 use crate::error::{Error, Result};
 use crate::proof::{LratOptions, LratSummary};
 use crate::question::{Question, QuestionRecord};
@@ -223,7 +223,7 @@ pub fn profile_cubes(enc: &Encoding, target: usize) -> Result<Vec<Cube>> {
 /// # Errors
 /// As [`profile_cubes`] and [`start_cubes`].
 pub fn cubes(enc: &Encoding, target: usize) -> Result<Vec<Cube>> {
-    if enc.options.is_full_map() {
+    if enc.options.formulation == Formulation::FullMap {
         start_cubes(enc, target)
     } else {
         profile_cubes(enc, target)
@@ -292,7 +292,7 @@ fn family_range(enc: &Encoding, family: &str) -> Option<std::ops::Range<usize>> 
 /// formulation `orbit-place` (whose first clause says x_0 is some point),
 /// then `fm-isometry` when present.
 pub fn coverage_sources(enc: &Encoding) -> Vec<usize> {
-    let families = if enc.options.is_full_map() {
+    let families = if enc.options.formulation == Formulation::FullMap {
         [fullmap::orbit::FAMILY_PLACE, fullmap::symmetry::ISOMETRY]
     } else {
         [profile::FAMILY, symmetry::MULTIPLIER]
@@ -349,7 +349,7 @@ pub fn render_icnf(enc: &Encoding, cubes: &[Cube]) -> Vec<u8> {
             "c orbitcnf {VERSION} split of: {}\nc {} cubes over {}; cube i is the i-th 'a' line (from 0)\np inccnf\n",
             enc.question.statement(),
             cubes.len(),
-            if enc.options.is_full_map() {
+            if enc.options.formulation == Formulation::FullMap {
                 "the start point x_0"
             } else {
                 "the distance profile"
@@ -370,7 +370,7 @@ pub fn render_icnf(enc: &Encoding, cubes: &[Cube]) -> Vec<u8> {
 /// The coverage CNF as plain DIMACS with a comment saying what it is.
 pub fn render_coverage(enc: &Encoding, cnf: &Cnf, cubes: &[Cube]) -> Vec<u8> {
     let kept = coverage_sources(enc).len();
-    let kept_what = if enc.options.is_full_map() {
+    let kept_what = if enc.options.formulation == Formulation::FullMap {
         "the orbit placement and isometry clauses"
     } else {
         "the profile order encoding and the multiplier lex-leader clauses"
@@ -523,7 +523,7 @@ pub fn refute_coverage(enc: &Encoding, cnf: &Cnf) -> Result<CheckedProof> {
     let r = solve_bundled(cnf, &Limits::default(), &ProofPlan::default(), None)?;
     match r.outcome {
         Outcome::Unsat => {}
-        Outcome::Sat(_) if enc.options.is_full_map() => {
+        Outcome::Sat(_) if enc.options.formulation == Formulation::FullMap => {
             return Err(Error::Solver {
                 solver: "coverage check".into(),
                 reason: "the cubes miss a start point x_0; no split was written".into(),
@@ -650,7 +650,7 @@ pub fn write_split(
         question: q.record(),
         options: enc.options.clone(),
         requested_cubes: target,
-        split: if enc.options.is_full_map() {
+        split: if enc.options.formulation == Formulation::FullMap {
             SplitRule {
                 rule: "start-point".into(),
                 offsets: 0,

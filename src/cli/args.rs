@@ -11,7 +11,7 @@ use std::time::Duration;
 use clap::{Args, ValueEnum};
 
 use orbitcnf::decide::Solver;
-use orbitcnf::encode::{DEFAULT_MAX_CLAUSES, EncodeOptions, Symmetry};
+use orbitcnf::encode::{DEFAULT_MAX_CLAUSES, EncodeOptions, Formulation, Symmetry};
 use orbitcnf::points::PointSet;
 use orbitcnf::progress::ProgressMode;
 use orbitcnf::proof::LratFormat;
@@ -202,11 +202,22 @@ pub struct EncodingArgs {
     /// The formulation: `cycle` (isometric cycles; boxes only; the default
     /// on boxes) or `full-map` (the whole map f: D → D; the only one for
     /// --points, and available on boxes for comparison).
-    #[arg(long, value_name = "NAME", value_parser = ["cycle", "full-map"])]
-    pub formulation: Option<String>,
+    #[arg(long, value_name = "NAME", value_parser = formulation_word())]
+    pub formulation: Option<Formulation>,
     /// Refuse to build formulas with more clauses than this.
     #[arg(long, value_name = "N", default_value_t = DEFAULT_MAX_CLAUSES)]
     pub max_clauses: u64,
+}
+
+/// The words `--formulation` accepts: `cycle` asks for the class's cycle
+/// formulation, which the options spell [`Formulation::IsometricCycle`]
+/// until they are resolved for a question.
+fn formulation_word() -> impl clap::builder::TypedValueParser<Value = Formulation> {
+    use clap::builder::TypedValueParser;
+    clap::builder::PossibleValuesParser::new(["cycle", "full-map"]).map(|w| match w.as_str() {
+        "full-map" => Formulation::FullMap,
+        _ => Formulation::IsometricCycle,
+    })
 }
 
 impl EncodingArgs {
@@ -217,15 +228,15 @@ impl EncodingArgs {
     /// # Errors
     /// A bad symmetry list, or the cycle formulation on a point set.
     pub fn options(&self, point_set: bool) -> Result<EncodeOptions, Error> {
-        if point_set && self.formulation.as_deref() == Some("cycle") {
+        if point_set && self.formulation == Some(Formulation::IsometricCycle) {
             return Err(Error::Options(
                 "--formulation cycle answers the question only on boxes: on a point set an \
                  isometric cycle need not extend to a map D → D; use full-map (the default with --points)"
                     .into(),
             ));
         }
-        let base = match self.formulation.as_deref() {
-            Some("full-map") => EncodeOptions::full_map(),
+        let base = match self.formulation {
+            Some(Formulation::FullMap) => EncodeOptions::full_map(),
             _ => EncodeOptions::default(),
         };
         Ok(EncodeOptions {

@@ -40,7 +40,7 @@
 //! ever force a counter upward by an amount that is really there.
 
 use super::{Encoder, Term, points, profile};
-use crate::cnf::FamilyCount;
+use crate::cnf::Size;
 use crate::grid::Grid;
 use crate::question::Question;
 
@@ -169,7 +169,7 @@ pub fn add(e: &mut Encoder, q: &Question) {
 /// Grouping `d` applies when every offset that `d` does not divide is far; its
 /// groups are the residue classes of the positions modulo `d`.
 pub fn groupings(p: usize) -> Vec<usize> {
-    (2..=p).rev().filter(|d| p % d == 0).collect()
+    (2..=p).rev().filter(|&d| p.is_multiple_of(d)).collect()
 }
 
 /// For every grid point, the sorted indices of the windows of side `t` containing it.
@@ -233,8 +233,8 @@ pub fn union_lower_bound(sets: &[Vec<u32>], windows: u64, s: usize) -> u64 {
     4
 }
 
-/// Exact counts of this family for `q`.
-pub fn count(q: &Question) -> FamilyCount {
+/// Exact size of this family for `q` (module doc).
+pub fn size(q: &Question) -> Size {
     let p = q.period as u64;
     let n = q.grid.num_points() as u64;
     let (mut vars, mut clauses) = (0u64, 0u64);
@@ -251,11 +251,7 @@ pub fn count(q: &Question) -> FamilyCount {
             clauses += 1 + if grouped { p * v } else { 0 } + v + 1 + (d - 1) * (b + b * v) + 1;
         }
     }
-    FamilyCount {
-        family: FAMILY.into(),
-        vars,
-        clauses,
-    }
+    Size::new(vars, clauses)
 }
 
 #[cfg(test)]

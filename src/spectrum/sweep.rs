@@ -304,7 +304,7 @@ fn check_stored(s: &Store, q: &Question, a: &Answer, recheck: bool) -> Result<Ch
     match a.verdict {
         Verdict::Feasible => {
             if let (Some(n), Some(orbit)) = (a.map_checked_points, &a.orbit)
-                && !a.options.is_full_map()
+                && !a.options.formulation.encodes_map()
                 && answer::map_check(q, orbit)? != Some(n)
             {
                 return Err(Error::parse(
@@ -472,7 +472,10 @@ mod tests {
         assert_eq!(s.periods_with(Verdict::Infeasible), vec![3]);
         assert_eq!(s.rows[1].how, How::Construction);
         assert_eq!(s.rows[2].answer.backing, Backing::CheckedProof);
-        assert_eq!(s.rows[2].answer.options.formulation, "topical-cycle/1");
+        assert_eq!(
+            s.rows[2].answer.options.formulation,
+            crate::encode::Formulation::TopicalCycle
+        );
         assert!(
             s.rows[1].certificate.contains("topical map"),
             "{}",

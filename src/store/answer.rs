@@ -7,7 +7,7 @@ use serde::{Deserialize, Serialize};
 
 use crate::artifact::sha256_hex;
 use crate::dimacs::VERSION;
-use crate::encode::EncodeOptions;
+use crate::encode::{EncodeOptions, Formulation};
 use crate::error::{Error, Result};
 use crate::grid::Point;
 use crate::question::{Question, QuestionRecord};
@@ -122,8 +122,8 @@ pub struct Answer {
     pub question: QuestionRecord,
     /// The encoding options as resolved for the question.
     pub options: EncodeOptions,
-    /// The formulation version ([`crate::encode::FORMULATION`] when written).
-    pub formulation: String,
+    /// The formulation (the one in `options`), by its stable name.
+    pub formulation: Formulation,
     /// `feasible`, `infeasible` or `unknown`.
     #[serde(with = "verdict_word")]
     pub verdict: Verdict,
@@ -187,7 +187,7 @@ impl Answer {
             schema: SCHEMA.into(),
             key: key(&q.record(), &resolved),
             question: q.record(),
-            formulation: resolved.formulation.clone(),
+            formulation: resolved.formulation,
             options: resolved,
             verdict: Verdict::Unknown,
             how,
@@ -261,7 +261,7 @@ mod verdict_word {
 struct KeyInput<'a> {
     question: &'a QuestionRecord,
     options: &'a EncodeOptions,
-    formulation: &'a str,
+    formulation: Formulation,
 }
 
 /// The store key of a question under `resolved` options: the hex SHA-256 of
@@ -271,7 +271,7 @@ pub fn key(question: &QuestionRecord, resolved: &EncodeOptions) -> String {
     let input = KeyInput {
         question,
         options: resolved,
-        formulation: &resolved.formulation,
+        formulation: resolved.formulation,
     };
     let mut bytes = KEY_DOMAIN.to_vec();
     bytes.extend(serde_json::to_vec(&input).expect("key input serialises"));

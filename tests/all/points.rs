@@ -25,7 +25,7 @@ use std::collections::HashSet;
 use serde_json::Value;
 
 use orbitcnf::brute;
-use orbitcnf::encode::{DEFAULT_MAX_CLAUSES, EncodeOptions, Symmetry};
+use orbitcnf::encode::{DEFAULT_MAX_CLAUSES, EncodeOptions, Formulation, Symmetry};
 use orbitcnf::evidence::Evidence as Certificate;
 use orbitcnf::points::PointSet;
 use orbitcnf::solve::bundled::Bundled;
@@ -148,7 +148,7 @@ fn decide_checked(q: &Question, options: &EncodeOptions, certify: bool, context:
     }
     .unwrap_or_else(|e| panic!("{context}: decide failed: {e}"));
     assert!(
-        report.options.is_full_map(),
+        report.options.formulation == Formulation::FullMap,
         "{context}: {:?}",
         report.options
     );

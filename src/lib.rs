@@ -30,6 +30,7 @@ pub mod orbit_file;
 pub mod points;
 pub mod proof;
 pub mod question;
+pub mod render;
 pub mod report;
 pub mod solve;
 pub mod spectrum;

@@ -88,6 +88,12 @@ enum Command {
     /// Example: orbitcnf spectrum --dim 3 --grid=-1..1
     #[command(after_help = SPECTRUM_HELP)]
     Spectrum(SpectrumArgs),
+    /// Make a LaTeX table, an SVG picture or a self-contained HTML page from
+    /// an answer, a certificate bundle or a results store. The orbit is
+    /// re-checked and its map rebuilt and checked before anything is drawn.
+    ///
+    /// Example: orbitcnf report answer.json --format svg --picture cycle -o cycle.svg
+    Report(ReportArgs),
     /// Split a question into cubes for solving on many cores or machines:
     /// writes a folder with the CNF, one standalone CNF per cube, an iCNF
     /// file, a checked coverage proof and manifest.json.
@@ -313,8 +319,93 @@ struct DecideArgs {
     /// verdict then rests on the solver's word, and the report says so).
     #[arg(long)]
     no_certify: bool,
+    /// Also print the explicit map of a feasible answer: the nonexpansive
+    /// extension f of the orbit's shift on the whole grid (topical: the
+    /// topical extension; --points: the map found), checked by exhaustion,
+    /// as `check --map` prints it; in JSON under "explicit_map".
+    #[arg(long)]
+    map: bool,
+    /// With --map: write the map as JSON to FILE (as `check --map-out` does)
+    /// instead of printing it.
+    #[arg(long, value_name = "FILE", requires = "map")]
+    map_out: Option<PathBuf>,
     #[command(flatten)]
     scale: ScaleArgs,
+}
+
+#[derive(Args, Debug)]
+struct ReportArgs {
+    /// A `decide --json` answer (or a stored answer, an orbit file, a
+    /// `spectrum --json` sweep), a certificate bundle folder (`decide
+    /// --bundle`), or a results store folder (`spectrum --store`).
+    input: PathBuf,
+    /// `latex` (a standalone document with booktabs tables), `svg` (one
+    /// picture, see --picture) or `html` (one self-contained page).
+    #[arg(long, value_name = "FORMAT", default_value = "html", value_parser = parse_format)]
+    format: orbitcnf::render::Format,
+    /// The SVG picture: `cycle` (the orbit as a cycle graph of its distance
+    /// profile), `distances` (the distance matrix), `orbit` (the orbit in its
+    /// domain), `spectrum` (a store's or sweep's periods). Default: cycle for
+    /// an answer, spectrum for a store.
+    #[arg(long, value_name = "PICTURE", value_parser = parse_picture)]
+    picture: Option<orbitcnf::render::Picture>,
+    /// Where to write (default: stdout).
+    #[arg(long, short, value_name = "FILE")]
+    output: Option<PathBuf>,
+}
+
+fn parse_format(s: &str) -> Result<orbitcnf::render::Format, String> {
+    s.parse().map_err(|e: Error| e.to_string())
+}
+
+fn parse_picture(s: &str) -> Result<orbitcnf::render::Picture, String> {
+    s.parse().map_err(|e: Error| e.to_string())
+}
+
+/// `report`: loads the input, renders it, writes it.
+fn report_cmd(a: ReportArgs) -> Result<u8, Error> {
+    let loaded = orbitcnf::render::input::load(&a.input)?;
+    let text = orbitcnf::render::render(&loaded, a.format, a.picture)?;
+    match &a.output {
+        Some(path) if path.as_os_str() != "-" => {
+            orbitcnf::artifact::write_atomically(path, text.as_bytes())?;
+            eprintln!("report written to {}", path.display());
+        }
+        _ => print(&text)?,
+    }
+    Ok(0)
+}
+
+/// `decide --map`: the explicit map of a feasible answer, added to the JSON
+/// and the text, or written to `--map-out`.
+fn decide_map(
+    a: &DecideArgs,
+    report: &orbitcnf::Report,
+    json: &mut serde_json::Value,
+    text: &mut String,
+) -> Result<(), Error> {
+    let Some(m) = orbitcnf::render::facts::report_map(report)? else {
+        if report.orbit.is_some() {
+            text.push_str(&format!(
+                "map          not built: the box has more than {} points\n",
+                verify::MAP_CHECK_LIMIT
+            ));
+        }
+        return Ok(());
+    };
+    let orbit = report.orbit.as_deref().unwrap_or_default();
+    let doc = m.to_json(&report.question.grid, report.question.class, orbit);
+    match &a.map_out {
+        Some(path) => {
+            orbitcnf::artifact::write_atomically(path, (doc.to_string() + "\n").as_bytes())?;
+            eprintln!("map written to {}", path.display());
+        }
+        None => {
+            json["explicit_map"] = doc;
+            text.push_str(&m.to_text());
+        }
+    }
+    Ok(())
 }
 
 #[derive(Args, Debug)]
@@ -518,11 +609,22 @@ fn run(cli: Cli) -> Result<u8, Error> {
                 }
                 report
             };
-            print(&if a.json {
-                report.to_json() + "\n"
+            if a.map {
+                let mut json = serde_json::to_value(&report).expect("reports serialise");
+                let mut text = report.to_text();
+                decide_map(&a, &report, &mut json, &mut text)?;
+                print(&if a.json {
+                    json.to_string() + "\n"
+                } else {
+                    text
+                })?;
             } else {
-                report.to_text()
-            })?;
+                print(&if a.json {
+                    report.to_json() + "\n"
+                } else {
+                    report.to_text()
+                })?;
+            }
             Ok(report.verdict.exit_code() as u8)
         }
         Command::Encode(a) => {
@@ -565,6 +667,7 @@ fn run(cli: Cli) -> Result<u8, Error> {
             Ok(report.verdict.exit_code() as u8)
         }
         Command::Check(a) => check(a),
+        Command::Report(a) => report_cmd(a),
         Command::Bench(a) => bench(a),
         Command::VerifyProof(a) => verify_proof(a),
         Command::Spectrum(a) => spectrum(a),

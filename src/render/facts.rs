@@ -56,6 +56,46 @@ pub struct MapFacts {
     pub formula: String,
     /// What the check established, in words.
     pub check: String,
+    /// Points checked (every point of D).
+    pub points_checked: u64,
+    /// Pairs of points checked for nonexpansiveness.
+    pub pairs_checked: u64,
+}
+
+impl MapFacts {
+    /// The map as a JSON orbit file that `check` and `report` read:
+    /// `{"grid", "class", "orbit", "map": [[z, f(z)], …]}` (the pairs as in
+    /// answers and bundles), with the formula and the check's counts.
+    /// `class` is left out for the default class.
+    pub fn to_json(&self, grid: &str, class: MapClass, orbit: &[Vec<i64>]) -> serde_json::Value {
+        let mut doc = serde_json::json!({
+            "grid": grid,
+            "orbit": orbit,
+            "formula": self.formula,
+            "map_check": {
+                "points_checked": self.points_checked,
+                "pairs_checked": self.pairs_checked,
+                "period": orbit.len(),
+            },
+            "map": self.entries,
+        });
+        if !class.is_default() {
+            doc["class"] = class.name().into();
+        }
+        doc
+    }
+
+    /// The map for people, one `z -> f(z)` line per point, as `check --map` prints it.
+    pub fn to_text(&self) -> String {
+        let mut s = format!(
+            "map          x -> f(x), {}\nmap check    {}\n",
+            self.formula, self.check
+        );
+        for (z, fz) in &self.entries {
+            s.push_str(&format!("             {z:?} -> {fz:?}\n"));
+        }
+        s
+    }
 }
 
 /// A checked orbit and what is drawn from it.
@@ -202,7 +242,7 @@ pub fn orbit_facts(a: &Answer) -> Result<Option<OrbitFacts>> {
                 .collect()
         })
         .collect();
-    let map = map_facts(a, orbit, &bounds)?;
+    let map = explicit_map(a, orbit, &bounds, MAP_TABLE_LIMIT)?;
     Ok(Some(OrbitFacts {
         orbit: orbit.clone(),
         bounds,
@@ -215,7 +255,21 @@ pub fn orbit_facts(a: &Answer) -> Result<Option<OrbitFacts>> {
     }))
 }
 
-fn map_facts(a: &Answer, orbit: &[Vec<i64>], bounds: &[(i64, i64)]) -> Result<Option<MapFacts>> {
+/// The explicit map of the orbit of `a`: on a point set the answer's own
+/// map, checked by [`verify::check_self_map`]; on a box of at most `limit`
+/// points the extension of [`verify::extend`] (topical orbits:
+/// [`verify::extend_topical`], unclamped), checked by exhaustion; `None` on
+/// larger boxes.
+///
+/// # Errors
+/// [`Error::Check`] when a check fails; [`Error::Render`] for a point set
+/// without its map.
+pub fn explicit_map(
+    a: &Answer,
+    orbit: &[Vec<i64>],
+    bounds: &[(i64, i64)],
+    limit: u128,
+) -> Result<Option<MapFacts>> {
     if let Some(points) = &a.question.points {
         let map = a.map.as_ref().ok_or_else(|| {
             fail(
@@ -231,12 +285,14 @@ fn map_facts(a: &Answer, orbit: &[Vec<i64>], bounds: &[(i64, i64)]) -> Result<Op
             entries,
             formula: "the map f: D → D found by the solver (full-map formulation)".into(),
             check: format!("passed: {check}"),
+            points_checked: check.points_checked,
+            pairs_checked: check.pairs_checked,
         }));
     }
     let size = bounds.iter().fold(1u128, |n, &(lo, hi)| {
         n.saturating_mul((hi - lo + 1) as u128)
     });
-    if size > MAP_TABLE_LIMIT {
+    if size > limit {
         return Ok(None);
     }
     if a.question.is_topical() {
@@ -249,6 +305,8 @@ fn map_facts(a: &Answer, orbit: &[Vec<i64>], bounds: &[(i64, i64)]) -> Result<Op
                       on the points of the box"
                 .into(),
             check: format!("passed: {check}"),
+            points_checked: check.points_checked,
+            pairs_checked: check.pairs_checked,
         }));
     }
     let table = verify::extend(bounds, orbit)?;
@@ -258,7 +316,27 @@ fn map_facts(a: &Answer, orbit: &[Vec<i64>], bounds: &[(i64, i64)]) -> Result<Op
         entries: table.entries,
         formula: "f_c(z) = clamp_[a_c, b_c](min_j (x_{j+1,c} + ‖z − x_j‖∞))".into(),
         check: format!("passed: {check}"),
+        points_checked: check.points_checked,
+        pairs_checked: check.pairs_checked,
     }))
+}
+
+/// The explicit map of a feasible [`crate::Report`] (`decide --map`), read
+/// through the report's input model and checked as in [`explicit_map`], on
+/// boxes of up to [`verify::MAP_CHECK_LIMIT`] points; `None` without an
+/// orbit or on a larger box.
+///
+/// # Errors
+/// As [`explicit_map`].
+pub fn report_map(report: &crate::Report) -> Result<Option<MapFacts>> {
+    let value = serde_json::to_value(report).expect("reports serialise");
+    let super::input::Input::Answer(a) = super::input::from_value(&value, "the report")? else {
+        return Ok(None);
+    };
+    match (&a.orbit, &a.question.bounds) {
+        (Some(orbit), Some(bounds)) => explicit_map(&a, orbit, bounds, verify::MAP_CHECK_LIMIT),
+        _ => Ok(None),
+    }
 }
 
 /// The question in words: the answer's own statement, else the library's

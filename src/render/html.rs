@@ -206,6 +206,9 @@ fn spectrum_view(s: &Spectrum, origin: &Origin) -> SpectrumView {
 /// [`Error::Render`] if the template fails (a bug: the template is fixed).
 pub fn page(loaded: &Loaded, answer: Option<&AnswerFacts>, spectra: &[Spectrum]) -> Result<String> {
     let mut env = Environment::new();
+    // Exponents as superscripts in prose (`{-1,0,1}^3` as `{-1,0,1}³`); the
+    // filter runs before auto-escaping, which still escapes its result.
+    env.add_filter("pretty", |s: String| super::svg::pretty(&s));
     env.add_template("page.html", TEMPLATE)
         .map_err(|e| Error::Render {
             what: "the HTML page".into(),

@@ -19,8 +19,8 @@ use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
 
 use serde_json::Value;
-use sha2::{Digest, Sha256};
 
+use crate::artifact::sha256_file;
 use crate::error::{Error, Result};
 use crate::grid::Grid;
 use crate::question::MapClass;
@@ -389,6 +389,10 @@ fn question_of(v: &Value, origin: &str) -> Result<QuestionFacts> {
     // fields at the top.
     let q = v.get("question").filter(|q| q.is_object()).unwrap_or(v);
     let points = points_of(q.get("points"), origin, "points")?;
+    if let Some(p) = &points {
+        // The library's own checks: one dimension, coordinates within range, no repeats.
+        crate::points::PointSet::new(p.clone()).map_err(|e| bad(origin, format!("points: {e}")))?;
+    }
     let grid = as_string(q.get("grid"));
     let dim_field = as_usize(q.get("dim"));
     let bounds = match &grid {
@@ -542,18 +546,11 @@ fn hash_named_proof(e: &mut Evidence, answer_path: &Path) {
     let Some(file) = &e.file else { return };
     let beside = answer_path.parent().map(|d| d.join(file));
     for candidate in [Some(PathBuf::from(file)), beside].into_iter().flatten() {
-        if let Ok(bytes) = std::fs::read(&candidate) {
-            e.sha256 = Some(sha256_hex(&bytes));
+        if let Ok((digest, _)) = sha256_file(&candidate) {
+            e.sha256 = Some(digest);
             return;
         }
     }
-}
-
-fn sha256_hex(bytes: &[u8]) -> String {
-    Sha256::digest(bytes)
-        .iter()
-        .map(|b| format!("{b:02x}"))
-        .collect()
 }
 
 fn load_bundle(dir: &Path) -> Result<Answer> {
@@ -574,8 +571,8 @@ fn load_bundle(dir: &Path) -> Result<Answer> {
         // A report prints these digests as the certificate's: they must be
         // the digests of the files that are there.
         let path = dir.join(&name);
-        let bytes = std::fs::read(&path).map_err(|e| Error::io(&path, e))?;
-        if sha256_hex(&bytes) != sha256 {
+        let (digest, bytes) = sha256_file(&path)?;
+        if digest != sha256 {
             return Err(bad(
                 &path.display().to_string(),
                 format!("its SHA-256 differs from the manifest's {sha256}"),
@@ -584,7 +581,7 @@ fn load_bundle(dir: &Path) -> Result<Answer> {
         files.push(FileDigest {
             name,
             sha256,
-            bytes: bytes.len() as u64,
+            bytes,
         });
     }
     let verdict = verdict_of(m.get("verdict"), &origin)?

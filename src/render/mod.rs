@@ -48,6 +48,11 @@ use crate::error::{Error, Result};
 use facts::AnswerFacts;
 use input::{Input, Loaded};
 
+/// Largest period whose cycle graph and distance matrix are drawn: both
+/// draw every pair of orbit points, and beyond this the picture is neither
+/// readable nor small.
+pub const MAX_DRAWN_PERIOD: usize = 256;
+
 /// An output format.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum Format {
@@ -158,6 +163,16 @@ pub fn answer_picture(f: &AnswerFacts, pic: Picture) -> Result<String> {
         ),
     })?;
     let domain = f.answer.question.domain_name();
+    let p = o.period();
+    if p > MAX_DRAWN_PERIOD && matches!(pic, Picture::Cycle | Picture::Distances) {
+        return Err(Error::Render {
+            what,
+            reason: format!(
+                "a {p}-cycle has {} pairs; this picture draws every pair, up to p = {MAX_DRAWN_PERIOD}",
+                p * (p - 1) / 2
+            ),
+        });
+    }
     match pic {
         Picture::Cycle => Ok(cycle::cycle(o, &domain)),
         Picture::Distances => Ok(heatmap::heatmap(o, &domain)),

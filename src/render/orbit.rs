@@ -34,7 +34,9 @@ fn plane(o: &OrbitFacts, what: &str, domain: Option<&[Vec<i64>]>) -> String {
     let (lo1, hi1) = o.bounds[0];
     let (lo2, hi2) = o.bounds.get(1).copied().unwrap_or((0, 0));
     let (s1, s2) = ((hi1 - lo1) as f64, (hi2 - lo2) as f64);
-    let step = (360.0 / s1.max(s2).max(1.0)).clamp(14.0, 90.0);
+    // Up to 90 px per unit; a long side shrinks the step, so the picture stays
+    // within about 560 px whatever the box.
+    let step = (560.0 / s1.max(s2).max(1.0)).min(90.0);
     let (left, top) = (70.0, 70.0);
     let width = left + s1 * step + 60.0;
     let height = top + s2 * step + 70.0;
@@ -58,7 +60,7 @@ fn plane(o: &OrbitFacts, what: &str, domain: Option<&[Vec<i64>]>) -> String {
     let every1 = label_every(step);
     let base = y_of(lo2) + 24.0;
     s.open("g", &[a("class", "axis"), a("data-axis", "1")]);
-    for v in (lo1..=hi1).filter(|v| (v - lo1) as usize % every1 == 0) {
+    for v in (lo1..=hi1).step_by(every1) {
         s.label_with(
             x_of(v),
             base,
@@ -77,7 +79,7 @@ fn plane(o: &OrbitFacts, what: &str, domain: Option<&[Vec<i64>]>) -> String {
     if o.bounds.len() == 2 {
         let every2 = label_every(step);
         s.open("g", &[a("class", "axis"), a("data-axis", "2")]);
-        for v in (lo2..=hi2).filter(|v| (v - lo2) as usize % every2 == 0) {
+        for v in (lo2..=hi2).step_by(every2) {
             s.label_with(
                 left - 22.0,
                 y_of(v) + FONT / 3.0,
@@ -231,7 +233,7 @@ fn parallel(o: &OrbitFacts, what: &str) -> String {
                 a("stroke", "black"),
             ],
         );
-        for v in (a_c..=b_c).filter(|v| (v - a_c) as usize % every == 0) {
+        for v in (a_c..=b_c).step_by(every) {
             let y = y_of(v, 0) + 6.0;
             s.line((x - 4.0, y), (x + 4.0, y), &[a("stroke", "black")]);
             if c == 0 {

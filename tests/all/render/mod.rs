@@ -14,6 +14,7 @@
 //!   opens every page (a screenshot that is not blank, no console error).
 //! - `cli`: `orbitcnf report` and `decide --map` through the binary.
 
+mod cli;
 mod golden;
 mod numbers;
 mod tools;

@@ -8,13 +8,20 @@
 //!   values of the box as ticks; point `x_i` is a polyline through
 //!   `(c, x_{i,c})`, labelled `i` at both ends and drawn with a dash pattern
 //!   of its own. Integer points share many segments, so line `i` is shifted
-//!   by a few pixels (the same shift on every axis; the caption says so).
+//!   by a few pixels (the same shift on every axis; the subtitle says how far).
 //!
 //! Elements for machines: one `<g class="point" data-i data-x>` per orbit
 //! point in both layouts.
 
 use super::facts::OrbitFacts;
 use super::svg::{DASHES, FONT, GREY, Svg, a, an, label_every};
+
+/// Line colours of the parallel coordinates (Okabe and Ito's palette without
+/// its yellow, dark enough on white); with the dash patterns they tell 35
+/// lines apart, and the end labels name every line in any case.
+const INKS: [&str; 7] = [
+    "#000000", "#0072b2", "#d55e00", "#009e73", "#cc79a7", "#e69f00", "#56b4e9",
+];
 
 /// Radius of an orbit node in the plane layout.
 const NODE: f64 = 10.0;
@@ -195,38 +202,42 @@ fn parallel(o: &OrbitFacts, what: &str) -> String {
         .map(|(c, v)| o.orbit.iter().filter(|z| z[c] == v).count())
         .max()
         .unwrap_or(1) as f64;
-    let plot_h = (span * (11.0 * crowd + 24.0).max(90.0)).clamp(180.0, 900.0);
+    let unit = (11.0 * crowd + 24.0).max(110.0);
+    let plot_h = (span * unit).clamp(180.0, 900.0);
     let width = left + gap * (n - 1) as f64 + 90.0;
     let height = top + plot_h + 80.0;
     let x_of = |c: usize| left + gap * c as f64;
-    // Shift of line i: spread over ±6 px so that shared segments stay apart.
+    // Line i is shifted by shift(i), spread evenly over ±spread, so that
+    // segments shared by several points stay apart.
+    let spread = (plot_h / span * 0.12).clamp(3.0, 14.0);
     let shift = |i: usize| {
         if p == 1 {
             0.0
         } else {
-            -6.0 + 12.0 * i as f64 / (p - 1) as f64
+            -spread + 2.0 * spread * i as f64 / (p - 1) as f64
         }
     };
-    let y_of = |v: i64, i: usize| top + (hi - v) as f64 / span * plot_h + shift(i);
+    let base = |v: i64| top + (hi - v) as f64 / span * plot_h;
+    let y_of = |v: i64, i: usize| base(v) + shift(i);
     let title = format!("The orbit of period {p} in {what}, in parallel coordinates");
+    let words = format!("lines shifted ≤ {spread:.0} px apart");
     let desc = format!(
         "One vertical axis per coordinate (1 to {n}); point x_i is the polyline through its \
-         coordinates, labelled i at both ends; lines are shifted by up to 6 pixels so that \
-         shared segments stay apart."
+         coordinates, labelled i at both ends; {words}, so that shared segments stay apart."
     );
     let mut s = Svg::new(width, height, "orbit", &title, &desc);
     s.headline(
         width / 2.0,
         &format!("The orbit x_0, …, x_{} in {what}", p - 1),
-        "parallel coordinates: one polyline per point x_i (lines shifted ≤ 6 px apart)",
+        &format!("parallel coordinates: one polyline per point x_i ({words})"),
     );
     s.open("g", &[a("class", "axes")]);
     let every = label_every(plot_h / span);
     for (c, &(a_c, b_c)) in o.bounds.iter().enumerate() {
         let x = x_of(c);
         s.line(
-            (x, y_of(b_c, 0) + 6.0 - 10.0),
-            (x, y_of(a_c, 0) + 6.0 + 10.0),
+            (x, base(b_c) - spread - 8.0),
+            (x, base(a_c) + spread + 8.0),
             &[
                 a("class", "axis"),
                 a("data-axis", (c + 1).to_string()),
@@ -234,25 +245,15 @@ fn parallel(o: &OrbitFacts, what: &str) -> String {
             ],
         );
         for v in (a_c..=b_c).step_by(every) {
-            let y = y_of(v, 0) + 6.0;
+            let y = base(v);
             s.line((x - 4.0, y), (x + 4.0, y), &[a("stroke", "black")]);
-            if c == 0 {
-                s.label_with(
-                    x - 14.0,
-                    y + FONT / 3.0,
-                    "end",
-                    &v.to_string(),
-                    &[a("class", "tick")],
-                );
-            } else {
-                s.label_with(
-                    x + 7.0,
-                    y - 3.0,
-                    "start",
-                    &v.to_string(),
-                    &[a("class", "tick"), a("font-size", "9")],
-                );
-            }
+            s.label_with(
+                x + 6.0,
+                y - spread - 3.0,
+                "start",
+                &v.to_string(),
+                &[a("class", "tick"), a("font-size", "10")],
+            );
         }
         s.label(x, top + plot_h + 40.0, "middle", &format!("x_{}", c + 1));
     }
@@ -277,7 +278,7 @@ fn parallel(o: &OrbitFacts, what: &str) -> String {
             &[
                 a("points", pts.join(" ")),
                 a("fill", "none"),
-                a("stroke", "black"),
+                a("stroke", INKS[i % INKS.len()]),
                 a("stroke-width", "1.4"),
                 a("stroke-dasharray", DASHES[i % DASHES.len()]),
             ],
@@ -299,7 +300,7 @@ fn parallel(o: &OrbitFacts, what: &str) -> String {
             let v = z[c];
             let group: Vec<usize> = (0..p).filter(|&j| o.orbit[j][c] == v).collect();
             let rank = group.iter().position(|&j| j == i).unwrap_or(0) as f64;
-            let ly = y_of(v, 0) + 6.0 + (rank - (group.len() - 1) as f64 / 2.0) * 11.0;
+            let ly = base(v) + FONT / 3.0 + (rank - (group.len() - 1) as f64 / 2.0) * 11.0;
             let (ex, ey) = (x_of(c), y_of(v, i));
             let lx = ex + dx;
             s.line(
@@ -307,7 +308,13 @@ fn parallel(o: &OrbitFacts, what: &str) -> String {
                 (lx - dx.signum() * 3.0, ly - 3.0),
                 &[a("stroke", GREY), a("stroke-width", "0.5")],
             );
-            s.label_with(lx, ly, anchor, &i.to_string(), &[a("font-size", "10")]);
+            s.label_with(
+                lx,
+                ly,
+                anchor,
+                &i.to_string(),
+                &[a("font-size", "10"), a("fill", INKS[i % INKS.len()])],
+            );
         }
         s.close();
     }

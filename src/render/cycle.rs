@@ -13,7 +13,7 @@
 //! per pair.
 
 use super::facts::OrbitFacts;
-use super::svg::{DASHES, FONT, GREY, Svg, a, an, point_words};
+use super::svg::{DASHES, FONT, GREY, Svg, a, an, point_words, text_width};
 
 /// Radius of a node circle.
 const NODE: f64 = 11.0;
@@ -22,7 +22,11 @@ const NODE: f64 = 11.0;
 pub fn cycle(o: &OrbitFacts, what: &str) -> String {
     let p = o.period();
     let radius = (40.0 + 14.0 * p as f64).clamp(90.0, 230.0);
-    let width = 2.0 * radius + 160.0;
+    let headline = format!("Isometric {p}-cycle in {what}");
+    let subtitle = "chord {x_i, x_(i+k)} styled by ‖x_i − x_(i+k)‖∞ = g(k)";
+    let width = (2.0 * radius + 160.0)
+        .max(text_width(&headline) * 1.1 + 40.0)
+        .max(text_width(subtitle) + 40.0);
     let cx = width / 2.0;
     let cy = radius + 84.0;
     let mut values: Vec<i64> = o.profile.clone();
@@ -40,11 +44,7 @@ pub fn cycle(o: &OrbitFacts, what: &str) -> String {
         o.profile
     );
     let mut s = Svg::new(width, height, "cycle", &title, &desc);
-    s.headline(
-        cx,
-        &format!("Isometric {p}-cycle in {what}"),
-        "chord {x_i, x_(i+k)} styled by ‖x_i − x_(i+k)‖∞ = g(k)",
-    );
+    s.headline(cx, &headline, subtitle);
     let at = |i: usize| {
         let t = std::f64::consts::TAU * i as f64 / p as f64;
         (cx + radius * t.sin(), cy - radius * t.cos())

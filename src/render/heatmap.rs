@@ -11,7 +11,7 @@
 //! pair.
 
 use super::facts::{Metric, OrbitFacts};
-use super::svg::{FONT, Svg, a, an, label_every};
+use super::svg::{FONT, Svg, a, an, label_every, text_width};
 
 /// Grey of value `d` on a scale up to `top`: `#ffffff` for 0, `#404040` for `top`.
 fn grey(d: i64, top: i64) -> (String, bool) {
@@ -31,7 +31,6 @@ pub fn heatmap(o: &OrbitFacts, what: &str) -> String {
     let left = 70.0;
     let top_margin = 84.0;
     let side = cell * p as f64;
-    let width = left + side + 40.0;
     let legend_y = top_margin + side + 34.0;
     let height = legend_y + 40.0;
     let (quantity, name) = match o.metric {
@@ -40,15 +39,23 @@ pub fn heatmap(o: &OrbitFacts, what: &str) -> String {
     };
     let top = o.matrix.iter().flatten().copied().max().unwrap_or(0);
     let bottom = o.matrix.iter().flatten().copied().min().unwrap_or(0);
+    let headline = format!("Distances on the {p}-cycle in {what}");
+    let subtitle = format!("cell (i, j): {quantity}");
+    let values = {
+        let mut v: Vec<i64> = o.matrix.iter().flatten().copied().collect();
+        v.sort_unstable();
+        v.dedup();
+        v.len()
+    };
+    let width = (left + side + 40.0)
+        .max(text_width(&headline) * 1.1 + 40.0)
+        .max(text_width(&subtitle) + 40.0)
+        .max(left + 60.0 + 44.0 * values as f64);
     let title = format!("The {name} of the {p}-cycle in {what}");
     let desc =
         format!("A {p} by {p} matrix; cell (i, j) holds {quantity}, from {bottom} to {top}.");
     let mut s = Svg::new(width, height, "distances", &title, &desc);
-    s.headline(
-        width / 2.0,
-        &format!("Distances on the {p}-cycle in {what}"),
-        &format!("cell (i, j): {quantity}"),
-    );
+    s.headline(width / 2.0, &headline, &subtitle);
     let every = label_every(cell);
     // Column axis on top, row axis on the left.
     s.label(left + side / 2.0, top_margin - 24.0, "middle", "j");

@@ -14,7 +14,7 @@
 //! point in both layouts.
 
 use super::facts::OrbitFacts;
-use super::svg::{DASHES, FONT, GREY, Svg, a, an, label_every};
+use super::svg::{DASHES, FONT, GREY, Svg, a, an, label_every, text_width};
 
 /// Line colours of the parallel coordinates (Okabe and Ito's palette without
 /// its yellow, dark enough on white); with the dash patterns they tell 35
@@ -56,13 +56,11 @@ fn plane(o: &OrbitFacts, what: &str, domain: Option<&[Vec<i64>]>) -> String {
         "The points of the domain as dots, the {p} orbit points numbered in orbit order, \
          an arrow from each x_i to x_(i+1)."
     );
-    let mut s = Svg::new(width.max(300.0), height, "orbit", &title, &desc);
+    let headline = format!("The orbit x_0, …, x_{} in {what}", p - 1);
+    let width = width.max(300.0).max(text_width(&headline) * 1.1 + 40.0);
+    let mut s = Svg::new(width, height, "orbit", &title, &desc);
     s.defs();
-    s.headline(
-        width.max(300.0) / 2.0,
-        &format!("The orbit x_0, …, x_{} in {what}", p - 1),
-        "arrows: x_i ↦ x_(i+1) = f(x_i)",
-    );
+    s.headline(width / 2.0, &headline, "arrows: x_i ↦ x_(i+1) = f(x_i)");
     // Axes with ticks.
     let every1 = label_every(step);
     let base = y_of(lo2) + 24.0;

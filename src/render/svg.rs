@@ -278,6 +278,12 @@ pub fn pretty(s: &str) -> String {
     out
 }
 
+/// About how wide `text` is at [`FONT`] in a serif face (bold: add a tenth),
+/// for making room: 0.56 em per character.
+pub fn text_width(text: &str) -> f64 {
+    text.chars().count() as f64 * FONT * 0.56
+}
+
 /// Stroke dash patterns, one per series, so lines differ without colour.
 pub const DASHES: [&str; 5] = ["none", "6 3", "2 3", "8 3 2 3", "1 5"];
 

@@ -12,7 +12,7 @@
 use std::io::Write as _;
 use std::path::Path;
 
-use orbitcnf::render::{self, Format};
+use orbitcnf::render::{self, Format, Picture};
 
 use super::{ANSWERS, SPECTRA, load, outputs};
 
@@ -90,4 +90,33 @@ fn the_same_input_gives_the_same_bytes() {
             }
         }
     }
+}
+
+/// The README's pictures (`docs/report/`) are the outputs of the README's
+/// commands; those inputs are `answer-n3-p8.json` and, for the strip, the
+/// same periods as a sweep (`sweep-n3.json`), so the pictures are regenerated
+/// and checked with the golden files.
+#[test]
+fn the_readme_pictures_are_current() {
+    let dir = Path::new("docs/report");
+    let mut stale = Vec::new();
+    for (input, picture) in [
+        ("answer-n3-p8.json", Picture::Cycle),
+        ("answer-n3-p8.json", Picture::Distances),
+        ("answer-n3-p8.json", Picture::Orbit),
+        ("sweep-n3.json", Picture::Spectrum),
+    ] {
+        let svg = render::render(&load(input), Format::Svg, Some(picture)).expect("renders");
+        let file = dir.join(format!("{}.svg", picture.name()));
+        if bless() {
+            std::fs::write(&file, &svg).expect("README picture written");
+        } else if std::fs::read_to_string(&file).ok().as_deref() != Some(svg.as_str()) {
+            stale.push(file.display().to_string());
+        }
+    }
+    assert!(
+        stale.is_empty(),
+        "README pictures differ from the outputs of their inputs: {stale:?}; run \
+         `ORBITCNF_BLESS=1 cargo test --release --test all render::`"
+    );
 }

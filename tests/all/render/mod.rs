@@ -4,7 +4,8 @@
 //! (`decide --json`, `decide --bundle`, `spectrum --store`, `spectrum
 //! --json`); `tests/render/README.md` lists the commands.
 //!
-//! - `golden`: every LaTeX and SVG output against `tests/golden/render/`
+//! - `golden`: every LaTeX and SVG output against `tests/golden/render/`, the
+//!   README's pictures against `docs/report/`
 //!   (regenerate with `ORBITCNF_BLESS=1 cargo test --release --test all render::`),
 //!   and the same input rendered twice gives the same bytes.
 //! - `numbers`: the numbers in every output equal those of the JSON it came

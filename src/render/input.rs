@@ -1,7 +1,7 @@
 //! The report's own, tolerant model of its inputs.
 //!
 //! A report reads three kinds of input: one answer (`decide --json`, a
-//! stored answer file, `check --json`, or a plain orbit file), a certificate
+//! stored answer file, or an orbit file such as `decide --map-out` writes), a certificate
 //! bundle folder (`decide --bundle`), and a results store folder (`spectrum
 //! --store`), or the JSON of a whole sweep. It does not deserialise the
 //! crate's own report, bundle or store types: those change as the evidence
@@ -37,8 +37,8 @@ pub type MapPairs = Vec<(Vec<i64>, Vec<i64>)>;
 /// Where an input came from: decides the re-check commands a report shows.
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub enum Origin {
-    /// One JSON file: a `decide --json` answer, a stored answer, a `check
-    /// --json` result, an orbit file or a sweep's JSON.
+    /// One JSON file: a `decide --json` answer, a stored answer, an orbit
+    /// file or a sweep's JSON.
     File(PathBuf),
     /// A certificate bundle folder.
     Bundle(PathBuf),
@@ -491,14 +491,19 @@ fn answer_from_value(v: &Value, origin: &str) -> Result<Answer> {
     let profile = v
         .get("profile")
         .or_else(|| v.pointer("/check/profile"))
-        .or_else(|| v.pointer("/orbit_check/profile"))
         .and_then(Value::as_array)
         .map(|a| a.iter().filter_map(Value::as_i64).collect());
     let verdict = match verdict_of(v.get("verdict"), origin)? {
         Some(verdict) => verdict,
-        // An orbit file or a check result states no verdict: its orbit is
-        // re-checked before anything is drawn, so "feasible" is earned there.
-        None if orbit.is_some() || v.get("orbit_check").is_some() => Verdict::Feasible,
+        // An orbit file states no verdict: its orbit is re-checked before
+        // anything is drawn, so "feasible" is earned there.
+        None if orbit.is_some() => Verdict::Feasible,
+        None if v.get("orbit_check").is_some() => {
+            return Err(bad(
+                origin,
+                "a check result carries no orbit; report the orbit file or the answer that was checked",
+            ));
+        }
         None => {
             return Err(bad(
                 origin,

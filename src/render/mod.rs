@@ -2,8 +2,8 @@
 //!
 //! # Inputs
 //!
-//! [`input::load`] reads a `decide --json` answer (or a stored answer, a
-//! `check --json` result, an orbit file, a sweep's JSON), a certificate
+//! [`input::load`] reads a `decide --json` answer (or a stored answer, an
+//! orbit file, a sweep's JSON), a certificate
 //! bundle folder, or a results store folder, through the report's own
 //! tolerant model ([`input`]); nothing here deserialises the crate's report,
 //! bundle or store types, so those can change without breaking reports.

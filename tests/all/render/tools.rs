@@ -279,3 +279,70 @@ fn chromium_opens_every_page_without_console_errors() {
         started.elapsed().as_secs_f64()
     ));
 }
+
+/// Text from an input with every character TeX, XML and HTML treat
+/// specially, and characters no font here has.
+const HOSTILE: &str = "a_b^c {x} 100% & $5 #1 ~ \\ | < > \" ' → ‖x‖∞ ≤ · – — ℵ 𝔽 \u{7} </script><script>alert(1)</script> ]]> &amp;";
+
+#[test]
+fn hostile_text_is_escaped_in_every_format() {
+    let dir = TestDir::new();
+    let answer = serde_json::json!({
+        "verdict": "infeasible",
+        "question": {"dim": 2, "grid": "-1..1,-1..1", "period": 5},
+        "statement": HOSTILE,
+        "certificate": {"kind": "solver-claim", "solver": HOSTILE},
+    });
+    let file = dir.write("hostile.json", answer.to_string());
+    let loaded = orbitcnf::render::input::load(&file).expect("loads");
+    let html = orbitcnf::render::render(&loaded, Format::Html, None).expect("a page");
+    assert!(!html.contains("<script>"), "unescaped HTML");
+    assert!(
+        html.contains("&lt;&#x2f;script&gt;") || html.contains("&lt;/script&gt;"),
+        "{html}"
+    );
+    assert!(html.contains("UNCHECKED"), "the solver's claim is marked");
+    let tex = orbitcnf::render::render(&loaded, Format::Latex, None).expect("a document");
+    assert!(
+        tex.contains("unchecked claim"),
+        "the solver's claim is marked"
+    );
+    if have_tool("pdflatex") {
+        let path = dir.write("hostile.tex", &tex);
+        let run = Command::new("pdflatex")
+            .args([
+                "-interaction=nonstopmode",
+                "-halt-on-error",
+                "-no-shell-escape",
+            ])
+            .arg(path.file_name().expect("a file"))
+            .current_dir(dir.root())
+            .stdin(Stdio::null())
+            .output()
+            .expect("pdflatex runs");
+        let log = String::from_utf8_lossy(&run.stdout);
+        assert!(
+            run.status.success(),
+            "pdflatex rejected hostile text:\n{log}"
+        );
+    }
+    // Pictures take no free text from an input (their labels are numbers and
+    // the domain's name); an orbit file on a point set, with its map and no
+    // verdict, renders as well-formed XML.
+    let mut point =
+        serde_json::json!({"points": [[0, 0], [0, 3], [2, 0], [2, 1], [2, 3]], "period": 3});
+    point["orbit"] = serde_json::json!([[0, 3], [2, 1], [2, 3]]);
+    point["map"] = serde_json::json!([
+        [[0, 0], [0, 3]],
+        [[0, 3], [2, 1]],
+        [[2, 0], [2, 3]],
+        [[2, 1], [2, 3]],
+        [[2, 3], [0, 3]]
+    ]);
+    let file = dir.write("pier.json", point.to_string());
+    let loaded = orbitcnf::render::input::load(&file).expect("loads");
+    for pic in [Picture::Cycle, Picture::Distances, Picture::Orbit] {
+        let svg = orbitcnf::render::render(&loaded, Format::Svg, Some(pic)).expect("renders");
+        roxmltree::Document::parse(&svg).expect("well-formed");
+    }
+}

@@ -551,7 +551,9 @@ pub fn recheck_answer(a: &Answer, origin: &Origin) -> Vec<(String, String)> {
                     .into(),
             ));
         }
-        _ if a.verdict == Verdict::Infeasible => {
+        // Only a proof that was kept can be checked again; a solver's claim
+        // or a proof checked in memory is re-decided below instead.
+        _ if a.verdict == Verdict::Infeasible && a.evidence.file.is_some() => {
             let mut enc = vec!["orbitcnf".into(), "encode".into()];
             enc.extend(domain_flags(q));
             enc.extend(["--period".into(), q.period.to_string()]);
@@ -561,11 +563,7 @@ pub fn recheck_answer(a: &Answer, origin: &Origin) -> Vec<(String, String)> {
                 command(&enc),
                 format!("rebuilds the CNF that was refuted{with_points}"),
             ));
-            let proof = a
-                .evidence
-                .file
-                .clone()
-                .unwrap_or_else(|| "PROOF.lrat".into());
+            let proof = a.evidence.file.clone().unwrap_or_default();
             out.push((
                 command(&[
                     "orbitcnf".into(),

@@ -129,6 +129,16 @@ pub enum Error {
     #[error("decoding the model: {0}")]
     Decode(String),
 
+    /// A report, table or picture cannot be made from its input: `what` is
+    /// the output asked for, `reason` what the input lacks or contradicts.
+    #[error("cannot make {what}: {reason}")]
+    Render {
+        /// The output asked for (`the cycle picture`, `the LaTeX report`, …).
+        what: String,
+        /// Why not.
+        reason: String,
+    },
+
     /// An external solver misbehaved; its answer was not used.
     #[error("external solver `{command}`: {failure}")]
     ExternalSolver {

@@ -1,7 +1,7 @@
 //! `decide`, `encode` and `decode`: one question, solved here or elsewhere.
 
 use std::io::{Read, Write};
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 use std::time::Duration;
 
 use clap::Args;
@@ -9,7 +9,7 @@ use clap::Args;
 use orbitcnf::decide::{self, BundleOutcome, Outputs, Request};
 use orbitcnf::proof::LratFormat;
 use orbitcnf::solve::Limits;
-use orbitcnf::{Error, dimacs, encode};
+use orbitcnf::{Error, Report, dimacs, encode};
 
 use super::args::{
     CertifyArgs, EncodingArgs, ProgressArgs, QuestionArgs, ScaleArgs, parse_seconds,
@@ -50,6 +50,16 @@ pub struct DecideArgs {
     /// unchecked verdict writes nothing.
     #[arg(long, value_name = "DIR", conflicts_with = "no_certify")]
     bundle: Option<PathBuf>,
+    /// Also print the explicit map of a feasible answer: the nonexpansive
+    /// extension f of the orbit's shift on the whole grid (topical: the
+    /// topical extension; --points: the map found), checked by exhaustion,
+    /// as `check --map` prints it; in JSON under "explicit_map".
+    #[arg(long)]
+    map: bool,
+    /// With --map: write the map as JSON to FILE (as `check --map-out` does)
+    /// instead of printing it.
+    #[arg(long, value_name = "FILE", requires = "map")]
+    map_out: Option<PathBuf>,
     #[command(flatten)]
     certify: CertifyArgs,
     #[command(flatten)]
@@ -87,8 +97,47 @@ pub fn run_decide(a: DecideArgs) -> Outcome {
         }
         BundleOutcome::NotWritten(why) => eprintln!("no bundle written: {why}"),
     }
-    print_either(a.json, || d.report.to_json(), || d.report.to_text())?;
+    if a.map {
+        let mut json = serde_json::to_value(&d.report).expect("reports serialise");
+        let mut text = d.report.to_text();
+        decide_map(a.map_out.as_deref(), &d.report, &mut json, &mut text)?;
+        print_either(a.json, || json.to_string(), || text)?;
+    } else {
+        print_either(a.json, || d.report.to_json(), || d.report.to_text())?;
+    }
     Ok(code(d.report.exit_code()))
+}
+
+/// `decide --map`: the explicit map of a feasible answer, added to the JSON
+/// and the text, or written to `out`.
+fn decide_map(
+    out: Option<&Path>,
+    report: &Report,
+    json: &mut serde_json::Value,
+    text: &mut String,
+) -> Result<(), Error> {
+    let Some(m) = orbitcnf::render::facts::report_map(report)? else {
+        if report.orbit.is_some() {
+            text.push_str(&format!(
+                "map          not built: the box has more than {} points\n",
+                orbitcnf::verify::MAP_CHECK_LIMIT
+            ));
+        }
+        return Ok(());
+    };
+    let orbit = report.orbit.as_deref().unwrap_or_default();
+    let doc = m.to_json(&report.question.grid, report.question.class, orbit);
+    match out {
+        Some(path) => {
+            orbitcnf::artifact::write_atomically(path, (doc.to_string() + "\n").as_bytes())?;
+            eprintln!("map written to {}", path.display());
+        }
+        None => {
+            json["explicit_map"] = doc;
+            text.push_str(&m.to_text());
+        }
+    }
+    Ok(())
 }
 
 /// Arguments of `encode`.

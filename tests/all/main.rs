@@ -9,6 +9,7 @@
 //! - `instances`: one generated test per file in `instances/` (see `build.rs`).
 //! - `points`: finite domains that are not boxes (full-map formulation).
 //!
+//! - `render`: reports in LaTeX, SVG and HTML, read by pdflatex, resvg and Chromium.
 //! - `topical`: the topical map class (`--class topical`), published bound and brute force.
 //!
 //! No verdict is trusted alone: every feasible answer's orbit is verified.
@@ -21,6 +22,7 @@ mod instances;
 mod points;
 mod proofs;
 mod published;
+mod render;
 mod scaleout;
 mod spectrum;
 mod topical;

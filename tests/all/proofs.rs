@@ -56,7 +56,8 @@ fn encode(dir: &TestDir, grid: &str, dim: &str, p: usize, out: &str) {
 fn infeasible_answers_of_published_cases_carry_checked_proofs() {
     // Periods 9..12 on {-1,0,1}^3 exceed 2^3 = 8, the bound proven for n = 3
     // (R. Lyons and R. D. Nussbaum, 1992 [recalled]); p = 5 on {0,1,2,3}^2
-    // exceeds 2^2 (R. D. Nussbaum, Israel J. Math. 76 (1991)).
+    // exceeds max_k 2^k·C(2,k) = 4 (B. Lemmens and M. Scheutzow, Ergodic
+    // Theory Dynam. Systems 25 (2005) [paper]), as in published.rs.
     let dir = TestDir::new();
     for (grid, dim, p) in [
         ("-1..1", "3", 9),

@@ -296,7 +296,7 @@ fn n4_periods_above_the_bound_are_infeasible_on_minus1_0_1_cube() {
 /// about two minutes of solving on 2 cores, so run on purpose:
 /// `cargo test --release -- --ignored every_n4_period_above`.
 #[test]
-#[ignore]
+#[ignore = "about two minutes of solving on 2 cores; run on purpose"]
 fn every_n4_period_above_the_bound_is_infeasible_on_minus1_0_1_cube() {
     let dir = TestDir::new();
     for p in ls_bound(4) + 1..=81 {

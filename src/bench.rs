@@ -190,20 +190,21 @@ pub fn run_case(case: &Case, limit: Duration, baselines: bool) -> Result<Row> {
             conflicts: r.stats.solve.conflicts,
             clauses: r.stats.size.clauses,
         };
-        if let Some(first) = runs.iter().find(|x| x.verdict != Verdict::Unknown) {
-            if run.verdict != Verdict::Unknown && run.verdict != first.verdict {
-                return Err(Error::Solver {
-                    solver: "bench".into(),
-                    reason: format!(
-                        "{}: encoding {} says {} but {} says {}",
-                        case.name,
-                        first.encoding,
-                        first.verdict.word(),
-                        run.encoding,
-                        run.verdict.word()
-                    ),
-                });
-            }
+        if let Some(first) = runs.iter().find(|x| x.verdict != Verdict::Unknown)
+            && run.verdict != Verdict::Unknown
+            && run.verdict != first.verdict
+        {
+            return Err(Error::Solver {
+                solver: "bench".into(),
+                reason: format!(
+                    "{}: encoding {} says {} but {} says {}",
+                    case.name,
+                    first.encoding,
+                    first.verdict.word(),
+                    run.encoding,
+                    run.verdict.word()
+                ),
+            });
         }
         runs.push(run);
     }

@@ -254,7 +254,7 @@ pub fn parse_seconds(s: &str) -> Result<Duration, String> {
     let v: f64 = s
         .parse()
         .map_err(|_| format!("{s:?} is not a number of seconds"))?;
-    if !(v > 0.0) || v.is_nan() {
+    if v.is_nan() || v <= 0.0 {
         return Err(format!(
             "the time limit must be a positive number of seconds, got {s}"
         ));

@@ -211,12 +211,12 @@ pub fn run_cube(
             m.cubes.len().saturating_sub(1)
         ))
     })?;
-    if !force {
-        if let Ok(Some(r)) = read_result(dir, index) {
-            if r.status.is_final() && r.cube_sha256 == entry.file.sha256 {
-                return Ok(RunOutcome::AlreadyDone(r));
-            }
-        }
+    if !force
+        && let Ok(Some(r)) = read_result(dir, index)
+        && r.status.is_final()
+        && r.cube_sha256 == entry.file.sha256
+    {
+        return Ok(RunOutcome::AlreadyDone(r));
     }
     let bytes = entry.file.read_checked(dir, MANIFEST)?;
     let results = dir.join(RESULTS_DIR);

@@ -201,7 +201,7 @@ pub const CITE_LS: &str = "B. Lemmens and M. Scheutzow, On the dynamics of sup-n
 /// The case n ≤ 3 with its source (recalled, not read).
 pub const CITE_LN: &str = "R. Lyons and R. D. Nussbaum, On transitive and commutative finite groups of \
      isometries, in Fixed Point Theory and Applications, World Scientific, 1992 [recalled]";
-/// The topical bound with its source (read, as recorded in MATH.md §7).
+/// The topical bound with its source (read, as recorded in docs/math.md §7).
 pub const CITE_LS_TOPICAL: &str = "B. Lemmens and M. Scheutzow, On the dynamics of sup-norm non-expansive maps, \
      Ergodic Theory Dynam. Systems 25 (2005) 861–871, proving a conjecture of J. Gunawardena and C. Sparrow";
 /// The prime-period theorem with its source (recalled, not read).
@@ -458,14 +458,15 @@ mod tests {
 
     #[test]
     fn bound_values_match_the_table_in_lemmens_scheutzow_2005() {
-        // Values for n = 1..8 as tabulated in MATH.md from the formula of the paper.
+        // Values for n = 1..8 from the formula of the paper (docs/math.md §6).
         let got: Vec<u128> = (1..=8).map(lemmens_scheutzow_bound).collect();
         assert_eq!(got, vec![2, 4, 12, 32, 80, 240, 672, 1792]);
     }
 
     #[test]
     fn topical_bound_values_match_the_table_in_math_md() {
-        // C(n, ⌊n/2⌋) for n = 1..8 (Lemmens and Scheutzow 2005; values as in MATH.md §7).
+        // C(n, ⌊n/2⌋) for n = 1..8 (Lemmens and Scheutzow 2005; values as in
+        // docs/math.md §7).
         let got: Vec<u128> = (1..=8).map(topical_bound).collect();
         assert_eq!(got, vec![1, 2, 3, 6, 10, 20, 35, 70]);
     }

@@ -13,7 +13,7 @@
 //!
 //! On `{−1,0,1}^n` with `t = 1` the windows are the `2^n` corner boxes
 //! `Π_c {0, v_c}`, `m_1(z) = 2^{#zeros of z}`, and the bound is the subcube
-//! packing `Σ_i 2^{−#nonzeros(x_i)} ≤ 1` (MATH.md §4). It is implied by the
+//! packing `Σ_i 2^{−#nonzeros(x_i)} ≤ 1` (docs/math.md §4). It is implied by the
 //! other clauses, but a CDCL solver cannot find it: without it "17 points
 //! pairwise at distance 2 in `{−1,0,1}^4`" needs a pigeonhole refutation.
 //!

@@ -1155,7 +1155,7 @@ fn check_refuses_bad_orbit_files() {
 }
 
 /// `bench --spectrum` sweeps {−1,0,1}^4 and reports its figures: p ≤ 16 by
-/// construction (every p ≤ 2^n occurs, MATH.md §5), the other 16 periods by
+/// construction (every p ≤ 2^n occurs, docs/math.md §5), the other 16 periods by
 /// the solver with checked proofs, nothing unknown or uncertified. Among
 /// those 16, the primes 17, 19, 23, 29, 31 are excluded by the prime-period
 /// theorem [recalled]; the composites are this tool's own computation.

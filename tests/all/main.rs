@@ -8,6 +8,7 @@
 //!   PicoSAT, read back by `decode`.
 //! - `instances`: one generated test per file in `instances/` (see `build.rs`).
 //! - `points`: finite domains that are not boxes (full-map formulation).
+//! - `mathdoc`: every `docs/math.md §n` cited in the repository exists there.
 //!
 //! - `render`: reports in LaTeX, SVG and HTML, read by pdflatex, resvg and Chromium.
 //! - `topical`: the topical map class (`--class topical`), published bound and brute force.
@@ -19,6 +20,7 @@ mod brute;
 mod cli;
 mod external;
 mod instances;
+mod mathdoc;
 mod points;
 mod proofs;
 mod published;

@@ -4,7 +4,7 @@
 //!
 //! - On every box with n ≤ 2 and sides ≤ 3, the full-map formulation and the
 //!   cycle formulation give the same verdict for every period; on a box they
-//!   answer the same question (the cycle extends to the box, MATH.md §2,
+//!   answer the same question (the cycle extends to the box, docs/math.md §2,
 //!   restated in `encodings/isometric-cycle.md`), so a disagreement would be
 //!   a bug in one of them. The cycle verdicts are also compared with
 //!   `brute::find_cycle`.
@@ -38,9 +38,8 @@ use crate::util::{
     dist, orbit_of,
 };
 
-/// The corners of {−2,2}^2 plus (0,1): the example of the project notes
-/// (MATH.md §2), where isometric 3- and 4-cycles exist but maps have only
-/// periods 1 and 2.
+/// The corners of {−2,2}^2 plus (0,1): the example of docs/math.md §2.3,
+/// where isometric 3- and 4-cycles exist but maps have only periods 1 and 2.
 pub const NOTES_FIVE: &[&[i64]] = &[&[-2, -2], &[-2, 2], &[2, -2], &[2, 2], &[0, 1]];
 
 /// "Two jetties" of a made-up harbour: a left jetty (0,1), (1,2), (1,3) and a
@@ -160,7 +159,7 @@ fn decide_checked(q: &Question, options: &EncodeOptions, certify: bool, context:
         let map = report.map.as_ref().expect("a full-map report has the map");
         let domain = q.domain().points().to_vec();
         assert_self_map(&domain, map, orbit, q.period, context);
-        // An orbit of a nonexpansive map is an isometric cycle (MATH.md §1).
+        // An orbit of a nonexpansive map is an isometric cycle (docs/math.md §1).
         assert_isometric_cycle(q.grid.ranges(), orbit, q.period, context);
     }
     report

@@ -404,8 +404,8 @@ fn spectrum_reports_a_stored_contradiction_naming_both_runs() {
 // Expected answers: every period of a topical map on R^n is at most
 // C(n, ⌊n/2⌋) (B. Lemmens and M. Scheutzow, Ergodic Theory Dynam. Systems 25
 // (2005) 861–871, proving the Gunawardena–Sparrow conjecture [paper, per
-// MATH.md §7]), and every period up to it occurs on the middle layer of a unit
-// cube [derived]. So on {0,1}^4 the topical periods are exactly 1..6 and on
+// docs/math.md §7]), and every period up to it occurs on the middle layer of a
+// unit cube [derived]. So on {0,1}^4 the topical periods are exactly 1..6 and on
 // {0,1,2}^3 exactly 1..3; the default sweep goes one period further. The
 // orbits are checked here by `topical::assert_topical_cycle` (no crate code)
 // and by the crate's topical check; the proofs by `verify-proof` against a

@@ -60,7 +60,10 @@ listed by index (rerun them with run-cube, or get the list with --pending).
 
 Exit codes (the SAT convention):
   10  feasible (the orbit is printed and checked)
-  20  infeasible (every cube refuted and the cubes cover the space)
+  20  infeasible (every cube refuted with a checked proof, and the cubes cover
+      the space)
+  21  infeasible on a solver's unchecked word for some cube (only with
+      --trust-solver)
    0  unknown: some cube has no usable result (or --pending)
    1  error: the split folder is damaged or from another orbitcnf version";
 
@@ -126,7 +129,7 @@ pub struct RunCubeArgs {
     #[arg(long)]
     force: bool,
     /// With the bundled solver: the encoding of the cube's LRAT proof in
-    /// results/, text or binary (about half the size).
+    /// results/, text or binary (about 45% of the size).
     #[arg(long, value_name = "ENC", default_value = "text")]
     proof_encoding: LratFormat,
     /// Print the result as JSON.

@@ -40,7 +40,7 @@ pub struct DecideArgs {
     #[arg(long, value_name = "FILE", conflicts_with = "no_certify")]
     drat: Option<PathBuf>,
     /// The encoding of the LRAT proof written with --proof or --bundle:
-    /// text, or binary (about half the size, written and checked faster).
+    /// text, or binary (about 45% of the size, written and checked faster).
     #[arg(long, value_name = "ENC", default_value = "text")]
     proof_encoding: LratFormat,
     /// Write a certificate bundle to DIR: manifest.json, formula.cnf and

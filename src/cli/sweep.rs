@@ -32,7 +32,7 @@ The results store (--store DIR, default ./orbitcnf-results):
                            proof path and SHA-256, statistics, limits, tool
                            version, run id, start and finish times
   DIR/proofs/<key>.<run>.lrat   the LRAT proofs of infeasible answers
-                           (they can be large: about 3 GB for all of {-1,0,1}^4)
+                           (text LRAT; about 60 MB for all of {-1,0,1}^4)
   <key> is the SHA-256 of question, resolved encoding options and formulation.
   Every file is written to a temporary file, fsynced and renamed into place, so
   a sweep killed at any moment keeps every answer it completed; run the same
@@ -58,9 +58,10 @@ each row with its stored answer); --csv one line per period after a header;
 Progress (--progress MODE): on a terminal one line redrawn in place; with
 --progress lines, for batch and cluster logs, one timestamped line on stderr
 for every decided period and a status line every 30 s:
-  orbitcnf: progress: 2025-01-31T23:59:59Z spectrum {-1,0,1}^4: p=17 infeasible
-  (solver, 12.3 s); 17/32 periods decided (...), 2 running: p=18 (40.0 s,
-  120000 conflicts), ...
+  orbitcnf: progress: 2026-12-03T03:12:31Z spectrum {-1,0,1}^4: p=17 infeasible
+  (solver, 0.47 s); 17/32 periods decided (16 feasible, 1 infeasible, 0 unknown),
+  1 running: p=18 (0.52 s, 767 conflicts), 0.78 s elapsed, ≈ 3.55 s left
+(one line each; here broken for the width).
 By default (auto) nothing is written when stderr is not a terminal.
 
 Exit codes:

@@ -116,6 +116,15 @@ pub enum Error {
     #[error("decoding the model: {0}")]
     Decode(String),
 
+    /// A real-space certificate does not fit its question (another skeleton,
+    /// another question, a missing part).
+    #[error("certificate rejected: {0}")]
+    Certificate(String),
+
+    /// A theory lemma of a real-space certificate was rejected by the Farkas checker.
+    #[error("lemma rejected: {0}")]
+    Farkas(#[from] crate::real::farkas_check::FarkasError),
+
     /// An external solver misbehaved; its answer was not used.
     #[error("external solver `{command}`: {failure}")]
     ExternalSolver {

@@ -31,6 +31,7 @@ pub mod orbit_file;
 pub mod points;
 pub mod proof;
 pub mod question;
+pub mod real;
 pub mod report;
 pub mod solve;
 pub mod spectrum;

@@ -1,0 +1,1 @@
+//! Measurements of the real-space decision (filled in below).

@@ -1,0 +1,259 @@
+//! Periods over all of R^n, with no grid: exact decisions with certificates.
+//!
+//! The question ([`decide`]): does `(R^n, ‖·‖∞)` hold an isometric p-cycle,
+//! i.e. does some subset of R^n carry a sup-norm nonexpansive map with a
+//! point of minimal period `p` (`/work/shared/MATH.md` §1, §10;
+//! `encodings/real-space.md`)?
+//!
+//! * [`skeleton`]: the propositional abstraction (which coordinate and sign
+//!   attains each pair's distance), with sound redundant clauses and
+//!   symmetry breaks (formulation [`skeleton::FORMULATION`]).
+//! * [`theory`] and [`lp`]: exact linear arithmetic: difference constraints
+//!   per coordinate under a candidate profile, negative cycles as cuts, and
+//!   an exact simplex over the profile; conflicts come with Farkas
+//!   multipliers.
+//! * [`sat`]: a CDCL(T) core that learns from both, and logs LRAT.
+//! * [`certificate`] and [`farkas_check`]: the certificate of an infeasible
+//!   answer and its checkers, which share nothing with the search.
+//!
+//! A feasible answer is an integer orbit (MATH.md §10: rational profile,
+//! scaled to integers; shortest-path potentials per coordinate), checked by
+//! [`crate::verify::check_orbit`]. An infeasible answer is returned only
+//! after [`certificate::check_dir`] has accepted the certificate, unless
+//! certification is switched off, in which case it says so.
+
+pub mod bench;
+pub mod certificate;
+pub mod farkas_check;
+pub mod lp;
+pub mod prooflog;
+pub mod sat;
+pub mod skeleton;
+pub mod theory;
+
+#[cfg(test)]
+mod tests;
+
+use std::path::{Path, PathBuf};
+use std::time::{Duration, Instant};
+
+use serde::Serialize;
+
+use crate::error::{Error, Result};
+use crate::varmap::Meaning;
+use crate::verify::{OrbitCheck, check_orbit};
+pub use certificate::CertificateCheck;
+pub use sat::{Progress, SatStats};
+pub use skeleton::SkeletonOptions;
+pub use theory::TheoryStats;
+
+/// Options of [`decide`].
+#[derive(Clone, Debug, Default)]
+pub struct RealOptions {
+    /// Which optional skeleton families to use.
+    pub skeleton: SkeletonOptions,
+    /// Write and check a certificate for an infeasible answer. Default `true`
+    /// (see [`RealOptions::new`]); without it an infeasible answer is the
+    /// search's unchecked claim.
+    pub certify: bool,
+    /// Where to keep the certificate; `None` checks it in a temporary directory and drops it.
+    pub certificate_dir: Option<PathBuf>,
+}
+
+impl RealOptions {
+    /// Default skeleton, certification on, no kept certificate.
+    pub fn new() -> RealOptions {
+        RealOptions {
+            skeleton: SkeletonOptions::default(),
+            certify: true,
+            certificate_dir: None,
+        }
+    }
+}
+
+/// The answer of [`decide`].
+#[derive(Clone, Debug, Serialize)]
+pub enum RealAnswer {
+    /// An isometric p-cycle in Z^n ⊂ R^n, checked by [`check_orbit`].
+    Feasible {
+        /// The points, each coordinate in `0..=max D`.
+        orbit: Vec<Vec<i64>>,
+        /// The independent check.
+        check: OrbitCheck,
+    },
+    /// No isometric p-cycle in R^n.
+    Infeasible {
+        /// The certificate check, or `None` when certification was off (the
+        /// search's claim only).
+        check: Option<CertificateCheck>,
+        /// Where the certificate was kept, if it was.
+        dir: Option<PathBuf>,
+    },
+    /// No answer, with the reason.
+    Unknown {
+        /// Why.
+        reason: String,
+    },
+}
+
+/// A decision with its figures.
+#[derive(Clone, Debug, Serialize)]
+pub struct RealReport {
+    /// Dimension.
+    pub n: usize,
+    /// Period.
+    pub p: usize,
+    /// The answer.
+    pub answer: RealAnswer,
+    /// Search counters.
+    pub sat: SatStats,
+    /// Theory counters.
+    pub theory: TheoryStats,
+    /// Lemmas found.
+    pub lemmas: usize,
+    /// Seconds of search.
+    pub search_seconds: f64,
+    /// Seconds writing and checking the certificate.
+    pub check_seconds: f64,
+}
+
+/// Decides whether `(R^n, ‖·‖∞)` holds an isometric p-cycle.
+///
+/// `time` bounds the search; `progress` is called about once a second.
+///
+/// # Errors
+/// [`Error::Question`] for sizes out of range; [`Error::Check`] if a
+/// feasible orbit fails the independent check; certificate errors if the
+/// search's own certificate is rejected (never an answer then); I/O errors.
+pub fn decide(
+    n: usize,
+    p: usize,
+    options: &RealOptions,
+    time: Option<Duration>,
+    progress: &mut dyn FnMut(&Progress),
+) -> Result<RealReport> {
+    let t0 = Instant::now();
+    let mut report = RealReport {
+        n,
+        p,
+        answer: RealAnswer::Unknown {
+            reason: String::new(),
+        },
+        sat: SatStats::default(),
+        theory: TheoryStats::default(),
+        lemmas: 0,
+        search_seconds: 0.0,
+        check_seconds: 0.0,
+    };
+    if p == 1 && (1..=skeleton::MAX_DIM).contains(&n) {
+        let orbit = vec![vec![0; n]];
+        let check = check_orbit(&vec![(0, 0); n], &orbit)?;
+        report.answer = RealAnswer::Feasible { orbit, check };
+        return Ok(report);
+    }
+    let sk = skeleton::build(n, p, &options.skeleton)?;
+    let mut atom = vec![None; sk.cnf.num_vars() as usize];
+    for (v, m) in sk.map.iter() {
+        if let Meaning::Tight { i, j, c } = *m {
+            atom[v.index()] = Some((i as u16, j as u16, c as u16));
+        }
+    }
+    let th = theory::Theory::new(n, p);
+    let mut solver = sat::Solver::new(&sk.cnf, Some(th), atom, options.certify)?;
+    let deadline = time.map(|t| t0 + t);
+    let outcome = solver.solve(&sk.cnf, deadline, progress);
+    report.search_seconds = t0.elapsed().as_secs_f64();
+    report.sat = solver.stats.clone();
+    report.lemmas = solver.lemmas().len();
+    if let Some(th) = solver.theory() {
+        report.theory = th.stats.clone();
+    }
+    report.answer = match outcome {
+        sat::SatOutcome::Unknown(reason) => RealAnswer::Unknown { reason },
+        sat::SatOutcome::Sat => {
+            let model: Vec<bool> = (0..solver.num_vars()).map(|v| solver.value(v)).collect();
+            if let Some(k) = sk.cnf.first_falsified(&model) {
+                return Err(Error::Solver {
+                    solver: "real".into(),
+                    reason: format!("the model falsifies skeleton clause {k}"),
+                });
+            }
+            let th = solver.theory().ok_or_else(|| Error::Solver {
+                solver: "real".into(),
+                reason: "no theory".into(),
+            })?;
+            th.audit().map_err(|reason| Error::Solver {
+                solver: "real".into(),
+                reason: format!("theory audit: {reason}"),
+            })?;
+            let orbit = orbit_from(th, n, p);
+            let hi = orbit.iter().flatten().copied().max().unwrap_or(0);
+            let check = check_orbit(&vec![(0, hi); n], &orbit)?;
+            RealAnswer::Feasible { orbit, check }
+        }
+        sat::SatOutcome::Unsat if !options.certify => RealAnswer::Infeasible {
+            check: None,
+            dir: None,
+        },
+        sat::SatOutcome::Unsat => {
+            let t1 = Instant::now();
+            let (log, lemmas) = solver.into_parts();
+            let tmp;
+            let dir: &Path = match &options.certificate_dir {
+                Some(d) => {
+                    std::fs::create_dir_all(d).map_err(|e| Error::io(d, e))?;
+                    d
+                }
+                None => {
+                    tmp = tempfile::tempdir().map_err(|e| Error::io("<temporary directory>", e))?;
+                    tmp.path()
+                }
+            };
+            write_certificate(dir, &sk, &lemmas, log)?;
+            let check = certificate::check_dir(n, p, dir)?;
+            report.check_seconds = t1.elapsed().as_secs_f64();
+            RealAnswer::Infeasible {
+                check: Some(check),
+                dir: options.certificate_dir.clone(),
+            }
+        }
+    };
+    Ok(report)
+}
+
+/// The integer orbit read from the theory's profile and potentials, each
+/// coordinate shifted to start at 0.
+fn orbit_from(th: &theory::Theory, n: usize, p: usize) -> Vec<Vec<i64>> {
+    let mut orbit = vec![vec![0i64; n]; p];
+    for c in 0..n {
+        let pot = th.potentials(c);
+        let lo = pot.iter().copied().min().unwrap_or(0);
+        for i in 0..p {
+            orbit[i][c] = pot[i] - lo;
+        }
+    }
+    orbit
+}
+
+fn write_certificate(
+    dir: &Path,
+    sk: &skeleton::Skeleton,
+    lemmas: &[(Vec<crate::cnf::Lit>, theory::Lemma)],
+    log: prooflog::ProofLog,
+) -> Result<()> {
+    use std::io::Write;
+    let path = dir.join(certificate::SKELETON);
+    std::fs::write(&path, skeleton::render(sk)).map_err(|e| Error::io(&path, e))?;
+    let path = dir.join(certificate::LEMMAS);
+    let f = std::fs::File::create(&path).map_err(|e| Error::io(&path, e))?;
+    let mut w = std::io::BufWriter::new(f);
+    let ls: Vec<theory::Lemma> = lemmas.iter().map(|(_, l)| l.clone()).collect();
+    certificate::render_lemmas(sk.n, sk.p, &ls, &mut w).map_err(|e| Error::io(&path, e))?;
+    w.flush().map_err(|e| Error::io(&path, e))?;
+    let path = dir.join(certificate::PROOF);
+    let f = std::fs::File::create(&path).map_err(|e| Error::io(&path, e))?;
+    let mut w = std::io::BufWriter::new(f);
+    log.finish(&mut w)?;
+    w.flush().map_err(|e| Error::io(&path, e))?;
+    Ok(())
+}

@@ -12,6 +12,9 @@ fn main() {
     let secs: Option<u64> = args.get(3).and_then(|a| a.parse().ok());
     let mut o = RealOptions::new();
     o.certificate_dir = args.get(4).map(Into::into);
+    if std::env::var_os("NOPAT").is_some() {
+        o.patterns = false;
+    }
     if std::env::var_os("NOCERT").is_some() {
         o.certify = false;
     }

@@ -50,46 +50,53 @@ pub struct CertificateCheck {
     pub seconds: f64,
 }
 
-/// Renders lemmas in the lemma-file format, clause from the lemma's atoms.
+/// Renders the fact declarations and the lemmas in the lemma-file format.
+/// `facts[f]` is fact `f`'s DIMACS variable and coefficients.
 pub fn render_lemmas(
     n: usize,
     p: usize,
+    facts: &[(u32, Vec<i64>)],
     lemmas: &[Lemma],
     out: &mut dyn Write,
 ) -> std::io::Result<()> {
+    use std::fmt::Write as _;
     writeln!(out, "{}", farkas_check::header(n, p))?;
+    for (v, a) in facts {
+        let mut s = format!("f {v}");
+        for x in a {
+            let _ = write!(s, " {x}");
+        }
+        writeln!(out, "{s}")?;
+    }
+    let fvar = |f: usize| facts.get(f).map_or(0, |x| x.0);
     for l in lemmas {
         let mut s = String::new();
-        for ((i, j, c), _) in &l.atoms {
-            s.push_str(&format!(
-                "-{} ",
-                skeleton::tight_var(n, p, *i, *j, *c).dimacs()
-            ));
+        let mut ys = String::new();
+        if let Some((f, y)) = &l.conclusion {
+            let _ = write!(s, "{} ", fvar(*f));
+            let _ = write!(ys, " {y}");
         }
-        s.push_str("0 y");
-        for (_, y) in &l.atoms {
-            s.push_str(&format!(" {y}"));
+        for (f, y) in &l.facts {
+            let _ = write!(s, "-{} ", fvar(*f));
+            let _ = write!(ys, " {y}");
         }
+        for ((i, j, c), y) in &l.atoms {
+            let _ = write!(s, "-{} ", skeleton::tight_var(n, p, *i, *j, *c).dimacs());
+            let _ = write!(ys, " {y}");
+        }
+        let _ = write!(s, "0 y{ys}");
         for ((u, v, c), y) in &l.background {
-            s.push_str(&format!(" b {u} {v} {c} {y}"));
+            let _ = write!(s, " b {u} {v} {c} {y}");
         }
         for (k, y) in &l.norm {
-            s.push_str(&format!(" g {k} {y}"));
+            let _ = write!(s, " g {k} {y}");
         }
         for (q, y) in &l.unit {
-            s.push_str(&format!(" u {q} {y}"));
+            let _ = write!(s, " u {q} {y}");
         }
         writeln!(out, "{s}")?;
     }
     Ok(())
-}
-
-/// The clause a lemma stands for, as the search adds it.
-pub fn lemma_clause(n: usize, p: usize, l: &Lemma) -> Vec<Lit> {
-    l.atoms
-        .iter()
-        .map(|((i, j, c), _)| skeleton::tight_var(n, p, *i, *j, *c).neg())
-        .collect()
 }
 
 /// Checks the certificate in `dir` for the question `(n, p)`.
@@ -119,7 +126,8 @@ pub fn check_dir(n: usize, p: usize, dir: &Path) -> Result<CertificateCheck> {
     }
     let lem_path = dir.join(LEMMAS);
     let lem = std::fs::read_to_string(&lem_path).map_err(|e| Error::io(&lem_path, e))?;
-    let (clauses, farkas) = farkas_check::check_lemmas(n, p, &lem)?;
+    let first_fact = sk.cnf.num_vars() as usize + 1;
+    let (clauses, farkas) = farkas_check::check_lemmas(n, p, first_fact, &lem)?;
     let mut cnf: Cnf = sk.cnf.clone();
     for c in &clauses {
         let lits: Vec<Lit> = c.iter().map(|&l| Lit::from_dimacs(l)).collect();

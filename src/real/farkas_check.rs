@@ -13,25 +13,34 @@
 //! -5 -17 -40 0 y 1 1 2 b 3 4 0 1 b 4 3 0 2 g 1 1 u 2 1
 //! ```
 //!
-//! After the header, each non-comment line is one lemma: a clause (DIMACS
-//! literals, closed by `0`), then `y` and one multiplier per literal, then
-//! any number of groups `b U V C Y` (background row), `g K Y` (scaling row)
-//! and `u Q Y` (multiplier row). Multipliers are nonnegative decimal
-//! integers. The rows, in `≤` form, are:
+//! After the header come two kinds of lines. `f VAR a_1 … a_m` declares the
+//! *profile fact* variable `VAR`, which means `a_1·D_1 + … + a_m·D_m ≥ 0`
+//! (`m = ⌊p/2⌋`); the first has the number given to [`check_lemmas`] (one
+//! past the skeleton's variables), the others follow consecutively. Every
+//! other line is one lemma: a clause (DIMACS literals, closed by `0`), then
+//! `y` and one multiplier per literal, then any number of groups
+//! `b U V C Y` (background row), `g K Y` (scaling row) and `u Q Y`
+//! (multiplier row). Multipliers are nonnegative decimal integers. The
+//! rows, each the negation of a literal or a constraint every normalised
+//! cycle satisfies, are:
 //!
 //! | token | row |
 //! |---|---|
-//! | literal `−T(i,j,c)` with `y` | `x_{i,c} − x_{j,c} + D_κ(i,j) ≤ 0` (the atom: `x_{j,c} − x_{i,c} ≥ D`) |
+//! | literal `−T(i,j,c)` | `x_{i,c} − x_{j,c} + D_κ(i,j) ≤ 0` (the atom holds: `x_{j,c} − x_{i,c} ≥ D`) |
+//! | literal `−F` | `−a·D ≤ 0` (the fact holds) |
+//! | literal `+F` | `a·D < 0`, strict (the fact fails) |
 //! | `b U V C Y` | `x_{V,C} − x_{U,C} − D_κ(U,V) ≤ 0` (`U ≠ V`) |
 //! | `g K Y` | `−D_K ≤ −1` (`1 ≤ K ≤ ⌊p/2⌋`) |
 //! | `u Q Y` | `D_1 − D_Q ≤ 0` (`2 ≤ Q ≤ ⌊p/2⌋`, `gcd(Q, p) = 1`) |
 //!
-//! A lemma is accepted when every literal is the negation of a tight
-//! variable `T(i,j,c)`, and the multiplier-weighted sum of the rows has every
-//! coefficient of every `x_{i,c}` and `D_k` equal to 0 and a negative
-//! right-hand side: then the rows cannot hold together, so in every
-//! solution (of background and normalisation) some atom of the clause is
-//! false, which is what the clause says.
+//! A lemma is accepted when every literal is a negated tight variable
+//! `T(i,j,c)` or a declared fact of either sign, and the multiplier-weighted
+//! sum of the rows has every coefficient of every `x_{i,c}` and `D_k` equal
+//! to 0 and a right-hand side `r` with `r < 0`, or `r = 0` when a strict row
+//! has a positive multiplier. The sum then reads `0 ≤ r` (or `0 < r`), which
+//! is false, so the rows cannot hold together (Farkas' lemma, in Motzkin's
+//! form for strict rows, only in the easy direction): in every solution of
+//! the background and the normalisation some literal of the clause is true.
 
 use std::fmt;
 
@@ -55,6 +64,8 @@ impl std::error::Error for FarkasError {}
 /// What an accepted lemma file held.
 #[derive(Clone, Debug, PartialEq, Eq, serde::Serialize)]
 pub struct FarkasSummary {
+    /// Profile facts declared.
+    pub facts: usize,
     /// Lemmas checked.
     pub lemmas: usize,
     /// Literals over all lemmas.
@@ -132,23 +143,26 @@ fn index(tok: Option<&str>, what: &str) -> Result<usize, String> {
 }
 
 /// Checks one lemma line; returns its clause (DIMACS literals) and its row count.
-fn check_line(n: usize, p: usize, line: &str) -> Result<(Vec<i32>, usize), String> {
+fn check_line(
+    n: usize,
+    p: usize,
+    first_fact: usize,
+    facts: &[Vec<i128>],
+    line: &str,
+) -> Result<(Vec<i32>, usize), String> {
     let per_c = p * (p - 1);
     let mut toks = line.split_whitespace();
     let mut clause = Vec::new();
     loop {
         let t = toks.next().ok_or("the clause is not closed by 0")?;
-        let l: i64 = t.parse().map_err(|_| format!("{t:?} is not a literal"))?;
+        let l: i32 = t.parse().map_err(|_| format!("{t:?} is not a literal"))?;
         if l == 0 {
             break;
         }
-        if l > 0 || (-l) as u64 > (n * per_c) as u64 {
-            return Err(format!(
-                "literal {l} is not the negation of a tight variable (1..={})",
-                n * per_c
-            ));
+        if clause.iter().any(|&x: &i32| x.unsigned_abs() == l.unsigned_abs()) {
+            return Err(format!("variable {} occurs twice", l.unsigned_abs()));
         }
-        clause.push(l as i32);
+        clause.push(l);
     }
     let mut sum = Sum {
         n,
@@ -157,19 +171,44 @@ fn check_line(n: usize, p: usize, line: &str) -> Result<(Vec<i32>, usize), Strin
         d: vec![0; p / 2],
         rhs: 0,
     };
+    let mut strict = false;
     if toks.next() != Some("y") {
         return Err("expected 'y' and one multiplier per literal after the clause".into());
     }
     for &l in &clause {
         let y = num(toks.next(), "literal multiplier")?;
-        let v = (-l) as usize - 1;
-        let c = v / per_c;
-        let r = v % per_c;
-        let i = r / (p - 1);
-        let col = r % (p - 1);
-        let j = if col < i { col } else { col + 1 };
-        // T(i,j,c): x_j − x_i ≥ D, i.e. x_i − x_j + D ≤ 0
-        sum.row(i, j, c, 1, 0, y)?;
+        let v = l.unsigned_abs() as usize;
+        if v <= n * per_c {
+            if l > 0 {
+                return Err(format!("literal {l}: a tight variable may occur only negated"));
+            }
+            let v = v - 1;
+            let c = v / per_c;
+            let r = v % per_c;
+            let i = r / (p - 1);
+            let col = r % (p - 1);
+            let j = if col < i { col } else { col + 1 };
+            // T(i,j,c): x_j − x_i ≥ D, i.e. x_i − x_j + D ≤ 0
+            sum.row(i, j, c, 1, 0, y)?;
+        } else if let Some(a) = v.checked_sub(first_fact).and_then(|f| facts.get(f)) {
+            // −F: −a·D ≤ 0; +F: a·D < 0
+            let s = if l < 0 { -1 } else { 1 };
+            for (k, ak) in a.iter().enumerate() {
+                let t = ak
+                    .checked_mul(y)
+                    .and_then(|t| t.checked_mul(s))
+                    .ok_or("arithmetic overflow in a fact row")?;
+                Sum::add(&mut sum.d[k], t)?;
+            }
+            if l > 0 && y > 0 {
+                strict = true;
+            }
+        } else {
+            return Err(format!(
+                "literal {l} is neither a tight variable (1..={}) nor a declared fact",
+                n * per_c
+            ));
+        }
     }
     let mut rows = clause.len();
     while let Some(kind) = toks.next() {
@@ -196,9 +235,7 @@ fn check_line(n: usize, p: usize, line: &str) -> Result<(Vec<i32>, usize), Strin
                 let q = index(toks.next(), "u: Q")?;
                 let y = num(toks.next(), "u: multiplier")?;
                 if q < 2 || q > p / 2 || gcd(q, p) != 1 {
-                    return Err(format!(
-                        "u: {q} is not a unit class other than 1 for p = {p}"
-                    ));
+                    return Err(format!("u: {q} is not a unit class other than 1 for p = {p}"));
                 }
                 Sum::add(&mut sum.d[0], y)?;
                 Sum::add(&mut sum.d[q - 1], -y)?;
@@ -220,40 +257,43 @@ fn check_line(n: usize, p: usize, line: &str) -> Result<(Vec<i32>, usize), Strin
             k + 1
         ));
     }
-    if sum.rhs >= 0 {
+    if sum.rhs > 0 || (sum.rhs == 0 && !strict) {
         return Err(format!(
-            "the combination reads 0 ≤ {}, which is no contradiction",
+            "the combination reads 0 {} {}, which is no contradiction",
+            if strict { "<" } else { "≤" },
             sum.rhs
         ));
     }
     Ok((clause, rows))
 }
 
-/// Checks every lemma of a lemma file for `(n, p)`; returns the clauses in file order.
+/// Checks every lemma of a lemma file for `(n, p)`, whose fact variables
+/// start at `first_fact`; returns the clauses in file order.
 ///
 /// # Errors
 /// [`FarkasError`] naming the first line that fails and why.
 pub fn check_lemmas(
     n: usize,
     p: usize,
+    first_fact: usize,
     text: &str,
 ) -> Result<(Vec<Vec<i32>>, FarkasSummary), FarkasError> {
     let err = |line: usize, reason: String| FarkasError { line, reason };
     if n == 0 || p < 2 {
         return Err(err(0, format!("no lemmas exist for n = {n}, p = {p}")));
     }
+    if first_fact <= n * p * (p - 1) {
+        return Err(err(0, format!("facts would overlap the tight variables (first fact {first_fact})")));
+    }
     let mut lines = text.lines().enumerate();
     match lines.next() {
         Some((_, h)) if h.trim_end() == header(n, p) => {}
-        _ => {
-            return Err(err(
-                1,
-                format!("the first line should be {:?}", header(n, p)),
-            ));
-        }
+        _ => return Err(err(1, format!("the first line should be {:?}", header(n, p)))),
     }
+    let mut facts: Vec<Vec<i128>> = Vec::new();
     let mut clauses = Vec::new();
     let mut summary = FarkasSummary {
+        facts: 0,
         lemmas: 0,
         literals: 0,
         rows: 0,
@@ -263,7 +303,27 @@ pub fn check_lemmas(
         if t.is_empty() || t.starts_with('c') {
             continue;
         }
-        let (clause, rows) = check_line(n, p, t).map_err(|r| err(k + 1, r))?;
+        if let Some(rest) = t.strip_prefix("f ") {
+            let mut w = rest.split_whitespace();
+            let v = index(w.next(), "f: VAR").map_err(|r| err(k + 1, r))?;
+            if v != first_fact + facts.len() {
+                return Err(err(
+                    k + 1,
+                    format!("fact variable {v} declared where {} was expected", first_fact + facts.len()),
+                ));
+            }
+            let a: Vec<i128> = w
+                .map(|x| x.parse::<i128>().map_err(|_| format!("f: {x:?} is not an integer")))
+                .collect::<Result<_, _>>()
+                .map_err(|r| err(k + 1, r))?;
+            if a.len() != p / 2 {
+                return Err(err(k + 1, format!("f: {} coefficients, expected {}", a.len(), p / 2)));
+            }
+            facts.push(a);
+            summary.facts += 1;
+            continue;
+        }
+        let (clause, rows) = check_line(n, p, first_fact, &facts, t).map_err(|r| err(k + 1, r))?;
         summary.lemmas += 1;
         summary.literals += clause.len();
         summary.rows += rows;
@@ -282,24 +342,24 @@ mod tests {
 
     #[test]
     fn accepts_a_correct_lemma_and_rejects_changes() {
-        let (cl, s) = check_lemmas(1, 3, GOOD).unwrap();
+        let (cl, s) = check_lemmas(1, 3, 7, GOOD).unwrap();
         assert_eq!(cl, vec![vec![-1, -4]]);
         assert_eq!(s.rows, 4);
         let bad_mult = GOOD.replace("y 1 1", "y 1 2");
-        let e = check_lemmas(1, 3, &bad_mult).unwrap_err();
+        let e = check_lemmas(1, 3, 7, &bad_mult).unwrap_err();
         assert!(e.reason.contains("coefficient"), "{e}");
         let bad_lit = GOOD.replace("-1 -4 0 y 1 1", "-1 -5 0 y 1 1");
-        assert!(check_lemmas(1, 3, &bad_lit).is_err());
+        assert!(check_lemmas(1, 3, 7, &bad_lit).is_err());
         let positive = GOOD.replace("-1 -4 0", "1 -4 0");
         assert!(
-            check_lemmas(1, 3, &positive)
+            check_lemmas(1, 3, 7, &positive)
                 .unwrap_err()
                 .reason
                 .contains("negation")
         );
         let no_g = GOOD.replace(" g 1 1", "");
         assert!(
-            check_lemmas(1, 3, &no_g)
+            check_lemmas(1, 3, 7, &no_g)
                 .unwrap_err()
                 .reason
                 .contains("D_1")
@@ -307,11 +367,11 @@ mod tests {
         let zero = GOOD
             .replace("g 1 1", "g 1 0")
             .replace("b 0 2 0 1", "b 0 2 0 1 b 0 2 0 0");
-        assert!(check_lemmas(1, 3, &zero).is_err());
-        assert!(check_lemmas(1, 4, GOOD).is_err());
+        assert!(check_lemmas(1, 3, 7, &zero).is_err());
+        assert!(check_lemmas(1, 4, 13, GOOD).is_err());
         let unit = GOOD.replace("g 1 1", "u 1 1");
         assert!(
-            check_lemmas(1, 3, &unit)
+            check_lemmas(1, 3, 7, &unit)
                 .unwrap_err()
                 .reason
                 .contains("unit")

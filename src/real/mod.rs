@@ -58,6 +58,8 @@ pub struct RealOptions {
     pub certify: bool,
     /// Where to keep the certificate; `None` checks it in a temporary directory and drops it.
     pub certificate_dir: Option<PathBuf>,
+    /// Start with the lemmas of every two-atom cycle ([`theory::Theory::pattern_lemmas`]).
+    pub patterns: bool,
 }
 
 impl RealOptions {
@@ -67,6 +69,7 @@ impl RealOptions {
             skeleton: SkeletonOptions::default(),
             certify: true,
             certificate_dir: None,
+            patterns: true,
         }
     }
 }
@@ -155,11 +158,12 @@ pub fn decide(
     let mut atom = vec![None; sk.cnf.num_vars() as usize];
     for (v, m) in sk.map.iter() {
         if let Meaning::Tight { i, j, c } = *m {
-            atom[v.index()] = Some((i as u16, j as u16, c as u16));
+            atom[v.index()] = Some(theory::Item::Tight(i, j, c));
         }
     }
     let th = theory::Theory::new(n, p);
     let mut solver = sat::Solver::new(&sk.cnf, Some(th), atom, options.certify)?;
+    solver.patterns = options.patterns;
     let deadline = time.map(|t| t0 + t);
     let outcome = solver.solve(&sk.cnf, deadline, progress);
     report.search_seconds = t0.elapsed().as_secs_f64();
@@ -169,7 +173,19 @@ pub fn decide(
         report.theory = th.stats.clone();
     }
     report.answer = match outcome {
-        sat::SatOutcome::Unknown(reason) => RealAnswer::Unknown { reason },
+        sat::SatOutcome::Unknown(reason) => {
+            if let Some(d) = &options.certificate_dir {
+                // the lemmas found so far, for inspection (no proof: there is no refutation)
+                std::fs::create_dir_all(d).map_err(|e| Error::io(d, e))?;
+                let path = d.join(certificate::LEMMAS);
+                let facts = fact_table(&solver);
+                let mut buf = Vec::new();
+                certificate::render_lemmas(n, p, &facts, solver.lemmas(), &mut buf)
+                    .map_err(|e| Error::io(&path, e))?;
+                std::fs::write(&path, buf).map_err(|e| Error::io(&path, e))?;
+            }
+            RealAnswer::Unknown { reason }
+        }
         sat::SatOutcome::Sat => {
             let model: Vec<bool> = (0..solver.num_vars()).map(|v| solver.value(v)).collect();
             if let Some(k) = sk.cnf.first_falsified(&model) {
@@ -197,6 +213,7 @@ pub fn decide(
         },
         sat::SatOutcome::Unsat => {
             let t1 = Instant::now();
+            let facts = fact_table(&solver);
             let (log, lemmas) = solver.into_parts();
             let tmp;
             let dir: &Path = match &options.certificate_dir {
@@ -209,7 +226,7 @@ pub fn decide(
                     tmp.path()
                 }
             };
-            write_certificate(dir, &sk, &lemmas, log)?;
+            write_certificate(dir, &sk, &facts, &lemmas, log)?;
             let check = certificate::check_dir(n, p, dir)?;
             report.check_seconds = t1.elapsed().as_secs_f64();
             RealAnswer::Infeasible {
@@ -235,10 +252,23 @@ fn orbit_from(th: &theory::Theory, n: usize, p: usize) -> Vec<Vec<i64>> {
     orbit
 }
 
+/// Each profile fact's DIMACS variable and coefficients, by index.
+fn fact_table(solver: &sat::Solver) -> Vec<(u32, Vec<i64>)> {
+    let Some(th) = solver.theory() else {
+        return Vec::new();
+    };
+    th.facts()
+        .iter()
+        .zip(solver.fact_vars())
+        .map(|(f, v)| (v + 1, f.coeffs.clone()))
+        .collect()
+}
+
 fn write_certificate(
     dir: &Path,
     sk: &skeleton::Skeleton,
-    lemmas: &[(Vec<crate::cnf::Lit>, theory::Lemma)],
+    facts: &[(u32, Vec<i64>)],
+    lemmas: &[theory::Lemma],
     log: prooflog::ProofLog,
 ) -> Result<()> {
     use std::io::Write;
@@ -247,8 +277,7 @@ fn write_certificate(
     let path = dir.join(certificate::LEMMAS);
     let f = std::fs::File::create(&path).map_err(|e| Error::io(&path, e))?;
     let mut w = std::io::BufWriter::new(f);
-    let ls: Vec<theory::Lemma> = lemmas.iter().map(|(_, l)| l.clone()).collect();
-    certificate::render_lemmas(sk.n, sk.p, &ls, &mut w).map_err(|e| Error::io(&path, e))?;
+    certificate::render_lemmas(sk.n, sk.p, facts, lemmas, &mut w).map_err(|e| Error::io(&path, e))?;
     w.flush().map_err(|e| Error::io(&path, e))?;
     let path = dir.join(certificate::PROOF);
     let f = std::fs::File::create(&path).map_err(|e| Error::io(&path, e))?;

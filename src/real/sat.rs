@@ -25,7 +25,7 @@
 use std::time::Instant;
 
 use super::prooflog::ProofLog;
-use super::theory::{Lemma, Theory, TheoryError};
+use super::theory::{Item, Lemma, Step, Theory, TheoryError};
 use crate::cnf::{Cnf, Lit};
 use crate::error::Result;
 
@@ -68,6 +68,8 @@ pub struct SatStats {
     pub restarts: u64,
     /// Learned clauses deleted.
     pub deleted: u64,
+    /// Literals over all learned clauses.
+    pub learned_literals: u64,
 }
 
 /// A progress report, given to the callback about once a second.
@@ -103,12 +105,15 @@ pub struct Solver {
     unit_id: Vec<u64>,
     log: ProofLog,
     theory: Option<Theory>,
-    atom: Vec<Option<(u16, u16, u16)>>,
-    atom_var: std::collections::HashMap<(u16, u16, u16), u32>,
+    atom: Vec<Option<Item>>,
+    atom_var: std::collections::HashMap<Item, u32>,
+    fact_var: Vec<u32>,
     th_count: usize,
-    lemmas: Vec<(Vec<Lit>, Lemma)>,
+    lemmas: Vec<Lemma>,
     garbage: usize,
     cla_inc: f32,
+    /// Add the two-atom cycle lemmas of [`Theory::pattern_lemmas`] before searching.
+    pub patterns: bool,
     /// Counters.
     pub stats: SatStats,
 }
@@ -147,14 +152,15 @@ fn luby(mut i: u64) -> u64 {
 
 impl Solver {
     /// A solver for `cnf` (clause `i` has proof id `i + 1`), with the theory
-    /// reading the atoms `atom[v]` (`Some((i, j, c))` for `T(i, j, c)`, by 0-based variable).
+    /// reading the atoms `atom[v]` (`Some(Item::Tight(i, j, c))` for `T(i, j, c)`, by
+    /// 0-based variable). Profile facts get fresh variables as the theory finds them.
     ///
     /// # Errors
     /// [`crate::Error::Io`] when the proof log cannot be created.
     pub fn new(
         cnf: &Cnf,
         theory: Option<Theory>,
-        atom: Vec<Option<(u16, u16, u16)>>,
+        atom: Vec<Option<Item>>,
         proof: bool,
     ) -> Result<Solver> {
         let nvars = cnf.num_vars() as usize;
@@ -174,7 +180,7 @@ impl Solver {
             inc: 1.0,
             heap: Vec::with_capacity(nvars),
             hpos: vec![NONE; nvars],
-            phase: vec![false; nvars],
+            phase: vec![std::env::var_os("PHASE1").is_some(); nvars],
             seen: vec![0; nvars],
             unit_id: vec![0; nvars],
             log: ProofLog::new(cnf.num_clauses() as u64, proof)?,
@@ -185,10 +191,12 @@ impl Solver {
                 .filter_map(|(v, a)| a.map(|a| (a, v as u32)))
                 .collect(),
             atom,
+            fact_var: Vec::new(),
             th_count: 0,
             lemmas: Vec::new(),
             garbage: 0,
             cla_inc: 1.0,
+            patterns: true,
             stats: SatStats::default(),
         };
         s.atom.resize(nvars, None);
@@ -199,8 +207,46 @@ impl Solver {
     }
 
     /// The theory lemmas found so far, in the order of their ids.
-    pub fn lemmas(&self) -> &[(Vec<Lit>, Lemma)] {
+    pub fn lemmas(&self) -> &[Lemma] {
         &self.lemmas
+    }
+
+    /// The variable (0-based) of each profile fact, by the fact's index.
+    pub fn fact_vars(&self) -> &[u32] {
+        &self.fact_var
+    }
+
+    /// The variable of fact `f`, created (with those of all earlier facts) if new.
+    fn fact_variable(&mut self, f: usize) -> u32 {
+        while self.fact_var.len() <= f {
+            let idx = self.fact_var.len();
+            let v = self.new_var();
+            self.atom[v as usize] = Some(Item::Fact(idx));
+            self.atom_var.insert(Item::Fact(idx), v);
+            self.fact_var.push(v);
+        }
+        self.fact_var[f]
+    }
+
+    /// A fresh variable, unassigned, eligible for decisions; returns its 0-based index.
+    fn new_var(&mut self) -> u32 {
+        let v = self.nvars;
+        self.nvars += 1;
+        self.watches.push(Vec::new());
+        self.watches.push(Vec::new());
+        self.val.push(0);
+        self.val.push(0);
+        self.level.push(0);
+        self.reason.push(NONE);
+        self.tpos.push(0);
+        self.act.push(0.0);
+        self.hpos.push(NONE);
+        self.phase.push(false);
+        self.seen.push(0);
+        self.unit_id.push(0);
+        self.atom.push(None);
+        self.heap_insert(v as u32);
+        v as u32
     }
 
     /// The theory (for reading the profile and potentials after `Sat`).
@@ -214,7 +260,7 @@ impl Solver {
     }
 
     /// Splits off the proof log (after `Unsat`) and the lemmas.
-    pub fn into_parts(self) -> (ProofLog, Vec<(Vec<Lit>, Lemma)>) {
+    pub fn into_parts(self) -> (ProofLog, Vec<Lemma>) {
         (self.log, self.lemmas)
     }
 
@@ -321,8 +367,8 @@ impl Solver {
         self.tpos[v] = self.trail.len() as u32;
         self.trail.push(l);
         if l & 1 == 0 {
-            if let (Some((i, j, c)), Some(th)) = (self.atom[v], self.theory.as_mut()) {
-                th.assert_atom(i as usize, j as usize, c as usize);
+            if let (Some(item), Some(th)) = (self.atom[v], self.theory.as_mut()) {
+                th.assert_item(item);
                 self.th_count += 1;
             }
         }
@@ -653,6 +699,7 @@ impl Solver {
         let (learnt, bt, hints) = self.analyze(confl);
         self.inc /= 0.95;
         self.cla_inc /= 0.999;
+        self.stats.learned_literals += learnt.len() as u64;
         let dl: Vec<i32> = learnt.iter().map(|&l| to_dimacs(l)).collect();
         let id = self.log.derive(&dl, &hints);
         self.backtrack(bt);
@@ -667,29 +714,39 @@ impl Solver {
         Ok(())
     }
 
-    /// Adds a theory lemma as a clause whose literals are all false; returns its index.
-    fn add_lemma(&mut self, lemma: Lemma) -> std::result::Result<u32, String> {
-        let mut lits: Vec<u32> = Vec::with_capacity(lemma.atoms.len());
+    /// The clause of a lemma: the conclusion (if any) first, then the negated
+    /// facts and atoms, the latter sorted by trail position, latest first.
+    fn lemma_lits(&self, lemma: &Lemma) -> std::result::Result<Vec<u32>, String> {
+        let mut lits: Vec<u32> = Vec::new();
         for &((i, j, c), _) in &lemma.atoms {
             let v = self
                 .atom_var
-                .get(&(i as u16, j as u16, c as u16))
+                .get(&Item::Tight(i, j, c))
                 .ok_or_else(|| format!("lemma names T({i},{j},{c}), which is no variable"))?;
-            if self.val[2 * *v as usize] != 1 {
-                return Err(format!("lemma names T({i},{j},{c}), which is not asserted"));
-            }
             lits.push((*v << 1) | 1);
         }
-        // watch the two literals assigned last
+        for (f, _) in &lemma.facts {
+            let v = self
+                .fact_var
+                .get(*f)
+                .ok_or_else(|| format!("lemma names fact {f}, which has no variable"))?;
+            lits.push((*v << 1) | 1);
+        }
+        for &l in &lits {
+            if self.lval(l) != -1 {
+                return Err("a lemma names an item that is not asserted".into());
+            }
+        }
         lits.sort_by_key(|&l| std::cmp::Reverse(self.tpos[var(l)]));
+        Ok(lits)
+    }
+
+    /// Records a lemma clause in the log and the lemma list, and stores it; returns its index.
+    fn store_lemma(&mut self, lits: &[u32], lemma: Lemma) -> u32 {
         let id = self.log.lemma();
-        let ext: Vec<Lit> = lits
-            .iter()
-            .map(|&l| Lit::from_dimacs(to_dimacs(l)))
-            .collect();
-        self.lemmas.push((ext, lemma));
-        let lbd = self.lbd(&lits);
-        Ok(self.attach(&lits, id, true, lbd))
+        self.lemmas.push(lemma);
+        let lbd = self.lbd(lits);
+        self.attach(lits, id, true, lbd)
     }
 
     /// Makes `l` the first literal of clause `ci` and a literal of level
@@ -761,17 +818,68 @@ impl Solver {
         }
     }
 
-    fn theory_check(&mut self) -> std::result::Result<Option<u32>, String> {
+    /// Runs the theory: `Ok(None)` when consistent, `Ok(Some(ci))` for a
+    /// conflict clause, and `Err(None)` when it propagated a fact (propagate again).
+    fn theory_check(&mut self) -> std::result::Result<Option<u32>, Option<String>> {
         let Some(th) = self.theory.as_mut() else {
             return Ok(None);
         };
-        match th.check() {
-            Ok(()) => Ok(None),
+        let (val, fact_var) = (&self.val, &self.fact_var);
+        let open = |f: usize| fact_var.get(f).is_some_and(|&v| val[2 * v as usize] == 0);
+        match th.check_with(&open) {
+            Ok(Step::Done) => Ok(None),
+            Ok(Step::Refuted(list)) => {
+                for (fact, lemma) in list {
+                    let fv = self.fact_variable(fact);
+                    let neg = (fv << 1) | 1;
+                    if self.lval(neg) != 0 {
+                        continue;
+                    }
+                    let mut lits = Vec::with_capacity(lemma.facts.len());
+                    for (g, _) in &lemma.facts {
+                        let v = self.fact_variable(*g);
+                        if v != fv {
+                            lits.push((v << 1) | 1);
+                        }
+                    }
+                    if lits.iter().any(|&l| self.lval(l) != -1) {
+                        return Err(Some("a refutation names a fact not in force".into()));
+                    }
+                    lits.sort_by_key(|&l| std::cmp::Reverse(self.tpos[var(l)]));
+                    lits.insert(0, neg);
+                    let id = self.log.lemma();
+                    self.lemmas.push(lemma);
+                    let ci = self.attach(&lits, id, false, 2);
+                    self.enqueue(neg, ci);
+                }
+                Err(None)
+            }
+            Ok(Step::Implied { fact, lemma }) => {
+                let fv = self.fact_variable(fact);
+                let mut lits = self.lemma_lits(&lemma).map_err(Some)?;
+                let f = fv << 1;
+                match self.lval(f) {
+                    0 => {
+                        lits.insert(0, f);
+                        let ci = self.store_lemma(&lits, lemma);
+                        self.enqueue(f, ci);
+                        Err(None)
+                    }
+                    -1 => {
+                        lits.push(f);
+                        lits.sort_by_key(|&l| std::cmp::Reverse(self.tpos[var(l)]));
+                        self.stats.theory_conflicts += 1;
+                        Ok(Some(self.store_lemma(&lits, lemma)))
+                    }
+                    _ => Err(Some(format!("fact {fact} is in force and violated"))),
+                }
+            }
             Err(TheoryError::Conflict(lemma)) => {
                 self.stats.theory_conflicts += 1;
-                self.add_lemma(lemma).map(Some)
+                let lits = self.lemma_lits(&lemma).map_err(Some)?;
+                Ok(Some(self.store_lemma(&lits, lemma)))
             }
-            Err(TheoryError::Internal(e)) => Err(e),
+            Err(TheoryError::Internal(e)) => Err(Some(e)),
         }
     }
 
@@ -817,6 +925,23 @@ impl Solver {
                 }
             }
         }
+        if self.patterns {
+            // before the first propagation every watch is still to be visited,
+            // so these clauses may be attached whatever their literals' values
+            let pats = self.theory.as_mut().map(|t| t.pattern_lemmas()).unwrap_or_default();
+            for (fact, lemma) in pats {
+                let fv = self.fact_variable(fact);
+                let mut lits = vec![fv << 1];
+                for &((i, j, c), _) in &lemma.atoms {
+                    if let Some(&v) = self.atom_var.get(&Item::Tight(i, j, c)) {
+                        lits.push((v << 1) | 1);
+                    }
+                }
+                let id = self.log.lemma();
+                self.lemmas.push(lemma);
+                self.attach(&lits, id, false, 0);
+            }
+        }
         let mut restart_no = 0u64;
         let mut next_restart = 100 * luby(0);
         let mut conflicts_here = 0u64;
@@ -827,7 +952,8 @@ impl Solver {
             if confl.is_none() {
                 match self.theory_check() {
                     Ok(c) => confl = c,
-                    Err(e) => return SatOutcome::Unknown(format!("theory: {e}")),
+                    Err(None) => continue,
+                    Err(Some(e)) => return SatOutcome::Unknown(format!("theory: {e}")),
                 }
             }
             if let Some(c) = confl {

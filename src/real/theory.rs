@@ -35,22 +35,29 @@ use std::collections::HashMap;
 use num_bigint::BigInt;
 use num_integer::Integer;
 use num_rational::BigRational;
-use num_traits::{One, Signed, ToPrimitive, Zero};
+use num_traits::{One, ToPrimitive, Zero};
 
 use super::lp::{ExactLp, Side};
 use super::skeleton::kappa;
 
-/// A theory lemma: not all of `atoms` hold, with the Farkas certificate.
+/// A theory lemma over tight atoms and profile facts, with its Farkas certificate.
 ///
-/// Rows in `≤` form (see `encodings/real-space.md` §5): atom `T(i,j,c)` is
-/// `x_{i,c} − x_{j,c} + D_κ ≤ 0`; background `(u, v, c)` is
-/// `x_{v,c} − x_{u,c} − D_κ ≤ 0`; `norm k` is `−D_k ≤ −1`; `unit u` is
-/// `D_1 − D_u ≤ 0`. The nonnegative integer combination has every variable
-/// coefficient 0 and a negative right-hand side.
+/// The clause is `F_conclusion ∨ ¬F_facts… ∨ ¬T_atoms…`. Rows in `≤` form
+/// (see `encodings/real-space.md` §5): atom `T(i,j,c)` is
+/// `x_{i,c} − x_{j,c} + D_κ ≤ 0`; fact `F_f` (assumed true) is `−a_f·D ≤ 0`;
+/// the negated conclusion is the strict row `a_f·D < 0`; background
+/// `(u, v, c)` is `x_{v,c} − x_{u,c} − D_κ ≤ 0`; `norm k` is `−D_k ≤ −1`;
+/// `unit u` is `D_1 − D_u ≤ 0`. The nonnegative integer combination has
+/// every variable coefficient 0 and right-hand side `< 0`, or `= 0` when the
+/// strict row takes part.
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub struct Lemma {
     /// The atoms `(i, j, c)`, with their multipliers.
     pub atoms: Vec<((usize, usize, usize), BigInt)>,
+    /// Facts assumed true (negative literals), by index, with multipliers.
+    pub facts: Vec<(usize, BigInt)>,
+    /// The fact concluded (a positive literal), with the multiplier of its strict row.
+    pub conclusion: Option<(usize, BigInt)>,
     /// Background rows `(u, v, c)`, with their multipliers.
     pub background: Vec<((usize, usize, usize), BigInt)>,
     /// Normalisation rows `D_k ≥ 1` (`k` is the class, 1-based), with multipliers.
@@ -62,10 +69,37 @@ pub struct Lemma {
 /// What a failed check returns.
 #[derive(Debug)]
 pub enum TheoryError {
-    /// The asserted atoms are infeasible: a lemma explains why.
+    /// The asserted atoms and facts are infeasible: a lemma explains why.
     Conflict(Lemma),
     /// Numbers grew past what the potentials can hold, or an invariant broke.
     Internal(String),
+}
+
+/// What a successful check returns.
+#[derive(Debug)]
+pub enum Step {
+    /// Everything asserted is consistent; potentials solve every coordinate.
+    Done,
+    /// The asserted atoms imply the profile fact `fact` (perhaps new: then it
+    /// is the last of [`Theory::facts`]); `lemma` is the implication.
+    Implied {
+        /// The fact's index.
+        fact: usize,
+        /// The lemma `F_fact ∨ ¬T…`.
+        lemma: Lemma,
+    },
+    /// Each listed fact is inconsistent with the facts in force: its lemma is
+    /// `¬F_fact ∨ ¬F…` over facts in force.
+    Refuted(Vec<(usize, Lemma)>),
+}
+
+/// Something asserted: a tight atom or a profile fact.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
+pub enum Item {
+    /// `T(i, j, c)`.
+    Tight(usize, usize, usize),
+    /// The profile fact with this index.
+    Fact(usize),
 }
 
 /// Counters for reports and measurements.
@@ -73,8 +107,10 @@ pub enum TheoryError {
 pub struct TheoryStats {
     /// Calls of [`Theory::check`].
     pub checks: u64,
-    /// Negative cycles turned into cuts.
-    pub cuts: u64,
+    /// Negative cycles turned into implied facts.
+    pub implied: u64,
+    /// Distinct profile facts.
+    pub facts: u64,
     /// Simplex checks.
     pub lp_checks: u64,
     /// Conflicts returned.
@@ -83,15 +119,12 @@ pub struct TheoryStats {
     pub full_recomputes: u64,
 }
 
-/// A cut: a negative cycle in one coordinate, kept as the reason of a bound.
+/// A profile fact `a·D ≥ 0` (`a` with gcd 1), a row of the simplex.
 #[derive(Clone, Debug)]
-struct Cut {
-    atoms: Vec<(usize, usize, usize)>,
-    background: Vec<(usize, usize, usize)>,
-    /// gcd of the cycle's coefficients; the row is the cycle divided by it.
-    g: i64,
+pub struct Fact {
+    /// The coefficients `a_1..a_m`.
+    pub coeffs: Vec<i64>,
     row: usize,
-    stamp: usize,
 }
 
 /// The theory solver (see the module doc).
@@ -105,11 +138,16 @@ pub struct Theory {
     pot: Vec<i64>,
     tight: Vec<bool>,
     dirty: Vec<bool>,
-    asserted: Vec<(usize, usize, usize)>,
-    processed: usize,
-    cuts: Vec<Cut>,
-    rows: HashMap<Vec<i64>, usize>,
-    owner: HashMap<usize, usize>,
+    items: Vec<Item>,
+    tight_done: usize,
+    fact_done: usize,
+    lp_dirty: bool,
+    /// The facts in force changed since the last refutation round.
+    facts_changed: bool,
+    facts: Vec<Fact>,
+    fact_of: HashMap<Vec<i64>, usize>,
+    active: Vec<bool>,
+    row_fact: HashMap<usize, usize>,
     unit_rows: HashMap<usize, usize>,
     lp: ExactLp,
     /// Counters.
@@ -150,47 +188,58 @@ impl Theory {
             pot: vec![0; n * p],
             tight: vec![false; n * p * p],
             dirty: vec![true; n],
-            asserted: Vec::new(),
-            processed: 0,
-            cuts: Vec::new(),
-            rows: HashMap::new(),
-            owner: HashMap::new(),
+            items: Vec::new(),
+            tight_done: 0,
+            fact_done: 0,
+            lp_dirty: false,
+            facts_changed: false,
+            facts: Vec::new(),
+            fact_of: HashMap::new(),
+            active: Vec::new(),
+            row_fact: HashMap::new(),
             unit_rows,
             lp,
             stats: TheoryStats::default(),
         }
     }
 
-    /// Number of atoms asserted.
+    /// The profile facts created so far, by index.
+    pub fn facts(&self) -> &[Fact] {
+        &self.facts
+    }
+
+    /// Number of items asserted.
     pub fn num_asserted(&self) -> usize {
-        self.asserted.len()
+        self.items.len()
     }
 
-    /// Asserts `T(i, j, c)`; it is examined by the next [`Theory::check`].
-    pub fn assert_atom(&mut self, i: usize, j: usize, c: usize) {
-        self.asserted.push((i, j, c));
+    /// Asserts an item; it is examined by the next [`Theory::check`].
+    pub fn assert_item(&mut self, item: Item) {
+        self.items.push(item);
     }
 
-    /// Retracts atoms until `len` remain (and every cut that may depend on the retracted ones).
+    /// Retracts items until `len` remain.
     pub fn backtrack(&mut self, len: usize) {
-        while self.asserted.len() > len {
-            let idx = self.asserted.len() - 1;
-            let (i, j, c) = self.asserted[idx];
-            if idx < self.processed {
-                self.tight[(c * self.p + i) * self.p + j] = false;
-            }
-            self.asserted.pop();
-        }
-        self.processed = self.processed.min(len);
-        while self.cuts.last().is_some_and(|k| k.stamp > len) {
-            if let Some(k) = self.cuts.pop() {
-                let idx = self.cuts.len();
-                if self.owner.get(&k.row) == Some(&idx) {
-                    self.owner.remove(&k.row);
-                    self.lp.set_zero_bound(k.row, false, false);
+        while self.items.len() > len {
+            let idx = self.items.len() - 1;
+            match self.items[idx] {
+                Item::Tight(i, j, c) => {
+                    if idx < self.tight_done {
+                        self.tight[(c * self.p + i) * self.p + j] = false;
+                    }
+                }
+                Item::Fact(f) => {
+                    if idx < self.fact_done {
+                        self.facts_changed = true;
+                        self.active[f] = false;
+                        self.lp.set_zero_bound(self.facts[f].row, false, false);
+                    }
                 }
             }
+            self.items.pop();
         }
+        self.tight_done = self.tight_done.min(len);
+        self.fact_done = self.fact_done.min(len);
     }
 
     fn w(&self, c: usize, u: usize, v: usize) -> i64 {
@@ -207,7 +256,7 @@ impl Theory {
         &self.d
     }
 
-    /// The potentials of coordinate `c` (a solution for `D*` after a successful check).
+    /// The potentials of coordinate `c` (a solution for `D*` after [`Step::Done`]).
     pub fn potentials(&self, c: usize) -> &[i64] {
         &self.pot[c * self.p..(c + 1) * self.p]
     }
@@ -216,8 +265,11 @@ impl Theory {
     /// system under `D*` with every asserted atom tight; names the first violation.
     pub fn audit(&self) -> Result<(), String> {
         let p = self.p;
-        if self.processed != self.asserted.len() || self.dirty.iter().any(|&x| x) {
-            return Err("the theory has unexamined atoms".into());
+        if self.tight_done != self.items.len()
+            || self.fact_done != self.items.len()
+            || self.dirty.iter().any(|&x| x)
+        {
+            return Err("the theory has unexamined items".into());
         }
         for c in 0..self.n {
             for u in 0..p {
@@ -228,74 +280,129 @@ impl Theory {
                 }
             }
         }
-        for &(i, j, c) in &self.asserted {
-            if !self.tight[(c * p + i) * p + j] {
-                return Err(format!("atom T({i},{j},{c}) is asserted but not marked"));
+        for item in &self.items {
+            if let Item::Tight(i, j, c) = *item {
+                if !self.tight[(c * p + i) * p + j] {
+                    return Err(format!("atom T({i},{j},{c}) is asserted but not marked"));
+                }
             }
         }
         Ok(())
     }
 
-    /// Examines every atom asserted since the last call.
+    /// Examines everything asserted since the last call: facts go to the
+    /// simplex, atoms to their coordinate.
     ///
     /// # Errors
-    /// [`TheoryError::Conflict`] with a lemma over asserted atoms when they are
+    /// [`TheoryError::Conflict`] with a lemma when the asserted items are
     /// infeasible; [`TheoryError::Internal`] when numbers grow too large.
-    pub fn check(&mut self) -> Result<(), TheoryError> {
+    pub fn check(&mut self) -> Result<Step, TheoryError> {
+        self.check_with(&|_| false)
+    }
+
+    /// [`Theory::check`], and then, when the facts in force changed, the
+    /// refutation of every fact `f` with `open(f)` that the facts in force contradict.
+    ///
+    /// # Errors
+    /// As [`Theory::check`].
+    pub fn check_with(&mut self, open: &dyn Fn(usize) -> bool) -> Result<Step, TheoryError> {
         self.stats.checks += 1;
-        let mut rounds = 0u64;
-        loop {
-            rounds += 1;
-            if rounds > 1_000_000 {
-                return Err(TheoryError::Internal("cut loop does not settle".into()));
+        while self.fact_done < self.items.len() {
+            if let Item::Fact(f) = self.items[self.fact_done] {
+                if self.active[f] {
+                    return Err(TheoryError::Internal(format!("fact {f} asserted twice")));
+                }
+                self.active[f] = true;
+                self.lp.set_zero_bound(self.facts[f].row, false, true);
+                self.lp_dirty = true;
+                self.facts_changed = true;
             }
-            if self.dirty.iter().any(|&x| x) {
-                // pending atoms join their coordinate's recomputation
-                while self.processed < self.asserted.len() {
-                    let (i, j, c) = self.asserted[self.processed];
+            self.fact_done += 1;
+        }
+        if self.lp_dirty {
+            self.stats.lp_checks += 1;
+            if let Some(conflict) = self.lp.check() {
+                self.stats.conflicts += 1;
+                return Err(TheoryError::Conflict(self.profile_lemma(&conflict.terms)?));
+            }
+            self.lp_dirty = false;
+            self.set_profile()?;
+        }
+        if self.dirty.iter().any(|&x| x) {
+            // pending atoms join their coordinate's recomputation
+            while self.tight_done < self.items.len() {
+                if let Item::Tight(i, j, c) = self.items[self.tight_done] {
                     self.tight[(c * self.p + i) * self.p + j] = true;
                     self.dirty[c] = true;
-                    self.processed += 1;
                 }
-                let mut found = None;
-                for c in 0..self.n {
-                    if self.dirty[c] {
-                        self.stats.full_recomputes += 1;
-                        match self.bellman_ford(c)? {
-                            None => self.dirty[c] = false,
-                            Some(cycle) => {
-                                found = Some((c, cycle));
-                                break;
-                            }
-                        }
-                    }
-                }
-                if let Some((c, cycle)) = found {
-                    let stamp = self.asserted.len();
-                    self.add_cut(c, &cycle, None, stamp)?;
-                    continue;
-                }
+                self.tight_done += 1;
             }
-            let mut again = false;
-            while self.processed < self.asserted.len() {
-                let (i, j, c) = self.asserted[self.processed];
-                match self.incremental(i, j, c) {
-                    None => {
-                        self.tight[(c * self.p + i) * self.p + j] = true;
-                        self.processed += 1;
-                    }
-                    Some(path) => {
-                        let stamp = self.processed + 1;
-                        self.add_cut(c, &path, Some((i, j)), stamp)?;
-                        again = true;
-                        break;
+            for c in 0..self.n {
+                if self.dirty[c] {
+                    self.stats.full_recomputes += 1;
+                    match self.bellman_ford(c)? {
+                        None => self.dirty[c] = false,
+                        Some(cycle) => return self.implied(c, &cycle, None),
                     }
                 }
-            }
-            if !again {
-                return Ok(());
             }
         }
+        while self.tight_done < self.items.len() {
+            if let Item::Tight(i, j, c) = self.items[self.tight_done] {
+                if let Some(path) = self.incremental(i, j, c) {
+                    return self.implied(c, &path, Some((i, j)));
+                }
+                self.tight[(c * self.p + i) * self.p + j] = true;
+            }
+            self.tight_done += 1;
+        }
+        if self.facts_changed {
+            self.facts_changed = false;
+            let refuted = self.refute_facts(open)?;
+            if !refuted.is_empty() {
+                return Ok(Step::Refuted(refuted));
+            }
+        }
+        Ok(Step::Done)
+    }
+
+    /// The facts with `open(f)` that cannot hold together with the facts in
+    /// force, each with its lemma. Tested on a copy of the simplex, so the
+    /// current profile stays; a fact that the current profile satisfies is
+    /// consistent and needs no test.
+    fn refute_facts(&mut self, open: &dyn Fn(usize) -> bool) -> Result<Vec<(usize, Lemma)>, TheoryError> {
+        let mut out = Vec::new();
+        let mut lp: Option<ExactLp> = None;
+        for f in 0..self.facts.len() {
+            if self.active[f] || !open(f) {
+                continue;
+            }
+            let dot: i128 = self.facts[f]
+                .coeffs
+                .iter()
+                .zip(&self.d)
+                .map(|(a, d)| i128::from(*a) * i128::from(*d))
+                .sum();
+            if dot >= 0 {
+                continue;
+            }
+            let test = lp.get_or_insert_with(|| self.lp.clone());
+            let row = self.facts[f].row;
+            test.set_zero_bound(row, false, true);
+            self.stats.lp_checks += 1;
+            let conflict = test.check();
+            test.set_zero_bound(row, false, false);
+            if let Some(conflict) = conflict {
+                self.active[f] = true;
+                let lemma = self.profile_lemma(&conflict.terms);
+                self.active[f] = false;
+                out.push((f, lemma?));
+                if test.check().is_some() {
+                    return Err(TheoryError::Internal("the facts in force became infeasible".into()));
+                }
+            }
+        }
+        Ok(out)
     }
 
     /// Shortest-path potentials for coordinate `c` from the current ones, or a
@@ -406,16 +513,15 @@ impl Theory {
         None
     }
 
-    /// Turns the cycle into a cut, asserts it, and re-solves the simplex.
-    /// `extra = Some((i, j))` closes the path `i → … → j` with the new atom
-    /// `T(i, j, c)` (edge `j → i`); `None` means `nodes` is a closed cycle.
-    fn add_cut(
+    /// The fact implied by a negative cycle. `extra = Some((i, j))` closes the
+    /// path `i → … → j` with the atom `T(i, j, c)` (edge `j → i`) being
+    /// examined; `None` means `nodes` is a closed cycle.
+    fn implied(
         &mut self,
         c: usize,
         nodes: &[usize],
         extra: Option<(usize, usize)>,
-        stamp: usize,
-    ) -> Result<(), TheoryError> {
+    ) -> Result<Step, TheoryError> {
         let p = self.p;
         let mut coeffs = vec![0i64; self.m];
         let mut atoms = Vec::new();
@@ -430,17 +536,17 @@ impl Theory {
             let k = self.kap[u * p + v];
             weight += self.w(c, u, v);
             if self.tight[(c * p + v) * p + u] {
-                atoms.push((v, u, c));
+                atoms.push(((v, u, c), BigInt::one()));
                 coeffs[k - 1] -= 1;
             } else {
-                background.push((u, v, c));
+                background.push(((u, v, c), BigInt::one()));
                 coeffs[k - 1] += 1;
             }
         }
         if let Some((i, j)) = extra {
             let k = self.kap[i * p + j];
             weight -= self.d[k - 1];
-            atoms.push((i, j, c));
+            atoms.push(((i, j, c), BigInt::one()));
             coeffs[k - 1] -= 1;
         }
         if weight >= 0 {
@@ -448,46 +554,113 @@ impl Theory {
                 "cycle of weight {weight} in coordinate {c} reported as negative"
             )));
         }
-        self.stats.cuts += 1;
-        let g = coeffs.iter().fold(0i64, |g, &a| g.gcd(&a)).max(1);
-        let reduced: Vec<i64> = coeffs.iter().map(|a| a / g).collect();
-        let row = match self.rows.get(&reduced) {
-            Some(&r) => r,
-            None => {
-                let r = self.lp.add_row(&reduced);
-                self.rows.insert(reduced, r);
-                r
-            }
-        };
-        if self.owner.contains_key(&row) {
+        self.stats.implied += 1;
+        let (fact, g) = self.fact_for(&coeffs);
+        if self.active[fact] {
             return Err(TheoryError::Internal(
-                "a cut already in force is violated by the current profile".into(),
+                "a fact in force is violated by the current profile".into(),
             ));
         }
-        let idx = self.cuts.len();
-        self.cuts.push(Cut {
-            atoms,
-            background,
-            g,
-            row,
-            stamp,
-        });
-        self.owner.insert(row, idx);
-        self.lp.set_zero_bound(row, false, true);
-        self.stats.lp_checks += 1;
-        match self.lp.check() {
-            Some(conflict) => {
-                self.stats.conflicts += 1;
-                Err(TheoryError::Conflict(self.lemma(&conflict.terms)?))
-            }
-            None => {
-                self.set_profile()?;
-                Ok(())
-            }
-        }
+        atoms.sort();
+        background.sort();
+        Ok(Step::Implied {
+            fact,
+            lemma: Lemma {
+                atoms,
+                facts: Vec::new(),
+                conclusion: Some((fact, BigInt::from(g))),
+                background,
+                norm: Vec::new(),
+                unit: Vec::new(),
+            },
+        })
     }
 
-    /// Scales the simplex's rational profile to integers and marks every coordinate for recomputation.
+    /// The fact `a·D ≥ 0` for `a = coeffs / g` (`g` the gcd), created if new; returns it and `g`.
+    fn fact_for(&mut self, coeffs: &[i64]) -> (usize, i64) {
+        let g = coeffs.iter().fold(0i64, |g, &a| g.gcd(&a)).max(1);
+        let reduced: Vec<i64> = coeffs.iter().map(|a| a / g).collect();
+        if let Some(&f) = self.fact_of.get(&reduced) {
+            return (f, g);
+        }
+        let row = self.lp.add_row(&reduced);
+        let f = self.facts.len();
+        self.facts.push(Fact {
+            coeffs: reduced.clone(),
+            row,
+        });
+        self.active.push(false);
+        self.fact_of.insert(reduced, f);
+        self.row_fact.insert(row, f);
+        self.stats.facts += 1;
+        (f, g)
+    }
+
+    /// The implication lemmas of every cycle with two atoms, in every
+    /// coordinate: chains `T(a,b,c) ∧ T(b,e,c) → D_κ(a,e) ≥ D_κ(a,b) + D_κ(b,e)`
+    /// and crossings `T(a,b,c) ∧ T(d,e,c) → D_κ(a,e) + D_κ(d,b) ≥ D_κ(a,b) + D_κ(d,e)`
+    /// (`a, b, d, e` distinct), skipping those whose fact holds for every
+    /// profile. Each is `F ∨ ¬T ∨ ¬T` with its certificate.
+    pub fn pattern_lemmas(&mut self) -> Vec<(usize, Lemma)> {
+        let (n, p) = (self.n, self.p);
+        let k = |u: usize, v: usize| kappa(u, v, p);
+        let mut out = Vec::new();
+        let one = BigInt::one;
+        for c in 0..n {
+            let mut emit = |th: &mut Theory, atoms: Vec<(usize, usize)>, bg: Vec<(usize, usize)>| {
+                let mut coeffs = vec![0i64; th.m];
+                for &(a, b) in &atoms {
+                    coeffs[k(a, b) - 1] -= 1;
+                }
+                for &(u, v) in &bg {
+                    coeffs[k(u, v) - 1] += 1;
+                }
+                if coeffs.iter().all(|&x| x >= 0) {
+                    return;
+                }
+                let (fact, g) = th.fact_for(&coeffs);
+                let mut atoms: Vec<_> = atoms.iter().map(|&(a, b)| ((a, b, c), one())).collect();
+                let mut background: Vec<_> = bg.iter().map(|&(u, v)| ((u, v, c), one())).collect();
+                atoms.sort();
+                background.sort();
+                out.push((
+                    fact,
+                    Lemma {
+                        atoms,
+                        facts: Vec::new(),
+                        conclusion: Some((fact, BigInt::from(g))),
+                        background,
+                        norm: Vec::new(),
+                        unit: Vec::new(),
+                    },
+                ));
+            };
+            for a in 0..p {
+                for b in (0..p).filter(|&b| b != a) {
+                    for e in (0..p).filter(|&e| e != a && e != b) {
+                        // edges b→a and e→b (atoms), a→e (background)
+                        emit(self, vec![(a, b), (b, e)], vec![(a, e)]);
+                    }
+                }
+            }
+            for a in 0..p {
+                for b in (0..p).filter(|&b| b != a) {
+                    for d in (0..p).filter(|&d| d != a && d != b) {
+                        for e in (0..p).filter(|&e| e != a && e != b && e != d) {
+                            if (a, b) < (d, e) {
+                                // edges b→a, e→d (atoms), a→e, d→b (background)
+                                emit(self, vec![(a, b), (d, e)], vec![(a, e), (d, b)]);
+                            }
+                        }
+                    }
+                }
+            }
+        }
+        out
+    }
+
+    /// Scales the simplex's rational profile to integers; marks every
+    /// coordinate for recomputation when it changed.
     fn set_profile(&mut self) -> Result<(), TheoryError> {
         let q = self.lp.profile();
         let l = q.iter().fold(BigInt::one(), |l, x| l.lcm(x.denom()));
@@ -500,15 +673,16 @@ impl Theory {
                 TheoryError::Internal(format!("profile value {x} out of range after scaling"))
             })?);
         }
-        self.d = d;
-        self.dirty.iter_mut().for_each(|x| *x = true);
+        if d != self.d {
+            self.d = d;
+            self.dirty.iter_mut().for_each(|x| *x = true);
+        }
         Ok(())
     }
 
-    /// Converts the simplex's conflict into a lemma with integer multipliers.
-    fn lemma(&self, terms: &[(usize, Side, BigRational)]) -> Result<Lemma, TheoryError> {
-        let mut atoms: HashMap<(usize, usize, usize), BigRational> = HashMap::new();
-        let mut bg: HashMap<(usize, usize, usize), BigRational> = HashMap::new();
+    /// Converts the simplex's conflict into a lemma over facts, with integer multipliers.
+    fn profile_lemma(&self, terms: &[(usize, Side, BigRational)]) -> Result<Lemma, TheoryError> {
+        let mut facts: Vec<(usize, BigRational)> = Vec::new();
         let mut norm: Vec<(usize, BigRational)> = Vec::new();
         let mut unit: Vec<(usize, BigRational)> = Vec::new();
         for (v, side, mu) in terms {
@@ -516,60 +690,36 @@ impl Theory {
                 norm.push((v + 1, mu.clone()));
             } else if let (Some(&u), Side::Upper) = (self.unit_rows.get(v), side) {
                 unit.push((u, mu.clone()));
-            } else if let (Some(&idx), Side::Lower) = (self.owner.get(v), side) {
-                let cut = &self.cuts[idx];
-                let share = mu / BigRational::from_integer(cut.g.into());
-                for a in &cut.atoms {
-                    *atoms.entry(*a).or_insert_with(BigRational::zero) += &share;
-                }
-                for b in &cut.background {
-                    *bg.entry(*b).or_insert_with(BigRational::zero) += &share;
-                }
+            } else if let (Some(&f), Side::Lower, true) = (
+                self.row_fact.get(v),
+                side,
+                self.row_fact.get(v).is_some_and(|&f| self.active[f]),
+            ) {
+                facts.push((f, mu.clone()));
             } else {
                 return Err(TheoryError::Internal(format!(
                     "simplex conflict names variable {v} ({side:?}) without a bound in force"
                 )));
             }
         }
-        let all = atoms
-            .values()
-            .chain(bg.values())
-            .chain(norm.iter().map(|x| &x.1))
-            .chain(unit.iter().map(|x| &x.1));
-        let l = all.fold(BigInt::one(), |l, x| l.lcm(x.denom()));
-        let int = |x: &BigRational| x.numer() * (&l / x.denom());
+        let all = facts
+            .iter()
+            .chain(norm.iter())
+            .chain(unit.iter())
+            .map(|x| &x.1);
+        let l = all.clone().fold(BigInt::one(), |l, x| l.lcm(x.denom()));
+        let ints: Vec<BigInt> = all.map(|x| x.numer() * (&l / x.denom())).collect();
+        let g = ints.iter().fold(BigInt::zero(), |g, x| g.gcd(x));
+        let int = |x: &BigRational| x.numer() * (&l / x.denom()) / &g;
         let mut out = Lemma {
-            atoms: atoms.iter().map(|(a, x)| (*a, int(x))).collect(),
-            background: bg.iter().map(|(a, x)| (*a, int(x))).collect(),
+            atoms: Vec::new(),
+            facts: facts.iter().map(|(f, x)| (*f, int(x))).collect(),
+            conclusion: None,
+            background: Vec::new(),
             norm: norm.iter().map(|(k, x)| (*k, int(x))).collect(),
             unit: unit.iter().map(|(k, x)| (*k, int(x))).collect(),
         };
-        let g = out
-            .atoms
-            .iter()
-            .map(|x| &x.1)
-            .chain(out.background.iter().map(|x| &x.1))
-            .chain(out.norm.iter().map(|x| &x.1))
-            .chain(out.unit.iter().map(|x| &x.1))
-            .fold(BigInt::zero(), |g, x| g.gcd(x));
-        if g > BigInt::one() {
-            for x in out.atoms.iter_mut().map(|x| &mut x.1) {
-                *x /= &g;
-            }
-            for x in out.background.iter_mut().map(|x| &mut x.1) {
-                *x /= &g;
-            }
-            for x in out.norm.iter_mut().map(|x| &mut x.1) {
-                *x /= &g;
-            }
-            for x in out.unit.iter_mut().map(|x| &mut x.1) {
-                *x /= &g;
-            }
-        }
-        out.atoms.retain(|x| x.1.is_positive());
-        out.background.retain(|x| x.1.is_positive());
-        out.atoms.sort();
-        out.background.sort();
+        out.facts.sort();
         out.norm.sort();
         out.unit.sort();
         Ok(out)

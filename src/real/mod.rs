@@ -183,6 +183,8 @@ pub fn decide(
                 certificate::render_lemmas(n, p, &facts, solver.lemmas(), &mut buf)
                     .map_err(|e| Error::io(&path, e))?;
                 std::fs::write(&path, buf).map_err(|e| Error::io(&path, e))?;
+                let path = d.join(certificate::SKELETON);
+                std::fs::write(&path, skeleton::render(&sk)).map_err(|e| Error::io(&path, e))?;
             }
             RealAnswer::Unknown { reason }
         }

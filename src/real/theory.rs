@@ -154,6 +154,9 @@ pub struct Theory {
     pub stats: TheoryStats,
 }
 
+/// At most this many facts are tested per refutation round (each test is a simplex check).
+const MAX_REFUTATION_TESTS: usize = 16;
+
 /// Largest profile value the potentials accept (keeps all sums far from i64 overflow).
 const MAX_D: i64 = 1 << 40;
 
@@ -373,6 +376,7 @@ impl Theory {
     fn refute_facts(&mut self, open: &dyn Fn(usize) -> bool) -> Result<Vec<(usize, Lemma)>, TheoryError> {
         let mut out = Vec::new();
         let mut lp: Option<ExactLp> = None;
+        let mut tested = 0;
         for f in 0..self.facts.len() {
             if self.active[f] || !open(f) {
                 continue;
@@ -385,6 +389,10 @@ impl Theory {
                 .sum();
             if dot >= 0 {
                 continue;
+            }
+            tested += 1;
+            if tested > MAX_REFUTATION_TESTS {
+                break;
             }
             let test = lp.get_or_insert_with(|| self.lp.clone());
             let row = self.facts[f].row;

@@ -159,7 +159,10 @@ fn check_line(
         if l == 0 {
             break;
         }
-        if clause.iter().any(|&x: &i32| x.unsigned_abs() == l.unsigned_abs()) {
+        if clause
+            .iter()
+            .any(|&x: &i32| x.unsigned_abs() == l.unsigned_abs())
+        {
             return Err(format!("variable {} occurs twice", l.unsigned_abs()));
         }
         clause.push(l);
@@ -180,7 +183,9 @@ fn check_line(
         let v = l.unsigned_abs() as usize;
         if v <= n * per_c {
             if l > 0 {
-                return Err(format!("literal {l}: a tight variable may occur only negated"));
+                return Err(format!(
+                    "literal {l}: a tight variable may occur only negated"
+                ));
             }
             let v = v - 1;
             let c = v / per_c;
@@ -235,7 +240,9 @@ fn check_line(
                 let q = index(toks.next(), "u: Q")?;
                 let y = num(toks.next(), "u: multiplier")?;
                 if q < 2 || q > p / 2 || gcd(q, p) != 1 {
-                    return Err(format!("u: {q} is not a unit class other than 1 for p = {p}"));
+                    return Err(format!(
+                        "u: {q} is not a unit class other than 1 for p = {p}"
+                    ));
                 }
                 Sum::add(&mut sum.d[0], y)?;
                 Sum::add(&mut sum.d[q - 1], -y)?;
@@ -283,12 +290,20 @@ pub fn check_lemmas(
         return Err(err(0, format!("no lemmas exist for n = {n}, p = {p}")));
     }
     if first_fact <= n * p * (p - 1) {
-        return Err(err(0, format!("facts would overlap the tight variables (first fact {first_fact})")));
+        return Err(err(
+            0,
+            format!("facts would overlap the tight variables (first fact {first_fact})"),
+        ));
     }
     let mut lines = text.lines().enumerate();
     match lines.next() {
         Some((_, h)) if h.trim_end() == header(n, p) => {}
-        _ => return Err(err(1, format!("the first line should be {:?}", header(n, p)))),
+        _ => {
+            return Err(err(
+                1,
+                format!("the first line should be {:?}", header(n, p)),
+            ));
+        }
     }
     let mut facts: Vec<Vec<i128>> = Vec::new();
     let mut clauses = Vec::new();
@@ -309,15 +324,24 @@ pub fn check_lemmas(
             if v != first_fact + facts.len() {
                 return Err(err(
                     k + 1,
-                    format!("fact variable {v} declared where {} was expected", first_fact + facts.len()),
+                    format!(
+                        "fact variable {v} declared where {} was expected",
+                        first_fact + facts.len()
+                    ),
                 ));
             }
             let a: Vec<i128> = w
-                .map(|x| x.parse::<i128>().map_err(|_| format!("f: {x:?} is not an integer")))
+                .map(|x| {
+                    x.parse::<i128>()
+                        .map_err(|_| format!("f: {x:?} is not an integer"))
+                })
                 .collect::<Result<_, _>>()
                 .map_err(|r| err(k + 1, r))?;
             if a.len() != p / 2 {
-                return Err(err(k + 1, format!("f: {} coefficients, expected {}", a.len(), p / 2)));
+                return Err(err(
+                    k + 1,
+                    format!("f: {} coefficients, expected {}", a.len(), p / 2),
+                ));
             }
             facts.push(a);
             summary.facts += 1;
@@ -355,7 +379,7 @@ mod tests {
             check_lemmas(1, 3, 7, &positive)
                 .unwrap_err()
                 .reason
-                .contains("negation")
+                .contains("only negated")
         );
         let no_g = GOOD.replace(" g 1 1", "");
         assert!(
@@ -369,6 +393,18 @@ mod tests {
             .replace("b 0 2 0 1", "b 0 2 0 1 b 0 2 0 0");
         assert!(check_lemmas(1, 3, 7, &zero).is_err());
         assert!(check_lemmas(1, 4, 13, GOOD).is_err());
+        // an implication: T(0,1,0) ∧ T(1,2,0) → 2·D_1 ≤ D_2 (n = 1, p = 5; fact variable 21)
+        let imp = "c orbitcnf-real-lemmas formulation=real-skeleton/1 n=1 p=5\nf 21 -2 1\n21 -1 -6 0 y 1 1 1 b 0 2 0 1\n";
+        let (cl, s) = check_lemmas(1, 5, 21, imp).unwrap();
+        assert_eq!((cl, s.facts), (vec![vec![21, -1, -6]], 1));
+        assert!(check_lemmas(1, 5, 21, &imp.replace("y 1 1 1", "y 0 1 1")).is_err());
+        assert!(
+            check_lemmas(1, 5, 22, imp)
+                .unwrap_err()
+                .reason
+                .contains("declared where")
+        );
+        assert!(check_lemmas(1, 5, 21, &imp.replace("f 21 -2 1", "f 21 -2 2")).is_err());
         let unit = GOOD.replace("g 1 1", "u 1 1");
         assert!(
             check_lemmas(1, 3, 7, &unit)

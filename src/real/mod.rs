@@ -279,7 +279,8 @@ fn write_certificate(
     let path = dir.join(certificate::LEMMAS);
     let f = std::fs::File::create(&path).map_err(|e| Error::io(&path, e))?;
     let mut w = std::io::BufWriter::new(f);
-    certificate::render_lemmas(sk.n, sk.p, facts, lemmas, &mut w).map_err(|e| Error::io(&path, e))?;
+    certificate::render_lemmas(sk.n, sk.p, facts, lemmas, &mut w)
+        .map_err(|e| Error::io(&path, e))?;
     w.flush().map_err(|e| Error::io(&path, e))?;
     let path = dir.join(certificate::PROOF);
     let f = std::fs::File::create(&path).map_err(|e| Error::io(&path, e))?;

@@ -928,7 +928,11 @@ impl Solver {
         if self.patterns {
             // before the first propagation every watch is still to be visited,
             // so these clauses may be attached whatever their literals' values
-            let pats = self.theory.as_mut().map(|t| t.pattern_lemmas()).unwrap_or_default();
+            let pats = self
+                .theory
+                .as_mut()
+                .map(|t| t.pattern_lemmas())
+                .unwrap_or_default();
             for (fact, lemma) in pats {
                 let fv = self.fact_variable(fact);
                 let mut lits = vec![fv << 1];

@@ -373,7 +373,10 @@ impl Theory {
     /// force, each with its lemma. Tested on a copy of the simplex, so the
     /// current profile stays; a fact that the current profile satisfies is
     /// consistent and needs no test.
-    fn refute_facts(&mut self, open: &dyn Fn(usize) -> bool) -> Result<Vec<(usize, Lemma)>, TheoryError> {
+    fn refute_facts(
+        &mut self,
+        open: &dyn Fn(usize) -> bool,
+    ) -> Result<Vec<(usize, Lemma)>, TheoryError> {
         let mut out = Vec::new();
         let mut lp: Option<ExactLp> = None;
         let mut tested = 0;
@@ -406,7 +409,9 @@ impl Theory {
                 self.active[f] = false;
                 out.push((f, lemma?));
                 if test.check().is_some() {
-                    return Err(TheoryError::Internal("the facts in force became infeasible".into()));
+                    return Err(TheoryError::Internal(
+                        "the facts in force became infeasible".into(),
+                    ));
                 }
             }
         }
@@ -615,7 +620,9 @@ impl Theory {
         let mut out = Vec::new();
         let one = BigInt::one;
         for c in 0..n {
-            let mut emit = |th: &mut Theory, atoms: Vec<(usize, usize)>, bg: Vec<(usize, usize)>| {
+            let mut emit = |th: &mut Theory,
+                            atoms: Vec<(usize, usize)>,
+                            bg: Vec<(usize, usize)>| {
                 let mut coeffs = vec![0i64; th.m];
                 for &(a, b) in &atoms {
                     coeffs[k(a, b) - 1] -= 1;

@@ -21,6 +21,7 @@ mod instances;
 mod points;
 mod proofs;
 mod published;
+mod real;
 mod scaleout;
 mod spectrum;
 mod topical;

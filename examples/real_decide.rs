@@ -15,6 +15,12 @@ fn main() {
     if std::env::var_os("NOPAT").is_some() {
         o.patterns = false;
     }
+    if let Some(after) = std::env::var("HANDOFF").ok().and_then(|a| a.parse().ok()) {
+        o.handoff = Some(orbitcnf::real::Handoff {
+            command: "cadical -q".into(),
+            after: Duration::from_secs(after),
+        });
+    }
     if std::env::var_os("NOCERT").is_some() {
         o.certify = false;
     }

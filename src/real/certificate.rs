@@ -68,20 +68,19 @@ pub fn render_lemmas(
         }
         writeln!(out, "{s}")?;
     }
-    let fvar = |f: usize| facts.get(f).map_or(0, |x| x.0);
     for l in lemmas {
         let mut s = String::new();
         let mut ys = String::new();
-        if let Some((f, y)) = &l.conclusion {
-            let _ = write!(s, "{} ", fvar(*f));
-            let _ = write!(ys, " {y}");
+        for lit in lemma_lits(n, p, facts, l) {
+            let _ = write!(s, "{lit} ");
         }
-        for (f, y) in &l.facts {
-            let _ = write!(s, "-{} ", fvar(*f));
-            let _ = write!(ys, " {y}");
-        }
-        for ((i, j, c), y) in &l.atoms {
-            let _ = write!(s, "-{} ", skeleton::tight_var(n, p, *i, *j, *c).dimacs());
+        let ms = l
+            .conclusion
+            .iter()
+            .map(|x| &x.1)
+            .chain(l.facts.iter().map(|x| &x.1))
+            .chain(l.atoms.iter().map(|x| &x.1));
+        for y in ms {
             let _ = write!(ys, " {y}");
         }
         let _ = write!(s, "0 y{ys}");
@@ -97,6 +96,23 @@ pub fn render_lemmas(
         writeln!(out, "{s}")?;
     }
     Ok(())
+}
+
+/// The clause of a lemma as DIMACS literals, in the lemma file's order: the
+/// conclusion, the negated facts, the negated atoms. `facts[f].0` is fact `f`'s variable.
+pub fn lemma_lits(n: usize, p: usize, facts: &[(u32, Vec<i64>)], l: &Lemma) -> Vec<i32> {
+    let fvar = |f: usize| facts.get(f).map_or(0, |x| x.0 as i32);
+    let mut out = Vec::with_capacity(1 + l.facts.len() + l.atoms.len());
+    if let Some((f, _)) = &l.conclusion {
+        out.push(fvar(*f));
+    }
+    out.extend(l.facts.iter().map(|(f, _)| -fvar(*f)));
+    out.extend(
+        l.atoms
+            .iter()
+            .map(|((i, j, c), _)| -(skeleton::tight_var(n, p, *i, *j, *c).dimacs() as i32)),
+    );
+    out
 }
 
 /// Checks the certificate in `dir` for the question `(n, p)`.

@@ -84,7 +84,7 @@ fn gcd(a: usize, b: usize) -> usize {
 }
 
 fn class(i: usize, j: usize, p: usize) -> usize {
-    let d = if i > j { i - j } else { j - i };
+    let d = i.abs_diff(j);
     if 2 * d > p { p - d } else { d }
 }
 

@@ -60,6 +60,22 @@ pub struct RealOptions {
     pub certificate_dir: Option<PathBuf>,
     /// Start with the lemmas of every two-atom cycle ([`theory::Theory::pattern_lemmas`]).
     pub patterns: bool,
+    /// Hand the propositional endgame to an external solver; `None` (the
+    /// default) searches with the bundled CDCL(T) only.
+    pub handoff: Option<Handoff>,
+}
+
+/// After some internal search, let an external DIMACS solver refute the
+/// skeleton plus the lemmas found, in a loop: a model it finds is examined by
+/// the theory, which adds lemmas or confirms an orbit. Its DRAT proof is
+/// converted to LRAT by `rate` and checked like any certificate.
+#[derive(Clone, Debug)]
+pub struct Handoff {
+    /// The solver's command line, e.g. `cadical -q` (the CNF path and the
+    /// proof path are appended).
+    pub command: String,
+    /// Internal search before the first hand-off.
+    pub after: Duration,
 }
 
 impl RealOptions {
@@ -70,6 +86,7 @@ impl RealOptions {
             certify: true,
             certificate_dir: None,
             patterns: true,
+            handoff: None,
         }
     }
 }
@@ -165,7 +182,19 @@ pub fn decide(
     let mut solver = sat::Solver::new(&sk.cnf, Some(th), atom, options.certify)?;
     solver.patterns = options.patterns;
     let deadline = time.map(|t| t0 + t);
-    let outcome = solver.solve(&sk.cnf, deadline, progress);
+    let inner = match &options.handoff {
+        Some(h) => Some(deadline.map_or(t0 + h.after, |d| d.min(t0 + h.after))),
+        None => deadline,
+    };
+    let mut outcome = solver.solve(&sk.cnf, inner, progress);
+    let mut handed = None;
+    if let (sat::SatOutcome::Unknown(_), Some(h)) = (&outcome, &options.handoff) {
+        if deadline.is_none_or(|d| Instant::now() < d) {
+            let (o, dir) = handoff(&mut solver, &sk, h, options, deadline)?;
+            outcome = o;
+            handed = dir;
+        }
+    }
     report.search_seconds = t0.elapsed().as_secs_f64();
     report.sat = solver.stats.clone();
     report.lemmas = solver.lemmas().len();
@@ -208,6 +237,20 @@ pub fn decide(
             let hi = orbit.iter().flatten().copied().max().unwrap_or(0);
             let check = check_orbit(&vec![(0, hi); n], &orbit)?;
             RealAnswer::Feasible { orbit, check }
+        }
+        sat::SatOutcome::Unsat if handed.is_some() => {
+            let t1 = Instant::now();
+            let dir = handed
+                .as_ref()
+                .map(|d: &tempfile::TempDir| d.path().to_path_buf());
+            let dir = options.certificate_dir.clone().or(dir).unwrap_or_default();
+            write_files(&dir, &sk, &fact_table(&solver), solver.lemmas())?;
+            let check = certificate::check_dir(n, p, &dir)?;
+            report.check_seconds = t1.elapsed().as_secs_f64();
+            RealAnswer::Infeasible {
+                check: Some(check),
+                dir: options.certificate_dir.clone(),
+            }
         }
         sat::SatOutcome::Unsat if !options.certify => RealAnswer::Infeasible {
             check: None,
@@ -266,14 +309,76 @@ fn fact_table(solver: &sat::Solver) -> Vec<(u32, Vec<i64>)> {
         .collect()
 }
 
-fn write_certificate(
+/// The hand-off loop of [`Handoff`]. Returns the outcome and, for `Unsat`,
+/// the temporary directory holding the checked LRAT proof when no
+/// certificate directory was given.
+fn handoff(
+    solver: &mut sat::Solver,
+    sk: &skeleton::Skeleton,
+    h: &Handoff,
+    options: &RealOptions,
+    deadline: Option<Instant>,
+) -> Result<(sat::SatOutcome, Option<tempfile::TempDir>)> {
+    use crate::solve::external::{External, ProofFormat, ProofRequest};
+    use crate::solve::{Backend, Limits, Outcome};
+    let tmp = tempfile::tempdir().map_err(|e| Error::io("<temporary directory>", e))?;
+    let dir = options
+        .certificate_dir
+        .clone()
+        .unwrap_or_else(|| tmp.path().to_path_buf());
+    std::fs::create_dir_all(&dir).map_err(|e| Error::io(&dir, e))?;
+    loop {
+        let facts = fact_table(solver);
+        let mut cnf = sk.cnf.clone();
+        for l in solver.lemmas() {
+            let lits: Vec<crate::cnf::Lit> = certificate::lemma_lits(sk.n, sk.p, &facts, l)
+                .into_iter()
+                .map(crate::cnf::Lit::from_dimacs)
+                .collect();
+            cnf.add_clause(&lits);
+        }
+        let mut ext = External::parse(&h.command)?;
+        ext.proof = Some(ProofRequest {
+            args: vec!["{}".into()],
+            format: ProofFormat::Drat,
+            keep_lrat: Some(dir.join(certificate::PROOF)),
+            keep_raw: None,
+        });
+        let limits = Limits {
+            time: deadline.map(|d| d.saturating_duration_since(Instant::now())),
+            progress: false,
+        };
+        let r = ext.solve(&cnf, &limits)?;
+        match r.outcome {
+            Outcome::Unsat if r.proof.is_some() => return Ok((sat::SatOutcome::Unsat, Some(tmp))),
+            Outcome::Unsat => {
+                return Ok((
+                    sat::SatOutcome::Unknown(format!(
+                        "{} claims unsatisfiability, but no proof could be checked (is rate installed?)",
+                        ext.command_line()
+                    )),
+                    None,
+                ));
+            }
+            Outcome::Unknown(why) => return Ok((sat::SatOutcome::Unknown(why), None)),
+            Outcome::Sat(model) => match solver.refine(&model) {
+                Ok(true) => return Ok((sat::SatOutcome::Sat, None)),
+                Ok(false) => {}
+                Err(e) => return Ok((sat::SatOutcome::Unknown(format!("theory: {e}")), None)),
+            },
+        }
+    }
+}
+
+/// Writes the skeleton and the lemma file of a certificate.
+fn write_files(
     dir: &Path,
     sk: &skeleton::Skeleton,
     facts: &[(u32, Vec<i64>)],
     lemmas: &[theory::Lemma],
-    log: prooflog::ProofLog,
 ) -> Result<()> {
     use std::io::Write;
+    std::fs::create_dir_all(dir).map_err(|e| Error::io(dir, e))?;
     let path = dir.join(certificate::SKELETON);
     std::fs::write(&path, skeleton::render(sk)).map_err(|e| Error::io(&path, e))?;
     let path = dir.join(certificate::LEMMAS);
@@ -282,6 +387,18 @@ fn write_certificate(
     certificate::render_lemmas(sk.n, sk.p, facts, lemmas, &mut w)
         .map_err(|e| Error::io(&path, e))?;
     w.flush().map_err(|e| Error::io(&path, e))?;
+    Ok(())
+}
+
+fn write_certificate(
+    dir: &Path,
+    sk: &skeleton::Skeleton,
+    facts: &[(u32, Vec<i64>)],
+    lemmas: &[theory::Lemma],
+    log: prooflog::ProofLog,
+) -> Result<()> {
+    use std::io::Write;
+    write_files(dir, sk, facts, lemmas)?;
     let path = dir.join(certificate::PROOF);
     let f = std::fs::File::create(&path).map_err(|e| Error::io(&path, e))?;
     let mut w = std::io::BufWriter::new(f);

@@ -877,7 +877,7 @@ impl Solver {
             Err(TheoryError::Conflict(lemma)) => {
                 self.stats.theory_conflicts += 1;
                 let lits = self.lemma_lits(&lemma).map_err(Some)?;
-                Ok(Some(self.store_lemma(&lits, lemma)))
+                Ok(Some(self.store_lemma(&lits, *lemma)))
             }
             Err(TheoryError::Internal(e)) => Err(Some(e)),
         }
@@ -1014,6 +1014,36 @@ impl Solver {
     /// Number of variables.
     pub fn num_vars(&self) -> usize {
         self.nvars
+    }
+
+    /// Examines a full assignment found elsewhere (an external solver's model
+    /// of the skeleton and the lemmas): asserts its true tight atoms and runs
+    /// the theory to a fixpoint, adding every lemma it finds. Returns `true`
+    /// when the theory is consistent (then [`Solver::theory`] holds the
+    /// profile and potentials of an orbit), `false` after new lemmas were added.
+    ///
+    /// # Errors
+    /// A message when the theory fails internally.
+    pub fn refine(&mut self, model: &[bool]) -> std::result::Result<bool, String> {
+        self.backtrack(0);
+        self.lim.push(self.trail.len());
+        for (v, &on) in model.iter().enumerate().take(self.nvars) {
+            let l = (v as u32) << 1;
+            if on && matches!(self.atom[v], Some(Item::Tight(..))) && self.lval(l) == 0 {
+                self.enqueue(l, NONE);
+            }
+        }
+        loop {
+            match self.theory_check() {
+                Ok(None) => return Ok(true),
+                Ok(Some(_)) => {
+                    self.backtrack(0);
+                    return Ok(false);
+                }
+                Err(None) => {}
+                Err(Some(e)) => return Err(e),
+            }
+        }
     }
 }
 

@@ -70,7 +70,7 @@ pub struct Lemma {
 #[derive(Debug)]
 pub enum TheoryError {
     /// The asserted atoms and facts are infeasible: a lemma explains why.
-    Conflict(Lemma),
+    Conflict(Box<Lemma>),
     /// Numbers grew past what the potentials can hold, or an invariant broke.
     Internal(String),
 }
@@ -326,7 +326,9 @@ impl Theory {
             self.stats.lp_checks += 1;
             if let Some(conflict) = self.lp.check() {
                 self.stats.conflicts += 1;
-                return Err(TheoryError::Conflict(self.profile_lemma(&conflict.terms)?));
+                return Err(TheoryError::Conflict(Box::new(
+                    self.profile_lemma(&conflict.terms)?,
+                )));
             }
             self.lp_dirty = false;
             self.set_profile()?;

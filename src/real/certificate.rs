@@ -143,7 +143,11 @@ pub fn check_dir(n: usize, p: usize, dir: &Path) -> Result<CertificateCheck> {
     let lem_path = dir.join(LEMMAS);
     let lem = std::fs::read_to_string(&lem_path).map_err(|e| Error::io(&lem_path, e))?;
     let first_fact = sk.cnf.num_vars() as usize + 1;
-    let (clauses, farkas) = farkas_check::check_lemmas(n, p, first_fact, &lem)?;
+    let (clauses, farkas) =
+        farkas_check::check_lemmas(n, p, first_fact, &lem).map_err(|mut e| {
+            e.file = lem_path.display().to_string();
+            e
+        })?;
     let mut cnf: Cnf = sk.cnf.clone();
     for c in &clauses {
         let lits: Vec<Lit> = c.iter().map(|&l| Lit::from_dimacs(l)).collect();

@@ -47,6 +47,8 @@ use std::fmt;
 /// Why a lemma was rejected; `line` is 1-based in the lemma file.
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub struct FarkasError {
+    /// The lemma file's path, when the caller knows it (empty otherwise).
+    pub file: String,
     /// The line of the lemma (0 for the whole file).
     pub line: usize,
     /// What is wrong.
@@ -55,7 +57,11 @@ pub struct FarkasError {
 
 impl fmt::Display for FarkasError {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        write!(f, "lemma file line {}: {}", self.line, self.reason)
+        match (self.file.is_empty(), self.line) {
+            (true, l) => write!(f, "lemma file line {l}: {}", self.reason),
+            (false, 0) => write!(f, "{}: {}", self.file, self.reason),
+            (false, l) => write!(f, "{}:{l}: {}", self.file, self.reason),
+        }
     }
 }
 
@@ -285,7 +291,11 @@ pub fn check_lemmas(
     first_fact: usize,
     text: &str,
 ) -> Result<(Vec<Vec<i32>>, FarkasSummary), FarkasError> {
-    let err = |line: usize, reason: String| FarkasError { line, reason };
+    let err = |line: usize, reason: String| FarkasError {
+        file: String::new(),
+        line,
+        reason,
+    };
     if n == 0 || p < 2 {
         return Err(err(0, format!("no lemmas exist for n = {n}, p = {p}")));
     }

@@ -23,10 +23,12 @@
 //! certification is switched off, in which case it says so.
 
 pub mod bench;
+pub mod bundle;
 pub mod certificate;
 pub mod farkas_check;
 pub mod lp;
 pub mod prooflog;
+mod report;
 pub mod sat;
 pub mod skeleton;
 pub mod theory;

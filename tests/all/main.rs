@@ -22,6 +22,7 @@ mod points;
 mod proofs;
 mod published;
 mod real;
+mod real_cli;
 mod scaleout;
 mod spectrum;
 mod topical;

@@ -24,8 +24,11 @@
 
 use std::time::Instant;
 
+mod heap;
+mod theory_glue;
+
 use super::prooflog::ProofLog;
-use super::theory::{Item, Lemma, Step, Theory, TheoryError};
+use super::theory::{Item, Lemma, Theory};
 use crate::cnf::{Cnf, Lit};
 use crate::error::Result;
 
@@ -274,74 +277,6 @@ impl Solver {
         &self.arena[d.start as usize..(d.start + d.len) as usize]
     }
 
-    // ---- heap (max-activity first)
-
-    fn heap_less(&self, a: u32, b: u32) -> bool {
-        self.act[a as usize] > self.act[b as usize]
-    }
-
-    fn heap_up(&mut self, mut i: usize) {
-        let x = self.heap[i];
-        while i > 0 {
-            let p = (i - 1) / 2;
-            if !self.heap_less(x, self.heap[p]) {
-                break;
-            }
-            self.heap[i] = self.heap[p];
-            self.hpos[self.heap[i] as usize] = i as u32;
-            i = p;
-        }
-        self.heap[i] = x;
-        self.hpos[x as usize] = i as u32;
-    }
-
-    fn heap_down(&mut self, mut i: usize) {
-        let x = self.heap[i];
-        let n = self.heap.len();
-        loop {
-            let l = 2 * i + 1;
-            if l >= n {
-                break;
-            }
-            let r = l + 1;
-            let c = if r < n && self.heap_less(self.heap[r], self.heap[l]) {
-                r
-            } else {
-                l
-            };
-            if !self.heap_less(self.heap[c], x) {
-                break;
-            }
-            self.heap[i] = self.heap[c];
-            self.hpos[self.heap[i] as usize] = i as u32;
-            i = c;
-        }
-        self.heap[i] = x;
-        self.hpos[x as usize] = i as u32;
-    }
-
-    fn heap_insert(&mut self, v: u32) {
-        if self.hpos[v as usize] != NONE {
-            return;
-        }
-        self.heap.push(v);
-        let i = self.heap.len() - 1;
-        self.hpos[v as usize] = i as u32;
-        self.heap_up(i);
-    }
-
-    fn heap_pop(&mut self) -> Option<u32> {
-        let top = *self.heap.first()?;
-        let last = self.heap.pop()?;
-        self.hpos[top as usize] = NONE;
-        if !self.heap.is_empty() {
-            self.heap[0] = last;
-            self.hpos[last as usize] = 0;
-            self.heap_down(0);
-        }
-        Some(top)
-    }
-
     fn bump(&mut self, v: usize) {
         self.act[v] += self.inc;
         if self.act[v] > 1e100 {
@@ -503,6 +438,18 @@ impl Solver {
 
     // ---- conflict analysis
 
+    /// A level-0 variable met in analysis: marked seen (2), to be cleared,
+    /// and its unit clause's id added to the hints. Returns whether `v` was one.
+    fn note_unit(&mut self, v: usize, clear: &mut Vec<usize>, units: &mut Vec<u64>) -> bool {
+        if self.level[v] != 0 {
+            return false;
+        }
+        self.seen[v] = 2;
+        clear.push(v);
+        units.push(self.unit_id[v]);
+        true
+    }
+
     fn lit_redundant(
         &mut self,
         l: u32,
@@ -522,10 +469,7 @@ impl Solver {
                 if v == var(x) || self.seen[v] != 0 {
                     continue;
                 }
-                if self.level[v] == 0 {
-                    self.seen[v] = 2;
-                    clear.push(v);
-                    units.push(self.unit_id[v]);
+                if self.note_unit(v, clear, units) {
                     continue;
                 }
                 if self.reason[v] != NONE && (1u64 << (self.level[v] & 63)) & levels != 0 {
@@ -580,10 +524,7 @@ impl Solver {
                 if self.seen[v] != 0 {
                     continue;
                 }
-                if self.level[v] == 0 {
-                    self.seen[v] = 2;
-                    clear.push(v);
-                    units.push(self.unit_id[v]);
+                if self.note_unit(v, &mut clear, &mut units) {
                     continue;
                 }
                 self.seen[v] = 1;
@@ -714,41 +655,6 @@ impl Solver {
         Ok(())
     }
 
-    /// The clause of a lemma: the conclusion (if any) first, then the negated
-    /// facts and atoms, the latter sorted by trail position, latest first.
-    fn lemma_lits(&self, lemma: &Lemma) -> std::result::Result<Vec<u32>, String> {
-        let mut lits: Vec<u32> = Vec::new();
-        for &((i, j, c), _) in &lemma.atoms {
-            let v = self
-                .atom_var
-                .get(&Item::Tight(i, j, c))
-                .ok_or_else(|| format!("lemma names T({i},{j},{c}), which is no variable"))?;
-            lits.push((*v << 1) | 1);
-        }
-        for (f, _) in &lemma.facts {
-            let v = self
-                .fact_var
-                .get(*f)
-                .ok_or_else(|| format!("lemma names fact {f}, which has no variable"))?;
-            lits.push((*v << 1) | 1);
-        }
-        for &l in &lits {
-            if self.lval(l) != -1 {
-                return Err("a lemma names an item that is not asserted".into());
-            }
-        }
-        lits.sort_by_key(|&l| std::cmp::Reverse(self.tpos[var(l)]));
-        Ok(lits)
-    }
-
-    /// Records a lemma clause in the log and the lemma list, and stores it; returns its index.
-    fn store_lemma(&mut self, lits: &[u32], lemma: Lemma) -> u32 {
-        let id = self.log.lemma();
-        self.lemmas.push(lemma);
-        let lbd = self.lbd(lits);
-        self.attach(lits, id, true, lbd)
-    }
-
     /// Makes `l` the first literal of clause `ci` and a literal of level
     /// `second` its second, and watches those two.
     fn rewatch(&mut self, ci: u32, l: u32, second: usize) {
@@ -815,71 +721,6 @@ impl Solver {
             }
             self.arena = arena;
             self.garbage = 0;
-        }
-    }
-
-    /// Runs the theory: `Ok(None)` when consistent, `Ok(Some(ci))` for a
-    /// conflict clause, and `Err(None)` when it propagated a fact (propagate again).
-    fn theory_check(&mut self) -> std::result::Result<Option<u32>, Option<String>> {
-        let Some(th) = self.theory.as_mut() else {
-            return Ok(None);
-        };
-        let (val, fact_var) = (&self.val, &self.fact_var);
-        let open = |f: usize| fact_var.get(f).is_some_and(|&v| val[2 * v as usize] == 0);
-        match th.check_with(&open) {
-            Ok(Step::Done) => Ok(None),
-            Ok(Step::Refuted(list)) => {
-                for (fact, lemma) in list {
-                    let fv = self.fact_variable(fact);
-                    let neg = (fv << 1) | 1;
-                    if self.lval(neg) != 0 {
-                        continue;
-                    }
-                    let mut lits = Vec::with_capacity(lemma.facts.len());
-                    for (g, _) in &lemma.facts {
-                        let v = self.fact_variable(*g);
-                        if v != fv {
-                            lits.push((v << 1) | 1);
-                        }
-                    }
-                    if lits.iter().any(|&l| self.lval(l) != -1) {
-                        return Err(Some("a refutation names a fact not in force".into()));
-                    }
-                    lits.sort_by_key(|&l| std::cmp::Reverse(self.tpos[var(l)]));
-                    lits.insert(0, neg);
-                    let id = self.log.lemma();
-                    self.lemmas.push(lemma);
-                    let ci = self.attach(&lits, id, false, 2);
-                    self.enqueue(neg, ci);
-                }
-                Err(None)
-            }
-            Ok(Step::Implied { fact, lemma }) => {
-                let fv = self.fact_variable(fact);
-                let mut lits = self.lemma_lits(&lemma).map_err(Some)?;
-                let f = fv << 1;
-                match self.lval(f) {
-                    0 => {
-                        lits.insert(0, f);
-                        let ci = self.store_lemma(&lits, lemma);
-                        self.enqueue(f, ci);
-                        Err(None)
-                    }
-                    -1 => {
-                        lits.push(f);
-                        lits.sort_by_key(|&l| std::cmp::Reverse(self.tpos[var(l)]));
-                        self.stats.theory_conflicts += 1;
-                        Ok(Some(self.store_lemma(&lits, lemma)))
-                    }
-                    _ => Err(Some(format!("fact {fact} is in force and violated"))),
-                }
-            }
-            Err(TheoryError::Conflict(lemma)) => {
-                self.stats.theory_conflicts += 1;
-                let lits = self.lemma_lits(&lemma).map_err(Some)?;
-                Ok(Some(self.store_lemma(&lits, *lemma)))
-            }
-            Err(TheoryError::Internal(e)) => Err(Some(e)),
         }
     }
 
@@ -1015,112 +856,7 @@ impl Solver {
     pub fn num_vars(&self) -> usize {
         self.nvars
     }
-
-    /// Examines a full assignment found elsewhere (an external solver's model
-    /// of the skeleton and the lemmas): asserts its true tight atoms and runs
-    /// the theory to a fixpoint, adding every lemma it finds. Returns `true`
-    /// when the theory is consistent (then [`Solver::theory`] holds the
-    /// profile and potentials of an orbit), `false` after new lemmas were added.
-    ///
-    /// # Errors
-    /// A message when the theory fails internally.
-    pub fn refine(&mut self, model: &[bool]) -> std::result::Result<bool, String> {
-        self.backtrack(0);
-        self.lim.push(self.trail.len());
-        for (v, &on) in model.iter().enumerate().take(self.nvars) {
-            let l = (v as u32) << 1;
-            if on && matches!(self.atom[v], Some(Item::Tight(..))) && self.lval(l) == 0 {
-                self.enqueue(l, NONE);
-            }
-        }
-        loop {
-            match self.theory_check() {
-                Ok(None) => return Ok(true),
-                Ok(Some(_)) => {
-                    self.backtrack(0);
-                    return Ok(false);
-                }
-                Err(None) => {}
-                Err(Some(e)) => return Err(e),
-            }
-        }
-    }
 }
 
 #[cfg(test)]
-mod tests {
-    use super::*;
-    use crate::proof::testgen::{php, random_3sat};
-    use crate::proof::{LratOptions, check_lrat_with};
-
-    fn run(cnf: &Cnf) -> (SatOutcome, Option<Vec<u8>>, Vec<bool>) {
-        let mut s = Solver::new(cnf, None, vec![], true).unwrap();
-        let out = s.solve(cnf, None, &mut |_| {});
-        let model: Vec<bool> = (0..cnf.num_vars() as usize).map(|v| s.value(v)).collect();
-        let proof = if matches!(out, SatOutcome::Unsat) {
-            let (log, _) = s.into_parts();
-            let mut buf = Vec::new();
-            log.finish(&mut buf).unwrap();
-            Some(buf)
-        } else {
-            None
-        };
-        (out, proof, model)
-    }
-
-    #[test]
-    fn pigeonholes_are_refuted_with_checked_lrat() {
-        for (p, h) in [(3, 2), (4, 3), (5, 4), (6, 5)] {
-            let cnf = php(p, h);
-            let (out, proof, _) = run(&cnf);
-            assert!(matches!(out, SatOutcome::Unsat), "php({p},{h})");
-            let opts = LratOptions {
-                ids_follow_cnf: true,
-                format: None,
-            };
-            check_lrat_with(&cnf, proof.unwrap(), &opts).unwrap();
-        }
-        let (out, _, model) = run(&php(4, 4));
-        assert!(matches!(out, SatOutcome::Sat));
-        assert_eq!(php(4, 4).first_falsified(&model), None);
-    }
-
-    #[test]
-    fn random_formulas_agree_with_varisat_and_proofs_check() {
-        use varisat::ExtendFormula;
-        for seed in 0..60 {
-            let cnf = random_3sat(40, 180, seed);
-            let (out, proof, model) = run(&cnf);
-            let mut v = varisat::Solver::new();
-            for c in cnf.clauses() {
-                let cl: Vec<varisat::Lit> = c
-                    .iter()
-                    .map(|l| varisat::Lit::from_dimacs(l.dimacs() as isize))
-                    .collect();
-                v.add_clause(&cl);
-            }
-            let sat = v.solve().unwrap();
-            match out {
-                SatOutcome::Sat => {
-                    assert!(sat, "seed {seed}");
-                    assert_eq!(cnf.first_falsified(&model), None);
-                }
-                SatOutcome::Unsat => {
-                    assert!(!sat, "seed {seed}");
-                    let opts = LratOptions {
-                        ids_follow_cnf: true,
-                        format: None,
-                    };
-                    check_lrat_with(&cnf, proof.unwrap(), &opts).unwrap();
-                }
-                SatOutcome::Unknown(r) => panic!("{r}"),
-            }
-        }
-    }
-
-    #[test]
-    fn luby_sequence() {
-        let s: Vec<u64> = (0..15).map(luby).collect();
-        assert_eq!(s, vec![1, 1, 2, 1, 1, 2, 4, 1, 1, 2, 1, 1, 2, 4, 8]);
-    }
-}
+mod tests;

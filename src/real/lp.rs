@@ -210,20 +210,20 @@ impl<N: Num> Tableau<N> {
 
     fn set_lower(&mut self, x: usize, b: Option<N>) -> Result<(), Overflow> {
         self.lo[x] = b.clone();
-        if let (Some(b), Some(_)) = (b, self.col_of[x]) {
-            if self.val[x] < b {
-                self.update(x, b)?;
-            }
+        if let (Some(b), Some(_)) = (b, self.col_of[x])
+            && self.val[x] < b
+        {
+            self.update(x, b)?;
         }
         Ok(())
     }
 
     fn set_upper(&mut self, x: usize, b: Option<N>) -> Result<(), Overflow> {
         self.hi[x] = b.clone();
-        if let (Some(b), Some(_)) = (b, self.col_of[x]) {
-            if self.val[x] > b {
-                self.update(x, b)?;
-            }
+        if let (Some(b), Some(_)) = (b, self.col_of[x])
+            && self.val[x] > b
+        {
+            self.update(x, b)?;
         }
         Ok(())
     }
@@ -453,10 +453,10 @@ impl ExactLp {
 
     /// Restores feasibility, or returns a conflict.
     pub fn check(&mut self) -> Option<Conflict> {
-        if self.small.is_some() {
-            if let Some(r) = self.try_small(|t| t.check()) {
-                return r;
-            }
+        if self.small.is_some()
+            && let Some(r) = self.try_small(|t| t.check())
+        {
+            return r;
         }
         self.big.as_mut().and_then(|t| t.check().ok().flatten())
     }

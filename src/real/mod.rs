@@ -190,12 +190,12 @@ pub fn decide(
     };
     let mut outcome = solver.solve(&sk.cnf, inner, progress);
     let mut handed = None;
-    if let (sat::SatOutcome::Unknown(_), Some(h)) = (&outcome, &options.handoff) {
-        if deadline.is_none_or(|d| Instant::now() < d) {
-            let (o, dir) = handoff(&mut solver, &sk, h, options, deadline)?;
-            outcome = o;
-            handed = dir;
-        }
+    if let (sat::SatOutcome::Unknown(_), Some(h)) = (&outcome, &options.handoff)
+        && deadline.is_none_or(|d| Instant::now() < d)
+    {
+        let (o, dir) = handoff(&mut solver, &sk, h, options, deadline)?;
+        outcome = o;
+        handed = dir;
     }
     report.search_seconds = t0.elapsed().as_secs_f64();
     report.sat = solver.stats.clone();

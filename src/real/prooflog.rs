@@ -99,10 +99,10 @@ impl ProofLog {
     }
 
     fn write(&mut self, bytes: &[u8]) {
-        if let Some(w) = self.out.as_mut() {
-            if let Err(e) = w.write_all(bytes) {
-                self.failed.get_or_insert(e);
-            }
+        if let Some(w) = self.out.as_mut()
+            && let Err(e) = w.write_all(bytes)
+        {
+            self.failed.get_or_insert(e);
         }
     }
 

@@ -129,11 +129,11 @@ fn normalised_assignment(orbit: &[Vec<i64>], sk: &skeleton::Skeleton) -> (Vec<bo
         .map(|pt| coords.iter().map(|&c| pt[c]).collect())
         .collect();
     for c in 0..n {
-        if let Some((i, j)) = skeleton::pairs(p).find(|&(i, j)| tight_at(&x, c, i, j)) {
-            if x[j][c] < x[i][c] {
-                for pt in &mut x {
-                    pt[c] = -pt[c];
-                }
+        if let Some((i, j)) = skeleton::pairs(p).find(|&(i, j)| tight_at(&x, c, i, j))
+            && x[j][c] < x[i][c]
+        {
+            for pt in &mut x {
+                pt[c] = -pt[c];
             }
         }
     }

@@ -284,10 +284,10 @@ impl Theory {
             }
         }
         for item in &self.items {
-            if let Item::Tight(i, j, c) = *item {
-                if !self.tight[(c * p + i) * p + j] {
-                    return Err(format!("atom T({i},{j},{c}) is asserted but not marked"));
-                }
+            if let Item::Tight(i, j, c) = *item
+                && !self.tight[(c * p + i) * p + j]
+            {
+                return Err(format!("atom T({i},{j},{c}) is asserted but not marked"));
             }
         }
         Ok(())

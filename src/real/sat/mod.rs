@@ -301,11 +301,11 @@ impl Solver {
         self.reason[v] = reason;
         self.tpos[v] = self.trail.len() as u32;
         self.trail.push(l);
-        if l & 1 == 0 {
-            if let (Some(item), Some(th)) = (self.atom[v], self.theory.as_mut()) {
-                th.assert_item(item);
-                self.th_count += 1;
-            }
+        if l & 1 == 0
+            && let (Some(item), Some(th)) = (self.atom[v], self.theory.as_mut())
+        {
+            th.assert_item(item);
+            self.th_count += 1;
         }
         if self.lim.is_empty() && reason != NONE {
             // a literal fixed at level 0 by a longer clause gets its own unit clause
@@ -810,7 +810,7 @@ impl Solver {
                     next_reduce += 4000 + 300 * (self.stats.conflicts / 4000);
                     self.reduce();
                 }
-                if self.stats.conflicts % 64 == 0 {
+                if self.stats.conflicts.is_multiple_of(64) {
                     let now = Instant::now();
                     if deadline.is_some_and(|d| now >= d) {
                         return SatOutcome::Unknown("time limit reached".into());

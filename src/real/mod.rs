@@ -31,6 +31,7 @@ pub mod prooflog;
 mod report;
 pub mod sat;
 pub mod skeleton;
+pub mod sweep;
 pub mod theory;
 
 #[cfg(test)]

@@ -205,3 +205,53 @@ fn real_space_bundles_are_rechecked_and_tampering_is_caught() {
     restore();
     check().code(0);
 }
+
+#[test]
+fn real_space_spectrum_stores_and_reuses_answers() {
+    let dir = TestDir::new();
+    let sweep = |extra: &[&str]| {
+        dir.orbitcnf()
+            .args([
+                "spectrum",
+                "--real",
+                "--dim",
+                "2",
+                "--periods",
+                "1..6",
+                "--store",
+                "st",
+                "--json",
+            ])
+            .args(extra)
+            .run()
+    };
+    for (run, how) in [(sweep(&[]), "search"), (sweep(&["--recheck"]), "stored")] {
+        let v = run.code(0).json();
+        assert_eq!(
+            (&v["domain"], &v["dim"]),
+            (&Value::from("real"), &Value::from(2))
+        );
+        let rows = v["rows"].as_array().unwrap();
+        for (p, r) in (1..=6).zip(rows) {
+            let want = if p <= 4 { "feasible" } else { "infeasible" };
+            assert_eq!(
+                (r["period"].as_u64(), r["verdict"].as_str()),
+                (Some(p), Some(want))
+            );
+            assert_eq!(r["how"], how, "{r}");
+            if let Some(orbit) = orbit_of(r) {
+                let hi = orbit.iter().flatten().copied().max().unwrap_or(0);
+                assert_isometric_cycle(&[(0, hi), (0, hi)], &orbit, p as usize, "spectrum");
+            }
+        }
+        // every stored bundle passes check-bundle
+        let b = rows[5]["bundle"].as_str().unwrap();
+        dir.orbitcnf()
+            .args(["check-bundle", b])
+            .run()
+            .code(0)
+            .stdout_has("INFEASIBLE, certified");
+    }
+    // the real answers live apart from any grid question's
+    assert!(dir.path("st/real/answers").is_dir());
+}

@@ -72,16 +72,9 @@ fn dimension_three_has_every_period_up_to_eight() {
     }
 }
 
-/// R. Lyons and R. D. Nussbaum (1992) [recalled]: no period 9..12 in R^3;
-/// 13 and above are excluded by Lemmens and Scheutzow (2005) [paper]. A
-/// computer re-proof with checked certificates. Long: run with `--ignored`.
-#[test]
-#[ignore = "long: refutes n = 3, p = 9..12 with certificates"]
-fn dimension_three_has_no_period_from_nine_to_twelve() {
-    for p in 9..=12 {
-        assert_certified_infeasible(&run(3, p));
-    }
-}
+// n = 3, p = 9..12 (R. Lyons and R. D. Nussbaum, 1992 [recalled]) are in
+// tests/all/real_cli.rs, one ignored test per period, through the binary
+// with the hand-off to CaDiCaL.
 
 /// Every period feasible on a small box (independent brute force) is feasible
 /// over R^n, and the orbit found spans at most max D per coordinate.

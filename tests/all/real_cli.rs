@@ -255,3 +255,62 @@ fn real_space_spectrum_stores_and_reuses_answers() {
     // the real answers live apart from any grid question's
     assert!(dir.path("st/real/answers").is_dir());
 }
+
+/// R. Lyons and R. D. Nussbaum (1992) [recalled]: no subset of R^3 carries
+/// a sup-norm nonexpansive map of period 9, 10, 11 or 12 (periods above 12
+/// are excluded by Lemmens and Scheutzow 2005). A computer re-proof with
+/// checked certificates: the bundled CDCL(T) collects Farkas lemmas for 10 s,
+/// then CaDiCaL refutes skeleton plus lemmas with a DRAT proof that `rate`
+/// turns into LRAT; `check-bundle` re-checks lemmas and proof.
+fn lyons_nussbaum(p: usize) {
+    if !crate::util::have_tool("cadical") || !crate::util::have_tool("rate") {
+        return;
+    }
+    let dir = TestDir::new();
+    let r = real(
+        &dir,
+        3,
+        p,
+        &[
+            "-q",
+            "--json",
+            "--solver",
+            "external:cadical -q",
+            "--handoff-after",
+            "10",
+            "--bundle",
+            "b",
+        ],
+    );
+    r.code(INFEASIBLE);
+    assert_eq!(r.json()["certified"], true);
+    dir.orbitcnf()
+        .args(["check-bundle", "b"])
+        .run()
+        .code(0)
+        .stdout_has("INFEASIBLE, certified");
+}
+
+#[test]
+#[ignore = "long: about 1.5 minutes (R^3, p = 9, certified)"]
+fn real_space_dimension_three_has_no_period_9() {
+    lyons_nussbaum(9);
+}
+
+#[test]
+#[ignore = "long: minutes (R^3, p = 10, certified)"]
+fn real_space_dimension_three_has_no_period_10() {
+    lyons_nussbaum(10);
+}
+
+#[test]
+#[ignore = "long: minutes (R^3, p = 11, certified)"]
+fn real_space_dimension_three_has_no_period_11() {
+    lyons_nussbaum(11);
+}
+
+#[test]
+#[ignore = "long: minutes (R^3, p = 12, certified)"]
+fn real_space_dimension_three_has_no_period_12() {
+    lyons_nussbaum(12);
+}

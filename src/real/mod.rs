@@ -138,6 +138,10 @@ pub struct RealReport {
     pub search_seconds: f64,
     /// Seconds writing and checking the certificate.
     pub check_seconds: f64,
+    /// Calls of the external solver of a [`Handoff`] (0 without one).
+    pub handoff_rounds: usize,
+    /// Seconds in those calls (solving, proof conversion and checking).
+    pub handoff_seconds: f64,
 }
 
 /// Decides whether `(R^n, ‖·‖∞)` holds an isometric p-cycle.
@@ -167,6 +171,8 @@ pub fn decide(
         lemmas: 0,
         search_seconds: 0.0,
         check_seconds: 0.0,
+        handoff_rounds: 0,
+        handoff_seconds: 0.0,
     };
     if p == 1 && (1..=skeleton::MAX_DIM).contains(&n) {
         let orbit = vec![vec![0; n]];
@@ -194,7 +200,7 @@ pub fn decide(
     if let (sat::SatOutcome::Unknown(_), Some(h)) = (&outcome, &options.handoff)
         && deadline.is_none_or(|d| Instant::now() < d)
     {
-        let (o, dir) = handoff(&mut solver, &sk, h, options, deadline)?;
+        let (o, dir) = handoff(&mut solver, &sk, h, options, deadline, &mut report)?;
         outcome = o;
         handed = dir;
     }
@@ -321,6 +327,7 @@ fn handoff(
     h: &Handoff,
     options: &RealOptions,
     deadline: Option<Instant>,
+    report: &mut RealReport,
 ) -> Result<(sat::SatOutcome, Option<tempfile::TempDir>)> {
     use crate::solve::external::{External, ProofFormat, ProofRequest};
     use crate::solve::{Backend, Limits, Outcome};
@@ -351,7 +358,11 @@ fn handoff(
             time: deadline.map(|d| d.saturating_duration_since(Instant::now())),
             progress: false,
         };
-        let r = ext.solve(&cnf, &limits)?;
+        let t = Instant::now();
+        let r = ext.solve(&cnf, &limits);
+        report.handoff_rounds += 1;
+        report.handoff_seconds += t.elapsed().as_secs_f64();
+        let r = r?;
         match r.outcome {
             Outcome::Unsat if r.proof.is_some() => return Ok((sat::SatOutcome::Unsat, Some(tmp))),
             Outcome::Unsat => {

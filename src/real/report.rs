@@ -53,6 +53,8 @@ impl RealReport {
             "lemmas": self.lemmas,
             "search_seconds": self.search_seconds,
             "check_seconds": self.check_seconds,
+            "handoff_rounds": self.handoff_rounds,
+            "handoff_seconds": self.handoff_seconds,
             "sat": self.sat,
             "theory": self.theory,
         });
@@ -128,6 +130,13 @@ impl RealReport {
             "search       {:.2} s, {} conflicts, {} theory lemmas",
             self.search_seconds, self.sat.conflicts, self.lemmas
         );
+        if self.handoff_rounds > 0 {
+            let _ = writeln!(
+                s,
+                "hand-off     {} calls of the external solver, {:.2} s (with proof conversion and check)",
+                self.handoff_rounds, self.handoff_seconds
+            );
+        }
         if self.check_seconds > 0.0 {
             let _ = writeln!(
                 s,

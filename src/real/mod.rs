@@ -318,6 +318,11 @@ fn fact_table(solver: &sat::Solver) -> Vec<(u32, Vec<i64>)> {
         .collect()
 }
 
+/// Lemmas learned from one model of the external solver at most: enough
+/// that a round does not end at the first conflict, few enough that one
+/// model does not flood the lemma set.
+const REFINE_LEMMAS: usize = 200;
+
 /// The hand-off loop of [`Handoff`]. Returns the outcome and, for `Unsat`,
 /// the temporary directory holding the checked LRAT proof when no
 /// certificate directory was given.
@@ -375,7 +380,7 @@ fn handoff(
                 ));
             }
             Outcome::Unknown(why) => return Ok((sat::SatOutcome::Unknown(why), None)),
-            Outcome::Sat(model) => match solver.refine(&model) {
+            Outcome::Sat(model) => match solver.refine(&model, REFINE_LEMMAS) {
                 Ok(true) => return Ok((sat::SatOutcome::Sat, None)),
                 Ok(false) => {}
                 Err(e) => return Ok((sat::SatOutcome::Unknown(format!("theory: {e}")), None)),

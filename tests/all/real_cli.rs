@@ -314,3 +314,42 @@ fn real_space_dimension_three_has_no_period_11() {
 fn real_space_dimension_three_has_no_period_12() {
     lyons_nussbaum(12);
 }
+
+/// The hand-off at once: the external solver gets the skeleton with the
+/// pattern lemmas only, and its models go back to the theory, which learns
+/// from each; feasible and infeasible answers come out checked as without it.
+#[test]
+fn real_space_hand_off_to_an_external_solver() {
+    if !crate::util::have_tool("cadical") || !crate::util::have_tool("rate") {
+        return;
+    }
+    let dir = TestDir::new();
+    let now = [
+        "--solver",
+        "external:cadical -q",
+        "--handoff-after",
+        "0.001",
+    ];
+    let mut args = now.to_vec();
+    args.push("--json");
+    for (n, p) in [(2, 3), (2, 4), (3, 7), (3, 8)] {
+        let r = real(&dir, n, p, &args);
+        r.code(FEASIBLE);
+        let orbit = orbit_of(&r.json()).expect("an orbit");
+        let hi = orbit.iter().flatten().copied().max().unwrap_or(0);
+        assert_isometric_cycle(&vec![(0, hi); n], &orbit, p, "hand-off");
+    }
+    for (n, p) in [(1, 3), (2, 5), (2, 6)] {
+        let mut with_bundle = now.to_vec();
+        with_bundle.extend(["-q", "--bundle", "b"]);
+        real(&dir, n, p, &with_bundle)
+            .code(INFEASIBLE)
+            .stdout_has("hand-off");
+        dir.orbitcnf()
+            .args(["check-bundle", "b"])
+            .run()
+            .code(0)
+            .stdout_has("INFEASIBLE, certified");
+    }
+    real(&dir, 2, 5, &["--handoff-after", "1"]).error_with(&["external solver"]);
+}

@@ -106,29 +106,83 @@ impl Solver {
     }
 
     /// Examines a full assignment found elsewhere (an external solver's model
-    /// of the skeleton and the lemmas): asserts its true tight atoms and runs
-    /// the theory to a fixpoint, adding every lemma it finds. Returns `true`
-    /// when the theory is consistent (then [`Solver::theory`] holds the
-    /// profile and potentials of an orbit), `false` after new lemmas were added.
+    /// of the skeleton and the lemmas) and learns from it as much as one
+    /// theory pass allows. Its true tight atoms are asserted one at a time,
+    /// the theory checked after each; an atom that makes a conflict yields
+    /// a lemma and is then left out (the others are asserted again), so one
+    /// model gives up to `max_lemmas` distinct lemmas instead of one.
+    /// Returns `true` when every true atom was kept, so the theory is
+    /// consistent with the whole model: then the model's literals are
+    /// assigned here (for [`Solver::value`]) and [`Solver::theory`] holds
+    /// the profile and potentials of an orbit; `false` after lemmas were added.
     ///
     /// # Errors
     /// A message when the theory fails internally.
-    pub fn refine(&mut self, model: &[bool]) -> std::result::Result<bool, String> {
+    pub fn refine(
+        &mut self,
+        model: &[bool],
+        max_lemmas: usize,
+    ) -> std::result::Result<bool, String> {
         self.backtrack(0);
         self.lim.push(self.trail.len());
+        let atoms: Vec<u32> = (0..self.nvars.min(model.len()))
+            .filter(|&v| model[v] && matches!(self.atom[v], Some(Item::Tight(..))))
+            .map(|v| (v as u32) << 1)
+            .collect();
+        let mut kept: Vec<u32> = Vec::with_capacity(atoms.len());
+        let mut found = 0usize;
+        for &l in &atoms {
+            if self.lval(l) != 0 {
+                continue;
+            }
+            self.enqueue(l, NONE);
+            if self.settle()? {
+                kept.push(l);
+                continue;
+            }
+            found += 1;
+            if found >= max_lemmas {
+                break;
+            }
+            // Leave `l` out: assert the atoms kept so far again, which the
+            // theory accepted before.
+            self.backtrack(0);
+            self.lim.push(self.trail.len());
+            for &k in &kept {
+                if self.lval(k) == 0 {
+                    self.enqueue(k, NONE);
+                }
+            }
+            if !self.settle()? {
+                found += 1;
+                break;
+            }
+        }
+        if found > 0 {
+            self.backtrack(0);
+            return Ok(false);
+        }
         for (v, &on) in model.iter().enumerate().take(self.nvars) {
-            let l = (v as u32) << 1;
-            if on && matches!(self.atom[v], Some(Item::Tight(..))) && self.lval(l) == 0 {
+            let l = ((v as u32) << 1) | u32::from(!on);
+            if self.lval(l) == 0 {
                 self.enqueue(l, NONE);
             }
         }
+        // The model's other literals (facts among them) go to the theory too.
+        if !self.settle()? {
+            self.backtrack(0);
+            return Ok(false);
+        }
+        Ok(true)
+    }
+
+    /// Runs the theory to a fixpoint: `true` when consistent, `false` after
+    /// a conflict (its lemma stored).
+    fn settle(&mut self) -> std::result::Result<bool, String> {
         loop {
             match self.theory_check() {
                 Ok(None) => return Ok(true),
-                Ok(Some(_)) => {
-                    self.backtrack(0);
-                    return Ok(false);
-                }
+                Ok(Some(_)) => return Ok(false),
                 Err(None) => {}
                 Err(Some(e)) => return Err(e),
             }

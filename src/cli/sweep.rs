@@ -183,15 +183,17 @@ fn run_real(n: usize, a: SpectrumArgs) -> Outcome {
         recheck: a.recheck,
     };
     let show = !a.quiet && !a.json;
+    let mut shown = false;
     let s = orbitcnf::real::sweep::run(&cfg, &mut |p, pr| {
         if show {
+            shown = true;
             eprint!(
                 "\r\x1b[Kreal space R^{n} p = {p}: {:.0} s, {} conflicts, {} lemmas",
                 pr.seconds, pr.stats.conflicts, pr.lemmas
             );
         }
     })?;
-    if show {
+    if shown {
         eprint!("\r\x1b[K");
     }
     print(&if a.json {

@@ -292,25 +292,25 @@ fn lyons_nussbaum(p: usize) {
 }
 
 #[test]
-#[ignore = "long: about 1.5 minutes (R^3, p = 9, certified)"]
+#[ignore = "long: 1-2 minutes (R^3, p = 9, certified; cadical and rate)"]
 fn real_space_dimension_three_has_no_period_9() {
     lyons_nussbaum(9);
 }
 
 #[test]
-#[ignore = "long: minutes (R^3, p = 10, certified)"]
+#[ignore = "long: 2-3 minutes (R^3, p = 10, certified; cadical and rate)"]
 fn real_space_dimension_three_has_no_period_10() {
     lyons_nussbaum(10);
 }
 
 #[test]
-#[ignore = "long: minutes (R^3, p = 11, certified)"]
+#[ignore = "long: 2-3 minutes (R^3, p = 11, certified; cadical and rate)"]
 fn real_space_dimension_three_has_no_period_11() {
     lyons_nussbaum(11);
 }
 
 #[test]
-#[ignore = "long: minutes (R^3, p = 12, certified)"]
+#[ignore = "long: 4-8 minutes (R^3, p = 12, certified; cadical and rate)"]
 fn real_space_dimension_three_has_no_period_12() {
     lyons_nussbaum(12);
 }

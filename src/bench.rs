@@ -21,6 +21,7 @@ use crate::encode::{DEFAULT_MAX_CLAUSES, EncodeOptions, Symmetry};
 use crate::error::{Error, Result};
 use crate::evidence::Evidence;
 use crate::grid::Grid;
+use crate::progress::ProgressMode;
 use crate::question::Question;
 use crate::report::Verdict;
 use crate::solve::Limits;
@@ -107,7 +108,8 @@ pub struct ProofCost {
     pub solve_seconds: f64,
     /// Seconds for orbitcnf's checker to accept it.
     pub check_seconds: f64,
-    /// Size of the text LRAT proof.
+    /// Size of the LRAT proof (binary: the certified back-end writes a proof
+    /// it does not keep in binary).
     pub lrat_bytes: u64,
     /// Steps of the proof.
     pub steps: u64,
@@ -171,7 +173,8 @@ pub fn run_case(case: &Case, limit: Duration, baselines: bool) -> Result<Row> {
         }
         let limits = Limits {
             time: Some(limit),
-            progress: true,
+            progress: ProgressMode::auto(),
+            ..Limits::default()
         };
         let r = decide(
             &case.question,
@@ -187,20 +190,21 @@ pub fn run_case(case: &Case, limit: Duration, baselines: bool) -> Result<Row> {
             conflicts: r.stats.solve.conflicts,
             clauses: r.stats.size.clauses,
         };
-        if let Some(first) = runs.iter().find(|x| x.verdict != Verdict::Unknown) {
-            if run.verdict != Verdict::Unknown && run.verdict != first.verdict {
-                return Err(Error::Solver {
-                    solver: "bench".into(),
-                    reason: format!(
-                        "{}: encoding {} says {} but {} says {}",
-                        case.name,
-                        first.encoding,
-                        first.verdict.word(),
-                        run.encoding,
-                        run.verdict.word()
-                    ),
-                });
-            }
+        if let Some(first) = runs.iter().find(|x| x.verdict != Verdict::Unknown)
+            && run.verdict != Verdict::Unknown
+            && run.verdict != first.verdict
+        {
+            return Err(Error::Solver {
+                solver: "bench".into(),
+                reason: format!(
+                    "{}: encoding {} says {} but {} says {}",
+                    case.name,
+                    first.encoding,
+                    first.verdict.word(),
+                    run.encoding,
+                    run.verdict.word()
+                ),
+            });
         }
         runs.push(run);
     }
@@ -208,7 +212,8 @@ pub fn run_case(case: &Case, limit: Duration, baselines: bool) -> Result<Row> {
     if runs[0].verdict == Verdict::Infeasible {
         let limits = Limits {
             time: Some(limit),
-            progress: true,
+            progress: ProgressMode::auto(),
+            ..Limits::default()
         };
         let mut backend = Certified::default();
         let r = decide(
@@ -361,7 +366,7 @@ pub fn run_spectrum(jobs: usize, limit: Duration) -> Result<SpectrumFigures> {
     let mut cfg = crate::spectrum::SweepConfig::new(grid);
     cfg.jobs = jobs.max(1);
     cfg.time_limit = Some(limit);
-    cfg.progress = true;
+    cfg.progress = ProgressMode::auto();
     let start = std::time::Instant::now();
     let sp = crate::spectrum::run(&cfg)?;
     let seconds = start.elapsed().as_secs_f64();

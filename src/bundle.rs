@@ -130,7 +130,7 @@ pub fn write_bundle(
                 files.push(FileEntry::of_file(tmp, PROOF)?);
                 Verdict::Infeasible
             }
-            Evidence::Witness { orbit, map } if enc.options.is_full_map() => {
+            Evidence::Witness { orbit, map } if enc.options.formulation.encodes_map() => {
                 let map = map.ok_or_else(|| {
                     Error::Decode("a feasible answer on a point set needs its map D → D".into())
                 })?;
@@ -156,7 +156,7 @@ pub fn write_bundle(
             options: enc.options.clone(),
             verdict: verdict.word().into(),
             files,
-            trust: if enc.options.is_full_map() {
+            trust: if enc.options.formulation.encodes_map() {
                 TRUST_FULL_MAP
             } else {
                 TRUST
@@ -288,7 +288,7 @@ pub fn check_bundle(dir: &Path) -> Result<BundleCheck> {
             let check = evidence::check_proof_file(&enc.cnf, &listed(PROOF)?)?;
             out.proof = Some(check.summary);
         }
-        "feasible" if options.is_full_map() => {
+        "feasible" if options.formulation.encodes_map() => {
             let mpath = listed(MAP)?;
             let shown = mpath.display().to_string();
             let f: MapFile = serde_json::from_slice(&read(&mpath)?)

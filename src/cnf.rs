@@ -104,6 +104,65 @@ pub struct FamilyCount {
     pub clauses: u64,
 }
 
+impl FamilyCount {
+    /// The count of family `family` of size `size`.
+    pub fn new(family: &str, size: Size) -> FamilyCount {
+        FamilyCount {
+            family: family.to_string(),
+            vars: size.vars,
+            clauses: size.clauses,
+        }
+    }
+
+    /// The variables and clauses without the label.
+    pub fn size(&self) -> Size {
+        Size {
+            vars: self.vars,
+            clauses: self.clauses,
+        }
+    }
+}
+
+/// How many variables and clauses a constraint family adds.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+pub struct Size {
+    /// Variables introduced.
+    pub vars: u64,
+    /// Clauses added.
+    pub clauses: u64,
+}
+
+impl Size {
+    /// `vars` variables and `clauses` clauses.
+    pub const fn new(vars: u64, clauses: u64) -> Size {
+        Size { vars, clauses }
+    }
+
+    /// Clauses only, no variables.
+    pub const fn clauses(clauses: u64) -> Size {
+        Size { vars: 0, clauses }
+    }
+}
+
+impl std::ops::Add for Size {
+    type Output = Size;
+    fn add(self, o: Size) -> Size {
+        Size::new(self.vars + o.vars, self.clauses + o.clauses)
+    }
+}
+
+impl std::ops::AddAssign for Size {
+    fn add_assign(&mut self, o: Size) {
+        *self = *self + o;
+    }
+}
+
+impl std::iter::Sum for Size {
+    fn sum<I: Iterator<Item = Size>>(it: I) -> Size {
+        it.fold(Size::default(), |a, b| a + b)
+    }
+}
+
 /// A CNF formula stored flat: all literals in one vector, clause starts in another.
 #[derive(Clone, Debug, Default, PartialEq, Eq)]
 pub struct Cnf {

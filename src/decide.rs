@@ -24,6 +24,7 @@ use crate::dimacs::{self, CnfFile, SolverAnswer, Status};
 use crate::encode::{self, EncodeOptions};
 use crate::error::{Error, Result};
 use crate::evidence::{self, Evidence};
+use crate::proof::LratFormat;
 use crate::question::Question;
 use crate::report::{Report, SizeStats, Verdict, Witness};
 use crate::solve::bundled::Bundled;
@@ -106,7 +107,7 @@ pub fn witness(
     lines: Option<&[usize]>,
 ) -> Result<Witness> {
     check_model(cnf, model, path, lines)?;
-    let (orbit, table) = if options.is_full_map() {
+    let (orbit, table) = if options.formulation.encodes_map() {
         (
             decode::full_map_orbit(q, map, model)?,
             Some(decode::full_map(q, map, model)?),
@@ -241,6 +242,9 @@ pub struct Outputs {
     pub raw_proof: Option<PathBuf>,
     /// A certificate bundle ([`crate::bundle`]).
     pub bundle: Option<PathBuf>,
+    /// The encoding of the LRAT proof that is kept (in `proof` or in the
+    /// bundle); a proof that is only checked is written as it is cheapest.
+    pub format: LratFormat,
 }
 
 /// One decision to make.
@@ -326,6 +330,7 @@ pub fn run(req: &Request) -> Result<Decision> {
             let mut backend = Certified {
                 lrat: lrat.clone(),
                 drat: req.outputs.raw_proof.clone(),
+                format: req.outputs.format,
             };
             decide(q, &req.options, &mut backend, &req.limits, req.max_clauses)?
         }
@@ -355,6 +360,7 @@ pub fn run(req: &Request) -> Result<Decision> {
             }
             let opts = JobsOptions {
                 lrat: lrat.clone(),
+                format: req.outputs.format,
                 ..opts.clone()
             };
             decide_parallel(q, &req.options, &opts, &req.limits, req.max_clauses)?

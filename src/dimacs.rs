@@ -27,7 +27,7 @@ use std::path::Path;
 
 use crate::artifact::{sha256_hex, write_atomically};
 use crate::cnf::{Cnf, Lit, Var};
-use crate::encode::{EncodeOptions, Encoding};
+use crate::encode::{EncodeOptions, Encoding, Formulation};
 use crate::error::{Error, Result};
 use crate::question::{Question, QuestionRecord};
 use crate::varmap::{Meaning, VarMap};
@@ -234,8 +234,9 @@ pub fn parse_cnf_file(text: &str, path: &str) -> Result<CnfFile> {
         ));
     }
     let mut version = None;
+    let mut formulation: Option<(Formulation, usize)> = None;
     let mut question = None;
-    let mut options = None;
+    let mut options: Option<(EncodeOptions, usize)> = None;
     let mut pairs: Vec<(u32, Meaning)> = Vec::new();
     for (n, line) in text.lines().enumerate().skip(1) {
         let ln = n + 1;
@@ -248,15 +249,27 @@ pub fn parse_cnf_file(text: &str, path: &str) -> Result<CnfFile> {
                 .split_whitespace()
                 .find_map(|w| w.strip_prefix("version="))
                 .map(str::to_string);
+            if let Some(name) = rest
+                .split_whitespace()
+                .find_map(|w| w.strip_prefix("formulation="))
+            {
+                let f = name.parse().map_err(|source| Error::UnknownFormulation {
+                    path: path.to_string(),
+                    line: ln,
+                    source,
+                })?;
+                formulation = Some((f, ln));
+            }
         } else if let Some(rest) = line.strip_prefix("c question ") {
             let r: QuestionRecord =
                 serde_json::from_str(rest).map_err(|e| bad(format!("question record: {e}")))?;
             question = Some(Question::from_record(&r).map_err(|e| bad(e.to_string()))?);
         } else if let Some(rest) = line.strip_prefix("c options ") {
-            options = Some(
+            options = Some((
                 serde_json::from_str::<EncodeOptions>(rest)
                     .map_err(|e| bad(format!("encoding options: {e}")))?,
-            );
+                ln,
+            ));
         } else if let Some(rest) = line.strip_prefix("c var ") {
             let (num, meaning) = rest
                 .split_once(' ')
@@ -270,7 +283,18 @@ pub fn parse_cnf_file(text: &str, path: &str) -> Result<CnfFile> {
     }
     let missing = |what: &str| Error::parse(path, 0, format!("the header has no {what} line"));
     let question = question.ok_or_else(|| missing("'c question'"))?;
-    let options = options.ok_or_else(|| missing("'c options'"))?;
+    let (options, options_line) = options.ok_or_else(|| missing("'c options'"))?;
+    // Both lines have always been written; they must name the same formulation.
+    if let Some((f, ln)) = formulation.filter(|(f, _)| *f != options.formulation) {
+        return Err(Error::parse(
+            path,
+            options_line,
+            format!(
+                "the options say formulation {}, line {ln} says {f}",
+                options.formulation
+            ),
+        ));
+    }
     let version = version.ok_or_else(|| missing("'c orbitcnf version=…'"))?;
     let map = VarMap::from_pairs(pairs)
         .map_err(|r| Error::parse(path, 0, format!("variable map: {r}")))?;
@@ -527,6 +551,59 @@ mod tests {
         assert!(e("1 0\n").contains("before the 'p cnf'"));
         assert!(e("p cnf 2 1\n1 2\n").contains("not closed"));
         assert!(e("p dnf 2 1\n").contains("malformed problem line"));
+    }
+
+    /// The body of a CNF file as versions before the profile exclusions
+    /// wrote it (options without `classes`), with `formulation` in both places.
+    fn old_body(header_name: &str, options_name: &str) -> String {
+        format!(
+            "c orbitcnf version=0.1.0 formulation={header_name}\n\
+             c question {{\"dim\":1,\"grid\":\"0..1\",\"period\":2}}\n\
+             c options {{\"formulation\":\"{options_name}\",\"symmetry\":{{\"translate\":false,\
+             \"multiplier\":false,\"rotate\":false,\"isometry\":false,\"stabilizer\":false,\
+             \"reverse\":false}},\"count\":false,\"packing\":false}}\n\
+             c family coord-order vars=2 clauses=0\n\
+             c var 1 coord i=0 c=0 ge=1\nc var 2 coord i=1 c=0 ge=1\nc var 3 profile k=1 ge=1\n\
+             c var 4 diff i=0 j=1 c=0 ge=1\nc var 5 diff i=1 j=0 c=0 ge=1\n\
+             p cnf 5 6\n3 0\n-4 1 0\n-4 -2 0\n-5 2 0\n-5 -1 0\n-3 4 5 0\n"
+        )
+    }
+
+    fn with_digest(body: &str) -> String {
+        format!("{DIGEST_PREFIX}{}\n{body}", sha256_hex(body.as_bytes()))
+    }
+
+    #[test]
+    fn old_headers_still_read_and_unknown_formulations_are_refused() {
+        let name = "isometric-cycle/1";
+        let f = parse_cnf_file(&with_digest(&old_body(name, name)), "old.cnf").unwrap();
+        assert_eq!(f.options.formulation, Formulation::IsometricCycle);
+        assert!(!f.options.classes);
+        assert_eq!((f.map.len(), f.cnf.num_clauses()), (5, 6));
+
+        let e = parse_cnf_file(&with_digest(&old_body("spiral/3", name)), "new.cnf").unwrap_err();
+        let Error::UnknownFormulation { path, line, source } = &e else {
+            panic!("{e:?}");
+        };
+        assert_eq!(
+            (path.as_str(), *line, source.name.as_str()),
+            ("new.cnf", 2, "spiral/3")
+        );
+        assert!(
+            e.to_string()
+                .starts_with("new.cnf:2: unknown formulation \"spiral/3\""),
+            "{e}"
+        );
+
+        let e = parse_cnf_file(&with_digest(&old_body(name, "full-map/1")), "mixed.cnf")
+            .unwrap_err()
+            .to_string();
+        assert!(
+            e.contains(
+                "mixed.cnf:4: the options say formulation full-map/1, line 2 says isometric-cycle/1"
+            ),
+            "{e}"
+        );
     }
 
     #[test]

@@ -55,6 +55,19 @@ pub enum Error {
         reason: String,
     },
 
+    /// A file names a formulation that this version does not know (a newer
+    /// version wrote it, or it was edited); `line` is 1-based.
+    #[error("{path}:{line}: {source}")]
+    UnknownFormulation {
+        /// The file.
+        path: String,
+        /// 1-based line of the name.
+        line: usize,
+        /// The name and the formulations this version knows.
+        #[source]
+        source: crate::encode::UnknownFormulation,
+    },
+
     /// Reading or writing a file failed.
     #[error("{}: {source}", path.display())]
     Io {
@@ -124,6 +137,15 @@ pub enum Error {
     /// A theory lemma of a real-space certificate was rejected by the Farkas checker.
     #[error("lemma rejected: {0}")]
     Farkas(#[from] crate::real::farkas_check::FarkasError),
+    /// A report, table or picture cannot be made from its input: `what` is
+    /// the output asked for, `reason` what the input lacks or contradicts.
+    #[error("cannot make {what}: {reason}")]
+    Render {
+        /// The output asked for (`the cycle picture`, `the LaTeX report`, …).
+        what: String,
+        /// Why not.
+        reason: String,
+    },
 
     /// An external solver misbehaved; its answer was not used.
     #[error("external solver `{command}`: {failure}")]

@@ -31,10 +31,10 @@ use crate::cnf::Cnf;
 use crate::encode::{self, EncodeOptions};
 use crate::error::{Error, Result};
 use crate::grid::Point;
-use crate::proof::lrat::{LratFileError, check_lrat_file};
 use crate::proof::{LratOptions, LratSummary};
 use crate::question::{MapClass, Question};
 use crate::solve::certified::ProofInfo;
+use crate::solve::refute::recheck_file;
 use crate::verify::{self, OrbitCheck, SelfMapCheck};
 
 /// What backs a verdict.
@@ -102,7 +102,7 @@ pub fn check_witness(
             q.period
         )));
     }
-    if options.is_full_map() {
+    if options.formulation.encodes_map() {
         let map = map.ok_or_else(|| {
             Error::Decode(
                 "a feasible answer on a point set is backed by its map D → D, and none is given"
@@ -116,14 +116,20 @@ pub fn check_witness(
             map: Some(map_check),
         });
     }
+    Ok(WitnessCheck {
+        orbit: check_orbit(q, orbit)?,
+        map: None,
+    })
+}
+
+/// Checks `orbit` as an isometric cycle of `q`'s class on `q`'s box (a
+/// topical cycle for topical maps), without a map: what backs a feasible
+/// answer on a box, whose map is then built by exhaustion or extension.
+pub fn check_orbit(q: &Question, orbit: &[Point]) -> Result<OrbitCheck> {
     let bounds = q.grid.ranges();
-    let orbit_check = match q.class {
+    Ok(match q.class {
         MapClass::Topical => verify::check_topical_orbit(bounds, orbit)?,
         MapClass::Nonexpansive => verify::check_orbit(bounds, orbit)?,
-    };
-    Ok(WitnessCheck {
-        orbit: orbit_check,
-        map: None,
     })
 }
 
@@ -155,16 +161,10 @@ pub fn lrat_options() -> LratOptions {
 /// step and the reason when the proof is rejected.
 pub fn check_proof_file(cnf: &Cnf, path: &Path) -> Result<ProofCheck> {
     let t = Instant::now();
-    let summary = check_lrat_file(cnf, path, &lrat_options()).map_err(|e| match e {
-        LratFileError::Io { path, source } => Error::io(&path, source),
-        LratFileError::Rejected { source, .. } => Error::from(source),
-    })?;
-    let bytes = std::fs::metadata(path)
-        .map_err(|e| Error::io(path, e))?
-        .len();
+    let stored = recheck_file(cnf, path, &lrat_options())?;
     Ok(ProofCheck {
-        summary,
-        bytes,
+        summary: stored.check?,
+        bytes: stored.bytes,
         seconds: t.elapsed().as_secs_f64(),
     })
 }

@@ -29,14 +29,18 @@ pub mod grid;
 pub mod isometry;
 pub mod orbit_file;
 pub mod points;
+pub mod pool;
+pub mod progress;
 pub mod proof;
 pub mod question;
 pub mod real;
+pub mod render;
 pub mod report;
 pub mod solve;
 pub mod spectrum;
 pub mod split;
 pub mod store;
+pub mod theory;
 pub mod varmap;
 pub mod verify;
 

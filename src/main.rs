@@ -8,7 +8,7 @@ use std::process::ExitCode;
 
 use clap::{Parser, Subcommand};
 
-use cli::{EXIT_CODES, bench, check, cubes, decide, sweep};
+use cli::{EXIT_CODES, bench, check, cubes, decide, report, sweep};
 use orbitcnf::Error;
 
 /// Decide which periods sup-norm nonexpansive maps have on integer grids.
@@ -76,6 +76,12 @@ enum Command {
     /// Example: orbitcnf spectrum --dim 3 --grid=-1..1
     #[command(after_help = sweep::SPECTRUM_HELP)]
     Spectrum(sweep::SpectrumArgs),
+    /// Make a LaTeX table, an SVG picture or a self-contained HTML page from
+    /// an answer, a certificate bundle or a results store. The orbit is
+    /// re-checked and its map rebuilt and checked before anything is drawn.
+    ///
+    /// Example: orbitcnf report answer.json --format svg --picture cycle -o cycle.svg
+    Report(report::ReportArgs),
     /// Split a question into cubes for solving on many cores or machines:
     /// writes a folder with the CNF, one standalone CNF per cube, an iCNF
     /// file, a checked coverage proof and manifest.json.
@@ -183,6 +189,7 @@ fn main() -> ExitCode {
         Command::VerifyProof(a) => check::run_verify_proof(a),
         Command::CheckBundle(a) => check::run_check_bundle(a),
         Command::Spectrum(a) => sweep::run(a),
+        Command::Report(a) => report::run(a),
         Command::Split(a) => cubes::run_split(a),
         Command::RunCube(a) => cubes::run_cube(a),
         Command::Merge(a) => cubes::run_merge(a),

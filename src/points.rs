@@ -199,10 +199,11 @@ impl PointSet {
                         self.index_of(&t)
                     })
                     .collect();
-                if let Some(sigma) = moved {
-                    if sigma.iter().enumerate().any(|(i, &j)| i != j) && !out.contains(&sigma) {
-                        out.push(sigma);
-                    }
+                if let Some(sigma) = moved
+                    && sigma.iter().enumerate().any(|(i, &j)| i != j)
+                    && !out.contains(&sigma)
+                {
+                    out.push(sigma);
                 }
             }
         }

@@ -1,4 +1,5 @@
-//! The question orbitcnf answers, and the published bounds that frame it.
+//! The question orbitcnf answers (the published bounds that frame it are in
+//! [`crate::theory`]).
 //!
 //! A [`Question`] asks: on the grid `D`, is there a map `f: D → D`,
 //! nonexpansive in the sup-norm, with a periodic point of minimal period `p`?
@@ -239,59 +240,9 @@ pub fn statement(grid: &Grid, class: MapClass, period: &str) -> String {
     }
 }
 
-/// Number of coordinates whose range has more than one point: the dimension
-/// the box really has. A side of one point adds nothing to any distance.
-pub fn effective_dim(grid: &Grid) -> usize {
-    (0..grid.dim()).filter(|&c| grid.side(c) > 0).count()
-}
-
-/// `C(n, ⌊n/2⌋)`, the largest antichain of `{0,1}^n` (Sperner): every period
-/// of a topical map on R^n is at most this (B. Lemmens and M. Scheutzow, On
-/// the dynamics of sup-norm non-expansive maps, Ergodic Theory Dynam. Systems
-/// 25 (2005) 861–871, proving a conjecture of Gunawardena and Sparrow).
-/// Saturates at `u128::MAX`.
-pub fn topical_bound(n: usize) -> u128 {
-    let mut binom = 1u128;
-    for k in 1..=n / 2 {
-        binom = binom.saturating_mul((n - k + 1) as u128) / k as u128;
-    }
-    binom
-}
-
-/// `max_k 2^k·C(n,k)`: every period of a sup-norm nonexpansive map on a
-/// subset of R^n is at most this (B. Lemmens and M. Scheutzow, On the
-/// dynamics of sup-norm non-expansive maps, Ergodic Theory Dynam. Systems 25
-/// (2005) 861–871). Saturates at `u128::MAX`.
-pub fn lemmens_scheutzow_bound(n: usize) -> u128 {
-    let mut best = 1u128;
-    let mut binom = 1u128; // C(n, k)
-    for k in 0..=n {
-        if k > 0 {
-            binom = binom.saturating_mul((n - k + 1) as u128) / k as u128;
-        }
-        let pow = if k < 127 { 1u128 << k } else { u128::MAX };
-        best = best.max(binom.saturating_mul(pow));
-    }
-    best
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
-
-    #[test]
-    fn bound_values_match_the_table_in_lemmens_scheutzow_2005() {
-        // Values for n = 1..8 as tabulated in MATH.md from the formula of the paper.
-        let got: Vec<u128> = (1..=8).map(lemmens_scheutzow_bound).collect();
-        assert_eq!(got, vec![2, 4, 12, 32, 80, 240, 672, 1792]);
-    }
-
-    #[test]
-    fn topical_bound_values_match_the_table_in_math_md() {
-        // C(n, ⌊n/2⌋) for n = 1..8 (Lemmens and Scheutzow 2005; values as in MATH.md §7).
-        let got: Vec<u128> = (1..=8).map(topical_bound).collect();
-        assert_eq!(got, vec![1, 2, 3, 6, 10, 20, 35, 70]);
-    }
 
     #[test]
     fn the_class_round_trips_and_is_left_out_when_default() {
@@ -357,11 +308,5 @@ mod tests {
         assert!(e.contains("period 10 exceeds the 9 points"), "{e}");
         let q = Question::new(g, 9).unwrap();
         assert_eq!(Question::from_record(&q.record()).unwrap(), q);
-    }
-
-    #[test]
-    fn sides_of_one_point_do_not_count() {
-        let g = Grid::parse("0..2,5..5,0..1", None).unwrap();
-        assert_eq!(effective_dim(&g), 2);
     }
 }

@@ -167,7 +167,10 @@ impl Report {
             // A topical or full-map report shows its own formulation and the
             // families switched off for it; nonexpansive reports on boxes echo
             // the options as given, as they always have.
-            options: if q.class.is_default() && q.points.is_none() && !options.is_full_map() {
+            options: if q.class.is_default()
+                && q.points.is_none()
+                && !options.formulation.encodes_map()
+            {
                 options.clone()
             } else {
                 options.resolve(q)
@@ -229,7 +232,7 @@ impl Report {
                     ),
                     _ => "INFEASIBLE".to_string(),
                 };
-                let what = if self.options.is_full_map() {
+                let what = if self.options.formulation.encodes_map() {
                     format!(
                         "no nonexpansive map D → D has a periodic point of minimal period {}",
                         self.question.period
@@ -322,7 +325,7 @@ impl Report {
                         f.display()
                     );
                 }
-                let why = if self.options.is_full_map() {
+                let why = if self.options.formulation.encodes_map() {
                     "encodings/full-map.md"
                 } else {
                     writeups

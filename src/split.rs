@@ -23,8 +23,8 @@
 //! `coverage.cnf` and `coverage.lrat` (below), and `manifest.json`
 //! ([`SplitManifest`]: question, options, cube list and the SHA-256 of every
 //! file), written last. [`run`] solves one cube into `results/` and merges the
-//! results; [`jobs`] does the same in threads for `decide --jobs`; [`lift`]
-//! turns the per-cube refutations into one LRAT proof of `F`.
+//! results; [`jobs`] does the same in threads for `decide --jobs`;
+//! [`crate::proof::lift`] turns the per-cube refutations into one LRAT proof of `F`.
 //!
 //! # Why the cubes cover the search space
 //!
@@ -45,7 +45,6 @@
 //! argument is `encodings/cubes.md`.
 
 pub mod jobs;
-pub mod lift;
 pub mod run;
 
 use std::path::Path;
@@ -56,11 +55,12 @@ pub use crate::artifact::FileEntry;
 use crate::artifact::{sha256_hex, write_atomically};
 use crate::cnf::{Cnf, FamilyCount, Lit};
 use crate::dimacs::{VERSION, render_cnf};
-use crate::encode::{EncodeOptions, Encoding, encode, fullmap, profile, symmetry};
+use crate::encode::{EncodeOptions, Encoding, Formulation, encode, fullmap, profile, symmetry};
 use crate::error::{Error, Result};
-use crate::proof::{LratOptions, LratSummary, certify, check_lrat_with};
+use crate::proof::{LratOptions, LratSummary};
 use crate::question::{Question, QuestionRecord};
-use crate::solve::Outcome;
+use crate::solve::refute::{CheckedProof, ProofPlan, recheck_file, solve_bundled};
+use crate::solve::{Limits, Outcome};
 use crate::varmap::Meaning;
 
 /// The manifest's file name.
@@ -223,7 +223,7 @@ pub fn profile_cubes(enc: &Encoding, target: usize) -> Result<Vec<Cube>> {
 /// # Errors
 /// As [`profile_cubes`] and [`start_cubes`].
 pub fn cubes(enc: &Encoding, target: usize) -> Result<Vec<Cube>> {
-    if enc.options.is_full_map() {
+    if enc.options.formulation == Formulation::FullMap {
         start_cubes(enc, target)
     } else {
         profile_cubes(enc, target)
@@ -292,7 +292,7 @@ fn family_range(enc: &Encoding, family: &str) -> Option<std::ops::Range<usize>> 
 /// formulation `orbit-place` (whose first clause says x_0 is some point),
 /// then `fm-isometry` when present.
 pub fn coverage_sources(enc: &Encoding) -> Vec<usize> {
-    let families = if enc.options.is_full_map() {
+    let families = if enc.options.formulation == Formulation::FullMap {
         [fullmap::orbit::FAMILY_PLACE, fullmap::symmetry::ISOMETRY]
     } else {
         [profile::FAMILY, symmetry::MULTIPLIER]
@@ -349,7 +349,7 @@ pub fn render_icnf(enc: &Encoding, cubes: &[Cube]) -> Vec<u8> {
             "c orbitcnf {VERSION} split of: {}\nc {} cubes over {}; cube i is the i-th 'a' line (from 0)\np inccnf\n",
             enc.question.statement(),
             cubes.len(),
-            if enc.options.is_full_map() {
+            if enc.options.formulation == Formulation::FullMap {
                 "the start point x_0"
             } else {
                 "the distance profile"
@@ -370,7 +370,7 @@ pub fn render_icnf(enc: &Encoding, cubes: &[Cube]) -> Vec<u8> {
 /// The coverage CNF as plain DIMACS with a comment saying what it is.
 pub fn render_coverage(enc: &Encoding, cnf: &Cnf, cubes: &[Cube]) -> Vec<u8> {
     let kept = coverage_sources(enc).len();
-    let kept_what = if enc.options.is_full_map() {
+    let kept_what = if enc.options.formulation == Formulation::FullMap {
         "the orbit placement and isometry clauses"
     } else {
         "the profile order encoding and the multiplier lex-leader clauses"
@@ -512,22 +512,18 @@ pub fn cube_file_name(index: usize) -> String {
     format!("{CUBES_DIR}/cube-{index:04}.cnf")
 }
 
-/// Solves the coverage CNF with the bundled solver and checks its LRAT proof.
+/// Solves the coverage CNF with the bundled solver and checks its LRAT
+/// proof (text, held in a temporary file by the returned proof).
 ///
 /// # Errors
 /// [`Error::Solver`] when the coverage CNF is satisfiable (a profile no cube
-/// contains: a bug, reported with the profile) or the proof is rejected.
-pub fn refute_coverage(enc: &Encoding, cnf: &Cnf) -> Result<(Vec<u8>, LratSummary)> {
-    let mut proof = Vec::new();
-    let sinks = crate::proof::ProofSinks {
-        lrat: Some(&mut proof),
-        lrat_binary: false,
-        ..Default::default()
-    };
-    let out = crate::proof::solve_with_proof_sinks(cnf, sinks, None)?;
-    match out.outcome {
+/// contains: a bug, reported with the profile); [`Error::Proof`] when the
+/// proof is rejected.
+pub fn refute_coverage(enc: &Encoding, cnf: &Cnf) -> Result<CheckedProof> {
+    let r = solve_bundled(cnf, &Limits::default(), &ProofPlan::default(), None)?;
+    match r.outcome {
         Outcome::Unsat => {}
-        Outcome::Sat(_) if enc.options.is_full_map() => {
+        Outcome::Sat(_) if enc.options.formulation == Formulation::FullMap => {
             return Err(Error::Solver {
                 solver: "coverage check".into(),
                 reason: "the cubes miss a start point x_0; no split was written".into(),
@@ -563,12 +559,8 @@ pub fn refute_coverage(enc: &Encoding, cnf: &Cnf) -> Result<(Vec<u8>, LratSummar
             });
         }
     }
-    let options = LratOptions {
-        ids_follow_cnf: true,
-        ..LratOptions::default()
-    };
-    let summary = check_lrat_with(cnf, &proof, &options)?;
-    Ok((proof, summary))
+    Ok(r.proof
+        .expect("an UNSAT answer of solve_bundled has a checked proof"))
 }
 
 /// A split folder as [`write_split`] left it.
@@ -615,7 +607,9 @@ pub fn write_split(
     }
     let cubes = cubes(&enc, target)?;
     let coverage = coverage_cnf(&enc, &cubes);
-    let (proof, summary) = refute_coverage(&enc, &coverage)?;
+    let checked = refute_coverage(&enc, &coverage)?;
+    let proof = std::fs::read(checked.path()).map_err(|e| Error::io(checked.path(), e))?;
+    let summary = checked.info.lrat;
     for sub in [CUBES_DIR, RESULTS_DIR] {
         let d = dir.join(sub);
         std::fs::create_dir_all(&d).map_err(|e| Error::io(&d, e))?;
@@ -656,7 +650,7 @@ pub fn write_split(
         question: q.record(),
         options: enc.options.clone(),
         requested_cubes: target,
-        split: if enc.options.is_full_map() {
+        split: if enc.options.formulation == Formulation::FullMap {
             SplitRule {
                 rule: "start-point".into(),
                 offsets: 0,
@@ -742,26 +736,14 @@ pub fn verify_split(dir: &Path, m: &SplitManifest) -> Result<(Encoding, Cnf, Lra
     if sha256_hex(&render_coverage(&enc, &coverage, &cubes)) != m.coverage.cnf.sha256 {
         return Err(differs(COVERAGE));
     }
-    let proof = m.coverage.proof.read_checked(dir, MANIFEST)?;
     let options = LratOptions {
         ids_follow_cnf: true,
         ..LratOptions::default()
     };
-    let summary = check_lrat_with(&coverage, &proof, &options)?;
+    let entry = &m.coverage.proof;
+    entry.verify(dir, MANIFEST)?;
+    let summary = recheck_file(&coverage, &dir.join(&entry.name), &options)?.check?;
     Ok((enc, coverage, summary))
-}
-
-/// Refutes `cnf` with the bundled solver, checking the LRAT proof: for the
-/// tests and for callers that want a checked coverage proof in memory.
-///
-/// # Errors
-/// As [`certify`]; [`Error::Solver`] when the CNF is not refuted.
-pub fn refute_checked(cnf: &Cnf) -> Result<LratSummary> {
-    let c = certify(cnf, None)?;
-    c.lrat.ok_or_else(|| Error::Solver {
-        solver: "coverage check".into(),
-        reason: "the CNF is not unsatisfiable".into(),
-    })
 }
 
 #[cfg(test)]
@@ -794,7 +776,7 @@ mod tests {
             let cubes = profile_cubes(&e, target).unwrap();
             assert!(cubes.len() >= target, "{target}: {}", cubes.len());
             assert!(cubes.len() < 2 * target + 2, "{target}: {}", cubes.len());
-            refute_checked(&coverage_cnf(&e, &cubes)).unwrap();
+            refute_coverage(&e, &coverage_cnf(&e, &cubes)).unwrap();
         }
         // 36 binary necklaces of length 8 under the cyclic multiplier group: the leaders.
         let all = profile_cubes(&e, usize::MAX).unwrap();
@@ -816,36 +798,63 @@ mod tests {
 
     #[test]
     fn cube_proofs_lift_to_one_proof_of_the_formula() {
+        use crate::proof::lift::{assemble, lift_cube};
+        use crate::proof::{LratFormat, check_lrat_with};
         let e = enc("-1..1", 2, 5);
         let cubes = profile_cubes(&e, 3).unwrap();
-        let mut lifted = Vec::new();
-        for c in &cubes {
-            let cnf = run::cube_cnf(&e.cnf, c);
-            let mut proof = Vec::new();
-            let sinks = crate::proof::ProofSinks {
-                lrat: Some(&mut proof),
-                lrat_binary: c.index % 2 == 0,
-                ..Default::default()
-            };
-            let out = crate::proof::solve_with_proof_sinks(&cnf, sinks, None).unwrap();
-            assert_eq!(out.outcome, Outcome::Unsat);
-            // Without the cube's units the proof refers to clauses that do not exist.
-            if !c.literals.is_empty() {
-                assert!(lift::lift_cube(&e.cnf, &[], &proof).is_err());
-            }
-            lifted.push(lift::lift_cube(&e.cnf, &c.lits(), &proof).unwrap());
-        }
         let cov = coverage_cnf(&e, &cubes);
-        let (cov_proof, _) = refute_coverage(&e, &cov).unwrap();
-        let all = lift::assemble(&e.cnf, &coverage_sources(&e), &lifted, &cov_proof).unwrap();
+        let cov_proof = refute_coverage(&e, &cov).unwrap();
+        let cov_bytes = std::fs::read(cov_proof.path()).unwrap();
         let options = LratOptions {
             ids_follow_cnf: true,
             ..LratOptions::default()
         };
-        check_lrat_with(&e.cnf, &all, &options).unwrap();
-        // Leaving out one cube's derivation breaks the chain: the checker rejects it.
-        let partial = lift::assemble(&e.cnf, &coverage_sources(&e), &lifted[1..], &cov_proof);
-        assert!(partial.map_or(true, |p| check_lrat_with(&e.cnf, &p, &options).is_err()));
+        // Every mix of encodings: cube proofs, lifted derivations, the result.
+        for (k, format) in [LratFormat::Text, LratFormat::Binary]
+            .into_iter()
+            .enumerate()
+        {
+            let mut lifted = Vec::new();
+            for c in &cubes {
+                let cnf = run::cube_cnf(&e.cnf, c);
+                let plan = ProofPlan {
+                    format: if (c.index + k) % 2 == 0 {
+                        LratFormat::Binary
+                    } else {
+                        LratFormat::Text
+                    },
+                    ..ProofPlan::default()
+                };
+                let r = solve_bundled(&cnf, &Limits::default(), &plan, None).unwrap();
+                assert_eq!(r.outcome, Outcome::Unsat);
+                let proof = std::fs::read(r.proof.unwrap().path()).unwrap();
+                // Without the cube's units the proof refers to clauses that do not exist.
+                if !c.literals.is_empty() {
+                    assert!(lift_cube(&e.cnf, &[], &proof[..], Vec::new(), format).is_err());
+                }
+                let mut out = Vec::new();
+                let lc = lift_cube(&e.cnf, &c.lits(), &proof[..], &mut out, format).unwrap();
+                assert_eq!(lc.bytes, out.len() as u64);
+                lifted.push((lc, out));
+            }
+            let pieces = || lifted.iter().map(|(lc, out)| (*lc, &out[..]));
+            let mut all = Vec::new();
+            let sources = coverage_sources(&e);
+            assemble(&e.cnf, &sources, pieces(), &cov_bytes[..], &mut all, format).unwrap();
+            let s = check_lrat_with(&e.cnf, &all, &options).unwrap();
+            assert_eq!(s.format, format);
+            // Leaving out one cube's derivation breaks the chain: the checker rejects it.
+            let mut partial = Vec::new();
+            let cut = assemble(
+                &e.cnf,
+                &sources,
+                pieces().skip(1),
+                &cov_bytes[..],
+                &mut partial,
+                format,
+            );
+            assert!(cut.is_err() || check_lrat_with(&e.cnf, &partial, &options).is_err());
+        }
     }
 
     #[test]
@@ -854,6 +863,6 @@ mod tests {
         let cubes = profile_cubes(&e, 8).unwrap();
         assert_eq!(cubes.len(), 1);
         assert!(cubes[0].literals.is_empty());
-        refute_checked(&coverage_cnf(&e, &cubes)).unwrap();
+        refute_coverage(&e, &coverage_cnf(&e, &cubes)).unwrap();
     }
 }

@@ -8,15 +8,59 @@
 use std::path::PathBuf;
 use std::time::Duration;
 
-use clap::Args;
+use clap::{Args, ValueEnum};
 
 use orbitcnf::decide::Solver;
-use orbitcnf::encode::{DEFAULT_MAX_CLAUSES, EncodeOptions, Symmetry};
+use orbitcnf::encode::{DEFAULT_MAX_CLAUSES, EncodeOptions, Formulation, Symmetry};
 use orbitcnf::points::PointSet;
+use orbitcnf::progress::ProgressMode;
+use orbitcnf::proof::LratFormat;
 use orbitcnf::question::MapClass;
 use orbitcnf::solve::external::{External, ProofFormat, ProofRequest};
 use orbitcnf::split::jobs::JobsOptions;
 use orbitcnf::{Error, Grid, Question};
+
+/// `--progress MODE` and `-q`, shared by the commands that can run long.
+#[derive(Args, Debug, Clone)]
+pub struct ProgressArgs {
+    /// Progress on stderr: `bar`, one line redrawn in place; `lines`, plain
+    /// timestamped lines for logs (`orbitcnf: progress: …`, one for every
+    /// decided period or finished cube and a status every 30 s); `off`; or
+    /// `auto`, the default: `bar` when stderr is a terminal (and no --json
+    /// report is asked of decide or run-cube), nothing otherwise.
+    #[arg(long, value_name = "MODE", value_enum, default_value_t = ProgressChoice::Auto)]
+    pub progress: ProgressChoice,
+    /// Show no progress on stderr (as --progress off).
+    #[arg(long, short, conflicts_with = "progress")]
+    pub quiet: bool,
+}
+
+/// The values of `--progress`.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
+pub enum ProgressChoice {
+    /// A bar on a terminal, nothing otherwise.
+    Auto,
+    /// One line redrawn in place.
+    Bar,
+    /// Timestamped lines for logs.
+    Lines,
+    /// Nothing.
+    Off,
+}
+
+impl ProgressArgs {
+    /// The mode asked for; `auto` stays quiet beside a machine-read report
+    /// (`quiet_auto`) as well as off a terminal.
+    pub fn mode(&self, quiet_auto: bool) -> ProgressMode {
+        match (self.quiet, self.progress) {
+            (true, _) | (false, ProgressChoice::Off) => ProgressMode::Off,
+            (false, ProgressChoice::Bar) => ProgressMode::Bar,
+            (false, ProgressChoice::Lines) => ProgressMode::Lines,
+            (false, ProgressChoice::Auto) if quiet_auto => ProgressMode::Off,
+            (false, ProgressChoice::Auto) => ProgressMode::auto(),
+        }
+    }
+}
 
 /// The domain D: a box (`--grid`, `--dim`) or a point set (`--points`).
 #[derive(Args, Debug, Clone)]
@@ -178,11 +222,22 @@ pub struct EncodingArgs {
     /// The formulation: `cycle` (isometric cycles; boxes only; the default
     /// on boxes) or `full-map` (the whole map f: D → D; the only one for
     /// --points, and available on boxes for comparison).
-    #[arg(long, value_name = "NAME", value_parser = ["cycle", "full-map"])]
-    pub formulation: Option<String>,
+    #[arg(long, value_name = "NAME", value_parser = formulation_word())]
+    pub formulation: Option<Formulation>,
     /// Refuse to build formulas with more clauses than this.
     #[arg(long, value_name = "N", default_value_t = DEFAULT_MAX_CLAUSES)]
     pub max_clauses: u64,
+}
+
+/// The words `--formulation` accepts: `cycle` asks for the class's cycle
+/// formulation, which the options spell [`Formulation::IsometricCycle`]
+/// until they are resolved for a question.
+fn formulation_word() -> impl clap::builder::TypedValueParser<Value = Formulation> {
+    use clap::builder::TypedValueParser;
+    clap::builder::PossibleValuesParser::new(["cycle", "full-map"]).map(|w| match w.as_str() {
+        "full-map" => Formulation::FullMap,
+        _ => Formulation::IsometricCycle,
+    })
 }
 
 impl EncodingArgs {
@@ -193,15 +248,15 @@ impl EncodingArgs {
     /// # Errors
     /// A bad symmetry list, or the cycle formulation on a point set.
     pub fn options(&self, point_set: bool) -> Result<EncodeOptions, Error> {
-        if point_set && self.formulation.as_deref() == Some("cycle") {
+        if point_set && self.formulation == Some(Formulation::IsometricCycle) {
             return Err(Error::Options(
                 "--formulation cycle answers the question only on boxes: on a point set an \
                  isometric cycle need not extend to a map D → D; use full-map (the default with --points)"
                     .into(),
             ));
         }
-        let base = match self.formulation.as_deref() {
-            Some("full-map") => EncodeOptions::full_map(),
+        let base = match self.formulation {
+            Some(Formulation::FullMap) => EncodeOptions::full_map(),
             _ => EncodeOptions::default(),
         };
         Ok(EncodeOptions {
@@ -219,7 +274,7 @@ pub fn parse_seconds(s: &str) -> Result<Duration, String> {
     let v: f64 = s
         .parse()
         .map_err(|_| format!("{s:?} is not a number of seconds"))?;
-    if !(v > 0.0) || v.is_nan() {
+    if v.is_nan() || v <= 0.0 {
         return Err(format!(
             "the time limit must be a positive number of seconds, got {s}"
         ));
@@ -362,6 +417,7 @@ impl ScaleArgs {
                     .unwrap_or_else(|| JobsOptions::default_cubes(self.jobs)),
                 certify,
                 lrat: None,
+                format: LratFormat::Text,
             })),
             (None, false) => Ok(Solver::Bundled { certify }),
         }

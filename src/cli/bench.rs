@@ -7,6 +7,11 @@ use clap::Args;
 use super::args::parse_seconds;
 use super::{Outcome, print, print_either};
 
+/// The default time limit per run of the whole set.
+const FULL_LIMIT_SECS: u64 = 600;
+/// The default time limit per run of the quick set.
+const QUICK_LIMIT_SECS: u64 = 20;
+
 /// Arguments of `bench`.
 #[derive(Args, Debug)]
 pub struct BenchArgs {
@@ -15,8 +20,10 @@ pub struct BenchArgs {
     #[arg(long)]
     quick: bool,
     /// Time limit per run, in seconds; a baseline that hits it shows `>LIMIT`.
-    #[arg(long, value_name = "SECS", value_parser = parse_seconds, default_value = "600")]
-    time_limit: Duration,
+    /// Default: 600, or 20 with --quick (so that a slow baseline cannot make
+    /// the quick set slow).
+    #[arg(long, value_name = "SECS", value_parser = parse_seconds)]
+    time_limit: Option<Duration>,
     /// Only the default encoding, no baselines.
     #[arg(long)]
     no_baselines: bool,
@@ -39,9 +46,14 @@ pub struct BenchArgs {
 /// Runs `bench`.
 pub fn run(a: BenchArgs) -> Outcome {
     use orbitcnf::bench;
+    let limit = a.time_limit.unwrap_or(Duration::from_secs(if a.quick {
+        QUICK_LIMIT_SECS
+    } else {
+        FULL_LIMIT_SECS
+    }));
     if a.spectrum {
-        let jobs = a.jobs.unwrap_or_else(orbitcnf::spectrum::default_jobs);
-        let f = bench::run_spectrum(jobs, a.time_limit)?;
+        let jobs = a.jobs.unwrap_or_else(orbitcnf::pool::default_jobs);
+        let f = bench::run_spectrum(jobs, limit)?;
         print_either(
             a.json,
             || serde_json::to_string(&f).expect("serialises"),
@@ -54,7 +66,7 @@ pub fn run(a: BenchArgs) -> Outcome {
         print(&format!("{}\n", bench::header()))?;
     }
     for case in &cases {
-        let row = bench::run_case(case, a.time_limit, !a.no_baselines)?;
+        let row = bench::run_case(case, limit, !a.no_baselines)?;
         print_either(
             a.json,
             || serde_json::to_string(&row).expect("serialises"),

@@ -6,12 +6,13 @@ use std::time::Duration;
 
 use clap::Args;
 
+use orbitcnf::proof::LratFormat;
 use orbitcnf::solve::bundled::Bundled;
 use orbitcnf::solve::certified::Certified;
 use orbitcnf::solve::{Backend, Limits};
 use orbitcnf::split::{self, run as cube_run};
 
-use super::args::{EncodingArgs, QuestionArgs, SolverArgs, parse_seconds};
+use super::args::{EncodingArgs, ProgressArgs, QuestionArgs, SolverArgs, parse_seconds};
 use super::{Outcome, code, print, print_either};
 
 /// The long help of `split`.
@@ -124,19 +125,23 @@ pub struct RunCubeArgs {
     /// Solve again even if the cube already has a final result.
     #[arg(long)]
     force: bool,
+    /// With the bundled solver: the encoding of the cube's LRAT proof in
+    /// results/, text or binary (about half the size).
+    #[arg(long, value_name = "ENC", default_value = "text")]
+    proof_encoding: LratFormat,
     /// Print the result as JSON.
     #[arg(long)]
     json: bool,
-    /// Do not show the progress line on stderr.
-    #[arg(long, short)]
-    quiet: bool,
+    #[command(flatten)]
+    progress: ProgressArgs,
 }
 
 /// Runs `run-cube`.
 pub fn run_cube(a: RunCubeArgs) -> Outcome {
     let limits = Limits {
         time: a.time_limit,
-        progress: !a.quiet && !a.json,
+        progress: a.progress.mode(a.json),
+        ..Limits::default()
     };
     let lrat = cube_run::lrat_target(&a.dir, a.index);
     let mut external = a.solver.external(!a.no_certify)?;
@@ -147,6 +152,7 @@ pub fn run_cube(a: RunCubeArgs) -> Outcome {
     let mut certified = Certified {
         lrat: Some(lrat),
         drat: None,
+        format: a.proof_encoding,
     };
     let backend: &mut dyn Backend = match (external.as_mut(), a.no_certify) {
         (Some(ext), _) => ext,
@@ -177,6 +183,9 @@ pub struct MergeArgs {
     /// DIR/formula.cnf FILE` or any LRAT checker).
     #[arg(long, value_name = "FILE")]
     proof: Option<PathBuf>,
+    /// The encoding of the proof written with --proof: text or binary.
+    #[arg(long, value_name = "ENC", default_value = "text")]
+    proof_encoding: LratFormat,
     /// Only print the indices of the cubes without a final result, one per
     /// line (for rerunning them), and exit 0.
     #[arg(long)]
@@ -198,7 +207,7 @@ pub fn run_merge(a: MergeArgs) -> Outcome {
         print(&idx.iter().map(|i| format!("{i}\n")).collect::<String>())?;
         return Ok(0);
     }
-    let r = cube_run::merge(&a.dir, a.proof.as_deref(), a.trust_solver)?;
+    let r = cube_run::merge(&a.dir, a.proof.as_deref(), a.trust_solver, a.proof_encoding)?;
     print_either(
         a.json,
         || serde_json::to_string(&r).expect("serialises"),

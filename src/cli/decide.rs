@@ -1,18 +1,21 @@
 //! `decide`, `encode` and `decode`: one question, solved here or elsewhere.
 
 use std::io::{Read, Write};
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 use std::time::Duration;
 
 use clap::Args;
 
 use orbitcnf::decide::{self, BundleOutcome, Outputs, Request};
+use orbitcnf::proof::LratFormat;
 use orbitcnf::question::MapClass;
 use orbitcnf::real::Handoff;
 use orbitcnf::solve::Limits;
-use orbitcnf::{Error, dimacs, encode};
+use orbitcnf::{Error, Report, dimacs, encode};
 
-use super::args::{CertifyArgs, EncodingArgs, QuestionArgs, ScaleArgs, parse_seconds};
+use super::args::{
+    CertifyArgs, EncodingArgs, ProgressArgs, QuestionArgs, ScaleArgs, parse_seconds,
+};
 use super::{Outcome, code, print_either};
 
 /// Arguments of `decide`.
@@ -28,9 +31,8 @@ pub struct DecideArgs {
     /// Print one JSON object instead of the text report.
     #[arg(long)]
     json: bool,
-    /// Do not show the progress line on stderr.
-    #[arg(long, short)]
-    quiet: bool,
+    #[command(flatten)]
+    progress: ProgressArgs,
     /// Write the LRAT proof of an infeasible answer to FILE (text LRAT; the
     /// proof is checked by orbitcnf's own checker in any case).
     #[arg(long, value_name = "FILE", conflicts_with = "no_certify")]
@@ -39,6 +41,10 @@ pub struct DecideArgs {
     /// external checkers such as rate or drat-trim.
     #[arg(long, value_name = "FILE", conflicts_with = "no_certify")]
     drat: Option<PathBuf>,
+    /// The encoding of the LRAT proof written with --proof or --bundle:
+    /// text, or binary (about half the size, written and checked faster).
+    #[arg(long, value_name = "ENC", default_value = "text")]
+    proof_encoding: LratFormat,
     /// Write a certificate bundle to DIR: manifest.json, formula.cnf and
     /// proof.lrat (infeasible) or orbit.json (feasible; map.json with the
     /// whole map on a point set); re-check it with `orbitcnf check-bundle
@@ -46,6 +52,16 @@ pub struct DecideArgs {
     /// unchecked verdict writes nothing.
     #[arg(long, value_name = "DIR", conflicts_with = "no_certify")]
     bundle: Option<PathBuf>,
+    /// Also print the explicit map of a feasible answer: the nonexpansive
+    /// extension f of the orbit's shift on the whole grid (topical: the
+    /// topical extension; --points: the map found), checked by exhaustion,
+    /// as `check --map` prints it; in JSON under "explicit_map".
+    #[arg(long)]
+    map: bool,
+    /// With --map: write the map as JSON to FILE (as `check --map-out` does)
+    /// instead of printing it.
+    #[arg(long, value_name = "FILE", requires = "map")]
+    map_out: Option<PathBuf>,
     #[command(flatten)]
     certify: CertifyArgs,
     #[command(flatten)]
@@ -72,10 +88,12 @@ pub fn run_decide(a: DecideArgs) -> Outcome {
             proof: a.proof,
             raw_proof: a.drat,
             bundle: a.bundle,
+            format: a.proof_encoding,
         },
         limits: Limits {
             time: a.time_limit,
-            progress: !a.quiet && !a.json,
+            progress: a.progress.mode(a.json),
+            ..Limits::default()
         },
         max_clauses: a.encoding.max_clauses,
         accept_claims: a.certify.accept_claims(),
@@ -90,7 +108,14 @@ pub fn run_decide(a: DecideArgs) -> Outcome {
         }
         BundleOutcome::NotWritten(why) => eprintln!("no bundle written: {why}"),
     }
-    print_either(a.json, || d.report.to_json(), || d.report.to_text())?;
+    if a.map {
+        let mut json = serde_json::to_value(&d.report).expect("reports serialise");
+        let mut text = d.report.to_text();
+        decide_map(a.map_out.as_deref(), &d.report, &mut json, &mut text)?;
+        print_either(a.json, || json.to_string(), || text)?;
+    } else {
+        print_either(a.json, || d.report.to_json(), || d.report.to_text())?;
+    }
     Ok(code(d.report.exit_code()))
 }
 
@@ -145,11 +170,43 @@ fn run_real(n: usize, a: DecideArgs) -> Outcome {
         p: a.question.period,
         time_limit: a.time_limit,
         json: a.json,
-        quiet: a.quiet,
+        progress: a.progress.mode(a.json),
         bundle: a.bundle,
         certify: !a.certify.no_certify,
         handoff,
     })
+}
+
+/// `decide --map`: the explicit map of a feasible answer, added to the JSON
+/// and the text, or written to `out`.
+fn decide_map(
+    out: Option<&Path>,
+    report: &Report,
+    json: &mut serde_json::Value,
+    text: &mut String,
+) -> Result<(), Error> {
+    let Some(m) = orbitcnf::render::facts::report_map(report)? else {
+        if report.orbit.is_some() {
+            text.push_str(&format!(
+                "map          not built: the box has more than {} points\n",
+                orbitcnf::verify::MAP_CHECK_LIMIT
+            ));
+        }
+        return Ok(());
+    };
+    let orbit = report.orbit.as_deref().unwrap_or_default();
+    let doc = m.to_json(&report.question.grid, report.question.class, orbit);
+    match out {
+        Some(path) => {
+            orbitcnf::artifact::write_atomically(path, (doc.to_string() + "\n").as_bytes())?;
+            eprintln!("map written to {}", path.display());
+        }
+        None => {
+            json["explicit_map"] = doc;
+            text.push_str(&m.to_text());
+        }
+    }
+    Ok(())
 }
 
 /// Arguments of `encode`.

@@ -8,6 +8,7 @@ pub mod check;
 pub mod cubes;
 pub mod decide;
 pub mod real;
+pub mod report;
 pub mod sweep;
 
 use std::io::{self, Write};

@@ -6,6 +6,7 @@ use std::path::{Path, PathBuf};
 use std::time::Duration;
 
 use orbitcnf::Error;
+use orbitcnf::progress::ProgressMode;
 use orbitcnf::real::{self, Handoff, RealOptions};
 
 use super::{Outcome, code, print_either};
@@ -21,8 +22,8 @@ pub struct RealDecide {
     pub time_limit: Option<Duration>,
     /// JSON instead of text.
     pub json: bool,
-    /// No progress line.
-    pub quiet: bool,
+    /// How progress is shown on stderr.
+    pub progress: ProgressMode,
     /// Where to write the bundle.
     pub bundle: Option<PathBuf>,
     /// Write and check a certificate for an infeasible answer.
@@ -58,25 +59,14 @@ pub fn decide(a: RealDecide) -> Outcome {
     o.certify = a.certify;
     o.handoff = a.handoff;
     o.certificate_dir = keep.as_ref().map(|t| t.path().to_path_buf());
-    let show = !a.quiet && !a.json;
-    let mut shown = false;
+    let mut line = progress_line(a.progress);
     let report = real::decide(a.n, a.p, &o, a.time_limit, &mut |pr| {
-        if show {
-            let _ = write!(
-                std::io::stderr(),
-                "\r\x1b[Kreal space R^{} p = {}: {:.0} s, {} conflicts, {} lemmas",
-                a.n,
-                a.p,
-                pr.seconds,
-                pr.stats.conflicts,
-                pr.lemmas
-            );
-            shown = true;
-        }
+        line(&format!(
+            "real space R^{} p = {}: {:.0} s, {} conflicts, {} lemmas",
+            a.n, a.p, pr.seconds, pr.stats.conflicts, pr.lemmas
+        ));
     });
-    if shown {
-        let _ = write!(std::io::stderr(), "\r\x1b[K");
-    }
+    line("");
     let mut report = report?;
     if let Some(dir) = &a.bundle {
         let cert = keep.as_ref().map(|t| t.path());
@@ -115,4 +105,31 @@ pub fn check_bundle(dir: &Path, json: bool) -> Outcome {
         || c.to_text(),
     )?;
     Ok(0)
+}
+
+/// A progress printer for `mode`: a line redrawn in place (`Bar`; an empty
+/// text clears it), a timestamped line every 30 s (`Lines`), or nothing.
+pub fn progress_line(mode: ProgressMode) -> impl FnMut(&str) {
+    let t0 = std::time::Instant::now();
+    let mut last: Option<f64> = None;
+    let mut drawn = false;
+    move |text: &str| match mode {
+        ProgressMode::Bar if text.is_empty() && drawn => {
+            let _ = write!(std::io::stderr(), "\r\x1b[K");
+            drawn = false;
+        }
+        ProgressMode::Bar if text.is_empty() => {}
+        ProgressMode::Bar => {
+            let _ = write!(std::io::stderr(), "\r\x1b[K{text}");
+            drawn = true;
+        }
+        ProgressMode::Lines if !text.is_empty() => {
+            let now = t0.elapsed().as_secs_f64();
+            if last.is_none_or(|l| now - l >= 30.0) {
+                last = Some(now);
+                let _ = writeln!(std::io::stderr(), "orbitcnf: progress: {text}");
+            }
+        }
+        _ => {}
+    }
 }

@@ -9,7 +9,7 @@ use orbitcnf::Error;
 use orbitcnf::question::MapClass;
 use orbitcnf::spectrum::{self, SweepConfig};
 
-use super::args::{ClassArgs, DomainArgs, EncodingArgs, parse_seconds};
+use super::args::{ClassArgs, DomainArgs, EncodingArgs, ProgressArgs, parse_seconds};
 use super::{Outcome, print};
 
 /// The long help of `spectrum`.
@@ -37,6 +37,12 @@ The results store (--store DIR, default ./orbitcnf-results):
   Every file is written to a temporary file, fsynced and renamed into place, so
   a sweep killed at any moment keeps every answer it completed; run the same
   command again to continue. Decided answers are never recomputed or replaced.
+  A reused answer is checked first: its orbit and map again, its proof file for
+  presence and size (in full with --recheck); the report says whether a proof
+  was checked in this run or when it was. A file in DIR/answers/ that is not a
+  valid answer, and an answer whose evidence fails that check (a missing or
+  edited proof), is moved (never deleted) to DIR/quarantine/ with a warning,
+  listed in the report, and its period is decided again.
   An unknown answer is retried only when this run has a larger --time-limit
   (or none) or a larger --max-clauses than the run that gave up.
   A new or stored answer whose verdict differs from another stored answer to the
@@ -49,7 +55,13 @@ The results store (--store DIR, default ./orbitcnf-results):
 Output: a table on stdout; --json prints one JSON object (the whole spectrum,
 each row with its stored answer); --csv one line per period after a header;
 --markdown FILE also writes a page with the published bounds beside the answers.
-The progress line on stderr appears only when stderr is a terminal.
+Progress (--progress MODE): on a terminal one line redrawn in place; with
+--progress lines, for batch and cluster logs, one timestamped line on stderr
+for every decided period and a status line every 30 s:
+  orbitcnf: progress: 2025-01-31T23:59:59Z spectrum {-1,0,1}^4: p=17 infeasible
+  (solver, 12.3 s); 17/32 periods decided (...), 2 running: p=18 (40.0 s,
+  120000 conflicts), ...
+By default (auto) nothing is written when stderr is not a terminal.
 
 Exit codes:
    0  every period was decided (feasible or infeasible)
@@ -106,9 +118,8 @@ pub struct SpectrumArgs {
     /// Also write a Markdown page with the published bounds beside the answers.
     #[arg(long, value_name = "FILE")]
     markdown: Option<PathBuf>,
-    /// Do not show the progress line on stderr.
-    #[arg(long, short)]
-    quiet: bool,
+    #[command(flatten)]
+    progress: ProgressArgs,
 }
 
 /// Runs `spectrum`.
@@ -133,11 +144,11 @@ pub fn run(a: SpectrumArgs) -> Outcome {
         cfg.periods = spectrum::parse_periods(list)?;
     }
     cfg.options = a.encoding.options(a.domain.is_points())?;
-    cfg.jobs = a.jobs.unwrap_or_else(spectrum::default_jobs);
+    cfg.jobs = a.jobs.unwrap_or_else(orbitcnf::pool::default_jobs);
     cfg.time_limit = a.time_limit;
     cfg.max_clauses = a.encoding.max_clauses;
     cfg.store = (!a.no_store).then(|| a.store.clone());
-    cfg.progress = !a.quiet;
+    cfg.progress = a.progress.mode(false);
     cfg.recheck = a.recheck;
     let s = spectrum::run(&cfg)?;
     if let Some(path) = &a.markdown {
@@ -169,8 +180,8 @@ fn run_real(n: usize, a: SpectrumArgs) -> Outcome {
     let periods = match &a.periods {
         Some(list) => spectrum::parse_periods(list)?,
         None => {
-            let top = usize::try_from(orbitcnf::question::lemmens_scheutzow_bound(n))
-                .unwrap_or(usize::MAX);
+            let top =
+                usize::try_from(orbitcnf::theory::lemmens_scheutzow_bound(n)).unwrap_or(usize::MAX);
             (1..=top).collect()
         }
     };
@@ -182,20 +193,15 @@ fn run_real(n: usize, a: SpectrumArgs) -> Outcome {
         store: (!a.no_store).then(|| a.store.clone()),
         recheck: a.recheck,
     };
-    let show = !a.quiet && !a.json;
-    let mut shown = false;
+    let mut line = super::real::progress_line(a.progress.mode(a.json));
     let s = orbitcnf::real::sweep::run(&cfg, &mut |p, pr| {
-        if show {
-            shown = true;
-            eprint!(
-                "\r\x1b[Kreal space R^{n} p = {p}: {:.0} s, {} conflicts, {} lemmas",
-                pr.seconds, pr.stats.conflicts, pr.lemmas
-            );
-        }
-    })?;
-    if shown {
-        eprint!("\r\x1b[K");
-    }
+        line(&format!(
+            "real space R^{n} p = {p}: {:.0} s, {} conflicts, {} lemmas",
+            pr.seconds, pr.stats.conflicts, pr.lemmas
+        ));
+    });
+    line("");
+    let s = s?;
     print(&if a.json {
         s.to_json() + "\n"
     } else {

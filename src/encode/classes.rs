@@ -44,13 +44,14 @@
 //!
 //! Variables: none. Clauses: one per pair `(t, d)`, `1 ≤ t < L` with
 //! `W_t ≤` [`packing::MAX_WINDOWS`], `d | p`, `d < p`, for which the search
-//! proves the bound; [`count`] runs the same search.
+//! proves the bound ([`ruled_out`]; the encoding's context runs the search
+//! once, for [`size`] and [`add`] alike).
 //!
 //! Soundness: each clause is the negation of a profile that the inequality
 //! above rules out on every isometric cycle, so no solution is lost.
 
 use super::{Encoder, packing, profile};
-use crate::cnf::FamilyCount;
+use crate::cnf::Size;
 use crate::question::Question;
 
 /// The family's label.
@@ -73,7 +74,7 @@ pub fn ruled_out(q: &Question) -> Vec<(u64, usize)> {
             continue;
         }
         let sets = packing::window_sets(&q.grid, t);
-        for d in (1..p).filter(|d| p % d == 0) {
+        for d in (1..p).filter(|&d| p.is_multiple_of(d)) {
             let need = total / d as u64 + 1;
             if classes_meet_at_least(&sets, total, p / d, need) {
                 out.push((t, d));
@@ -83,9 +84,9 @@ pub fn ruled_out(q: &Question) -> Vec<(u64, usize)> {
     out
 }
 
-/// Adds one clause per profile ruled out by [`ruled_out`].
-pub fn add(e: &mut Encoder, q: &Question) {
-    for (t, d) in ruled_out(q) {
+/// Adds one clause per profile ruled out by [`ruled_out`], given as `ruled`.
+pub fn add(e: &mut Encoder, q: &Question, ruled: &[(u64, usize)]) {
+    for &(t, d) in ruled {
         let clause: Vec<_> = (1..=q.period / 2)
             .map(|k| {
                 let far = profile::ge(e, q, k, t as i64 + 1);
@@ -216,13 +217,9 @@ fn fewer_exist(
     Some(false)
 }
 
-/// Exact counts of this family for `q`.
-pub fn count(q: &Question) -> FamilyCount {
-    FamilyCount {
-        family: FAMILY.into(),
-        vars: 0,
-        clauses: ruled_out(q).len() as u64,
-    }
+/// Exact size of this family, given [`ruled_out`] as `ruled`: one clause each.
+pub fn size(ruled: &[(u64, usize)]) -> Size {
+    Size::clauses(ruled.len() as u64)
 }
 
 #[cfg(test)]
@@ -258,7 +255,7 @@ mod tests {
         assert_eq!(ruled_out(&q("-1..1", 4, 16)), vec![]);
         // p = 9 on {−1,0,1}^3: d = 1 and d = 3 (3 · 3 > 8).
         assert_eq!(ruled_out(&q("-1..1", 3, 9)), vec![(1, 1), (1, 3)]);
-        assert_eq!(count(&q("-1..1", 4, 18)).clauses, 5);
+        assert_eq!(size(&ruled_out(&q("-1..1", 4, 18))).clauses, 5);
         // p = 33 on {−1,0,1}^5: d = 3 needs eleven points of a 32-point
         // corner box meeting at most ten boxes; a plain walk over point sets
         // ran out of budget here.

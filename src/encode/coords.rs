@@ -15,7 +15,7 @@
 //! `x_{i,c} = a_c + #{v : X[i,c,v]}`.
 
 use super::{Encoder, Term};
-use crate::cnf::FamilyCount;
+use crate::cnf::Size;
 use crate::question::Question;
 use crate::varmap::Meaning;
 
@@ -49,13 +49,12 @@ pub fn ge(e: &Encoder, q: &Question, i: usize, c: usize, v: i64) -> Term {
     }
 }
 
-/// Exact counts of this family for `q`.
-pub fn count(q: &Question) -> FamilyCount {
+/// Exact size of this family for `q` (module doc).
+pub fn size(q: &Question) -> Size {
     let p = q.period as u64;
     let sides: Vec<u64> = (0..q.dim()).map(|c| q.grid.side(c)).collect();
-    FamilyCount {
-        family: FAMILY.into(),
-        vars: p * sides.iter().sum::<u64>(),
-        clauses: p * sides.iter().map(|&s| s.saturating_sub(1)).sum::<u64>(),
-    }
+    Size::new(
+        p * sides.iter().sum::<u64>(),
+        p * sides.iter().map(|&s| s.saturating_sub(1)).sum::<u64>(),
+    )
 }

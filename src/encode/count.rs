@@ -22,7 +22,7 @@
 //! (A. Haken, The intractability of resolution, Theoret. Comput. Sci. 39, 1985).
 
 use super::{Encoder, Term, points};
-use crate::cnf::FamilyCount;
+use crate::cnf::Size;
 use crate::question::Question;
 
 /// The family's label.
@@ -65,14 +65,11 @@ pub fn add(e: &mut Encoder, q: &Question) {
     e.clause(&[prev[p]]);
 }
 
-/// Exact counts of this family for `q`.
-pub fn count(q: &Question) -> FamilyCount {
+/// Exact size of this family for `q` (module doc).
+pub fn size(q: &Question) -> Size {
     let n = q.grid.num_points() as u64;
     let p = q.period as u64;
-    let w: u64 = (1..=n).map(|j| j.min(p)).sum();
-    FamilyCount {
-        family: FAMILY.into(),
-        vars: n + w,
-        clauses: n * (p + 1) + 2 * w - n + 1,
-    }
+    // W = Σ_{j=1..N} min(j, p) = p(p+1)/2 + (N − p)·p, as p ≤ N.
+    let w = p * (p + 1) / 2 + (n - p) * p;
+    Size::new(n + w, n * (p + 1) + 2 * w - n + 1)
 }

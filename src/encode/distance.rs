@@ -27,7 +27,7 @@
 //! (`g ≥ 1`) the points are pairwise distinct.
 
 use super::{Encoder, Term, coords, offset_class, pairs, profile};
-use crate::cnf::FamilyCount;
+use crate::cnf::Size;
 use crate::question::Question;
 use crate::varmap::Meaning;
 
@@ -144,27 +144,19 @@ pub(super) fn num_pairs(q: &Question) -> u64 {
     p * p.saturating_sub(1) / 2
 }
 
-/// Exact counts of `dist-upper` for `q`.
-pub fn count_upper(q: &Question) -> FamilyCount {
+/// Exact size of `dist-upper` for `q` (module doc).
+pub fn size_upper(q: &Question) -> Size {
     let per_pair: u64 = (0..q.dim())
         .map(|c| q.grid.side(c))
         .map(|s| s * s.saturating_sub(1))
         .sum();
-    FamilyCount {
-        family: FAMILY_UPPER.into(),
-        vars: 0,
-        clauses: num_pairs(q) * per_pair,
-    }
+    Size::clauses(num_pairs(q) * per_pair)
 }
 
-/// Exact counts of `dist-lower` for `q`.
-pub fn count_lower(q: &Question) -> FamilyCount {
+/// Exact size of `dist-lower` for `q` (module doc).
+pub fn size_lower(q: &Question) -> Size {
     let sides: Vec<u64> = (0..q.dim()).map(|c| q.grid.side(c)).collect();
     let vars = 2 * sides.iter().sum::<u64>();
     let clauses = q.grid.diameter() + sides.iter().map(|&s| s * (s + 3)).sum::<u64>();
-    FamilyCount {
-        family: FAMILY_LOWER.into(),
-        vars: num_pairs(q) * vars,
-        clauses: num_pairs(q) * clauses,
-    }
+    Size::new(num_pairs(q) * vars, num_pairs(q) * clauses)
 }

@@ -13,7 +13,7 @@
 //!
 //! On `{−1,0,1}^n` with `t = 1` the windows are the `2^n` corner boxes
 //! `Π_c {0, v_c}`, `m_1(z) = 2^{#zeros of z}`, and the bound is the subcube
-//! packing `Σ_i 2^{−#nonzeros(x_i)} ≤ 1` (MATH.md §4). It is implied by the
+//! packing `Σ_i 2^{−#nonzeros(x_i)} ≤ 1` (docs/math.md §4). It is implied by the
 //! other clauses, but a CDCL solver cannot find it: without it "17 points
 //! pairwise at distance 2 in `{−1,0,1}^4`" needs a pigeonhole refutation.
 //!
@@ -40,7 +40,7 @@
 //! ever force a counter upward by an amount that is really there.
 
 use super::{Encoder, Term, points, profile};
-use crate::cnf::FamilyCount;
+use crate::cnf::Size;
 use crate::grid::Grid;
 use crate::question::Question;
 
@@ -169,7 +169,7 @@ pub fn add(e: &mut Encoder, q: &Question) {
 /// Grouping `d` applies when every offset that `d` does not divide is far; its
 /// groups are the residue classes of the positions modulo `d`.
 pub fn groupings(p: usize) -> Vec<usize> {
-    (2..=p).rev().filter(|d| p % d == 0).collect()
+    (2..=p).rev().filter(|&d| p.is_multiple_of(d)).collect()
 }
 
 /// For every grid point, the sorted indices of the windows of side `t` containing it.
@@ -233,8 +233,8 @@ pub fn union_lower_bound(sets: &[Vec<u32>], windows: u64, s: usize) -> u64 {
     4
 }
 
-/// Exact counts of this family for `q`.
-pub fn count(q: &Question) -> FamilyCount {
+/// Exact size of this family for `q` (module doc).
+pub fn size(q: &Question) -> Size {
     let p = q.period as u64;
     let n = q.grid.num_points() as u64;
     let (mut vars, mut clauses) = (0u64, 0u64);
@@ -251,11 +251,7 @@ pub fn count(q: &Question) -> FamilyCount {
             clauses += 1 + if grouped { p * v } else { 0 } + v + 1 + (d - 1) * (b + b * v) + 1;
         }
     }
-    FamilyCount {
-        family: FAMILY.into(),
-        vars,
-        clauses,
-    }
+    Size::new(vars, clauses)
 }
 
 #[cfg(test)]

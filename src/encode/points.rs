@@ -17,7 +17,7 @@
 //! and counting families to use.
 
 use super::{Encoder, Term, coords};
-use crate::cnf::FamilyCount;
+use crate::cnf::Size;
 use crate::question::Question;
 use crate::varmap::Meaning;
 
@@ -68,16 +68,14 @@ pub fn at(e: &Encoder, i: usize, z: &[i64]) -> Term {
     Term::Lit(e.get(&Meaning::At { i, z: z.to_vec() }).pos())
 }
 
-/// Exact counts of this family for `q`.
-pub fn count(q: &Question) -> FamilyCount {
+/// Exact size of this family for `q` (module doc).
+pub fn size(q: &Question) -> Size {
     let g = &q.grid;
     let p = q.period as u64;
     let n = g.num_points() as u64;
     let live: Vec<u64> = (0..g.dim()).map(|c| g.side(c)).filter(|&s| s > 0).collect();
-    FamilyCount {
-        family: FAMILY.into(),
-        vars: p * (live.iter().map(|s| s + 1).sum::<u64>() + n),
-        clauses: p
-            * (live.iter().map(|s| 3 * s + 1).sum::<u64>() + n * (live.len() as u64 + 1) + 1),
-    }
+    Size::new(
+        p * (live.iter().map(|s| s + 1).sum::<u64>() + n),
+        p * (live.iter().map(|s| 3 * s + 1).sum::<u64>() + n * (live.len() as u64 + 1) + 1),
+    )
 }

@@ -21,7 +21,7 @@
 //! box can take (for `T`: `t(y, z) ≤ max_c s_c` on the box, and `T ≥ 1`).
 
 use super::{Encoder, Term};
-use crate::cnf::FamilyCount;
+use crate::cnf::Size;
 use crate::question::Question;
 use crate::varmap::Meaning;
 
@@ -55,12 +55,8 @@ pub fn ge(e: &Encoder, q: &Question, k: usize, t: i64) -> Term {
     }
 }
 
-/// Exact counts of this family for `q`.
-pub fn count(q: &Question) -> FamilyCount {
+/// Exact size of this family for `q` (module doc).
+pub fn size(q: &Question) -> Size {
     let kl = super::profile_len(q) as u64 * q.grid.diameter();
-    FamilyCount {
-        family: FAMILY.into(),
-        vars: kl,
-        clauses: kl,
-    }
+    Size::new(kl, kl)
 }

@@ -28,7 +28,7 @@
 //! clause loops are shared with [`super::distance`] (`one_sided = true`).
 
 use super::{Encoder, distance};
-use crate::cnf::FamilyCount;
+use crate::cnf::Size;
 use crate::question::Question;
 
 /// Label of the upper-bound family.
@@ -46,21 +46,13 @@ pub fn add_lower(e: &mut Encoder, q: &Question) {
     distance::lower(e, q, true);
 }
 
-/// Exact counts of `tdist-upper` for `q`: those of `dist-upper`.
-pub fn count_upper(q: &Question) -> FamilyCount {
-    FamilyCount {
-        family: FAMILY_UPPER.into(),
-        ..distance::count_upper(q)
-    }
+/// Exact size of `tdist-upper` for `q`: that of `dist-upper`.
+pub fn size_upper(q: &Question) -> Size {
+    distance::size_upper(q)
 }
 
-/// Exact counts of `tdist-lower` for `q`: those of `dist-lower` plus one
+/// Exact size of `tdist-lower` for `q`: that of `dist-lower` plus one
 /// covering clause per order, pair and threshold (`L` more per pair).
-pub fn count_lower(q: &Question) -> FamilyCount {
-    let base = distance::count_lower(q);
-    FamilyCount {
-        family: FAMILY_LOWER.into(),
-        vars: base.vars,
-        clauses: base.clauses + distance::num_pairs(q) * q.grid.diameter(),
-    }
+pub fn size_lower(q: &Question) -> Size {
+    distance::size_lower(q) + Size::clauses(distance::num_pairs(q) * q.grid.diameter())
 }

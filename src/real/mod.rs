@@ -361,7 +361,8 @@ fn handoff(
         });
         let limits = Limits {
             time: deadline.map(|d| d.saturating_duration_since(Instant::now())),
-            progress: false,
+            progress: crate::progress::ProgressMode::Off,
+            conflicts: None,
         };
         let t = Instant::now();
         let r = ext.solve(&cnf, &limits);
@@ -379,7 +380,14 @@ fn handoff(
                     None,
                 ));
             }
-            Outcome::Unknown(why) => return Ok((sat::SatOutcome::Unknown(why), None)),
+            Outcome::Unknown(why) => {
+                let why = format!(
+                    "{why} (in call {} of the external solver, after {} lemmas)",
+                    report.handoff_rounds,
+                    solver.lemmas().len()
+                );
+                return Ok((sat::SatOutcome::Unknown(why), None));
+            }
             Outcome::Sat(model) => match solver.refine(&model, REFINE_LEMMAS) {
                 Ok(true) => return Ok((sat::SatOutcome::Sat, None)),
                 Ok(false) => {}

@@ -28,7 +28,7 @@ use super::{Progress, RealAnswer, RealOptions, bundle, decide, skeleton};
 use crate::artifact::{sha256_hex, write_atomically};
 use crate::dimacs::VERSION;
 use crate::error::{Error, Result};
-use crate::question::lemmens_scheutzow_bound;
+use crate::theory::lemmens_scheutzow_bound;
 use crate::verify::check_orbit;
 
 /// What to sweep.

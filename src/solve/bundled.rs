@@ -4,13 +4,13 @@
 //! does write a proof while solving, through a buffered writer that we supply,
 //! and it aborts `solve` with an error as soon as that writer fails. So the
 //! solver is handed a [`Meter`]: a binary-DRAT sink that counts the clauses
-//! added (one learned clause per conflict), draws the progress line, and
+//! added (one learned clause per conflict), reports progress, and
 //! fails once the deadline has passed. An aborted solve is reported as
 //! [`Outcome::Unknown`]: no answer is ever derived from it, so the limit is
 //! sound. Its granularity is one buffer flush of 8 KiB of proof, a few
 //! milliseconds on hard formulas.
 
-use std::io::{self, IsTerminal, Write};
+use std::io::{self, Write};
 use std::sync::Arc;
 use std::sync::atomic::{AtomicBool, AtomicU64, Ordering};
 use std::time::Instant;
@@ -21,6 +21,7 @@ use varisat::{ExtendFormula, ProofFormat, Solver};
 use super::{Backend, Limits, Outcome, SolveResult, SolveStats};
 use crate::cnf::Cnf;
 use crate::error::{Error, Result};
+use crate::progress::{Progress, duration_words};
 
 /// The bundled solver.
 #[derive(Clone, Debug, Default)]
@@ -65,7 +66,6 @@ impl Backend for Bundled {
             }
         };
         drop(solver);
-        clear_progress(limits);
         Ok(SolveResult {
             outcome,
             stats: SolveStats {
@@ -107,39 +107,32 @@ pub(crate) struct Meter {
     start: Instant,
     learned: Arc<AtomicU64>,
     timed_out: Arc<AtomicBool>,
-    progress: bool,
-    last_report: Instant,
+    progress: Progress,
     state: DratState,
     inner: Option<Box<dyn Write>>,
 }
 
 impl Meter {
-    /// A meter for a solve started at `start` under `limits`.
+    /// A meter for a solve started at `start` under `limits`; it counts
+    /// into `limits.conflicts` when the caller gave a counter. Dropping it
+    /// erases its progress line.
     pub(crate) fn new(
         start: Instant,
         limits: &Limits,
         inner: Option<Box<dyn Write>>,
     ) -> (Meter, Arc<AtomicU64>, Arc<AtomicBool>) {
-        let learned = Arc::new(AtomicU64::new(0));
+        let learned = limits.conflicts.clone().unwrap_or_default();
         let timed_out = Arc::new(AtomicBool::new(false));
         let meter = Meter {
             deadline: limits.time.map(|t| start + t),
             start,
             learned: learned.clone(),
             timed_out: timed_out.clone(),
-            progress: limits.progress && io::stderr().is_terminal(),
-            last_report: start,
+            progress: Progress::new(limits.progress),
             state: DratState::RecordStart,
             inner,
         };
         (meter, learned, timed_out)
-    }
-}
-
-/// Clears the progress line, if one was drawn.
-pub(crate) fn clear_progress(limits: &Limits) {
-    if limits.progress && io::stderr().is_terminal() {
-        eprint!("\r\x1b[K");
     }
 }
 
@@ -161,22 +154,22 @@ impl Write for Meter {
         }
         let total = self.learned.fetch_add(added, Ordering::Relaxed) + added;
         let now = Instant::now();
-        if let Some(d) = self.deadline {
-            if now >= d {
-                self.timed_out.store(true, Ordering::Relaxed);
-                return Err(io::Error::other("orbitcnf time limit reached"));
-            }
+        if let Some(d) = self.deadline
+            && now >= d
+        {
+            self.timed_out.store(true, Ordering::Relaxed);
+            return Err(io::Error::other("orbitcnf time limit reached"));
         }
         if let Some(w) = self.inner.as_mut() {
             w.write_all(buf)?;
         }
-        if self.progress && now.duration_since(self.last_report).as_millis() >= 250 {
-            self.last_report = now;
-            eprint!(
-                "\r\x1b[Ksolving with {NAME}: {:.1} s, {total} conflicts",
-                now.duration_since(self.start).as_secs_f64()
-            );
-        }
+        let start = self.start;
+        self.progress.status(|| {
+            format!(
+                "solving with {NAME}: {}, {total} conflicts",
+                duration_words(now.duration_since(start).as_secs_f64())
+            )
+        });
         Ok(buf.len())
     }
 

@@ -28,10 +28,12 @@
 //!   not in competition form, a status that contradicts the exit code, a model
 //!   that falsifies a clause, a program that cannot be started: each is an
 //!   [`Error::ExternalSolver`] with a typed [`ExternalFailure`], never a verdict.
-//! * An UNSAT answer without a proof is returned with no [`ProofInfo`], so the
+//! * An UNSAT answer without a proof is returned with no
+//!   [`super::refute::ProofInfo`], so the
 //!   report marks it [`crate::report::Certificate::SolverClaim`].
 //! * With a [`ProofRequest`] the solver is asked for a proof file. An LRAT
-//!   proof is checked by orbitcnf's own checker ([`check_lrat_with`]). A DRAT
+//!   proof is checked by orbitcnf's own checker through
+//!   [`super::refute::accept_proof`], in pieces from a file. A DRAT
 //!   proof (CaDiCaL's default, binary) is converted to LRAT by `rate`
 //!   (`rate -L OUT CNF PROOF`) when `rate` is on `PATH`, and the LRAT is then
 //!   checked by orbitcnf's checker, so neither the solver nor the converter
@@ -46,18 +48,20 @@
 //! answer is [`Outcome::Unknown`]. Only the solver process itself is killed:
 //! a wrapper script should `exec` the solver so that no grandchild survives.
 
-use std::io::{BufWriter, IsTerminal, Read, Write};
+use std::io::{BufWriter, Read, Write};
 use std::path::{Path, PathBuf};
 use std::process::{Child, Command, ExitStatus, Stdio};
 use std::sync::mpsc;
 use std::time::{Duration, Instant};
 
-use super::certified::ProofInfo;
+use super::refute::{accept_proof, temp_proof_file};
 use super::{Backend, Limits, Outcome, SolveResult, SolveStats, check_model};
+use crate::artifact::persist;
 use crate::cnf::Cnf;
 use crate::dimacs::{self, Status};
 use crate::error::{Error, Result};
-use crate::proof::{LratOptions, check_lrat_with};
+use crate::progress::{Progress, duration_words};
+use crate::proof::LratOptions;
 
 /// How much of a solver's standard output is kept; more is an error.
 pub const MAX_OUTPUT_BYTES: usize = 1 << 30;
@@ -305,7 +309,7 @@ fn run_until(
     cmd: &mut Command,
     program: &str,
     deadline: Option<Instant>,
-    progress: Option<(&str, Instant)>,
+    mut progress: Option<(&str, Instant, &mut Progress)>,
 ) -> std::result::Result<Ended, ExternalFailure> {
     cmd.stdin(Stdio::null())
         .stdout(Stdio::piped())
@@ -322,7 +326,6 @@ fn run_until(
     let out_rx = reader(child.stdout.take(), MAX_OUTPUT_BYTES);
     let err_rx = reader(child.stderr.take(), 1 << 20);
     let mut pause = Duration::from_millis(1);
-    let mut last_report = Instant::now();
     let status = loop {
         match child.try_wait() {
             Ok(Some(status)) => break status,
@@ -341,14 +344,13 @@ fn run_until(
             let _ = child.wait();
             return Ok(Ended::TimedOut);
         }
-        if let Some((name, start)) = progress {
-            if last_report.elapsed() >= Duration::from_millis(250) {
-                last_report = Instant::now();
-                eprint!(
-                    "\r\x1b[Ksolving with {name}: {:.1} s",
-                    start.elapsed().as_secs_f64()
-                );
-            }
+        if let Some((name, start, sink)) = progress.as_mut() {
+            sink.status(|| {
+                format!(
+                    "solving with {name}: {}",
+                    duration_words(start.elapsed().as_secs_f64())
+                )
+            });
         }
         std::thread::sleep(pause);
         pause = (pause * 2).min(Duration::from_millis(20));
@@ -492,12 +494,15 @@ impl Backend for External {
             let p = proof_path.display().to_string();
             cmd.args(req.args.iter().map(|a| a.replace("{}", &p)));
         }
-        let show = limits.progress && std::io::stderr().is_terminal();
         let name = self.name();
-        let ended = run_until(&mut cmd, program, deadline, show.then_some((&*name, start)));
-        if show {
-            eprint!("\r\x1b[K");
-        }
+        let mut progress = Progress::new(limits.progress);
+        let ended = run_until(
+            &mut cmd,
+            program,
+            deadline,
+            Some((&*name, start, &mut progress)),
+        );
+        progress.clear();
         let stats = |conflicts| SolveStats {
             solver: name.clone(),
             seconds: start.elapsed().as_secs_f64(),
@@ -610,26 +615,30 @@ impl External {
         deadline: Option<Instant>,
         mut stats: SolveStats,
     ) -> Result<SolveResult> {
-        let raw_bytes = std::fs::read(raw).map_err(|e| {
-            self.failure(ExternalFailure::Proof(format!(
-                "the solver answered UNSAT but left no proof file ({e})"
-            )))
-        })?;
-        let keep_raw = |bytes: &[u8]| -> Result<Option<(PathBuf, u64)>> {
+        let raw_bytes = std::fs::metadata(raw)
+            .map_err(|e| {
+                self.failure(ExternalFailure::Proof(format!(
+                    "the solver answered UNSAT but left no proof file ({e})"
+                )))
+            })?
+            .len();
+        let keep_raw = || -> Result<Option<PathBuf>> {
             match &req.keep_raw {
                 Some(p) => {
-                    crate::artifact::write_atomically(p, bytes)?;
-                    Ok(Some((p.clone(), bytes.len() as u64)))
+                    let tmp = temp_proof_file(Some(p))?;
+                    copy_into(raw, &tmp)?;
+                    persist(tmp, p)?;
+                    Ok(Some(p.clone()))
                 }
                 None => Ok(None),
             }
         };
-        let t = Instant::now();
-        let lrat = match req.format {
-            ProofFormat::Lrat => raw_bytes.clone(),
+        let lrat = temp_proof_file(req.keep_lrat.as_deref())?;
+        match req.format {
+            ProofFormat::Lrat => copy_into(raw, &lrat)?,
             ProofFormat::Drat => {
                 if !on_path(DRAT_CONVERTER) {
-                    keep_raw(&raw_bytes)?;
+                    keep_raw()?;
                     stats.solver = format!(
                         "{} (its DRAT proof was not checked: `{DRAT_CONVERTER}` is not on PATH)",
                         stats.solver
@@ -640,9 +649,8 @@ impl External {
                         proof: None,
                     });
                 }
-                let out = raw.with_extension("converted.lrat");
                 let mut cmd = Command::new(DRAT_CONVERTER);
-                cmd.arg("-L").arg(&out).arg(cnf_path).arg(raw);
+                cmd.arg("-L").arg(lrat.path()).arg(cnf_path).arg(raw);
                 let converter = |f: ExternalFailure| Error::ExternalSolver {
                     command: format!("{DRAT_CONVERTER} (DRAT to LRAT)"),
                     failure: f,
@@ -670,37 +678,36 @@ impl External {
                         }
                     }
                 }
-                std::fs::read(&out).map_err(|e| Error::io(&out, e))?
             }
-        };
-        let summary = check_lrat_with(cnf, &lrat, &LratOptions::default()).map_err(|e| {
-            self.failure(ExternalFailure::Proof(format!(
-                "the LRAT proof was rejected by orbitcnf's checker: {e}"
-            )))
-        })?;
-        let check_seconds = t.elapsed().as_secs_f64();
-        if let Some(p) = &req.keep_lrat {
-            crate::artifact::write_atomically(p, &lrat)?;
         }
-        let kept = keep_raw(&raw_bytes)?;
+        let checked = accept_proof(cnf, lrat, req.keep_lrat.as_deref(), &LratOptions::default())
+            .map_err(|e| match e {
+                Error::Proof(e) => self.failure(ExternalFailure::Proof(format!(
+                    "the LRAT proof was rejected by orbitcnf's checker: {e}"
+                ))),
+                e => e,
+            })?;
+        let mut info = checked.info;
+        if req.format == ProofFormat::Drat {
+            info.drat_file = keep_raw()?;
+            info.drat_bytes = info.drat_file.as_ref().map(|_| raw_bytes);
+        } else {
+            keep_raw()?;
+        }
         Ok(SolveResult {
             outcome: Outcome::Unsat,
             stats,
-            proof: Some(ProofInfo {
-                lrat: summary,
-                lrat_bytes: lrat.len() as u64,
-                lrat_file: req.keep_lrat.clone(),
-                drat_file: kept
-                    .as_ref()
-                    .filter(|_| req.format == ProofFormat::Drat)
-                    .map(|k| k.0.clone()),
-                drat_bytes: kept
-                    .filter(|_| req.format == ProofFormat::Drat)
-                    .map(|k| k.1),
-                check_seconds,
-            }),
+            proof: Some(info),
         })
     }
+}
+
+/// Copies the file at `from` into the temporary file `to`, in pieces.
+fn copy_into(from: &Path, to: &tempfile::NamedTempFile) -> Result<()> {
+    let mut src = std::fs::File::open(from).map_err(|e| Error::io(from, e))?;
+    let mut dst = to.as_file();
+    std::io::copy(&mut src, &mut dst).map_err(|e| Error::io(to.path(), e))?;
+    Ok(())
 }
 
 #[cfg(test)]

@@ -8,21 +8,29 @@
 pub mod bundled;
 pub mod certified;
 pub mod external;
+pub mod refute;
 
+use std::sync::Arc;
+use std::sync::atomic::AtomicU64;
 use std::time::Duration;
 
 use serde::Serialize;
 
 use crate::cnf::{Cnf, clause_text};
 use crate::error::{Error, Result};
+use crate::progress::ProgressMode;
 
 /// Bounds on the effort of one solve.
 #[derive(Clone, Debug, Default)]
 pub struct Limits {
     /// Wall-clock limit; `None` for no limit.
     pub time: Option<Duration>,
-    /// Show a progress line on stderr (only when stderr is a terminal).
-    pub progress: bool,
+    /// How the solve shows its progress on stderr ([`crate::progress`]).
+    pub progress: ProgressMode,
+    /// A counter the solver adds its conflicts to while it runs, so that a
+    /// caller can report on a solve it does not draw itself (the bundled
+    /// solvers count one learned clause per conflict; others leave it).
+    pub conflicts: Option<Arc<AtomicU64>>,
 }
 
 /// What a back-end answered.
@@ -56,7 +64,7 @@ pub struct SolveResult {
     /// How it went.
     pub stats: SolveStats,
     /// The checked proof behind an UNSAT answer, for back-ends that certify.
-    pub proof: Option<certified::ProofInfo>,
+    pub proof: Option<refute::ProofInfo>,
 }
 
 /// A SAT solver that orbitcnf can drive.

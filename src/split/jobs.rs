@@ -2,13 +2,15 @@
 //!
 //! The question is encoded once, split into cubes ([`super::cubes`])
 //! and the coverage CNF refuted ([`super::refute_coverage`]); then `K`
-//! threads take cubes in index order and solve `F ∧ cube` with the bundled
-//! solver. With certification (the default) each thread writes the cube's
-//! LRAT proof in memory, checks it with orbitcnf's checker against
-//! `F ∧ cube`, and lifts it to a derivation of the cube's negation from `F`
-//! ([`super::lift`]). When every cube is refuted, the lifted proofs and the
-//! coverage proof are assembled into one LRAT proof of `F`, which orbitcnf's
-//! checker must accept before the answer is "infeasible"; the report is then
+//! threads of a [`crate::pool`] take cubes in index order and solve `F ∧ cube` with the bundled
+//! solver. With certification (the default) each thread refutes its cube
+//! through [`crate::solve::refute::solve_bundled`] (a binary LRAT proof in a
+//! temporary file, checked by orbitcnf's checker against `F ∧ cube`), and
+//! lifts it to a derivation of the cube's negation from `F`
+//! ([`crate::proof::lift`]), streamed into another temporary file. When every
+//! cube is refuted, the lifted proofs and the coverage proof are assembled
+//! into one LRAT proof of `F` (written to a temporary file, in pieces), which
+//! orbitcnf's checker must accept before the answer is "infeasible"; the report is then
 //! the same as a monolithic `decide` (a checked LRAT proof of the very CNF
 //! `encode` writes). A satisfiable cube's model is checked against every
 //! clause and decoded into an orbit that is verified independently.
@@ -19,24 +21,28 @@
 //! certification (`--no-certify`) there is no proof sink: running cubes then
 //! finish, and no new cube is started.
 
-use std::io::{self, IsTerminal, Write};
+use std::io;
 use std::path::PathBuf;
-use std::sync::Mutex;
-use std::sync::atomic::{AtomicBool, AtomicUsize, Ordering};
+use std::sync::Arc;
+use std::sync::atomic::{AtomicBool, AtomicU64, Ordering};
 use std::time::{Duration, Instant};
 
-use super::{Cube, coverage_cnf, coverage_sources, cubes as make_cubes, lift, refute_coverage};
-use crate::artifact::write_atomically;
+use tempfile::NamedTempFile;
+
+use super::{Cube, coverage_cnf, coverage_sources, cubes as make_cubes, refute_coverage};
 use crate::cnf::Cnf;
 use crate::decide::witness;
 use crate::encode::{EncodeOptions, encode};
 use crate::error::{Error, Result};
 use crate::evidence::Evidence;
-use crate::proof::{LratOptions, ProofSinks, check_lrat_with, solve_with_proof_sinks};
+use crate::pool::{self, Event};
+use crate::progress::{Progress, duration_words};
+use crate::proof::lift::{LiftedCube, assemble, lift_cube};
+use crate::proof::{LratFormat, LratOptions};
 use crate::question::Question;
 use crate::report::{Report, SizeStats, Verdict};
-use crate::solve::bundled::{Bundled, Meter};
-use crate::solve::certified::ProofInfo;
+use crate::solve::bundled::Bundled;
+use crate::solve::refute::{ProofPlan, accept_proof, solve_bundled, temp_proof_file};
 use crate::solve::{Backend, Limits, Outcome, SolveStats};
 
 /// How [`decide_parallel`] runs.
@@ -51,6 +57,9 @@ pub struct JobsOptions {
     pub certify: bool,
     /// Where to write the assembled LRAT proof of an infeasible answer.
     pub lrat: Option<PathBuf>,
+    /// The encoding of the assembled proof written to `lrat`; a proof that
+    /// is only checked, not kept, is binary.
+    pub format: LratFormat,
 }
 
 impl JobsOptions {
@@ -63,26 +72,21 @@ impl JobsOptions {
 
 enum CubeRun {
     Sat(Vec<bool>),
-    Unsat(Option<lift::LiftedCube>),
+    Unsat(Option<(LiftedCube, NamedTempFile)>),
     Unknown(String),
     Failed(Error),
 }
 
-/// A proof sink that fails once `stop` is set, which aborts varisat's solve.
-struct Cancel<'a> {
-    inner: Meter,
-    stop: &'a AtomicBool,
-}
-
-impl Write for Cancel<'_> {
-    fn write(&mut self, buf: &[u8]) -> io::Result<usize> {
-        if self.stop.load(Ordering::Relaxed) {
-            return Err(io::Error::other("another cube is satisfiable"));
+impl CubeRun {
+    /// The result in words, for progress lines.
+    fn words(&self) -> String {
+        match self {
+            CubeRun::Sat(_) => "satisfiable".into(),
+            CubeRun::Unsat(Some(_)) => "refuted, proof checked and lifted".into(),
+            CubeRun::Unsat(None) => "refuted (no proof)".into(),
+            CubeRun::Unknown(why) => format!("unknown: {why}"),
+            CubeRun::Failed(e) => format!("failed: {e}"),
         }
-        self.inner.write(buf)
-    }
-    fn flush(&mut self) -> io::Result<()> {
-        self.inner.flush()
     }
 }
 
@@ -112,57 +116,47 @@ pub fn decide_parallel(
     let deadline = limits.time.map(|t| start + t);
     let cubes = make_cubes(&enc, opts.cubes)?;
     let coverage = coverage_cnf(&enc, &cubes);
-    let (coverage_proof, _) = refute_coverage(&enc, &coverage)?;
+    let coverage_proof = refute_coverage(&enc, &coverage)?;
     let n = cubes.len();
-    let next = AtomicUsize::new(0);
-    let done = AtomicUsize::new(0);
     let stop = AtomicBool::new(false);
-    let conflicts = AtomicUsize::new(0);
-    let runs: Mutex<Vec<Option<CubeRun>>> = Mutex::new((0..n).map(|_| None).collect());
+    let conflicts = Arc::new(AtomicU64::new(0));
+    let mut runs: Vec<Option<CubeRun>> = (0..n).map(|_| None).collect();
     let threads = opts.jobs.min(n);
-    let show = limits.progress && io::stderr().is_terminal();
-    std::thread::scope(|s| {
-        let handles: Vec<_> = (0..threads)
-            .map(|_| {
-                s.spawn(|| {
-                    loop {
-                        if stop.load(Ordering::Relaxed) {
-                            break;
-                        }
-                        let i = next.fetch_add(1, Ordering::Relaxed);
-                        if i >= n {
-                            break;
-                        }
-                        let run = solve_cube(
-                            &enc.cnf,
-                            &cubes[i],
-                            deadline,
-                            opts.certify,
-                            &stop,
-                            &conflicts,
-                        );
-                        if matches!(run, CubeRun::Sat(_)) {
-                            stop.store(true, Ordering::Relaxed);
-                        }
-                        runs.lock().expect("no worker panics")[i] = Some(run);
-                        done.fetch_add(1, Ordering::Relaxed);
-                    }
-                })
-            })
-            .collect();
-        while show && !handles.iter().all(|h| h.is_finished()) {
-            eprint!(
-                "\r\x1b[Ksolving {n} cubes on {threads} threads: {} done, {:.1} s",
-                done.load(Ordering::Relaxed),
-                start.elapsed().as_secs_f64()
-            );
-            std::thread::sleep(Duration::from_millis(250));
+    let mut progress = Progress::new(limits.progress);
+    let state_words = |s: &pool::State| {
+        format!(
+            "{}/{n} cubes done, {} running on {threads} threads, {}, {} conflicts",
+            s.finished,
+            s.running.len(),
+            duration_words(start.elapsed().as_secs_f64()),
+            conflicts.load(Ordering::Relaxed)
+        )
+    };
+    let work = |i: usize| {
+        let run = solve_cube(&enc.cnf, &cubes[i], deadline, opts, &stop, &conflicts);
+        if matches!(run, CubeRun::Sat(_)) {
+            stop.store(true, Ordering::Relaxed);
+        }
+        run
+    };
+    pool::run(n, threads, &stop, work, |event, state| match event {
+        Event::Finished(i, run) => {
+            progress.event(|| {
+                format!(
+                    "decide: cube {i} ({}) {}; {}",
+                    cubes[i].describe(),
+                    run.words(),
+                    state_words(state)
+                )
+            });
+            runs[i] = Some(run);
+            progress.status(|| format!("decide: {}", state_words(state)));
+        }
+        Event::Started(_) | Event::Tick => {
+            progress.status(|| format!("decide: {}", state_words(state)));
         }
     });
-    if show {
-        eprint!("\r\x1b[K");
-    }
-    let runs = runs.into_inner().expect("no worker panics");
+    progress.clear();
     let size = SizeStats::of(&enc.cnf, enc.families.clone(), encode_seconds);
     let solver = format!(
         "{NAME}{}, {n} cubes on {threads} threads",
@@ -171,7 +165,7 @@ pub fn decide_parallel(
     let stats = |solver: String| SolveStats {
         solver,
         seconds: start.elapsed().as_secs_f64(),
-        conflicts: Some(conflicts.load(Ordering::Relaxed) as u64),
+        conflicts: Some(conflicts.load(Ordering::Relaxed)),
     };
     let report = |verdict, w, cert, reason, solver: String| {
         Report::new(
@@ -237,29 +231,25 @@ pub fn decide_parallel(
         };
         return Ok(report(Verdict::Infeasible, None, cert, None, solver));
     }
-    let proof = lift::assemble(&enc.cnf, &coverage_sources(&enc), &lifted, &coverage_proof)?;
-    drop(lifted);
-    let t = Instant::now();
-    let summary = check_lrat_with(
-        &enc.cnf,
-        &proof,
-        &LratOptions {
-            ids_follow_cnf: true,
-            ..LratOptions::default()
-        },
-    )?;
-    let check_seconds = t.elapsed().as_secs_f64();
-    if let Some(path) = &opts.lrat {
-        write_atomically(path, &proof)?;
-    }
-    let info = ProofInfo {
-        lrat: summary,
-        lrat_bytes: proof.len() as u64,
-        lrat_file: opts.lrat.clone(),
-        drat_file: None,
-        drat_bytes: None,
-        check_seconds,
+    let pieces = lifted
+        .iter()
+        .map(|(lc, tmp)| Ok((*lc, tmp.reopen().map_err(|e| Error::io(tmp.path(), e))?)))
+        .collect::<Result<Vec<_>>>()?;
+    let tmp = temp_proof_file(opts.lrat.as_deref())?;
+    let out = io::BufWriter::new(tmp.reopen().map_err(|e| Error::io(tmp.path(), e))?);
+    let sources = coverage_sources(&enc);
+    let cov = coverage_proof.open()?;
+    let format = match opts.lrat {
+        Some(_) => opts.format,
+        None => LratFormat::Binary,
     };
+    assemble(&enc.cnf, &sources, pieces, cov, out, format)?;
+    drop(lifted);
+    let options = LratOptions {
+        ids_follow_cnf: true,
+        ..LratOptions::default()
+    };
+    let info = accept_proof(&enc.cnf, tmp, opts.lrat.as_deref(), &options)?.info;
     Ok(report(
         Verdict::Infeasible,
         None,
@@ -269,14 +259,15 @@ pub fn decide_parallel(
     ))
 }
 
-/// Solves `F ∧ cube` within the deadline.
+/// Solves `F ∧ cube` within the deadline; with certification, through the
+/// one refutation path, then lifts the checked proof.
 fn solve_cube(
     f: &Cnf,
     cube: &Cube,
     deadline: Option<Instant>,
-    certify: bool,
+    opts: &JobsOptions,
     stop: &AtomicBool,
-    conflicts: &AtomicUsize,
+    conflicts: &Arc<AtomicU64>,
 ) -> CubeRun {
     let now = Instant::now();
     let time = deadline.map(|d| d.saturating_duration_since(now));
@@ -286,52 +277,46 @@ fn solve_cube(
     let cnf = super::run::cube_cnf(f, cube);
     let limits = Limits {
         time,
-        progress: false,
+        conflicts: Some(conflicts.clone()),
+        ..Limits::default()
     };
-    if !certify {
+    if !opts.certify {
         return match Bundled.solve(&cnf, &limits) {
-            Ok(r) => {
-                conflicts.fetch_add(r.stats.conflicts.unwrap_or(0) as usize, Ordering::Relaxed);
-                match r.outcome {
-                    Outcome::Sat(m) => CubeRun::Sat(m),
-                    Outcome::Unsat => CubeRun::Unsat(None),
-                    Outcome::Unknown(w) => CubeRun::Unknown(w),
-                }
-            }
+            Ok(r) => match r.outcome {
+                Outcome::Sat(m) => CubeRun::Sat(m),
+                Outcome::Unsat => CubeRun::Unsat(None),
+                Outcome::Unknown(w) => CubeRun::Unknown(w),
+            },
             Err(e) => CubeRun::Failed(e),
         };
     }
-    let (meter, learned, _) = Meter::new(now, &limits, None);
-    let mut sink = Cancel { inner: meter, stop };
-    let mut lrat = Vec::new();
-    let sinks = ProofSinks {
-        lrat: Some(&mut lrat),
-        lrat_binary: true,
-        drat: Some(&mut sink),
-        drat_binary: true,
+    let plan = ProofPlan {
+        format: LratFormat::Binary,
+        ..ProofPlan::default()
     };
-    let out = solve_with_proof_sinks(&cnf, sinks, time);
-    drop(sink);
-    conflicts.fetch_add(learned.load(Ordering::Relaxed) as usize, Ordering::Relaxed);
-    let out = match out {
-        Ok(o) => o,
-        Err(_) if stop.load(Ordering::Relaxed) => {
-            return CubeRun::Unknown("stopped: another cube is satisfiable".into());
-        }
+    let r = match solve_bundled(&cnf, &limits, &plan, Some(stop)) {
+        Ok(r) => r,
         Err(e) => return CubeRun::Failed(e),
     };
-    match out.outcome {
-        Outcome::Sat(m) => CubeRun::Sat(m),
-        Outcome::Unknown(w) => CubeRun::Unknown(w),
-        Outcome::Unsat => {
-            let options = LratOptions {
-                ids_follow_cnf: true,
-                ..LratOptions::default()
+    match (r.outcome, r.proof) {
+        (Outcome::Sat(m), _) => CubeRun::Sat(m),
+        (Outcome::Unknown(_), _) if stop.load(Ordering::Relaxed) => {
+            CubeRun::Unknown("stopped: another cube is satisfiable".into())
+        }
+        (Outcome::Unknown(w), _) => CubeRun::Unknown(w),
+        (Outcome::Unsat, None) => CubeRun::Failed(Error::Solver {
+            solver: NAME.into(),
+            reason: "an UNSAT answer without its checked proof".into(),
+        }),
+        (Outcome::Unsat, Some(proof)) => {
+            let lifted = || -> Result<(LiftedCube, NamedTempFile)> {
+                let tmp = temp_proof_file(opts.lrat.as_deref())?;
+                let out = io::BufWriter::new(tmp.reopen().map_err(|e| Error::io(tmp.path(), e))?);
+                let src = io::BufReader::new(proof.open()?);
+                let lc = lift_cube(f, &cube.lits(), src, out, LratFormat::Binary)?;
+                Ok((lc, tmp))
             };
-            if let Err(e) = check_lrat_with(&cnf, &lrat, &options) {
-                return CubeRun::Failed(Error::Proof(e));
-            }
-            match lift::lift_cube(f, &cube.lits(), &lrat) {
+            match lifted() {
                 Ok(l) => CubeRun::Unsat(Some(l)),
                 Err(e) => CubeRun::Failed(e),
             }

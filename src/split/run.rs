@@ -16,22 +16,25 @@
 //! feasible when some cube is, infeasible when every cube is refuted, and
 //! unknown otherwise, with the missing and failed cubes listed by index.
 
+use std::io::{BufReader, BufWriter};
 use std::path::{Path, PathBuf};
 use std::time::Instant;
 
 use serde::{Deserialize, Serialize};
 
-use super::{Cube, MANIFEST, RESULTS_DIR, SplitManifest, coverage_sources, lift, verify_split};
-use crate::artifact::{sha256_hex, write_atomically};
+use super::{Cube, MANIFEST, RESULTS_DIR, SplitManifest, coverage_sources, verify_split};
+use crate::artifact::write_atomically;
 use crate::cnf::Cnf;
 use crate::decide;
 use crate::dimacs::{self, VERSION};
 use crate::error::{Error, Result};
 use crate::evidence;
 use crate::grid::Point;
-use crate::proof::{LratOptions, LratSummary, check_lrat_with};
+use crate::proof::lift::{assemble, lift_cube};
+use crate::proof::{LratFormat, LratOptions, LratSummary};
 use crate::question::{Question, QuestionRecord};
 use crate::report::Verdict;
+use crate::solve::refute::{accept_proof, recheck_file, temp_proof_file};
 use crate::solve::{Backend, Limits, Outcome};
 use crate::verify::{OrbitCheck, SelfMapCheck};
 
@@ -208,12 +211,12 @@ pub fn run_cube(
             m.cubes.len().saturating_sub(1)
         ))
     })?;
-    if !force {
-        if let Ok(Some(r)) = read_result(dir, index) {
-            if r.status.is_final() && r.cube_sha256 == entry.file.sha256 {
-                return Ok(RunOutcome::AlreadyDone(r));
-            }
-        }
+    if !force
+        && let Ok(Some(r)) = read_result(dir, index)
+        && r.status.is_final()
+        && r.cube_sha256 == entry.file.sha256
+    {
+        return Ok(RunOutcome::AlreadyDone(r));
     }
     let bytes = entry.file.read_checked(dir, MANIFEST)?;
     let results = dir.join(RESULTS_DIR);
@@ -291,11 +294,11 @@ pub fn run_cube(
                         )),
                     );
                 }
-                let proof = std::fs::read(&path).map_err(|e| Error::io(&path, e))?;
+                let (sha256, bytes) = crate::artifact::sha256_file(&path)?;
                 result.proof = Some(ProofRecord {
                     file: proof_name(index),
-                    sha256: sha256_hex(&proof),
-                    bytes: proof.len() as u64,
+                    sha256,
+                    bytes,
                     steps: info.lrat.steps,
                 });
             } else {
@@ -344,7 +347,7 @@ pub enum MergeCertificate {
         cubes: usize,
     },
     /// As `CubeProofs`, and one LRAT proof of `formula.cnf` assembled from
-    /// them ([`lift`]) and accepted by orbitcnf's checker.
+    /// them ([`crate::proof::lift`]) and accepted by orbitcnf's checker.
     CombinedProof {
         /// Where it was written.
         file: PathBuf,
@@ -527,15 +530,19 @@ fn list(v: &[usize]) -> String {
 /// Merges the results of the split in `dir`. A cube refuted only on a
 /// solver's word counts as refuted when `accept_claims` holds (the verdict
 /// is then marked unchecked); otherwise it is listed as pending. With
-/// `combined`, also writes
-/// one LRAT proof of `formula.cnf` there (when every cube has a proof) and
-/// checks it.
+/// `combined`, also writes one LRAT proof of `formula.cnf` there, in the
+/// encoding `format` (when every cube has a proof), and checks it.
 ///
 /// # Errors
 /// A split that fails [`verify_split`]; unreadable result files;
 /// [`Error::Io`]. Missing, unknown, failed and rejected cubes are not
 /// errors: they are listed in [`MergeReport::pending`].
-pub fn merge(dir: &Path, combined: Option<&Path>, accept_claims: bool) -> Result<MergeReport> {
+pub fn merge(
+    dir: &Path,
+    combined: Option<&Path>,
+    accept_claims: bool,
+    format: LratFormat,
+) -> Result<MergeReport> {
     let m = SplitManifest::read(dir)?;
     let (enc, _coverage, coverage_summary) = verify_split(dir, &m)?;
     let q = Question::from_record(&m.question)?;
@@ -556,7 +563,7 @@ pub fn merge(dir: &Path, combined: Option<&Path>, accept_claims: bool) -> Result
         certificate: MergeCertificate::None,
         solve_seconds: 0.0,
     };
-    let mut proofs: Vec<(Cube, Vec<u8>)> = Vec::new();
+    let mut proofs: Vec<(Cube, PathBuf)> = Vec::new();
     for entry in &m.cubes {
         let i = entry.cube.index;
         let pending = |state: &str, reason: String| Pending {
@@ -619,10 +626,10 @@ pub fn merge(dir: &Path, combined: Option<&Path>, accept_claims: bool) -> Result
                 Some(p) => {
                     let cube_cnf = cube_cnf(&enc.cnf, &entry.cube);
                     match check_cube_proof(dir, i, p, &cube_cnf) {
-                        Ok(bytes) => {
+                        Ok(path) => {
                             report.certified.push(i);
                             if combined.is_some() {
-                                proofs.push((entry.cube.clone(), bytes));
+                                proofs.push((entry.cube.clone(), path));
                             }
                         }
                         Err(e) => report.pending.push(pending("rejected", e.to_string())),
@@ -648,24 +655,10 @@ pub fn merge(dir: &Path, combined: Option<&Path>, accept_claims: bool) -> Result
         report.verdict = Verdict::Infeasible;
         if report.uncertified.is_empty() {
             if let Some(path) = combined {
-                let lifted = proofs
-                    .iter()
-                    .map(|(c, p)| lift::lift_cube(&enc.cnf, &c.lits(), p))
-                    .collect::<Result<Vec<_>>>()?;
-                let proof = m.coverage.proof.read_checked(dir, MANIFEST)?;
-                let bytes = lift::assemble(&enc.cnf, &coverage_sources(&enc), &lifted, &proof)?;
-                let summary = check_lrat_with(
-                    &enc.cnf,
-                    &bytes,
-                    &LratOptions {
-                        ids_follow_cnf: true,
-                        ..LratOptions::default()
-                    },
-                )?;
-                write_atomically(path, &bytes)?;
+                let (bytes, summary) = combine(&enc, &m, dir, &proofs, path, format)?;
                 report.certificate = MergeCertificate::CombinedProof {
                     file: path.to_path_buf(),
-                    bytes: bytes.len() as u64,
+                    bytes,
                     summary,
                 };
             } else {
@@ -689,7 +682,51 @@ pub fn cube_cnf(f: &Cnf, cube: &Cube) -> Cnf {
     cnf
 }
 
-fn check_cube_proof(dir: &Path, index: usize, p: &ProofRecord, cnf: &Cnf) -> Result<Vec<u8>> {
+/// Lifts the cube proofs at `proofs` and assembles them with the split's
+/// coverage proof into one LRAT proof of `formula.cnf` in `format`, checked
+/// and then written to `path`; returns its size and summary.
+fn combine(
+    enc: &crate::encode::Encoding,
+    m: &SplitManifest,
+    dir: &Path,
+    proofs: &[(Cube, PathBuf)],
+    path: &Path,
+    format: LratFormat,
+) -> Result<(u64, LratSummary)> {
+    let open = |p: &Path| std::fs::File::open(p).map_err(|e| Error::io(p, e));
+    let mut lifted = Vec::with_capacity(proofs.len());
+    for (c, p) in proofs {
+        let tmp = temp_proof_file(Some(path))?;
+        let out = BufWriter::new(tmp.reopen().map_err(|e| Error::io(tmp.path(), e))?);
+        let lc = lift_cube(
+            &enc.cnf,
+            &c.lits(),
+            BufReader::new(open(p)?),
+            out,
+            LratFormat::Binary,
+        )?;
+        lifted.push((lc, tmp));
+    }
+    let pieces = lifted
+        .iter()
+        .map(|(lc, tmp)| Ok((*lc, BufReader::new(open(tmp.path())?))))
+        .collect::<Result<Vec<_>>>()?;
+    let tmp = temp_proof_file(Some(path))?;
+    let out = BufWriter::new(tmp.reopen().map_err(|e| Error::io(tmp.path(), e))?);
+    let coverage = open(&dir.join(&m.coverage.proof.name))?;
+    let sources = coverage_sources(enc);
+    assemble(&enc.cnf, &sources, pieces, coverage, out, format)?;
+    drop(lifted);
+    let options = LratOptions {
+        ids_follow_cnf: true,
+        ..LratOptions::default()
+    };
+    let info = accept_proof(&enc.cnf, tmp, Some(path), &options)?.info;
+    Ok((info.lrat_bytes, info.lrat))
+}
+
+/// Checks cube `index`'s proof file against its record and `cnf`; returns its path.
+fn check_cube_proof(dir: &Path, index: usize, p: &ProofRecord, cnf: &Cnf) -> Result<PathBuf> {
     if p.file != proof_name(index) {
         return Err(Error::parse(
             result_path(dir, index).display().to_string(),
@@ -702,22 +739,19 @@ fn check_cube_proof(dir: &Path, index: usize, p: &ProofRecord, cnf: &Cnf) -> Res
         ));
     }
     let path = dir.join(RESULTS_DIR).join(&p.file);
-    let bytes = std::fs::read(&path).map_err(|e| Error::io(&path, e))?;
-    if sha256_hex(&bytes) != p.sha256 {
+    let shown = path.display().to_string();
+    let stored = recheck_file(cnf, &path, &LratOptions::default())?;
+    if stored.sha256 != p.sha256 {
         return Err(Error::parse(
-            path.display().to_string(),
+            shown,
             0,
             "does not match its SHA-256 in the result file",
         ));
     }
-    check_lrat_with(cnf, &bytes, &LratOptions::default()).map_err(|e| {
-        Error::parse(
-            path.display().to_string(),
-            0,
-            format!("the proof is rejected: {e}"),
-        )
-    })?;
-    Ok(bytes)
+    stored
+        .check
+        .map_err(|e| Error::parse(shown, 0, format!("the proof is rejected: {e}")))?;
+    Ok(path)
 }
 
 /// The indices of the cubes without a final result (missing, unknown,

@@ -126,7 +126,7 @@ fn four_dimensional_boxes_up_to_16_points() {
         [(0, 1), (0, 1), (0, 1), (0, 1)],
     ] {
         let got = agree_on(&bounds);
-        // On {0,1}^n every self-map is nonexpansive (MATH.md §5 [derived]).
+        // On {0,1}^n every self-map is nonexpansive (docs/math.md §5 [derived]).
         let points = bounds.iter().map(|(a, b)| (b - a + 1) as usize).product();
         assert_eq!(got, (1..=points).collect::<Vec<_>>(), "{bounds:?}");
     }

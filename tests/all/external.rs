@@ -150,13 +150,16 @@ fn cadical_stopped_by_a_limit_decodes_to_unknown() {
 /// The composite periods p = 18..32 on {−1,0,1}^4, for which we know of no
 /// published answer, refuted by CaDiCaL *without* orbitcnf's symmetry
 /// breaking (`--symmetry none`): the verdicts then rest on neither varisat
-/// nor the symmetry arguments of `encodings/symmetry.md`. CaDiCaL's DRAT
+/// nor the symmetry arguments of `encodings/symmetry.md`. They do rest on
+/// the redundant families of `encodings/redundant.md` (occupancy count,
+/// packing bound, profile exclusions), which stay on: each has its own
+/// soundness argument there and brute-force test. CaDiCaL's DRAT
 /// proof goes through `rate` to LRAT and orbitcnf's checker. Minutes per
 /// period (CaDiCaL alone took 42 s to 4.5 min for most, more than 5 min for
 /// p = 24, on 2 shared cores), so run on purpose:
 /// `cargo test --release -- --ignored composite_n4`.
 #[test]
-#[ignore]
+#[ignore = "minutes per period with CaDiCaL; run on purpose"]
 fn cadical_refutes_the_composite_n4_periods_without_symmetry_breaking() {
     for tool in ["cadical", "rate"] {
         assert!(have_tool(tool), "this check needs `{tool}` on PATH");

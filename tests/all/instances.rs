@@ -8,7 +8,7 @@
 //!   "dim": 3,
 //!   "period": 8,
 //!   "expected": "feasible",
-//!   "source": "construction: distinct points of {-1,1}^3 are pairwise at distance 2 (MATH.md §5)"
+//!   "source": "construction: points of {-1,1}^3 are pairwise at distance 2 (docs/math.md §5)"
 //! }
 //! ```
 //!

@@ -8,7 +8,9 @@
 //!   PicoSAT, read back by `decode`.
 //! - `instances`: one generated test per file in `instances/` (see `build.rs`).
 //! - `points`: finite domains that are not boxes (full-map formulation).
+//! - `mathdoc`: every `docs/math.md §n` cited in the repository exists there.
 //!
+//! - `render`: reports in LaTeX, SVG and HTML, read by pdflatex, resvg and Chromium.
 //! - `topical`: the topical map class (`--class topical`), published bound and brute force.
 //!
 //! No verdict is trusted alone: every feasible answer's orbit is verified.
@@ -18,11 +20,13 @@ mod brute;
 mod cli;
 mod external;
 mod instances;
+mod mathdoc;
 mod points;
 mod proofs;
 mod published;
 mod real;
 mod real_cli;
+mod render;
 mod scaleout;
 mod spectrum;
 mod topical;

@@ -4,7 +4,7 @@
 //!
 //! - On every box with n ≤ 2 and sides ≤ 3, the full-map formulation and the
 //!   cycle formulation give the same verdict for every period; on a box they
-//!   answer the same question (the cycle extends to the box, MATH.md §2,
+//!   answer the same question (the cycle extends to the box, docs/math.md §2,
 //!   restated in `encodings/isometric-cycle.md`), so a disagreement would be
 //!   a bug in one of them. The cycle verdicts are also compared with
 //!   `brute::find_cycle`.
@@ -25,7 +25,7 @@ use std::collections::HashSet;
 use serde_json::Value;
 
 use orbitcnf::brute;
-use orbitcnf::encode::{DEFAULT_MAX_CLAUSES, EncodeOptions, Symmetry};
+use orbitcnf::encode::{DEFAULT_MAX_CLAUSES, EncodeOptions, Formulation, Symmetry};
 use orbitcnf::evidence::Evidence as Certificate;
 use orbitcnf::points::PointSet;
 use orbitcnf::solve::bundled::Bundled;
@@ -38,9 +38,8 @@ use crate::util::{
     dist, orbit_of,
 };
 
-/// The corners of {−2,2}^2 plus (0,1): the example of the project notes
-/// (MATH.md §2), where isometric 3- and 4-cycles exist but maps have only
-/// periods 1 and 2.
+/// The corners of {−2,2}^2 plus (0,1): the example of docs/math.md §2.3,
+/// where isometric 3- and 4-cycles exist but maps have only periods 1 and 2.
 pub const NOTES_FIVE: &[&[i64]] = &[&[-2, -2], &[-2, 2], &[2, -2], &[2, 2], &[0, 1]];
 
 /// "Two jetties" of a made-up harbour: a left jetty (0,1), (1,2), (1,3) and a
@@ -129,10 +128,7 @@ fn point_set(pts: &[Vec<i64>]) -> PointSet {
 /// orbit here (both must be present in the full-map formulation).
 fn decide_checked(q: &Question, options: &EncodeOptions, certify: bool, context: &str) -> Report {
     let report = if certify {
-        let mut backend = Certified {
-            lrat: None,
-            drat: None,
-        };
+        let mut backend = Certified::default();
         decide::decide(
             q,
             options,
@@ -151,7 +147,7 @@ fn decide_checked(q: &Question, options: &EncodeOptions, certify: bool, context:
     }
     .unwrap_or_else(|e| panic!("{context}: decide failed: {e}"));
     assert!(
-        report.options.is_full_map(),
+        report.options.formulation == Formulation::FullMap,
         "{context}: {:?}",
         report.options
     );
@@ -163,7 +159,7 @@ fn decide_checked(q: &Question, options: &EncodeOptions, certify: bool, context:
         let map = report.map.as_ref().expect("a full-map report has the map");
         let domain = q.domain().points().to_vec();
         assert_self_map(&domain, map, orbit, q.period, context);
-        // An orbit of a nonexpansive map is an isometric cycle (MATH.md §1).
+        // An orbit of a nonexpansive map is an isometric cycle (docs/math.md §1).
         assert_isometric_cycle(q.grid.ranges(), orbit, q.period, context);
     }
     report
@@ -697,6 +693,57 @@ fn spectrum_of_a_point_set_matches_brute_force_and_reuses_its_store() {
         .code(0)
         .stdout_has("spectrum     D = {(0,1), (1,2), (1,3), (3,0), (3,1), (3,2)}")
         .stdout_has("the unit-cube construction needs a box");
+}
+
+#[test]
+fn spectrum_of_a_point_set_names_the_formulation_that_ran_in_every_report() {
+    // The table, the Markdown page and the JSON name one formulation: the
+    // full-map one, which answered every period (the answers say so too).
+    // Jetties has n' = 2, so the page must not claim that every p ≤ 2^2
+    // occurs or that "the periods are exactly 1..4": the unit-cube
+    // construction needs a box, and on this D p = 4 need not occur.
+    let dir = TestDir::new();
+    let file = write_points(&dir, "jetties.txt", &owned(JETTIES));
+    let base = ["spectrum", "--points", &file, "-q", "-j", "1", "--no-store"];
+    let table = dir.orbitcnf().args(base).args(["--markdown", "d.md"]).run();
+    table.code(0).stdout_has("encoding     full-map/1 (");
+    assert!(
+        !table.stdout.contains("isometric-cycle"),
+        "{}",
+        table.stdout
+    );
+    let page = dir.read("d.md");
+    assert!(page.contains("with the formulation full-map/1 ("), "{page}");
+    assert!(page.contains("Point set D = {(0,1), "), "{page}");
+    for absent in [
+        "isometric-cycle",
+        "Box `",
+        "Every p ≤ 2^n occurs",
+        "the periods are exactly 1..4",
+    ] {
+        assert!(!page.contains(absent), "{absent:?} in\n{page}");
+    }
+    let json = dir.orbitcnf().args(base).arg("--json").run();
+    json.code(0);
+    let v = json.json();
+    assert_eq!(v["options"]["formulation"], "full-map/1");
+    for r in v["rows"].as_array().unwrap() {
+        assert_eq!(r["answer"]["options"]["formulation"], "full-map/1");
+    }
+    // A box asked in the full-map formulation: the same word everywhere.
+    let boxed = dir
+        .orbitcnf()
+        .args([
+            "spectrum",
+            "--dim",
+            "2",
+            "--grid=0..1",
+            "--formulation",
+            "full-map",
+        ])
+        .args(["-q", "-j", "1", "--no-store"])
+        .run();
+    boxed.code(0).stdout_has("encoding     full-map/1 (");
 }
 
 #[test]

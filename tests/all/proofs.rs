@@ -2,7 +2,11 @@
 //! and checked, tampered proofs rejected with their reason, DRAT accepted by
 //! the external checker `rate`, and certificate bundles re-checked end to end.
 
-use crate::util::{ERROR, INFEASIBLE, TestDir};
+use orbitcnf::proof::LratFormat;
+use orbitcnf::proof::lrat::read::{LratReader, Step, StepKind};
+use orbitcnf::proof::lrat::write::LratWriter;
+
+use crate::util::{ERROR, INFEASIBLE, TestDir, have_tool};
 
 /// Decides `{-1,0,1}^3` (or another grid) with a proof file and returns the JSON report.
 fn decide_with_proof(
@@ -52,7 +56,8 @@ fn encode(dir: &TestDir, grid: &str, dim: &str, p: usize, out: &str) {
 fn infeasible_answers_of_published_cases_carry_checked_proofs() {
     // Periods 9..12 on {-1,0,1}^3 exceed 2^3 = 8, the bound proven for n = 3
     // (R. Lyons and R. D. Nussbaum, 1992 [recalled]); p = 5 on {0,1,2,3}^2
-    // exceeds 2^2 (R. D. Nussbaum, Israel J. Math. 76 (1991)).
+    // exceeds max_k 2^k·C(2,k) = 4 (B. Lemmens and M. Scheutzow, Ergodic
+    // Theory Dynam. Systems 25 (2005) [paper]), as in published.rs.
     let dir = TestDir::new();
     for (grid, dim, p) in [
         ("-1..1", "3", 9),
@@ -73,32 +78,21 @@ fn infeasible_answers_of_published_cases_carry_checked_proofs() {
     }
 }
 
-/// Rewrites the first addition step of a text LRAT proof with `edit`.
-fn tamper_first_addition(text: &str, edit: impl Fn(&mut Vec<i64>, &mut Vec<i64>)) -> String {
+/// Rewrites the first addition step (with literals and two hints or more)
+/// of a text LRAT proof with `edit`, through orbitcnf's LRAT reader and writer.
+fn tamper_first_addition(text: &str, edit: impl Fn(&mut Vec<i32>, &mut Vec<i64>)) -> String {
+    let mut reader = LratReader::new(text.as_bytes(), None, u32::MAX).unwrap();
+    let mut writer = LratWriter::new(Vec::new(), LratFormat::Text);
+    let mut step = Step::default();
     let mut done = false;
-    text.lines()
-        .map(|line| {
-            let toks: Vec<&str> = line.split_whitespace().collect();
-            if done || toks.len() < 2 || toks[1] == "d" {
-                return line.to_string();
-            }
-            let id = toks[0];
-            let nums: Vec<i64> = toks[1..].iter().map(|t| t.parse().unwrap()).collect();
-            let zero = nums.iter().position(|&x| x == 0).unwrap();
-            let mut lits = nums[..zero].to_vec();
-            let mut hints: Vec<i64> = nums[zero + 1..nums.len() - 1].to_vec();
-            if lits.is_empty() || hints.len() < 2 {
-                return line.to_string();
-            }
-            edit(&mut lits, &mut hints);
+    while reader.next_step(&mut step).unwrap() {
+        if !done && step.kind == StepKind::Add && !step.lits.is_empty() && step.refs.len() >= 2 {
+            edit(&mut step.lits, &mut step.refs);
             done = true;
-            let l: Vec<String> = lits.iter().map(|x| x.to_string()).collect();
-            let h: Vec<String> = hints.iter().map(|x| x.to_string()).collect();
-            format!("{id} {} 0 {} 0", l.join(" "), h.join(" "))
-        })
-        .collect::<Vec<_>>()
-        .join("\n")
-        + "\n"
+        }
+        writer.step(&step).unwrap();
+    }
+    String::from_utf8(writer.finish().unwrap().0).unwrap()
 }
 
 #[test]
@@ -172,13 +166,7 @@ fn the_drat_proof_is_accepted_by_the_rate_checker() {
         .code(INFEASIBLE)
         .stdout_has("binary DRAT");
     encode(&dir, "-1..1", "3", 10, "p10.cnf");
-    let rate = std::process::Command::new("rate").arg("--version").output();
-    if rate.is_err() {
-        assert!(
-            std::env::var_os("CI").is_none(),
-            "CI must install the rate checker (cargo install rate)"
-        );
-        eprintln!("note: `rate` is not on PATH; skipping the external DRAT check");
+    if !have_tool("rate") {
         return;
     }
     let run = dir.program("rate").args(["p10.cnf", "p10.drat"]).run();
@@ -253,4 +241,128 @@ fn bundles_are_rechecked_end_to_end_and_tampering_is_caught() {
         .args(["check-bundle", "b11"])
         .run()
         .error_with(&["differs from a fresh encoding"]);
+}
+
+/// The number of a summary field in a JSON report's `certificate.lrat`.
+fn lrat_field(j: &serde_json::Value, field: &str) -> u64 {
+    j["certificate"]["lrat"][field].as_u64().unwrap()
+}
+
+#[test]
+fn binary_proofs_say_what_text_proofs_say() {
+    let dir = TestDir::new();
+    let text = decide_with_proof(&dir, "-1..1", "3", 10, "p10.lrat");
+    // The same run in binary, with the DRAT proof of that run beside it.
+    let run = dir
+        .orbitcnf()
+        .args(["decide", "--dim", "3", "--grid=-1..1", "--period", "10"])
+        .args(["--proof", "p10.bin.lrat", "--proof-encoding", "binary"])
+        .args(["--drat", "p10.drat", "--json"])
+        .run();
+    run.code(INFEASIBLE);
+    let binary = run.json();
+    assert_eq!(binary["certificate"]["lrat"]["format"], "Binary");
+    assert_eq!(text["certificate"]["lrat"]["format"], "Text");
+    // varisat is deterministic: both encodings carry the same steps.
+    for field in ["steps", "added", "deleted", "hints", "empty_clause_id"] {
+        assert_eq!(
+            lrat_field(&binary, field),
+            lrat_field(&text, field),
+            "{field}"
+        );
+    }
+    let bytes = std::fs::read(dir.path("p10.bin.lrat")).unwrap();
+    assert!(
+        matches!(bytes.first(), Some(b'a' | b'd')),
+        "not binary LRAT"
+    );
+    assert!(
+        bytes.len() * 3 < dir.read("p10.lrat").len() * 2,
+        "binary is not smaller"
+    );
+    encode(&dir, "-1..1", "3", 10, "p10.cnf");
+    let v = dir
+        .orbitcnf()
+        .args(["verify-proof", "p10.cnf", "p10.bin.lrat", "--json"])
+        .run();
+    v.code(0);
+    assert_eq!(
+        v.json()["summary"]["steps"].as_u64(),
+        Some(lrat_field(&text, "steps"))
+    );
+    // A byte changed in the middle of the binary proof is caught.
+    let mut bad = bytes.clone();
+    let mid = bad.len() / 2;
+    bad[mid] ^= 0x04;
+    dir.write("bad.lrat", &bad);
+    dir.orbitcnf()
+        .args(["verify-proof", "p10.cnf", "bad.lrat"])
+        .run()
+        .error_with(&["proof rejected"]);
+    // The run's refutation also passes rate, a checker that shares no code with
+    // ours (rate reads DRAT; no independent LRAT checker is installed).
+    if have_tool("rate") {
+        let r = dir.program("rate").args(["p10.cnf", "p10.drat"]).run();
+        assert!(
+            r.stdout.contains("s VERIFIED"),
+            "{}\n{}",
+            r.stdout,
+            r.stderr
+        );
+    }
+    // Bundles take a binary proof, and check-bundle reads it.
+    dir.orbitcnf()
+        .args(["decide", "--dim", "3", "--grid=-1..1", "--period", "10"])
+        .args(["--bundle", "b10", "--proof-encoding", "binary"])
+        .run()
+        .code(INFEASIBLE);
+    let bundle = std::fs::read(dir.path("b10/proof.lrat")).unwrap();
+    assert!(matches!(bundle.first(), Some(b'a' | b'd')));
+    dir.orbitcnf().args(["check-bundle", "b10"]).run().code(0);
+}
+
+#[test]
+fn split_runs_keep_binary_cube_proofs_and_merge_writes_either_encoding() {
+    let dir = TestDir::new();
+    dir.orbitcnf()
+        .args(["split", "--dim", "3", "--grid=-1..1", "--period", "10"])
+        .args(["--cubes", "4", "--out", "sp"])
+        .run()
+        .code(0);
+    let manifest: serde_json::Value = serde_json::from_str(&dir.read("sp/manifest.json")).unwrap();
+    let n = manifest["cubes"].as_array().unwrap().len();
+    for i in 0..n {
+        let encoding = if i % 2 == 0 { "binary" } else { "text" };
+        dir.orbitcnf()
+            .args(["run-cube", "sp", &i.to_string(), "-q"])
+            .args(["--proof-encoding", encoding])
+            .run()
+            .code(0);
+        let proof = std::fs::read(dir.path(&format!("sp/results/cube-{i:04}.lrat"))).unwrap();
+        assert_eq!(
+            matches!(proof.first(), Some(b'a' | b'd')),
+            i % 2 == 0,
+            "cube {i}"
+        );
+    }
+    for encoding in ["text", "binary"] {
+        let out = format!("all.{encoding}.lrat");
+        let m = dir
+            .orbitcnf()
+            .args(["merge", "sp", "--json", "--proof", &out])
+            .args(["--proof-encoding", encoding])
+            .run();
+        m.code(INFEASIBLE);
+        assert_eq!(m.json()["certificate"]["kind"], "combined-proof");
+        dir.orbitcnf()
+            .args(["verify-proof", "sp/formula.cnf", &out])
+            .run()
+            .code(0)
+            .stdout_has("accepted");
+    }
+    let text = std::fs::metadata(dir.path("all.text.lrat")).unwrap().len();
+    let binary = std::fs::metadata(dir.path("all.binary.lrat"))
+        .unwrap()
+        .len();
+    assert!(binary < text, "{binary} ≥ {text}");
 }

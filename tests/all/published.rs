@@ -1,11 +1,11 @@
 //! Published facts about periods of sup-norm nonexpansive maps, and what the
-//! project derives from them (`/work/shared/MATH.md`), checked through the
-//! binary. Each test names its source; the marks are those of MATH.md:
-//! [paper] read in the cited source, [recalled] from memory, [derived] a
-//! short argument given in MATH.md.
+//! project derives from them (`docs/math.md`), checked through the binary.
+//! Each test names its source; the marks are those of docs/math.md: [paper]
+//! read in the cited source, [recalled] from memory, [derived] a short
+//! argument given in docs/math.md.
 //!
-//! By MATH.md §2 [derived] a period p occurs for a nonexpansive self-map of a
-//! box iff the box holds an isometric p-cycle, which is what `decide` decides;
+//! By docs/math.md §2 [derived] a period p occurs for a nonexpansive self-map
+//! of a box iff the box holds an isometric p-cycle, which is what `decide` decides;
 //! so the theorems below about maps are statements about its verdicts. Every
 //! feasible verdict is verified (`util::assert_decides`).
 //!
@@ -33,13 +33,14 @@ fn binomial(n: usize, k: usize) -> usize {
 
 #[test]
 fn the_bound_has_the_values_tabulated_in_math_md() {
-    // MATH.md §6: values of max_k 2^k·C(n,k) for n = 1..8 (Lemmens and Scheutzow 2005 [paper]).
+    // docs/math.md §6: values of max_k 2^k·C(n,k) for n = 1..8
+    // (Lemmens and Scheutzow 2005 [paper]).
     let got: Vec<usize> = (1..=8).map(ls_bound).collect();
     assert_eq!(got, [2, 4, 12, 32, 80, 240, 672, 1792]);
     // The library's copy of the bound agrees.
     for n in 1..=8 {
         assert_eq!(
-            orbitcnf::question::lemmens_scheutzow_bound(n),
+            orbitcnf::theory::lemmens_scheutzow_bound(n),
             ls_bound(n) as u128
         );
     }
@@ -47,7 +48,7 @@ fn the_bound_has_the_values_tabulated_in_math_md() {
 
 // ------------------------------------------------ every p ≤ 2^n occurs
 
-/// The construction of MATH.md §5 [derived]: distinct points of {−1,1}^n are
+/// The construction of docs/math.md §5 [derived]: distinct points of {−1,1}^n are
 /// pairwise at distance 2, so any p of them in any order are an isometric
 /// cycle. `orbitcnf check` must accept them, with the constant profile 2.
 #[test]
@@ -81,7 +82,7 @@ fn the_construction_of_section_5_passes_check() {
 }
 
 /// Every p ≤ 2^n is a period on {−1,0,1}^n, n = 1..4: the construction of
-/// MATH.md §5 [derived]; `decide` must find a (verified) orbit for each.
+/// docs/math.md §5 [derived]; `decide` must find a (verified) orbit for each.
 #[test]
 fn every_period_up_to_2_pow_n_is_feasible_on_minus1_0_1_cubes() {
     let dir = TestDir::new();
@@ -93,7 +94,7 @@ fn every_period_up_to_2_pow_n_is_feasible_on_minus1_0_1_cubes() {
 }
 
 /// On {0,1}^n every self-map is nonexpansive, so its periods are exactly
-/// 1..2^n (MATH.md §5 [derived]); and {0,1,2,3}^n ⊇ {0,1}^n has them too.
+/// 1..2^n (docs/math.md §5 [derived]); and {0,1,2,3}^n ⊇ {0,1}^n has them too.
 #[test]
 fn every_period_up_to_2_pow_n_is_feasible_on_0_1_and_0_3_cubes() {
     let dir = TestDir::new();
@@ -226,7 +227,7 @@ fn n3_every_period_above_the_bound_is_infeasible_on_0_3_cube() {
 // ------------------------------------------------ sides of one point
 
 /// A side of one point adds nothing to any distance, so such a box has the
-/// periods of the box without that coordinate (MATH.md §2 reduces periods to
+/// periods of the box without that coordinate (docs/math.md §2 reduces periods to
 /// isometric cycles, and the distances are those of the lower-dimensional
 /// box [derived]). With the facts above: {−1,0,1}×{0}×{−1,0,1} has exactly
 /// the periods 1..4 of {−1,0,1}^2 (Lemmens and Scheutzow 2005 [paper] for
@@ -257,7 +258,7 @@ fn boxes_with_one_point_sides_have_the_periods_of_the_smaller_box() {
 }
 
 /// The same with a three-dimensional core: {−1,0,1}×{0}×{−1,0,1}×{−1,0,1}
-/// has period 8 (MATH.md §5 [derived]) and not 9 (Lyons and Nussbaum 1992
+/// has period 8 (docs/math.md §5 [derived]) and not 9 (Lyons and Nussbaum 1992
 /// [recalled]).
 #[test]
 fn a_four_dimensional_box_with_a_one_point_side_has_the_periods_of_n3() {
@@ -296,7 +297,7 @@ fn n4_periods_above_the_bound_are_infeasible_on_minus1_0_1_cube() {
 /// about two minutes of solving on 2 cores, so run on purpose:
 /// `cargo test --release -- --ignored every_n4_period_above`.
 #[test]
-#[ignore]
+#[ignore = "about two minutes of solving on 2 cores; run on purpose"]
 fn every_n4_period_above_the_bound_is_infeasible_on_minus1_0_1_cube() {
     let dir = TestDir::new();
     for p in ls_bound(4) + 1..=81 {

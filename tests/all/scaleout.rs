@@ -719,7 +719,7 @@ fn merge_rejects_a_tampered_split_and_a_tampered_proof() {
 /// minute on 2 cores), so run on purpose:
 /// `cargo test --release -- --ignored n5_period_33`.
 #[test]
-#[ignore]
+#[ignore = "about a minute of cubes with CaDiCaL and rate on 2 cores; run on purpose"]
 fn n5_period_33_is_refuted_by_certified_cubes() {
     for tool in ["cadical", "rate"] {
         assert!(have_tool(tool), "this check needs `{tool}` on PATH");

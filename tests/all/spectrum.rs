@@ -41,6 +41,14 @@ fn rows(report: &Value) -> &Vec<Value> {
     report["rows"].as_array().expect("rows")
 }
 
+/// The verdict of every row, in order.
+fn verdicts(report: &Value) -> Vec<&str> {
+    rows(report)
+        .iter()
+        .map(|r| r["verdict"].as_str().unwrap())
+        .collect()
+}
+
 /// `(period, verdict, how, backing, orbit)` per row: what must not depend on
 /// when or in how many runs the spectrum was computed.
 fn essentials(report: &Value) -> Vec<(u64, String, String, String, Value)> {
@@ -310,11 +318,10 @@ fn spectrum_unknowns_are_kept_and_retried_only_with_larger_limits() {
         .run();
     small.code(2);
     let small = small.json();
-    let verdicts: Vec<&str> = rows(&small)
-        .iter()
-        .map(|r| r["verdict"].as_str().unwrap())
-        .collect();
-    assert_eq!(verdicts, ["feasible", "feasible", "unknown", "unknown"]);
+    assert_eq!(
+        verdicts(&small),
+        ["feasible", "feasible", "unknown", "unknown"]
+    );
     assert!(
         rows(&small)[2]["certificate"]
             .as_str()
@@ -397,8 +404,8 @@ fn spectrum_reports_a_stored_contradiction_naming_both_runs() {
 // Expected answers: every period of a topical map on R^n is at most
 // C(n, ⌊n/2⌋) (B. Lemmens and M. Scheutzow, Ergodic Theory Dynam. Systems 25
 // (2005) 861–871, proving the Gunawardena–Sparrow conjecture [paper, per
-// MATH.md §7]), and every period up to it occurs on the middle layer of a unit
-// cube [derived]. So on {0,1}^4 the topical periods are exactly 1..6 and on
+// docs/math.md §7]), and every period up to it occurs on the middle layer of a
+// unit cube [derived]. So on {0,1}^4 the topical periods are exactly 1..6 and on
 // {0,1,2}^3 exactly 1..3; the default sweep goes one period further. The
 // orbits are checked here by `topical::assert_topical_cycle` (no crate code)
 // and by the crate's topical check; the proofs by `verify-proof` against a
@@ -428,6 +435,8 @@ fn check_topical_spectrum(n: usize, lo: i64, hi: i64, bound: u64) -> Value {
         "{statement}"
     );
     assert_eq!(report["lemmens_scheutzow_bound"], bound);
+    // The sweep's encoding, as the table names it too.
+    assert_eq!(report["options"]["formulation"], "topical-cycle/1");
     let periods: Vec<u64> = rows(&report)
         .iter()
         .map(|r| r["period"].as_u64().unwrap())
@@ -576,4 +585,328 @@ fn topical_and_nonexpansive_answers_are_kept_apart_and_a_topical_contradiction_i
         .run()
         .code(0)
         .stdout_has("    7  feasible    construction  stored");
+}
+
+// ---- Progress for logs ----
+
+/// Asserts that every line of `run`'s stderr is a progress line for a log
+/// (`orbitcnf: progress: YYYY-MM-DDTHH:MM:SSZ …`) and returns their texts.
+fn progress_lines(run: &crate::util::Run) -> Vec<String> {
+    let mut out = Vec::new();
+    for line in run.stderr.lines() {
+        let Some(rest) = line.strip_prefix("orbitcnf: progress: ") else {
+            run.fail("stderr", "only progress lines", line);
+        };
+        let (stamp, text) = rest.split_once(' ').unwrap_or((rest, ""));
+        let shape_ok = stamp.len() == 20
+            && stamp.ends_with('Z')
+            && stamp.as_bytes()[10] == b'T'
+            && stamp[..4].chars().all(|c| c.is_ascii_digit());
+        if !shape_ok {
+            run.fail("a UTC timestamp", "YYYY-MM-DDTHH:MM:SSZ", stamp);
+        }
+        out.push(text.to_string());
+    }
+    out
+}
+
+#[test]
+fn spectrum_writes_progress_lines_to_a_log() {
+    // stderr is a pipe here, as in a batch job: the default shows nothing
+    // (see check_three_dimensional_spectrum), --progress lines a line for the
+    // periods settled before solving, one per solved period, and a last one.
+    let dir = TestDir::new();
+    let run = dir
+        .orbitcnf()
+        .args([
+            "spectrum",
+            "--dim",
+            "2",
+            "--grid=-1..1",
+            "--periods",
+            "3..6",
+        ])
+        .args(["--no-store", "-j", "1", "--progress", "lines"])
+        .run();
+    run.code(0).stdout_has("every period decided");
+    let lines = progress_lines(&run);
+    let has = |needle: &str| lines.iter().filter(|l| l.contains(needle)).count();
+    assert_eq!(
+        has("spectrum {-1,0,1}^2: 2 of 4 periods decided before solving"),
+        1,
+        "{lines:#?}"
+    );
+    // {-1,0,1}^2: p = 5, 6 exceed max_k 2^k·C(2,k) = 4 (Lemmens and Scheutzow 2005).
+    assert_eq!(has("p=5 infeasible (solver"), 1, "{lines:#?}");
+    assert_eq!(has("p=6 infeasible (solver"), 1, "{lines:#?}");
+    // The line of p = 6 and the last one (status lines every 30 s may add more).
+    assert!(has("4/4 periods decided (2 feasible, 2 infeasible, 0 unknown)") >= 2);
+    assert!(lines.last().unwrap().contains("finished:"), "{lines:#?}");
+
+    // -q is --progress off; both at once is a usage error.
+    let quiet = dir
+        .orbitcnf()
+        .args(["spectrum", "--dim", "2", "--grid=-1..1", "--no-store", "-q"])
+        .run();
+    quiet.code(0);
+    assert!(quiet.stderr.is_empty(), "{}", quiet.stderr);
+    dir.orbitcnf()
+        .args([
+            "spectrum",
+            "--grid=0..1",
+            "--no-store",
+            "-q",
+            "--progress",
+            "lines",
+        ])
+        .run()
+        .error_with(&["--quiet", "--progress"]);
+}
+
+#[test]
+fn decide_jobs_writes_a_progress_line_for_every_finished_cube() {
+    // {-1,0,1}^3 has no period 9 (n ≤ 3: the periods are 1..8, Lyons and
+    // Nussbaum 1992 [recalled]); every one of the 4 cubes is refuted.
+    let dir = TestDir::new();
+    let run = dir
+        .orbitcnf()
+        .args(["decide", "--dim", "3", "--grid=-1..1", "-p", "9"])
+        .args(["--jobs", "2", "--cubes", "4", "--progress", "lines"])
+        .run();
+    run.code(20);
+    let lines = progress_lines(&run);
+    let cubes: Vec<&String> = lines
+        .iter()
+        .filter(|l| l.starts_with("decide: cube "))
+        .collect();
+    assert!(cubes.len() >= 4, "{lines:#?}");
+    for (i, line) in cubes.iter().enumerate() {
+        assert!(line.contains("refuted, proof checked and lifted"), "{line}");
+        let done = format!("; {}/{} cubes done", i + 1, cubes.len());
+        assert!(line.contains(&done), "{line} lacks {done:?}");
+    }
+    for i in 0..cubes.len() {
+        let cube = format!("decide: cube {i} (");
+        assert!(cubes.iter().any(|l| l.starts_with(&cube)), "{lines:#?}");
+    }
+}
+
+// ---- A store with bad files ----
+//
+// {-1,0,1}^2 with p = 3 (feasible by the unit-cube construction) and p = 5
+// (infeasible: 5 > max_k 2^k·C(2,k) = 4, Lemmens and Scheutzow 2005, and
+// refuted here with a checked proof).
+
+const BAD_STORE: [&str; 8] = [
+    "spectrum",
+    "--dim",
+    "2",
+    "--grid=-1..1",
+    "--periods",
+    "3,5",
+    "--store",
+    "r",
+];
+
+/// A store filled by one sweep of [`BAD_STORE`]; its JSON report.
+fn filled_store(dir: &TestDir) -> Value {
+    let run = dir.orbitcnf().args(BAD_STORE).arg("--json").run();
+    run.code(0);
+    let v = run.json();
+    assert_eq!(rows(&v)[1]["verdict"], "infeasible");
+    assert_eq!(rows(&v)[1]["checked"]["when"], "this-run");
+    v
+}
+
+/// The relative path of the stored answer file of report row `i`.
+fn answer_file(report: &Value, i: usize) -> String {
+    format!(
+        "r/answers/{}.json",
+        rows(report)[i]["answer"]["key"].as_str().unwrap()
+    )
+}
+
+/// Runs the sweep again over a damaged store: it must succeed, warn about
+/// every file it set aside, list them in the JSON, and decide every period.
+fn sweep_past_bad_files(dir: &TestDir, extra: &[&str], bad: &[&str]) -> Value {
+    let run = dir
+        .orbitcnf()
+        .args(BAD_STORE)
+        .args(extra)
+        .arg("--json")
+        .run();
+    run.code(0);
+    let v = run.json();
+    assert_eq!(verdicts(&v), ["feasible", "infeasible"], "{}", run.stdout);
+    let set_aside = v["set_aside"].as_array().expect("set_aside");
+    for name in bad {
+        run.stderr_has("orbitcnf: warning: a stored file cannot be used and was set aside: ")
+            .stderr_has(name);
+        let entry = set_aside
+            .iter()
+            .find(|f| f["file"].as_str().unwrap().ends_with(name))
+            .unwrap_or_else(|| run.fail("set_aside", name, "not listed"));
+        let moved = dir.root().join(entry["moved_to"].as_str().expect("moved"));
+        assert!(moved.starts_with(dir.path("r/quarantine")), "{entry}");
+        assert!(moved.exists(), "{entry}");
+    }
+    assert_eq!(set_aside.len(), bad.len(), "{}", run.stdout);
+    v
+}
+
+#[test]
+fn spectrum_sets_aside_a_corrupt_answer_file_and_decides_its_period_again() {
+    let dir = TestDir::new();
+    let first = filled_store(&dir);
+    let file = answer_file(&first, 1);
+    let text = dir.read(&file);
+    let torn = &text[..text.len() / 2];
+    std::fs::write(dir.path(&file), torn).unwrap();
+    let name = file.rsplit('/').next().unwrap();
+    let v = sweep_past_bad_files(&dir, &[], &[name]);
+    // Decided again, by this run, with a fresh checked proof; the torn file
+    // is kept, byte for byte.
+    assert_eq!(rows(&v)[1]["reused"], false);
+    assert_eq!(rows(&v)[1]["answer"]["backing"], "checked-proof");
+    let moved = dir
+        .root()
+        .join(v["set_aside"][0]["moved_to"].as_str().unwrap());
+    assert_eq!(std::fs::read_to_string(moved).unwrap(), torn);
+    assert!(dir.path(&file).exists(), "the new answer is stored");
+    // The next run finds a clean store.
+    let again = dir.orbitcnf().args(BAD_STORE).arg("--json").run();
+    again.code(0);
+    assert!(again.stderr.is_empty(), "{}", again.stderr);
+    assert_eq!(again.json()["summary"]["reused"], 2);
+}
+
+#[test]
+fn spectrum_sets_aside_stray_files_in_the_answers_folder() {
+    let dir = TestDir::new();
+    filled_store(&dir);
+    dir.write("r/answers/notes.json", "{\"todo\": \"run p = 7\"}\n");
+    dir.write("r/answers/empty.json", "");
+    // Not a .json file: not an answer candidate, left alone.
+    dir.write("r/answers/README", "my notes\n");
+    let v = sweep_past_bad_files(&dir, &[], &["notes.json", "empty.json"]);
+    assert_eq!(v["summary"]["reused"], 2);
+    assert_eq!(dir.read("r/answers/README"), "my notes\n");
+    assert!(!dir.path("r/answers/notes.json").exists());
+    assert!(!dir.path("r/answers/empty.json").exists());
+    assert_eq!(
+        dir.read("r/quarantine/notes.json"),
+        "{\"todo\": \"run p = 7\"}\n"
+    );
+}
+
+#[test]
+fn spectrum_sets_aside_an_answer_whose_proof_is_missing_or_edited() {
+    let dir = TestDir::new();
+    let first = filled_store(&dir);
+    let name = answer_file(&first, 1)
+        .rsplit('/')
+        .next()
+        .unwrap()
+        .to_string();
+    let proof = |v: &Value| {
+        let rel = rows(v)[1]["answer"]["proof"]["file"].as_str().unwrap();
+        dir.path(&format!("r/{rel}"))
+    };
+
+    // Missing: set aside, decided again with a new proof.
+    let old = proof(&first);
+    std::fs::remove_file(&old).unwrap();
+    let v = sweep_past_bad_files(&dir, &[], &[&name]);
+    assert!(
+        v["set_aside"][0]["reason"]
+            .as_str()
+            .unwrap()
+            .contains("missing")
+    );
+    assert_eq!(rows(&v)[1]["reused"], false);
+    let new = proof(&v);
+    assert_ne!(new, old);
+    assert!(new.exists());
+
+    // Edited, size changed: the quick check of a reuse sees it; the proof is
+    // set aside with its answer.
+    let mut bytes = std::fs::read(&new).unwrap();
+    bytes.extend_from_slice(b"c edited\n");
+    std::fs::write(&new, &bytes).unwrap();
+    let proof_name = new.file_name().unwrap().to_string_lossy().into_owned();
+    let v = sweep_past_bad_files(&dir, &[], &[&name, &proof_name]);
+    assert!(!new.exists());
+    assert_eq!(
+        std::fs::read(dir.path(&format!("r/quarantine/{proof_name}"))).unwrap(),
+        bytes
+    );
+
+    // Edited, same size: only the full re-check (SHA-256, then the LRAT
+    // checker) sees it.
+    let newest = proof(&v);
+    let mut bytes = std::fs::read(&newest).unwrap();
+    let last = bytes.len() - 2; // before the final "0\n"
+    bytes[last] = if bytes[last] == b'1' { b'2' } else { b'1' };
+    std::fs::write(&newest, &bytes).unwrap();
+    let quick = dir.orbitcnf().args(BAD_STORE).arg("--json").run();
+    quick.code(0);
+    assert_eq!(rows(&quick.json())[1]["reused"], true);
+    let newest_name = newest.file_name().unwrap().to_string_lossy().into_owned();
+    let v = sweep_past_bad_files(&dir, &["--recheck"], &[&name, &newest_name]);
+    assert!(
+        v["set_aside"][0]["reason"]
+            .as_str()
+            .unwrap()
+            .contains("SHA-256"),
+        "{}",
+        v["set_aside"]
+    );
+}
+
+#[test]
+fn spectrum_says_whether_a_reused_proof_was_checked_in_this_run() {
+    let dir = TestDir::new();
+    let first = filled_store(&dir);
+    let finished = rows(&first)[1]["answer"]["finished_at"].as_str().unwrap();
+    let day = &finished[..10];
+    // Reused without --recheck: the proof file is there with its size, but
+    // the proof was checked by the first run, on its day, not now.
+    let quick = dir.orbitcnf().args(BAD_STORE).arg("--json").run();
+    quick.code(0);
+    let v = quick.json();
+    let row = &rows(&v)[1];
+    assert_eq!(row["reused"], true);
+    assert_eq!(row["checked"]["when"], "earlier");
+    assert_eq!(
+        row["checked"]["run_id"],
+        rows(&first)[1]["answer"]["run_id"]
+    );
+    let words = row["certificate"].as_str().unwrap();
+    assert!(
+        words.starts_with(&format!(
+            "LRAT proof checked on {day}, not re-checked in this run ("
+        )),
+        "{words}"
+    );
+    assert_eq!(v["summary"]["proofs_not_rechecked"], 1);
+    // The feasible row's orbit and map are checked again on every reuse.
+    assert_eq!(rows(&v)[0]["checked"]["when"], "rechecked");
+    let table = dir.orbitcnf().args(BAD_STORE).run();
+    table
+        .code(0)
+        .stdout_has("not re-checked in this run")
+        .stdout_has("1 reused proof(s) not re-checked in this run");
+    // --recheck: checked now.
+    let full = dir
+        .orbitcnf()
+        .args(BAD_STORE)
+        .args(["--recheck", "--json"])
+        .run();
+    full.code(0);
+    let v = full.json();
+    assert_eq!(rows(&v)[1]["checked"]["when"], "rechecked");
+    let words = rows(&v)[1]["certificate"].as_str().unwrap();
+    assert!(words.ends_with("; re-checked in this run"), "{words}");
+    assert!(!words.contains("not re-checked"), "{words}");
+    assert_eq!(v["summary"]["proofs_not_rechecked"], 0);
 }

@@ -14,7 +14,7 @@
 //!
 //! Source of the published values: B. Lemmens and M. Scheutzow, On the
 //! dynamics of sup-norm non-expansive maps, Ergodic Theory Dynam. Systems 25
-//! (2005) 861–871 [paper, as recorded in MATH.md §7], proving a conjecture of
+//! (2005) 861–871 [paper, as recorded in docs/math.md §7], proving a conjecture of
 //! Gunawardena and Sparrow: every period of a topical map on R^n is at most
 //! `C(n, ⌊n/2⌋)`. The periods up to the bound occur on `{0,1}^n` by the
 //! middle-layer construction [derived]: distinct points of one layer are

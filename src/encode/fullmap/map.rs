@@ -17,7 +17,7 @@
 //! function with ‖f(z) − f(z')‖∞ ≤ ‖z − z'‖∞ for every pair, and every such
 //! function satisfies them. Pairs with z = z' need nothing beyond uniqueness.
 
-use crate::cnf::{FamilyCount, Var};
+use crate::cnf::{Size, Var};
 use crate::encode::{Encoder, Term};
 use crate::varmap::Meaning;
 
@@ -51,14 +51,10 @@ pub fn add_choice(e: &mut Encoder, dom: &Domain) {
     }
 }
 
-/// Counts of [`add_choice`].
-pub fn count_choice(dom: &Domain) -> FamilyCount {
-    let n = dom.len() as u64;
-    FamilyCount {
-        family: FAMILY_CHOICE.into(),
-        vars: n * n,
-        clauses: n + n * pairs_of(dom.len()),
-    }
+/// Size of [`add_choice`]: `N²` variables, `N + N·C(N, 2)` clauses.
+pub fn size_choice(n: usize) -> Size {
+    let n64 = n as u64;
+    Size::new(n64 * n64, n64 + n64 * pairs_of(n))
 }
 
 /// Forbids every pair of images farther apart than their arguments; `m` is
@@ -79,8 +75,10 @@ pub fn add_nonexp(e: &mut Encoder, dom: &Domain, m: &[Var]) {
     }
 }
 
-/// Counts of [`add_nonexp`].
-pub fn count_nonexp(dom: &Domain) -> FamilyCount {
+/// Size of [`add_nonexp`]: for each unordered pair `{z, z'}`, the ordered
+/// pairs `(w, w')` with `d(w, w') > d(z, z')`, counted on the sorted table
+/// of all `N²` distances.
+pub fn size_nonexp(dom: &Domain) -> Size {
     let n = dom.len();
     let mut all = dom.dist.clone();
     all.sort_unstable();
@@ -92,9 +90,5 @@ pub fn count_nonexp(dom: &Domain) -> FamilyCount {
             clauses += (all.len() - at_most) as u64;
         }
     }
-    FamilyCount {
-        family: FAMILY_NONEXP.into(),
-        vars: 0,
-        clauses,
-    }
+    Size::clauses(clauses)
 }

@@ -11,7 +11,8 @@
 //! of them. `o(i, z)` (`Meaning::At`): x_i = z, for positions `0 ≤ i < p`,
 //! `pN` of them. Symmetry breaking adds `N − 1` auxiliaries.
 //!
-//! **Families** (in this order; counts in `encodings/full-map.md`):
+//! **Families** (in this order, the rows of [`FULL_MAP`]; counts in
+//! `encodings/full-map.md` and beside each size function):
 //! - `map-choice` ([`map`]): exactly one image per point;
 //! - `map-nonexp` ([`map`]): ¬m(z,w) ∨ ¬m(z',w') whenever d(w,w') > d(z,z');
 //! - `orbit-place` ([`orbit`]): exactly one point per position, at most one
@@ -34,15 +35,14 @@ pub mod orbit;
 pub mod profile;
 pub mod symmetry;
 
-use crate::cnf::{FamilyCount, Var};
-use crate::encode::{EncodeOptions, Encoder, Encoding, Symmetry, refuse_oversized};
-use crate::error::Result;
+use std::cell::OnceCell;
+
+use crate::cnf::Var;
+use crate::encode::family::{Family, always};
+use crate::encode::{EncodeOptions, Encoder, Formulation, Symmetry};
 use crate::points::PointSet;
 use crate::question::Question;
 use crate::varmap::Meaning;
-
-/// Name and version of the formulation, recorded in every CNF header.
-pub const FORMULATION: &str = "full-map/1";
 
 /// Largest `n!·2^n·N` for which the ambient isometries of D are computed.
 pub const ISOMETRY_LIMIT: u128 = 20_000_000;
@@ -87,86 +87,154 @@ impl Domain {
     }
 }
 
-/// The options as they apply to the full-map formulation of `q`: `count`
-/// switches the redundant `orbit-profile` (which needs `p ≥ 2`); the
+/// The options of the full-map formulation, whatever the question: the
 /// cycle-only families (packing, classes and the symmetry steps other than
-/// `rotate` and `isometry`) are off; `rotate` needs `p ≥ 2`, `isometry` a
-/// nontrivial, computable isometry group.
-pub fn resolve(options: &EncodeOptions, q: &Question) -> EncodeOptions {
+/// `rotate` and `isometry`) are off.
+pub fn for_domain(options: &EncodeOptions) -> EncodeOptions {
     let s = options.symmetry;
-    let isometry = s.isometry
-        && q.domain()
-            .isometries(ISOMETRY_LIMIT)
-            .is_some_and(|g| g.len() > 1);
     EncodeOptions {
-        formulation: FORMULATION.to_string(),
+        formulation: Formulation::FullMap,
         symmetry: Symmetry {
-            rotate: s.rotate && q.period >= 2,
-            isometry,
+            rotate: s.rotate,
+            isometry: s.isometry,
             ..Symmetry::NONE
         },
-        count: options.count && q.period >= 2,
+        count: options.count,
         packing: false,
         classes: false,
     }
 }
 
-/// Exact per-family counts for `q` with `o` (already resolved).
-pub fn estimate(q: &Question, o: &EncodeOptions) -> Vec<FamilyCount> {
-    let dom = Domain::of(q);
-    let mut out = vec![
-        map::count_choice(&dom),
-        map::count_nonexp(&dom),
-        orbit::count_place(&dom, q.period),
-        orbit::count_step(&dom, q.period),
-    ];
-    if o.count {
-        out.push(profile::count(&dom, q.period));
-    }
-    if o.symmetry.rotate {
-        out.push(symmetry::count_rotate(&dom, q.period));
-    }
-    if o.symmetry.isometry {
-        out.push(symmetry::count_isometry(&dom));
-    }
-    out
+/// The options as they apply to the full-map formulation of `q`: those of
+/// [`for_domain`], where `count` switches the redundant `orbit-profile`
+/// (which needs `p ≥ 2`), `rotate` needs `p ≥ 2` and `isometry` a
+/// nontrivial, computable isometry group.
+pub fn resolve(options: &EncodeOptions, q: &Question) -> EncodeOptions {
+    let mut o = for_domain(options);
+    o.symmetry.rotate &= q.period >= 2;
+    o.symmetry.isometry = o.symmetry.isometry
+        && q.domain()
+            .isometries(ISOMETRY_LIMIT)
+            .is_some_and(|g| g.len() > 1);
+    o.count &= q.period >= 2;
+    o
 }
 
-/// Encodes `q` in the full-map formulation with `o` (already resolved).
-///
-/// # Errors
-/// [`crate::Error::TooLarge`] when the formula would exceed `max_clauses`.
-pub fn encode(q: &Question, o: &EncodeOptions, max_clauses: u64) -> Result<Encoding> {
-    // map-choice alone has N·C(N, 2) ≈ N³/2 clauses: a lower bound that rules
-    // out overflow of the exact u64 counts before the N² distance table is built.
+/// The context the full-map families share: the domain with its distances,
+/// the period, and the variable tables that later families read (filled
+/// from the encoder by the first family that needs them).
+#[derive(Debug)]
+pub struct FullMap {
+    /// The domain.
+    pub dom: Domain,
+    /// The period.
+    pub p: usize,
+    map_vars: OnceCell<Vec<Var>>,
+    orbit_vars: OnceCell<Vec<Var>>,
+    minima: OnceCell<Vec<usize>>,
+}
+
+impl FullMap {
+    /// The context of `q` (its distance table is built here).
+    pub fn new(q: &Question) -> FullMap {
+        FullMap {
+            dom: Domain::of(q),
+            p: q.period,
+            map_vars: OnceCell::new(),
+            orbit_vars: OnceCell::new(),
+            minima: OnceCell::new(),
+        }
+    }
+
+    /// `m(z, w)` as registered by `map-choice` in `e`.
+    fn m(&self, e: &Encoder) -> &[Var] {
+        self.map_vars.get_or_init(|| map_vars(e, &self.dom))
+    }
+
+    /// `o(i, z)` as registered by `orbit-place` in `e`.
+    fn o(&self, e: &Encoder) -> &[Var] {
+        self.orbit_vars
+            .get_or_init(|| orbit_vars(e, &self.dom, self.p))
+    }
+
+    /// The class minima of `fm-isometry` ([`symmetry::class_minima`]).
+    fn minima(&self) -> &[usize] {
+        self.minima
+            .get_or_init(|| symmetry::class_minima(&self.dom))
+    }
+}
+
+/// The families of `full-map/1`, in the order they are added.
+pub static FULL_MAP: &[Family<FullMap>] = &[
+    Family {
+        name: map::FAMILY_CHOICE,
+        applies: always,
+        size: |x| map::size_choice(x.dom.len()),
+        add: |e, x| map::add_choice(e, &x.dom),
+    },
+    Family {
+        name: map::FAMILY_NONEXP,
+        applies: always,
+        size: |x| map::size_nonexp(&x.dom),
+        add: |e, x| {
+            let m = x.m(e);
+            map::add_nonexp(e, &x.dom, m)
+        },
+    },
+    Family {
+        name: orbit::FAMILY_PLACE,
+        applies: always,
+        size: |x| orbit::size_place(x.dom.len(), x.p),
+        add: |e, x| orbit::add_place(e, &x.dom, x.p),
+    },
+    Family {
+        name: orbit::FAMILY_STEP,
+        applies: always,
+        size: |x| orbit::size_step(x.dom.len(), x.p),
+        add: |e, x| {
+            let (m, o) = (x.m(e), x.o(e));
+            orbit::add_step(e, &x.dom, x.p, m, o)
+        },
+    },
+    Family {
+        name: profile::FAMILY,
+        applies: |_, o| o.count,
+        size: |x| profile::size(&x.dom, x.p),
+        add: |e, x| {
+            let o = x.o(e);
+            profile::add(e, &x.dom, x.p, o)
+        },
+    },
+    Family {
+        name: symmetry::ROTATE,
+        applies: |_, o| o.symmetry.rotate,
+        size: |x| symmetry::size_rotate(x.dom.len(), x.p),
+        add: |e, x| {
+            let o = x.o(e);
+            symmetry::add_rotate(e, &x.dom, x.p, o)
+        },
+    },
+    Family {
+        name: symmetry::ISOMETRY,
+        applies: |_, o| o.symmetry.isometry,
+        size: |x| symmetry::size_isometry(x.minima()),
+        add: |e, x| {
+            let o = x.o(e);
+            symmetry::add_isometry(e, x.minima(), o)
+        },
+    },
+];
+
+/// The sizes of `map-choice`, `orbit-place` and `orbit-step`, which every
+/// encoding has, in floating point and from `N` and `p` alone, before the
+/// `N²` distance table exists: a lower bound of the whole, `(clauses, variables)`.
+pub fn base_size(q: &Question) -> (f64, f64) {
     let n = q.num_points() as f64;
-    let rough = (n * n * (n - 1.0) / 2.0, n * n + q.period as f64 * n);
-    refuse_oversized(rough, max_clauses, || estimate(q, o))?;
-    let dom = Domain::of(q);
-    let p = q.period;
-    let mut enc = Encoder::new();
-    enc.family(map::FAMILY_CHOICE, |e| map::add_choice(e, &dom));
-    let m = map_vars(&enc, &dom);
-    enc.family(map::FAMILY_NONEXP, |e| map::add_nonexp(e, &dom, &m));
-    enc.family(orbit::FAMILY_PLACE, |e| orbit::add_place(e, &dom, p));
-    let o_vars = orbit_vars(&enc, &dom, p);
-    enc.family(orbit::FAMILY_STEP, |e| {
-        orbit::add_step(e, &dom, p, &m, &o_vars)
-    });
-    if o.count {
-        enc.family(profile::FAMILY, |e| profile::add(e, &dom, p, &o_vars));
-    }
-    if o.symmetry.rotate {
-        enc.family(symmetry::ROTATE, |e| {
-            symmetry::add_rotate(e, &dom, p, &o_vars)
-        });
-    }
-    if o.symmetry.isometry {
-        enc.family(symmetry::ISOMETRY, |e| {
-            symmetry::add_isometry(e, &dom, &o_vars)
-        });
-    }
-    Ok(enc.finish(q, o))
+    let p = q.period as f64;
+    let pairs = |k: f64| k * (k - 1.0) / 2.0;
+    let step = p * n * n - if q.period == 1 { n } else { 0.0 };
+    let clauses = (n + n * pairs(n)) + (p + p * pairs(n) + n * pairs(p)) + step;
+    (clauses, n * n + p * n)
 }
 
 /// `m(z, w)` for point numbers, row-major `N × N`.
@@ -204,7 +272,7 @@ pub(crate) fn pairs_of(k: usize) -> u64 {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::grid::Grid;
+    use crate::encode::Encoding;
 
     fn corners_plus_one() -> Question {
         let d = PointSet::parse("-2 -2\n-2 2\n2 -2\n2 2\n0 1\n", "t").unwrap();
@@ -240,8 +308,8 @@ mod tests {
                 ("fm-isometry", 0, 2),
             ]
         );
-        assert_eq!(e.options.formulation, FORMULATION);
-        assert_eq!(e.families, estimate(&q, &e.options));
+        assert_eq!(e.options.formulation, Formulation::FullMap);
+        assert_eq!(e.families, crate::encode::estimate(&q, &e.options));
     }
 
     /// The model of `enc` that describes the map `f` (image indices) with the
@@ -327,25 +395,6 @@ mod tests {
                 false
             });
             assert!(checked > n, "{d}: {checked} solutions checked");
-        }
-    }
-
-    #[test]
-    fn estimate_is_exact_on_boxes_and_sets() {
-        let mut qs = vec![corners_plus_one()];
-        for (spec, dim, p) in [
-            ("0..2", 2, 4),
-            ("0..1", 1, 1),
-            ("0..3,0..1", 2, 3),
-            ("5", 1, 1),
-        ] {
-            qs.push(Question::new(Grid::parse(spec, Some(dim)).unwrap(), p).unwrap());
-        }
-        let lshape = PointSet::parse("0 0\n0 1\n1 0\n", "l").unwrap();
-        qs.push(Question::on_points(lshape, 2).unwrap());
-        for q in qs {
-            let o = EncodeOptions::full_map();
-            crate::encode::tests::assert_estimate_is_exact(&q, &o);
         }
     }
 }

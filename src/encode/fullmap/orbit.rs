@@ -16,7 +16,7 @@
 //! x_0..x_{p−1} with f(x_{p−1}) = x_0 means x_0 has minimal period p, and
 //! every periodic point of minimal period p gives such positions.
 
-use crate::cnf::{FamilyCount, Var};
+use crate::cnf::{Size, Var};
 use crate::encode::{Encoder, Term};
 use crate::varmap::Meaning;
 
@@ -55,14 +55,10 @@ pub fn add_place(e: &mut Encoder, dom: &Domain, p: usize) {
     }
 }
 
-/// Counts of [`add_place`].
-pub fn count_place(dom: &Domain, p: usize) -> FamilyCount {
-    let n = dom.len() as u64;
-    FamilyCount {
-        family: FAMILY_PLACE.into(),
-        vars: p as u64 * n,
-        clauses: p as u64 + p as u64 * pairs_of(dom.len()) + n * pairs_of(p),
-    }
+/// Size of [`add_place`]: `pN` variables, `p + p·C(N, 2) + N·C(p, 2)` clauses.
+pub fn size_place(n: usize, p: usize) -> Size {
+    let (n64, p64) = (n as u64, p as u64);
+    Size::new(p64 * n64, p64 + p64 * pairs_of(n) + n64 * pairs_of(p))
 }
 
 /// `o(i, z) ∧ m(z, w) → o(i + 1, w)`; `m` and `o` are the variable tables.
@@ -85,13 +81,10 @@ pub fn add_step(e: &mut Encoder, dom: &Domain, p: usize, m: &[Var], o: &[Var]) {
     }
 }
 
-/// Counts of [`add_step`].
-pub fn count_step(dom: &Domain, p: usize) -> FamilyCount {
-    let n = dom.len() as u64;
+/// Size of [`add_step`]: `pN²` clauses, less the `N` of the form
+/// `o ∧ m(z, z) → o` that `p = 1` leaves out.
+pub fn size_step(n: usize, p: usize) -> Size {
+    let n = n as u64;
     let skipped = if p == 1 { n } else { 0 };
-    FamilyCount {
-        family: FAMILY_STEP.into(),
-        vars: 0,
-        clauses: p as u64 * n * n - skipped,
-    }
+    Size::clauses(p as u64 * n * n - skipped)
 }

@@ -23,7 +23,7 @@
 //! extends in the same way. The family is on with the option `count` (the
 //! formulation's redundant family; `--no-count` leaves it out).
 
-use crate::cnf::{FamilyCount, Var};
+use crate::cnf::{Size, Var};
 use crate::encode::{Encoder, Term, pairs};
 use crate::varmap::Meaning;
 
@@ -75,8 +75,10 @@ pub fn add(e: &mut Encoder, dom: &Domain, p: usize, o: &[Var]) {
     }
 }
 
-/// Counts of [`add`].
-pub fn count(dom: &Domain, p: usize) -> FamilyCount {
+/// Size of [`add`]: `K·(L − 1)` variables and `K·(L − 2) + C(p, 2)·Σ_{z ≠ z'}
+/// ([d(z, z') ≥ 2] + [d(z, z') < L])` clauses (the terms that fold to constants
+/// drop out).
+pub fn size(dom: &Domain, p: usize) -> Size {
     let n = dom.len();
     let l = diameter(dom);
     let k = (p / 2) as u64;
@@ -89,9 +91,8 @@ pub fn count(dom: &Domain, p: usize) -> FamilyCount {
             }
         }
     }
-    FamilyCount {
-        family: FAMILY.into(),
-        vars: k * (l.max(1) - 1) as u64,
-        clauses: k * (l.max(2) - 2) as u64 + pairs_of(p) * per_pair,
-    }
+    Size::new(
+        k * (l.max(1) - 1) as u64,
+        k * (l.max(2) - 2) as u64 + pairs_of(p) * per_pair,
+    )
 }

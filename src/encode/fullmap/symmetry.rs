@@ -23,7 +23,7 @@
 //! of z* (fm-isometry). Each break alone is sound by the same argument with
 //! G trivial or with no rotation.
 
-use crate::cnf::{FamilyCount, Var};
+use crate::cnf::{Size, Var};
 use crate::encode::{Encoder, Term};
 
 use super::{Domain, ISOMETRY_LIMIT};
@@ -53,14 +53,10 @@ pub fn add_rotate(e: &mut Encoder, dom: &Domain, p: usize, o: &[Var]) {
     }
 }
 
-/// Counts of [`add_rotate`].
-pub fn count_rotate(dom: &Domain, p: usize) -> FamilyCount {
-    let n = dom.len() as u64;
-    FamilyCount {
-        family: ROTATE.into(),
-        vars: n - 1,
-        clauses: (n - 1) + n.saturating_sub(2) + (p as u64 - 1) * n,
-    }
+/// Size of [`add_rotate`]: `N − 1` variables, `(N − 1) + (N − 2)⁺ + (p − 1)·N` clauses.
+pub fn size_rotate(n: usize, p: usize) -> Size {
+    let n = n as u64;
+    Size::new(n - 1, (n - 1) + n.saturating_sub(2) + (p as u64 - 1) * n)
 }
 
 /// For each point number, the least number in its class under the ambient
@@ -72,22 +68,18 @@ pub fn class_minima(dom: &Domain) -> Vec<usize> {
         .collect()
 }
 
-/// Adds the isometry break.
-pub fn add_isometry(e: &mut Encoder, dom: &Domain, o: &[Var]) {
-    for (z, min) in class_minima(dom).into_iter().enumerate() {
+/// Adds the isometry break, given [`class_minima`].
+pub fn add_isometry(e: &mut Encoder, minima: &[usize], o: &[Var]) {
+    for (z, &min) in minima.iter().enumerate() {
         if min != z {
             e.clause(&[o[z].neg().into()]);
         }
     }
 }
 
-/// Counts of [`add_isometry`].
-pub fn count_isometry(dom: &Domain) -> FamilyCount {
-    let minima = class_minima(dom);
+/// Size of [`add_isometry`]: one unit per point that is not the least of
+/// its class, `N` less the number of classes, given the class minima.
+pub fn size_isometry(minima: &[usize]) -> Size {
     let classes = minima.iter().enumerate().filter(|&(z, &m)| m == z).count();
-    FamilyCount {
-        family: ISOMETRY.into(),
-        vars: 0,
-        clauses: (dom.len() - classes) as u64,
-    }
+    Size::clauses((minima.len() - classes) as u64)
 }

@@ -31,7 +31,13 @@
 //!    keeps classes, so the order survives it.
 //!
 //! Steps 5 and 6 enumerate the box's isometries and are switched off
-//! (recorded in the header's options) when that group is large.
+//! (recorded in the header's options) when that group is large
+//! ([`stabilizer_group_fits`]).
+//!
+//! **Sizes.** Every family's exact number of variables and clauses is a
+//! closed formula in the sides, the period and number-theoretic functions of
+//! `p` (`sym-reverse`: a sum over the stabiliser orbits), derived in
+//! [`sizes`] and restated in `encodings/symmetry.md`.
 //!
 //! **Topical class** (`encodings/topical.md`). The one-sided condition is
 //! invariant under *all* translations, the coordinate permutations of the
@@ -45,8 +51,9 @@
 //! uses the orbits of the permutations ([`representatives_for`]); step 5
 //! the stabiliser within the permutations; step 6 is never used.
 
+pub mod sizes;
+
 use super::{Encoder, Term, coords, points, profile};
-use crate::cnf::FamilyCount;
 use crate::grid::{Grid, Point};
 use crate::isometry::{self, index_of, type_key};
 use crate::question::{MapClass, Question};
@@ -124,6 +131,13 @@ pub fn representatives_for(q: &Question) -> Vec<usize> {
         })
         .map(|(i, _)| i)
         .collect()
+}
+
+/// Whether steps 5 and 6 can list the group: `|G|·N ≤` [`STABILIZER_WORK_LIMIT`],
+/// the condition under which [`stabilizer_classes`] is `Some`, decided from
+/// the group's order without listing it.
+pub fn stabilizer_group_fits(q: &Question) -> bool {
+    isometry::group_order(&q.grid) <= STABILIZER_WORK_LIMIT / q.grid.num_points().max(1)
 }
 
 /// For each representative `r` ([`representatives_for`]), the smallest point
@@ -210,19 +224,9 @@ pub fn add_translate(e: &mut Encoder, q: &Question) {
     }
 }
 
-/// Exact counts of step 1.
-pub fn count_translate(q: &Question) -> FamilyCount {
-    let live = (0..q.dim()).filter(|&c| q.grid.side(c) > 0).count() as u64;
-    FamilyCount {
-        family: TRANSLATE.into(),
-        vars: 0,
-        clauses: live,
-    }
-}
-
 /// Step 2.
 pub fn add_multiplier(e: &mut Encoder, q: &Question) {
-    let k_max = super::profile_len(q);
+    let k_max = crate::encode::profile_len(q);
     let l = q.grid.diameter() as i64;
     for map in multiplier_maps_for(q) {
         let mut eq_prev = Term::True;
@@ -251,35 +255,6 @@ pub fn add_multiplier(e: &mut Encoder, q: &Question) {
                 eq_prev = eq;
             }
         }
-    }
-}
-
-/// Exact counts of step 2.
-pub fn count_multiplier(q: &Question) -> FamilyCount {
-    let k_max = super::profile_len(q);
-    let l = q.grid.diameter();
-    let (mut vars, mut clauses) = (0u64, 0u64);
-    for map in multiplier_maps_for(q) {
-        for k in 1..=k_max {
-            let last = k == k_max;
-            if map[k] == k {
-                if !last {
-                    vars += 1;
-                    clauses += 1;
-                }
-                continue;
-            }
-            clauses += l.saturating_sub(1);
-            if !last {
-                vars += 1;
-                clauses += l;
-            }
-        }
-    }
-    FamilyCount {
-        family: MULTIPLIER.into(),
-        vars,
-        clauses,
     }
 }
 
@@ -322,19 +297,6 @@ pub fn add_rotate(e: &mut Encoder, q: &Question) {
     }
 }
 
-/// Exact counts of step 3.
-pub fn count_rotate(q: &Question) -> FamilyCount {
-    let (ranks, n) = type_ranks(&q.grid);
-    let n = n as u64;
-    let p1 = q.period as u64 - 1;
-    let above0 = ranks.iter().filter(|&&r| r >= 1).count() as u64;
-    FamilyCount {
-        family: ROTATE.into(),
-        vars: (p1 + 1) * (n - 1),
-        clauses: p1 * (above0 + n.saturating_sub(2) + (n - 1)) + (n - 1),
-    }
-}
-
 /// Step 4.
 pub fn add_isometry(e: &mut Encoder, q: &Question) {
     let pts: Vec<Point> = q.grid.points().collect();
@@ -343,15 +305,6 @@ pub fn add_isometry(e: &mut Encoder, q: &Question) {
         .map(|&r| points::at(e, 0, &pts[r]))
         .collect();
     e.clause(&lits);
-}
-
-/// Exact counts of step 4.
-pub fn count_isometry(_q: &Question) -> FamilyCount {
-    FamilyCount {
-        family: ISOMETRY.into(),
-        vars: 0,
-        clauses: 1,
-    }
 }
 
 /// Step 5, given [`stabilizer_classes`].
@@ -368,19 +321,6 @@ pub fn add_stabilizer(e: &mut Encoder, q: &Question, classes: &[(usize, Vec<usiz
     }
 }
 
-/// Exact counts of step 5.
-pub fn count_stabilizer(classes: &[(usize, Vec<usize>)]) -> FamilyCount {
-    let clauses = classes
-        .iter()
-        .map(|(_, min)| min.iter().enumerate().filter(|(z, m)| *z != **m).count() as u64)
-        .sum();
-    FamilyCount {
-        family: STABILIZER.into(),
-        vars: 0,
-        clauses,
-    }
-}
-
 /// Step 6, given [`stabilizer_classes`].
 pub fn add_reverse(e: &mut Encoder, q: &Question, classes: &[(usize, Vec<usize>)]) {
     let pts: Vec<Point> = q.grid.points().collect();
@@ -394,21 +334,6 @@ pub fn add_reverse(e: &mut Encoder, q: &Question, classes: &[(usize, Vec<usize>)
                 e.clause(&[!x0, !x1, !xl]);
             }
         }
-    }
-}
-
-/// Exact counts of step 6.
-pub fn count_reverse(classes: &[(usize, Vec<usize>)]) -> FamilyCount {
-    let mut clauses = 0u64;
-    for (r, min) in classes {
-        for z in (0..min.len()).filter(|&z| min[z] == z && z != *r) {
-            clauses += min.iter().filter(|&&m| m < z).count() as u64;
-        }
-    }
-    FamilyCount {
-        family: REVERSE.into(),
-        vars: 0,
-        clauses,
     }
 }
 
@@ -481,19 +406,6 @@ pub fn add_sort(e: &mut Encoder, q: &Question) {
             let at = points::at(e, i, point);
             e.clause(&[!s, !at, w[i][ord[z] + 1]]);
         }
-    }
-}
-
-/// Exact counts of [`add_sort`].
-pub fn count_sort(q: &Question) -> FamilyCount {
-    let p = q.period as u64;
-    let n = q.grid.num_points() as u64;
-    let pl = p.saturating_sub(2) * q.grid.diameter();
-    let p1 = p - 1;
-    FamilyCount {
-        family: SORT.into(),
-        vars: 1 + pl + p1 * (n - 1),
-        clauses: 1 + 2 * pl + p1 * (2 * n - 1),
     }
 }
 

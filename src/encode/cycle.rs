@@ -1,0 +1,213 @@
+//! The family tables of the two cycle formulations, `isometric-cycle/1`
+//! ([`ISOMETRIC_CYCLE`]) and `topical-cycle/1` ([`TOPICAL_CYCLE`]).
+//!
+//! Each row names a family, says when it is part of an encoding (from the
+//! options as [`super::EncodeOptions::resolve`] left them), gives its exact
+//! size from the question alone, and emits it; rows run in table order, which
+//! is also the order of the clauses in the CNF. The rows are defined once
+//! here and listed by both tables where both formulations have them. The
+//! families that resolution always switches off for topical questions
+//! (`count-occupancy`, `pack-*`, `sym-reverse`) are not in the topical table.
+
+use std::cell::OnceCell;
+
+use super::family::{Family, always};
+use super::{classes, coords, count, distance, edges, packing, points, profile, symmetry, topical};
+use crate::question::Question;
+
+/// The context the cycle families share: the question, and what two
+/// families need alike, computed at most once per encoding.
+#[derive(Debug)]
+pub struct Cycle {
+    /// The question encoded.
+    pub q: Question,
+    stabilizer: OnceCell<Vec<(usize, Vec<usize>)>>,
+    ruled_out: OnceCell<Vec<(u64, usize)>>,
+}
+
+impl Cycle {
+    /// The context of `q`; nothing is computed yet.
+    pub fn new(q: &Question) -> Cycle {
+        Cycle {
+            q: q.clone(),
+            stabilizer: OnceCell::new(),
+            ruled_out: OnceCell::new(),
+        }
+    }
+
+    /// The orbits of the stabilisers ([`symmetry::stabilizer_classes`]),
+    /// read by `sym-stabilizer` and `sym-reverse` (empty when the group is
+    /// too large, in which case resolution switched both off).
+    pub fn stabilizer_classes(&self) -> &[(usize, Vec<usize>)] {
+        self.stabilizer
+            .get_or_init(|| symmetry::stabilizer_classes(&self.q).unwrap_or_default())
+    }
+
+    /// The profiles `pack-classes` excludes ([`classes::ruled_out`]), found
+    /// by a search that both its size and its clauses need.
+    pub fn ruled_out(&self) -> &[(u64, usize)] {
+        self.ruled_out.get_or_init(|| classes::ruled_out(&self.q))
+    }
+}
+
+/// `coord-order` ([`coords`]).
+const COORD_ORDER: Family<Cycle> = Family {
+    name: coords::FAMILY,
+    applies: always,
+    size: |x| coords::size(&x.q),
+    add: |e, x| coords::add(e, &x.q),
+};
+/// `profile` ([`profile`]).
+const PROFILE: Family<Cycle> = Family {
+    name: profile::FAMILY,
+    applies: always,
+    size: |x| profile::size(&x.q),
+    add: |e, x| profile::add(e, &x.q),
+};
+/// `point-eq` ([`points`]), when a later family reads the point indicators.
+const POINT_EQ: Family<Cycle> = Family {
+    name: points::FAMILY,
+    applies: |_, o| o.needs_points(),
+    size: |x| points::size(&x.q),
+    add: |e, x| points::add(e, &x.q),
+};
+/// `sym-translate` ([`symmetry`], step 1).
+const SYM_TRANSLATE: Family<Cycle> = Family {
+    name: symmetry::TRANSLATE,
+    applies: |_, o| o.symmetry.translate,
+    size: |x| symmetry::sizes::translate(&x.q),
+    add: |e, x| symmetry::add_translate(e, &x.q),
+};
+/// `sym-multiplier` ([`symmetry`], step 2).
+const SYM_MULTIPLIER: Family<Cycle> = Family {
+    name: symmetry::MULTIPLIER,
+    applies: |_, o| o.symmetry.multiplier,
+    size: |x| symmetry::sizes::multiplier(&x.q),
+    add: |e, x| symmetry::add_multiplier(e, &x.q),
+};
+/// `sym-rotate` ([`symmetry`], step 3).
+const SYM_ROTATE: Family<Cycle> = Family {
+    name: symmetry::ROTATE,
+    applies: |_, o| o.symmetry.rotate,
+    size: |x| symmetry::sizes::rotate(&x.q),
+    add: |e, x| symmetry::add_rotate(e, &x.q),
+};
+/// `sym-isometry` ([`symmetry`], step 4).
+const SYM_ISOMETRY: Family<Cycle> = Family {
+    name: symmetry::ISOMETRY,
+    applies: |_, o| o.symmetry.isometry,
+    size: |_| symmetry::sizes::isometry(),
+    add: |e, x| symmetry::add_isometry(e, &x.q),
+};
+/// `sym-stabilizer` ([`symmetry`], step 5).
+const SYM_STABILIZER: Family<Cycle> = Family {
+    name: symmetry::STABILIZER,
+    applies: |_, o| o.symmetry.stabilizer,
+    size: |x| symmetry::sizes::stabilizer(&x.q),
+    add: |e, x| symmetry::add_stabilizer(e, &x.q, x.stabilizer_classes()),
+};
+
+/// The families of `isometric-cycle/1`, in the order they are added.
+pub static ISOMETRIC_CYCLE: &[Family<Cycle>] = &[
+    COORD_ORDER,
+    PROFILE,
+    Family {
+        name: distance::FAMILY_UPPER,
+        applies: always,
+        size: |x| distance::size_upper(&x.q),
+        add: |e, x| distance::add_upper(e, &x.q),
+    },
+    Family {
+        name: distance::FAMILY_LOWER,
+        applies: always,
+        size: |x| distance::size_lower(&x.q),
+        add: |e, x| distance::add_lower(e, &x.q),
+    },
+    POINT_EQ,
+    Family {
+        name: count::FAMILY,
+        applies: |_, o| o.count,
+        size: |x| count::size(&x.q),
+        add: |e, x| count::add(e, &x.q),
+    },
+    Family {
+        name: packing::FAMILY,
+        applies: |_, o| o.packing,
+        size: |x| packing::size(&x.q),
+        add: |e, x| packing::add(e, &x.q),
+    },
+    Family {
+        name: classes::FAMILY,
+        applies: |_, o| o.classes,
+        size: |x| classes::size(x.ruled_out()),
+        add: |e, x| classes::add(e, &x.q, x.ruled_out()),
+    },
+    Family {
+        name: edges::FAMILY,
+        applies: |_, o| o.classes,
+        size: |x| edges::size(&x.q),
+        add: |e, x| edges::add(e, &x.q),
+    },
+    SYM_TRANSLATE,
+    SYM_MULTIPLIER,
+    SYM_ROTATE,
+    SYM_ISOMETRY,
+    SYM_STABILIZER,
+    Family {
+        name: symmetry::REVERSE,
+        applies: |_, o| o.symmetry.reverse,
+        size: |x| symmetry::sizes::reverse(x.stabilizer_classes()),
+        add: |e, x| symmetry::add_reverse(e, &x.q, x.stabilizer_classes()),
+    },
+];
+
+/// The families of `topical-cycle/1`, in the order they are added.
+pub static TOPICAL_CYCLE: &[Family<Cycle>] = &[
+    COORD_ORDER,
+    PROFILE,
+    Family {
+        name: topical::FAMILY_UPPER,
+        applies: always,
+        size: |x| topical::size_upper(&x.q),
+        add: |e, x| topical::add_upper(e, &x.q),
+    },
+    Family {
+        name: topical::FAMILY_LOWER,
+        applies: always,
+        size: |x| topical::size_lower(&x.q),
+        add: |e, x| topical::add_lower(e, &x.q),
+    },
+    POINT_EQ,
+    SYM_TRANSLATE,
+    SYM_MULTIPLIER,
+    SYM_ROTATE,
+    Family {
+        name: symmetry::SORT,
+        applies: |_, o| o.symmetry.rotate,
+        size: |x| symmetry::sizes::sort(&x.q),
+        add: |e, x| symmetry::add_sort(e, &x.q),
+    },
+    SYM_ISOMETRY,
+    SYM_STABILIZER,
+];
+
+/// The sizes of the families every encoding of `q` has (`coord-order`,
+/// `profile` and the two distance families), in floating point so that no
+/// question can overflow them: `(clauses, variables)`. Equal to the sum of
+/// those rows' sizes whenever that fits in `u64` (a test checks this), so a
+/// formula refused on this figure alone is refused on its exact base size.
+pub fn base_size(q: &Question) -> (f64, f64) {
+    let p = q.period as f64;
+    let pairs = p * (p - 1.0) / 2.0;
+    let k = super::profile_len(q) as f64;
+    let l = q.grid.diameter() as f64;
+    let sides: Vec<f64> = (0..q.dim()).map(|c| q.grid.side(c) as f64).collect();
+    let sum = |f: &dyn Fn(f64) -> f64| sides.iter().map(|&s| f(s)).sum::<f64>();
+    // coord-order + profile + upper + lower (+ the topical lower bound's second cover).
+    let covers = if q.class.is_default() { l } else { 2.0 * l };
+    let clauses = p * sum(&|s| (s - 1.0).max(0.0))
+        + k * l
+        + pairs * (sum(&|s| s * (s - 1.0)) + covers + sum(&|s| s * (s + 3.0)));
+    let vars = p * sum(&|s| s) + k * l + pairs * 2.0 * sum(&|s| s);
+    (clauses, vars)
+}

@@ -1,0 +1,196 @@
+//! The bytes of rendered CNF files, pinned by digest.
+//!
+//! A refactoring of the encoder must not change a single clause, variable
+//! number or header line: a changed CNF means a new formulation version
+//! (DEVELOPERS.md, "The formulation in brief"). Each case renders a question
+//! with [`crate::dimacs::render_cnf`] and compares the SHA-256 of the bytes
+//! (with the tool version blanked, so that a release does not move the pins)
+//! with a literal recorded from the encoder before the family table existed.
+
+use super::{EncodeOptions, Symmetry, encode};
+use crate::grid::Grid;
+use crate::points::PointSet;
+use crate::question::{MapClass, Question};
+
+fn boxed(spec: &str, dim: usize, p: usize) -> Question {
+    Question::new(Grid::parse(spec, Some(dim)).unwrap(), p).unwrap()
+}
+
+fn digest(q: &Question, o: &EncodeOptions) -> String {
+    let e = encode(q, o, u64::MAX).unwrap();
+    let text = String::from_utf8(crate::dimacs::render_cnf(&e)).unwrap();
+    let version = format!("version={} ", crate::dimacs::VERSION);
+    let blanked = text.replacen(&version, "version=X ", 1);
+    crate::artifact::sha256_hex(blanked.as_bytes())
+}
+
+/// The questions and options whose CNF bytes are pinned: every family of
+/// every formulation occurs in at least one of them.
+fn cases() -> Vec<(&'static str, Question, EncodeOptions)> {
+    let five = PointSet::parse("-2 -2\n-2 2\n2 -2\n2 2\n0 1\n", "t").unwrap();
+    let stab = EncodeOptions {
+        symmetry: Symmetry::parse("isometry,stabilizer,reverse").unwrap(),
+        ..EncodeOptions::default()
+    };
+    vec![
+        (
+            "cube-8-default",
+            boxed("-1..1", 3, 8),
+            EncodeOptions::default(),
+        ),
+        ("cube-8-plain", boxed("-1..1", 3, 8), EncodeOptions::plain()),
+        (
+            "4cube-17-default",
+            boxed("-1..1", 4, 17),
+            EncodeOptions::default(),
+        ),
+        (
+            "4cube-18-default",
+            boxed("-1..1", 4, 18),
+            EncodeOptions::default(),
+        ),
+        (
+            "mixed-7-default",
+            boxed("0..1,-1..1,0..3", 3, 7),
+            EncodeOptions::default(),
+        ),
+        ("square-5-stabilizer", boxed("-1..1", 2, 5), stab),
+        ("point-1", boxed("5..5", 2, 1), EncodeOptions::default()),
+        (
+            "topical-5-default",
+            boxed("0..2", 3, 5).with_class(MapClass::Topical),
+            EncodeOptions::default(),
+        ),
+        (
+            "topical-4-plain",
+            boxed("0..1,-1..1,0..3", 3, 4).with_class(MapClass::Topical),
+            EncodeOptions::plain(),
+        ),
+        (
+            "fullmap-five-4",
+            Question::on_points(five, 4).unwrap(),
+            EncodeOptions::default(),
+        ),
+        (
+            "fullmap-box-4",
+            boxed("0..2", 2, 4),
+            EncodeOptions::full_map(),
+        ),
+    ]
+}
+
+#[test]
+fn rendered_cnf_bytes_are_unchanged() {
+    let want = [
+        (
+            "cube-8-default",
+            "76d22ea062edf4b097c8e58ac62f2896142fe59fe2dcfe13ed2fd392c6a68d97",
+        ),
+        (
+            "cube-8-plain",
+            "04b42b06bc66f341965469cab67632ddcb6765bd00cecfa0ceeee0b5316c6175",
+        ),
+        (
+            "4cube-17-default",
+            "f52284ecc2a1f369ee3894c437495184e3e2edac9dade1f520b95fb1d1cea441",
+        ),
+        (
+            "4cube-18-default",
+            "7632323b6e22bba2f889494fee94913b7e8fa0bff32e35993756c4d4accc3438",
+        ),
+        (
+            "mixed-7-default",
+            "d23ec4ffdfee559290e901062536e418aed09599ecefd8cf70058cfaceb8b40e",
+        ),
+        (
+            "square-5-stabilizer",
+            "0c8b8497f3eb5fcf3be6e634c373df2c8687e6881ba88c5702f39c9a93648a18",
+        ),
+        (
+            "point-1",
+            "f9136a6a916c7ef41874ee0c002e08b6caebd667b61f73943ac1a7ccf1121554",
+        ),
+        (
+            "topical-5-default",
+            "dfc8dcfc592a35e951e079511e1b27bb253fcf8acb582a55866b148dc5ecf541",
+        ),
+        (
+            "topical-4-plain",
+            "96993d99417ee59ca85575ec209a011d1d3fea7e129e527b4209bbbf2d04f3b8",
+        ),
+        (
+            "fullmap-five-4",
+            "353c5a02edf6ae1625de04ddf8ea23c50ce5f4d5a602c825f56a76847207f2d3",
+        ),
+        (
+            "fullmap-box-4",
+            "b5726302213190423734e9d4b322d1b559d4d1e5297216447aee085f06a30966",
+        ),
+    ];
+    let got: Vec<(&str, String)> = cases()
+        .into_iter()
+        .map(|(name, q, o)| (name, digest(&q, &o)))
+        .collect();
+    for ((name, d), (wname, w)) in got.iter().zip(want) {
+        assert_eq!(*name, wname);
+        assert_eq!(d, w, "{name}: the CNF bytes changed");
+    }
+}
+
+/// The store keys of the same cases ([`crate::store::key`] of the question
+/// record and the resolved options): a store written before the formulation
+/// became a type must still find its answers.
+#[test]
+fn store_keys_are_unchanged() {
+    let want = [
+        (
+            "cube-8-default",
+            "045864f42f2d03e13596203d8866132ee4d3b0d8749c6b145237ad5c63d5462a",
+        ),
+        (
+            "cube-8-plain",
+            "ddc47b2ca49ea25043b37fe65711e5cc568057d3b237e163b919b995037ba154",
+        ),
+        (
+            "4cube-17-default",
+            "8333e3a6ff4f51d9be67e03f46f4ebedc118173ea96be741936a1d94edb199f4",
+        ),
+        (
+            "4cube-18-default",
+            "7b11c391a29adc220337a6e4a0977344150407c435abde4ea6adb34c63802f04",
+        ),
+        (
+            "mixed-7-default",
+            "b5bebe3ac86dd11f932efdebf020658981b2ca4536dbdd4854c873738daf4088",
+        ),
+        (
+            "square-5-stabilizer",
+            "9dfd03a31c2c52a5a3d9970860ed252d4d17f9ee68378fa7a43d2a9c7bb0cd60",
+        ),
+        (
+            "point-1",
+            "10ace28e3fae7709ab3087923508ef43b20cd3cd1803d26f6ba83b4f06e1bd0f",
+        ),
+        (
+            "topical-5-default",
+            "3ae80e785c9ff501aaa3b38614831a3039fa975792fc3c77666c128419246fd8",
+        ),
+        (
+            "topical-4-plain",
+            "dde21d552a76f76262655d33fbf5b1224ab5b7528583b222e28c754eb5d3e146",
+        ),
+        (
+            "fullmap-five-4",
+            "ee2b9cf4882b73df6c679c7f350b36cc2b966a1ebc8a55837fe4a4e19a208179",
+        ),
+        (
+            "fullmap-box-4",
+            "db6cdd83dd2228812e9bbc44559d10c693c1f02151b94b71b18e7770308d1498",
+        ),
+    ];
+    for ((name, q, o), (wname, w)) in cases().into_iter().zip(want) {
+        assert_eq!(name, wname);
+        let k = crate::store::key(&q.record(), &o.resolve(&q));
+        assert_eq!(k, w, "{name}: the store key changed");
+    }
+}

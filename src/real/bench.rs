@@ -3,9 +3,10 @@
 //! certificate check included, against z3 on the same question with minimal
 //! symmetry breaking (`scripts/real_z3.py`).
 //!
-//! Reference figures for z3 measured on one core of this machine (MATH.md
-//! §10): about 33, 86, 159 and 194 s. Timing is wall-clock; the machine is
-//! shared, so runs should be compared under the same load.
+//! The issue quotes z3 at about 33, 86, 159 and 194 s on one core; the
+//! figures measured here for both are in `encodings/real-space.md` §8.1.
+//! Timing is wall-clock; the machine is shared, so runs should be compared
+//! under the same load.
 
 use std::process::Command;
 use std::time::{Duration, Instant};

@@ -2,7 +2,7 @@
 //!
 //! The question ([`decide`]): does `(R^n, ‖·‖∞)` hold an isometric p-cycle,
 //! i.e. does some subset of R^n carry a sup-norm nonexpansive map with a
-//! point of minimal period `p` (`/work/shared/MATH.md` §1, §10;
+//! point of minimal period `p` (`docs/math.md` §1, §10;
 //! `encodings/real-space.md`)?
 //!
 //! * [`skeleton`]: the propositional abstraction (which coordinate and sign
@@ -16,7 +16,7 @@
 //! * [`certificate`] and [`farkas_check`]: the certificate of an infeasible
 //!   answer and its checkers, which share nothing with the search.
 //!
-//! A feasible answer is an integer orbit (MATH.md §10: rational profile,
+//! A feasible answer is an integer orbit (docs/math.md §10: rational profile,
 //! scaled to integers; shortest-path potentials per coordinate), checked by
 //! [`crate::verify::check_orbit`]. An infeasible answer is returned only
 //! after [`certificate::check_dir`] has accepted the certificate, unless

@@ -12,7 +12,7 @@ fn assert_feasible(r: &RealReport) {
     match &r.answer {
         RealAnswer::Feasible { orbit, check } => {
             assert_eq!(orbit.len(), r.p);
-            // MATH.md §10: every coordinate spans at most max D
+            // docs/math.md §10: every coordinate spans at most max D
             let maxd = check.profile.iter().copied().max().unwrap_or(0);
             for c in 0..r.n {
                 let lo = orbit.iter().map(|x| x[c]).min().unwrap();
@@ -46,7 +46,7 @@ fn assert_certified_infeasible(r: &RealReport) {
     }
 }
 
-/// Periods 1..2^n occur (MATH.md §5: any cyclic order of {0,1}^n's
+/// Periods 1..2^n occur (docs/math.md §5: any cyclic order of {0,1}^n's
 /// points, [derived]); above the bound of B. Lemmens and M. Scheutzow, Ergodic
 /// Theory Dynam. Systems 25 (2005) 861–871 [paper], max_k 2^k C(n,k) = 2 and 4
 /// for n = 1, 2, no period occurs. We refute two periods past the bound.
@@ -62,7 +62,7 @@ fn dimensions_one_and_two_match_the_published_periods() {
     }
 }
 
-/// Periods 1..8 occur in R^3 (MATH.md §5); the refutations of 9..12 (the
+/// Periods 1..8 occur in R^3 (docs/math.md §5); the refutations of 9..12 (the
 /// theorem of R. Lyons and R. D. Nussbaum, 1992 [recalled], with the bound 12 of
 /// Lemmens and Scheutzow) are in the ignored test below.
 #[test]

@@ -129,6 +129,14 @@ pub enum Error {
     #[error("decoding the model: {0}")]
     Decode(String),
 
+    /// A real-space certificate does not fit its question (another skeleton,
+    /// another question, a missing part).
+    #[error("certificate rejected: {0}")]
+    Certificate(String),
+
+    /// A theory lemma of a real-space certificate was rejected by the Farkas checker.
+    #[error("lemma rejected: {0}")]
+    Farkas(#[from] crate::real::farkas_check::FarkasError),
     /// A report, table or picture cannot be made from its input: `what` is
     /// the output asked for, `reason` what the input lacks or contradicts.
     #[error("cannot make {what}: {reason}")]

@@ -33,6 +33,7 @@ pub mod pool;
 pub mod progress;
 pub mod proof;
 pub mod question;
+pub mod real;
 pub mod render;
 pub mod report;
 pub mod solve;

@@ -315,7 +315,7 @@ impl Report {
                     info.lrat.steps, info.lrat_bytes, info.check_seconds
                 );
                 if let Some(f) = &info.lrat_file {
-                    let _ = writeln!(s, "             LRAT written to {}", f.display());
+                    let _ = writeln!(s, "             LRAT proof file {}", f.display());
                 }
                 if let Some(f) = &info.drat_file {
                     let _ = writeln!(

@@ -74,6 +74,18 @@ pub enum Meaning {
         /// The image.
         w: Vec<i64>,
     },
+    /// `x_{j,c} − x_{i,c} = D_κ(i,j)`: over R^n (formulation `real-skeleton/1`,
+    /// `encodings/real-space.md`) the pair `(i, j)` is tight upward from `i` to
+    /// `j` in coordinate `c`, i.e. coordinate `c` attains the pair's distance
+    /// with `x_j` above `x_i`. `i ≠ j`; both orders occur.
+    Tight {
+        /// The lower end.
+        i: usize,
+        /// The upper end.
+        j: usize,
+        /// Coordinate.
+        c: usize,
+    },
     /// An auxiliary variable of a constraint family, with no meaning for decoding.
     Aux {
         /// The family's label.
@@ -92,6 +104,7 @@ impl fmt::Display for Meaning {
             Meaning::Value { i, c, value } => write!(f, "value i={i} c={c} eq={value}"),
             Meaning::At { i, z } => write!(f, "at i={i} z={}", join(z)),
             Meaning::Map { z, w } => write!(f, "map z={} w={}", join(z), join(w)),
+            Meaning::Tight { i, j, c } => write!(f, "tight i={i} j={j} c={c}"),
             Meaning::Aux { family, index } => write!(f, "aux family={family} index={index}"),
         }
     }
@@ -195,6 +208,14 @@ impl FromStr for Meaning {
                 Ok(Meaning::Map {
                     z: point_field(kind, "z", take("z")?)?,
                     w: point_field(kind, "w", take("w")?)?,
+                })
+            }
+            "tight" => {
+                expect(&["i", "j", "c"])?;
+                Ok(Meaning::Tight {
+                    i: idx("i")?,
+                    j: idx("j")?,
+                    c: idx("c")?,
                 })
             }
             "aux" => {
@@ -316,6 +337,7 @@ mod tests {
                 z: vec![-2, 2],
                 w: vec![0, 1],
             },
+            Meaning::Tight { i: 4, j: 1, c: 3 },
         ];
         for m in all {
             let text = m.to_string();

@@ -85,9 +85,29 @@ pub struct DomainArgs {
     /// answered with the full-map formulation (encodings/full-map.md).
     #[arg(long, value_name = "FILE", conflicts_with_all = ["grid", "dim"])]
     pub points: Option<PathBuf>,
+    /// Ask about all of R^n (with --dim n) instead of a grid: does some
+    /// subset of R^n carry a nonexpansive map of minimal period p? Decided
+    /// exactly, with no grid, by the real-space search (encodings/real-space.md);
+    /// an infeasible answer comes with Farkas lemmas and an LRAT proof.
+    #[arg(long, requires = "dim", conflicts_with_all = ["grid", "points"])]
+    pub real: bool,
 }
 
 impl DomainArgs {
+    /// The dimension of a real-space question (`--real --dim n`), if it is one.
+    ///
+    /// # Errors
+    /// A dimension of 0.
+    pub fn real_dim(&self) -> Result<Option<usize>, Error> {
+        match (self.real, self.dim) {
+            (false, _) => Ok(None),
+            (true, Some(0) | None) => Err(Error::Question(
+                "a real-space question needs a dimension of at least 1".into(),
+            )),
+            (true, Some(n)) => Ok(Some(n)),
+        }
+    }
+
     /// Whether the domain is a point set.
     pub fn is_points(&self) -> bool {
         self.points.is_some()

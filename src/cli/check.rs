@@ -116,6 +116,9 @@ pub struct CheckBundleArgs {
 
 /// Runs `check-bundle`.
 pub fn run_check_bundle(a: CheckBundleArgs) -> Outcome {
+    if super::real::is_real_bundle(&a.dir) {
+        return super::real::check_bundle(&a.dir, a.json);
+    }
     let c = bundle::check_bundle(&a.dir)?;
     print_either(
         a.json,

@@ -8,6 +8,8 @@ use clap::Args;
 
 use orbitcnf::decide::{self, BundleOutcome, Outputs, Request};
 use orbitcnf::proof::LratFormat;
+use orbitcnf::question::MapClass;
+use orbitcnf::real::Handoff;
 use orbitcnf::solve::Limits;
 use orbitcnf::{Error, Report, dimacs, encode};
 
@@ -64,10 +66,19 @@ pub struct DecideArgs {
     certify: CertifyArgs,
     #[command(flatten)]
     scale: ScaleArgs,
+    /// With --real and --solver external:'COMMAND': search with the bundled
+    /// CDCL(T) for SECS seconds, then hand the propositional refutation of
+    /// the skeleton plus the lemmas found to COMMAND (run as COMMAND CNF
+    /// PROOF; a DRAT proof, converted to LRAT by `rate` and checked).
+    #[arg(long, value_name = "SECS", value_parser = parse_seconds, requires = "real")]
+    handoff_after: Option<Duration>,
 }
 
 /// Runs `decide`.
 pub fn run_decide(a: DecideArgs) -> Outcome {
+    if let Some(n) = a.question.domain.real_dim()? {
+        return run_real(n, a);
+    }
     let question = a.question.question()?;
     let options = a.encoding.options(question.points.is_some())?;
     let certify = !a.certify.no_certify;
@@ -106,6 +117,64 @@ pub fn run_decide(a: DecideArgs) -> Outcome {
         print_either(a.json, || d.report.to_json(), || d.report.to_text())?;
     }
     Ok(code(d.report.exit_code()))
+}
+
+/// `decide --real`: the real-space question, with the flags that apply to it.
+fn run_real(n: usize, a: DecideArgs) -> Outcome {
+    let grid_only = [
+        (a.proof.is_some(), "--proof"),
+        (a.drat.is_some(), "--drat"),
+        (
+            a.scale.jobs != 1 || a.scale.cubes.is_some(),
+            "--jobs/--cubes",
+        ),
+        (!a.scale.solver.proof_arg.is_empty(), "--proof-arg"),
+        (a.encoding.symmetry != "all", "--symmetry"),
+        (
+            a.encoding.no_count || a.encoding.no_packing || a.encoding.no_classes,
+            "--no-count/--no-packing/--no-classes",
+        ),
+        (a.encoding.formulation.is_some(), "--formulation"),
+        (a.question.class.class != MapClass::Nonexpansive, "--class"),
+    ];
+    if let Some((_, flag)) = grid_only.iter().find(|(on, _)| *on) {
+        let hint = if flag.starts_with("--proof") || flag.starts_with("--drat") {
+            "; a real-space certificate (Farkas lemmas plus an LRAT proof) is kept with --bundle DIR"
+        } else {
+            ""
+        };
+        return Err(Error::Options(format!(
+            "{flag} applies to grid questions, not to --real{hint}"
+        )));
+    }
+    let solver = a.scale.solver.solver.trim();
+    let handoff = match (solver.strip_prefix("external:"), a.handoff_after) {
+        _ if solver == "bundled" => None,
+        (Some(cmd), after) => Some(Handoff {
+            command: cmd.to_string(),
+            after: after.unwrap_or(Duration::from_secs(10)),
+        }),
+        (None, _) => {
+            return Err(Error::Options(format!(
+                "unknown solver {solver:?}; write --solver bundled or --solver external:'COMMAND ARGS'"
+            )));
+        }
+    };
+    if handoff.is_none() && a.handoff_after.is_some() {
+        return Err(Error::Options(
+            "--handoff-after needs an external solver: --solver external:'cadical -q'".into(),
+        ));
+    }
+    super::real::decide(super::real::RealDecide {
+        n,
+        p: a.question.period,
+        time_limit: a.time_limit,
+        json: a.json,
+        progress: a.progress.mode(a.json),
+        bundle: a.bundle,
+        certify: !a.certify.no_certify,
+        handoff,
+    })
 }
 
 /// `decide --map`: the explicit map of a feasible answer, added to the JSON

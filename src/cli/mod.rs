@@ -7,6 +7,7 @@ pub mod bench;
 pub mod check;
 pub mod cubes;
 pub mod decide;
+pub mod real;
 pub mod report;
 pub mod sweep;
 

@@ -125,6 +125,9 @@ pub struct SpectrumArgs {
 
 /// Runs `spectrum`.
 pub fn run(a: SpectrumArgs) -> Outcome {
+    if let Some(n) = a.domain.real_dim()? {
+        return run_real(n, a);
+    }
     let mut cfg = match a.domain.point_set()? {
         Some(d) => {
             if a.class.class != MapClass::Nonexpansive {
@@ -160,4 +163,50 @@ pub fn run(a: SpectrumArgs) -> Outcome {
         s.to_table()
     })?;
     Ok(if s.summary.all_decided { 0 } else { 2 })
+}
+
+/// `spectrum --real --dim n`: every period over all of R^n, in turn.
+fn run_real(n: usize, a: SpectrumArgs) -> Outcome {
+    let grid_only = [
+        (a.class.class != MapClass::Nonexpansive, "--class"),
+        (a.csv, "--csv"),
+        (a.markdown.is_some(), "--markdown"),
+        (a.jobs.is_some(), "--jobs"),
+    ];
+    if let Some((_, flag)) = grid_only.iter().find(|(on, _)| *on) {
+        return Err(Error::Options(format!(
+            "{flag} applies to grid spectra, not to --real"
+        )));
+    }
+    let periods = match &a.periods {
+        Some(list) => spectrum::parse_periods(list)?,
+        None => {
+            let top =
+                usize::try_from(orbitcnf::theory::lemmens_scheutzow_bound(n)).unwrap_or(usize::MAX);
+            (1..=top).collect()
+        }
+    };
+    let cfg = orbitcnf::real::sweep::RealSweep {
+        n,
+        periods,
+        options: orbitcnf::real::RealOptions::new(),
+        time_limit: a.time_limit,
+        store: (!a.no_store).then(|| a.store.clone()),
+        recheck: a.recheck,
+    };
+    let mut line = super::real::progress_line(a.progress.mode(a.json));
+    let s = orbitcnf::real::sweep::run(&cfg, &mut |p, pr| {
+        line(&format!(
+            "real space R^{n} p = {p}: {:.0} s, {} conflicts, {} lemmas",
+            pr.seconds, pr.stats.conflicts, pr.lemmas
+        ));
+    });
+    line("");
+    let s = s?;
+    print(&if a.json {
+        s.to_json() + "\n"
+    } else {
+        s.to_table()
+    })?;
+    Ok(if s.all_decided { 0 } else { 2 })
 }

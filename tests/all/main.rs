@@ -24,6 +24,8 @@ mod mathdoc;
 mod points;
 mod proofs;
 mod published;
+mod real;
+mod real_cli;
 mod render;
 mod scaleout;
 mod spectrum;

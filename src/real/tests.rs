@@ -1,0 +1,326 @@
+//! Tests of the whole real-space pipeline, against brute force and published facts.
+
+use super::*;
+use crate::brute;
+use crate::cnf::Var;
+
+fn run(n: usize, p: usize) -> RealReport {
+    decide(n, p, &RealOptions::new(), None, &mut |_| {}).unwrap()
+}
+
+fn assert_feasible(r: &RealReport) {
+    match &r.answer {
+        RealAnswer::Feasible { orbit, check } => {
+            assert_eq!(orbit.len(), r.p);
+            // docs/math.md §10: every coordinate spans at most max D
+            let maxd = check.profile.iter().copied().max().unwrap_or(0);
+            for c in 0..r.n {
+                let lo = orbit.iter().map(|x| x[c]).min().unwrap();
+                let hi = orbit.iter().map(|x| x[c]).max().unwrap();
+                assert!(hi - lo <= maxd, "coordinate {c} spans {} > {maxd}", hi - lo);
+            }
+            // a second, local check of the isometric-cycle condition
+            let d =
+                |a: &[i64], b: &[i64]| a.iter().zip(b).map(|(x, y)| (x - y).abs()).max().unwrap();
+            for k in 1..r.p {
+                for i in 0..r.p {
+                    assert_eq!(d(&orbit[i], &orbit[(i + k) % r.p]), d(&orbit[0], &orbit[k]));
+                }
+                assert!(d(&orbit[0], &orbit[k]) > 0);
+            }
+        }
+        a => panic!("n={} p={}: expected feasible, got {a:?}", r.n, r.p),
+    }
+}
+
+fn assert_certified_infeasible(r: &RealReport) {
+    match &r.answer {
+        RealAnswer::Infeasible { check: Some(c), .. } => {
+            assert_eq!((c.n, c.p), (r.n, r.p));
+            assert!(c.lrat.added >= 1);
+        }
+        a => panic!(
+            "n={} p={}: expected a certified refutation, got {a:?}",
+            r.n, r.p
+        ),
+    }
+}
+
+/// Periods 1..2^n occur (docs/math.md §5: any cyclic order of {0,1}^n's
+/// points, [derived]); above the bound of B. Lemmens and M. Scheutzow, Ergodic
+/// Theory Dynam. Systems 25 (2005) 861–871 [paper], max_k 2^k C(n,k) = 2 and 4
+/// for n = 1, 2, no period occurs. We refute two periods past the bound.
+#[test]
+fn dimensions_one_and_two_match_the_published_periods() {
+    for (n, top) in [(1usize, 2usize), (2, 4)] {
+        for p in 1..=top {
+            assert_feasible(&run(n, p));
+        }
+        for p in top + 1..=top + 2 {
+            assert_certified_infeasible(&run(n, p));
+        }
+    }
+}
+
+/// Periods 1..8 occur in R^3 (docs/math.md §5); the refutations of 9..12 (the
+/// theorem of R. Lyons and R. D. Nussbaum, 1992 [recalled], with the bound 12 of
+/// Lemmens and Scheutzow) are in the ignored test below.
+#[test]
+fn dimension_three_has_every_period_up_to_eight() {
+    for p in 1..=8 {
+        assert_feasible(&run(3, p));
+    }
+}
+
+// n = 3, p = 9..12 (R. Lyons and R. D. Nussbaum, 1992 [recalled]) are in
+// tests/all/real_cli.rs, one ignored test per period, through the binary
+// with the hand-off to CaDiCaL.
+
+/// Every period feasible on a small box (independent brute force) is feasible
+/// over R^n, and the orbit found spans at most max D per coordinate.
+#[test]
+fn grid_feasible_periods_are_real_feasible() {
+    for (n, side) in [(1usize, 3i64), (2, 2), (3, 1)] {
+        let bounds = vec![(0, side); n];
+        for p in 1..=8usize {
+            if brute::find_cycle(&bounds, p).is_some() {
+                assert_feasible(&run(n, p));
+            }
+        }
+    }
+}
+
+/// The normalisation of `encodings/real-space.md` §4 applied to a cycle:
+/// multiplier making `D_1` least among unit classes, then coordinates ordered
+/// by their first tight pair and signed so that pair is tight upward.
+/// Returns the truth value of every skeleton variable, and the profile.
+fn normalised_assignment(orbit: &[Vec<i64>], sk: &skeleton::Skeleton) -> (Vec<bool>, Vec<i64>) {
+    let (n, p) = (sk.n, sk.p);
+    let d = |a: &[i64], b: &[i64]| a.iter().zip(b).map(|(x, y)| (x - y).abs()).max().unwrap();
+    let prof = |o: &[Vec<i64>]| (1..=p / 2).map(|k| d(&o[0], &o[k])).collect::<Vec<i64>>();
+    // multiplier
+    let g = prof(orbit);
+    let best = (1..p)
+        .filter(|a| num_integer::Integer::gcd(a, &p) == 1)
+        .min_by_key(|&a| g[skeleton::kappa(0, a, p) - 1])
+        .unwrap();
+    let mut x: Vec<Vec<i64>> = (0..p).map(|i| orbit[(best * i) % p].clone()).collect();
+    let g = prof(&x);
+    // coordinates by first tight pair (lexicographic pair order), signs upward there
+    let tight_at = |x: &[Vec<i64>], c: usize, i: usize, j: usize| {
+        (x[j][c] - x[i][c]).abs() == g[skeleton::kappa(i, j, p) - 1]
+    };
+    let first = |x: &[Vec<i64>], c: usize| {
+        skeleton::pairs(p)
+            .position(|(i, j)| tight_at(x, c, i, j))
+            .unwrap_or(usize::MAX)
+    };
+    let mut coords: Vec<usize> = (0..n).collect();
+    coords.sort_by_key(|&c| first(&x, c));
+    x = x
+        .iter()
+        .map(|pt| coords.iter().map(|&c| pt[c]).collect())
+        .collect();
+    for c in 0..n {
+        if let Some((i, j)) = skeleton::pairs(p).find(|&(i, j)| tight_at(&x, c, i, j))
+            && x[j][c] < x[i][c]
+        {
+            for pt in &mut x {
+                pt[c] = -pt[c];
+            }
+        }
+    }
+    let mut val = vec![false; sk.cnf.num_vars() as usize];
+    for (v, m) in sk.map.iter() {
+        val[v.index()] = match m {
+            crate::varmap::Meaning::Tight { i, j, c } => {
+                x[*j][*c] - x[*i][*c] == g[skeleton::kappa(*i, *j, p) - 1]
+            }
+            crate::varmap::Meaning::Aux { index, .. } => {
+                let (t, c) = (*index as usize / n, *index as usize % n);
+                skeleton::pairs(p)
+                    .take(t + 1)
+                    .any(|(i, j)| tight_at(&x, c, i, j))
+            }
+            _ => false,
+        };
+    }
+    (val, g)
+}
+
+/// Every isometric cycle found by brute force on small boxes has an image
+/// under the symmetries whose truth values satisfy every skeleton clause and
+/// whose profile satisfies the normalisation (`D_1 ≤ D_u`; `D_k ≥ 1` after scaling).
+#[test]
+fn every_small_cycle_has_an_image_satisfying_the_skeleton() {
+    let mut seen = 0;
+    for (n, side, ps) in [
+        (1usize, 4i64, 2..=2usize),
+        (2, 2, 2..=4),
+        (2, 3, 3..=4),
+        (3, 1, 2..=8),
+        (3, 2, 5..=6),
+    ] {
+        let bounds = vec![(0, side); n];
+        for p in ps {
+            let sk = skeleton::build(n, p, &SkeletonOptions::default()).unwrap();
+            for orbit in brute::all_cycles(&bounds, p, 300) {
+                let (val, g) = normalised_assignment(&orbit, &sk);
+                if let Some(k) = sk.cnf.first_falsified(&val) {
+                    panic!(
+                        "n={n} p={p} orbit {orbit:?}: clause {k} {:?} fails",
+                        sk.cnf.clause(k)
+                    );
+                }
+                for u in 2..=p / 2 {
+                    if num_integer::Integer::gcd(&u, &p) == 1 {
+                        assert!(
+                            g[0] <= g[u - 1],
+                            "multiplier normalisation fails for {orbit:?}"
+                        );
+                    }
+                }
+                seen += 1;
+            }
+        }
+    }
+    assert!(seen > 300, "only {seen} cycles");
+}
+
+/// The pattern lemmas (two-atom cycles) all pass the independent checker.
+#[test]
+fn pattern_lemmas_pass_the_farkas_checker() {
+    for (n, p) in [(1, 5), (2, 6), (3, 7)] {
+        let mut th = theory::Theory::new(n, p);
+        let lemmas: Vec<theory::Lemma> = th.pattern_lemmas().into_iter().map(|x| x.1).collect();
+        let base = (n * p * (p - 1)) as u32 + 1;
+        let facts: Vec<(u32, Vec<i64>)> = th
+            .facts()
+            .iter()
+            .enumerate()
+            .map(|(f, x)| (base + f as u32, x.coeffs.clone()))
+            .collect();
+        let mut buf = Vec::new();
+        certificate::render_lemmas(n, p, &facts, &lemmas, &mut buf).unwrap();
+        let text = String::from_utf8(buf).unwrap();
+        let (clauses, s) = farkas_check::check_lemmas(n, p, base as usize, &text).unwrap();
+        assert_eq!(clauses.len(), lemmas.len());
+        assert_eq!(s.facts, facts.len());
+    }
+}
+
+fn certificate_of(n: usize, p: usize, dir: &Path) {
+    let mut o = RealOptions::new();
+    o.certificate_dir = Some(dir.to_path_buf());
+    assert_certified_infeasible(&decide(n, p, &o, None, &mut |_| {}).unwrap());
+}
+
+/// A changed multiplier, a changed or missing lemma, and a proof for another
+/// skeleton are each rejected, with the reason.
+#[test]
+fn tampered_certificates_are_rejected() {
+    let tmp = tempfile::tempdir().unwrap();
+    let dir = tmp.path().join("c");
+    certificate_of(2, 6, &dir);
+    certificate::check_dir(2, 6, &dir).unwrap();
+    let lem_path = dir.join(certificate::LEMMAS);
+    let good = std::fs::read_to_string(&lem_path).unwrap();
+    let restore = || std::fs::write(&lem_path, &good).unwrap();
+
+    // a changed Farkas multiplier
+    let line = good.lines().position(|l| l.contains(" y 1 1")).unwrap();
+    let bad: Vec<String> = good
+        .lines()
+        .enumerate()
+        .map(|(k, l)| {
+            if k == line {
+                l.replacen(" y 1 1", " y 2 1", 1)
+            } else {
+                l.to_string()
+            }
+        })
+        .collect();
+    std::fs::write(&lem_path, bad.join("\n") + "\n").unwrap();
+    match certificate::check_dir(2, 6, &dir) {
+        Err(Error::Farkas(e)) => assert_eq!(e.line, line + 1, "{e}"),
+        r => panic!("changed multiplier accepted: {r:?}"),
+    }
+    restore();
+
+    // a changed lemma clause (a literal replaced by another tight variable)
+    let line = good.lines().position(|l| l.starts_with('-')).unwrap();
+    let mut lines: Vec<String> = good.lines().map(String::from).collect();
+    let first_lit: i64 = lines[line]
+        .split_whitespace()
+        .next()
+        .unwrap()
+        .parse()
+        .unwrap();
+    let other = if first_lit == -1 { -2 } else { -1 };
+    lines[line] = lines[line].replacen(&first_lit.to_string(), &other.to_string(), 1);
+    std::fs::write(&lem_path, lines.join("\n") + "\n").unwrap();
+    assert!(matches!(
+        certificate::check_dir(2, 6, &dir),
+        Err(Error::Farkas(_) | Error::Proof(_))
+    ));
+    restore();
+
+    // a missing lemma: the proof's ids no longer fit
+    let all: Vec<&str> = good.lines().collect();
+    let last = all
+        .iter()
+        .rposition(|l| l.starts_with('-') || l.chars().next().is_some_and(|c| c.is_ascii_digit()))
+        .unwrap();
+    let fewer: Vec<&str> = good
+        .lines()
+        .enumerate()
+        .filter(|(k, _)| *k != last)
+        .map(|x| x.1)
+        .collect();
+    std::fs::write(&lem_path, fewer.join("\n") + "\n").unwrap();
+    assert!(matches!(
+        certificate::check_dir(2, 6, &dir),
+        Err(Error::Proof(_))
+    ));
+    restore();
+    certificate::check_dir(2, 6, &dir).unwrap();
+
+    // the certificate does not answer another question
+    assert!(matches!(
+        certificate::check_dir(2, 7, &dir),
+        Err(Error::Certificate(_))
+    ));
+    // a proof made for another skeleton: the skeleton of n = 2, p = 5 in its place
+    let other = tmp.path().join("d");
+    certificate_of(2, 5, &other);
+    std::fs::copy(other.join(certificate::PROOF), dir.join(certificate::PROOF)).unwrap();
+    assert!(matches!(
+        certificate::check_dir(2, 6, &dir),
+        Err(Error::Proof(_))
+    ));
+    // a skeleton with other options than its header says
+    let sk_path = dir.join(certificate::SKELETON);
+    let text = std::fs::read_to_string(&sk_path).unwrap();
+    std::fs::write(
+        &sk_path,
+        text.replacen("\"transitivity\":true", "\"transitivity\":false", 1),
+    )
+    .unwrap();
+    assert!(matches!(
+        certificate::check_dir(2, 6, &dir),
+        Err(Error::Certificate(_))
+    ));
+}
+
+#[test]
+fn orbit_coordinates_come_from_tight_variables() {
+    // the closed numbering used by the Farkas checker agrees with the variable map
+    let sk = skeleton::build(3, 5, &SkeletonOptions::default()).unwrap();
+    for (v, m) in sk.map.iter() {
+        if let crate::varmap::Meaning::Tight { i, j, c } = *m {
+            assert_eq!(v, skeleton::tight_var(3, 5, i, j, c));
+            assert!(v.dimacs() as usize <= 3 * 5 * 4);
+        }
+    }
+    let _ = Var::from_dimacs(1);
+}

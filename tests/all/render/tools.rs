@@ -30,17 +30,7 @@ fn pdflatex_compiles_every_latex_output() {
     let all = outputs(Format::Latex);
     for o in &all {
         let tex = dir.write(&o.file, &o.text);
-        let run = Command::new("pdflatex")
-            .args([
-                "-interaction=nonstopmode",
-                "-halt-on-error",
-                "-no-shell-escape",
-            ])
-            .arg(tex.file_name().expect("a file"))
-            .current_dir(dir.root())
-            .stdin(Stdio::null())
-            .output()
-            .expect("pdflatex runs");
+        let run = pdflatex(&dir, &tex);
         let log = String::from_utf8_lossy(&run.stdout);
         assert!(
             run.status.success(),
@@ -309,17 +299,7 @@ fn hostile_text_is_escaped_in_every_format() {
     );
     if have_tool("pdflatex") {
         let path = dir.write("hostile.tex", &tex);
-        let run = Command::new("pdflatex")
-            .args([
-                "-interaction=nonstopmode",
-                "-halt-on-error",
-                "-no-shell-escape",
-            ])
-            .arg(path.file_name().expect("a file"))
-            .current_dir(dir.root())
-            .stdin(Stdio::null())
-            .output()
-            .expect("pdflatex runs");
+        let run = pdflatex(&dir, &path);
         let log = String::from_utf8_lossy(&run.stdout);
         assert!(
             run.status.success(),
@@ -345,4 +325,20 @@ fn hostile_text_is_escaped_in_every_format() {
         let svg = orbitcnf::render::render(&loaded, Format::Svg, Some(pic)).expect("renders");
         roxmltree::Document::parse(&svg).expect("well-formed");
     }
+}
+
+/// Runs pdflatex on `tex` (a file in `dir`) without shell escapes, stopping
+/// at the first error.
+fn pdflatex(dir: &TestDir, tex: &std::path::Path) -> std::process::Output {
+    Command::new("pdflatex")
+        .args([
+            "-interaction=nonstopmode",
+            "-halt-on-error",
+            "-no-shell-escape",
+        ])
+        .arg(tex.file_name().expect("a file"))
+        .current_dir(dir.root())
+        .stdin(Stdio::null())
+        .output()
+        .expect("pdflatex runs")
 }

@@ -121,6 +121,15 @@ pub struct SpectrumArgs {
     markdown: Option<PathBuf>,
     #[command(flatten)]
     progress: ProgressArgs,
+    /// With --real: after --handoff-after seconds of internal search on a
+    /// period, hand the propositional refutation of the skeleton plus the
+    /// lemmas found to COMMAND (e.g. 'cadical -q', run as COMMAND CNF PROOF;
+    /// its DRAT proof is converted to LRAT by `rate` and checked).
+    #[arg(long, value_name = "COMMAND", requires = "real")]
+    handoff: Option<String>,
+    /// With --handoff: seconds of internal search before the hand-off.
+    #[arg(long, value_name = "SECS", value_parser = parse_seconds, requires = "handoff", default_value = "10")]
+    handoff_after: Duration,
 }
 
 /// Runs `spectrum`.
@@ -189,7 +198,13 @@ fn run_real(n: usize, a: SpectrumArgs) -> Outcome {
     let cfg = orbitcnf::real::sweep::RealSweep {
         n,
         periods,
-        options: orbitcnf::real::RealOptions::new(),
+        options: orbitcnf::real::RealOptions {
+            handoff: a.handoff.as_ref().map(|command| orbitcnf::real::Handoff {
+                command: command.clone(),
+                after: a.handoff_after,
+            }),
+            ..orbitcnf::real::RealOptions::new()
+        },
         time_limit: a.time_limit,
         store: (!a.no_store).then(|| a.store.clone()),
         recheck: a.recheck,

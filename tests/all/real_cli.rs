@@ -256,6 +256,42 @@ fn real_space_spectrum_stores_and_reuses_answers() {
     assert!(dir.path("st/real/answers").is_dir());
 }
 
+/// `spectrum --real --handoff`: with the hand-off on (on R^2 the internal
+/// search may finish before it), the periods above 2^2 = 4 are refuted
+/// (Lemmens and Scheutzow 2005 [paper]: no period above max_k 2^k·C(2,k) =
+/// 4), each with a certificate that check-bundle accepts; the hand-off flags
+/// are refused without --real.
+#[test]
+fn real_space_spectrum_hands_off_to_an_external_solver() {
+    let dir = TestDir::new();
+    dir.orbitcnf()
+        .args(["spectrum", "--dim", "2", "--handoff", "cadical -q"])
+        .run()
+        .error_with(&["--real"]);
+    if !crate::util::have_tool("cadical") || !crate::util::have_tool("rate") {
+        return;
+    }
+    let run = dir
+        .orbitcnf()
+        .args(["spectrum", "--real", "--dim", "2", "--periods", "4..6"])
+        .args(["--store", "st", "--json", "-q"])
+        .args(["--handoff", "cadical -q", "--handoff-after", "0.001"])
+        .run();
+    let v = run.code(0).json();
+    let rows = v["rows"].as_array().unwrap();
+    for (p, r) in (4..=6).zip(rows) {
+        let want = if p <= 4 { "feasible" } else { "infeasible" };
+        assert_eq!(r["verdict"], want, "{r}");
+        if p > 4 {
+            dir.orbitcnf()
+                .args(["check-bundle", r["bundle"].as_str().unwrap()])
+                .run()
+                .code(0)
+                .stdout_has("INFEASIBLE, certified");
+        }
+    }
+}
+
 /// R. Lyons and R. D. Nussbaum (1992) [recalled]: no subset of R^3 carries
 /// a sup-norm nonexpansive map of period 9, 10, 11 or 12 (periods above 12
 /// are excluded by Lemmens and Scheutzow 2005). A computer re-proof with

@@ -26,7 +26,7 @@ use std::io::Write;
 use std::path::Path;
 
 use crate::artifact::{sha256_hex, write_atomically};
-use crate::cnf::{Cnf, Lit, Var};
+use crate::cnf::{Cnf, FamilyCount, Lit, Var};
 use crate::encode::{EncodeOptions, Encoding, Formulation};
 use crate::error::{Error, Result};
 use crate::question::{Question, QuestionRecord};
@@ -50,24 +50,33 @@ pub fn render_cnf(enc: &Encoding) -> Vec<u8> {
     let _ = writeln!(body, "c question {record}");
     let _ = writeln!(body, "c options {options}");
     let _ = writeln!(body, "c statement {}", enc.question.statement());
-    for f in &enc.families {
+    finish_with_header(body, &enc.families, &enc.map, &enc.cnf)
+}
+
+/// Completes a DIMACS file whose first header lines (version, question,
+/// options, statement) are in `body`: the family sizes, the variable map,
+/// the problem line and the clauses, with the SHA-256 line of all that put
+/// first. Every CNF file orbitcnf writes (grid encodings and the real-space
+/// skeleton) ends its header this way, so one parser reads them all.
+pub fn finish_with_header(
+    mut body: Vec<u8>,
+    families: &[FamilyCount],
+    map: &VarMap,
+    cnf: &Cnf,
+) -> Vec<u8> {
+    for f in families {
         let _ = writeln!(
             body,
             "c family {} vars={} clauses={}",
             f.family, f.vars, f.clauses
         );
     }
-    for (v, m) in enc.map.iter() {
+    for (v, m) in map.iter() {
         let _ = writeln!(body, "c var {} {m}", v.dimacs());
     }
-    let _ = writeln!(
-        body,
-        "p cnf {} {}",
-        enc.cnf.num_vars(),
-        enc.cnf.num_clauses()
-    );
+    let _ = writeln!(body, "p cnf {} {}", cnf.num_vars(), cnf.num_clauses());
     let mut num = itoa_buf();
-    for clause in enc.cnf.clauses() {
+    for clause in cnf.clauses() {
         for l in clause {
             body.extend_from_slice(num.format(l.dimacs()).as_bytes());
             body.push(b' ');

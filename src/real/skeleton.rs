@@ -53,7 +53,6 @@
 use std::io::Write as _;
 
 use serde::{Deserialize, Serialize};
-use sha2::{Digest, Sha256};
 
 use crate::cnf::{Cnf, FamilyCount, Lit, Var};
 use crate::error::{Error, Result};
@@ -287,8 +286,6 @@ pub fn build(n: usize, p: usize, options: &SkeletonOptions) -> Result<Skeleton> 
     })
 }
 
-const DIGEST_PREFIX: &str = "c orbitcnf-digest sha256:";
-
 /// The question line of the header: `{"space":"real","dim":N,"period":P}`.
 pub fn question_json(n: usize, p: usize) -> String {
     format!("{{\"space\":\"real\",\"dim\":{n},\"period\":{p}}}")
@@ -312,31 +309,7 @@ pub fn render(sk: &Skeleton) -> Vec<u8> {
          sup-norm nonexpansive map of minimal period {}",
         sk.p, sk.n, sk.n, sk.p
     );
-    for f in &sk.families {
-        let _ = writeln!(
-            body,
-            "c family {} vars={} clauses={}",
-            f.family, f.vars, f.clauses
-        );
-    }
-    for (v, m) in sk.map.iter() {
-        let _ = writeln!(body, "c var {} {m}", v.dimacs());
-    }
-    let _ = writeln!(body, "p cnf {} {}", sk.cnf.num_vars(), sk.cnf.num_clauses());
-    for clause in sk.cnf.clauses() {
-        for l in clause {
-            let _ = write!(body, "{} ", l.dimacs());
-        }
-        body.extend_from_slice(b"0\n");
-    }
-    let digest: String = Sha256::digest(&body)
-        .iter()
-        .map(|b| format!("{b:02x}"))
-        .collect();
-    let mut out = Vec::with_capacity(body.len() + 80);
-    let _ = writeln!(out, "{DIGEST_PREFIX}{digest}");
-    out.extend_from_slice(&body);
-    out
+    crate::dimacs::finish_with_header(body, &sk.families, &sk.map, &sk.cnf)
 }
 
 /// Reads `(n, p, options)` from the header of a rendered skeleton, so that a

@@ -66,6 +66,26 @@ pub struct Lemma {
     pub unit: Vec<(usize, BigInt)>,
 }
 
+impl Lemma {
+    /// The lemma "these atoms, with these background rows, imply fact
+    /// `fact`", whose strict row takes multiplier `g`.
+    fn implies(
+        atoms: Vec<((usize, usize, usize), BigInt)>,
+        background: Vec<((usize, usize, usize), BigInt)>,
+        fact: usize,
+        g: BigInt,
+    ) -> Lemma {
+        Lemma {
+            atoms,
+            facts: Vec::new(),
+            conclusion: Some((fact, g)),
+            background,
+            norm: Vec::new(),
+            unit: Vec::new(),
+        }
+    }
+}
+
 /// What a failed check returns.
 #[derive(Debug)]
 pub enum TheoryError {
@@ -580,14 +600,7 @@ impl Theory {
         background.sort();
         Ok(Step::Implied {
             fact,
-            lemma: Lemma {
-                atoms,
-                facts: Vec::new(),
-                conclusion: Some((fact, BigInt::from(g))),
-                background,
-                norm: Vec::new(),
-                unit: Vec::new(),
-            },
+            lemma: Lemma::implies(atoms, background, fact, BigInt::from(g)),
         })
     }
 
@@ -642,14 +655,7 @@ impl Theory {
                 background.sort();
                 out.push((
                     fact,
-                    Lemma {
-                        atoms,
-                        facts: Vec::new(),
-                        conclusion: Some((fact, BigInt::from(g))),
-                        background,
-                        norm: Vec::new(),
-                        unit: Vec::new(),
-                    },
+                    Lemma::implies(atoms, background, fact, BigInt::from(g)),
                 ));
             };
             for a in 0..p {

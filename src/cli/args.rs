@@ -219,6 +219,14 @@ pub struct EncodingArgs {
     /// graph has at most one edge per window"; see encodings/redundant.md.
     #[arg(long)]
     pub no_classes: bool,
+    /// Leave out the two-threshold profile exclusions (on by default; they
+    /// act on boxes with a side of 3 or more): when the offsets closer than
+    /// t + 1 are exactly the multiples of d and all of them are more than u
+    /// apart, each class lies in one window of side t with its points
+    /// pairwise more than u apart, which bounds how many fit; see
+    /// encodings/redundant.md, pack-nested.
+    #[arg(long)]
+    pub no_nested: bool,
     /// The formulation: `cycle` (isometric cycles; boxes only; the default
     /// on boxes) or `full-map` (the whole map f: D → D; the only one for
     /// --points, and available on boxes for comparison).
@@ -264,6 +272,7 @@ impl EncodingArgs {
             count: !self.no_count,
             packing: !self.no_packing,
             classes: !self.no_classes,
+            nested: !self.no_nested,
             ..base
         })
     }

@@ -16,7 +16,8 @@ const QUICK_LIMIT_SECS: u64 = 20;
 #[derive(Args, Debug)]
 pub struct BenchArgs {
     /// Leave out the cases whose baselines take minutes ({-1,0,1}^4 with
-    /// p = 18, 20, 21 and 24).
+    /// p = 18, 20, 21 and 24, {0,1,2,3}^4 with p = 17, {-1,0,1}^5 with
+    /// p = 34, {-2,...,2}^4 with p = 18).
     #[arg(long)]
     quick: bool,
     /// Time limit per run, in seconds; a baseline that hits it shows `>LIMIT`.

@@ -49,6 +49,33 @@
 //!
 //! Soundness: each clause is the negation of a profile that the inequality
 //! above rules out on every isometric cycle, so no solution is lost.
+//!
+//! ## Two thresholds: family `pack-nested`
+//!
+//! On a box whose values take more than two steps, a class can be close at
+//! `t` and still spread out inside its window. Take `0 ≤ u < t` and ask, in
+//! addition, that every close offset be far at `u` (`g(k) > u` for `d | k`).
+//! A class is then `s = p/d` points of one window of side `t`, pairwise more
+//! than `u` apart. Two consequences, either of which excludes the pattern:
+//!
+//! - at most [`far_packing`]`(t, u) = Π_c ⌈(t_c + 1)/(u + 1)⌉` such points fit
+//!   in one window (cut each coordinate into runs of `u + 1` values; two
+//!   points of a cell are within `u`), so `s` larger than that is impossible
+//!   whatever `d` is, and this needs no window table;
+//! - the classes meet disjoint sets of windows as before, so
+//!   `d · c_{t,u}(s) ≤ W_t`, with `c_{t,u}(s)` the least number of windows that
+//!   `s` points of one window, pairwise more than `u` apart, meet together
+//!   ([`far_classes_meet_at_least`]).
+//!
+//! The clause is `⋁_{d∤k} ¬G[k,t+1] ∨ ⋁_{d|k} (G[k,t+1] ∨ ¬G[k,u+1])`. For
+//! each `(t, d)` only the least `u` that is ruled out gets a clause (larger
+//! `u` describe fewer profiles); `u = 0` is the family `pack-classes`, `u ≥ 1`
+//! the family `pack-nested`, which exists only on boxes with a side of at
+//! least 3 (`1 ≤ u < t < L`). Example: `p = 17` on `{0,1,2,3}^4` with every
+//! distance 2 (`t = 2`, `u = 1`, `d = 1`) would put 17 points pairwise at
+//! distance 2 into a window `{a, a+1, a+2}^4`, which holds at most `2^4`;
+//! `c_2(17) ≤ 16 = W_2` there, so `pack-classes` misses it. Soundness as
+//! above: each clause negates a pattern no isometric cycle has.
 
 use super::{Encoder, packing, profile};
 use crate::cnf::Size;
@@ -57,12 +84,43 @@ use crate::question::Question;
 /// The family's label.
 pub const FAMILY: &str = "pack-classes";
 
+/// The label of the two-threshold patterns (`u ≥ 1`), a family of its own
+/// so that it can be switched separately and its clauses counted apart.
+pub const FAMILY_NESTED: &str = "pack-nested";
+
+/// The patterns of one family: those with `u = 0` (`pack-classes`) or those
+/// with `u ≥ 1` (`pack-nested`).
+pub fn select(ruled: &[Excluded], nested: bool) -> Vec<Excluded> {
+    ruled
+        .iter()
+        .copied()
+        .filter(|x| (x.u >= 1) == nested)
+        .collect()
+}
+
 /// Unions the window search may visit for one `(t, d)` before giving up,
 /// divided by the words (64 windows each) that one union takes.
 const SEARCH_BUDGET: u64 = 2_000_000;
 
-/// The pairs `(t, d)` for which the family adds a clause.
-pub fn ruled_out(q: &Question) -> Vec<(u64, usize)> {
+/// One profile pattern the family excludes, at the thresholds `u < t`: the
+/// offsets close at `t` are exactly the nonzero multiples of `d`, and every
+/// one of them is far at `u` (`u = 0` asks nothing more, since every
+/// distance is positive).
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct Excluded {
+    /// The outer threshold: `k` is close when `g(k) ≤ t`.
+    pub t: u64,
+    /// The inner threshold: the close offsets all have `g(k) > u`.
+    pub u: u64,
+    /// The divisor of `p` whose nonzero multiples are the close offsets.
+    pub d: usize,
+}
+
+/// The patterns for which the family adds a clause, in the order `t`, `d`.
+/// For each `(t, d)` only the least inner threshold `u` that is ruled out is
+/// listed: a pattern with a larger `u` asks more of the same profiles, so it
+/// is implied.
+pub fn ruled_out(q: &Question) -> Vec<Excluded> {
     let p = q.period;
     if p < 2 {
         return Vec::new();
@@ -70,31 +128,147 @@ pub fn ruled_out(q: &Question) -> Vec<(u64, usize)> {
     let mut out = Vec::new();
     for t in 1..q.grid.diameter() {
         let (total, _) = packing::windows(&q.grid, t);
-        if total > packing::MAX_WINDOWS {
-            continue;
-        }
-        let sets = packing::window_sets(&q.grid, t);
+        let sets = (total <= packing::MAX_WINDOWS).then(|| packing::window_sets(&q.grid, t));
         for d in (1..p).filter(|&d| p.is_multiple_of(d)) {
+            let s = p / d;
             let need = total / d as u64 + 1;
-            if classes_meet_at_least(&sets, total, p / d, need) {
-                out.push((t, d));
+            let first = (0..t).find(|&u| {
+                if u >= 1 && s as u64 > far_packing(&q.grid, t, u) {
+                    return true;
+                }
+                let Some(sets) = &sets else { return false };
+                if u == 0 {
+                    classes_meet_at_least(sets, total, s, need)
+                } else {
+                    far_classes_meet_at_least(&q.grid, sets, total, s, need, u)
+                }
+            });
+            if let Some(u) = first {
+                out.push(Excluded { t, u, d });
             }
         }
     }
     out
 }
 
-/// Adds one clause per profile ruled out by [`ruled_out`], given as `ruled`.
-pub fn add(e: &mut Encoder, q: &Question, ruled: &[(u64, usize)]) {
-    for &(t, d) in ruled {
-        let clause: Vec<_> = (1..=q.period / 2)
-            .map(|k| {
-                let far = profile::ge(e, q, k, t as i64 + 1);
-                if k % d == 0 { far } else { !far }
-            })
-            .collect();
+/// The most points of one window of side `t` that are pairwise more than `u`
+/// apart: `Π_c ⌈(t_c + 1)/(u + 1)⌉` with `t_c = min(t, s_c)`. (Cut each
+/// coordinate's `t_c + 1` values into runs of `u + 1`; two points in one cell
+/// are within `u`, and the cell corners nearest the window's origin attain
+/// the count.)
+pub fn far_packing(g: &crate::grid::Grid, t: u64, u: u64) -> u64 {
+    (0..g.dim())
+        .map(|c| (t.min(g.side(c)) + 1).div_ceil(u + 1))
+        .fold(1u64, |acc, x| acc.saturating_mul(x))
+}
+
+/// Adds one clause per pattern of [`ruled_out`], given as `ruled`:
+/// `⋁_{d∤k} ¬G[k,t+1] ∨ ⋁_{d|k} (G[k,t+1] ∨ ¬G[k,u+1])`, the last literal
+/// only when `u ≥ 1`.
+pub fn add(e: &mut Encoder, q: &Question, ruled: &[Excluded]) {
+    for x in ruled {
+        let mut clause = Vec::new();
+        for k in 1..=q.period / 2 {
+            let far = profile::ge(e, q, k, x.t as i64 + 1);
+            if k % x.d != 0 {
+                clause.push(!far);
+                continue;
+            }
+            clause.push(far);
+            if x.u >= 1 {
+                clause.push(!profile::ge(e, q, k, x.u as i64 + 1));
+            }
+        }
         e.clause(&clause);
     }
+}
+
+/// As [`classes_meet_at_least`], for sets of points that are also pairwise
+/// more than `u` apart (`u ≥ 1`): whether every `s` such points of one window
+/// meet at least `need` windows together. The search walks over such sets
+/// in increasing point order, keeps the union of their windows, and drops a
+/// branch once that union reaches `need` or too few candidates remain.
+/// `false` when the budget of visited sets runs out (unproven).
+pub fn far_classes_meet_at_least(
+    g: &crate::grid::Grid,
+    sets: &[Vec<u32>],
+    windows: u64,
+    s: usize,
+    need: u64,
+    u: u64,
+) -> bool {
+    if need <= 1 || s == 0 {
+        return need <= 1;
+    }
+    let points: Vec<crate::grid::Point> = g.points().collect();
+    let far = |a: usize, b: usize| {
+        points[a]
+            .iter()
+            .zip(&points[b])
+            .any(|(x, y)| x.abs_diff(*y) > u)
+    };
+    let mut budget = SEARCH_BUDGET;
+    for w0 in 0..windows as u32 {
+        let inside = points_inside(sets, w0);
+        if inside.len() < s {
+            continue;
+        }
+        if s as u64 >= need && saturating_matching(sets, &inside) {
+            continue;
+        }
+        let mut union = std::collections::BTreeSet::new();
+        match far_fewer_exist(sets, &inside, &far, s, need, &mut union, 0, &mut budget) {
+            Some(false) => {}
+            Some(true) | None => return false,
+        }
+    }
+    true
+}
+
+/// Whether `s` of the `candidates`, pairwise far, have a union of windows
+/// (together with `union`) smaller than `need`; `None` past the budget.
+#[allow(clippy::too_many_arguments)]
+fn far_fewer_exist(
+    sets: &[Vec<u32>],
+    candidates: &[usize],
+    far: &dyn Fn(usize, usize) -> bool,
+    s: usize,
+    need: u64,
+    union: &mut std::collections::BTreeSet<u32>,
+    chosen: usize,
+    budget: &mut u64,
+) -> Option<bool> {
+    *budget = budget.checked_sub(1)?;
+    if chosen == s {
+        return Some(true);
+    }
+    for (i, &z) in candidates.iter().enumerate() {
+        if chosen + (candidates.len() - i) < s {
+            break;
+        }
+        let added: Vec<u32> = sets[z]
+            .iter()
+            .copied()
+            .filter(|w| !union.contains(w))
+            .collect();
+        if (union.len() + added.len()) as u64 >= need {
+            continue;
+        }
+        union.extend(&added);
+        let rest: Vec<usize> = candidates[i + 1..]
+            .iter()
+            .copied()
+            .filter(|&y| far(z, y))
+            .collect();
+        let found = far_fewer_exist(sets, &rest, far, s, need, union, chosen + 1, budget);
+        for w in &added {
+            union.remove(w);
+        }
+        if found != Some(false) {
+            return found;
+        }
+    }
+    Some(false)
 }
 
 /// Whether every `s` distinct grid points lying in one common window meet at
@@ -121,9 +295,7 @@ pub fn classes_meet_at_least(sets: &[Vec<u32>], windows: u64, s: usize, need: u6
     // (about 100 MB at most) however many windows the grid has.
     let mut budget = SEARCH_BUDGET / words.max(1) as u64;
     for w0 in 0..windows as u32 {
-        let inside: Vec<usize> = (0..sets.len())
-            .filter(|&z| sets[z].binary_search(&w0).is_ok())
-            .collect();
+        let inside = points_inside(sets, w0);
         if inside.len() < s {
             continue;
         }
@@ -142,6 +314,13 @@ pub fn classes_meet_at_least(sets: &[Vec<u32>], windows: u64, s: usize, need: u6
         }
     }
     true
+}
+
+/// The grid points (indices into `sets`) that lie in window `w`.
+fn points_inside(sets: &[Vec<u32>], w: u32) -> Vec<usize> {
+    (0..sets.len())
+        .filter(|&z| sets[z].binary_search(&w).is_ok())
+        .collect()
 }
 
 /// Whether the points `inside` can each be given a distinct window that
@@ -218,7 +397,7 @@ fn fewer_exist(
 }
 
 /// Exact size of this family, given [`ruled_out`] as `ruled`: one clause each.
-pub fn size(ruled: &[(u64, usize)]) -> Size {
+pub fn size(ruled: &[Excluded]) -> Size {
     Size::clauses(ruled.len() as u64)
 }
 
@@ -229,6 +408,13 @@ mod tests {
 
     fn q(spec: &str, dim: usize, p: usize) -> Question {
         Question::new(Grid::parse(spec, Some(dim)).unwrap(), p).unwrap()
+    }
+
+    /// The `(t, d)` of the patterns with `u = 0`, and a check that there are no others.
+    fn at_zero(q: &Question) -> Vec<(u64, usize)> {
+        let all = ruled_out(q);
+        assert!(all.iter().all(|x| x.u == 0), "{all:?}");
+        all.iter().map(|x| (x.t, x.d)).collect()
     }
 
     #[test]
@@ -248,22 +434,22 @@ mod tests {
         // p = 18 on {−1,0,1}^4: d = 1, 2, 3, 6 give 18 > 16; d = 9 gives
         // nine classes of two, 9 · 2 = 18 > 16 as well.
         assert_eq!(
-            ruled_out(&q("-1..1", 4, 18)),
+            at_zero(&q("-1..1", 4, 18)),
             vec![(1, 1), (1, 2), (1, 3), (1, 6), (1, 9)]
         );
         // p = 16 = 2^4 is realised, so no subgroup profile may be excluded.
-        assert_eq!(ruled_out(&q("-1..1", 4, 16)), vec![]);
+        assert_eq!(at_zero(&q("-1..1", 4, 16)), vec![]);
         // p = 9 on {−1,0,1}^3: d = 1 and d = 3 (3 · 3 > 8).
-        assert_eq!(ruled_out(&q("-1..1", 3, 9)), vec![(1, 1), (1, 3)]);
+        assert_eq!(at_zero(&q("-1..1", 3, 9)), vec![(1, 1), (1, 3)]);
         assert_eq!(size(&ruled_out(&q("-1..1", 4, 18))).clauses, 5);
         // p = 33 on {−1,0,1}^5: d = 3 needs eleven points of a 32-point
         // corner box meeting at most ten boxes; a plain walk over point sets
         // ran out of budget here.
-        assert_eq!(ruled_out(&q("-1..1", 5, 33)), vec![(1, 1), (1, 3), (1, 11)]);
+        assert_eq!(at_zero(&q("-1..1", 5, 33)), vec![(1, 1), (1, 3), (1, 11)]);
         // p = 70 on {−1,0,1}^6: every proper divisor, settled by matchings
         // (a walk over unions alone runs out of budget for d = 1 and 2).
         assert_eq!(
-            ruled_out(&q("-1..1", 6, 70)),
+            at_zero(&q("-1..1", 6, 70)),
             [1, 2, 5, 7, 10, 14, 35].map(|d| (1, d)).to_vec()
         );
     }
@@ -276,7 +462,7 @@ mod tests {
         // two windows of side 1, so three classes of close pairs, far from
         // each other, cannot exist; 6-cycles do.
         let question = Question::new(Grid::parse("0..1,0..1,0..2", None).unwrap(), 6).unwrap();
-        assert_eq!(ruled_out(&question), vec![(1, 3)]);
+        assert_eq!(at_zero(&question), vec![(1, 3)]);
         assert!(crate::brute::find_cycle(question.grid.ranges(), 6).is_some());
     }
 
@@ -293,30 +479,144 @@ mod tests {
         assert_eq!(fam.map(|f| f.clauses), Some(2));
     }
 
-    #[test]
-    fn no_brute_force_cycle_has_an_excluded_profile() {
-        // Independent of the encoding: the profiles `ruled_out` names never
-        // occur on cycles that brute force finds.
-        let mut tested = 0;
-        for (spec, max_p) in [
-            ("0..1,0..1,0..2", 8),
-            ("0..1,0..2,0..3", 8),
-            ("-1..1,-1..1,0..1", 8),
-        ] {
+    /// Every cycle brute force finds (at most `limit` per box and period)
+    /// avoids every pattern [`ruled_out`] names: `(cycles tested, patterns
+    /// with u ≥ 1 tested)`. Independent of the encoding.
+    pub(super) fn brute_force_avoids_the_patterns(
+        boxes: &[(&str, usize)],
+        limit: usize,
+    ) -> (usize, usize) {
+        let (mut tested, mut nested) = (0, 0);
+        for &(spec, max_p) in boxes {
             let g = Grid::parse(spec, None).unwrap();
             for p in 2..=max_p {
                 let rules = ruled_out(&Question::new(g.clone(), p).unwrap());
-                for cycle in crate::brute::all_cycles(g.ranges(), p, 300) {
-                    let dist = |a: &[i64], b: &[i64]| crate::brute::sup_distance(a, b) as u64;
-                    for &(t, d) in &rules {
-                        let subgroup =
-                            (1..=p / 2).all(|k| (dist(&cycle[0], &cycle[k]) <= t) == (k % d == 0));
-                        assert!(!subgroup, "{spec} p={p} t={t} d={d}: {cycle:?}");
+                nested += rules.iter().filter(|x| x.u >= 1).count();
+                for cycle in crate::brute::all_cycles(g.ranges(), p, limit) {
+                    for &Excluded { t, u, d } in &rules {
+                        let pattern = (1..=p / 2).all(|k| {
+                            let g = crate::brute::sup_distance(&cycle[0], &cycle[k]) as u64;
+                            if k % d == 0 { u < g && g <= t } else { g > t }
+                        });
+                        assert!(!pattern, "{spec} p={p} t={t} u={u} d={d}: {cycle:?}");
                     }
                     tested += 1;
                 }
             }
         }
+        (tested, nested)
+    }
+
+    #[test]
+    fn no_brute_force_cycle_has_an_excluded_profile() {
+        let boxes = [
+            ("0..1,0..1,0..2", 8),
+            ("0..1,0..2,0..3", 8),
+            ("-1..1,-1..1,0..1", 8),
+        ];
+        let (tested, _) = brute_force_avoids_the_patterns(&boxes, 300);
         assert!(tested > 300, "only {tested} cycles");
+    }
+}
+
+#[cfg(test)]
+mod two_thresholds {
+    use super::*;
+    use crate::grid::Grid;
+
+    #[test]
+    fn far_packing_is_the_most_points_pairwise_more_than_u_apart() {
+        // Independent brute force over all subsets of one window.
+        for (spec, t) in [
+            ("0..3,0..3", 2),
+            ("0..3,0..3", 3),
+            ("0..4,0..2", 3),
+            ("0..3,0..1", 2),
+        ] {
+            let g = Grid::parse(spec, None).unwrap();
+            let window: Vec<Vec<i64>> = g
+                .points()
+                .filter(|z| (0..g.dim()).all(|c| z[c] - g.lo(c) <= t as i64))
+                .collect();
+            for u in 1..t {
+                let mut best = 0;
+                for mask in 0u32..1 << window.len() {
+                    let chosen: Vec<&Vec<i64>> = (0..window.len())
+                        .filter(|i| mask >> i & 1 == 1)
+                        .map(|i| &window[i])
+                        .collect();
+                    let ok = chosen.iter().enumerate().all(|(i, a)| {
+                        chosen[i + 1..]
+                            .iter()
+                            .all(|b| crate::brute::sup_distance(a, b) as u64 > u)
+                    });
+                    if ok {
+                        best = best.max(chosen.len() as u64);
+                    }
+                }
+                assert_eq!(far_packing(&g, t, u), best, "{spec} t={t} u={u}");
+            }
+        }
+    }
+
+    #[test]
+    fn all_distances_two_in_a_wider_box_is_the_small_grid_again() {
+        // p = 17 on {0,1,2,3}^4 with every distance 2: the cycle lies in one
+        // window {a, a+1, a+2}^4 with all points pairwise at distance 2,
+        // which the 2^4 cells of side 1 cannot hold. The single-threshold
+        // patterns do not see it (c_2(17) ≤ 16 there).
+        let q = Question::new(Grid::parse("0..3", Some(4)).unwrap(), 17).unwrap();
+        let ruled = ruled_out(&q);
+        assert!(ruled.contains(&Excluded { t: 2, u: 1, d: 1 }), "{ruled:?}");
+        assert!(
+            !ruled.iter().any(|x| x.t == 2 && x.u == 0 && x.d == 1),
+            "{ruled:?}"
+        );
+    }
+
+    #[test]
+    fn brute_force_cycles_avoid_the_two_threshold_patterns_on_wider_boxes() {
+        let boxes = [
+            ("0..3,0..3,0..1", 8),
+            ("0..2,0..3,0..3", 8),
+            ("0..4,0..4", 4),
+        ];
+        let (tested, patterns) = super::tests::brute_force_avoids_the_patterns(&boxes, 200);
+        assert!(patterns >= 5, "only {patterns} two-threshold patterns");
+        assert!(tested > 500, "only {tested} cycles");
+    }
+}
+
+#[cfg(test)]
+mod nested_family {
+    use super::*;
+    use crate::encode::{EncodeOptions, encode};
+    use crate::grid::Grid;
+
+    #[test]
+    fn the_nested_family_acts_on_the_box_of_the_image_test() {
+        // `soundness.rs` checks that every brute-force cycle on this box
+        // has an image satisfying the whole CNF; that test only covers
+        // `pack-nested` if the family adds clauses there.
+        for p in 5..=8 {
+            let q = Question::new(Grid::parse("0..3,0..3,0..1", None).unwrap(), p).unwrap();
+            let e = encode(&q, &EncodeOptions::default(), u64::MAX).unwrap();
+            let fam = e.families.iter().find(|f| f.family == FAMILY_NESTED);
+            assert!(fam.is_some_and(|f| f.clauses >= 1), "p = {p}: {fam:?}");
+            assert!(
+                crate::brute::find_cycle(q.grid.ranges(), p).is_some(),
+                "p = {p}"
+            );
+        }
+    }
+
+    #[test]
+    fn the_nested_family_is_absent_where_it_cannot_act() {
+        // Sides of at most 3 points: no two thresholds 1 ≤ u < t < L, and
+        // the option is not recorded (so these headers are as before).
+        let q = Question::new(Grid::parse("-1..1", Some(4)).unwrap(), 18).unwrap();
+        let e = encode(&q, &EncodeOptions::default(), u64::MAX).unwrap();
+        assert!(!e.options.nested);
+        assert!(e.families.iter().all(|f| f.family != FAMILY_NESTED));
     }
 }

@@ -22,7 +22,7 @@ pub struct Cycle {
     /// The question encoded.
     pub q: Question,
     stabilizer: OnceCell<Vec<(usize, Vec<usize>)>>,
-    ruled_out: OnceCell<Vec<(u64, usize)>>,
+    ruled_out: OnceCell<Vec<classes::Excluded>>,
 }
 
 impl Cycle {
@@ -45,7 +45,7 @@ impl Cycle {
 
     /// The profiles `pack-classes` excludes ([`classes::ruled_out`]), found
     /// by a search that both its size and its clauses need.
-    pub fn ruled_out(&self) -> &[(u64, usize)] {
+    pub fn ruled_out(&self) -> &[classes::Excluded] {
         self.ruled_out.get_or_init(|| classes::ruled_out(&self.q))
     }
 }
@@ -139,8 +139,14 @@ pub static ISOMETRIC_CYCLE: &[Family<Cycle>] = &[
     Family {
         name: classes::FAMILY,
         applies: |_, o| o.classes,
-        size: |x| classes::size(x.ruled_out()),
-        add: |e, x| classes::add(e, &x.q, x.ruled_out()),
+        size: |x| classes::size(&classes::select(x.ruled_out(), false)),
+        add: |e, x| classes::add(e, &x.q, &classes::select(x.ruled_out(), false)),
+    },
+    Family {
+        name: classes::FAMILY_NESTED,
+        applies: |_, o| o.nested,
+        size: |x| classes::size(&classes::select(x.ruled_out(), true)),
+        add: |e, x| classes::add(e, &x.q, &classes::select(x.ruled_out(), true)),
     },
     Family {
         name: edges::FAMILY,

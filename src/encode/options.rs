@@ -155,6 +155,17 @@ pub struct EncodeOptions {
     /// in headers written before these families existed, which read as off.
     #[serde(default)]
     pub classes: bool,
+    /// The two-threshold profile exclusions ([`super::classes`], family
+    /// `pack-nested`). They only act on boxes with a side of 3 or more, so
+    /// [`EncodeOptions::resolve`] switches them off elsewhere, and a header
+    /// records the option only when it is on: headers written before the
+    /// family existed read as off, which is what those CNFs hold.
+    #[serde(default, skip_serializing_if = "is_false")]
+    pub nested: bool,
+}
+
+fn is_false(b: &bool) -> bool {
+    !*b
 }
 
 impl Default for EncodeOptions {
@@ -166,6 +177,7 @@ impl Default for EncodeOptions {
             count: true,
             packing: true,
             classes: true,
+            nested: true,
         }
     }
 }
@@ -179,6 +191,7 @@ impl EncodeOptions {
             count: false,
             packing: false,
             classes: false,
+            nested: false,
         }
     }
 
@@ -208,6 +221,7 @@ impl EncodeOptions {
             o.count = false;
             o.packing = false;
             o.classes = false;
+            o.nested = false;
             o.symmetry.reverse = false;
         }
         o
@@ -234,6 +248,10 @@ impl EncodeOptions {
         let mut o = self.for_domain(q.class, q.points.is_some());
         if o.formulation == Formulation::FullMap {
             return fullmap::resolve(&o, q);
+        }
+        if q.grid.diameter() < 3 || q.period < 2 {
+            // Two thresholds 1 ≤ u < t < L need a side of 3 or more.
+            o.nested = false;
         }
         let point_eq_ok = q.period as u128 * q.grid.num_points() <= POINT_EQ_LIMIT;
         if !point_eq_ok {

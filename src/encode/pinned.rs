@@ -50,6 +50,14 @@ fn cases() -> Vec<(&'static str, Question, EncodeOptions)> {
             EncodeOptions::default(),
         ),
         (
+            "mixed-7-no-nested",
+            boxed("0..1,-1..1,0..3", 3, 7),
+            EncodeOptions {
+                nested: false,
+                ..EncodeOptions::default()
+            },
+        ),
+        (
             "mixed-7-default",
             boxed("0..1,-1..1,0..3", 3, 7),
             EncodeOptions::default(),
@@ -98,9 +106,17 @@ fn rendered_cnf_bytes_are_unchanged() {
             "4cube-18-default",
             "7632323b6e22bba2f889494fee94913b7e8fa0bff32e35993756c4d4accc3438",
         ),
+        // The bytes of this box before `pack-nested` existed: with the
+        // family off the CNF is unchanged, header included.
+        (
+            "mixed-7-no-nested",
+            "d23ec4ffdfee559290e901062536e418aed09599ecefd8cf70058cfaceb8b40e",
+        ),
+        // Recorded when `pack-nested` was added (its option in the header,
+        // its clauses after `pack-classes`).
         (
             "mixed-7-default",
-            "d23ec4ffdfee559290e901062536e418aed09599ecefd8cf70058cfaceb8b40e",
+            "d835d9bb162380851ba37163774955f88876710aedb70c0725fce3cdaa6e7962",
         ),
         (
             "square-5-stabilizer",
@@ -160,8 +176,14 @@ fn store_keys_are_unchanged() {
             "7b11c391a29adc220337a6e4a0977344150407c435abde4ea6adb34c63802f04",
         ),
         (
-            "mixed-7-default",
+            "mixed-7-no-nested",
             "b5bebe3ac86dd11f932efdebf020658981b2ca4536dbdd4854c873738daf4088",
+        ),
+        // A new key: the option is recorded, so stored answers of the
+        // formula without the family are not taken for this one.
+        (
+            "mixed-7-default",
+            "3d113e54b053355939c81d8d8abafbec1d6f7d48ada87497de974471dec9c143",
         ),
         (
             "square-5-stabilizer",

@@ -78,6 +78,7 @@ pub(crate) fn variations(
             count,
             packing,
             classes,
+            nested: classes,
             ..base.clone()
         });
     symmetric.chain(counting).collect()

@@ -453,6 +453,16 @@ fn shell(word: &str) -> String {
     }
 }
 
+/// Whether `q` is a box with a side of 3 or more and a period of 2 or more,
+/// where the family `pack-nested` can act.
+fn wide_box(q: &QuestionFacts) -> bool {
+    q.period >= 2
+        && q.points.is_none()
+        && q.bounds
+            .as_deref()
+            .is_some_and(|b| b.iter().any(|(lo, hi)| hi - lo >= 3))
+}
+
 /// The flags that state the domain and class of `q` (not the period).
 fn domain_flags(q: &QuestionFacts) -> Vec<String> {
     let mut f = Vec::new();
@@ -479,7 +489,10 @@ fn domain_flags(q: &QuestionFacts) -> Vec<String> {
 }
 
 /// The flags that rebuild the encoding options recorded in `options`.
-fn option_flags(options: Option<&Value>, on_points: bool) -> Vec<String> {
+/// `wide` says that the question's box has a side of 3 or more, where an
+/// isometric-cycle encoding without `nested` was asked for without it (a
+/// header records `nested` only when it is on).
+fn option_flags(options: Option<&Value>, on_points: bool, wide: bool) -> Vec<String> {
     let Some(o) = options else { return Vec::new() };
     let mut f = Vec::new();
     if let Some(sym) = o.get("symmetry").and_then(Value::as_object) {
@@ -506,10 +519,12 @@ fn option_flags(options: Option<&Value>, on_points: bool) -> Vec<String> {
             f.push(flag.into());
         }
     }
-    let full_map = o
-        .get("formulation")
-        .and_then(Value::as_str)
-        .is_some_and(|s| s.starts_with("full-map"));
+    let formulation = o.get("formulation").and_then(Value::as_str);
+    let cycle = formulation.is_some_and(|s| s.starts_with("isometric-cycle"));
+    if wide && cycle && o.get("nested").and_then(Value::as_bool) != Some(true) {
+        f.push("--no-nested".into());
+    }
+    let full_map = formulation.is_some_and(|s| s.starts_with("full-map"));
     if full_map && !on_points {
         f.push("--formulation".into());
         f.push("full-map".into());
@@ -557,7 +572,11 @@ pub fn recheck_answer(a: &Answer, origin: &Origin) -> Vec<(String, String)> {
             let mut enc = vec!["orbitcnf".into(), "encode".into()];
             enc.extend(domain_flags(q));
             enc.extend(["--period".into(), q.period.to_string()]);
-            enc.extend(option_flags(a.options.as_ref(), q.points.is_some()));
+            enc.extend(option_flags(
+                a.options.as_ref(),
+                q.points.is_some(),
+                wide_box(q),
+            ));
             enc.extend(["-o".into(), "formula.cnf".into()]);
             out.push((
                 command(&enc),
@@ -580,7 +599,11 @@ pub fn recheck_answer(a: &Answer, origin: &Origin) -> Vec<(String, String)> {
         let mut w = vec!["orbitcnf".into(), "decide".into()];
         w.extend(domain_flags(q));
         w.extend(["--period".into(), q.period.to_string()]);
-        w.extend(option_flags(a.options.as_ref(), q.points.is_some()));
+        w.extend(option_flags(
+            a.options.as_ref(),
+            q.points.is_some(),
+            wide_box(q),
+        ));
         w.extend(["--bundle".into(), "bundle".into()]);
         out.push((
             command(&w) + " && orbitcnf check-bundle bundle",

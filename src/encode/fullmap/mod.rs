@@ -102,6 +102,7 @@ pub fn for_domain(options: &EncodeOptions) -> EncodeOptions {
         count: options.count,
         packing: false,
         classes: false,
+        nested: false,
     }
 }
 

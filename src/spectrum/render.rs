@@ -96,8 +96,16 @@ impl Spectrum {
     fn options_words(&self) -> String {
         let o = &self.options;
         let on_off = |b: bool| if b { "on" } else { "off" };
+        // `pack-nested` acts only on boxes with a side of 3 or more; it is
+        // named only there, so the words for other boxes are as before.
+        let wide = crate::grid::Grid::parse(&self.grid, None).is_ok_and(|g| g.diameter() >= 3);
+        let nested = if wide && self.points.is_none() {
+            format!(", nested {}", on_off(o.nested))
+        } else {
+            String::new()
+        };
         format!(
-            "{} (symmetry {}, count {}, packing {}, classes {})",
+            "{} (symmetry {}, count {}, packing {}, classes {}{nested})",
             o.formulation,
             if o.symmetry == Symmetry::ALL {
                 "all".to_string()

@@ -216,7 +216,7 @@ impl Answer {
     /// The answer in words for messages: verdict, how, run, time, version.
     pub fn describe(&self) -> String {
         format!(
-            "{} by {} (run {}, finished {}, orbitcnf {}, symmetry {}, count {}, packing {}, classes {})",
+            "{} by {} (run {}, finished {}, orbitcnf {}, symmetry {}, count {}, packing {}, classes {}{})",
             self.verdict.word(),
             self.how.word(),
             self.run_id,
@@ -225,7 +225,13 @@ impl Answer {
             self.options.symmetry.names(),
             on_off(self.options.count),
             on_off(self.options.packing),
-            on_off(self.options.classes)
+            on_off(self.options.classes),
+            // Recorded (and so named) only where the family acts.
+            if self.options.nested {
+                ", nested on"
+            } else {
+                ""
+            }
         )
     }
 }

@@ -44,6 +44,7 @@
 //! coverage CNF satisfiable, which `split` reports as an error. The written
 //! argument is `encodings/cubes.md`.
 
+pub mod auto;
 pub mod jobs;
 pub mod run;
 

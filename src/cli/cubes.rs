@@ -10,6 +10,8 @@ use orbitcnf::proof::LratFormat;
 use orbitcnf::solve::bundled::Bundled;
 use orbitcnf::solve::certified::Certified;
 use orbitcnf::solve::{Backend, Limits};
+use orbitcnf::split::auto::CubeTarget;
+use orbitcnf::split::layout::{LayoutChoice, SplitLayout};
 use orbitcnf::split::{self, run as cube_run};
 
 use super::args::{EncodingArgs, ProgressArgs, QuestionArgs, SolverArgs, parse_seconds};
@@ -75,9 +77,17 @@ pub struct SplitArgs {
     #[command(flatten)]
     encoding: EncodingArgs,
     /// How many cubes to aim for: prefixes of the profile are refined until
-    /// there are at least this many (fewer when the profile runs out).
-    #[arg(long, value_name = "N", default_value_t = 16)]
-    cubes: usize,
+    /// there are at least this many (fewer when the profile runs out); or
+    /// `auto`: the cubes `decide` switches to when its probe gives no answer
+    /// (one per whole lex-leader profile while there are at most 4096 of
+    /// them, else 1024 breadth-first prefixes).
+    #[arg(long, value_name = "N|auto", default_value = "16", value_parser = parse_cube_target)]
+    cubes: CubeTarget,
+    /// `files`: one standalone CNF per cube in cubes/; `compact`: none, the
+    /// cubes are built from formula.cnf and their literals by run-cube;
+    /// `auto` (the default): files while they take at most 1 GiB together.
+    #[arg(long, value_name = "LAYOUT", default_value = "auto", value_parser = parse_layout)]
+    layout: LayoutChoice,
     /// The folder to write (created). Run again on a folder that holds the
     /// same split, it writes again any file that is missing or damaged and
     /// keeps the results; a split of another question there is an error.
@@ -92,7 +102,14 @@ pub struct SplitArgs {
 pub fn run_split(a: SplitArgs) -> Outcome {
     let q = a.question.question()?;
     let options = a.encoding.options(q.points.is_some())?;
-    let w = split::write_split(&a.out, &q, &options, a.cubes, a.encoding.max_clauses)?;
+    let w = split::write_split(
+        &a.out,
+        &q,
+        &options,
+        a.cubes,
+        a.layout,
+        a.encoding.max_clauses,
+    )?;
     if !w.restored.is_empty() {
         eprintln!(
             "the split in {} was repaired: written again: {}",
@@ -106,6 +123,25 @@ pub fn run_split(a: SplitArgs) -> Outcome {
         || w.manifest.summary(&a.out, &q.statement()),
     )?;
     Ok(0)
+}
+
+fn parse_cube_target(s: &str) -> Result<CubeTarget, String> {
+    match s {
+        "auto" => Ok(CubeTarget::Auto),
+        n => n
+            .parse()
+            .map(CubeTarget::Count)
+            .map_err(|_| format!("{s:?} is neither a cube count nor `auto`")),
+    }
+}
+
+fn parse_layout(s: &str) -> Result<LayoutChoice, String> {
+    match s {
+        "auto" => Ok(LayoutChoice::Auto),
+        "files" => Ok(LayoutChoice::Fixed(SplitLayout::Files)),
+        "compact" => Ok(LayoutChoice::Fixed(SplitLayout::Compact)),
+        _ => Err(format!("{s:?}: write files, compact or auto")),
+    }
 }
 
 /// Arguments of `run-cube`.

@@ -62,6 +62,15 @@ pub const BREADTH_FIRST_TARGET: usize = 1024;
 /// The default probe: this many seconds of one ordinary solve.
 pub const DEFAULT_PROBE: Duration = Duration::from_secs(15);
 
+/// How many cubes to make.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum CubeTarget {
+    /// About this many ([`super::cubes`]).
+    Count(usize),
+    /// As the automatic strategy chooses them ([`choose_cubes`]).
+    Auto,
+}
+
 /// How [`decide_auto`] runs.
 #[derive(Clone, Debug)]
 pub struct AutoOptions {

@@ -350,6 +350,11 @@ fn solve_cube(
         (Outcome::Unknown(_), _) if stop.load(Ordering::Relaxed) => {
             CubeRun::Unknown("stopped: another cube is satisfiable".into())
         }
+        // The cube's own time was what remained of the run's; its limit in
+        // seconds would mislead.
+        (Outcome::Unknown(_), _) if deadline.is_some_and(|d| Instant::now() >= d) => {
+            CubeRun::Unknown("time limit reached".into())
+        }
         (Outcome::Unknown(w), _) => CubeRun::Unknown(w),
         (Outcome::Unsat, None) => CubeRun::Failed(Error::Solver {
             solver: NAME.into(),

@@ -349,7 +349,7 @@ fn decide_jobs_agrees_with_decide_and_certifies_the_whole_cnf() {
     dir.orbitcnf()
         .arg("decide")
         .args(q.args())
-        .args(["--jobs", "2", "--bundle", "b"])
+        .args(["--jobs", "2", "--no-auto-split", "--bundle", "b"])
         .run()
         .code(INFEASIBLE);
     dir.orbitcnf()

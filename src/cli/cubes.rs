@@ -22,7 +22,9 @@ pub const SPLIT_HELP: &str = "\
 How the space is cut: a cube fixes a prefix g(1..j) of the distance profile
 g(k) = ‖x_i − x_{i+k}‖∞; prefixes are refined breadth-first until there are
 at least --cubes of them (or every profile is fixed), and prefixes that no
-multiplier lex-leader extends are dropped. coverage.cnf (the profile's order
+multiplier lex-leader extends are dropped. --cubes auto takes the cubes that
+`decide` switches to by itself: one per whole profile while there are at most
+4096, else 1024 prefixes. coverage.cnf (the profile's order
 encoding and lex-leader clauses of formula.cnf, plus the negation of every
 cube) is refuted and its LRAT proof checked before anything is written: every
 model of formula.cnf lies in some cube (encodings/cubes.md).
@@ -32,9 +34,16 @@ The folder:
   formula.cnf          the whole CNF (orbitcnf header)
   cubes.icnf           the CNF in iCNF: 'p inccnf', the clauses, one 'a … 0' per cube
   cubes/cube-NNNN.cnf  the CNF plus the cube's units; `orbitcnf decode` reads
-                       any solver's output on it
+                       any solver's output on it (file layout only)
   coverage.cnf, coverage.lrat   the coverage check and its proof
   results/             filled by run-cube
+
+Layout: cube files repeat the whole CNF, so above 1 GiB of them (--layout
+auto, the default) or with --layout compact there are none: the manifest
+lists each cube's literals with a digest of formula.cnf and the cube, and
+run-cube builds the CNF plus the cube's units in memory (an external solver
+gets it as a temporary file). To run a solver on one cube by hand, take
+formula.cnf and the cube's 'a' line of cubes.icnf as unit clauses.
 
 Then: orbitcnf run-cube DIR INDEX for every index (see docs/cluster.md for
 Slurm and GNU parallel), and orbitcnf merge DIR.";
@@ -53,8 +62,9 @@ recorded in the result file as status \"error\" before exiting).";
 
 /// The long help of `merge`.
 pub const MERGE_HELP: &str = "\
-merge re-encodes the question and checks that formula.cnf, every cube file and
-coverage.cnf are byte for byte what this orbitcnf writes, re-checks the
+merge re-encodes the question and checks that formula.cnf, every cube file (or,
+in the compact layout, every cube's digest) and coverage.cnf are byte for byte
+what this orbitcnf writes, re-checks the
 coverage proof, re-verifies every orbit and re-checks every cube's LRAT proof
 against its cube CNF. The verdict is feasible if some cube is, infeasible if
 every cube is refuted, and unknown otherwise, with the missing or failed cubes

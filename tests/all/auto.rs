@@ -15,7 +15,7 @@
 
 use serde_json::Value;
 
-use crate::util::{FEASIBLE, INFEASIBLE, Q, TestDir, bin, check_report, have_tool};
+use crate::util::{FEASIBLE, INFEASIBLE, Q, TestDir, check_report, have_tool};
 
 /// `decide` of `q` with the probe at 0 conflicts and `extra`.
 fn auto_decide(dir: &TestDir, q: &Q, extra: &[&str]) -> crate::util::Run {
@@ -41,16 +41,7 @@ fn a_question_the_probe_leaves_open_is_refuted_in_cubes_with_one_checked_proof()
         .stdout_has("certificate  LRAT proof")
         .stderr_has("decide: the probe gave no answer (conflict budget of 0 reached); switching to 36 full-profile cubes on 2 threads");
     // The assembled proof is a proof of the very CNF that `encode` writes.
-    dir.orbitcnf()
-        .arg("encode")
-        .args(q.args())
-        .args(["-o", "f.cnf"])
-        .run()
-        .code(0);
-    dir.orbitcnf()
-        .args(["verify-proof", "f.cnf", "p.lrat"])
-        .run()
-        .code(0);
+    crate::scaleout::proof_refutes_the_encoded_cnf(&dir, &q, "p.lrat");
     if have_tool("cadical") {
         // An independent solver agrees that the CNF is unsatisfiable.
         let c = dir.program("cadical").args(["-q", "f.cnf"]).run();
@@ -155,21 +146,7 @@ fn a_compact_split_with_the_automatic_cubes_merges_to_the_verdict_of_decide() {
         assert_eq!(c["sha256"], want.as_str(), "{c}");
     }
     let all: Vec<String> = (0..cubes.len()).map(|i| i.to_string()).collect();
-    dir.program("parallel")
-        .args([
-            "--will-cite",
-            "-j",
-            "2",
-            bin(),
-            "run-cube",
-            "sp",
-            "{}",
-            "-q",
-            ":::",
-        ])
-        .args(&all)
-        .run()
-        .code(0);
+    crate::scaleout::parallel_run_cubes(&dir, "sp", &all);
     let merged = dir
         .orbitcnf()
         .args(["merge", "sp", "--proof", "all.lrat"])

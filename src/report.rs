@@ -163,9 +163,7 @@ pub struct Strategy {
     /// How many cubes followed.
     pub cubes: usize,
     /// How they were chosen: `full-profile` (every multiplier lex-leader
-    /// profile, one cube each), `breadth-first` (profile prefixes refined
-    /// to a target count), `start-point` (full-map formulation) or `given`
-    /// (a cube count asked for).
+    /// profile, one cube each) or `start-point` (full-map formulation).
     pub cube_rule: String,
     /// Threads that solved them.
     pub threads: usize,

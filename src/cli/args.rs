@@ -408,8 +408,10 @@ pub struct ScaleArgs {
     #[arg(long, value_name = "N")]
     pub cubes: Option<usize>,
     /// The probe: one ordinary solve of at most SECS seconds (default 15)
-    /// before a question is split into cubes. A question answered within
-    /// it gets the ordinary report; otherwise the report's `strategy` line
+    /// before a question is split into one cube per lex-leader distance
+    /// profile (when there are at most 4096; otherwise one solve is made
+    /// with the whole time limit). A question answered within the probe
+    /// gets the ordinary report; otherwise the report's `strategy` line
     /// says what followed.
     #[arg(long, value_name = "SECS", value_parser = parse_seconds)]
     pub probe: Option<Duration>,

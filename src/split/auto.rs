@@ -4,9 +4,10 @@
 //! Most questions are answered by one solve in well under a second, and a
 //! split costs more than it saves there (the coverage check, one solver per
 //! cube, a proof per cube to lift and assemble). Hard questions are the
-//! other way round: `{0,1,2,3}^4, p = 17` has no answer after 300 s of one
-//! solve, while 833 of its 834 full-profile cubes are refuted in 86 s on two
-//! threads. So [`decide_auto`] first runs the ordinary solve within a
+//! other way round: `{0,1,2,3}^4, p = 17` had no answer after 300 s of one
+//! solve, while 833 of its 834 full-profile cubes were refuted in 86 s on two
+//! threads (measured before the `pack-nested` exclusions, with which one
+//! solve takes 16 s). So [`decide_auto`] first runs the ordinary solve within a
 //! budget (the *probe*: [`AutoOptions::probe`] seconds, or a conflict
 //! budget); when that answers, the report is exactly that of the ordinary
 //! solve. Only questions with at most [`FULL_PROFILE_CAP`] whole profiles

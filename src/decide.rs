@@ -21,7 +21,7 @@ use crate::bundle;
 use crate::cnf::Cnf;
 use crate::decode;
 use crate::dimacs::{self, CnfFile, SolverAnswer, Status};
-use crate::encode::{self, EncodeOptions};
+use crate::encode::{self, EncodeOptions, Encoding};
 use crate::error::{Error, Result};
 use crate::evidence::{self, Evidence};
 use crate::proof::LratFormat;
@@ -31,6 +31,7 @@ use crate::solve::bundled::Bundled;
 use crate::solve::certified::Certified;
 use crate::solve::external::External;
 use crate::solve::{Backend, Limits, Outcome, SolveStats, check_model};
+use crate::split::auto::{AutoOptions, decide_auto};
 use crate::split::jobs::{JobsOptions, decide_parallel};
 use crate::varmap::VarMap;
 
@@ -51,6 +52,22 @@ pub fn decide(
     let t0 = Instant::now();
     let enc = encode::encode(q, options, max_clauses)?;
     let encode_seconds = t0.elapsed().as_secs_f64();
+    decide_encoded(q, options, &enc, encode_seconds, backend, limits)
+}
+
+/// [`decide`] on a question already encoded as `enc` (with `options` as
+/// given, for the report), which took `encode_seconds`.
+///
+/// # Errors
+/// As [`decide`], less the encoding.
+pub fn decide_encoded(
+    q: &Question,
+    options: &EncodeOptions,
+    enc: &Encoding,
+    encode_seconds: f64,
+    backend: &mut dyn Backend,
+    limits: &Limits,
+) -> Result<Report> {
     let result = backend.solve(&enc.cnf, limits)?;
     let size = SizeStats::of(&enc.cnf, enc.families.clone(), encode_seconds);
     let (verdict, witness, certificate, reason) = match result.outcome {
@@ -230,6 +247,9 @@ pub enum Solver {
     External(External),
     /// Cubes of an internal split on threads, with the bundled solver.
     Cubes(JobsOptions),
+    /// The bundled solver within a budget, then cubes on threads when it
+    /// gave no answer ([`crate::split::auto`]).
+    Auto(AutoOptions),
 }
 
 /// Where the evidence of a decision goes besides the report.
@@ -307,6 +327,7 @@ pub fn run(req: &Request) -> Result<Decision> {
         Solver::Bundled { certify } => *certify,
         Solver::External(ext) => ext.proof.is_some(),
         Solver::Cubes(opts) => opts.certify,
+        Solver::Auto(opts) => opts.certify,
     };
     let temp_proof = match (&req.outputs.proof, &req.outputs.bundle) {
         (None, Some(dir)) if proves => Some(crate::artifact::temp_beside(dir)?.into_temp_path()),
@@ -364,6 +385,26 @@ pub fn run(req: &Request) -> Result<Decision> {
                 ..opts.clone()
             };
             decide_parallel(q, &req.options, &opts, &req.limits, req.max_clauses)?
+        }
+        Solver::Auto(opts) => {
+            if req.outputs.raw_proof.is_some() {
+                return Err(Error::Options(
+                    "a run that may switch to cubes assembles its proof as LRAT; the \
+                     solver's own proof format needs a single solve"
+                        .into(),
+                ));
+            }
+            if lrat.is_some() && !opts.certify {
+                return Err(Error::Options(
+                    "a proof needs certification, which was turned off".into(),
+                ));
+            }
+            let opts = AutoOptions {
+                lrat: lrat.clone(),
+                format: req.outputs.format,
+                ..opts.clone()
+            };
+            decide_auto(q, &req.options, &opts, &req.limits, req.max_clauses)?
         }
     };
     let report = if req.accept_claims {

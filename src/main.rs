@@ -35,6 +35,18 @@ struct Cli {
 enum Command {
     /// Decide a question with the bundled solver and print a checked answer.
     ///
+    /// Hard questions: decide first runs one ordinary solve for at most 15 s
+    /// (the probe; --probe SECS, --probe-conflicts N). Most questions are
+    /// answered there, with the ordinary report. Otherwise, while time remains
+    /// (--time-limit), the question is split into cubes, one per distance
+    /// profile g(1..K) that the symmetry breaking leaves, solved on every
+    /// core (--jobs K); with more than 4096 such profiles there is one solve
+    /// and no switch (measured: prefix cubes cost more there). Every cube's
+    /// proof is checked and one LRAT proof of the whole CNF is assembled and
+    /// checked. The report's `strategy` line (JSON: "strategy") says so.
+    /// --no-auto-split keeps the single solve; --cubes N splits at once;
+    /// `orbitcnf split --cubes auto` writes the same cubes for a cluster.
+    ///
     /// Example: orbitcnf decide --dim 3 --grid=-1..1 --period 8
     #[command(after_help = EXIT_CODES)]
     Decide(decide::DecideArgs),

@@ -141,6 +141,51 @@ pub struct Report {
     pub reason: Option<String>,
     /// Sizes and times.
     pub stats: Stats,
+    /// How the question was solved, when `decide` switched to cubes by
+    /// itself ([`crate::split::auto`]); absent when one solve answered.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub strategy: Option<Strategy>,
+}
+
+/// What the automatic strategy of `decide` did: a probe (one ordinary solve
+/// within a budget) that gave no answer, then cubes on threads.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct Strategy {
+    /// The probe's time budget in seconds.
+    pub probe_budget_seconds: f64,
+    /// The probe's conflict budget, when one was set.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub probe_budget_conflicts: Option<u64>,
+    /// Seconds the probe ran.
+    pub probe_seconds: f64,
+    /// Conflicts of the probe.
+    pub probe_conflicts: u64,
+    /// How many cubes followed.
+    pub cubes: usize,
+    /// How they were chosen: `full-profile` (every multiplier lex-leader
+    /// profile, one cube each) or `start-point` (full-map formulation).
+    pub cube_rule: String,
+    /// Threads that solved them.
+    pub threads: usize,
+}
+
+impl Strategy {
+    /// The strategy in words, for the report's `strategy` line.
+    pub fn to_words(&self) -> String {
+        let budget = match self.probe_budget_conflicts {
+            Some(c) => format!("{c} conflicts"),
+            None => format!("{:.0} s", self.probe_budget_seconds),
+        };
+        format!(
+            "probe (budget {budget}) gave no answer in {:.1} s ({} conflicts), then {} {} cubes on {} thread{}",
+            self.probe_seconds,
+            self.probe_conflicts,
+            self.cubes,
+            self.cube_rule,
+            self.threads,
+            if self.threads == 1 { "" } else { "s" }
+        )
+    }
 }
 
 impl Report {
@@ -184,6 +229,7 @@ impl Report {
             certificate,
             reason,
             stats: Stats { size, solve },
+            strategy: None,
         }
     }
 
@@ -337,6 +383,9 @@ impl Report {
                 );
             }
             Evidence::None => {}
+        }
+        if let Some(st) = &self.strategy {
+            let _ = writeln!(s, "strategy     {}", st.to_words());
         }
         let st = &self.stats;
         let conflicts = st

@@ -44,24 +44,32 @@
 //! coverage CNF satisfiable, which `split` reports as an error. The written
 //! argument is `encodings/cubes.md`.
 
+pub mod auto;
 pub mod jobs;
+pub mod layout;
+mod manifest;
 pub mod run;
+mod verify;
+
+pub use manifest::{CoverageEntry, CubeEntry, SplitManifest, SplitRule};
+pub use verify::verify_split;
 
 use std::path::Path;
 
 use serde::{Deserialize, Serialize};
 
 pub use crate::artifact::FileEntry;
-use crate::artifact::{sha256_hex, write_atomically};
+use crate::artifact::write_atomically;
 use crate::cnf::{Cnf, FamilyCount, Lit};
 use crate::dimacs::{VERSION, render_cnf};
 use crate::encode::{EncodeOptions, Encoding, Formulation, encode, fullmap, profile, symmetry};
 use crate::error::{Error, Result};
-use crate::proof::{LratOptions, LratSummary};
-use crate::question::{Question, QuestionRecord};
-use crate::solve::refute::{CheckedProof, ProofPlan, recheck_file, solve_bundled};
+use crate::question::Question;
+use crate::solve::refute::{CheckedProof, ProofPlan, solve_bundled};
 use crate::solve::{Limits, Outcome};
 use crate::varmap::Meaning;
+use auto::CubeTarget;
+use layout::{FORMAT_COMPACT, LayoutChoice, SplitLayout, compact_digest};
 
 /// The manifest's file name.
 pub const MANIFEST: &str = "manifest.json";
@@ -178,26 +186,35 @@ pub fn profile_cubes(enc: &Encoding, target: usize) -> Result<Vec<Cube>> {
     } else {
         Vec::new()
     };
+    let target = target.max(1);
     let mut prefixes: Vec<Vec<i64>> = vec![Vec::new()];
-    while prefixes.len() < target.max(1) {
-        let Some(pos) = (0..prefixes.len())
-            .filter(|&i| prefixes[i].len() < k_max)
-            .min_by_key(|&i| prefixes[i].len())
-        else {
+    // One pass per level: the shortest prefixes are replaced by their
+    // extensions from left to right until the target is reached, as one
+    // replacement at a time would, but in time linear in the list.
+    while prefixes.len() < target {
+        let Some(shortest) = prefixes.iter().map(Vec::len).filter(|&n| n < k_max).min() else {
             break;
         };
-        let parent = prefixes.remove(pos);
-        let children: Vec<Vec<i64>> = (1..=l)
-            .map(|v| {
-                let mut c = parent.clone();
-                c.push(v);
-                c
-            })
-            .filter(|c| prefix_survives(c, &maps, k_max))
-            .collect();
-        for (n, c) in children.into_iter().enumerate() {
-            prefixes.insert(pos + n, c);
+        let mut count = prefixes.len();
+        let mut next = Vec::with_capacity(prefixes.len() * l as usize);
+        for parent in prefixes {
+            if parent.len() != shortest || count >= target {
+                next.push(parent);
+                continue;
+            }
+            let before = next.len();
+            next.extend(
+                (1..=l)
+                    .map(|v| {
+                        let mut c = parent.clone();
+                        c.push(v);
+                        c
+                    })
+                    .filter(|c| prefix_survives(c, &maps, k_max)),
+            );
+            count = count + (next.len() - before) - 1;
         }
+        prefixes = next;
     }
     prefixes
         .into_iter()
@@ -393,120 +410,6 @@ pub fn render_coverage(enc: &Encoding, cnf: &Cnf, cubes: &[Cube]) -> Vec<u8> {
     out
 }
 
-/// A cube as the manifest lists it.
-#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
-pub struct CubeEntry {
-    /// The cube.
-    #[serde(flatten)]
-    pub cube: Cube,
-    /// Its standalone CNF.
-    pub file: FileEntry,
-}
-
-/// The coverage check as the manifest records it.
-#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
-pub struct CoverageEntry {
-    /// The coverage CNF.
-    pub cnf: FileEntry,
-    /// Its LRAT refutation, accepted by orbitcnf's checker when written.
-    pub proof: FileEntry,
-    /// Clauses taken from `formula.cnf`.
-    pub formula_clauses: usize,
-    /// Steps of the accepted proof.
-    pub lrat_steps: u64,
-}
-
-/// How the cubes were chosen (informative; soundness rests on the coverage proof).
-#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
-pub struct SplitRule {
-    /// `profile-prefix`.
-    pub rule: String,
-    /// `K`, the profile's length: `⌊p/2⌋`, or `p − 1` for topical maps.
-    pub offsets: usize,
-    /// `L`, the largest profile value.
-    pub max_value: i64,
-    /// Whether prefixes that no multiplier lex-leader extends were dropped.
-    pub multiplier_pruning: bool,
-}
-
-/// `manifest.json` of a split folder.
-#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
-pub struct SplitManifest {
-    /// [`FORMAT`].
-    pub format: String,
-    /// orbitcnf version that wrote the split.
-    pub orbitcnf_version: String,
-    /// The question.
-    pub question: QuestionRecord,
-    /// The encoding options as resolved for the question.
-    pub options: EncodeOptions,
-    /// The number of cubes asked for (`--cubes`).
-    pub requested_cubes: usize,
-    /// How the cubes were chosen.
-    pub split: SplitRule,
-    /// `formula.cnf`.
-    pub formula: FileEntry,
-    /// `cubes.icnf`.
-    pub icnf: FileEntry,
-    /// The coverage check.
-    pub coverage: CoverageEntry,
-    /// The cubes, in index order.
-    pub cubes: Vec<CubeEntry>,
-}
-
-impl SplitManifest {
-    /// What `split` wrote to `dir`, and what to do next, for people.
-    pub fn summary(&self, dir: &Path, statement: &str) -> String {
-        let d = dir.display();
-        let n = self.cubes.len();
-        format!(
-            "question     {statement}\ncubes        {n} (asked for {}), {}\n\
-             coverage     checked: LRAT proof of {} steps refutes coverage.cnf, so every model lies in a cube\n\
-             written      {d}/manifest.json, formula.cnf, cubes.icnf, coverage.cnf, coverage.lrat, cubes/cube-NNNN.cnf\n\
-             next         orbitcnf run-cube {d} INDEX   for INDEX in 0..{}   (docs/cluster.md: Slurm, GNU parallel)\n\
-             \x20            orbitcnf merge {d}\n",
-            self.requested_cubes,
-            if self.split.rule == "start-point" {
-                "one per start point x_0 (full-map formulation)".to_string()
-            } else {
-                format!(
-                    "prefixes of the distance profile g(1..{})",
-                    self.split.offsets
-                )
-            },
-            self.coverage.lrat_steps,
-            n.saturating_sub(1),
-        )
-    }
-
-    /// Reads `dir/manifest.json`.
-    ///
-    /// # Errors
-    /// [`Error::Io`] or [`Error::Parse`] (not a split manifest, or another format).
-    pub fn read(dir: &Path) -> Result<SplitManifest> {
-        let path = dir.join(MANIFEST);
-        let name = path.display().to_string();
-        let bytes = std::fs::read(&path).map_err(|e| Error::io(&path, e))?;
-        let m: SplitManifest = serde_json::from_slice(&bytes)
-            .map_err(|e| Error::parse(&name, e.line(), format!("not a split manifest: {e}")))?;
-        if m.format != FORMAT {
-            return Err(Error::parse(
-                &name,
-                0,
-                format!("format {:?}, this orbitcnf reads {FORMAT:?}", m.format),
-            ));
-        }
-        if m.cubes.iter().enumerate().any(|(i, c)| c.cube.index != i) {
-            return Err(Error::parse(
-                &name,
-                0,
-                "the cubes are not listed in index order",
-            ));
-        }
-        Ok(m)
-    }
-}
-
 /// The file name of cube `index`'s CNF, relative to the split folder.
 pub fn cube_file_name(index: usize) -> String {
     format!("{CUBES_DIR}/cube-{index:04}.cnf")
@@ -573,44 +476,64 @@ pub struct SplitWritten {
     pub restored: Vec<String>,
 }
 
-/// Splits `q` into about `target` cubes and writes the split folder `dir`
-/// (created if needed). A folder that already holds a split of the same
-/// question, options and cube count is repaired: every file that is
-/// missing or differs from what this orbitcnf writes is written again
-/// (the encoding and the cubes are deterministic), and the results in
-/// `results/` are kept.
+/// Splits `q` into about `target` cubes (or as [`auto::choose_cubes`]
+/// chooses) and writes the split folder `dir` (created if needed) in the
+/// layout `layout` resolves to ([`layout`]). A folder that already holds a
+/// split of the same question, options, cube count and layout is repaired:
+/// every file that is missing or differs from what this orbitcnf writes is
+/// written again (the encoding and the cubes are deterministic), and the
+/// results in `results/` are kept.
 ///
 /// # Errors
-/// [`Error::Options`] for `target = 0` or a folder that holds a split of
-/// another question; encoding errors; [`Error::Io`]; a failed coverage check.
+/// [`Error::Options`] for a target of 0 cubes or a folder that holds a
+/// split of another question; encoding errors; [`Error::Io`]; a failed
+/// coverage check.
 pub fn write_split(
     dir: &Path,
     q: &Question,
     options: &EncodeOptions,
-    target: usize,
+    target: CubeTarget,
+    layout: LayoutChoice,
     max_clauses: u64,
 ) -> Result<SplitWritten> {
-    if target == 0 {
+    if target == CubeTarget::Count(0) {
         return Err(Error::Options("--cubes must be at least 1".into()));
     }
     let enc = encode(q, options, max_clauses)?;
+    let (cubes, auto_cubes) = match target {
+        CubeTarget::Count(n) => (cubes(&enc, n)?, false),
+        CubeTarget::Auto => (auto::choose_cubes(&enc)?.cubes, true),
+    };
+    let requested = match target {
+        CubeTarget::Count(n) => n,
+        CubeTarget::Auto => cubes.len(),
+    };
+    let formula_text = render_cnf(&enc);
+    let layout = layout.resolve(cubes.len(), formula_text.len() as u64);
     if dir.join(MANIFEST).exists() {
         let old = SplitManifest::read(dir)?;
-        if old.question != q.record() || old.options != enc.options || old.requested_cubes != target
+        if old.question != q.record()
+            || old.options != enc.options
+            || old.requested_cubes != requested
+            || old.auto_cubes != auto_cubes
+            || old.layout != layout
         {
             return Err(Error::Options(format!(
-                "{} already holds a split of another question, other options or another \
-                 cube count ({MANIFEST}); choose another folder or remove it",
+                "{} already holds a split of another question, other options, another \
+                 cube count or layout ({MANIFEST}); choose another folder or remove it",
                 dir.display()
             )));
         }
     }
-    let cubes = cubes(&enc, target)?;
     let coverage = coverage_cnf(&enc, &cubes);
     let checked = refute_coverage(&enc, &coverage)?;
     let proof = std::fs::read(checked.path()).map_err(|e| Error::io(checked.path(), e))?;
     let summary = checked.info.lrat;
-    for sub in [CUBES_DIR, RESULTS_DIR] {
+    let subs: &[&str] = match layout {
+        SplitLayout::Files => &[CUBES_DIR, RESULTS_DIR],
+        SplitLayout::Compact => &[RESULTS_DIR],
+    };
+    for sub in subs {
         let d = dir.join(sub);
         std::fs::create_dir_all(&d).map_err(|e| Error::io(&d, e))?;
     }
@@ -632,24 +555,41 @@ pub fn write_split(
         }
         Ok(FileEntry::of(name, bytes))
     };
-    let formula = put(FORMULA, &render_cnf(&enc))?;
+    let formula = put(FORMULA, &formula_text)?;
     let icnf = put(ICNF, &render_icnf(&enc, &cubes))?;
     let cov_cnf = put(COVERAGE, &render_coverage(&enc, &coverage, &cubes))?;
     let cov_proof = put(COVERAGE_PROOF, &proof)?;
     let mut entries = Vec::with_capacity(cubes.len());
     for c in cubes {
-        let file = put(
-            &cube_file_name(c.index),
-            &render_cnf(&cube_encoding(&enc, &c)),
-        )?;
-        entries.push(CubeEntry { cube: c, file });
+        let entry = match layout {
+            SplitLayout::Files => CubeEntry {
+                file: Some(put(
+                    &cube_file_name(c.index),
+                    &render_cnf(&cube_encoding(&enc, &c)),
+                )?),
+                sha256: None,
+                cube: c,
+            },
+            SplitLayout::Compact => CubeEntry {
+                sha256: Some(compact_digest(&formula.sha256, &c)),
+                file: None,
+                cube: c,
+            },
+        };
+        entries.push(entry);
     }
     let manifest = SplitManifest {
-        format: FORMAT.into(),
+        format: match layout {
+            SplitLayout::Files => FORMAT,
+            SplitLayout::Compact => FORMAT_COMPACT,
+        }
+        .into(),
         orbitcnf_version: VERSION.into(),
         question: q.record(),
         options: enc.options.clone(),
-        requested_cubes: target,
+        requested_cubes: requested,
+        auto_cubes,
+        layout,
         split: if enc.options.formulation == Formulation::FullMap {
             SplitRule {
                 rule: "start-point".into(),
@@ -675,75 +615,20 @@ pub fn write_split(
         },
         cubes: entries,
     };
-    let text = serde_json::to_string_pretty(&manifest).expect("manifest serialises") + "\n";
+    // Thousands of cubes make a pretty-printed list (a line per literal)
+    // many times larger than one line per cube would be; compact splits
+    // are the big ones.
+    let text = match layout {
+        SplitLayout::Files => serde_json::to_string_pretty(&manifest),
+        SplitLayout::Compact => serde_json::to_string(&manifest),
+    }
+    .expect("manifest serialises")
+        + "\n";
     write_atomically(&dir.join(MANIFEST), text.as_bytes())?;
     Ok(SplitWritten {
         manifest,
         restored: restored.into_inner(),
     })
-}
-
-/// Re-checks a split against a fresh encoding: `formula.cnf`, every cube
-/// file and `coverage.cnf` must be exactly what this orbitcnf writes for the
-/// manifest's question, options and cube literals (the manifest's digests
-/// are compared with fresh renderings, and the cube files on disk with the
-/// digests), and `coverage.lrat` must refute the coverage CNF. Returns the fresh encoding and the coverage CNF
-/// and proof summary.
-///
-/// # Errors
-/// [`Error::Parse`] naming the first file that differs; [`Error::Proof`]
-/// for a rejected coverage proof.
-pub fn verify_split(dir: &Path, m: &SplitManifest) -> Result<(Encoding, Cnf, LratSummary)> {
-    let q = Question::from_record(&m.question)?;
-    let enc = encode(&q, &m.options, u64::MAX)?;
-    let differs = |name: &str| {
-        Error::parse(
-            dir.join(name).display().to_string(),
-            0,
-            format!(
-                "differs from what this orbitcnf ({VERSION}) writes for the manifest \
-                 (the split was written by orbitcnf {})",
-                m.orbitcnf_version
-            ),
-        )
-    };
-    if sha256_hex(&render_cnf(&enc)) != m.formula.sha256 {
-        return Err(differs(FORMULA));
-    }
-    let cubes: Vec<Cube> = m.cubes.iter().map(|c| c.cube.clone()).collect();
-    for c in &m.cubes {
-        if let Some(&bad) = c
-            .cube
-            .literals
-            .iter()
-            .find(|l| **l == 0 || l.unsigned_abs() > enc.cnf.num_vars())
-        {
-            return Err(Error::parse(
-                dir.join(MANIFEST).display().to_string(),
-                0,
-                format!(
-                    "cube {} has the literal {bad}, not a variable of the formula",
-                    c.cube.index
-                ),
-            ));
-        }
-        if sha256_hex(&render_cnf(&cube_encoding(&enc, &c.cube))) != c.file.sha256 {
-            return Err(differs(&c.file.name));
-        }
-        c.file.read_checked(dir, MANIFEST)?;
-    }
-    let coverage = coverage_cnf(&enc, &cubes);
-    if sha256_hex(&render_coverage(&enc, &coverage, &cubes)) != m.coverage.cnf.sha256 {
-        return Err(differs(COVERAGE));
-    }
-    let options = LratOptions {
-        ids_follow_cnf: true,
-        ..LratOptions::default()
-    };
-    let entry = &m.coverage.proof;
-    entry.verify(dir, MANIFEST)?;
-    let summary = recheck_file(&coverage, &dir.join(&entry.name), &options)?.check?;
-    Ok((enc, coverage, summary))
 }
 
 #[cfg(test)]
@@ -799,7 +684,7 @@ mod tests {
     #[test]
     fn cube_proofs_lift_to_one_proof_of_the_formula() {
         use crate::proof::lift::{assemble, lift_cube};
-        use crate::proof::{LratFormat, check_lrat_with};
+        use crate::proof::{LratFormat, LratOptions, check_lrat_with};
         let e = enc("-1..1", 2, 5);
         let cubes = profile_cubes(&e, 3).unwrap();
         let cov = coverage_cnf(&e, &cubes);

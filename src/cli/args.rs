@@ -17,6 +17,7 @@ use orbitcnf::progress::ProgressMode;
 use orbitcnf::proof::LratFormat;
 use orbitcnf::question::MapClass;
 use orbitcnf::solve::external::{External, ProofFormat, ProofRequest};
+use orbitcnf::split::auto::{AutoOptions, DEFAULT_PROBE};
 use orbitcnf::split::jobs::JobsOptions;
 use orbitcnf::{Error, Grid, Question};
 
@@ -394,41 +395,78 @@ impl CertifyArgs {
 pub struct ScaleArgs {
     #[command(flatten)]
     pub solver: SolverArgs,
-    /// Split the question into cubes (as `orbitcnf split` does) and solve
-    /// them on K threads with the bundled solver. Each cube's LRAT proof is
-    /// checked, and an infeasible answer comes with one LRAT proof of the
-    /// whole CNF assembled from them, checked like a monolithic one.
-    #[arg(long, short = 'j', value_name = "K", default_value_t = 1)]
-    pub jobs: usize,
-    /// With --jobs: how many cubes to aim for (default: 8 per thread).
+    /// Threads for cubes (default: every core). A question that the probe
+    /// (see --probe) does not answer is split into cubes and solved on K
+    /// threads with the bundled solver; each cube's LRAT proof is checked,
+    /// and an infeasible answer comes with one LRAT proof of the whole CNF
+    /// assembled from them, checked like a monolithic one. With
+    /// --no-auto-split, --jobs K splits at once into 8 cubes per thread.
+    #[arg(long, short = 'j', value_name = "K")]
+    pub jobs: Option<usize>,
+    /// Split at once into about N cubes, without a probe (on --jobs
+    /// threads, 1 by default).
     #[arg(long, value_name = "N")]
     pub cubes: Option<usize>,
+    /// The probe: one ordinary solve of at most SECS seconds (default 15)
+    /// before a question is split into one cube per lex-leader distance
+    /// profile (when there are at most 4096; otherwise one solve is made
+    /// with the whole time limit). A question answered within the probe
+    /// gets the ordinary report; otherwise the report's `strategy` line
+    /// says what followed.
+    #[arg(long, value_name = "SECS", value_parser = parse_seconds)]
+    pub probe: Option<Duration>,
+    /// Also end the probe after about N conflicts (checked every few
+    /// hundred): unlike seconds, the same on every machine.
+    #[arg(long, value_name = "N")]
+    pub probe_conflicts: Option<u64>,
+    /// Never split by itself: one solve (or, with --jobs K, cubes from the
+    /// start, 8 per thread), as orbitcnf did before the probe.
+    #[arg(long, conflicts_with_all = ["probe", "probe_conflicts"])]
+    pub no_auto_split: bool,
 }
 
 impl ScaleArgs {
-    /// The library's solver choice.
+    /// The library's solver choice. `single_solve` (a DRAT proof was asked
+    /// for, which only one solve gives) turns the automatic split off.
     ///
     /// # Errors
     /// As [`SolverArgs::external`]; an external solver with --jobs.
-    pub fn solver(&self, certify: bool) -> Result<Solver, Error> {
-        let parallel = self.jobs != 1 || self.cubes.is_some();
-        match (self.solver.external(certify)?, parallel) {
-            (Some(_), true) => Err(Error::Options(
+    pub fn solver(&self, certify: bool, single_solve: bool) -> Result<Solver, Error> {
+        let parallel = self.jobs.is_some_and(|j| j != 1) || self.cubes.is_some();
+        let jobs_options = |jobs: usize, cubes: usize| {
+            Solver::Cubes(JobsOptions {
+                jobs,
+                cubes,
+                certify,
+                lrat: None,
+                format: LratFormat::Text,
+            })
+        };
+        match self.solver.external(certify)? {
+            Some(_) if parallel => Err(Error::Options(
                 "--jobs runs the bundled solver; for an external solver use \
                  `orbitcnf split` and `orbitcnf run-cube --solver …`"
                     .into(),
             )),
-            (Some(ext), false) => Ok(Solver::External(ext)),
-            (None, true) => Ok(Solver::Cubes(JobsOptions {
-                jobs: self.jobs,
-                cubes: self
-                    .cubes
-                    .unwrap_or_else(|| JobsOptions::default_cubes(self.jobs)),
-                certify,
-                lrat: None,
-                format: LratFormat::Text,
-            })),
-            (None, false) => Ok(Solver::Bundled { certify }),
+            Some(_) if self.probe.is_some() || self.probe_conflicts.is_some() => Err(
+                Error::Options("--probe applies to the bundled solver".into()),
+            ),
+            Some(ext) => Ok(Solver::External(ext)),
+            None => Ok(match (self.cubes, self.jobs) {
+                (Some(n), jobs) => jobs_options(jobs.unwrap_or(1), n),
+                (None, Some(j)) if (self.no_auto_split || single_solve) && j != 1 => {
+                    jobs_options(j, JobsOptions::default_cubes(j))
+                }
+                _ if self.no_auto_split || single_solve => Solver::Bundled { certify },
+                (None, jobs) => Solver::Auto(AutoOptions {
+                    certify,
+                    jobs: jobs.unwrap_or_else(orbitcnf::pool::default_jobs),
+                    probe: self.probe.unwrap_or(DEFAULT_PROBE),
+                    probe_conflicts: self.probe_conflicts,
+                    lrat: None,
+                    format: LratFormat::Text,
+                }),
+            }),
         }
     }
 }
@@ -521,7 +559,11 @@ mod tests {
     fn solvers_and_certification_fit_together() {
         let t = parse(&[]).unwrap();
         assert!(matches!(
-            t.s.solver(true),
+            t.s.solver(true, false),
+            Ok(Solver::Auto(o)) if o.certify && o.probe == DEFAULT_PROBE && o.jobs >= 1
+        ));
+        assert!(matches!(
+            t.s.solver(true, true),
             Ok(Solver::Bundled { certify: true })
         ));
         assert!(!t.c.accept_claims());
@@ -530,22 +572,44 @@ mod tests {
         let t = parse(&["--trust-solver"]).unwrap();
         assert!(t.c.accept_claims());
         let t = parse(&["-j", "2"]).unwrap();
-        assert!(matches!(t.s.solver(true), Ok(Solver::Cubes(o)) if o.cubes == 16));
+        assert!(matches!(t.s.solver(true, false), Ok(Solver::Auto(o)) if o.jobs == 2));
+        let t = parse(&["-j", "2", "--no-auto-split"]).unwrap();
+        assert!(matches!(t.s.solver(true, false), Ok(Solver::Cubes(o)) if o.cubes == 16));
+        assert!(matches!(
+            parse(&["-j", "2"]).unwrap().s.solver(true, true),
+            Ok(Solver::Cubes(o)) if o.cubes == 16
+        ));
+        let t = parse(&["--cubes", "5"]).unwrap();
+        assert!(matches!(t.s.solver(true, false), Ok(Solver::Cubes(o)) if o.jobs == 1));
+        let t = parse(&["--no-auto-split"]).unwrap();
+        assert!(matches!(
+            t.s.solver(true, false),
+            Ok(Solver::Bundled { certify: true })
+        ));
+        assert!(parse(&["--no-auto-split", "--probe", "3"]).is_err());
         let t = parse(&["--solver", "external:cadical -q", "-j", "2"]).unwrap();
-        assert!(t.s.solver(true).unwrap_err().to_string().contains("--jobs"));
+        assert!(
+            t.s.solver(true, false)
+                .unwrap_err()
+                .to_string()
+                .contains("--jobs")
+        );
         let t = parse(&["--solver", "external:cadical", "--proof-arg", "{}"]).unwrap();
-        assert!(matches!(t.s.solver(true), Ok(Solver::External(e)) if e.proof.is_some()));
-        assert!(t.s.solver(false).is_err(), "--proof-arg with --no-certify");
+        assert!(matches!(t.s.solver(true, false), Ok(Solver::External(e)) if e.proof.is_some()));
+        assert!(
+            t.s.solver(false, false).is_err(),
+            "--proof-arg with --no-certify"
+        );
         let t = parse(&["--solver", "kissat"]).unwrap();
         assert!(
-            t.s.solver(true)
+            t.s.solver(true, false)
                 .unwrap_err()
                 .to_string()
                 .contains("unknown solver")
         );
         let t = parse(&["--proof-arg", "{}"]).unwrap();
         assert!(
-            t.s.solver(true).is_err(),
+            t.s.solver(true, false).is_err(),
             "--proof-arg with the bundled solver"
         );
     }

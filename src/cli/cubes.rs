@@ -10,6 +10,8 @@ use orbitcnf::proof::LratFormat;
 use orbitcnf::solve::bundled::Bundled;
 use orbitcnf::solve::certified::Certified;
 use orbitcnf::solve::{Backend, Limits};
+use orbitcnf::split::auto::CubeTarget;
+use orbitcnf::split::layout::{LayoutChoice, SplitLayout};
 use orbitcnf::split::{self, run as cube_run};
 
 use super::args::{EncodingArgs, ProgressArgs, QuestionArgs, SolverArgs, parse_seconds};
@@ -20,7 +22,9 @@ pub const SPLIT_HELP: &str = "\
 How the space is cut: a cube fixes a prefix g(1..j) of the distance profile
 g(k) = ‖x_i − x_{i+k}‖∞; prefixes are refined breadth-first until there are
 at least --cubes of them (or every profile is fixed), and prefixes that no
-multiplier lex-leader extends are dropped. coverage.cnf (the profile's order
+multiplier lex-leader extends are dropped. --cubes auto takes one cube per
+whole lex-leader profile (the cubes `decide` switches to by itself) while there
+are at most 4096 of them, else 1024 breadth-first prefixes. coverage.cnf (the profile's order
 encoding and lex-leader clauses of formula.cnf, plus the negation of every
 cube) is refuted and its LRAT proof checked before anything is written: every
 model of formula.cnf lies in some cube (encodings/cubes.md).
@@ -30,9 +34,16 @@ The folder:
   formula.cnf          the whole CNF (orbitcnf header)
   cubes.icnf           the CNF in iCNF: 'p inccnf', the clauses, one 'a … 0' per cube
   cubes/cube-NNNN.cnf  the CNF plus the cube's units; `orbitcnf decode` reads
-                       any solver's output on it
+                       any solver's output on it (file layout only)
   coverage.cnf, coverage.lrat   the coverage check and its proof
   results/             filled by run-cube
+
+Layout: cube files repeat the whole CNF, so above 1 GiB of them (--layout
+auto, the default) or with --layout compact there are none: the manifest
+lists each cube's literals with a digest of formula.cnf and the cube, and
+run-cube builds the CNF plus the cube's units in memory (an external solver
+gets it as a temporary file). To run a solver on one cube by hand, take
+formula.cnf and the cube's 'a' line of cubes.icnf as unit clauses.
 
 Then: orbitcnf run-cube DIR INDEX for every index (see docs/cluster.md for
 Slurm and GNU parallel), and orbitcnf merge DIR.";
@@ -51,8 +62,9 @@ recorded in the result file as status \"error\" before exiting).";
 
 /// The long help of `merge`.
 pub const MERGE_HELP: &str = "\
-merge re-encodes the question and checks that formula.cnf, every cube file and
-coverage.cnf are byte for byte what this orbitcnf writes, re-checks the
+merge re-encodes the question and checks that formula.cnf, every cube file (or,
+in the compact layout, every cube's digest) and coverage.cnf are byte for byte
+what this orbitcnf writes, re-checks the
 coverage proof, re-verifies every orbit and re-checks every cube's LRAT proof
 against its cube CNF. The verdict is feasible if some cube is, infeasible if
 every cube is refuted, and unknown otherwise, with the missing or failed cubes
@@ -75,9 +87,17 @@ pub struct SplitArgs {
     #[command(flatten)]
     encoding: EncodingArgs,
     /// How many cubes to aim for: prefixes of the profile are refined until
-    /// there are at least this many (fewer when the profile runs out).
-    #[arg(long, value_name = "N", default_value_t = 16)]
-    cubes: usize,
+    /// there are at least this many (fewer when the profile runs out); or
+    /// `auto`: one per whole lex-leader profile (the cubes `decide` switches
+    /// to when its probe gives no answer) while there are at most 4096 of
+    /// them, else 1024 breadth-first prefixes.
+    #[arg(long, value_name = "N|auto", default_value = "16", value_parser = parse_cube_target)]
+    cubes: CubeTarget,
+    /// `files`: one standalone CNF per cube in cubes/; `compact`: none, the
+    /// cubes are built from formula.cnf and their literals by run-cube;
+    /// `auto` (the default): files while they take at most 1 GiB together.
+    #[arg(long, value_name = "LAYOUT", default_value = "auto", value_parser = parse_layout)]
+    layout: LayoutChoice,
     /// The folder to write (created). Run again on a folder that holds the
     /// same split, it writes again any file that is missing or damaged and
     /// keeps the results; a split of another question there is an error.
@@ -92,7 +112,14 @@ pub struct SplitArgs {
 pub fn run_split(a: SplitArgs) -> Outcome {
     let q = a.question.question()?;
     let options = a.encoding.options(q.points.is_some())?;
-    let w = split::write_split(&a.out, &q, &options, a.cubes, a.encoding.max_clauses)?;
+    let w = split::write_split(
+        &a.out,
+        &q,
+        &options,
+        a.cubes,
+        a.layout,
+        a.encoding.max_clauses,
+    )?;
     if !w.restored.is_empty() {
         eprintln!(
             "the split in {} was repaired: written again: {}",
@@ -106,6 +133,25 @@ pub fn run_split(a: SplitArgs) -> Outcome {
         || w.manifest.summary(&a.out, &q.statement()),
     )?;
     Ok(0)
+}
+
+fn parse_cube_target(s: &str) -> Result<CubeTarget, String> {
+    match s {
+        "auto" => Ok(CubeTarget::Auto),
+        n => n
+            .parse()
+            .map(CubeTarget::Count)
+            .map_err(|_| format!("{s:?} is neither a cube count nor `auto`")),
+    }
+}
+
+fn parse_layout(s: &str) -> Result<LayoutChoice, String> {
+    match s {
+        "auto" => Ok(LayoutChoice::Auto),
+        "files" => Ok(LayoutChoice::Fixed(SplitLayout::Files)),
+        "compact" => Ok(LayoutChoice::Fixed(SplitLayout::Compact)),
+        _ => Err(format!("{s:?}: write files, compact or auto")),
+    }
 }
 
 /// Arguments of `run-cube`.

@@ -83,7 +83,7 @@ pub fn run_decide(a: DecideArgs) -> Outcome {
     let options = a.encoding.options(question.points.is_some())?;
     let certify = !a.certify.no_certify;
     let req = Request {
-        solver: a.scale.solver(certify)?,
+        solver: a.scale.solver(certify, a.drat.is_some())?,
         outputs: Outputs {
             proof: a.proof,
             raw_proof: a.drat,
@@ -125,8 +125,12 @@ fn run_real(n: usize, a: DecideArgs) -> Outcome {
         (a.proof.is_some(), "--proof"),
         (a.drat.is_some(), "--drat"),
         (
-            a.scale.jobs != 1 || a.scale.cubes.is_some(),
+            a.scale.jobs.is_some() || a.scale.cubes.is_some(),
             "--jobs/--cubes",
+        ),
+        (
+            a.scale.probe.is_some() || a.scale.probe_conflicts.is_some() || a.scale.no_auto_split,
+            "--probe/--no-auto-split",
         ),
         (!a.scale.solver.proof_arg.is_empty(), "--proof-arg"),
         (a.encoding.symmetry != "all", "--symmetry"),

@@ -363,6 +363,7 @@ fn handoff(
             time: deadline.map(|d| d.saturating_duration_since(Instant::now())),
             progress: crate::progress::ProgressMode::Off,
             conflicts: None,
+            max_conflicts: None,
         };
         let t = Instant::now();
         let r = ext.solve(&cnf, &limits);

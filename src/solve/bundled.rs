@@ -36,7 +36,12 @@ impl Backend for Bundled {
 
     fn solve(&mut self, cnf: &Cnf, limits: &Limits) -> Result<SolveResult> {
         let start = Instant::now();
-        let (meter, learned, timed_out) = Meter::new(start, limits, None);
+        let (meter, signals) = Meter::new(start, limits, None);
+        let MeterSignals {
+            learned,
+            timed_out,
+            over_budget,
+        } = signals;
         let mut solver = Solver::new();
         solver.write_proof(meter, ProofFormat::BinaryDrat);
         load(&mut solver, cnf);
@@ -52,6 +57,9 @@ impl Backend for Bundled {
                 Outcome::Sat(model)
             }
             Ok(false) => Outcome::Unsat,
+            Err(SolverError::ProofIoError { .. }) if over_budget.load(Ordering::Relaxed) => {
+                Outcome::Unknown(budget_words(limits))
+            }
             Err(SolverError::ProofIoError { .. }) if timed_out.load(Ordering::Relaxed) => {
                 Outcome::Unknown(format!(
                     "time limit of {:.1} s reached",
@@ -78,6 +86,14 @@ impl Backend for Bundled {
     }
 }
 
+/// Why a solve stopped at its conflict budget, in words.
+pub(crate) fn budget_words(limits: &Limits) -> String {
+    format!(
+        "conflict budget of {} reached",
+        limits.max_conflicts.unwrap_or(0)
+    )
+}
+
 /// Adds every clause of `cnf` to `solver`, in order (so clause `i` keeps
 /// position `i`, which the LRAT numbering relies on).
 pub(crate) fn load(solver: &mut Solver<'_>, cnf: &Cnf) {
@@ -93,6 +109,16 @@ pub(crate) fn load(solver: &mut Solver<'_>, cnf: &Cnf) {
     }
 }
 
+/// What a [`Meter`] tells its caller after the solve.
+pub(crate) struct MeterSignals {
+    /// The conflict counter (the caller's, when it gave one).
+    pub(crate) learned: Arc<AtomicU64>,
+    /// Set when the meter stopped the solve at the deadline.
+    pub(crate) timed_out: Arc<AtomicBool>,
+    /// Set when the meter stopped the solve at the conflict budget.
+    pub(crate) over_budget: Arc<AtomicBool>,
+}
+
 #[derive(Clone, Copy, Debug)]
 enum DratState {
     RecordStart,
@@ -101,12 +127,17 @@ enum DratState {
 }
 
 /// The proof sink: counts added clauses, reports progress, enforces the
-/// deadline, and forwards the binary DRAT to `inner` when there is one.
+/// deadline and the conflict budget, and forwards the binary DRAT to
+/// `inner` when there is one.
 pub(crate) struct Meter {
     deadline: Option<Instant>,
     start: Instant,
     learned: Arc<AtomicU64>,
     timed_out: Arc<AtomicBool>,
+    /// Conflicts of this solve alone (`learned` may be shared by threads).
+    own: u64,
+    budget: Option<u64>,
+    over_budget: Arc<AtomicBool>,
     progress: Progress,
     state: DratState,
     inner: Option<Box<dyn Write>>,
@@ -120,19 +151,25 @@ impl Meter {
         start: Instant,
         limits: &Limits,
         inner: Option<Box<dyn Write>>,
-    ) -> (Meter, Arc<AtomicU64>, Arc<AtomicBool>) {
-        let learned = limits.conflicts.clone().unwrap_or_default();
-        let timed_out = Arc::new(AtomicBool::new(false));
+    ) -> (Meter, MeterSignals) {
+        let signals = MeterSignals {
+            learned: limits.conflicts.clone().unwrap_or_default(),
+            timed_out: Arc::new(AtomicBool::new(false)),
+            over_budget: Arc::new(AtomicBool::new(false)),
+        };
         let meter = Meter {
             deadline: limits.time.map(|t| start + t),
             start,
-            learned: learned.clone(),
-            timed_out: timed_out.clone(),
+            learned: signals.learned.clone(),
+            timed_out: signals.timed_out.clone(),
+            own: 0,
+            budget: limits.max_conflicts,
+            over_budget: signals.over_budget.clone(),
             progress: Progress::new(limits.progress),
             state: DratState::RecordStart,
             inner,
         };
-        (meter, learned, timed_out)
+        (meter, signals)
     }
 }
 
@@ -153,6 +190,11 @@ impl Write for Meter {
             };
         }
         let total = self.learned.fetch_add(added, Ordering::Relaxed) + added;
+        self.own += added;
+        if self.budget.is_some_and(|b| self.own > b) {
+            self.over_budget.store(true, Ordering::Relaxed);
+            return Err(io::Error::other("orbitcnf conflict budget reached"));
+        }
         let now = Instant::now();
         if let Some(d) = self.deadline
             && now >= d

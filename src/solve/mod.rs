@@ -31,6 +31,13 @@ pub struct Limits {
     /// caller can report on a solve it does not draw itself (the bundled
     /// solvers count one learned clause per conflict; others leave it).
     pub conflicts: Option<Arc<AtomicU64>>,
+    /// A conflict budget: the bundled solvers give up (answer unknown) once
+    /// this solve has more conflicts. It is checked when the solver flushes
+    /// its proof buffer (as the time limit is), so a solve may run a few
+    /// hundred conflicts over, but the same formula always stops at the same
+    /// point, which makes the budget reproducible where a time limit is not.
+    /// External solvers ignore it.
+    pub max_conflicts: Option<u64>,
 }
 
 /// What a back-end answered.

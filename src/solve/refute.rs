@@ -170,7 +170,7 @@ pub fn solve_bundled(
         Some(t) => Some(Box::new(BufWriter::new(reopen(t)?))),
         None => None,
     };
-    let (meter, learned, _) = Meter::new(start, limits, inner);
+    let (meter, signals) = Meter::new(start, limits, inner);
     let mut drat = Stoppable { inner: meter, stop };
     let mut lrat = BufWriter::with_capacity(1 << 20, reopen(&lrat_tmp)?);
     let sinks = ProofSinks {
@@ -183,18 +183,22 @@ pub fn solve_bundled(
     let drat_flushed = drat.flush();
     drop(drat);
     let stopped = stop.is_some_and(|s| s.load(Ordering::Relaxed));
+    let over_budget = signals.over_budget.load(Ordering::Relaxed);
     let out = match out {
-        Err(_) if stopped => None,
-        o => Some(o?),
+        // The budget stops the solve through a failing proof sink, which
+        // varisat reports as an error; it is an unknown answer, not a failure.
+        Err(_) if over_budget => Err(super::bundled::budget_words(limits)),
+        Err(_) if stopped => Err("stopped".to_string()),
+        o => Ok(o?),
     };
     let stats = SolveStats {
         solver: BUNDLED_LRAT.into(),
         seconds: start.elapsed().as_secs_f64(),
-        conflicts: Some(learned.load(Ordering::Relaxed)),
+        conflicts: Some(signals.learned.load(Ordering::Relaxed)),
     };
     let outcome = match out {
-        None => Outcome::Unknown("stopped".into()),
-        Some(o) => o.outcome,
+        Err(why) => Outcome::Unknown(why),
+        Ok(o) => o.outcome,
     };
     if outcome != Outcome::Unsat {
         return Ok(Refutation {

@@ -32,7 +32,7 @@ use tempfile::NamedTempFile;
 use super::{Cube, coverage_cnf, coverage_sources, cubes as make_cubes, refute_coverage};
 use crate::cnf::Cnf;
 use crate::decide::witness;
-use crate::encode::{EncodeOptions, encode};
+use crate::encode::{EncodeOptions, Encoding, encode};
 use crate::error::{Error, Result};
 use crate::evidence::Evidence;
 use crate::pool::{self, Event};
@@ -113,13 +113,60 @@ pub fn decide_parallel(
     let enc = encode(q, options, max_clauses)?;
     let encode_seconds = t0.elapsed().as_secs_f64();
     let start = Instant::now();
-    let deadline = limits.time.map(|t| start + t);
     let cubes = make_cubes(&enc, opts.cubes)?;
-    let coverage = coverage_cnf(&enc, &cubes);
-    let coverage_proof = refute_coverage(&enc, &coverage)?;
+    let run = CubesRun {
+        enc: &enc,
+        encode_seconds,
+        cubes: &cubes,
+        start,
+        conflicts: Arc::new(AtomicU64::new(0)),
+    };
+    solve_cubes(q, &run, opts, limits)
+}
+
+/// An encoded question and its cubes, ready for [`solve_cubes`].
+pub struct CubesRun<'a> {
+    /// The encoding.
+    pub enc: &'a Encoding,
+    /// Seconds spent encoding, for the report.
+    pub encode_seconds: f64,
+    /// The cubes.
+    pub cubes: &'a [Cube],
+    /// When solving began: the time limit counts from here, and the report's
+    /// solve time too (so a probe before the cubes is included).
+    pub start: Instant,
+    /// The conflict counter the threads add to (it may already hold the
+    /// conflicts of a probe).
+    pub conflicts: Arc<AtomicU64>,
+}
+
+/// Solves the cubes of `run` on `opts.jobs` threads within `limits.time`
+/// (counted from `run.start`); certifies, assembles and reports as
+/// [`decide_parallel`] does (`opts.cubes` is not used: the cubes are given).
+///
+/// # Errors
+/// As [`decide_parallel`].
+pub fn solve_cubes(
+    q: &Question,
+    run: &CubesRun<'_>,
+    opts: &JobsOptions,
+    limits: &Limits,
+) -> Result<Report> {
+    if opts.jobs == 0 || run.cubes.is_empty() {
+        return Err(Error::Options(
+            "a run in cubes needs at least one thread and one cube".into(),
+        ));
+    }
+    let enc = run.enc;
+    let cubes = run.cubes;
+    let encode_seconds = run.encode_seconds;
+    let start = run.start;
+    let deadline = limits.time.map(|t| start + t);
+    let coverage = coverage_cnf(enc, cubes);
+    let coverage_proof = refute_coverage(enc, &coverage)?;
     let n = cubes.len();
     let stop = AtomicBool::new(false);
-    let conflicts = Arc::new(AtomicU64::new(0));
+    let conflicts = run.conflicts.clone();
     let mut runs: Vec<Option<CubeRun>> = (0..n).map(|_| None).collect();
     let threads = opts.jobs.min(n);
     let mut progress = Progress::new(limits.progress);
@@ -237,7 +284,7 @@ pub fn decide_parallel(
         .collect::<Result<Vec<_>>>()?;
     let tmp = temp_proof_file(opts.lrat.as_deref())?;
     let out = io::BufWriter::new(tmp.reopen().map_err(|e| Error::io(tmp.path(), e))?);
-    let sources = coverage_sources(&enc);
+    let sources = coverage_sources(enc);
     let cov = coverage_proof.open()?;
     let format = match opts.lrat {
         Some(_) => opts.format,
@@ -302,6 +349,11 @@ fn solve_cube(
         (Outcome::Sat(m), _) => CubeRun::Sat(m),
         (Outcome::Unknown(_), _) if stop.load(Ordering::Relaxed) => {
             CubeRun::Unknown("stopped: another cube is satisfiable".into())
+        }
+        // The cube's own time was what remained of the run's; its limit in
+        // seconds would mislead.
+        (Outcome::Unknown(_), _) if deadline.is_some_and(|d| Instant::now() >= d) => {
+            CubeRun::Unknown("time limit reached".into())
         }
         (Outcome::Unknown(w), _) => CubeRun::Unknown(w),
         (Outcome::Unsat, None) => CubeRun::Failed(Error::Solver {

@@ -22,11 +22,12 @@ use std::time::Instant;
 
 use serde::{Deserialize, Serialize};
 
-use super::{Cube, MANIFEST, RESULTS_DIR, SplitManifest, coverage_sources, verify_split};
+use super::layout::cube_problem;
+use super::{Cube, RESULTS_DIR, SplitManifest, coverage_sources, verify_split};
 use crate::artifact::write_atomically;
 use crate::cnf::Cnf;
 use crate::decide;
-use crate::dimacs::{self, VERSION};
+use crate::dimacs::VERSION;
 use crate::error::{Error, Result};
 use crate::evidence;
 use crate::grid::Point;
@@ -214,24 +215,19 @@ pub fn run_cube(
     if !force
         && let Ok(Some(r)) = read_result(dir, index)
         && r.status.is_final()
-        && r.cube_sha256 == entry.file.sha256
+        && r.cube_sha256 == entry.digest()
     {
         return Ok(RunOutcome::AlreadyDone(r));
     }
-    let bytes = entry.file.read_checked(dir, MANIFEST)?;
+    let (file, cube_name) = cube_problem(dir, &m, entry)?;
     let results = dir.join(RESULTS_DIR);
     std::fs::create_dir_all(&results).map_err(|e| Error::io(&results, e))?;
     crate::artifact::sweep_stale(&results, true);
-    let cube_path = dir.join(&entry.file.name);
-    let cube_name = cube_path.display().to_string();
-    let text = String::from_utf8(bytes)
-        .map_err(|_| Error::parse(&cube_name, 0, "the cube file is not UTF-8"))?;
-    let file = dimacs::parse_cnf_file(&text, &cube_name)?;
     let mut result = CubeResult {
         format: RESULT_FORMAT.into(),
         orbitcnf_version: VERSION.into(),
         index,
-        cube_sha256: entry.file.sha256.clone(),
+        cube_sha256: entry.digest().to_string(),
         status: CubeStatus::Unknown,
         orbit: None,
         map: None,
@@ -585,7 +581,7 @@ pub fn merge(
             }
         };
         report.solve_seconds += r.seconds;
-        if r.cube_sha256 != entry.file.sha256 {
+        if r.cube_sha256 != entry.digest() {
             report.pending.push(pending(
                 "rejected",
                 "the result is for a different cube file (a stale result?)".into(),
@@ -765,7 +761,7 @@ pub fn pending_indices(dir: &Path) -> Result<Vec<usize>> {
         .iter()
         .filter(|e| {
             !matches!(read_result(dir, e.cube.index),
-                Ok(Some(r)) if r.status.is_final() && r.cube_sha256 == e.file.sha256)
+                Ok(Some(r)) if r.status.is_final() && r.cube_sha256 == e.digest())
         })
         .map(|e| e.cube.index)
         .collect())

@@ -15,7 +15,7 @@ const HARBOUR: &str = "0 1\n1 2\n1 3\n3 0\n3 1\n3 2\n";
 fn point_bundles_carry_the_map_whatever_the_back_end() {
     let dir = TestDir::new();
     dir.write("h.txt", HARBOUR);
-    let mut backends: Vec<Vec<&str>> = vec![vec![], vec!["--jobs", "2"]];
+    let mut backends: Vec<Vec<&str>> = vec![vec![], vec!["--jobs", "2", "--no-auto-split"]];
     if have_tool("cadical") {
         backends.push(vec!["--solver", "external:cadical -q"]);
     }

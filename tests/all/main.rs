@@ -16,6 +16,7 @@
 //! No verdict is trusted alone: every feasible answer's orbit is verified.
 
 mod artifacts;
+mod auto;
 mod brute;
 mod cli;
 mod external;

@@ -62,6 +62,40 @@ fn pending(dir: &TestDir, name: &str) -> Vec<String> {
     run.stdout.split_whitespace().map(str::to_string).collect()
 }
 
+/// The LRAT proof at `proof` refutes exactly the CNF `encode` writes for
+/// `q` (written to `f.cnf`), as `verify-proof` checks it.
+pub(crate) fn proof_refutes_the_encoded_cnf(dir: &TestDir, q: &Q, proof: &str) {
+    dir.orbitcnf()
+        .arg("encode")
+        .args(q.args())
+        .args(["-o", "f.cnf"])
+        .run()
+        .code(0);
+    dir.orbitcnf()
+        .args(["verify-proof", "f.cnf", proof])
+        .run()
+        .code(0);
+}
+
+/// GNU parallel runs `run-cube DIR INDEX` on two workers for each index.
+pub(crate) fn parallel_run_cubes(dir: &TestDir, name: &str, indices: &[String]) {
+    dir.program("parallel")
+        .args([
+            "--will-cite",
+            "-j",
+            "2",
+            bin(),
+            "run-cube",
+            name,
+            "{}",
+            "-q",
+            ":::",
+        ])
+        .args(indices)
+        .run()
+        .code(0);
+}
+
 /// Writes an executable shell script.
 fn script(dir: &TestDir, name: &str, body: &str) -> String {
     let p = dir.write(name, format!("#!/bin/sh\n{body}"));
@@ -176,21 +210,7 @@ fn parallel_with_a_killed_worker_then_rerun_refutes_every_cube() {
     // Rerun only the pending cubes.
     let todo = pending(&dir, "sp");
     assert_eq!(todo, vec!["2"]);
-    dir.program("parallel")
-        .args([
-            "--will-cite",
-            "-j",
-            "2",
-            bin(),
-            "run-cube",
-            "sp",
-            "{}",
-            "-q",
-            ":::",
-        ])
-        .args(&todo)
-        .run()
-        .code(0);
+    parallel_run_cubes(&dir, "sp", &todo);
     assert!(pending(&dir, "sp").is_empty());
     // merge re-checks every cube's proof; --proof assembles one proof of formula.cnf.
     let m = dir
@@ -280,21 +300,7 @@ fn parallel_killed_after_the_first_result_then_rerun_finds_the_orbit() {
     );
     let todo = pending(&dir, "sp");
     assert_eq!(todo.len(), n - done);
-    dir.program("parallel")
-        .args([
-            "--will-cite",
-            "-j",
-            "2",
-            bin(),
-            "run-cube",
-            "sp",
-            "{}",
-            "-q",
-            ":::",
-        ])
-        .args(&todo)
-        .run()
-        .code(0);
+    parallel_run_cubes(&dir, "sp", &todo);
     let m = dir.orbitcnf().args(["merge", "sp", "--json"]).run();
     m.code(FEASIBLE);
     let v = m.json();
@@ -331,17 +337,7 @@ fn decide_jobs_agrees_with_decide_and_certifies_the_whole_cnf() {
         );
         if want == "infeasible" {
             assert_eq!(v["certificate"]["kind"], "checked-proof", "{v}");
-            // The assembled proof refutes exactly the CNF `encode` writes.
-            dir.orbitcnf()
-                .arg("encode")
-                .args(q.args())
-                .args(["-o", "f.cnf"])
-                .run()
-                .code(0);
-            dir.orbitcnf()
-                .args(["verify-proof", "f.cnf", "p.lrat"])
-                .run()
-                .code(0);
+            proof_refutes_the_encoded_cnf(&dir, &q, "p.lrat");
         }
     }
     // A bundle from a parallel run passes check-bundle.
@@ -349,7 +345,7 @@ fn decide_jobs_agrees_with_decide_and_certifies_the_whole_cnf() {
     dir.orbitcnf()
         .arg("decide")
         .args(q.args())
-        .args(["--jobs", "2", "--bundle", "b"])
+        .args(["--jobs", "2", "--no-auto-split", "--bundle", "b"])
         .run()
         .code(INFEASIBLE);
     dir.orbitcnf()

@@ -1,0 +1,347 @@
+//! `decide` on its own: a probe, then cubes on threads when the probe gives
+//! no answer.
+//!
+//! Most questions are answered by one solve in well under a second, and a
+//! split costs more than it saves there (the coverage check, one solver per
+//! cube, a proof per cube to lift and assemble). Hard questions are the
+//! other way round: `{0,1,2,3}^4, p = 17` had no answer after 300 s of one
+//! solve, while 833 of its 834 full-profile cubes were refuted in 86 s on two
+//! threads (measured before the `pack-nested` exclusions, with which one
+//! solve takes 16 s). So [`decide_auto`] first runs the ordinary solve within a
+//! budget (the *probe*: [`AutoOptions::probe`] seconds, or a conflict
+//! budget); when that answers, the report is exactly that of the ordinary
+//! solve. Only questions with at most [`FULL_PROFILE_CAP`] whole profiles
+//! (or in the full-map formulation) are split: on `{−1,0,1}^5, p = 33`
+//! (more profiles than the cap) 1024 breadth-first cubes took 10.7 M
+//! conflicts for 807 cubes in 360 s, where one solve refutes the question
+//! with 297,684, so above the cap `decide` makes one solve of the whole
+//! time limit, with the ordinary report. When it does not, and time remains, the question is split into
+//! cubes ([`choose_cubes`]) and solved on [`AutoOptions::jobs`] threads by
+//! [`super::jobs::solve_cubes`], certified in the same way as
+//! `decide --jobs`: every cube's proof checked and lifted, the coverage
+//! proof checked, one assembled LRAT proof of the whole CNF checked. The
+//! report then carries a [`Strategy`] saying what was done.
+//!
+//! Nothing of the probe's work is reused by the cubes: the probe's answer,
+//! when there is none, is simply dropped, so the switch cannot affect a
+//! verdict; only the time it took counts against the time limit.
+//!
+//! # Which cubes
+//!
+//! [`choose_cubes`] takes one cube per whole profile `g(1..K)` that the
+//! multiplier lex-leader clauses leave (rule `full-profile`) when there are
+//! at most [`FULL_PROFILE_CAP`] of them: such cubes are as small as the
+//! profile allows, so one hard profile stays one hard cube instead of
+//! holding up a prefix of many easy ones, and they do not depend on the
+//! number of threads, so `split --cubes auto` writes the same cubes for a
+//! cluster. Above the cap (long profiles, as on `{−1,0,1}^5`), prefixes are
+//! refined breadth-first to [`BREADTH_FIRST_TARGET`] cubes (rule
+//! `breadth-first`, [`super::profile_cubes`]), which bounds the per-cube
+//! cost (one load of the formula, one proof check and lift per cube); only
+//! `split --cubes auto` uses these, for clusters with many more cores. In the
+//! full-map formulation the cubes are the start points (rule `start-point`,
+//! [`super::start_cubes`]).
+
+use std::path::PathBuf;
+use std::sync::Arc;
+use std::sync::atomic::{AtomicU64, Ordering};
+use std::time::{Duration, Instant};
+
+use super::jobs::{CubesRun, JobsOptions, solve_cubes};
+use super::{Cube, prefix_survives, profile_cubes, start_cubes};
+use crate::decide::decide_encoded;
+use crate::encode::{EncodeOptions, Encoding, Formulation, encode, profile_len, symmetry};
+use crate::error::{Error, Result};
+use crate::progress::Progress;
+use crate::proof::LratFormat;
+use crate::question::Question;
+use crate::report::{Report, Strategy, Verdict};
+use crate::solve::bundled::Bundled;
+use crate::solve::certified::Certified;
+use crate::solve::{Backend, Limits};
+
+/// At most this many full-profile cubes; above it, breadth-first prefixes.
+pub const FULL_PROFILE_CAP: usize = 4096;
+
+/// The cube count that breadth-first refinement aims for above the cap.
+pub const BREADTH_FIRST_TARGET: usize = 1024;
+
+/// The default probe: this many seconds of one ordinary solve.
+pub const DEFAULT_PROBE: Duration = Duration::from_secs(15);
+
+/// How many cubes to make.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum CubeTarget {
+    /// About this many ([`super::cubes`]).
+    Count(usize),
+    /// As the automatic strategy chooses them ([`choose_cubes`]).
+    Auto,
+}
+
+/// How [`decide_auto`] runs.
+#[derive(Clone, Debug)]
+pub struct AutoOptions {
+    /// Produce and check proofs (the default), or take the solver's word.
+    pub certify: bool,
+    /// Threads for the cubes, at least 1.
+    pub jobs: usize,
+    /// The probe's time budget.
+    pub probe: Duration,
+    /// The probe's conflict budget (reproducible, unlike time), if any.
+    pub probe_conflicts: Option<u64>,
+    /// Where to write the LRAT proof of an infeasible answer.
+    pub lrat: Option<PathBuf>,
+    /// The encoding of the proof written to `lrat`.
+    pub format: LratFormat,
+}
+
+/// Cubes and the rule that chose them.
+#[derive(Clone, Debug)]
+pub struct CubeChoice {
+    /// The cubes, in index order.
+    pub cubes: Vec<Cube>,
+    /// `full-profile`, `breadth-first` or `start-point` (see the module docs).
+    pub rule: &'static str,
+}
+
+/// The number of whole profiles `g(1..K)` that no multiplier map rules out
+/// ([`prefix_survives`]), or `None` when there are more than `cap`. The
+/// walk is depth-first and stops as soon as the count passes `cap`; a
+/// prefix that is ruled out is not extended, since every extension of it is
+/// ruled out too.
+pub fn full_profile_count(enc: &Encoding, cap: usize) -> Option<usize> {
+    let q = &enc.question;
+    let k_max = profile_len(q);
+    let l = q.grid.diameter() as i64;
+    let maps = if enc.options.symmetry.multiplier {
+        symmetry::multiplier_maps_for(q)
+    } else {
+        Vec::new()
+    };
+    fn walk(
+        prefix: &mut Vec<i64>,
+        k_max: usize,
+        l: i64,
+        maps: &[Vec<usize>],
+        count: &mut usize,
+        cap: usize,
+    ) -> bool {
+        if prefix.len() == k_max {
+            *count += 1;
+            return *count <= cap;
+        }
+        for v in 1..=l {
+            prefix.push(v);
+            let ok =
+                !prefix_survives(prefix, maps, k_max) || walk(prefix, k_max, l, maps, count, cap);
+            prefix.pop();
+            if !ok {
+                return false;
+            }
+        }
+        true
+    }
+    let mut count = 0;
+    walk(&mut Vec::new(), k_max, l, &maps, &mut count, cap).then_some(count)
+}
+
+/// The cubes of the automatic strategy (see the module docs).
+///
+/// # Errors
+/// As [`profile_cubes`] and [`start_cubes`].
+pub fn choose_cubes(enc: &Encoding) -> Result<CubeChoice> {
+    if enc.options.formulation == Formulation::FullMap {
+        return Ok(CubeChoice {
+            cubes: start_cubes(enc, 2)?,
+            rule: "start-point",
+        });
+    }
+    Ok(match full_profile_count(enc, FULL_PROFILE_CAP) {
+        Some(_) => CubeChoice {
+            // A target no prefix list reaches refines every prefix to a whole profile.
+            cubes: profile_cubes(enc, usize::MAX)?,
+            rule: "full-profile",
+        },
+        None => CubeChoice {
+            cubes: profile_cubes(enc, BREADTH_FIRST_TARGET)?,
+            rule: "breadth-first",
+        },
+    })
+}
+
+/// Decides `q` by a probe and, when it gives no answer, by cubes on
+/// threads (see the module docs).
+///
+/// # Errors
+/// [`Error::Options`] for no threads; as [`crate::decide::decide`] and
+/// [`super::jobs::decide_parallel`].
+pub fn decide_auto(
+    q: &Question,
+    options: &EncodeOptions,
+    opts: &AutoOptions,
+    limits: &Limits,
+    max_clauses: u64,
+) -> Result<Report> {
+    if opts.jobs == 0 {
+        return Err(Error::Options(
+            "a run in cubes needs at least one thread".into(),
+        ));
+    }
+    let t0 = Instant::now();
+    let enc = encode(q, options, max_clauses)?;
+    let encode_seconds = t0.elapsed().as_secs_f64();
+    let start = Instant::now();
+    let conflicts = Arc::new(AtomicU64::new(0));
+    let probe_time = match limits.time {
+        Some(t) => t.min(opts.probe),
+        None => opts.probe,
+    };
+    let probe_limits = Limits {
+        time: Some(probe_time),
+        conflicts: Some(conflicts.clone()),
+        max_conflicts: opts.probe_conflicts,
+        ..limits.clone()
+    };
+    let mut certified = Certified {
+        lrat: opts.lrat.clone(),
+        drat: None,
+        format: opts.format,
+    };
+    let backend: &mut dyn Backend = if opts.certify {
+        &mut certified
+    } else {
+        &mut Bundled
+    };
+    // Breadth-first prefixes were measured to cost far more than one solve
+    // ({−1,0,1}^5, p = 33: 10.7 M conflicts over 807 of 1024 cubes in 360 s,
+    // against 297,684 conflicts for the whole question in one solve), so
+    // above the cap the question gets one solve with all the time there is.
+    let whole_profiles = enc.options.formulation == Formulation::FullMap
+        || full_profile_count(&enc, FULL_PROFILE_CAP).is_some();
+    if !whole_profiles {
+        Progress::new(limits.progress).event(|| {
+            format!(
+                "decide: more than {FULL_PROFILE_CAP} lex-leader profiles; one solve, no switch to cubes"
+            )
+        });
+        let limits = Limits {
+            conflicts: Some(conflicts),
+            ..limits.clone()
+        };
+        return decide_encoded(q, options, &enc, encode_seconds, backend, &limits);
+    }
+    let probe = decide_encoded(q, options, &enc, encode_seconds, backend, &probe_limits)?;
+    let probe_seconds = start.elapsed().as_secs_f64();
+    // The probe's answer stands when there is one, and so does its unknown
+    // when the probe was given all the time there is.
+    let no_time_left = limits
+        .time
+        .is_some_and(|t| t <= opts.probe || start.elapsed() >= t);
+    if probe.verdict != Verdict::Unknown || no_time_left {
+        return Ok(probe);
+    }
+    let probe_conflicts = conflicts.load(Ordering::Relaxed);
+    let choice = choose_cubes(&enc)?;
+    let threads = opts.jobs.min(choice.cubes.len().max(1));
+    let strategy = Strategy {
+        probe_budget_seconds: opts.probe.as_secs_f64(),
+        probe_budget_conflicts: opts.probe_conflicts,
+        probe_seconds,
+        probe_conflicts,
+        cubes: choice.cubes.len(),
+        cube_rule: choice.rule.into(),
+        threads,
+    };
+    Progress::new(limits.progress).event(|| {
+        format!(
+            "decide: the probe gave no answer ({}); switching to {} {} cubes on {} threads",
+            probe.reason.as_deref().unwrap_or("no answer"),
+            strategy.cubes,
+            strategy.cube_rule,
+            threads
+        )
+    });
+    let run = CubesRun {
+        enc: &enc,
+        encode_seconds,
+        cubes: &choice.cubes,
+        start,
+        conflicts,
+    };
+    let jobs = JobsOptions {
+        jobs: threads,
+        cubes: choice.cubes.len(),
+        certify: opts.certify,
+        lrat: opts.lrat.clone(),
+        format: opts.format,
+    };
+    let mut report = solve_cubes(q, &run, &jobs, limits)?;
+    report.strategy = Some(strategy);
+    Ok(report)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::grid::Grid;
+
+    fn enc(spec: &str, dim: usize, p: usize) -> Encoding {
+        let q = Question::new(Grid::parse(spec, Some(dim)).unwrap(), p).unwrap();
+        encode(&q, &EncodeOptions::default(), u64::MAX).unwrap()
+    }
+
+    /// Brute force: every vector of {1..L}^K that survives every map.
+    fn brute_count(e: &Encoding) -> usize {
+        let k = profile_len(&e.question);
+        let l = e.question.grid.diameter() as i64;
+        let maps = symmetry::multiplier_maps_for(&e.question);
+        let mut count = 0;
+        let mut g = vec![1i64; k];
+        loop {
+            count += usize::from(prefix_survives(&g, &maps, k));
+            let Some(i) = g.iter().rposition(|&v| v < l) else {
+                return count;
+            };
+            g[i] += 1;
+            g[i + 1..].iter_mut().for_each(|v| *v = 1);
+        }
+    }
+
+    #[test]
+    fn the_count_of_whole_profiles_is_the_number_of_full_profile_cubes() {
+        for (spec, dim, p) in [
+            ("-1..1", 3, 9),
+            ("-1..1", 4, 17),
+            ("0..3", 2, 7),
+            ("0..3", 4, 17),
+        ] {
+            let e = enc(spec, dim, p);
+            let all = profile_cubes(&e, usize::MAX).unwrap();
+            assert!(
+                all.iter()
+                    .all(|c| c.prefix.len() == profile_len(&e.question))
+            );
+            assert_eq!(brute_count(&e), all.len(), "{spec} {dim} {p}");
+            assert_eq!(full_profile_count(&e, usize::MAX), Some(all.len()));
+            assert_eq!(full_profile_count(&e, all.len()), Some(all.len()));
+            assert_eq!(full_profile_count(&e, all.len() - 1), None);
+        }
+        // The figure of the 300 s experiment on {0,1,2,3}^4, p = 17.
+        assert_eq!(
+            full_profile_count(&enc("0..3", 4, 17), usize::MAX),
+            Some(834)
+        );
+    }
+
+    #[test]
+    fn the_rule_takes_whole_profiles_below_the_cap_and_prefixes_above() {
+        let small = choose_cubes(&enc("-1..1", 4, 17)).unwrap();
+        assert_eq!(small.rule, "full-profile");
+        // {−1,0,1}^5, p = 34: 2^17 profiles, far more lex-leaders than the cap.
+        let big = enc("-1..1", 5, 34);
+        assert_eq!(full_profile_count(&big, FULL_PROFILE_CAP), None);
+        let c = choose_cubes(&big).unwrap();
+        assert_eq!(c.rule, "breadth-first");
+        assert!(c.cubes.len() >= BREADTH_FIRST_TARGET, "{}", c.cubes.len());
+    }
+}

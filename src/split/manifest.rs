@@ -1,0 +1,166 @@
+//! `manifest.json` of a split folder: the question, the options, the cube
+//! list and the digest of every file.
+
+use std::path::Path;
+
+use serde::{Deserialize, Serialize};
+
+use super::layout::{FORMAT_COMPACT, SplitLayout};
+use super::{Cube, FORMAT, FileEntry, MANIFEST};
+use crate::encode::EncodeOptions;
+use crate::error::{Error, Result};
+use crate::question::QuestionRecord;
+
+/// A cube as the manifest lists it.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct CubeEntry {
+    /// The cube.
+    #[serde(flatten)]
+    pub cube: Cube,
+    /// Its standalone CNF (file layout).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub file: Option<FileEntry>,
+    /// Its digest in the compact layout ([`super::layout::compact_digest`]).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub sha256: Option<String>,
+}
+
+impl CubeEntry {
+    /// The digest that results name: the cube file's SHA-256, or the
+    /// compact digest.
+    pub fn digest(&self) -> &str {
+        match (&self.file, &self.sha256) {
+            (Some(f), _) => &f.sha256,
+            (None, Some(d)) => d,
+            (None, None) => "",
+        }
+    }
+}
+
+/// The coverage check as the manifest records it.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct CoverageEntry {
+    /// The coverage CNF.
+    pub cnf: FileEntry,
+    /// Its LRAT refutation, accepted by orbitcnf's checker when written.
+    pub proof: FileEntry,
+    /// Clauses taken from `formula.cnf`.
+    pub formula_clauses: usize,
+    /// Steps of the accepted proof.
+    pub lrat_steps: u64,
+}
+
+/// How the cubes were chosen (informative; soundness rests on the coverage proof).
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct SplitRule {
+    /// `profile-prefix`.
+    pub rule: String,
+    /// `K`, the profile's length: `⌊p/2⌋`, or `p − 1` for topical maps.
+    pub offsets: usize,
+    /// `L`, the largest profile value.
+    pub max_value: i64,
+    /// Whether prefixes that no multiplier lex-leader extends were dropped.
+    pub multiplier_pruning: bool,
+}
+
+/// `manifest.json` of a split folder.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct SplitManifest {
+    /// [`FORMAT`].
+    pub format: String,
+    /// orbitcnf version that wrote the split.
+    pub orbitcnf_version: String,
+    /// The question.
+    pub question: QuestionRecord,
+    /// The encoding options as resolved for the question.
+    pub options: EncodeOptions,
+    /// The number of cubes asked for (`--cubes`); with `auto_cubes`, the
+    /// number the rule chose.
+    pub requested_cubes: usize,
+    /// Whether the cubes were chosen by the rule of `decide`'s automatic
+    /// strategy ([`super::auto::choose_cubes`]).
+    #[serde(default, skip_serializing_if = "std::ops::Not::not")]
+    pub auto_cubes: bool,
+    /// Cube files, or the formula once ([`super::layout`]).
+    #[serde(default)]
+    pub layout: SplitLayout,
+    /// How the cubes were chosen.
+    pub split: SplitRule,
+    /// `formula.cnf`.
+    pub formula: FileEntry,
+    /// `cubes.icnf`.
+    pub icnf: FileEntry,
+    /// The coverage check.
+    pub coverage: CoverageEntry,
+    /// The cubes, in index order.
+    pub cubes: Vec<CubeEntry>,
+}
+
+impl SplitManifest {
+    /// What `split` wrote to `dir`, and what to do next, for people.
+    pub fn summary(&self, dir: &Path, statement: &str) -> String {
+        let d = dir.display();
+        let n = self.cubes.len();
+        format!(
+            "question     {statement}\ncubes        {n} ({}), {}\n\
+             coverage     checked: LRAT proof of {} steps refutes coverage.cnf, so every model lies in a cube\n\
+             written      {d}/manifest.json, formula.cnf, cubes.icnf, coverage.cnf, coverage.lrat{}\n\
+             next         orbitcnf run-cube {d} INDEX   for INDEX in 0..{}   (docs/cluster.md: Slurm, GNU parallel)\n\
+             \x20            orbitcnf merge {d}\n",
+            if self.auto_cubes {
+                "chosen as decide chooses them".to_string()
+            } else {
+                format!("asked for {}", self.requested_cubes)
+            },
+            if self.split.rule == "start-point" {
+                "one per start point x_0 (full-map formulation)".to_string()
+            } else {
+                format!(
+                    "prefixes of the distance profile g(1..{})",
+                    self.split.offsets
+                )
+            },
+            self.coverage.lrat_steps,
+            match self.layout {
+                SplitLayout::Files => ", cubes/cube-NNNN.cnf",
+                SplitLayout::Compact =>
+                    " (compact: no cube files; run-cube builds each cube from formula.cnf)",
+            },
+            n.saturating_sub(1),
+        )
+    }
+
+    /// Reads `dir/manifest.json`.
+    ///
+    /// # Errors
+    /// [`Error::Io`] or [`Error::Parse`] (not a split manifest, or another format).
+    pub fn read(dir: &Path) -> Result<SplitManifest> {
+        let path = dir.join(MANIFEST);
+        let name = path.display().to_string();
+        let bytes = std::fs::read(&path).map_err(|e| Error::io(&path, e))?;
+        let m: SplitManifest = serde_json::from_slice(&bytes)
+            .map_err(|e| Error::parse(&name, e.line(), format!("not a split manifest: {e}")))?;
+        let expected = match m.layout {
+            SplitLayout::Files => FORMAT,
+            SplitLayout::Compact => FORMAT_COMPACT,
+        };
+        if m.format != expected {
+            return Err(Error::parse(
+                &name,
+                0,
+                format!(
+                    "format {:?}, this orbitcnf reads {FORMAT:?} and {FORMAT_COMPACT:?}",
+                    m.format
+                ),
+            ));
+        }
+        if m.cubes.iter().enumerate().any(|(i, c)| c.cube.index != i) {
+            return Err(Error::parse(
+                &name,
+                0,
+                "the cubes are not listed in index order",
+            ));
+        }
+        Ok(m)
+    }
+}

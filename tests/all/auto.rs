@@ -1,0 +1,167 @@
+//! `decide`'s automatic strategy (a probe, then cubes on threads) and
+//! `split --cubes auto` in the compact layout, through the built binary.
+//!
+//! - The probe is given a conflict budget of 0, so that it stops at its
+//!   first proof flush: reproducible on any machine, no timing involved.
+//! - A question decided after the switch must get the verdict of the
+//!   ordinary solve (`--no-auto-split`); an infeasible one comes with one
+//!   assembled LRAT proof of the CNF that `encode` writes, which
+//!   `verify-proof` accepts, and (when installed) CaDiCaL refutes that CNF
+//!   on its own; a feasible one with an orbit checked independently
+//!   ([`check_report`]).
+//! - `split --cubes auto --layout compact` writes no cube files; GNU
+//!   parallel runs `run-cube` on every cube and `merge` must agree with
+//!   `decide`; a manifest whose cube was altered is refused.
+
+use serde_json::Value;
+
+use crate::util::{FEASIBLE, INFEASIBLE, Q, TestDir, check_report, have_tool};
+
+/// `decide` of `q` with the probe at 0 conflicts and `extra`.
+fn auto_decide(dir: &TestDir, q: &Q, extra: &[&str]) -> crate::util::Run {
+    dir.orbitcnf()
+        .arg("decide")
+        .args(q.args())
+        .args(["--probe-conflicts", "0", "--jobs", "2"])
+        .args(extra)
+        .run()
+}
+
+#[test]
+fn a_question_the_probe_leaves_open_is_refuted_in_cubes_with_one_checked_proof() {
+    let dir = TestDir::new();
+    let q = Q::cube(-1, 1, 4, 17);
+    let run = auto_decide(&dir, &q, &["--proof", "p.lrat", "--progress", "lines"]);
+    run.code(INFEASIBLE)
+        .stdout_has("verdict      INFEASIBLE")
+        .stdout_has(
+            "strategy     probe (budget 0 conflicts) gave no answer in ",
+        )
+        .stdout_has("then 36 full-profile cubes on 2 threads")
+        .stdout_has("certificate  LRAT proof")
+        .stderr_has("decide: the probe gave no answer (conflict budget of 0 reached); switching to 36 full-profile cubes on 2 threads");
+    // The assembled proof is a proof of the very CNF that `encode` writes.
+    crate::scaleout::proof_refutes_the_encoded_cnf(&dir, &q, "p.lrat");
+    if have_tool("cadical") {
+        // An independent solver agrees that the CNF is unsatisfiable.
+        let c = dir.program("cadical").args(["-q", "f.cnf"]).run();
+        assert_eq!(c.code, Some(20), "cadical: {}", c.stdout);
+    }
+    // The JSON report carries the same facts.
+    let v = auto_decide(&dir, &q, &["--json"]).json();
+    assert_eq!(v["verdict"], "infeasible");
+    assert_eq!(v["certified"], true);
+    let s = &v["strategy"];
+    assert_eq!(s["cubes"], 36, "{s}");
+    assert_eq!(s["cube_rule"], "full-profile");
+    assert_eq!(s["threads"], 2);
+    assert_eq!(s["probe_budget_conflicts"], 0);
+    assert!(s["probe_conflicts"].as_u64().unwrap() > 0, "{s}");
+    // The ordinary solve agrees, and says nothing of a strategy.
+    let plain = dir
+        .orbitcnf()
+        .arg("decide")
+        .args(q.args())
+        .args(["--no-auto-split", "--json"])
+        .run();
+    plain.code(INFEASIBLE);
+    assert!(plain.json().get("strategy").is_none());
+}
+
+#[test]
+fn a_feasible_question_found_in_a_cube_has_a_checked_orbit() {
+    let dir = TestDir::new();
+    let q = Q::cube(-1, 1, 4, 15);
+    let run = auto_decide(&dir, &q, &["--json"]);
+    run.code(FEASIBLE);
+    let v = check_report(&dir, &q, &run);
+    assert_eq!(v["strategy"]["cube_rule"], "full-profile", "{v}");
+}
+
+#[test]
+fn easy_questions_are_answered_by_the_probe_and_reported_as_before() {
+    let dir = TestDir::new();
+    let q = Q::cube(-1, 1, 3, 9);
+    let auto = dir.orbitcnf().arg("decide").args(q.args()).run();
+    auto.code(INFEASIBLE);
+    assert!(!auto.stdout.contains("strategy"), "{}", auto.stdout);
+    let plain = dir
+        .orbitcnf()
+        .arg("decide")
+        .args(q.args())
+        .arg("--no-auto-split")
+        .run();
+    plain.code(INFEASIBLE);
+    // The same lines but for the timings.
+    let shape = |s: &str| -> Vec<String> {
+        s.lines()
+            .map(|l| l.split(" in ").next().unwrap_or(l).to_string())
+            .filter(|l| !l.starts_with("stats"))
+            .collect()
+    };
+    assert_eq!(shape(&auto.stdout), shape(&plain.stdout));
+    // The probe's flags make no sense without the switch.
+    dir.orbitcnf()
+        .arg("decide")
+        .args(q.args())
+        .args(["--no-auto-split", "--probe", "3"])
+        .run()
+        .error_with(&["--probe"]);
+}
+
+/// The digest of a compact cube, computed here from its definition.
+fn compact_digest(formula_sha256: &str, literals: &[Value]) -> String {
+    let lits: Vec<String> = literals.iter().map(|l| l.to_string()).collect();
+    let line = format!("a {} 0", lits.join(" "));
+    orbitcnf::artifact::sha256_hex(format!("{formula_sha256}\n{line}\n").as_bytes())
+}
+
+#[test]
+fn a_compact_split_with_the_automatic_cubes_merges_to_the_verdict_of_decide() {
+    if !have_tool("parallel") {
+        return;
+    }
+    let dir = TestDir::new();
+    let q = Q::cube(-1, 1, 4, 17);
+    dir.orbitcnf()
+        .arg("split")
+        .args(q.args())
+        .args(["--cubes", "auto", "--layout", "compact", "--out", "sp"])
+        .run()
+        .code(0)
+        .stdout_has("36 (chosen as decide chooses them)")
+        .stdout_has("compact: no cube files");
+    assert!(!dir.path("sp/cubes").exists(), "no cube files");
+    let m: Value = serde_json::from_str(&dir.read("sp/manifest.json")).unwrap();
+    assert_eq!(m["format"], "orbitcnf-split/2");
+    assert_eq!(m["layout"], "compact");
+    let formula = std::fs::read(dir.path("sp/formula.cnf")).unwrap();
+    let fsha = orbitcnf::artifact::sha256_hex(&formula);
+    assert_eq!(m["formula"]["sha256"], fsha.as_str());
+    let cubes = m["cubes"].as_array().unwrap();
+    assert_eq!(cubes.len(), 36);
+    for c in cubes {
+        assert!(c.get("file").is_none());
+        let want = compact_digest(&fsha, c["literals"].as_array().unwrap());
+        assert_eq!(c["sha256"], want.as_str(), "{c}");
+    }
+    let all: Vec<String> = (0..cubes.len()).map(|i| i.to_string()).collect();
+    crate::scaleout::parallel_run_cubes(&dir, "sp", &all);
+    let merged = dir
+        .orbitcnf()
+        .args(["merge", "sp", "--proof", "all.lrat"])
+        .run();
+    merged.code(INFEASIBLE).stdout_has("all 36 cubes refuted");
+    dir.orbitcnf()
+        .args(["verify-proof", "sp/formula.cnf", "all.lrat"])
+        .run()
+        .code(0);
+    // A cube altered in the manifest no longer matches its digest.
+    let mut bad = m.clone();
+    bad["cubes"][3]["literals"][0] = Value::from(-bad["cubes"][3]["literals"][0].as_i64().unwrap());
+    dir.write("sp/manifest.json", bad.to_string());
+    dir.orbitcnf()
+        .args(["merge", "sp"])
+        .run()
+        .error_with(&["cube 3: its digest does not match"]);
+}

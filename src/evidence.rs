@@ -133,6 +133,58 @@ pub fn check_orbit(q: &Question, orbit: &[Point]) -> Result<OrbitCheck> {
     })
 }
 
+/// The witness of period `d` read off the witness `orbit` (and `map`, in
+/// the full-map formulation) of period `q = orbit.len()`, for `d` dividing
+/// `q` (docs/math.md §9): with `m = q/d`, the orbit `y_j = x_{j·m}`
+/// (`j = 0..d−1`) and the map `f^m`.
+///
+/// Why it is a witness of the same kind: `f^m` is a composition of
+/// nonexpansive (topical) self-maps of D, hence one itself, and moves `y_j`
+/// to `y_{j+1}` with minimal period `d` (§9). On a box the map is not part
+/// of the witness, and the orbit is one of `f^m` all the same: its
+/// distances `d(y_j, y_{j+k}) = d(x_0, x_{k·m})` (and the topical
+/// `t(y_j, y_{j+k})`) depend on `k` only, and its points are distinct.
+/// Nothing here is trusted: the result is checked by [`check_witness`] like
+/// any other witness.
+///
+/// # Errors
+/// [`Error::Question`] when `d` is 0 or does not divide `q`;
+/// [`Error::Decode`] when a point of the orbit has no image in `map`.
+pub fn divisor_witness(
+    orbit: &[Point],
+    map: Option<&[(Point, Point)]>,
+    d: usize,
+) -> Result<(Vec<Point>, Option<Vec<(Point, Point)>>)> {
+    let q = orbit.len();
+    if d == 0 || q % d != 0 {
+        return Err(Error::Question(format!(
+            "period {d} does not divide {q}, so an orbit of period {q} gives none of period {d}"
+        )));
+    }
+    let m = q / d;
+    let sub: Vec<Point> = (0..d).map(|j| orbit[j * m].clone()).collect();
+    let Some(map) = map else {
+        return Ok((sub, None));
+    };
+    let image: std::collections::HashMap<&Point, &Point> =
+        map.iter().map(|(z, fz)| (z, fz)).collect();
+    let power = map
+        .iter()
+        .map(|(z, _)| {
+            let mut y = z;
+            for _ in 0..m {
+                y = image.get(y).copied().ok_or_else(|| {
+                    Error::Decode(format!(
+                        "the map gives no image of {y:?}, so its power cannot be taken"
+                    ))
+                })?;
+            }
+            Ok((z.clone(), y.clone()))
+        })
+        .collect::<Result<Vec<_>>>()?;
+    Ok((sub, Some(power)))
+}
+
 /// What [`check_proof_file`] established.
 #[derive(Clone, Debug, PartialEq, Serialize)]
 pub struct ProofCheck {

@@ -138,6 +138,11 @@ pub struct SweepConfig {
     /// Fully re-check reused stored answers (proofs re-checked by the LRAT
     /// checker against a fresh encoding) instead of the quick check.
     pub recheck: bool,
+    /// Decide periods by the divisor rule (docs/math.md §9) where another
+    /// period's answer gives them: a multiple of a refuted period is
+    /// infeasible, a divisor of a feasible one feasible (the module
+    /// documentation says how).
+    pub divisors: bool,
 }
 
 impl SweepConfig {
@@ -162,6 +167,7 @@ impl SweepConfig {
             store: None,
             progress: ProgressMode::Off,
             recheck: false,
+            divisors: true,
         }
     }
 }
@@ -270,7 +276,7 @@ impl Checked {
     /// proof), [`Checked::Never`] for any other.
     fn of(a: &Answer, now: Checked) -> Checked {
         match a.backing {
-            Backing::CheckedOrbit | Backing::CheckedProof => now,
+            Backing::CheckedOrbit | Backing::CheckedProof | Backing::Divisor => now,
             Backing::SolverClaim | Backing::None => Checked::Never,
         }
     }
@@ -337,6 +343,9 @@ pub struct Summary {
     pub by_construction: usize,
     /// Answers obtained by the solver (this run or stored).
     pub by_solver: usize,
+    /// Answers read off another period's by the divisor rule (docs/math.md
+    /// §9; this run or stored).
+    pub by_divisors: usize,
     /// Answers reused from the store.
     pub reused: usize,
     /// Reused infeasible answers whose proof this run did not check again
@@ -356,6 +365,7 @@ impl Summary {
             unknown: count(&|r| r.verdict == Verdict::Unknown),
             by_construction: count(&|r| r.how == How::Construction),
             by_solver: count(&|r| r.how == How::Solver),
+            by_divisors: count(&|r| r.how == How::Divisor),
             reused: count(&|r| r.reused),
             proofs_not_rechecked: count(&|r| {
                 r.verdict == Verdict::Infeasible && matches!(r.checked, Checked::Earlier { .. })

@@ -99,26 +99,59 @@ pub fn run(cfg: &SweepConfig) -> Result<Spectrum> {
         jobs: cfg.jobs,
         limit: limits.time_seconds,
     };
+    if cfg.divisors {
+        let open: Vec<&Question> = tasks.iter().map(|t| &t.question).collect();
+        let done = settle(cfg, &limits, &run_id, &mut store, &mut rows, open)?;
+        warn_set_aside(&store, &mut warned, &mut progress);
+        for p in &done {
+            progress.event(|| watch.by_divisors(&rows[p], &rows));
+        }
+        tasks.retain(|t| !rows.contains_key(&t.question.period));
+    }
     progress.event(|| {
         let reused = rows.values().filter(|r| r.reused).count();
+        let divisors = rows
+            .values()
+            .filter(|r| !r.reused && r.how == How::Divisor)
+            .count();
         format!(
-            "spectrum {}: {} of {} periods decided before solving ({} from the store, {} by construction); \
-             {} to solve with {} job(s)",
+            "spectrum {}: {} of {} periods decided before solving ({} from the store, {} by construction, \
+             {} by §9); {} to solve with {} job(s)",
             watch.grid,
             rows.len(),
             watch.total,
             reused,
-            rows.len() - reused,
+            rows.len() - reused - divisors,
+            divisors,
             tasks.len(),
             cfg.jobs
         )
     });
     let conflicts: Vec<Arc<AtomicU64>> = tasks.iter().map(|_| Arc::default()).collect();
+    // Tasks whose answer §9 gives: a worker that comes to one skips it
+    // (returns `None`); its row is made on the calling thread.
+    let settled: Vec<AtomicBool> = tasks.iter().map(|_| AtomicBool::new(false)).collect();
     let stop = AtomicBool::new(false);
     let mut first_error: Option<Error> = None;
     let work = |i: usize| {
+        if settled[i].load(Ordering::SeqCst) {
+            return None;
+        }
         let answer = answer::solved(&tasks[i], cfg, &limits, &run_id, &conflicts[i]);
-        Box::new(answer)
+        // Marked here, before the answer is sent, and not only by the
+        // calling thread: a worker taking the next task must not start a
+        // search that this answer settles. Should the calling thread then
+        // refuse this answer, the sweep stops, so nothing rests on the mark.
+        if cfg.divisors
+            && let Ok(a) = &answer
+        {
+            for (j, t) in tasks.iter().enumerate() {
+                if answer::decides(a, t.question.period) {
+                    settled[j].store(true, Ordering::SeqCst);
+                }
+            }
+        }
+        Some(Box::new(answer))
     };
     pool::run(tasks.len(), cfg.jobs, &stop, work, |event, state| {
         let running: Vec<(usize, Instant, u64)> = state
@@ -131,20 +164,77 @@ pub fn run(cfg: &SweepConfig) -> Result<Spectrum> {
             .collect();
         if let Event::Finished(i, answer) = event {
             let p = tasks[i].question.period;
-            let outcome = (*answer).and_then(|a| finish(grid, &mut store, &mut rows, a));
+            let outcome = match answer {
+                // Skipped: §9 gives its answer (made below, or already).
+                None => Ok(Vec::new()),
+                Some(answer) => (*answer).and_then(|a| {
+                    let new = !rows.contains_key(&p);
+                    if new {
+                        finish(grid, &mut store, &mut rows, a)?;
+                    } else {
+                        // §9 answered it while it ran; the two must agree.
+                        dismiss(&store, &rows[&p], a)?;
+                    }
+                    Ok(if new { vec![p] } else { Vec::new() })
+                }),
+            }
+            .and_then(|mut decided| {
+                if cfg.divisors {
+                    let open: Vec<&Question> = tasks
+                        .iter()
+                        .enumerate()
+                        .filter(|(j, _)| !state.running.contains_key(j))
+                        .map(|(_, t)| &t.question)
+                        .collect();
+                    let done = settle(cfg, &limits, &run_id, &mut store, &mut rows, open)?;
+                    for &d in &done {
+                        if let Some(j) = tasks.iter().position(|t| t.question.period == d) {
+                            settled[j].store(true, Ordering::SeqCst);
+                        }
+                    }
+                    decided.extend(done);
+                }
+                if !rows.contains_key(&p) {
+                    // Skipped, yet no row gives it by §9: the answer that
+                    // settled it was replaced by another run's stored answer
+                    // of the same verdict that decides nothing else (a
+                    // solver's claim). Unknown, and not stored, so that the
+                    // next run decides it.
+                    let q = &tasks[i].question;
+                    let started = store::utc_timestamp(SystemTime::now());
+                    let mut a =
+                        Answer::unknown(q, &cfg.options, limits, How::Solver, &run_id, started);
+                    a.reason = Some(
+                        "not searched: §9 was to decide it from another period, whose stored \
+                         answer turned out not to be checked"
+                            .into(),
+                    );
+                    a.finished_at = a.started_at.clone();
+                    rows.insert(p, Row::new(grid, a, false, Checked::Never));
+                    decided.push(p);
+                }
+                Ok(decided)
+            });
             warn_set_aside(&store, &mut warned, &mut progress);
             match outcome {
-                Ok(()) => progress.event(|| {
-                    let r = &rows[&p];
-                    format!(
-                        "spectrum {}: p={p} {} ({}, {}); {}",
-                        watch.grid,
-                        r.verdict.word(),
-                        r.how.word(),
-                        duration_words(r.seconds),
-                        watch.words(&rows, &running, state.queued)
-                    )
-                }),
+                Ok(decided) => {
+                    for d in decided {
+                        progress.event(|| {
+                            let r = &rows[&d];
+                            if r.how == How::Divisor {
+                                return watch.by_divisors(r, &rows);
+                            }
+                            format!(
+                                "spectrum {}: p={d} {} ({}, {}); {}",
+                                watch.grid,
+                                r.verdict.word(),
+                                r.how.word(),
+                                duration_words(r.seconds),
+                                watch.words(&rows, &running, state.queued)
+                            )
+                        });
+                    }
+                }
                 Err(e) => {
                     stop.store(true, Ordering::SeqCst);
                     progress.clear();
@@ -323,6 +413,70 @@ fn check_stored(s: &Store, q: &Question, a: &Answer, recheck: bool) -> Result<Ch
     }
 }
 
+/// Answers by the divisor rule (docs/math.md §9) every period of `open`
+/// that has no row yet and that a row decides ([`answer::decides`]), storing
+/// each answer and recording its row; returns those periods. Two rows that
+/// decide a period opposite ways contradict §9, which is an error.
+fn settle(
+    cfg: &SweepConfig,
+    limits: &RunLimits,
+    run_id: &str,
+    store: &mut Option<Store>,
+    rows: &mut BTreeMap<usize, Row>,
+    open: Vec<&Question>,
+) -> Result<Vec<usize>> {
+    let mut done = Vec::new();
+    for q in open {
+        if rows.contains_key(&q.period) {
+            continue;
+        }
+        let mut deciders = rows
+            .values()
+            .filter(|r| answer::decides(&r.answer, q.period));
+        let Some(first) = deciders.next() else {
+            continue;
+        };
+        if let Some(other) = deciders.find(|r| r.verdict != first.verdict) {
+            return Err(Error::Contradiction {
+                question: store::question_words(&q.record()),
+                first: format!(
+                    "by §9 it is {} because p = {} is {}",
+                    first.verdict.word(),
+                    first.period,
+                    first.verdict.word()
+                ),
+                second: format!(
+                    "by §9 it is {} because p = {} is {}",
+                    other.verdict.word(),
+                    other.period,
+                    other.verdict.word()
+                ),
+            });
+        }
+        let a = answer::by_divisors(q, &first.answer, &cfg.options, limits, run_id)?;
+        finish(&cfg.grid, store, rows, a)?;
+        done.push(q.period);
+    }
+    Ok(done)
+}
+
+/// Drops the answer `a` of a period that §9 answered while it was being
+/// solved (its row is `row`), after checking that the two agree; a proof
+/// `a` left in the store goes, since no answer refers to it.
+fn dismiss(store: &Option<Store>, row: &Row, a: Answer) -> Result<()> {
+    if a.is_decided() && a.verdict != row.verdict {
+        return Err(Error::Contradiction {
+            question: store::question_words(&a.question),
+            first: format!("this run found it {} by §9", row.verdict.word()),
+            second: format!("the solver's answer of this run says {}", a.describe()),
+        });
+    }
+    if let (Some(s), Some(f)) = (store, a.proof.as_ref().and_then(|p| p.file.as_ref())) {
+        let _ = std::fs::remove_file(s.resolve(f));
+    }
+    Ok(())
+}
+
 /// Checks a new answer against the theorems, stores it and records its row.
 fn finish(
     grid: &Grid,
@@ -386,6 +540,23 @@ impl Watch {
             count(Verdict::Feasible),
             count(Verdict::Infeasible),
             count(Verdict::Unknown),
+        )
+    }
+
+    /// The progress line of a period answered by §9: `p=10 infeasible by
+    /// §9 from p = 5; 7/12 periods decided (…)`.
+    fn by_divisors(&self, r: &Row, rows: &BTreeMap<usize, Row>) -> String {
+        let from = r
+            .answer
+            .divisor
+            .as_ref()
+            .map_or("?".to_string(), |d| d.period.to_string());
+        format!(
+            "spectrum {}: p={} {} by §9 from p = {from}; {}",
+            self.grid,
+            r.period,
+            r.verdict.word(),
+            self.decided(rows)
         )
     }
 

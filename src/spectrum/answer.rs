@@ -10,15 +10,13 @@ use super::{MAP_CHECK_POINTS, SweepConfig};
 use crate::decide;
 use crate::encode::EncodeOptions;
 use crate::error::{Error, Result};
-use crate::evidence::{Evidence, check_witness, divisor_witness};
+use crate::evidence::{Evidence, check_witness};
 use crate::grid::Point;
 use crate::question::{MapClass, Question};
 use crate::report::Verdict;
 use crate::solve::Limits;
 use crate::solve::certified::Certified;
-use crate::store::{
-    self, Answer, AnswerStats, Backing, DivisorRecord, How, ProofRecord, RunLimits,
-};
+use crate::store::{self, Answer, AnswerStats, Backing, How, ProofRecord, RunLimits};
 use crate::theory::{construct, construction_limit};
 use crate::verify;
 
@@ -179,93 +177,6 @@ pub(super) fn solved(
             a.reason = Some(e.to_string());
         }
         Err(e) => return Err(e),
-    }
-    a.stats.seconds = t.elapsed().as_secs_f64();
-    a.finished_at = store::utc_timestamp(SystemTime::now());
-    Ok(a)
-}
-
-/// Whether the answer `a` to a period `p` decides the period `r` by the
-/// divisor rule (docs/math.md §9): `r` is a proper multiple of `p` and `a`
-/// is infeasible with a checked proof (its own, or that of the divisor it
-/// was read off), or `r` is a proper divisor of `p` and `a` feasible with a
-/// checked orbit. A solver's unchecked claim decides nothing else.
-pub(super) fn decides(a: &Answer, r: usize) -> bool {
-    let p = a.question.period;
-    if p == 0 || r == 0 || p == r {
-        return false;
-    }
-    match (a.verdict, a.backing) {
-        (Verdict::Infeasible, Backing::CheckedProof | Backing::Divisor) => r % p == 0,
-        (Verdict::Feasible, Backing::CheckedOrbit) => p % r == 0,
-        _ => false,
-    }
-}
-
-/// The answer to `q` read off `from`, an answer that [`decides`] it: for an
-/// infeasible `from`, infeasible by §9 naming the refuted period at the
-/// root (a period refuted by its own proof, so that checking this answer
-/// checks that proof); for a feasible one, the sub-orbit
-/// ([`divisor_witness`]), checked by [`check_witness`] like any witness,
-/// with its extension built and checked on small boxes as for a
-/// constructed orbit.
-///
-/// # Errors
-/// [`Error::Question`] when `from` does not decide `q`; check errors of
-/// the derived witness (which would mean a bug, since §9 is a theorem).
-pub(super) fn by_divisors(
-    q: &Question,
-    from: &Answer,
-    options: &EncodeOptions,
-    limits: &RunLimits,
-    run_id: &str,
-) -> Result<Answer> {
-    if !decides(from, q.period) {
-        return Err(Error::Question(format!(
-            "the answer to p = {} ({}) decides nothing about p = {} by §9",
-            from.question.period,
-            from.verdict.word(),
-            q.period
-        )));
-    }
-    let t = Instant::now();
-    let started_at = store::utc_timestamp(SystemTime::now());
-    let mut a = Answer::unknown(q, options, *limits, How::Divisor, run_id, started_at);
-    match from.verdict {
-        Verdict::Infeasible => {
-            let root = match (&from.divisor, from.backing) {
-                (Some(d), Backing::Divisor) => d.clone(),
-                _ => DivisorRecord {
-                    period: from.question.period,
-                    key: from.key.clone(),
-                    proof_sha256: from.proof.as_ref().and_then(|p| p.sha256.clone()),
-                    proof_file: from.proof.as_ref().and_then(|p| p.file.clone()),
-                },
-            };
-            a.verdict = Verdict::Infeasible;
-            a.backing = Backing::Divisor;
-            a.divisor = Some(root);
-        }
-        _ => {
-            let orbit = from.orbit.as_deref().unwrap_or_default();
-            let (sub, map) = divisor_witness(orbit, from.map.as_deref(), q.period)?;
-            let w = check_witness(q, &a.options, &sub, map.as_deref())?;
-            a.map_checked_points = match w.map {
-                Some(mc) => Some(mc.points_checked),
-                None => map_check(q, &sub)?,
-            };
-            a.verdict = Verdict::Feasible;
-            a.backing = Backing::CheckedOrbit;
-            a.profile = Some(w.orbit.profile);
-            a.orbit = Some(sub);
-            a.map = map;
-            a.divisor = Some(DivisorRecord {
-                period: from.question.period,
-                key: from.key.clone(),
-                proof_sha256: None,
-                proof_file: None,
-            });
-        }
     }
     a.stats.seconds = t.elapsed().as_secs_f64();
     a.finished_at = store::utc_timestamp(SystemTime::now());

@@ -6,6 +6,7 @@ use std::sync::atomic::{AtomicBool, AtomicU64, Ordering};
 use std::time::{Instant, SystemTime};
 
 use super::answer::{self, Task};
+use super::divisors;
 use super::{Checked, MAX_PERIODS, Row, Spectrum, Summary, SweepConfig};
 use crate::dimacs::VERSION;
 use crate::error::{Error, Result};
@@ -101,7 +102,7 @@ pub fn run(cfg: &SweepConfig) -> Result<Spectrum> {
     };
     if cfg.divisors {
         let open: Vec<&Question> = tasks.iter().map(|t| &t.question).collect();
-        let done = settle(cfg, &limits, &run_id, &mut store, &mut rows, open)?;
+        let done = divisors::settle(cfg, &limits, &run_id, &mut store, &mut rows, open)?;
         warn_set_aside(&store, &mut warned, &mut progress);
         for p in &done {
             progress.event(|| watch.by_divisors(&rows[p], &rows));
@@ -146,7 +147,7 @@ pub fn run(cfg: &SweepConfig) -> Result<Spectrum> {
             && let Ok(a) = &answer
         {
             for (j, t) in tasks.iter().enumerate() {
-                if answer::decides(a, t.question.period) {
+                if divisors::decides(a, t.question.period) {
                     settled[j].store(true, Ordering::SeqCst);
                 }
             }
@@ -173,7 +174,7 @@ pub fn run(cfg: &SweepConfig) -> Result<Spectrum> {
                         finish(grid, &mut store, &mut rows, a)?;
                     } else {
                         // §9 answered it while it ran; the two must agree.
-                        dismiss(&store, &rows[&p], a)?;
+                        divisors::dismiss(&store, &rows[&p], a)?;
                     }
                     Ok(if new { vec![p] } else { Vec::new() })
                 }),
@@ -186,7 +187,8 @@ pub fn run(cfg: &SweepConfig) -> Result<Spectrum> {
                         .filter(|(j, _)| !state.running.contains_key(j))
                         .map(|(_, t)| &t.question)
                         .collect();
-                    let done = settle(cfg, &limits, &run_id, &mut store, &mut rows, open)?;
+                    let done =
+                        divisors::settle(cfg, &limits, &run_id, &mut store, &mut rows, open)?;
                     for &d in &done {
                         if let Some(j) = tasks.iter().position(|t| t.question.period == d) {
                             settled[j].store(true, Ordering::SeqCst);
@@ -194,7 +196,7 @@ pub fn run(cfg: &SweepConfig) -> Result<Spectrum> {
                     }
                     decided.extend(done);
                 }
-                if !rows.contains_key(&p) {
+                if let std::collections::btree_map::Entry::Vacant(slot) = rows.entry(p) {
                     // Skipped, yet no row gives it by §9: the answer that
                     // settled it was replaced by another run's stored answer
                     // of the same verdict that decides nothing else (a
@@ -210,7 +212,7 @@ pub fn run(cfg: &SweepConfig) -> Result<Spectrum> {
                             .into(),
                     );
                     a.finished_at = a.started_at.clone();
-                    rows.insert(p, Row::new(grid, a, false, Checked::Never));
+                    slot.insert(Row::new(grid, a, false, Checked::Never));
                     decided.push(p);
                 }
                 Ok(decided)
@@ -413,72 +415,8 @@ fn check_stored(s: &Store, q: &Question, a: &Answer, recheck: bool) -> Result<Ch
     }
 }
 
-/// Answers by the divisor rule (docs/math.md §9) every period of `open`
-/// that has no row yet and that a row decides ([`answer::decides`]), storing
-/// each answer and recording its row; returns those periods. Two rows that
-/// decide a period opposite ways contradict §9, which is an error.
-fn settle(
-    cfg: &SweepConfig,
-    limits: &RunLimits,
-    run_id: &str,
-    store: &mut Option<Store>,
-    rows: &mut BTreeMap<usize, Row>,
-    open: Vec<&Question>,
-) -> Result<Vec<usize>> {
-    let mut done = Vec::new();
-    for q in open {
-        if rows.contains_key(&q.period) {
-            continue;
-        }
-        let mut deciders = rows
-            .values()
-            .filter(|r| answer::decides(&r.answer, q.period));
-        let Some(first) = deciders.next() else {
-            continue;
-        };
-        if let Some(other) = deciders.find(|r| r.verdict != first.verdict) {
-            return Err(Error::Contradiction {
-                question: store::question_words(&q.record()),
-                first: format!(
-                    "by §9 it is {} because p = {} is {}",
-                    first.verdict.word(),
-                    first.period,
-                    first.verdict.word()
-                ),
-                second: format!(
-                    "by §9 it is {} because p = {} is {}",
-                    other.verdict.word(),
-                    other.period,
-                    other.verdict.word()
-                ),
-            });
-        }
-        let a = answer::by_divisors(q, &first.answer, &cfg.options, limits, run_id)?;
-        finish(&cfg.grid, store, rows, a)?;
-        done.push(q.period);
-    }
-    Ok(done)
-}
-
-/// Drops the answer `a` of a period that §9 answered while it was being
-/// solved (its row is `row`), after checking that the two agree; a proof
-/// `a` left in the store goes, since no answer refers to it.
-fn dismiss(store: &Option<Store>, row: &Row, a: Answer) -> Result<()> {
-    if a.is_decided() && a.verdict != row.verdict {
-        return Err(Error::Contradiction {
-            question: store::question_words(&a.question),
-            first: format!("this run found it {} by §9", row.verdict.word()),
-            second: format!("the solver's answer of this run says {}", a.describe()),
-        });
-    }
-    if let (Some(s), Some(f)) = (store, a.proof.as_ref().and_then(|p| p.file.as_ref())) {
-        let _ = std::fs::remove_file(s.resolve(f));
-    }
-    Ok(())
-}
-
 /// Checks a new answer against the theorems, stores it and records its row.
-fn finish(
+pub(super) fn finish(
     grid: &Grid,
     store: &mut Option<Store>,
     rows: &mut BTreeMap<usize, Row>,

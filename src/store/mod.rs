@@ -492,7 +492,7 @@ impl Store {
                 self.answer_path(&rec.key).display()
             )));
         }
-        if p == 0 || a.question.period % p != 0 {
+        if p == 0 || !a.question.period.is_multiple_of(p) {
             return Err(bad(format!(
                 "§9 derives infeasibility only for multiples, and {p} does not divide {}",
                 a.question.period

@@ -919,23 +919,18 @@ fn spectrum_answers_multiples_of_refuted_periods_by_section_9_with_the_same_verd
     // proofs of 5 and 6 (docs/math.md §9) without a search; without the rule
     // every one of 5..12 is solved, to the same verdicts.
     let dir = TestDir::new();
-    let sweep = |extra: &[&str]| {
+    let spectrum = |periods: &str, extra: &[&str]| {
         let run = dir
             .orbitcnf()
-            .args([
-                "spectrum",
-                "--dim",
-                "2",
-                "--grid=-2..2",
-                "--periods",
-                "1..12",
-            ])
-            .args(["--no-store", "-j", "1", "--json"])
+            .args(["spectrum", "--dim", "2", "--grid=-2..2", "--periods"])
+            .arg(periods)
+            .args(["--no-store", "-j", "1"])
             .args(extra)
             .run();
         run.code(0);
-        run.json()
+        run
     };
+    let sweep = |extra: &[&str]| spectrum("1..12", &[&["--json"], extra].concat()).json();
     let with = sweep(&[]);
     let without = sweep(&["--no-divisors"]);
     let feasible: Vec<&str> = (1..=12)
@@ -960,20 +955,8 @@ fn spectrum_answers_multiples_of_refuted_periods_by_section_9_with_the_same_verd
     assert_eq!(with["summary"]["by_divisors"], 2);
 
     // The table says it in words, and so do the progress lines.
-    let run = dir
-        .orbitcnf()
-        .args([
-            "spectrum",
-            "--dim",
-            "2",
-            "--grid=-2..2",
-            "--periods",
-            "5..12",
-        ])
-        .args(["--no-store", "-j", "1", "--progress", "lines"])
-        .run();
-    run.code(0)
-        .stdout_has("   10  infeasible  §9")
+    let run = spectrum("5..12", &["--progress", "lines"]);
+    run.stdout_has("   10  infeasible  §9")
         .stdout_has("by §9: p = 5 is infeasible (LRAT proof checked, not kept)")
         .stdout_has("by §9: p = 6 is infeasible")
         .stdout_has("0 by construction, 6 by the solver, 2 by §9 (divisors)");

@@ -33,8 +33,9 @@ How each period is answered, cheapest first:
                 divisor d of a feasible q gets every (q/d)-th point of q's orbit
                 (and f^(q/d) on a point set), checked as any witness. Periods are
                 solved in increasing order; no search starts whose answer §9
-                already gives (one running meanwhile is finished). --no-divisors
-                turns this off
+                already gives (one running meanwhile is finished). With --real
+                as well (rows by §9 are derived again by each run, not stored).
+                --no-divisors turns this off
   solver        everything else: `decide` with the certified solver; infeasible
                 answers carry an LRAT proof accepted by orbitcnf's own checker
 
@@ -225,6 +226,7 @@ fn run_real(n: usize, a: SpectrumArgs) -> Outcome {
         time_limit: a.time_limit,
         store: (!a.no_store).then(|| a.store.clone()),
         recheck: a.recheck,
+        divisors: !a.no_divisors,
     };
     let mut line = super::real::progress_line(a.progress.mode(a.json));
     let s = orbitcnf::real::sweep::run(&cfg, &mut |p, pr| {

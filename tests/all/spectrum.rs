@@ -924,13 +924,14 @@ fn spectrum_answers_multiples_of_refuted_periods_by_section_9_with_the_same_verd
             .orbitcnf()
             .args(["spectrum", "--dim", "2", "--grid=-2..2", "--periods"])
             .arg(periods)
-            .args(["--no-store", "-j", "1"])
+            .args(["-j", "1"])
             .args(extra)
             .run();
         run.code(0);
         run
     };
-    let sweep = |extra: &[&str]| spectrum("1..12", &[&["--json"], extra].concat()).json();
+    let sweep =
+        |extra: &[&str]| spectrum("1..12", &[&["--no-store", "--json"], extra].concat()).json();
     let with = sweep(&[]);
     let without = sweep(&["--no-divisors"]);
     let feasible: Vec<&str> = (1..=12)
@@ -955,7 +956,7 @@ fn spectrum_answers_multiples_of_refuted_periods_by_section_9_with_the_same_verd
     assert_eq!(with["summary"]["by_divisors"], 2);
 
     // The table says it in words, and so do the progress lines.
-    let run = spectrum("5..12", &["--progress", "lines"]);
+    let run = spectrum("5..12", &["--no-store", "--progress", "lines"]);
     run.stdout_has("   10  infeasible  §9")
         .stdout_has("by §9: p = 5 is infeasible (LRAT proof checked, not kept)")
         .stdout_has("by §9: p = 6 is infeasible")
@@ -971,6 +972,14 @@ fn spectrum_answers_multiples_of_refuted_periods_by_section_9_with_the_same_verd
             "{needle}: {lines:#?}"
         );
     }
+    // Stored, the answer by §9 names the proof of 5, and `report` says so.
+    spectrum("5..10", &["--store", "st", "-q"]);
+    let html = dir
+        .orbitcnf()
+        .args(["report", "st", "--format", "html"])
+        .run();
+    html.code(0)
+        .stdout_has("by §9 (periods are closed under divisors): p = 5 is infeasible");
     dir.orbitcnf()
         .args(["spectrum", "--help"])
         .run()

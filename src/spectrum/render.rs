@@ -368,10 +368,16 @@ impl Spectrum {
             s,
             "\nEvery computed answer agrees with the theorems above (orbitcnf reports any disagreement \
              as an error and writes no page). Feasible answers carry {}; \
-             infeasible ones an LRAT proof of the CNF, accepted by orbitcnf's own checker.",
+             infeasible ones an LRAT proof of the CNF, accepted by orbitcnf's own checker{}.",
             match self.points {
                 None => "an orbit checked point by point",
                 Some(_) => "an orbit and the whole map D → D, checked point by point",
+            },
+            if self.summary.by_divisors > 0 {
+                " (for an answer by §9, the proof of the refuted divisor it names: periods are \
+                 closed under divisors, docs/math.md §9)"
+            } else {
+                ""
             }
         );
         s

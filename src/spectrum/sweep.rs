@@ -196,25 +196,6 @@ pub fn run(cfg: &SweepConfig) -> Result<Spectrum> {
                     }
                     decided.extend(done);
                 }
-                if let std::collections::btree_map::Entry::Vacant(slot) = rows.entry(p) {
-                    // Skipped, yet no row gives it by §9: the answer that
-                    // settled it was replaced by another run's stored answer
-                    // of the same verdict that decides nothing else (a
-                    // solver's claim). Unknown, and not stored, so that the
-                    // next run decides it.
-                    let q = &tasks[i].question;
-                    let started = store::utc_timestamp(SystemTime::now());
-                    let mut a =
-                        Answer::unknown(q, &cfg.options, limits, How::Solver, &run_id, started);
-                    a.reason = Some(
-                        "not searched: §9 was to decide it from another period, whose stored \
-                         answer turned out not to be checked"
-                            .into(),
-                    );
-                    a.finished_at = a.started_at.clone();
-                    slot.insert(Row::new(grid, a, false, Checked::Never));
-                    decided.push(p);
-                }
                 Ok(decided)
             });
             warn_set_aside(&store, &mut warned, &mut progress);
@@ -266,6 +247,30 @@ pub fn run(cfg: &SweepConfig) -> Result<Spectrum> {
     progress.clear();
     if let Some(e) = first_error {
         return Err(e);
+    }
+    for t in &tasks {
+        if let std::collections::btree_map::Entry::Vacant(slot) = rows.entry(t.question.period) {
+            // Skipped, yet no row gives it by §9: the answer that settled
+            // it was replaced by another run's stored answer of the same
+            // verdict that settles nothing (a solver's claim). Unknown, and
+            // not stored, so that the next run decides it.
+            let started = store::utc_timestamp(SystemTime::now());
+            let mut a = Answer::unknown(
+                &t.question,
+                &cfg.options,
+                limits,
+                How::Solver,
+                &run_id,
+                started,
+            );
+            a.reason = Some(
+                "not searched: §9 was to decide it from another period, whose stored \
+                 answer turned out not to be checked"
+                    .into(),
+            );
+            a.finished_at = a.started_at.clone();
+            slot.insert(Row::new(grid, a, false, Checked::Never));
+        }
     }
     progress.event(|| {
         format!(

@@ -410,7 +410,10 @@ pub fn run_spectrum(jobs: usize, limit: Duration) -> Result<SpectrumFigures> {
         .iter()
         .filter(|r| {
             r.verdict == Verdict::Infeasible
-                && r.answer.backing != crate::store::Backing::CheckedProof
+                && !matches!(
+                    r.answer.backing,
+                    crate::store::Backing::CheckedProof | crate::store::Backing::Divisor
+                )
         })
         .count();
     let slowest = sp

@@ -133,6 +133,61 @@ pub fn check_orbit(q: &Question, orbit: &[Point]) -> Result<OrbitCheck> {
     })
 }
 
+/// A map `D → D` as its table of pairs `(z, f(z))`.
+pub type MapTable = Vec<(Point, Point)>;
+
+/// The witness of period `d` read off the witness `orbit` (and `map`, in
+/// the full-map formulation) of period `q = orbit.len()`, for `d` dividing
+/// `q` (docs/math.md §9): with `m = q/d`, the orbit `y_j = x_{j·m}`
+/// (`j = 0..d−1`) and the map `f^m`.
+///
+/// Why it is a witness of the same kind: `f^m` is a composition of
+/// nonexpansive (topical) self-maps of D, hence one itself, and moves `y_j`
+/// to `y_{j+1}` with minimal period `d` (§9). On a box the map is not part
+/// of the witness, and the orbit is one of `f^m` all the same: its
+/// distances `d(y_j, y_{j+k}) = d(x_0, x_{k·m})` (and the topical
+/// `t(y_j, y_{j+k})`) depend on `k` only, and its points are distinct.
+/// Nothing here is trusted: the result is checked by [`check_witness`] like
+/// any other witness.
+///
+/// # Errors
+/// [`Error::Question`] when `d` is 0 or does not divide `q`;
+/// [`Error::Decode`] when a point of the orbit has no image in `map`.
+pub fn divisor_witness(
+    orbit: &[Point],
+    map: Option<&[(Point, Point)]>,
+    d: usize,
+) -> Result<(Vec<Point>, Option<MapTable>)> {
+    let q = orbit.len();
+    if d == 0 || !q.is_multiple_of(d) {
+        return Err(Error::Question(format!(
+            "period {d} does not divide {q}, so an orbit of period {q} gives none of period {d}"
+        )));
+    }
+    let m = q / d;
+    let sub: Vec<Point> = (0..d).map(|j| orbit[j * m].clone()).collect();
+    let Some(map) = map else {
+        return Ok((sub, None));
+    };
+    let image: std::collections::HashMap<&Point, &Point> =
+        map.iter().map(|(z, fz)| (z, fz)).collect();
+    let power = map
+        .iter()
+        .map(|(z, _)| {
+            let mut y = z;
+            for _ in 0..m {
+                y = image.get(y).copied().ok_or_else(|| {
+                    Error::Decode(format!(
+                        "the map gives no image of {y:?}, so its power cannot be taken"
+                    ))
+                })?;
+            }
+            Ok((z.clone(), y.clone()))
+        })
+        .collect::<Result<Vec<_>>>()?;
+    Ok((sub, Some(power)))
+}
+
 /// What [`check_proof_file`] established.
 #[derive(Clone, Debug, PartialEq, Serialize)]
 pub struct ProofCheck {
@@ -189,5 +244,121 @@ pub fn proof_info(check: ProofCheck, file: Option<PathBuf>) -> ProofInfo {
         drat_file: None,
         drat_bytes: None,
         check_seconds: check.seconds,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::brute;
+    use crate::grid::Grid;
+    use crate::points::PointSet;
+
+    fn divisors(q: usize) -> Vec<usize> {
+        (1..q).filter(|&d| q.is_multiple_of(d)).collect()
+    }
+
+    /// Every divisor's witness read off `orbit` passes the independent
+    /// check of its own question (`question(d)`).
+    fn assert_divisors_check(orbit: &[Point], question: &dyn Fn(usize) -> Question) {
+        for d in divisors(orbit.len()) {
+            let q = question(d);
+            let options = EncodeOptions::default().resolve(&q);
+            let (sub, map) = divisor_witness(orbit, None, d).unwrap();
+            assert_eq!(sub.len(), d);
+            assert!(map.is_none());
+            if let Err(e) = check_witness(&q, &options, &sub, None) {
+                panic!("d = {d} from {orbit:?}: {e}");
+            }
+        }
+    }
+
+    #[test]
+    fn sub_orbits_of_isometric_cycles_found_by_brute_force_are_isometric_cycles() {
+        // {-1,0,1}^3: 8-cycles (and 6-cycles) found by the independent brute
+        // force; every divisor's sub-orbit is checked by the verifier.
+        let bounds = [(-1, 1); 3];
+        let grid = Grid::parse("-1..1", Some(3)).unwrap();
+        // The search meets cycles of the unit cube (all distances 1) first;
+        // those with a distance 2 are the ones where the check can bite.
+        let far = |o: &Vec<Point>| o.iter().any(|z| brute::sup_distance(&o[0], z) == 2);
+        let cycles_with_2 = |p: usize| -> Vec<Vec<Point>> {
+            brute::all_cycles(&bounds, p, 3000)
+                .into_iter()
+                .filter(far)
+                .take(40)
+                .collect()
+        };
+        for p in [8, 6] {
+            let cycles = cycles_with_2(p);
+            assert!(!cycles.is_empty(), "p = {p}");
+            for orbit in &cycles {
+                assert_divisors_check(orbit, &|d| Question::new(grid.clone(), d).unwrap());
+            }
+        }
+        // What is not a divisor is refused, and so is 0.
+        let orbit = brute::find_cycle(&bounds, 8).unwrap();
+        for bad in [0, 3, 5, 16] {
+            assert!(divisor_witness(&orbit, None, bad).is_err(), "{bad}");
+        }
+        // The check is not vacuous: another choice of 4 points of an
+        // 8-cycle (x_0, x_2, x_4, x_7) need not be a 4-cycle, and some fail.
+        let q4 = Question::new(grid.clone(), 4).unwrap();
+        let o4 = EncodeOptions::default().resolve(&q4);
+        let failing = cycles_with_2(8).iter().any(|o| {
+            let other = vec![o[0].clone(), o[2].clone(), o[4].clone(), o[7].clone()];
+            check_witness(&q4, &o4, &other, None).is_err()
+        });
+        assert!(
+            failing,
+            "x_0, x_2, x_4, x_7 is a 4-cycle in every 8-cycle tried"
+        );
+    }
+
+    #[test]
+    fn sub_orbits_of_topical_cycles_are_topical_cycles() {
+        // {0,1}^4: topical 6-cycles exist (C(4,2) = 6, Lemmens and
+        // Scheutzow 2005); their sub-orbits of 3, 2, 1 points pass the
+        // topical check.
+        let grid = Grid::parse("0..1", Some(4)).unwrap();
+        let cycles = brute::all_topical_cycles(&[(0, 1); 4], 6, 20);
+        assert!(!cycles.is_empty());
+        for orbit in &cycles {
+            assert_divisors_check(orbit, &|d| {
+                Question::new(grid.clone(), d)
+                    .unwrap()
+                    .with_class(MapClass::Topical)
+            });
+        }
+    }
+
+    #[test]
+    fn powers_of_maps_found_by_brute_force_are_full_map_witnesses() {
+        // A point set with a nonexpansive map of period 4 (the corners of a
+        // square, found by the brute-force map search); the power f^(4/d)
+        // with every (4/d)-th orbit point passes the full-map check.
+        let pts: Vec<Point> = vec![vec![0, 0], vec![0, 1], vec![1, 1], vec![1, 0], vec![3, 0]];
+        let d = PointSet::new(pts.clone()).unwrap();
+        let (f, orbit) = brute::find_map(&pts, 4).expect("a 4-cycle of the square's corners");
+        let map: Vec<(Point, Point)> = f
+            .iter()
+            .enumerate()
+            .map(|(i, &j)| (pts[i].clone(), pts[j].clone()))
+            .collect();
+        let orbit: Vec<Point> = orbit.iter().map(|&i| pts[i].clone()).collect();
+        for div in divisors(4) {
+            let q = Question::on_points(d.clone(), div).unwrap();
+            let options = EncodeOptions::default().resolve(&q);
+            assert!(options.formulation.encodes_map());
+            let (sub, power) = divisor_witness(&orbit, Some(&map), div).unwrap();
+            let power = power.expect("a map");
+            if let Err(e) = check_witness(&q, &options, &sub, Some(&power)) {
+                panic!("d = {div}: {e}");
+            }
+            // The orbit alone is no witness on a point set, and f itself
+            // does not have the sub-orbit as an orbit of period d < 4.
+            assert!(check_witness(&q, &options, &sub, None).is_err());
+            assert!(check_witness(&q, &options, &sub, Some(&map)).is_err());
+        }
     }
 }

@@ -24,6 +24,18 @@ How each period is answered, cheapest first:
                 With --class topical: p ≤ C(n',⌊n'/2⌋) points of the middle layer
                 of a unit cube (t = 1 between any two); the orbit and, on small
                 boxes, the topical extension and its clamp are checked
+  §9            periods are closed under divisors (docs/math.md §9): if x has
+                minimal period q under f and d divides q, x has minimal period d
+                under f^(q/d), nonexpansive (topical) as f is. So a period q that
+                is a multiple of a period refuted with a checked proof is
+                infeasible without a search (its answer names that period and
+                its proof, and every check of it checks that proof), and a
+                divisor d of a feasible q gets every (q/d)-th point of q's orbit
+                (and f^(q/d) on a point set), checked as any witness. Periods are
+                solved in increasing order; no search starts whose answer §9
+                already gives (one running meanwhile is finished). With --real
+                as well (rows by §9 are derived again by each run, not stored).
+                --no-divisors turns this off
   solver        everything else: `decide` with the certified solver; infeasible
                 answers carry an LRAT proof accepted by orbitcnf's own checker
 
@@ -110,6 +122,11 @@ pub struct SpectrumArgs {
     /// SHA-256 and with the LRAT checker against a fresh encoding.
     #[arg(long)]
     recheck: bool,
+    /// Decide no period by §9 (docs/math.md §9: a multiple of a refuted
+    /// period is infeasible, a divisor of a feasible one feasible); search
+    /// every period that is not stored or constructed.
+    #[arg(long)]
+    no_divisors: bool,
     /// Print one JSON object instead of the table.
     #[arg(long, conflicts_with = "csv")]
     json: bool,
@@ -160,6 +177,7 @@ pub fn run(a: SpectrumArgs) -> Outcome {
     cfg.store = (!a.no_store).then(|| a.store.clone());
     cfg.progress = a.progress.mode(false);
     cfg.recheck = a.recheck;
+    cfg.divisors = !a.no_divisors;
     let s = spectrum::run(&cfg)?;
     if let Some(path) = &a.markdown {
         orbitcnf::artifact::write_atomically(path, s.to_markdown().as_bytes())?;
@@ -208,6 +226,7 @@ fn run_real(n: usize, a: SpectrumArgs) -> Outcome {
         time_limit: a.time_limit,
         store: (!a.no_store).then(|| a.store.clone()),
         recheck: a.recheck,
+        divisors: !a.no_divisors,
     };
     let mut line = super::real::progress_line(a.progress.mode(a.json));
     let s = orbitcnf::real::sweep::run(&cfg, &mut |p, pr| {

@@ -46,6 +46,12 @@ pub struct RealSweep {
     pub store: Option<PathBuf>,
     /// Re-check reused infeasible answers in full.
     pub recheck: bool,
+    /// Answer by the divisor rule (docs/math.md §9) what an earlier row of
+    /// the sweep gives: a multiple of an infeasible period is infeasible (as
+    /// checked as that answer), a divisor of a feasible one feasible with
+    /// the sub-orbit, checked again. Such rows are not stored: a later run
+    /// derives them again from the stored answer, after checking it.
+    pub divisors: bool,
 }
 
 /// One period's answer.
@@ -72,6 +78,10 @@ pub struct RealRow {
     /// Why an answer is unknown.
     #[serde(skip_serializing_if = "Option::is_none", default)]
     pub reason: Option<String>,
+    /// For an answer by the divisor rule (`how` = `§9`): the period it
+    /// was read off (an infeasible divisor, or a feasible multiple).
+    #[serde(skip_serializing_if = "Option::is_none", default)]
+    pub divisor: Option<usize>,
 }
 
 /// The spectrum of R^n.
@@ -105,8 +115,23 @@ impl RealSpectrum {
                 (v, true) => v.to_string(),
                 (v, false) => format!("{v} (UNCHECKED)"),
             };
+            let from = match (r.divisor, r.verdict.as_str()) {
+                (Some(d), "infeasible") => format!(
+                    "  by §9: {d} is infeasible ({})",
+                    if r.certified {
+                        "certified"
+                    } else {
+                        "UNCHECKED"
+                    }
+                ),
+                (Some(d), _) => format!(
+                    "  by §9: every {}-th point of the orbit of {d}",
+                    d / r.period.max(1)
+                ),
+                (None, _) => String::new(),
+            };
             s.push_str(&format!(
-                " {:>6}  {v:<12} {:<8} {:>7.2}  {:>6}\n",
+                " {:>6}  {v:<12} {:<8} {:>7.2}  {:>6}{from}\n",
                 r.period, r.how, r.seconds, r.lemmas
             ));
         }
@@ -188,6 +213,53 @@ fn reuse(n: usize, p: usize, store: &Path, recheck: bool) -> Result<Option<RealR
     Ok(Some(row))
 }
 
+/// The row of `p` by the divisor rule (docs/math.md §9) from an earlier
+/// row, if one gives it: an infeasible row (not itself derived) whose period
+/// divides `p` gives infeasible, certified as that row is; a feasible row
+/// with an orbit whose period `p` divides gives the sub-orbit of every
+/// `q/p`-th point, checked here as an isometric cycle (its distances
+/// `‖y_j − y_{j+k}‖ = ‖x_0 − x_{k·q/p}‖` depend on `k` only).
+///
+/// # Errors
+/// A sub-orbit that fails the check (impossible by §9; reported, not
+/// trusted).
+fn by_divisors(n: usize, p: usize, rows: &[RealRow]) -> Result<Option<RealRow>> {
+    let row = |verdict: &str, certified: bool, from: usize| RealRow {
+        period: p,
+        verdict: verdict.into(),
+        how: "§9".into(),
+        certified,
+        seconds: 0.0,
+        lemmas: 0,
+        orbit: None,
+        bundle: None,
+        reason: None,
+        divisor: Some(from),
+    };
+    let divides = |a: usize, b: usize| a != b && a > 0 && b.is_multiple_of(a);
+    if let Some(r) = rows
+        .iter()
+        .find(|r| r.verdict == "infeasible" && r.divisor.is_none() && divides(r.period, p))
+    {
+        return Ok(Some(row("infeasible", r.certified, r.period)));
+    }
+    let Some((q, orbit)) = rows.iter().find_map(|r| match &r.orbit {
+        Some(o) if r.verdict == "feasible" && r.certified && divides(p, r.period) => {
+            Some((r.period, o))
+        }
+        _ => None,
+    }) else {
+        return Ok(None);
+    };
+    let (sub, _) = crate::evidence::divisor_witness(orbit, None, p)?;
+    let hi = sub.iter().flatten().copied().max().unwrap_or(0);
+    let lo = sub.iter().flatten().copied().min().unwrap_or(0);
+    check_orbit(&vec![(lo, hi); n], &sub)?;
+    let mut r = row("feasible", true, q);
+    r.orbit = Some(sub);
+    Ok(Some(r))
+}
+
 /// Sweeps the periods of `cfg`; `progress` gets the period and the search's progress.
 ///
 /// # Errors
@@ -199,6 +271,12 @@ pub fn run(cfg: &RealSweep, progress: &mut dyn FnMut(usize, &Progress)) -> Resul
     for &p in &cfg.periods {
         if let Some(store) = &cfg.store
             && let Some(row) = reuse(n, p, store, cfg.recheck)?
+        {
+            rows.push(row);
+            continue;
+        }
+        if cfg.divisors
+            && let Some(row) = by_divisors(n, p, &rows)?
         {
             rows.push(row);
             continue;
@@ -221,6 +299,7 @@ pub fn run(cfg: &RealSweep, progress: &mut dyn FnMut(usize, &Progress)) -> Resul
             orbit: None,
             bundle: None,
             reason: None,
+            divisor: None,
         };
         match &r.answer {
             RealAnswer::Feasible { orbit, .. } => row.orbit = Some(orbit.clone()),
@@ -253,4 +332,57 @@ pub fn run(cfg: &RealSweep, progress: &mut dyn FnMut(usize, &Progress)) -> Resul
         rows,
         all_decided,
     })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn row(period: usize, verdict: &str, orbit: Option<Vec<Vec<i64>>>) -> RealRow {
+        RealRow {
+            period,
+            verdict: verdict.into(),
+            how: "search".into(),
+            certified: true,
+            seconds: 0.0,
+            lemmas: 0,
+            orbit,
+            bundle: None,
+            reason: None,
+            divisor: None,
+        }
+    }
+
+    #[test]
+    fn divisor_rows_come_from_checked_rows_and_sub_orbits_are_checked() {
+        // The corners of the unit square are a 4-cycle of R^2 (all at
+        // distance 1); its every 2nd point a 2-cycle.
+        let square = vec![vec![0, 0], vec![0, 1], vec![1, 1], vec![1, 0]];
+        let rows = vec![row(4, "feasible", Some(square)), row(5, "infeasible", None)];
+        let two = by_divisors(2, 2, &rows).unwrap().unwrap();
+        assert_eq!((two.how.as_str(), two.divisor), ("§9", Some(4)));
+        assert_eq!(two.orbit, Some(vec![vec![0, 0], vec![1, 1]]));
+        let ten = by_divisors(2, 10, &rows).unwrap().unwrap();
+        assert_eq!((ten.verdict.as_str(), ten.certified), ("infeasible", true));
+        assert_eq!(ten.divisor, Some(5));
+        assert!(by_divisors(2, 7, &rows).unwrap().is_none());
+        // A derived row is never a source (10 is not what 20 follows from),
+        // and an unchecked refutation gives only unchecked rows.
+        let mut claim = row(5, "infeasible", None);
+        claim.certified = false;
+        let twenty = by_divisors(2, 20, &[ten.clone(), claim]).unwrap().unwrap();
+        assert_eq!((twenty.divisor, twenty.certified), (Some(5), false));
+        assert!(by_divisors(2, 20, &[ten]).unwrap().is_none());
+        // Not trusted: a "feasible" orbit that is no isometric cycle gives
+        // a sub-orbit that fails the check: (0,0), (0,2), (5,0).
+        let bad = vec![
+            vec![0, 0],
+            vec![0, 1],
+            vec![0, 2],
+            vec![0, 3],
+            vec![5, 0],
+            vec![0, 5],
+        ];
+        assert!(by_divisors(2, 3, &[row(6, "feasible", Some(bad))]).is_err());
+    }
 }

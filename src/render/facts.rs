@@ -397,6 +397,18 @@ pub fn certificate_words(a: &Answer) -> (String, bool) {
                 true,
             );
         }
+        EvidenceKind::Divisor { period } => {
+            let p = period.map_or("a divisor".to_string(), |p| format!("p = {p}"));
+            let file = e
+                .file
+                .as_ref()
+                .map(|f| format!(": {f}"))
+                .unwrap_or_default();
+            format!(
+                "by §9 (periods are closed under divisors): {p} is infeasible, by an LRAT proof \
+                 accepted by orbitcnf's own checker{file}"
+            )
+        }
         EvidenceKind::None => match &a.reason {
             Some(r) => format!("none: {r}"),
             None => "none".to_string(),

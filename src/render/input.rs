@@ -131,6 +131,13 @@ pub enum EvidenceKind {
     Proof,
     /// A solver's claim of unsatisfiability, no proof checked.
     SolverClaim,
+    /// Infeasible by the divisor rule (docs/math.md §9): the answer names a
+    /// refuted divisor of the period, whose LRAT proof orbitcnf's checker
+    /// accepted (the evidence's file and digest are that proof's).
+    Divisor {
+        /// The refuted divisor, as the input names it.
+        period: Option<u64>,
+    },
     /// Nothing (unknown answers).
     None,
     /// A kind this version does not know, as the input named it.
@@ -474,6 +481,18 @@ fn evidence_of(v: &Value) -> Evidence {
         _ if v.get("orbit").is_some_and(Value::is_array) => EvidenceKind::Witness,
         _ => EvidenceKind::None,
     };
+    let divisor = v.get("divisor").filter(|d| d.is_object());
+    if let Some(d) = divisor.filter(|_| v.get("backing").and_then(Value::as_str) == Some("divisor"))
+    {
+        return Evidence {
+            kind: EvidenceKind::Divisor {
+                period: d.get("period").and_then(Value::as_u64),
+            },
+            file: as_string(d.get("proof_file")),
+            sha256: as_string(d.get("proof_sha256")),
+            ..Evidence::of_kind(EvidenceKind::None)
+        };
+    }
     let proof = v.get("proof").filter(|p| p.is_object());
     Evidence {
         kind,

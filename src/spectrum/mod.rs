@@ -3,7 +3,7 @@
 //! # Design
 //!
 //! A sweep ([`run`]) takes a box `D`, a map class ([`MapClass`]) and a set of
-//! periods and answers each period in one of three ways, cheapest first. The
+//! periods and answers each period in one of four ways, cheapest first. The
 //! default periods ([`default_periods`]) depend on the class; `n'` is the
 //! number of coordinates with more than one value:
 //!
@@ -15,7 +15,7 @@
 //!   theory; the one period past the bound is included so that the solver
 //!   decides it and the theorem is tested against a checked proof.
 //!
-//! The three ways:
+//! The four ways:
 //!
 //! 1. **From the results store** ([`crate::store`]): a decided answer stored
 //!    under the same key (question, resolved encoding options, formulation)
@@ -48,6 +48,17 @@
 //!    in `proofs/` and its SHA-256 recorded. A formula over `--max-clauses`
 //!    is an unknown answer (no answer within the limits), not an error.
 //!
+//! 4. **By the divisor rule** (docs/math.md §9, unless
+//!    [`SweepConfig::divisors`] is off): a period that is a multiple of a
+//!    period refuted with a checked proof is infeasible, and a divisor `d`
+//!    of a feasible `q` is feasible with every `(q/d)`-th point of `q`'s
+//!    orbit (and `f^(q/d)` on a point set) as its witness, checked as any
+//!    witness (see `divisors.rs`). Before solving, every solver period the
+//!    stored and constructed answers settle this way is answered so; while
+//!    solving, every answer settles the periods not yet started, and a
+//!    worker that comes to a settled period skips it (a period already
+//!    running is finished, and must agree).
+//!
 //! Solver periods go, in increasing order, to a [`crate::pool`] of
 //! [`SweepConfig::jobs`] worker threads. The workers only compute; the
 //! calling thread receives every answer, checks it against the published
@@ -78,9 +89,11 @@
 //!
 //! `mod.rs` the configuration and the result types; `sweep.rs` the sweep
 //! ([`run`]); `answer.rs` one period's answer (construction or solver);
+//! `divisors.rs` answers by the divisor rule (docs/math.md §9);
 //! `render.rs` the reports.
 
 mod answer;
+mod divisors;
 mod render;
 mod sweep;
 
@@ -138,6 +151,11 @@ pub struct SweepConfig {
     /// Fully re-check reused stored answers (proofs re-checked by the LRAT
     /// checker against a fresh encoding) instead of the quick check.
     pub recheck: bool,
+    /// Decide periods by the divisor rule (docs/math.md §9) where another
+    /// period's answer gives them: a multiple of a refuted period is
+    /// infeasible, a divisor of a feasible one feasible (the module
+    /// documentation says how).
+    pub divisors: bool,
 }
 
 impl SweepConfig {
@@ -162,6 +180,7 @@ impl SweepConfig {
             store: None,
             progress: ProgressMode::Off,
             recheck: false,
+            divisors: true,
         }
     }
 }
@@ -270,7 +289,7 @@ impl Checked {
     /// proof), [`Checked::Never`] for any other.
     fn of(a: &Answer, now: Checked) -> Checked {
         match a.backing {
-            Backing::CheckedOrbit | Backing::CheckedProof => now,
+            Backing::CheckedOrbit | Backing::CheckedProof | Backing::Divisor => now,
             Backing::SolverClaim | Backing::None => Checked::Never,
         }
     }
@@ -337,6 +356,9 @@ pub struct Summary {
     pub by_construction: usize,
     /// Answers obtained by the solver (this run or stored).
     pub by_solver: usize,
+    /// Answers read off another period's by the divisor rule (docs/math.md
+    /// §9; this run or stored).
+    pub by_divisors: usize,
     /// Answers reused from the store.
     pub reused: usize,
     /// Reused infeasible answers whose proof this run did not check again
@@ -356,6 +378,7 @@ impl Summary {
             unknown: count(&|r| r.verdict == Verdict::Unknown),
             by_construction: count(&|r| r.how == How::Construction),
             by_solver: count(&|r| r.how == How::Solver),
+            by_divisors: count(&|r| r.how == How::Divisor),
             reused: count(&|r| r.reused),
             proofs_not_rechecked: count(&|r| {
                 r.verdict == Verdict::Infeasible && matches!(r.checked, Checked::Earlier { .. })

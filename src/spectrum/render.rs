@@ -9,7 +9,7 @@ use crate::encode::Symmetry;
 use crate::progress::duration_words;
 use crate::question::MapClass;
 use crate::report::Verdict;
-use crate::store::{Answer, Backing};
+use crate::store::{Answer, Backing, How};
 use crate::theory::{self, Status};
 
 /// What backs `a`, and when it was checked, in words: `orbit checked; map
@@ -33,16 +33,38 @@ pub fn certificate_words(a: &Answer, checked: &Checked) -> String {
 
 /// What backs `a`, in words, with `when` after the proof's "checked".
 fn evidence_words(a: &Answer, when: &str) -> String {
+    // An orbit read off a multiple's (§9) says where it came from.
+    let from = match (&a.divisor, a.how) {
+        (Some(d), How::Divisor) => format!(
+            " (by §9: every {} point of the orbit of p = {})",
+            ordinal(d.period / a.question.period.max(1)),
+            d.period
+        ),
+        _ => String::new(),
+    };
     match a.backing {
         Backing::CheckedOrbit => match (a.map_checked_points, a.question.class) {
             (Some(n), MapClass::Nonexpansive) => {
-                format!("orbit checked; map checked on {n} points")
+                format!("orbit checked{from}; map checked on {n} points")
             }
-            (Some(n), MapClass::Topical) => {
-                format!("topical orbit checked; topical map and its clamp checked on {n} points")
+            (Some(n), MapClass::Topical) => format!(
+                "topical orbit checked{from}; topical map and its clamp checked on {n} points"
+            ),
+            (None, MapClass::Nonexpansive) => format!("orbit checked{from}"),
+            (None, MapClass::Topical) => format!("topical orbit checked{from}"),
+        },
+        Backing::Divisor => match &a.divisor {
+            Some(d) => {
+                let file = d
+                    .proof_file
+                    .as_ref()
+                    .map_or(", not kept".to_string(), |f| format!(": {f}"));
+                format!(
+                    "by §9: p = {} is infeasible (LRAT proof checked{when}{file})",
+                    d.period
+                )
             }
-            (None, MapClass::Nonexpansive) => "orbit checked".into(),
-            (None, MapClass::Topical) => "topical orbit checked".into(),
+            None => "by §9, from an unnamed period".into(),
         },
         Backing::CheckedProof => match &a.proof {
             Some(p) => match &p.file {
@@ -54,6 +76,18 @@ fn evidence_words(a: &Answer, when: &str) -> String {
         Backing::SolverClaim => "the solver's claim, no proof checked".into(),
         Backing::None => format!("none: {}", a.reason.as_deref().unwrap_or("no answer")),
     }
+}
+
+/// `2nd`, `3rd`, `11th`, …: which point of the orbit is kept.
+fn ordinal(m: usize) -> String {
+    let suffix = match (m % 10, m % 100) {
+        (_, 11..=13) => "th",
+        (1, _) => "st",
+        (2, _) => "nd",
+        (3, _) => "rd",
+        _ => "th",
+    };
+    format!("{m}{suffix}")
 }
 
 /// An increasing list of periods in short form: `1..8, 10, 12..13`.
@@ -177,9 +211,10 @@ impl Spectrum {
         let _ = writeln!(s, "summary      {}", self.summary_words());
         let _ = writeln!(
             s,
-            "             {} by construction, {} by the solver; {} reused from the store; {} elapsed with {} job(s)",
+            "             {} by construction, {} by the solver, {} by §9 (divisors); {} reused from the store; {} elapsed with {} job(s)",
             self.summary.by_construction,
             self.summary.by_solver,
+            self.summary.by_divisors,
             self.summary.reused,
             duration_words(self.elapsed_seconds),
             self.jobs
@@ -341,10 +376,16 @@ impl Spectrum {
             s,
             "\nEvery computed answer agrees with the theorems above (orbitcnf reports any disagreement \
              as an error and writes no page). Feasible answers carry {}; \
-             infeasible ones an LRAT proof of the CNF, accepted by orbitcnf's own checker.",
+             infeasible ones an LRAT proof of the CNF, accepted by orbitcnf's own checker{}.",
             match self.points {
                 None => "an orbit checked point by point",
                 Some(_) => "an orbit and the whole map D → D, checked point by point",
+            },
+            if self.summary.by_divisors > 0 {
+                " (for an answer by §9, the proof of the refuted divisor it names: periods are \
+                 closed under divisors, docs/math.md §9)"
+            } else {
+                ""
             }
         );
         s

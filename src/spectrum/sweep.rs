@@ -6,6 +6,7 @@ use std::sync::atomic::{AtomicBool, AtomicU64, Ordering};
 use std::time::{Instant, SystemTime};
 
 use super::answer::{self, Task};
+use super::divisors;
 use super::{Checked, MAX_PERIODS, Row, Spectrum, Summary, SweepConfig};
 use crate::dimacs::VERSION;
 use crate::error::{Error, Result};
@@ -99,26 +100,59 @@ pub fn run(cfg: &SweepConfig) -> Result<Spectrum> {
         jobs: cfg.jobs,
         limit: limits.time_seconds,
     };
+    if cfg.divisors {
+        let open: Vec<&Question> = tasks.iter().map(|t| &t.question).collect();
+        let done = divisors::settle(cfg, &limits, &run_id, &mut store, &mut rows, open)?;
+        warn_set_aside(&store, &mut warned, &mut progress);
+        for p in &done {
+            progress.event(|| watch.by_divisors(&rows[p], &rows));
+        }
+        tasks.retain(|t| !rows.contains_key(&t.question.period));
+    }
     progress.event(|| {
         let reused = rows.values().filter(|r| r.reused).count();
+        let divisors = rows
+            .values()
+            .filter(|r| !r.reused && r.how == How::Divisor)
+            .count();
         format!(
-            "spectrum {}: {} of {} periods decided before solving ({} from the store, {} by construction); \
-             {} to solve with {} job(s)",
+            "spectrum {}: {} of {} periods decided before solving ({} from the store, {} by construction, \
+             {} by §9); {} to solve with {} job(s)",
             watch.grid,
             rows.len(),
             watch.total,
             reused,
-            rows.len() - reused,
+            rows.len() - reused - divisors,
+            divisors,
             tasks.len(),
             cfg.jobs
         )
     });
     let conflicts: Vec<Arc<AtomicU64>> = tasks.iter().map(|_| Arc::default()).collect();
+    // Tasks whose answer §9 gives: a worker that comes to one skips it
+    // (returns `None`); its row is made on the calling thread.
+    let settled: Vec<AtomicBool> = tasks.iter().map(|_| AtomicBool::new(false)).collect();
     let stop = AtomicBool::new(false);
     let mut first_error: Option<Error> = None;
     let work = |i: usize| {
+        if settled[i].load(Ordering::SeqCst) {
+            return None;
+        }
         let answer = answer::solved(&tasks[i], cfg, &limits, &run_id, &conflicts[i]);
-        Box::new(answer)
+        // Marked here, before the answer is sent, and not only by the
+        // calling thread: a worker taking the next task must not start a
+        // search that this answer settles. Should the calling thread then
+        // refuse this answer, the sweep stops, so nothing rests on the mark.
+        if cfg.divisors
+            && let Ok(a) = &answer
+        {
+            for (j, t) in tasks.iter().enumerate() {
+                if divisors::decides(a, t.question.period) {
+                    settled[j].store(true, Ordering::SeqCst);
+                }
+            }
+        }
+        Some(Box::new(answer))
     };
     pool::run(tasks.len(), cfg.jobs, &stop, work, |event, state| {
         let running: Vec<(usize, Instant, u64)> = state
@@ -131,20 +165,59 @@ pub fn run(cfg: &SweepConfig) -> Result<Spectrum> {
             .collect();
         if let Event::Finished(i, answer) = event {
             let p = tasks[i].question.period;
-            let outcome = (*answer).and_then(|a| finish(grid, &mut store, &mut rows, a));
+            let outcome = match answer {
+                // Skipped: §9 gives its answer (made below, or already).
+                None => Ok(Vec::new()),
+                Some(answer) => (*answer).and_then(|a| {
+                    let new = !rows.contains_key(&p);
+                    if new {
+                        finish(grid, &mut store, &mut rows, a)?;
+                    } else {
+                        // §9 answered it while it ran; the two must agree.
+                        divisors::dismiss(&store, &rows[&p], a)?;
+                    }
+                    Ok(if new { vec![p] } else { Vec::new() })
+                }),
+            }
+            .and_then(|mut decided| {
+                if cfg.divisors {
+                    let open: Vec<&Question> = tasks
+                        .iter()
+                        .enumerate()
+                        .filter(|(j, _)| !state.running.contains_key(j))
+                        .map(|(_, t)| &t.question)
+                        .collect();
+                    let done =
+                        divisors::settle(cfg, &limits, &run_id, &mut store, &mut rows, open)?;
+                    for &d in &done {
+                        if let Some(j) = tasks.iter().position(|t| t.question.period == d) {
+                            settled[j].store(true, Ordering::SeqCst);
+                        }
+                    }
+                    decided.extend(done);
+                }
+                Ok(decided)
+            });
             warn_set_aside(&store, &mut warned, &mut progress);
             match outcome {
-                Ok(()) => progress.event(|| {
-                    let r = &rows[&p];
-                    format!(
-                        "spectrum {}: p={p} {} ({}, {}); {}",
-                        watch.grid,
-                        r.verdict.word(),
-                        r.how.word(),
-                        duration_words(r.seconds),
-                        watch.words(&rows, &running, state.queued)
-                    )
-                }),
+                Ok(decided) => {
+                    for d in decided {
+                        progress.event(|| {
+                            let r = &rows[&d];
+                            if r.how == How::Divisor {
+                                return watch.by_divisors(r, &rows);
+                            }
+                            format!(
+                                "spectrum {}: p={d} {} ({}, {}); {}",
+                                watch.grid,
+                                r.verdict.word(),
+                                r.how.word(),
+                                duration_words(r.seconds),
+                                watch.words(&rows, &running, state.queued)
+                            )
+                        });
+                    }
+                }
                 Err(e) => {
                     stop.store(true, Ordering::SeqCst);
                     progress.clear();
@@ -174,6 +247,30 @@ pub fn run(cfg: &SweepConfig) -> Result<Spectrum> {
     progress.clear();
     if let Some(e) = first_error {
         return Err(e);
+    }
+    for t in &tasks {
+        if let std::collections::btree_map::Entry::Vacant(slot) = rows.entry(t.question.period) {
+            // Skipped, yet no row gives it by §9: the answer that settled
+            // it was replaced by another run's stored answer of the same
+            // verdict that settles nothing (a solver's claim). Unknown, and
+            // not stored, so that the next run decides it.
+            let started = store::utc_timestamp(SystemTime::now());
+            let mut a = Answer::unknown(
+                &t.question,
+                &cfg.options,
+                limits,
+                How::Solver,
+                &run_id,
+                started,
+            );
+            a.reason = Some(
+                "not searched: §9 was to decide it from another period, whose stored \
+                 answer turned out not to be checked"
+                    .into(),
+            );
+            a.finished_at = a.started_at.clone();
+            slot.insert(Row::new(grid, a, false, Checked::Never));
+        }
     }
     progress.event(|| {
         format!(
@@ -324,7 +421,7 @@ fn check_stored(s: &Store, q: &Question, a: &Answer, recheck: bool) -> Result<Ch
 }
 
 /// Checks a new answer against the theorems, stores it and records its row.
-fn finish(
+pub(super) fn finish(
     grid: &Grid,
     store: &mut Option<Store>,
     rows: &mut BTreeMap<usize, Row>,
@@ -386,6 +483,23 @@ impl Watch {
             count(Verdict::Feasible),
             count(Verdict::Infeasible),
             count(Verdict::Unknown),
+        )
+    }
+
+    /// The progress line of a period answered by §9: `p=10 infeasible by
+    /// §9 from p = 5; 7/12 periods decided (…)`.
+    fn by_divisors(&self, r: &Row, rows: &BTreeMap<usize, Row>) -> String {
+        let from = r
+            .answer
+            .divisor
+            .as_ref()
+            .map_or("?".to_string(), |d| d.period.to_string());
+        format!(
+            "spectrum {}: p={} {} by §9 from p = {from}; {}",
+            self.grid,
+            r.period,
+            r.verdict.word(),
+            self.decided(rows)
         )
     }
 

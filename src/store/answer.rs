@@ -28,6 +28,11 @@ pub enum How {
     Construction,
     /// Decided by [`crate::decide::decide`] with the certified solver.
     Solver,
+    /// Read off the answer to another period by the divisor rule (docs/math.md
+    /// §9): a multiple of a refuted period is infeasible, a divisor of a
+    /// feasible one is feasible with the sub-orbit as its witness. The answer
+    /// names that period in [`Answer::divisor`].
+    Divisor,
 }
 
 impl How {
@@ -36,6 +41,7 @@ impl How {
         match self {
             How::Construction => "construction",
             How::Solver => "solver",
+            How::Divisor => "§9",
         }
     }
 }
@@ -51,8 +57,34 @@ pub enum Backing {
     /// A solver's word with no proof checked (never written by `spectrum`,
     /// which always certifies; accepted when read).
     SolverClaim,
+    /// The checked proof of the answer to a divisor of the period (named in
+    /// [`Answer::divisor`]), which refutes this period too by docs/math.md
+    /// §9. It is as strong as that answer: every check of this answer checks
+    /// that one ([`crate::store::Store::quick_check`],
+    /// [`crate::store::Store::recheck`]).
+    Divisor,
     /// Nothing (unknown answers).
     None,
+}
+
+/// The other period an answer by the divisor rule ([`How::Divisor`]) was
+/// read off.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct DivisorRecord {
+    /// That period: for an infeasible answer a refuted divisor of this
+    /// period; for a feasible one a feasible multiple, whose orbit gave this
+    /// answer's orbit (every `m`-th point, `m` the quotient).
+    pub period: usize,
+    /// The store key of that period's answer.
+    pub key: String,
+    /// For an infeasible answer: the SHA-256 of that answer's proof file,
+    /// when it was kept, so that a replaced proof is noticed.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub proof_sha256: Option<String>,
+    /// For an infeasible answer: that answer's proof file, relative to the
+    /// store, when it was kept (for reports; the check goes by `key`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub proof_file: Option<String>,
 }
 
 /// The proof of an infeasible answer.
@@ -149,6 +181,10 @@ pub struct Answer {
     /// The proof of an infeasible answer.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub proof: Option<ProofRecord>,
+    /// The other period this answer was read off, for an answer by the
+    /// divisor rule ([`How::Divisor`]).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub divisor: Option<DivisorRecord>,
     /// Why the answer is unknown.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub reason: Option<String>,
@@ -197,6 +233,7 @@ impl Answer {
             map: None,
             map_checked_points: None,
             proof: None,
+            divisor: None,
             reason: None,
             limits,
             stats: AnswerStats::default(),

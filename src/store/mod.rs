@@ -67,8 +67,8 @@ use serde::Serialize;
 
 pub use crate::artifact::sha256_file;
 pub use answer::{
-    Answer, AnswerStats, Backing, How, ProofRecord, RunLimits, SCHEMA, check_agree, key, key_for,
-    question_words, run_id, utc_timestamp,
+    Answer, AnswerStats, Backing, DivisorRecord, How, ProofRecord, RunLimits, SCHEMA, check_agree,
+    key, key_for, question_words, run_id, utc_timestamp,
 };
 
 use crate::artifact::{sha256_hex, sync_dir, write_atomically};
@@ -374,6 +374,13 @@ impl Store {
             Verdict::Feasible => {
                 out.orbit = Some(check_stored_orbit(&q, a, &file)?);
             }
+            Verdict::Infeasible if a.backing == Backing::Divisor => {
+                let source = self.divisor_source(a, &file)?;
+                out.proof = self
+                    .recheck(source)
+                    .map_err(|e| refused(&file, source, &e))?
+                    .proof;
+            }
             Verdict::Infeasible => {
                 let Some(rel) = a.proof.as_ref().and_then(|p| p.file.as_ref()) else {
                     return Ok(out);
@@ -423,6 +430,11 @@ impl Store {
             Verdict::Feasible => {
                 check_stored_orbit(&q, a, &file)?;
             }
+            Verdict::Infeasible if a.backing == Backing::Divisor => {
+                let source = self.divisor_source(a, &file)?;
+                self.quick_check(source)
+                    .map_err(|e| refused(&file, source, &e))?;
+            }
             Verdict::Infeasible => {
                 if let Some(p) = &a.proof
                     && let Some(rel) = &p.file
@@ -445,6 +457,76 @@ impl Store {
         }
         Ok(())
     }
+}
+
+impl Store {
+    /// The stored answer an infeasible answer by the divisor rule was read
+    /// off (docs/math.md §9), after checking that it can back it: it is
+    /// stored under the recorded key, answers the same domain and class at
+    /// the recorded period, that period divides `a`'s, and it is infeasible
+    /// with a checked proof whose SHA-256 (when kept) is the recorded one.
+    /// Its own evidence is checked by the caller.
+    ///
+    /// # Errors
+    /// [`Error::Parse`] about `file` (the file of `a`) saying what is wrong.
+    fn divisor_source<'a>(&'a self, a: &Answer, file: &str) -> Result<&'a Answer> {
+        let bad = |why: String| Error::parse(file, 0, why);
+        let Some(rec) = &a.divisor else {
+            return Err(bad(
+                "an answer by §9 that does not name the period it follows from".into(),
+            ));
+        };
+        let p = rec.period;
+        let Some(source) = self.get(&rec.key) else {
+            return Err(bad(format!(
+                "it is infeasible because p = {p} is (§9), but the answer to p = {p} \
+                 ({}) is not in the store",
+                self.answer_path(&rec.key).display()
+            )));
+        };
+        let mut same_domain = source.question.clone();
+        same_domain.period = a.question.period;
+        if same_domain != a.question || source.question.period != p {
+            return Err(bad(format!(
+                "the answer it follows from ({}) is not about p = {p} on the same domain and class",
+                self.answer_path(&rec.key).display()
+            )));
+        }
+        if p == 0 || !a.question.period.is_multiple_of(p) {
+            return Err(bad(format!(
+                "§9 derives infeasibility only for multiples, and {p} does not divide {}",
+                a.question.period
+            )));
+        }
+        if source.verdict != Verdict::Infeasible || source.backing != Backing::CheckedProof {
+            return Err(bad(format!(
+                "it is infeasible because p = {p} is (§9), but the stored answer to p = {p} is {} \
+                 and not backed by a checked proof",
+                source.verdict.word()
+            )));
+        }
+        let kept = source.proof.as_ref().and_then(|pr| pr.sha256.as_ref());
+        if kept != rec.proof_sha256.as_ref() {
+            return Err(bad(format!(
+                "the proof of p = {p} is not the one this answer was derived from (SHA-256 differs)"
+            )));
+        }
+        Ok(source)
+    }
+}
+
+/// The error refusing an answer by §9 (in `file`) because the answer it
+/// follows from (`source`) failed its check with `e`.
+fn refused(file: &str, source: &Answer, e: &Error) -> Error {
+    Error::parse(
+        file,
+        0,
+        format!(
+            "it is infeasible because p = {} is (§9), but that answer fails its check: {}",
+            source.question.period,
+            why(e)
+        ),
+    )
 }
 
 fn check_stored_orbit(q: &Question, a: &Answer, file: &str) -> Result<OrbitCheck> {

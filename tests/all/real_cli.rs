@@ -387,3 +387,41 @@ fn real_space_hand_off_to_an_external_solver() {
     }
     real(&dir, 2, 5, &["--handoff-after", "1"]).error_with(&["external solver"]);
 }
+
+/// `spectrum --real` with the divisor rule (docs/math.md §9): over R^2 no
+/// period above max_k 2^k·C(2,k) = 4 occurs (Lemmens and Scheutzow 2005);
+/// 10 follows from the certified refutation of 5 without a search, and the
+/// verdicts are those of `--no-divisors`.
+#[test]
+fn real_space_spectrum_answers_multiples_by_section_9() {
+    let dir = TestDir::new();
+    let sweep = |extra: &[&str]| {
+        dir.orbitcnf()
+            .args(["spectrum", "--real", "--dim", "2", "--periods", "4..10"])
+            .args(["--no-store", "-q"])
+            .args(extra)
+            .run()
+    };
+    let with = sweep(&["--json"]).code(0).json();
+    let without = sweep(&["--json", "--no-divisors"]).code(0).json();
+    let verdicts = |v: &Value| -> Vec<String> {
+        v["rows"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|r| r["verdict"].as_str().unwrap().to_string())
+            .collect()
+    };
+    assert_eq!(verdicts(&with), verdicts(&without));
+    assert_eq!(verdicts(&with)[0], "feasible");
+    assert!(verdicts(&with)[1..].iter().all(|v| v == "infeasible"));
+    let ten = &with["rows"][6];
+    assert_eq!(
+        (&ten["how"], &ten["divisor"]),
+        (&Value::from("§9"), &Value::from(5))
+    );
+    assert_eq!(without["rows"][6]["how"], "search");
+    sweep(&[])
+        .code(0)
+        .stdout_has("by §9: 5 is infeasible (certified)");
+}

@@ -910,3 +910,80 @@ fn spectrum_says_whether_a_reused_proof_was_checked_in_this_run() {
     assert!(!words.contains("not re-checked"), "{words}");
     assert_eq!(v["summary"]["proofs_not_rechecked"], 0);
 }
+
+#[test]
+fn spectrum_answers_multiples_of_refuted_periods_by_section_9_with_the_same_verdicts() {
+    // {-2,…,2}^2, periods 1..12: exactly 1..4 occur, none above
+    // max_k 2^k·C(2,k) = 4 (Lemmens and Scheutzow 2005). With one job the
+    // periods are solved in increasing order, so 10 and 12 follow from the
+    // proofs of 5 and 6 (docs/math.md §9) without a search; without the rule
+    // every one of 5..12 is solved, to the same verdicts.
+    let dir = TestDir::new();
+    let spectrum = |periods: &str, extra: &[&str]| {
+        let run = dir
+            .orbitcnf()
+            .args(["spectrum", "--dim", "2", "--grid=-2..2", "--periods"])
+            .arg(periods)
+            .args(["-j", "1"])
+            .args(extra)
+            .run();
+        run.code(0);
+        run
+    };
+    let sweep =
+        |extra: &[&str]| spectrum("1..12", &[&["--no-store", "--json"], extra].concat()).json();
+    let with = sweep(&[]);
+    let without = sweep(&["--no-divisors"]);
+    let feasible: Vec<&str> = (1..=12)
+        .map(|p| if p <= 4 { "feasible" } else { "infeasible" })
+        .collect();
+    assert_eq!(verdicts(&with), feasible);
+    assert_eq!(verdicts(&without), feasible);
+    let how = |report: &Value, p: usize| rows(report)[p - 1]["how"].as_str().unwrap().to_string();
+    for p in 5..=12 {
+        let want = if p == 10 || p == 12 {
+            "divisor"
+        } else {
+            "solver"
+        };
+        assert_eq!(how(&with, p), want, "p = {p}");
+        assert_eq!(how(&without, p), "solver", "p = {p}");
+    }
+    let ten = &rows(&with)[9]["answer"];
+    assert_eq!(ten["backing"], "divisor");
+    assert_eq!(ten["divisor"]["period"], 5);
+    assert_eq!(ten["divisor"]["key"], rows(&with)[4]["answer"]["key"]);
+    assert_eq!(with["summary"]["by_divisors"], 2);
+
+    // The table says it in words, and so do the progress lines.
+    let run = spectrum("5..12", &["--no-store", "--progress", "lines"]);
+    run.stdout_has("   10  infeasible  §9")
+        .stdout_has("by §9: p = 5 is infeasible (LRAT proof checked, not kept)")
+        .stdout_has("by §9: p = 6 is infeasible")
+        .stdout_has("0 by construction, 6 by the solver, 2 by §9 (divisors)");
+    let lines = progress_lines(&run);
+    for needle in [
+        "p=10 infeasible by §9 from p = 5",
+        "p=12 infeasible by §9 from p = 6",
+    ] {
+        assert_eq!(
+            lines.iter().filter(|l| l.contains(needle)).count(),
+            1,
+            "{needle}: {lines:#?}"
+        );
+    }
+    // Stored, the answer by §9 names the proof of 5, and `report` says so.
+    spectrum("5..10", &["--store", "st", "-q"]);
+    let html = dir
+        .orbitcnf()
+        .args(["report", "st", "--format", "html"])
+        .run();
+    html.code(0)
+        .stdout_has("by §9 (periods are closed under divisors): p = 5 is infeasible");
+    dir.orbitcnf()
+        .args(["spectrum", "--help"])
+        .run()
+        .code(0)
+        .stdout_has("--no-divisors")
+        .stdout_has("periods are closed under divisors");
+}

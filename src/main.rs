@@ -35,7 +35,7 @@ struct Cli {
 enum Command {
     /// Decide a question with the bundled solver and print a checked answer.
     ///
-    /// Hard questions: decide first runs one ordinary solve for at most 15 s
+    /// Hard questions: decide first runs one ordinary solve for at most 60 s
     /// (the probe; --probe SECS, --probe-conflicts N). Most questions are
     /// answered there, with the ordinary report. Otherwise, while time remains
     /// (--time-limit), the question is split into cubes, one per distance

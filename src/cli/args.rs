@@ -407,7 +407,7 @@ pub struct ScaleArgs {
     /// threads, 1 by default).
     #[arg(long, value_name = "N")]
     pub cubes: Option<usize>,
-    /// The probe: one ordinary solve of at most SECS seconds (default 15)
+    /// The probe: one ordinary solve of at most SECS seconds (default 60)
     /// before a question is split into one cube per lex-leader distance
     /// profile (when there are at most 4096; otherwise one solve is made
     /// with the whole time limit). A question answered within the probe

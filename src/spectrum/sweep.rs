@@ -520,10 +520,11 @@ impl Watch {
         let remaining = queued + running.len();
         let lanes = self.jobs.min(remaining).max(1);
         // With a time limit no period runs longer: an upper bound on what is left.
-        let at_most = self.limit.map(|t| {
+        let bound = self.limit.map(|t| {
             let waves = queued.div_ceil(lanes) as f64 + if running.is_empty() { 0.0 } else { 1.0 };
-            format!(", at most {}", duration_words(waves * t))
+            waves * t
         });
+        let at_most = bound.map(|b| format!(", at most {}", duration_words(b)));
         let estimate = if remaining == 0 {
             "finishing".to_string()
         } else if solved.is_empty() {
@@ -533,9 +534,13 @@ impl Watch {
             )
         } else {
             let mean = solved.iter().sum::<f64>() / solved.len() as f64;
+            // Periods that ran out of time (and wrote their proofs) can take
+            // longer than the limit; the estimate never exceeds the bound.
+            let guess =
+                (mean * remaining as f64 / lanes as f64).min(bound.unwrap_or(f64::INFINITY));
             format!(
                 "≈ {} left{}",
-                duration_words(mean * remaining as f64 / lanes as f64),
+                duration_words(guess),
                 at_most.unwrap_or_default()
             )
         };

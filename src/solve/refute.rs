@@ -184,10 +184,17 @@ pub fn solve_bundled(
     drop(drat);
     let stopped = stop.is_some_and(|s| s.load(Ordering::Relaxed));
     let over_budget = signals.over_budget.load(Ordering::Relaxed);
+    let timed_out = signals.timed_out.load(Ordering::Relaxed);
     let out = match out {
         // The budget stops the solve through a failing proof sink, which
         // varisat reports as an error; it is an unknown answer, not a failure.
         Err(_) if over_budget => Err(super::bundled::budget_words(limits)),
+        // So does the meter's deadline, when it passes before the deadline
+        // of the proof writers (both count from nearly the same instant).
+        Err(_) if timed_out => Err(format!(
+            "time limit of {:.1} s reached",
+            limits.time.map(|t| t.as_secs_f64()).unwrap_or(0.0)
+        )),
         Err(_) if stopped => Err("stopped".to_string()),
         o => Ok(o?),
     };

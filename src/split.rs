@@ -497,7 +497,7 @@ pub fn write_split(
     max_clauses: u64,
 ) -> Result<SplitWritten> {
     if target == CubeTarget::Count(0) {
-        return Err(Error::Options("--cubes must be at least 1".into()));
+        return Err(Error::Options("a split needs at least one cube".into()));
     }
     let enc = encode(q, options, max_clauses)?;
     let (cubes, auto_cubes) = match target {

@@ -32,7 +32,9 @@ use crate::theory::{self, construction_limit, period_bound, theorem_conflict_for
 /// again.
 pub fn run(cfg: &SweepConfig) -> Result<Spectrum> {
     if cfg.jobs == 0 {
-        return Err(Error::Options("--jobs must be at least 1".into()));
+        return Err(Error::Options(
+            "a sweep needs at least one worker thread".into(),
+        ));
     }
     cfg.options.symmetry.validate()?;
     if cfg.periods.is_empty() {

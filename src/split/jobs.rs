@@ -106,7 +106,7 @@ pub fn decide_parallel(
 ) -> Result<Report> {
     if opts.jobs == 0 || opts.cubes == 0 {
         return Err(Error::Options(
-            "--jobs and --cubes must be at least 1".into(),
+            "a run in cubes needs at least one thread and one cube".into(),
         ));
     }
     let t0 = Instant::now();

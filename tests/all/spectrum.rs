@@ -213,7 +213,7 @@ fn spectrum_table_csv_and_markdown_agree() {
     dir.orbitcnf()
         .args(["spectrum", "--grid=0..1", "--jobs", "0", "--no-store"])
         .run()
-        .error_with(&["--jobs must be at least 1"]);
+        .error_with(&["a sweep needs at least one worker thread"]);
 }
 
 #[test]

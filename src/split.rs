@@ -62,7 +62,9 @@ pub use crate::artifact::FileEntry;
 use crate::artifact::write_atomically;
 use crate::cnf::{Cnf, FamilyCount, Lit};
 use crate::dimacs::{VERSION, render_cnf};
-use crate::encode::{EncodeOptions, Encoding, Formulation, encode, fullmap, profile, symmetry};
+use crate::encode::{
+    EncodeOptions, Encoding, Formulation, bicliques, encode, fullmap, profile, symmetry,
+};
 use crate::error::{Error, Result};
 use crate::question::Question;
 use crate::solve::refute::{CheckedProof, ProofPlan, solve_bundled};
@@ -151,6 +153,52 @@ pub fn prefix_survives(prefix: &[i64], maps: &[Vec<usize>], k_max: usize) -> boo
     })
 }
 
+/// The top patterns that the `biclique-cover` clauses of `enc` exclude, as
+/// pairs `(far, close)` of offset masks (bit `k − 1` for offset `k`): a
+/// whole profile whose offsets at the diameter form the mask `T` falsifies
+/// the clause when `T` holds all of `far` and none of `close`. Read from
+/// the formula itself, so the cubes drop exactly what its clauses exclude.
+pub fn top_exclusions(enc: &Encoding) -> Vec<(u64, u64)> {
+    let l = enc.question.grid.diameter() as i64;
+    let Some(range) = family_range(enc, bicliques::FAMILY) else {
+        return Vec::new();
+    };
+    range
+        .filter_map(|i| {
+            let (mut far, mut close) = (0u64, 0u64);
+            for lit in enc.cnf.clause(i) {
+                match enc.map.meaning(lit.var()) {
+                    Some(Meaning::Profile { k, value }) if *value == l && (1..=64).contains(k) => {
+                        if !lit.is_positive() {
+                            far |= 1 << (k - 1);
+                        } else {
+                            close |= 1 << (k - 1);
+                        }
+                    }
+                    _ => return None,
+                }
+            }
+            Some((far, close))
+        })
+        .collect()
+}
+
+/// Whether the whole profile `values` (`g(1..)`, at most 64 offsets)
+/// falsifies one of the `exclusions` ([`top_exclusions`]) at diameter `l`.
+pub fn profile_excluded(values: &[i64], l: i64, exclusions: &[(u64, u64)]) -> bool {
+    if exclusions.is_empty() || values.len() > 64 {
+        return false;
+    }
+    let top = values
+        .iter()
+        .enumerate()
+        .filter(|&(_, &v)| v == l)
+        .fold(0u64, |m, (k0, _)| m | 1 << k0);
+    exclusions
+        .iter()
+        .any(|&(far, close)| top & far == far && top & close == 0)
+}
+
 /// The literals saying `g(k) = value`, with `1 ≤ value ≤ L`, as the encoding's variables.
 ///
 /// # Errors
@@ -187,6 +235,7 @@ pub fn profile_cubes(enc: &Encoding, target: usize) -> Result<Vec<Cube>> {
         Vec::new()
     };
     let target = target.max(1);
+    let excluded = top_exclusions(enc);
     let mut prefixes: Vec<Vec<i64>> = vec![Vec::new()];
     // One pass per level: the shortest prefixes are replaced by their
     // extensions from left to right until the target is reached, as one
@@ -210,7 +259,8 @@ pub fn profile_cubes(enc: &Encoding, target: usize) -> Result<Vec<Cube>> {
                         c.push(v);
                         c
                     })
-                    .filter(|c| prefix_survives(c, &maps, k_max)),
+                    .filter(|c| prefix_survives(c, &maps, k_max))
+                    .filter(|c| c.len() < k_max || !profile_excluded(c, l, &excluded)),
             );
             count = count + (next.len() - before) - 1;
         }
@@ -305,14 +355,15 @@ fn family_range(enc: &Encoding, family: &str) -> Option<std::ops::Range<usize>> 
 }
 
 /// The indices (in `enc.cnf`) of the clauses that the coverage check keeps:
-/// the `profile` family, then `sym-multiplier` when present; in the full-map
+/// the `profile` family, then `sym-multiplier` and `biclique-cover` when
+/// present (whose excluded profiles get no cube); in the full-map
 /// formulation `orbit-place` (whose first clause says x_0 is some point),
 /// then `fm-isometry` when present.
 pub fn coverage_sources(enc: &Encoding) -> Vec<usize> {
-    let families = if enc.options.formulation == Formulation::FullMap {
-        [fullmap::orbit::FAMILY_PLACE, fullmap::symmetry::ISOMETRY]
+    let families: &[&str] = if enc.options.formulation == Formulation::FullMap {
+        &[fullmap::orbit::FAMILY_PLACE, fullmap::symmetry::ISOMETRY]
     } else {
-        [profile::FAMILY, symmetry::MULTIPLIER]
+        &[profile::FAMILY, symmetry::MULTIPLIER, bicliques::FAMILY]
     };
     families
         .iter()

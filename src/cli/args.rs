@@ -228,6 +228,14 @@ pub struct EncodingArgs {
     /// encodings/redundant.md, pack-nested.
     #[arg(long)]
     pub no_nested: bool,
+    /// Leave out the biclique-cover exclusions (on by default where
+    /// p > 2^r, r the number of coordinates whose side is the box's
+    /// diameter, and p/2 ≤ 17): the pairs at the diameter are covered by one
+    /// biclique per such coordinate, so r + 1 far pairs of which no two can
+    /// share a biclique rule the pattern out; see encodings/redundant.md,
+    /// biclique-cover.
+    #[arg(long)]
+    pub no_bicliques: bool,
     /// The formulation: `cycle` (isometric cycles; boxes only; the default
     /// on boxes) or `full-map` (the whole map f: D → D; the only one for
     /// --points, and available on boxes for comparison).
@@ -274,6 +282,7 @@ impl EncodingArgs {
             packing: !self.no_packing,
             classes: !self.no_classes,
             nested: !self.no_nested,
+            bicliques: !self.no_bicliques,
             ..base
         })
     }

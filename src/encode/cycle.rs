@@ -12,7 +12,7 @@
 use std::cell::OnceCell;
 
 use super::family::{Family, always};
-use super::{classes, coords, count, distance, edges, packing, points, profile, symmetry, topical};
+use super::{bicliques, classes, coords, count, distance, edges, packing, points, profile, symmetry, topical};
 use crate::question::Question;
 
 /// The context the cycle families share: the question, and what two
@@ -23,15 +23,22 @@ pub struct Cycle {
     pub q: Question,
     stabilizer: OnceCell<Vec<(usize, Vec<usize>)>>,
     ruled_out: OnceCell<Vec<classes::Excluded>>,
+    bicliques: OnceCell<Vec<bicliques::Exclusion>>,
+    /// Whether `biclique-cover` adds the multiplier images of its
+    /// exclusions: unless the profile takes two values and the multiplier
+    /// break is on (see [`bicliques`]).
+    bicliques_images: bool,
 }
 
 impl Cycle {
-    /// The context of `q`; nothing is computed yet.
-    pub fn new(q: &Question) -> Cycle {
+    /// The context of `q` under the resolved options `o`; nothing is computed yet.
+    pub fn new(q: &Question, o: &super::EncodeOptions) -> Cycle {
         Cycle {
+            bicliques_images: !(q.grid.diameter() == 2 && o.symmetry.multiplier),
             q: q.clone(),
             stabilizer: OnceCell::new(),
             ruled_out: OnceCell::new(),
+            bicliques: OnceCell::new(),
         }
     }
 
@@ -47,6 +54,13 @@ impl Cycle {
     /// by a search that both its size and its clauses need.
     pub fn ruled_out(&self) -> &[classes::Excluded] {
         self.ruled_out.get_or_init(|| classes::ruled_out(&self.q))
+    }
+
+    /// The top patterns `biclique-cover` excludes ([`bicliques::ruled_out`]),
+    /// with their multiplier images where they are needed.
+    pub fn bicliques(&self) -> &[bicliques::Exclusion] {
+        self.bicliques
+            .get_or_init(|| bicliques::ruled_out(&self.q, self.bicliques_images))
     }
 }
 
@@ -147,6 +161,12 @@ pub static ISOMETRIC_CYCLE: &[Family<Cycle>] = &[
         applies: |_, o| o.nested,
         size: |x| classes::size(&classes::select(x.ruled_out(), true)),
         add: |e, x| classes::add(e, &x.q, &classes::select(x.ruled_out(), true)),
+    },
+    Family {
+        name: bicliques::FAMILY,
+        applies: |_, o| o.bicliques,
+        size: |x| bicliques::size(x.bicliques()),
+        add: |e, x| bicliques::add(e, &x.q, x.bicliques()),
     },
     Family {
         name: edges::FAMILY,

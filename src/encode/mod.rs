@@ -56,6 +56,7 @@
 //! [`VarMap`]; the same formula then feeds the bundled solver or the DIMACS
 //! writer, so `encode` writes exactly what `decide` solves.
 
+pub mod bicliques;
 pub mod classes;
 pub mod coords;
 pub mod count;
@@ -235,10 +236,10 @@ pub fn estimate(q: &Question, options: &EncodeOptions) -> Vec<FamilyCount> {
     let o = options.resolve(q);
     match o.formulation {
         Formulation::IsometricCycle => {
-            family::estimate(cycle::ISOMETRIC_CYCLE, &cycle::Cycle::new(q), &o)
+            family::estimate(cycle::ISOMETRIC_CYCLE, &cycle::Cycle::new(q, &o), &o)
         }
         Formulation::TopicalCycle => {
-            family::estimate(cycle::TOPICAL_CYCLE, &cycle::Cycle::new(q), &o)
+            family::estimate(cycle::TOPICAL_CYCLE, &cycle::Cycle::new(q, &o), &o)
         }
         Formulation::FullMap => family::estimate(fullmap::FULL_MAP, &fullmap::FullMap::new(q), &o),
     }
@@ -273,12 +274,12 @@ pub fn encode(q: &Question, options: &EncodeOptions, max_clauses: u64) -> Result
     let enc = match o.formulation {
         Formulation::IsometricCycle => run(
             cycle::ISOMETRIC_CYCLE,
-            &cycle::Cycle::new(q),
+            &cycle::Cycle::new(q, &o),
             &o,
             max_clauses,
         ),
         Formulation::TopicalCycle => {
-            run(cycle::TOPICAL_CYCLE, &cycle::Cycle::new(q), &o, max_clauses)
+            run(cycle::TOPICAL_CYCLE, &cycle::Cycle::new(q, &o), &o, max_clauses)
         }
         Formulation::FullMap => run(
             fullmap::FULL_MAP,

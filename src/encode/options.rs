@@ -162,6 +162,13 @@ pub struct EncodeOptions {
     /// family existed read as off, which is what those CNFs hold.
     #[serde(default, skip_serializing_if = "is_false")]
     pub nested: bool,
+    /// The fooling-set exclusions of far patterns ([`super::bicliques`],
+    /// family `biclique-cover`). [`EncodeOptions::resolve`] switches them
+    /// off where the family cannot act, and a header records the option only
+    /// when it is on, so formulas written before the family existed read as
+    /// what they hold.
+    #[serde(default, skip_serializing_if = "is_false")]
+    pub bicliques: bool,
 }
 
 fn is_false(b: &bool) -> bool {
@@ -178,6 +185,7 @@ impl Default for EncodeOptions {
             packing: true,
             classes: true,
             nested: true,
+            bicliques: true,
         }
     }
 }
@@ -192,6 +200,7 @@ impl EncodeOptions {
             packing: false,
             classes: false,
             nested: false,
+            bicliques: false,
         }
     }
 
@@ -222,6 +231,7 @@ impl EncodeOptions {
             o.packing = false;
             o.classes = false;
             o.nested = false;
+            o.bicliques = false;
             o.symmetry.reverse = false;
         }
         o
@@ -252,6 +262,9 @@ impl EncodeOptions {
         if q.grid.diameter() < 3 || q.period < 2 {
             // Two thresholds 1 ≤ u < t < L need a side of 3 or more.
             o.nested = false;
+        }
+        if !super::bicliques::applies_to(q) {
+            o.bicliques = false;
         }
         let point_eq_ok = q.period as u128 * q.grid.num_points() <= POINT_EQ_LIMIT;
         if !point_eq_ok {

@@ -65,6 +65,7 @@ fn all_combinations() -> Vec<EncodeOptions> {
                     packing,
                     classes,
                     nested: classes,
+                    bicliques: classes,
                     ..EncodeOptions::default()
                 });
             }

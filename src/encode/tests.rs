@@ -79,6 +79,7 @@ pub(crate) fn variations(
             packing,
             classes,
             nested: classes,
+            bicliques: classes,
             ..base.clone()
         });
     symmetric.chain(counting).collect()

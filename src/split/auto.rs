@@ -109,7 +109,8 @@ pub struct CubeChoice {
 }
 
 /// The number of whole profiles `g(1..K)` that no multiplier map rules out
-/// ([`prefix_survives`]), or `None` when there are more than `cap`. The
+/// ([`prefix_survives`]) and no `biclique-cover` clause excludes
+/// ([`super::profile_excluded`]), or `None` when there are more than `cap`. The
 /// walk is depth-first and stops as soon as the count passes `cap`; a
 /// prefix that is ruled out is not extended, since every extension of it is
 /// ruled out too.
@@ -122,22 +123,25 @@ pub fn full_profile_count(enc: &Encoding, cap: usize) -> Option<usize> {
     } else {
         Vec::new()
     };
-    fn walk(
-        prefix: &mut Vec<i64>,
+    let excluded = super::top_exclusions(enc);
+    struct Walk<'a> {
         k_max: usize,
         l: i64,
-        maps: &[Vec<usize>],
-        count: &mut usize,
+        maps: &'a [Vec<usize>],
+        excluded: &'a [(u64, u64)],
         cap: usize,
-    ) -> bool {
+    }
+    fn walk(prefix: &mut Vec<i64>, w: &Walk, count: &mut usize) -> bool {
+        let (k_max, l, maps) = (w.k_max, w.l, w.maps);
         if prefix.len() == k_max {
-            *count += 1;
-            return *count <= cap;
+            if !super::profile_excluded(prefix, l, w.excluded) {
+                *count += 1;
+            }
+            return *count <= w.cap;
         }
         for v in 1..=l {
             prefix.push(v);
-            let ok =
-                !prefix_survives(prefix, maps, k_max) || walk(prefix, k_max, l, maps, count, cap);
+            let ok = !prefix_survives(prefix, maps, k_max) || walk(prefix, w, count);
             prefix.pop();
             if !ok {
                 return false;
@@ -146,7 +150,14 @@ pub fn full_profile_count(enc: &Encoding, cap: usize) -> Option<usize> {
         true
     }
     let mut count = 0;
-    walk(&mut Vec::new(), k_max, l, &maps, &mut count, cap).then_some(count)
+    let w = Walk {
+        k_max,
+        l,
+        maps: &maps,
+        excluded: &excluded,
+        cap,
+    };
+    walk(&mut Vec::new(), &w, &mut count).then_some(count)
 }
 
 /// The cubes of the automatic strategy (see the module docs).

@@ -103,6 +103,7 @@ pub fn for_domain(options: &EncodeOptions) -> EncodeOptions {
         packing: false,
         classes: false,
         nested: false,
+        bicliques: false,
     }
 }
 

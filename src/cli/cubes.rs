@@ -6,7 +6,9 @@ use std::time::Duration;
 
 use clap::Args;
 
+use orbitcnf::Error;
 use orbitcnf::proof::LratFormat;
+use orbitcnf::real;
 use orbitcnf::solve::bundled::Bundled;
 use orbitcnf::solve::certified::Certified;
 use orbitcnf::solve::{Backend, Limits};
@@ -110,6 +112,33 @@ pub struct SplitArgs {
 
 /// Runs `split`.
 pub fn run_split(a: SplitArgs) -> Outcome {
+    if let Some(n) = a.question.domain.real_dim()? {
+        let e = &a.encoding;
+        let grid_only = [
+            (e.symmetry != "all", "--symmetry"),
+            (
+                e.no_count || e.no_packing || e.no_classes || e.no_nested,
+                "--no-count/--no-packing/--no-classes/--no-nested",
+            ),
+            (e.formulation.is_some(), "--formulation"),
+            (a.layout != LayoutChoice::Auto, "--layout"),
+            (
+                a.question.class.class != orbitcnf::question::MapClass::Nonexpansive,
+                "--class",
+            ),
+        ];
+        if let Some((_, flag)) = grid_only.iter().find(|(on, _)| *on) {
+            return Err(Error::Options(format!(
+                "{flag} applies to grid questions, not to --real"
+            )));
+        }
+        let CubeTarget::Count(cubes) = a.cubes else {
+            return Err(Error::Options(
+                "--cubes auto applies to grid questions; give --real a cube count".into(),
+            ));
+        };
+        return super::real::split(n, a.question.period, cubes, &a.out, a.json);
+    }
     let q = a.question.question()?;
     let options = a.encoding.options(q.points.is_some())?;
     let w = split::write_split(
@@ -183,10 +212,42 @@ pub struct RunCubeArgs {
     json: bool,
     #[command(flatten)]
     progress: ProgressArgs,
+    /// Real-space splits with --solver external:'COMMAND': search with the
+    /// bundled CDCL(T) for SECS seconds (default 10), then hand the
+    /// propositional refutation of the cube to COMMAND (as decide --real).
+    #[arg(long, value_name = "SECS", value_parser = parse_seconds)]
+    handoff_after: Option<Duration>,
 }
 
 /// Runs `run-cube`.
 pub fn run_cube(a: RunCubeArgs) -> Outcome {
+    if real::cubes::is_real_split(&a.dir) {
+        if !a.solver.proof_arg.is_empty() {
+            return Err(Error::Options(
+                "--proof-arg applies to grid splits; a real-space cube's certificate is its \
+                 Farkas lemmas and LRAT proof, with --solver external:'COMMAND' handed off as \
+                 in decide --real"
+                    .into(),
+            ));
+        }
+        let mut o = real::RealOptions::new();
+        o.certify = !a.no_certify;
+        o.handoff = super::real::handoff(&a.solver.solver, a.handoff_after)?;
+        return super::real::run_cube(
+            &a.dir,
+            a.index,
+            &o,
+            a.time_limit,
+            a.force,
+            a.json,
+            a.progress.mode(a.json),
+        );
+    }
+    if a.handoff_after.is_some() {
+        return Err(Error::Options(
+            "--handoff-after applies to real-space splits".into(),
+        ));
+    }
     let limits = Limits {
         time: a.time_limit,
         progress: a.progress.mode(a.json),
@@ -251,6 +312,16 @@ pub struct MergeArgs {
 
 /// Runs `merge`.
 pub fn run_merge(a: MergeArgs) -> Outcome {
+    if real::cubes::is_real_split(&a.dir) {
+        if a.proof.is_some() {
+            return Err(Error::Options(
+                "--proof applies to grid splits; a real-space split's certificate is the \
+                 folder itself (every cube's lemmas and LRAT proof, and the coverage proof)"
+                    .into(),
+            ));
+        }
+        return super::real::merge(&a.dir, a.pending, a.trust_solver, a.json);
+    }
     if a.pending {
         let idx = cube_run::pending_indices(&a.dir)?;
         print(&idx.iter().map(|i| format!("{i}\n")).collect::<String>())?;

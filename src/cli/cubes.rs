@@ -48,7 +48,16 @@ gets it as a temporary file). To run a solver on one cube by hand, take
 formula.cnf and the cube's 'a' line of cubes.icnf as unit clauses.
 
 Then: orbitcnf run-cube DIR INDEX for every index (see docs/cluster.md for
-Slurm and GNU parallel), and orbitcnf merge DIR.";
+Slurm and GNU parallel), and orbitcnf merge DIR.
+
+Real space (--real --dim N -p P --cubes COUNT): the cubes fix which
+coordinate and sign attain some pairs' distances (literals of the
+skeleton's T(i,j,c) variables, chosen by look-ahead on the skeleton's unit
+propagation); coverage.cnf is the skeleton plus every negated cube, refuted
+with a checked LRAT proof (encodings/real-space.md §9). The folder holds
+manifest.json (format orbitcnf-real-split/1), skeleton.cnf, coverage.cnf,
+coverage.lrat and results/; run-cube and merge recognise it. --cubes auto,
+--layout and the grid encoding flags do not apply.";
 
 /// The long help of `run-cube`.
 pub const RUN_CUBE_HELP: &str = "\
@@ -60,7 +69,15 @@ results/cube-NNNN.lrat; merge checks it again.
 
 Exit codes: 0 when a result was written (whatever the verdict: it is in the
 result file, and merge combines them), 1 on error (a failed or lying solver is
-recorded in the result file as status \"error\" before exiting).";
+recorded in the result file as status \"error\" before exiting).
+
+On a real-space split (split --real), the cube is solved by the real
+search of decide --real with the cube's literals as unit clauses; an
+infeasible cube's certificate (lemmas.txt with Farkas multipliers and
+proof.lrat, checked with the cube's literals) goes to results/cube-NNNN/
+before results/cube-NNNN.json is written. --solver external:'COMMAND'
+with --handoff-after SECS hands the endgame to COMMAND as decide --real
+does; --proof-arg and --proof-encoding are for grid splits.";
 
 /// The long help of `merge`.
 pub const MERGE_HELP: &str = "\
@@ -79,7 +96,14 @@ Exit codes (the SAT convention):
   21  infeasible on a solver's unchecked word for some cube (only with
       --trust-solver)
    0  unknown: some cube has no usable result (or --pending)
-   1  error: the split folder is damaged or from another orbitcnf version";
+   1  error: the split folder is damaged or from another orbitcnf version
+
+On a real-space split, merge rebuilds the skeleton and compares
+skeleton.cnf byte for byte, recomputes every cube's digest, checks the
+coverage proof against a coverage CNF rebuilt from the manifest's cubes,
+re-checks every cube's certificate (Farkas checker, LRAT checker, with the
+cube's literals) and every orbit. A rejected certificate is listed as
+pending, with the file and line; --proof is for grid splits.";
 
 /// Arguments of `split`.
 #[derive(Args, Debug)]

@@ -48,7 +48,9 @@ pub struct DecideArgs {
     /// proof.lrat (infeasible) or orbit.json (feasible; map.json with the
     /// whole map on a point set); re-check it with `orbitcnf check-bundle
     /// DIR`. An existing bundle in DIR is replaced whole; an unknown or
-    /// unchecked verdict writes nothing.
+    /// unchecked verdict writes nothing. With --real --jobs, DIR is the
+    /// split folder with every cube's certificate (kept whatever the
+    /// verdict; a rerun into it solves only the cubes without a result).
     #[arg(long, value_name = "DIR", conflicts_with = "no_certify")]
     bundle: Option<PathBuf>,
     /// Also print the explicit map of a feasible answer: the nonexpansive

@@ -171,6 +171,14 @@ pub fn progress_line(mode: ProgressMode) -> impl FnMut(&str) {
 /// `decide --real --jobs K [--cubes N]`: a split folder (the bundle folder,
 /// or a temporary one), its cubes on K threads, and its merge.
 fn decide_jobs(a: RealDecide) -> Outcome {
+    if a.p == 1 {
+        // period 1 has no skeleton to split: the single search answers it at once
+        return decide(RealDecide {
+            jobs: None,
+            cubes: None,
+            ..a
+        });
+    }
     let jobs = a.jobs.unwrap_or_else(orbitcnf::pool::default_jobs);
     let cubes = a.cubes.unwrap_or(8 * jobs.max(1));
     let tmp;

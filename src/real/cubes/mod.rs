@@ -245,7 +245,56 @@ impl<'a> Propagator<'a> {
 struct Node {
     val: Vec<i8>,
     lits: Vec<i32>,
-    next: usize,
+    /// No free variable is left: the node is a cube for good.
+    done: bool,
+}
+
+/// Free variables a node's look-ahead tries: the first ones in
+/// [`split_order`], so that choosing costs the same on every size.
+pub const LOOKAHEAD: usize = 64;
+
+/// How many variables are assigned in `val`.
+fn assigned(val: &[i8]) -> usize {
+    val.iter().filter(|&&v| v != 0).count()
+}
+
+/// The variable to split `node` on, by look-ahead: among the first
+/// [`LOOKAHEAD`] free variables of `order`, the one whose two values
+/// propagate the most (largest product of the two counts, the first among
+/// equals). A value that propagates to a conflict makes the other one
+/// implied: it is added to the node (not to its literals) and the choice
+/// starts again. `None` when the node is refuted so, or has no free
+/// variable (then `node.done`).
+fn choose(prop: &Propagator<'_>, node: &mut Node, order: &[Var]) -> Option<Option<Var>> {
+    'again: loop {
+        let base = assigned(&node.val);
+        let mut best: Option<(usize, Var)> = None;
+        for &v in order
+            .iter()
+            .filter(|v| node.val[v.index()] == 0)
+            .take(LOOKAHEAD)
+        {
+            let mut counts = [0usize; 2];
+            for (k, l) in [v.pos(), v.neg()].into_iter().enumerate() {
+                let mut val = node.val.clone();
+                if !prop.assign(&mut val, vec![l]) {
+                    if !prop.assign(&mut node.val, vec![!l]) {
+                        return None;
+                    }
+                    continue 'again;
+                }
+                counts[k] = assigned(&val) - base;
+            }
+            let score = counts[0] * counts[1];
+            if best.is_none_or(|(b, _)| score > b) {
+                best = Some((score, v));
+            }
+        }
+        if best.is_none() {
+            node.done = true;
+        }
+        return Some(best.map(|(_, v)| v));
+    }
 }
 
 /// The cubes for at least `target` cubes (fewer when the variables run
@@ -257,7 +306,7 @@ pub fn make_cubes(sk: &Skeleton, target: usize) -> Vec<Vec<i32>> {
     let mut root = Node {
         val: vec![0; sk.cnf.num_vars() as usize],
         lits: Vec::new(),
-        next: 0,
+        done: false,
     };
     let units: Vec<Lit> = sk
         .cnf
@@ -270,26 +319,25 @@ pub fn make_cubes(sk: &Skeleton, target: usize) -> Vec<Vec<i32>> {
     }
     let mut nodes = vec![root];
     while nodes.len() < target {
-        let mut best: Option<usize> = None;
-        for k in 0..nodes.len() {
-            let node = &mut nodes[k];
-            while node.next < order.len() && node.val[order[node.next].index()] != 0 {
-                node.next += 1;
+        let Some(k) = (0..nodes.len())
+            .filter(|&k| !nodes[k].done)
+            .min_by_key(|&k| nodes[k].lits.len())
+        else {
+            break;
+        };
+        let mut node = nodes.remove(k);
+        let v = match choose(&prop, &mut node, &order) {
+            None => continue,
+            Some(None) => {
+                nodes.insert(k, node);
+                continue;
             }
-            if node.next < order.len()
-                && best.is_none_or(|b| nodes[b].lits.len() > nodes[k].lits.len())
-            {
-                best = Some(k);
-            }
-        }
-        let Some(k) = best else { break };
-        let node = nodes.remove(k);
-        let v = order[node.next];
+            Some(Some(v)) => v,
+        };
         let mut children = Vec::with_capacity(2);
         for l in [v.pos(), v.neg()] {
             let mut c = node.clone();
             c.lits.push(l.dimacs());
-            c.next += 1;
             if prop.assign(&mut c.val, vec![l]) {
                 children.push(c);
             }

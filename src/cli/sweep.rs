@@ -87,6 +87,17 @@ Examples:
   orbitcnf spectrum --dim 2 --grid=0..3 --periods 5..8 --no-store --json
   orbitcnf spectrum --class topical --dim 4 --grid=0..1";
 
+/// The periods of `--periods`, parsed by clap so that a bad list is a usage
+/// error that names the flag (the library's error names none).
+#[derive(Clone, Debug)]
+struct PeriodList(Vec<usize>);
+
+fn parse_period_list(s: &str) -> Result<PeriodList, String> {
+    spectrum::parse_periods(s)
+        .map(PeriodList)
+        .map_err(|e| e.to_string())
+}
+
 /// Arguments of `spectrum`.
 #[derive(Args, Debug)]
 pub struct SpectrumArgs {
@@ -98,8 +109,8 @@ pub struct SpectrumArgs {
     /// bound C(n',⌊n'/2⌋) (same paper), so the first excluded period is
     /// decided too; with --points up to |D| and the first bound. Capped by
     /// the number of grid points.
-    #[arg(long, value_name = "LIST")]
-    periods: Option<String>,
+    #[arg(long, value_name = "LIST", value_parser = parse_period_list)]
+    periods: Option<PeriodList>,
     #[command(flatten)]
     class: ClassArgs,
     #[command(flatten)]
@@ -167,8 +178,8 @@ pub fn run(a: SpectrumArgs) -> Outcome {
         }
         None => SweepConfig::for_class(a.domain.grid()?, a.class.class),
     };
-    if let Some(list) = &a.periods {
-        cfg.periods = spectrum::parse_periods(list)?;
+    if let Some(PeriodList(list)) = a.periods {
+        cfg.periods = list;
     }
     cfg.options = a.encoding.options(a.domain.is_points())?;
     cfg.jobs = a.jobs.unwrap_or_else(orbitcnf::pool::default_jobs);
@@ -205,8 +216,8 @@ fn run_real(n: usize, a: SpectrumArgs) -> Outcome {
             "{flag} applies to grid spectra, not to --real"
         )));
     }
-    let periods = match &a.periods {
-        Some(list) => spectrum::parse_periods(list)?,
+    let periods = match a.periods {
+        Some(PeriodList(list)) => list,
         None => {
             let top =
                 usize::try_from(orbitcnf::theory::lemmens_scheutzow_bound(n)).unwrap_or(usize::MAX);

@@ -217,10 +217,10 @@ pub fn default_periods(grid: &Grid, class: MapClass) -> Vec<usize> {
 /// comma-separated list of both. The result is increasing and distinct.
 ///
 /// # Errors
-/// [`Error::Question`] naming the bad part, a period 0, a reversed range, or
-/// more than [`MAX_PERIODS`] periods.
+/// [`Error::Question`] quoting the whole list and naming the bad part, a
+/// period 0, a reversed range, or more than [`MAX_PERIODS`] periods.
 pub fn parse_periods(text: &str) -> Result<Vec<usize>> {
-    let bad = |why: String| Error::Question(format!("--periods {text:?}: {why}"));
+    let bad = |why: String| Error::Question(format!("the period list {text:?}: {why}"));
     let num = |s: &str| -> Result<usize> {
         s.trim().parse::<usize>().map_err(|_| {
             bad(format!(
@@ -468,7 +468,10 @@ mod tests {
         assert_eq!(parse_periods("1..4").unwrap(), vec![1, 2, 3, 4]);
         assert_eq!(parse_periods("9, 3,5..=6,5").unwrap(), vec![3, 5, 6, 9]);
         for bad in ["", "0..3", "4..2", "x", "1..", "1,,2", "1..100000"] {
-            assert!(parse_periods(bad).is_err(), "{bad}");
+            // The error quotes the list and names no command-line flag.
+            let e = parse_periods(bad).expect_err(bad).to_string();
+            assert!(e.contains(&format!("the period list {bad:?}")), "{e}");
+            assert!(!e.contains("--"), "{e}");
         }
         let ne = MapClass::Nonexpansive;
         assert_eq!(

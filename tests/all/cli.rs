@@ -17,7 +17,7 @@ use orbitcnf::solve::{Backend, Limits, Outcome};
 
 use crate::util::{
     ERROR, Expect, FEASIBLE, INFEASIBLE, Q, TestDir, UNCHECKED, UNKNOWN, assert_certified,
-    assert_decides, assert_isometric_cycle, check_report, cli_check, dist, orbit_of,
+    assert_decides, assert_isometric_cycle, check_report, cli_check, dist, encode, orbit_of,
 };
 
 // ---------------------------------------------------------------- help, exit codes
@@ -567,17 +567,6 @@ pub fn dimacs_clauses(text: &str) -> (usize, Vec<Vec<i64>>) {
 }
 
 // ---------------------------------------------------------------- decode
-
-/// Encodes `q` to `name` in `dir`.
-fn encode(dir: &TestDir, q: &Q, name: &str) {
-    dir.orbitcnf()
-        .arg("encode")
-        .args(q.args())
-        .arg("-o")
-        .arg(name)
-        .run()
-        .code(0);
-}
 
 /// A model of the CNF file `name`, found by the bundled solver through the
 /// library, as DIMACS literals `±v` for every variable `v`.

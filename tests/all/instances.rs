@@ -23,7 +23,9 @@
 //!   `orbitcnf::brute::find_cycle` (`find_topical_cycle` for the topical
 //!   class) and requires it to agree;
 //! - `ignore` (optional): a reason to skip the instance by default
-//!   (`cargo test -- --ignored` runs it).
+//!   (`cargo test -- --ignored` runs it);
+//! - `note` (optional): free text for the reader, such as another test that
+//!   checks the same question in another way; the test only requires a string.
 //!
 //! A domain that is not a box is given by `points` (a list of integer
 //! points, `[[0,1],[2,2]]`) instead of `grid` and `dim`; it is decided with
@@ -60,8 +62,8 @@ struct Instance {
     source: String,
 }
 
-const FIELDS: [&str; 8] = [
-    "grid", "dim", "period", "class", "expected", "source", "ignore", "points",
+const FIELDS: [&str; 9] = [
+    "grid", "dim", "period", "class", "expected", "source", "ignore", "note", "points",
 ];
 
 fn parse(name: &str, text: &str) -> Instance {
@@ -100,6 +102,9 @@ fn parse(name: &str, text: &str) -> Instance {
     }
     if v.get("ignore").is_some_and(|i| !i.is_string()) {
         bad("\"ignore\" must be a string (the reason)");
+    }
+    if v.get("note").is_some_and(|i| !i.is_string()) {
+        bad("\"note\" must be a string");
     }
     if let Some(list) = v.get("points") {
         if v.get("grid").is_some() || v.get("dim").is_some() {

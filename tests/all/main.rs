@@ -5,7 +5,8 @@
 //! - `published`: published theorems and the project's derived facts.
 //! - `brute`: the solver against an independent brute-force search.
 //! - `external`: CNFs written by `encode`, solved by Debian's CaDiCaL and
-//!   PicoSAT, read back by `decode`.
+//!   PicoSAT, read back by `decode`; CaDiCaL's DRAT proofs through `rate`
+//!   and orbitcnf's checker.
 //! - `instances`: one generated test per file in `instances/` (see `build.rs`).
 //! - `points`: finite domains that are not boxes (full-map formulation).
 //! - `mathdoc`: every `docs/math.md §n` cited in the repository exists there.

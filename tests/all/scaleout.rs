@@ -22,7 +22,7 @@ use serde_json::Value;
 
 use crate::util::{
     ERROR, FEASIBLE, INFEASIBLE, PLAIN, Q, TestDir, UNCHECKED, UNKNOWN, assert_isometric_cycle,
-    bin, check_report, have_tool, orbit_of,
+    bin, check_report, have_tool, orbit_of, require_tools,
 };
 
 /// `orbitcnf split` of `q` into about `cubes` cubes in `dir/name`; returns the manifest.
@@ -65,12 +65,7 @@ fn pending(dir: &TestDir, name: &str) -> Vec<String> {
 /// The LRAT proof at `proof` refutes exactly the CNF `encode` writes for
 /// `q` (written to `f.cnf`), as `verify-proof` checks it.
 pub(crate) fn proof_refutes_the_encoded_cnf(dir: &TestDir, q: &Q, proof: &str) {
-    dir.orbitcnf()
-        .arg("encode")
-        .args(q.args())
-        .args(["-o", "f.cnf"])
-        .run()
-        .code(0);
+    crate::util::encode(dir, q, "f.cnf");
     dir.orbitcnf()
         .args(["verify-proof", "f.cnf", proof])
         .run()
@@ -717,9 +712,7 @@ fn merge_rejects_a_tampered_split_and_a_tampered_proof() {
 #[test]
 #[ignore = "about a minute of cubes with CaDiCaL and rate on 2 cores; run on purpose"]
 fn n5_period_33_is_refuted_by_certified_cubes() {
-    for tool in ["cadical", "rate"] {
-        assert!(have_tool(tool), "this check needs `{tool}` on PATH");
-    }
+    require_tools(&["cadical", "rate"]);
     let dir = TestDir::new();
     dir.orbitcnf()
         .args(["split", "--dim", "5", "--grid=-1..1", "-p", "33"])

@@ -209,7 +209,7 @@ fn spectrum_table_csv_and_markdown_agree() {
     dir.orbitcnf()
         .args(["spectrum", "--grid=0..1", "--periods", "x", "--no-store"])
         .run()
-        .error_with(&["--periods"]);
+        .error_with(&["--periods", "the period list \"x\"", "not a period"]);
     dir.orbitcnf()
         .args(["spectrum", "--grid=0..1", "--jobs", "0", "--no-store"])
         .run()

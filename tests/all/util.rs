@@ -675,3 +675,23 @@ pub fn have_tool(name: &str) -> bool {
     }
     found
 }
+
+/// For a test run on purpose (ignored by default): fails at once, naming the
+/// program, unless every one of `names` is on the PATH.
+pub fn require_tools(names: &[&str]) {
+    for name in names {
+        assert!(have_tool(name), "this check needs `{name}` on PATH");
+    }
+}
+
+/// Encodes `q` with the default options to the file `name` in `dir`
+/// (`orbitcnf encode`), which must succeed.
+pub fn encode(dir: &TestDir, q: &Q, name: &str) {
+    dir.orbitcnf()
+        .arg("encode")
+        .args(q.args())
+        .arg("-o")
+        .arg(name)
+        .run()
+        .code(0);
+}

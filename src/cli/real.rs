@@ -180,7 +180,7 @@ fn decide_jobs(a: RealDecide) -> Outcome {
         });
     }
     let jobs = a.jobs.unwrap_or_else(orbitcnf::pool::default_jobs);
-    let cubes = a.cubes.unwrap_or(8 * jobs.max(1));
+    let cubes = a.cubes.unwrap_or(jobs.max(1).saturating_mul(8));
     let tmp;
     let dir: &Path = match &a.bundle {
         Some(d) => {

@@ -240,3 +240,39 @@ fn gnu_parallel_runs_real_cubes() {
     r.code(INFEASIBLE);
     assert_eq!(r.json()["certified"].as_array().unwrap().len(), all.len());
 }
+
+/// The hand-off per cube: the bundled CDCL(T) for a moment, then CaDiCaL
+/// refutes skeleton, cube units and lemmas with a DRAT proof that `rate`
+/// turns into LRAT; `merge` re-checks it like any cube certificate.
+#[test]
+fn cubes_handed_off_to_cadical_are_certified() {
+    if !have_tool("cadical") || !have_tool("rate") {
+        return;
+    }
+    let dir = TestDir::new();
+    let m = split(&dir, 2, 6, 4, "sp");
+    for i in 0..count(&m) {
+        dir.orbitcnf()
+            .args(["run-cube", "sp", &i.to_string(), "-q"])
+            .args([
+                "--solver",
+                "external:cadical -q",
+                "--handoff-after",
+                "0.001",
+            ])
+            .run()
+            .code(0)
+            .stdout_has("certificate checked");
+    }
+    merge(&dir, "sp").code(INFEASIBLE);
+    dir.orbitcnf()
+        .args(["decide", "--real", "--dim", "2", "-p", "5", "-j", "2", "-q"])
+        .args([
+            "--solver",
+            "external:cadical -q",
+            "--handoff-after",
+            "0.001",
+        ])
+        .run()
+        .code(INFEASIBLE);
+}

@@ -68,6 +68,8 @@ pub const COVERAGE_PROOF: &str = "coverage.lrat";
 pub const RESULTS_DIR: &str = "results";
 /// The format tag of [`RealSplitManifest`] (a grid split's is `orbitcnf-split/…`).
 pub const FORMAT: &str = "orbitcnf-real-split/1";
+/// The most cubes a split makes (each costs a search and a certificate).
+pub const MAX_CUBES: usize = 1 << 20;
 /// The rule [`make_cubes`] follows, as the manifest names it.
 pub const RULE: &str = "witness-tree";
 
@@ -130,9 +132,12 @@ pub struct RealSplitManifest {
 
 /// The `T(i, j, c)` of a skeleton variable (DIMACS number), if it is one.
 pub fn tight_of(n: usize, p: usize, v: u32) -> Option<(usize, usize, usize)> {
+    if p < 2 {
+        return None;
+    }
     let per = p * (p - 1);
     let k = (v as usize).checked_sub(1)?;
-    if p < 2 || k >= n * per {
+    if k >= n.checked_mul(per)? {
         return None;
     }
     let (c, r) = (k / per, k % per);
@@ -479,8 +484,8 @@ impl RealSplitManifest {
 /// results; its other files are written again (they are deterministic).
 ///
 /// # Errors
-/// [`Error::Options`] for a target of 0 cubes or a folder that holds
-/// another split; [`Error::Question`] for sizes out of range; a failed
+/// [`Error::Options`] for a target of 0 cubes or above [`MAX_CUBES`], or
+/// a folder that holds another split; [`Error::Question`] for sizes out of range; a failed
 /// coverage check; [`Error::Io`].
 pub fn write_split(
     dir: &Path,
@@ -489,8 +494,10 @@ pub fn write_split(
     options: &SkeletonOptions,
     target: usize,
 ) -> Result<RealSplitManifest> {
-    if target == 0 {
-        return Err(Error::Options("a split needs at least one cube".into()));
+    if target == 0 || target > MAX_CUBES {
+        return Err(Error::Options(format!(
+            "a split needs at least one cube and at most {MAX_CUBES}, not {target}"
+        )));
     }
     let sk = skeleton::build(n, p, options)?;
     let question = RealQuestion {

@@ -20,7 +20,7 @@ use std::time::{Duration, Instant};
 
 use serde::{Deserialize, Serialize};
 
-use super::{MANIFEST, RESULTS_DIR, RealSplitManifest, SKELETON, describe, verify_split};
+use super::{MANIFEST, RESULTS_DIR, RealSplitManifest, SKELETON, verify_split};
 use crate::artifact::{FileEntry, write_atomically};
 use crate::dimacs::VERSION;
 use crate::error::{Error, Result};
@@ -580,17 +580,4 @@ pub fn pending_indices(dir: &Path) -> Result<Vec<usize>> {
         })
         .map(|c| c.index)
         .collect())
-}
-
-/// The description of cube `index` of the split in `dir`, for people.
-///
-/// # Errors
-/// A manifest that cannot be read; an index out of range.
-pub fn cube_words(dir: &Path, index: usize) -> Result<String> {
-    let m = RealSplitManifest::read(dir)?;
-    let c = m
-        .cubes
-        .get(index)
-        .ok_or_else(|| Error::Options(format!("cube index {index} is out of range")))?;
-    Ok(describe(m.question.dim, m.question.period, &c.literals))
 }

@@ -22,6 +22,8 @@ fn tight_of_inverts_tight_var() {
                 }
             }
             assert_eq!(tight_of(n, p, 0), None);
+            assert_eq!(tight_of(n, 0, 1), None);
+            assert_eq!(tight_of(n, 1, 1), None);
             assert_eq!(tight_of(n, p, (n * p * (p - 1)) as u32 + 1), None);
         }
     }

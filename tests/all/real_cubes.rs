@@ -241,6 +241,14 @@ fn gnu_parallel_runs_real_cubes() {
     assert_eq!(r.json()["certified"].as_array().unwrap().len(), all.len());
 }
 
+/// Hand each cube's endgame to CaDiCaL at once.
+const HANDOFF: [&str; 4] = [
+    "--solver",
+    "external:cadical -q",
+    "--handoff-after",
+    "0.001",
+];
+
 /// The hand-off per cube: the bundled CDCL(T) for a moment, then CaDiCaL
 /// refutes skeleton, cube units and lemmas with a DRAT proof that `rate`
 /// turns into LRAT; `merge` re-checks it like any cube certificate.
@@ -254,12 +262,7 @@ fn cubes_handed_off_to_cadical_are_certified() {
     for i in 0..count(&m) {
         dir.orbitcnf()
             .args(["run-cube", "sp", &i.to_string(), "-q"])
-            .args([
-                "--solver",
-                "external:cadical -q",
-                "--handoff-after",
-                "0.001",
-            ])
+            .args(HANDOFF)
             .run()
             .code(0)
             .stdout_has("certificate checked");
@@ -267,12 +270,7 @@ fn cubes_handed_off_to_cadical_are_certified() {
     merge(&dir, "sp").code(INFEASIBLE);
     dir.orbitcnf()
         .args(["decide", "--real", "--dim", "2", "-p", "5", "-j", "2", "-q"])
-        .args([
-            "--solver",
-            "external:cadical -q",
-            "--handoff-after",
-            "0.001",
-        ])
+        .args(HANDOFF)
         .run()
         .code(INFEASIBLE);
 }

@@ -410,10 +410,14 @@ pub struct ScaleArgs {
     /// and an infeasible answer comes with one LRAT proof of the whole CNF
     /// assembled from them, checked like a monolithic one. With
     /// --no-auto-split, --jobs K splits at once into 8 cubes per thread.
+    /// With --real: the real question is split into cubes (8 per thread
+    /// unless --cubes), solved on K threads and merged; every cube's
+    /// certificate is checked, and --bundle DIR keeps the split folder as
+    /// the certificate (encodings/real-space.md §9).
     #[arg(long, short = 'j', value_name = "K")]
     pub jobs: Option<usize>,
     /// Split at once into about N cubes, without a probe (on --jobs
-    /// threads, 1 by default).
+    /// threads, 1 by default; with --real, at least N cubes).
     #[arg(long, value_name = "N")]
     pub cubes: Option<usize>,
     /// The probe: one ordinary solve of at most SECS seconds (default 60)

@@ -116,6 +116,9 @@ pub struct CheckBundleArgs {
 
 /// Runs `check-bundle`.
 pub fn run_check_bundle(a: CheckBundleArgs) -> Outcome {
+    if orbitcnf::real::cubes::is_real_split(&a.dir) {
+        return super::real::check_split(&a.dir, a.json);
+    }
     if super::real::is_real_bundle(&a.dir) {
         return super::real::check_bundle(&a.dir, a.json);
     }

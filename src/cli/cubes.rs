@@ -6,7 +6,9 @@ use std::time::Duration;
 
 use clap::Args;
 
+use orbitcnf::Error;
 use orbitcnf::proof::LratFormat;
+use orbitcnf::real;
 use orbitcnf::solve::bundled::Bundled;
 use orbitcnf::solve::certified::Certified;
 use orbitcnf::solve::{Backend, Limits};
@@ -46,7 +48,16 @@ gets it as a temporary file). To run a solver on one cube by hand, take
 formula.cnf and the cube's 'a' line of cubes.icnf as unit clauses.
 
 Then: orbitcnf run-cube DIR INDEX for every index (see docs/cluster.md for
-Slurm and GNU parallel), and orbitcnf merge DIR.";
+Slurm and GNU parallel), and orbitcnf merge DIR.
+
+Real space (--real --dim N -p P --cubes COUNT): the cubes fix which
+coordinate and sign attain some pairs' distances (literals of the
+skeleton's T(i,j,c) variables, chosen by look-ahead on the skeleton's unit
+propagation); coverage.cnf is the skeleton plus every negated cube, refuted
+with a checked LRAT proof (encodings/real-space.md §9). The folder holds
+manifest.json (format orbitcnf-real-split/1), skeleton.cnf, coverage.cnf,
+coverage.lrat and results/; run-cube and merge recognise it. --cubes auto,
+--layout and the grid encoding flags do not apply.";
 
 /// The long help of `run-cube`.
 pub const RUN_CUBE_HELP: &str = "\
@@ -58,7 +69,15 @@ results/cube-NNNN.lrat; merge checks it again.
 
 Exit codes: 0 when a result was written (whatever the verdict: it is in the
 result file, and merge combines them), 1 on error (a failed or lying solver is
-recorded in the result file as status \"error\" before exiting).";
+recorded in the result file as status \"error\" before exiting).
+
+On a real-space split (split --real), the cube is solved by the real
+search of decide --real with the cube's literals as unit clauses; an
+infeasible cube's certificate (lemmas.txt with Farkas multipliers and
+proof.lrat, checked with the cube's literals) goes to results/cube-NNNN/
+before results/cube-NNNN.json is written. --solver external:'COMMAND'
+with --handoff-after SECS hands the endgame to COMMAND as decide --real
+does; --proof-arg and --proof-encoding are for grid splits.";
 
 /// The long help of `merge`.
 pub const MERGE_HELP: &str = "\
@@ -77,7 +96,14 @@ Exit codes (the SAT convention):
   21  infeasible on a solver's unchecked word for some cube (only with
       --trust-solver)
    0  unknown: some cube has no usable result (or --pending)
-   1  error: the split folder is damaged or from another orbitcnf version";
+   1  error: the split folder is damaged or from another orbitcnf version
+
+On a real-space split, merge rebuilds the skeleton and compares
+skeleton.cnf byte for byte, recomputes every cube's digest, checks the
+coverage proof against a coverage CNF rebuilt from the manifest's cubes,
+re-checks every cube's certificate (Farkas checker, LRAT checker, with the
+cube's literals) and every orbit. A rejected certificate is listed as
+pending, with the file and line; --proof is for grid splits.";
 
 /// Arguments of `split`.
 #[derive(Args, Debug)]
@@ -110,6 +136,33 @@ pub struct SplitArgs {
 
 /// Runs `split`.
 pub fn run_split(a: SplitArgs) -> Outcome {
+    if let Some(n) = a.question.domain.real_dim()? {
+        let e = &a.encoding;
+        let grid_only = [
+            (e.symmetry != "all", "--symmetry"),
+            (
+                e.no_count || e.no_packing || e.no_classes || e.no_nested,
+                "--no-count/--no-packing/--no-classes/--no-nested",
+            ),
+            (e.formulation.is_some(), "--formulation"),
+            (a.layout != LayoutChoice::Auto, "--layout"),
+            (
+                a.question.class.class != orbitcnf::question::MapClass::Nonexpansive,
+                "--class",
+            ),
+        ];
+        if let Some((_, flag)) = grid_only.iter().find(|(on, _)| *on) {
+            return Err(Error::Options(format!(
+                "{flag} applies to grid questions, not to --real"
+            )));
+        }
+        let CubeTarget::Count(cubes) = a.cubes else {
+            return Err(Error::Options(
+                "--cubes auto applies to grid questions; give --real a cube count".into(),
+            ));
+        };
+        return super::real::split(n, a.question.period, cubes, &a.out, a.json);
+    }
     let q = a.question.question()?;
     let options = a.encoding.options(q.points.is_some())?;
     let w = split::write_split(
@@ -183,10 +236,42 @@ pub struct RunCubeArgs {
     json: bool,
     #[command(flatten)]
     progress: ProgressArgs,
+    /// Real-space splits with --solver external:'COMMAND': search with the
+    /// bundled CDCL(T) for SECS seconds (default 10), then hand the
+    /// propositional refutation of the cube to COMMAND (as decide --real).
+    #[arg(long, value_name = "SECS", value_parser = parse_seconds)]
+    handoff_after: Option<Duration>,
 }
 
 /// Runs `run-cube`.
 pub fn run_cube(a: RunCubeArgs) -> Outcome {
+    if real::cubes::is_real_split(&a.dir) {
+        if !a.solver.proof_arg.is_empty() {
+            return Err(Error::Options(
+                "--proof-arg applies to grid splits; a real-space cube's certificate is its \
+                 Farkas lemmas and LRAT proof, with --solver external:'COMMAND' handed off as \
+                 in decide --real"
+                    .into(),
+            ));
+        }
+        let mut o = real::RealOptions::new();
+        o.certify = !a.no_certify;
+        o.handoff = super::real::handoff(&a.solver.solver, a.handoff_after)?;
+        return super::real::run_cube(
+            &a.dir,
+            a.index,
+            &o,
+            a.time_limit,
+            a.force,
+            a.json,
+            a.progress.mode(a.json),
+        );
+    }
+    if a.handoff_after.is_some() {
+        return Err(Error::Options(
+            "--handoff-after applies to real-space splits".into(),
+        ));
+    }
     let limits = Limits {
         time: a.time_limit,
         progress: a.progress.mode(a.json),
@@ -251,6 +336,16 @@ pub struct MergeArgs {
 
 /// Runs `merge`.
 pub fn run_merge(a: MergeArgs) -> Outcome {
+    if real::cubes::is_real_split(&a.dir) {
+        if a.proof.is_some() {
+            return Err(Error::Options(
+                "--proof applies to grid splits; a real-space split's certificate is the \
+                 folder itself (every cube's lemmas and LRAT proof, and the coverage proof)"
+                    .into(),
+            ));
+        }
+        return super::real::merge(&a.dir, a.pending, a.trust_solver, a.json);
+    }
     if a.pending {
         let idx = cube_run::pending_indices(&a.dir)?;
         print(&idx.iter().map(|i| format!("{i}\n")).collect::<String>())?;

@@ -9,7 +9,6 @@ use clap::Args;
 use orbitcnf::decide::{self, BundleOutcome, Outputs, Request};
 use orbitcnf::proof::LratFormat;
 use orbitcnf::question::MapClass;
-use orbitcnf::real::Handoff;
 use orbitcnf::solve::Limits;
 use orbitcnf::{Error, Report, dimacs, encode};
 
@@ -49,7 +48,9 @@ pub struct DecideArgs {
     /// proof.lrat (infeasible) or orbit.json (feasible; map.json with the
     /// whole map on a point set); re-check it with `orbitcnf check-bundle
     /// DIR`. An existing bundle in DIR is replaced whole; an unknown or
-    /// unchecked verdict writes nothing.
+    /// unchecked verdict writes nothing. With --real --jobs, DIR is the
+    /// split folder with every cube's certificate (kept whatever the
+    /// verdict; a rerun into it solves only the cubes without a result).
     #[arg(long, value_name = "DIR", conflicts_with = "no_certify")]
     bundle: Option<PathBuf>,
     /// Also print the explicit map of a feasible answer: the nonexpansive
@@ -125,10 +126,6 @@ fn run_real(n: usize, a: DecideArgs) -> Outcome {
         (a.proof.is_some(), "--proof"),
         (a.drat.is_some(), "--drat"),
         (
-            a.scale.jobs.is_some() || a.scale.cubes.is_some(),
-            "--jobs/--cubes",
-        ),
-        (
             a.scale.probe.is_some() || a.scale.probe_conflicts.is_some() || a.scale.no_auto_split,
             "--probe/--no-auto-split",
         ),
@@ -151,23 +148,9 @@ fn run_real(n: usize, a: DecideArgs) -> Outcome {
             "{flag} applies to grid questions, not to --real{hint}"
         )));
     }
-    let solver = a.scale.solver.solver.trim();
-    let handoff = match (solver.strip_prefix("external:"), a.handoff_after) {
-        _ if solver == "bundled" => None,
-        (Some(cmd), after) => Some(Handoff {
-            command: cmd.to_string(),
-            after: after.unwrap_or(Duration::from_secs(10)),
-        }),
-        (None, _) => {
-            return Err(Error::Options(format!(
-                "unknown solver {solver:?}; write --solver bundled or --solver external:'COMMAND ARGS'"
-            )));
-        }
-    };
-    if handoff.is_none() && a.handoff_after.is_some() {
-        return Err(Error::Options(
-            "--handoff-after needs an external solver: --solver external:'cadical -q'".into(),
-        ));
+    let handoff = super::real::handoff(&a.scale.solver.solver, a.handoff_after)?;
+    if a.scale.jobs == Some(0) || a.scale.cubes == Some(0) {
+        return Err(Error::Options("--jobs and --cubes need at least 1".into()));
     }
     super::real::decide(super::real::RealDecide {
         n,
@@ -178,6 +161,8 @@ fn run_real(n: usize, a: DecideArgs) -> Outcome {
         bundle: a.bundle,
         certify: !a.certify.no_certify,
         handoff,
+        jobs: a.scale.jobs,
+        cubes: a.scale.cubes,
     })
 }
 

@@ -30,10 +30,44 @@ pub struct RealDecide {
     pub certify: bool,
     /// Hand the propositional endgame to an external solver.
     pub handoff: Option<Handoff>,
+    /// Threads for cubes (`--jobs`); with `cubes`, a run in cubes.
+    pub jobs: Option<usize>,
+    /// Cubes to aim for (`--cubes`).
+    pub cubes: Option<usize>,
+}
+
+/// The hand-off of `--solver SOLVER --handoff-after SECS` for the real
+/// search: `None` for the bundled solver.
+///
+/// # Errors
+/// An unknown solver; `--handoff-after` without an external solver.
+pub fn handoff(solver: &str, after: Option<Duration>) -> Result<Option<Handoff>, Error> {
+    let solver = solver.trim();
+    let h = match solver.strip_prefix("external:") {
+        _ if solver == "bundled" => None,
+        Some(cmd) => Some(Handoff {
+            command: cmd.to_string(),
+            after: after.unwrap_or(Duration::from_secs(10)),
+        }),
+        None => {
+            return Err(Error::Options(format!(
+                "unknown solver {solver:?}; write --solver bundled or --solver external:'COMMAND ARGS'"
+            )));
+        }
+    };
+    if h.is_none() && after.is_some() {
+        return Err(Error::Options(
+            "--handoff-after needs an external solver: --solver external:'cadical -q'".into(),
+        ));
+    }
+    Ok(h)
 }
 
 /// Runs `decide --real`.
 pub fn decide(a: RealDecide) -> Outcome {
+    if a.jobs.is_some() || a.cubes.is_some() {
+        return decide_jobs(a);
+    }
     if let Some(dir) = &a.bundle {
         orbitcnf::bundle::check_target(dir)?;
     }
@@ -132,4 +166,140 @@ pub fn progress_line(mode: ProgressMode) -> impl FnMut(&str) {
         }
         _ => {}
     }
+}
+
+/// `decide --real --jobs K [--cubes N]`: a split folder (the bundle folder,
+/// or a temporary one), its cubes on K threads, and its merge.
+fn decide_jobs(a: RealDecide) -> Outcome {
+    if a.p == 1 {
+        // period 1 has no skeleton to split: the single search answers it at once
+        return decide(RealDecide {
+            jobs: None,
+            cubes: None,
+            ..a
+        });
+    }
+    let jobs = a.jobs.unwrap_or_else(orbitcnf::pool::default_jobs);
+    let cubes = a.cubes.unwrap_or(jobs.max(1).saturating_mul(8));
+    let tmp;
+    let dir: &Path = match &a.bundle {
+        Some(d) => {
+            orbitcnf::artifact::may_replace(d, &real::cubes::is_real_split)?;
+            d
+        }
+        None => {
+            tmp = tempfile::Builder::new()
+                .prefix(".orbitcnf-real-cubes-")
+                .tempdir()
+                .map_err(|e| Error::io("<temporary directory>", e))?;
+            tmp.path()
+        }
+    };
+    let mut o = RealOptions::new();
+    o.certify = a.certify;
+    o.handoff = a.handoff;
+    let mut line = progress_line(a.progress);
+    let r =
+        real::cubes::jobs::decide_jobs(a.n, a.p, &o, jobs, cubes, dir, a.time_limit, &mut |t| {
+            line(t)
+        })?;
+    if let Some(d) = &a.bundle {
+        eprintln!(
+            "split folder with every cube's certificate written to {} (re-check: orbitcnf merge {} or check-bundle)",
+            d.display(),
+            d.display()
+        );
+    }
+    print_either(
+        a.json,
+        || {
+            let mut v = serde_json::to_value(&r).unwrap_or_default();
+            v["domain"] = "real".into();
+            v["dim"] = a.n.into();
+            v["period"] = a.p.into();
+            v["verdict"] = serde_json::to_value(r.merge.verdict).unwrap_or_default();
+            v["certified"] = r.merge.certified().into();
+            v.to_string()
+        },
+        || r.to_text(),
+    )?;
+    Ok(code(r.merge.exit_code()))
+}
+
+/// `split --real`: writes the split folder and prints its summary.
+pub fn split(n: usize, p: usize, cubes: usize, out: &Path, json: bool) -> Outcome {
+    let m = real::cubes::write_split(out, n, p, &real::SkeletonOptions::default(), cubes)?;
+    print_either(
+        json,
+        || serde_json::to_string(&m).unwrap_or_default(),
+        || m.summary(out),
+    )?;
+    Ok(0)
+}
+
+/// `run-cube` on a real-space split folder.
+pub fn run_cube(
+    dir: &Path,
+    index: usize,
+    options: &RealOptions,
+    time_limit: Option<Duration>,
+    force: bool,
+    json: bool,
+    progress: ProgressMode,
+) -> Outcome {
+    let mut line = progress_line(progress);
+    let outcome = real::cubes::run::run_cube(dir, index, options, time_limit, force, &mut |pr| {
+        line(&format!(
+            "cube {index}: {:.0} s, {} conflicts, {} lemmas",
+            pr.seconds, pr.stats.conflicts, pr.lemmas
+        ));
+    });
+    line("");
+    let (r, note) = match outcome? {
+        real::cubes::run::RealRunOutcome::Solved(r) => (r, ""),
+        real::cubes::run::RealRunOutcome::AlreadyDone(r) => {
+            (r, " (already solved; --force solves again)")
+        }
+    };
+    print_either(
+        json,
+        || serde_json::to_string(&r).unwrap_or_default(),
+        || r.to_text(note),
+    )?;
+    Ok(0)
+}
+
+/// `merge` (and `merge --pending`) on a real-space split folder.
+pub fn merge(dir: &Path, pending: bool, accept_claims: bool, json: bool) -> Outcome {
+    if pending {
+        let idx = real::cubes::run::pending_indices(dir)?;
+        super::print(&idx.iter().map(|i| format!("{i}\n")).collect::<String>())?;
+        return Ok(0);
+    }
+    let r = real::cubes::run::merge(dir, accept_claims)?;
+    print_either(
+        json,
+        || serde_json::to_string(&r).unwrap_or_default(),
+        || r.to_text(),
+    )?;
+    Ok(code(r.exit_code()))
+}
+
+/// `check-bundle` on a real-space split folder (as `decide --real --jobs
+/// --bundle` writes it): the merge, which must give a certified verdict.
+pub fn check_split(dir: &Path, json: bool) -> Outcome {
+    let r = real::cubes::run::merge(dir, false)?;
+    print_either(
+        json,
+        || serde_json::to_string(&r).unwrap_or_default(),
+        || r.to_text(),
+    )?;
+    if r.verdict == orbitcnf::Verdict::Unknown {
+        return Err(Error::Certificate(format!(
+            "{}: the split has no verdict yet ({} cubes pending)",
+            dir.display(),
+            r.pending.len()
+        )));
+    }
+    Ok(0)
 }

@@ -122,9 +122,48 @@ pub fn lemma_lits(n: usize, p: usize, facts: &[(u32, Vec<i64>)], l: &Lemma) -> V
 /// the question differs; [`Error::Farkas`] for a rejected lemma;
 /// [`Error::Proof`] for a rejected LRAT proof; [`Error::Io`] for missing files.
 pub fn check_dir(n: usize, p: usize, dir: &Path) -> Result<CertificateCheck> {
+    check_parts(
+        n,
+        p,
+        &CertificateFiles {
+            skeleton: &dir.join(SKELETON),
+            lemmas: &dir.join(LEMMAS),
+            proof: &dir.join(PROOF),
+        },
+        &[],
+    )
+}
+
+/// Where the three files of a certificate are (a cube's certificate in a
+/// split folder shares the folder's `skeleton.cnf`).
+#[derive(Clone, Copy, Debug)]
+pub struct CertificateFiles<'a> {
+    /// The rendered skeleton.
+    pub skeleton: &'a Path,
+    /// The lemma file.
+    pub lemmas: &'a Path,
+    /// The LRAT proof.
+    pub proof: &'a Path,
+}
+
+/// Checks a certificate of the question `(n, p)` restricted to a cube: the
+/// proof must refute the skeleton's clauses, then one unit clause per
+/// literal of `cube` (DIMACS numbers of skeleton variables; ids `m + 1` to
+/// `m + k`), then the lemma clauses (lemma `r` has id `m + k + 1 + r`).
+/// With an empty cube this is the check of a whole certificate.
+///
+/// # Errors
+/// As [`check_dir`]; [`Error::Certificate`] for a cube literal that is not
+/// a skeleton variable.
+pub fn check_parts(
+    n: usize,
+    p: usize,
+    files: &CertificateFiles<'_>,
+    cube: &[i32],
+) -> Result<CertificateCheck> {
     let t0 = std::time::Instant::now();
-    let sk_path = dir.join(SKELETON);
-    let text = std::fs::read(&sk_path).map_err(|e| Error::io(&sk_path, e))?;
+    let sk_path = files.skeleton;
+    let text = std::fs::read(sk_path).map_err(|e| Error::io(sk_path, e))?;
     let text_str = String::from_utf8_lossy(&text);
     let (hn, hp, options) = skeleton::read_header(&text_str, &sk_path.display().to_string())?;
     if (hn, hp) != (n, p) {
@@ -140,25 +179,33 @@ pub fn check_dir(n: usize, p: usize, dir: &Path) -> Result<CertificateCheck> {
             sk_path.display()
         )));
     }
-    let lem_path = dir.join(LEMMAS);
-    let lem = std::fs::read_to_string(&lem_path).map_err(|e| Error::io(&lem_path, e))?;
+    let mut cnf: Cnf = sk.cnf.clone();
+    for &l in cube {
+        if l == 0 || l.unsigned_abs() > sk.cnf.num_vars() {
+            return Err(Error::Certificate(format!(
+                "the cube literal {l} is not a variable of the skeleton (1..={})",
+                sk.cnf.num_vars()
+            )));
+        }
+        cnf.add_clause(&[Lit::from_dimacs(l)]);
+    }
+    let lem_path = files.lemmas;
+    let lem = std::fs::read_to_string(lem_path).map_err(|e| Error::io(lem_path, e))?;
     let first_fact = sk.cnf.num_vars() as usize + 1;
     let (clauses, farkas) =
         farkas_check::check_lemmas(n, p, first_fact, &lem).map_err(|mut e| {
             e.file = lem_path.display().to_string();
             e
         })?;
-    let mut cnf: Cnf = sk.cnf.clone();
     for c in &clauses {
         let lits: Vec<Lit> = c.iter().map(|&l| Lit::from_dimacs(l)).collect();
         cnf.add_clause(&lits);
     }
-    let proof_path = dir.join(PROOF);
     let opts = LratOptions {
         ids_follow_cnf: true,
         format: None,
     };
-    let lrat = check_lrat_file(&cnf, &proof_path, &opts).map_err(|e| match e {
+    let lrat = check_lrat_file(&cnf, files.proof, &opts).map_err(|e| match e {
         crate::proof::lrat::LratFileError::Io { path, source } => Error::io(path, source),
         crate::proof::lrat::LratFileError::Rejected { source, .. } => Error::Proof(source),
     })?;

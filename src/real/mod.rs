@@ -25,6 +25,7 @@
 pub mod bench;
 pub mod bundle;
 pub mod certificate;
+pub mod cubes;
 pub mod farkas_check;
 pub mod lp;
 pub mod prooflog;
@@ -38,6 +39,8 @@ pub mod theory;
 mod tests;
 
 use std::path::{Path, PathBuf};
+use std::sync::Arc;
+use std::sync::atomic::AtomicBool;
 use std::time::{Duration, Instant};
 
 use serde::Serialize;
@@ -66,6 +69,9 @@ pub struct RealOptions {
     /// Hand the propositional endgame to an external solver; `None` (the
     /// default) searches with the bundled CDCL(T) only.
     pub handoff: Option<Handoff>,
+    /// Set by someone else to end the search early (it then ends unknown):
+    /// the threads of a run in cubes stop once one cube is feasible.
+    pub stop: Option<Arc<AtomicBool>>,
 }
 
 /// After some internal search, let an external DIMACS solver refute the
@@ -90,6 +96,7 @@ impl RealOptions {
             certificate_dir: None,
             patterns: true,
             handoff: None,
+            stop: None,
         }
     }
 }
@@ -159,6 +166,27 @@ pub fn decide(
     time: Option<Duration>,
     progress: &mut dyn FnMut(&Progress),
 ) -> Result<RealReport> {
+    decide_cube(n, p, &[], options, time, progress)
+}
+
+/// As [`decide`], restricted to the cube `cube` (DIMACS literals over the
+/// skeleton's variables, added as unit clauses after the skeleton's): a
+/// feasible answer is an orbit of the whole question, an infeasible one
+/// says only that no normalised cycle satisfies the cube. Its certificate
+/// is checked with [`certificate::check_parts`] and the cube's literals
+/// (`encodings/real-space.md` §9).
+///
+/// # Errors
+/// As [`decide`]; [`Error::Question`] for a cube literal that is not a
+/// skeleton variable, or a cube for period 1.
+pub fn decide_cube(
+    n: usize,
+    p: usize,
+    cube: &[i32],
+    options: &RealOptions,
+    time: Option<Duration>,
+    progress: &mut dyn FnMut(&Progress),
+) -> Result<RealReport> {
     let t0 = Instant::now();
     let mut report = RealReport {
         n,
@@ -174,6 +202,11 @@ pub fn decide(
         handoff_rounds: 0,
         handoff_seconds: 0.0,
     };
+    if p == 1 && !cube.is_empty() {
+        return Err(Error::Question(
+            "period 1 has no skeleton, so no cubes".into(),
+        ));
+    }
     if p == 1 && (1..=skeleton::MAX_DIM).contains(&n) {
         let orbit = vec![vec![0; n]];
         let check = check_orbit(&vec![(0, 0); n], &orbit)?;
@@ -181,6 +214,16 @@ pub fn decide(
         return Ok(report);
     }
     let sk = skeleton::build(n, p, &options.skeleton)?;
+    let mut cnf = sk.cnf.clone();
+    for &l in cube {
+        if l == 0 || l.unsigned_abs() > sk.cnf.num_vars() {
+            return Err(Error::Question(format!(
+                "the cube literal {l} is not a variable of the skeleton (1..={})",
+                sk.cnf.num_vars()
+            )));
+        }
+        cnf.add_clause(&[crate::cnf::Lit::from_dimacs(l)]);
+    }
     let mut atom = vec![None; sk.cnf.num_vars() as usize];
     for (v, m) in sk.map.iter() {
         if let Meaning::Tight { i, j, c } = *m {
@@ -188,19 +231,20 @@ pub fn decide(
         }
     }
     let th = theory::Theory::new(n, p);
-    let mut solver = sat::Solver::new(&sk.cnf, Some(th), atom, options.certify)?;
+    let mut solver = sat::Solver::new(&cnf, Some(th), atom, options.certify)?;
     solver.patterns = options.patterns;
+    solver.stop = options.stop.clone();
     let deadline = time.map(|t| t0 + t);
     let inner = match &options.handoff {
         Some(h) => Some(deadline.map_or(t0 + h.after, |d| d.min(t0 + h.after))),
         None => deadline,
     };
-    let mut outcome = solver.solve(&sk.cnf, inner, progress);
+    let mut outcome = solver.solve(&cnf, inner, progress);
     let mut handed = None;
     if let (sat::SatOutcome::Unknown(_), Some(h)) = (&outcome, &options.handoff)
         && deadline.is_none_or(|d| Instant::now() < d)
     {
-        let (o, dir) = handoff(&mut solver, &sk, h, options, deadline, &mut report)?;
+        let (o, dir) = handoff(&mut solver, &sk, &cnf, h, options, deadline, &mut report)?;
         outcome = o;
         handed = dir;
     }
@@ -228,7 +272,7 @@ pub fn decide(
         }
         sat::SatOutcome::Sat => {
             let model: Vec<bool> = (0..solver.num_vars()).map(|v| solver.value(v)).collect();
-            if let Some(k) = sk.cnf.first_falsified(&model) {
+            if let Some(k) = cnf.first_falsified(&model) {
                 return Err(Error::Solver {
                     solver: "real".into(),
                     reason: format!("the model falsifies skeleton clause {k}"),
@@ -254,7 +298,7 @@ pub fn decide(
                 .map(|d: &tempfile::TempDir| d.path().to_path_buf());
             let dir = options.certificate_dir.clone().or(dir).unwrap_or_default();
             write_files(&dir, &sk, &fact_table(&solver), solver.lemmas())?;
-            let check = certificate::check_dir(n, p, &dir)?;
+            let check = check_cube_dir(n, p, &dir, cube)?;
             report.check_seconds = t1.elapsed().as_secs_f64();
             RealAnswer::Infeasible {
                 check: Some(check),
@@ -281,7 +325,7 @@ pub fn decide(
                 }
             };
             write_certificate(dir, &sk, &facts, &lemmas, log)?;
-            let check = certificate::check_dir(n, p, dir)?;
+            let check = check_cube_dir(n, p, dir, cube)?;
             report.check_seconds = t1.elapsed().as_secs_f64();
             RealAnswer::Infeasible {
                 check: Some(check),
@@ -290,6 +334,16 @@ pub fn decide(
         }
     };
     Ok(report)
+}
+
+/// [`certificate::check_parts`] on the three files in `dir`.
+fn check_cube_dir(n: usize, p: usize, dir: &Path, cube: &[i32]) -> Result<CertificateCheck> {
+    let files = certificate::CertificateFiles {
+        skeleton: &dir.join(certificate::SKELETON),
+        lemmas: &dir.join(certificate::LEMMAS),
+        proof: &dir.join(certificate::PROOF),
+    };
+    certificate::check_parts(n, p, &files, cube)
 }
 
 /// The integer orbit read from the theory's profile and potentials, each
@@ -329,6 +383,7 @@ const REFINE_LEMMAS: usize = 200;
 fn handoff(
     solver: &mut sat::Solver,
     sk: &skeleton::Skeleton,
+    base: &crate::cnf::Cnf,
     h: &Handoff,
     options: &RealOptions,
     deadline: Option<Instant>,
@@ -344,7 +399,7 @@ fn handoff(
     std::fs::create_dir_all(&dir).map_err(|e| Error::io(&dir, e))?;
     loop {
         let facts = fact_table(solver);
-        let mut cnf = sk.cnf.clone();
+        let mut cnf = base.clone();
         for l in solver.lemmas() {
             let lits: Vec<crate::cnf::Lit> = certificate::lemma_lits(sk.n, sk.p, &facts, l)
                 .into_iter()

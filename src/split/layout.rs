@@ -74,7 +74,15 @@ impl LayoutChoice {
 /// `"{formula_sha256}\na LITS 0\n"`, so it changes with the formula and
 /// with the cube.
 pub fn compact_digest(formula_sha256: &str, cube: &Cube) -> String {
-    let lits: Vec<String> = cube.literals.iter().map(|l| l.to_string()).collect();
+    cube_digest(formula_sha256, &cube.literals)
+}
+
+/// The SHA-256 of `"{base_sha256}\na LITS 0\n"`: the digest of a cube
+/// given by its literals over a formula given by its digest (the compact
+/// layout's [`compact_digest`], and the cubes of a real-space split).
+pub fn cube_digest(base_sha256: &str, literals: &[i32]) -> String {
+    let formula_sha256 = base_sha256;
+    let lits: Vec<String> = literals.iter().map(|l| l.to_string()).collect();
     let line = if lits.is_empty() {
         "a 0".to_string()
     } else {

@@ -12,6 +12,8 @@
 //! - `mathdoc`: every `docs/math.md §n` cited in the repository exists there.
 //!
 //! - `render`: reports in LaTeX, SVG and HTML, read by pdflatex, resvg and Chromium.
+//! - `real_cubes`: the real question in cubes (`split --real`, `run-cube`,
+//!   `merge`, `decide --real --jobs`, GNU parallel).
 //! - `topical`: the topical map class (`--class topical`), published bound and brute force.
 //!
 //! No verdict is trusted alone: every feasible answer's orbit is verified.
@@ -28,6 +30,7 @@ mod proofs;
 mod published;
 mod real;
 mod real_cli;
+mod real_cubes;
 mod render;
 mod scaleout;
 mod spectrum;

@@ -110,7 +110,8 @@ fn real_space_flags_that_do_not_apply_are_refused() {
         .stderr_has("--grid");
     real(&dir, 2, 3, &["--symmetry", "none"]).error_with(&["--symmetry", "--real"]);
     real(&dir, 2, 3, &["--proof", "p.lrat"]).error_with(&["--proof", "--bundle"]);
-    real(&dir, 2, 3, &["--jobs", "2"]).error_with(&["--jobs"]);
+    real(&dir, 2, 3, &["--probe", "3"]).error_with(&["--probe"]);
+    real(&dir, 2, 3, &["--jobs", "0"]).error_with(&["--jobs", "at least 1"]);
     real(&dir, 0, 3, &[]).error_with(&["at least 1"]);
 }
 

@@ -117,6 +117,8 @@ pub struct Solver {
     cla_inc: f32,
     /// Add the two-atom cycle lemmas of [`Theory::pattern_lemmas`] before searching.
     pub patterns: bool,
+    /// Ends the search (unknown) once set, checked with the deadline.
+    pub stop: Option<std::sync::Arc<std::sync::atomic::AtomicBool>>,
     /// Counters.
     pub stats: SatStats,
 }
@@ -200,6 +202,7 @@ impl Solver {
             garbage: 0,
             cla_inc: 1.0,
             patterns: true,
+            stop: None,
             stats: SatStats::default(),
         };
         s.atom.resize(nvars, None);
@@ -814,6 +817,13 @@ impl Solver {
                     let now = Instant::now();
                     if deadline.is_some_and(|d| now >= d) {
                         return SatOutcome::Unknown("time limit reached".into());
+                    }
+                    if self
+                        .stop
+                        .as_ref()
+                        .is_some_and(|s| s.load(std::sync::atomic::Ordering::Relaxed))
+                    {
+                        return SatOutcome::Unknown("stopped: another cube answered".into());
                     }
                     if now.duration_since(last_report).as_secs_f64() >= 1.0 {
                         last_report = now;

@@ -1,0 +1,639 @@
+//! The real question cut into cubes, for many cores or machines
+//! (`encodings/real-space.md` §9).
+//!
+//! # Cubes
+//!
+//! A cube is a conjunction of literals over the skeleton's `T(i, j, c)`
+//! variables ([`super::skeleton`]): which coordinate and sign attain some
+//! pairs' distances. [`make_cubes`] grows a binary tree: each node is a set
+//! of literals closed under the skeleton's unit propagation; a node is split
+//! on the first variable of [`split_order`] that propagation leaves free
+//! (pairs `(0,1), (0,2), …, (0,p−1)`, then the other pairs in
+//! lexicographic order; in each pair, for `c = 0, 1, …`, `T(i,j,c)` then
+//! `T(j,i,c)`), and a child whose propagation meets a conflict is dropped.
+//! The node with the fewest literals (the first among equals) is split
+//! until there are at least the requested number of leaves or no node has
+//! a free variable left. The leaves, in tree order, are the cubes; a cube's
+//! literals are the decisions on its path (implied literals are left out).
+//!
+//! # Why the cubes cover every model
+//!
+//! How the cubes were chosen is not trusted. `coverage.cnf` is the
+//! skeleton's clauses followed by one clause `¬l_1 ∨ … ∨ ¬l_r` per cube
+//! ([`coverage_cnf`]); the bundled solver refutes it and orbitcnf's checker
+//! accepts the LRAT proof, when the split is written and again in every
+//! merge (against a coverage CNF rebuilt from the manifest's cube list). A
+//! model of the skeleton that satisfied no cube would satisfy
+//! `coverage.cnf`; so every model of the skeleton, in particular the truth
+//! assignment of every normalised cycle, satisfies some cube. A cube's
+//! certificate refutes the skeleton, its lemmas (true for every normalised
+//! cycle by the Farkas rule) and its literals as unit clauses. So if every
+//! cube is refuted, no normalised cycle exists, hence no cycle at all.
+//!
+//! # The folder
+//!
+//! `manifest.json` ([`RealSplitManifest`], format [`FORMAT`]: question,
+//! skeleton options, cube list with digests, the SHA-256 of every file),
+//! `skeleton.cnf`, `coverage.cnf`, `coverage.lrat`, and `results/` filled by
+//! [`run::run_cube`]. [`run::merge`] checks all of it; [`jobs`] runs the
+//! cubes on threads for `decide`.
+
+pub mod jobs;
+pub mod run;
+
+use std::path::Path;
+
+use serde::{Deserialize, Serialize};
+
+use super::bundle::RealQuestion;
+use super::skeleton::{self, Skeleton, SkeletonOptions};
+use crate::artifact::{FileEntry, sha256_hex, write_atomically};
+use crate::cnf::{Cnf, Lit, Var};
+use crate::dimacs::VERSION;
+use crate::error::{Error, Result};
+use crate::proof::{LratOptions, LratSummary};
+use crate::solve::refute::{CheckedProof, ProofPlan, recheck_file, solve_bundled};
+use crate::solve::{Limits, Outcome};
+use crate::split::layout::cube_digest;
+
+/// The manifest's file name.
+pub const MANIFEST: &str = "manifest.json";
+/// The skeleton, once for every cube.
+pub const SKELETON: &str = "skeleton.cnf";
+/// The coverage check.
+pub const COVERAGE: &str = "coverage.cnf";
+/// The coverage check's LRAT proof.
+pub const COVERAGE_PROOF: &str = "coverage.lrat";
+/// The folder of per-cube results.
+pub const RESULTS_DIR: &str = "results";
+/// The format tag of [`RealSplitManifest`] (a grid split's is `orbitcnf-split/…`).
+pub const FORMAT: &str = "orbitcnf-real-split/1";
+/// The most cubes a split makes (each costs a search and a certificate).
+pub const MAX_CUBES: usize = 1 << 20;
+/// The rule [`make_cubes`] follows, as the manifest names it.
+pub const RULE: &str = "witness-tree";
+
+/// A cube as the manifest lists it.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct RealCube {
+    /// Position in the cube list, from 0.
+    pub index: usize,
+    /// The literals (DIMACS numbers of `T(i, j, c)` variables), in tree order.
+    pub literals: Vec<i32>,
+    /// [`cube_digest`] of the skeleton's SHA-256 and the literals: what
+    /// results name, so that a result of another cube or skeleton is refused.
+    pub sha256: String,
+}
+
+/// The coverage check as the manifest records it.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct RealCoverage {
+    /// The coverage CNF.
+    pub cnf: FileEntry,
+    /// Its LRAT refutation, accepted by orbitcnf's checker when written.
+    pub proof: FileEntry,
+    /// Clauses taken from the skeleton (the rest are negated cubes).
+    pub skeleton_clauses: usize,
+    /// Steps of the accepted proof.
+    pub lrat_steps: u64,
+}
+
+/// How the cubes were chosen (informative; soundness rests on the coverage proof).
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct RealSplitRule {
+    /// [`RULE`].
+    pub rule: String,
+    /// The variable order, in words.
+    pub order: String,
+}
+
+/// `manifest.json` of a real-space split folder.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct RealSplitManifest {
+    /// [`FORMAT`].
+    pub format: String,
+    /// orbitcnf version that wrote the split.
+    pub orbitcnf_version: String,
+    /// The question, `{"space": "real", "dim": n, "period": p}`.
+    pub question: RealQuestion,
+    /// The skeleton's options.
+    pub options: SkeletonOptions,
+    /// The number of cubes asked for.
+    pub requested_cubes: usize,
+    /// How the cubes were chosen.
+    pub split: RealSplitRule,
+    /// `skeleton.cnf`.
+    pub skeleton: FileEntry,
+    /// The coverage check.
+    pub coverage: RealCoverage,
+    /// The cubes, in index order.
+    pub cubes: Vec<RealCube>,
+}
+
+/// The `T(i, j, c)` of a skeleton variable (DIMACS number), if it is one.
+pub fn tight_of(n: usize, p: usize, v: u32) -> Option<(usize, usize, usize)> {
+    if p < 2 {
+        return None;
+    }
+    let per = p * (p - 1);
+    let k = (v as usize).checked_sub(1)?;
+    if k >= n.checked_mul(per)? {
+        return None;
+    }
+    let (c, r) = (k / per, k % per);
+    let (i, col) = (r / (p - 1), r % (p - 1));
+    let j = if col < i { col } else { col + 1 };
+    Some((i, j, c))
+}
+
+/// A cube's literals in words: `T(0,2,1) ¬T(2,0,0)`, or `the whole question`.
+pub fn describe(n: usize, p: usize, literals: &[i32]) -> String {
+    if literals.is_empty() {
+        return "the whole question".into();
+    }
+    let words: Vec<String> = literals
+        .iter()
+        .map(|&l| {
+            let sign = if l < 0 { "¬" } else { "" };
+            match tight_of(n, p, l.unsigned_abs()) {
+                Some((i, j, c)) => format!("{sign}T({i},{j},{c})"),
+                None => format!("{l}"),
+            }
+        })
+        .collect();
+    words.join(" ")
+}
+
+/// The variables cubes branch on, in order (see the module documentation).
+pub fn split_order(n: usize, p: usize) -> Vec<Var> {
+    let first = (1..p).map(|k| (0, k));
+    let rest = skeleton::pairs(p).filter(|&(i, _)| i > 0);
+    first
+        .chain(rest)
+        .flat_map(|(i, j)| {
+            (0..n).flat_map(move |c| {
+                [
+                    skeleton::tight_var(n, p, i, j, c),
+                    skeleton::tight_var(n, p, j, i, c),
+                ]
+            })
+        })
+        .collect()
+}
+
+/// Unit propagation over a CNF with occurrence lists.
+struct Propagator<'a> {
+    cnf: &'a Cnf,
+    /// `occ[2v + s]`: the clauses holding the literal of `v` with sign `s`
+    /// (0 positive, 1 negative).
+    occ: Vec<Vec<u32>>,
+}
+
+fn slot(l: Lit) -> usize {
+    2 * l.var().index() + usize::from(!l.is_positive())
+}
+
+fn value(val: &[i8], l: Lit) -> i8 {
+    let v = val[l.var().index()];
+    if l.is_positive() { v } else { -v }
+}
+
+impl<'a> Propagator<'a> {
+    fn new(cnf: &'a Cnf) -> Self {
+        let mut occ = vec![Vec::new(); 2 * cnf.num_vars() as usize];
+        for (k, c) in cnf.clauses().enumerate() {
+            for &l in c {
+                occ[slot(l)].push(k as u32);
+            }
+        }
+        Propagator { cnf, occ }
+    }
+
+    /// Makes each literal of `queue` true and propagates; `false` on a conflict.
+    fn assign(&self, val: &mut [i8], mut queue: Vec<Lit>) -> bool {
+        while let Some(l) = queue.pop() {
+            match value(val, l) {
+                1 => continue,
+                -1 => return false,
+                _ => val[l.var().index()] = if l.is_positive() { 1 } else { -1 },
+            }
+            for &k in &self.occ[slot(!l)] {
+                let mut free = None;
+                let mut open = 0;
+                let mut sat = false;
+                for &m in self.cnf.clause(k as usize) {
+                    match value(val, m) {
+                        1 => {
+                            sat = true;
+                            break;
+                        }
+                        0 => {
+                            open += 1;
+                            free = Some(m);
+                        }
+                        _ => {}
+                    }
+                }
+                match (sat, open, free) {
+                    (true, _, _) => {}
+                    (false, 0, _) => return false,
+                    (false, 1, Some(m)) => queue.push(m),
+                    _ => {}
+                }
+            }
+        }
+        true
+    }
+}
+
+#[derive(Clone)]
+struct Node {
+    val: Vec<i8>,
+    lits: Vec<i32>,
+    /// No free variable is left: the node is a cube for good.
+    done: bool,
+}
+
+/// Free variables a node's look-ahead tries: the first ones in
+/// [`split_order`], so that choosing costs the same on every size.
+pub const LOOKAHEAD: usize = 64;
+
+/// How many variables are assigned in `val`.
+fn assigned(val: &[i8]) -> usize {
+    val.iter().filter(|&&v| v != 0).count()
+}
+
+/// The variable to split `node` on, by look-ahead: among the first
+/// [`LOOKAHEAD`] free variables of `order`, the one whose two values
+/// propagate the most (largest product of the two counts, the first among
+/// equals). A value that propagates to a conflict makes the other one
+/// implied: it is added to the node (not to its literals) and the choice
+/// starts again. `None` when the node is refuted so, or has no free
+/// variable (then `node.done`).
+fn choose(prop: &Propagator<'_>, node: &mut Node, order: &[Var]) -> Option<Option<Var>> {
+    'again: loop {
+        let base = assigned(&node.val);
+        let mut best: Option<(usize, Var)> = None;
+        for &v in order
+            .iter()
+            .filter(|v| node.val[v.index()] == 0)
+            .take(LOOKAHEAD)
+        {
+            let mut counts = [0usize; 2];
+            for (k, l) in [v.pos(), v.neg()].into_iter().enumerate() {
+                let mut val = node.val.clone();
+                if !prop.assign(&mut val, vec![l]) {
+                    if !prop.assign(&mut node.val, vec![!l]) {
+                        return None;
+                    }
+                    continue 'again;
+                }
+                counts[k] = assigned(&val) - base;
+            }
+            let score = counts[0] * counts[1];
+            if best.is_none_or(|(b, _)| score > b) {
+                best = Some((score, v));
+            }
+        }
+        if best.is_none() {
+            node.done = true;
+        }
+        return Some(best.map(|(_, v)| v));
+    }
+}
+
+/// The cubes for at least `target` cubes (fewer when the variables run
+/// out), as literal lists in tree order (see the module documentation).
+/// `target` 1 (or 0) gives one empty cube: the whole question.
+pub fn make_cubes(sk: &Skeleton, target: usize) -> Vec<Vec<i32>> {
+    let prop = Propagator::new(&sk.cnf);
+    let order = split_order(sk.n, sk.p);
+    let mut root = Node {
+        val: vec![0; sk.cnf.num_vars() as usize],
+        lits: Vec::new(),
+        done: false,
+    };
+    let units: Vec<Lit> = sk
+        .cnf
+        .clauses()
+        .filter(|c| c.len() == 1)
+        .map(|c| c[0])
+        .collect();
+    if !prop.assign(&mut root.val, units) {
+        return vec![Vec::new()];
+    }
+    let mut nodes = vec![root];
+    while nodes.len() < target {
+        let Some(k) = (0..nodes.len())
+            .filter(|&k| !nodes[k].done)
+            .min_by_key(|&k| nodes[k].lits.len())
+        else {
+            break;
+        };
+        let mut node = nodes.remove(k);
+        let v = match choose(&prop, &mut node, &order) {
+            None => continue,
+            Some(None) => {
+                nodes.insert(k, node);
+                continue;
+            }
+            Some(Some(v)) => v,
+        };
+        let mut children = Vec::with_capacity(2);
+        for l in [v.pos(), v.neg()] {
+            let mut c = node.clone();
+            c.lits.push(l.dimacs());
+            if prop.assign(&mut c.val, vec![l]) {
+                children.push(c);
+            }
+        }
+        nodes.splice(k..k, children);
+    }
+    nodes.into_iter().map(|n| n.lits).collect()
+}
+
+/// The coverage check: the skeleton's clauses, then the negation of every
+/// cube. Variables keep their numbers.
+pub fn coverage_cnf(sk: &Skeleton, cubes: &[Vec<i32>]) -> Cnf {
+    let mut cnf = sk.cnf.clone();
+    for c in cubes {
+        let neg: Vec<Lit> = c.iter().map(|&l| Lit::from_dimacs(-l)).collect();
+        cnf.add_clause(&neg);
+    }
+    cnf
+}
+
+/// The coverage CNF as plain DIMACS with comments saying what it is.
+pub fn render_coverage(sk: &Skeleton, cnf: &Cnf, cubes: usize) -> Vec<u8> {
+    use std::fmt::Write as _;
+    let m = sk.cnf.num_clauses();
+    let mut s = format!(
+        "c orbitcnf {VERSION} coverage check for the real-space split of R^{}, period {}\n\
+         c clauses 1..{m}: the clauses of skeleton.cnf\n\
+         c clauses {}..{}: the negation of cube 0, 1, ...; unsatisfiable iff every model of the skeleton lies in a cube\n\
+         p cnf {} {}\n",
+        sk.n,
+        sk.p,
+        m + 1,
+        m + cubes,
+        cnf.num_vars(),
+        cnf.num_clauses()
+    );
+    for c in cnf.clauses() {
+        for l in c {
+            let _ = write!(s, "{} ", l.dimacs());
+        }
+        s.push_str("0\n");
+    }
+    s.into_bytes()
+}
+
+/// Refutes the coverage CNF with the bundled solver and checks the proof.
+///
+/// # Errors
+/// [`Error::Solver`] when the CNF is satisfiable (a model of the skeleton
+/// in no cube: a bug in the cube generation) or the solver gives up;
+/// [`Error::Proof`] when the proof is rejected.
+pub fn refute_coverage(cnf: &Cnf) -> Result<CheckedProof> {
+    let r = solve_bundled(cnf, &Limits::default(), &ProofPlan::default(), None)?;
+    match r.outcome {
+        Outcome::Unsat => r.proof.ok_or_else(|| Error::Solver {
+            solver: "coverage check".into(),
+            reason: "no checked proof".into(),
+        }),
+        Outcome::Sat(_) => Err(Error::Solver {
+            solver: "coverage check".into(),
+            reason: "a model of the skeleton lies in no cube; no split was written".into(),
+        }),
+        Outcome::Unknown(why) => Err(Error::Solver {
+            solver: "coverage check".into(),
+            reason: why,
+        }),
+    }
+}
+
+/// Whether `dir` holds a real-space split: a manifest of format [`FORMAT`].
+pub fn is_real_split(dir: &Path) -> bool {
+    std::fs::read(dir.join(MANIFEST))
+        .ok()
+        .and_then(|b| serde_json::from_slice::<serde_json::Value>(&b).ok())
+        .is_some_and(|v| v["format"] == FORMAT)
+}
+
+impl RealSplitManifest {
+    /// Reads `dir/manifest.json`.
+    ///
+    /// # Errors
+    /// [`Error::Io`]; [`Error::Parse`] for another format, a question not
+    /// in real space, or cubes out of index order.
+    pub fn read(dir: &Path) -> Result<RealSplitManifest> {
+        let path = dir.join(MANIFEST);
+        let name = path.display().to_string();
+        let bytes = std::fs::read(&path).map_err(|e| Error::io(&path, e))?;
+        let m: RealSplitManifest = serde_json::from_slice(&bytes).map_err(|e| {
+            Error::parse(
+                &name,
+                e.line(),
+                format!("not a real-space split manifest: {e}"),
+            )
+        })?;
+        if m.format != FORMAT || m.question.space != "real" {
+            return Err(Error::file(
+                &name,
+                format!(
+                    "format {:?} for space {:?}; this orbitcnf reads {FORMAT:?} for \"real\"",
+                    m.format, m.question.space
+                ),
+            ));
+        }
+        if m.cubes.iter().enumerate().any(|(i, c)| c.index != i) {
+            return Err(Error::file(
+                &name,
+                "the cubes are not listed in index order",
+            ));
+        }
+        Ok(m)
+    }
+
+    /// What `split` wrote to `dir`, and what to do next, for people.
+    pub fn summary(&self, dir: &Path) -> String {
+        let d = dir.display();
+        let q = &self.question;
+        let longest = self.cubes.iter().map(|c| c.literals.len()).max();
+        format!(
+            "question     an isometric {}-cycle in (R^{}, sup-norm)\n\
+             cubes        {} (asked for {}), literals of the skeleton's witness variables T(i,j,c), at most {} per cube\n\
+             coverage     checked: LRAT proof of {} steps refutes coverage.cnf, so every model of the skeleton lies in a cube\n\
+             written      {d}/manifest.json, skeleton.cnf, coverage.cnf, coverage.lrat\n\
+             next         orbitcnf run-cube {d} INDEX   for INDEX in 0..{}   (docs/cluster.md)\n\
+             \x20            orbitcnf merge {d}\n",
+            q.period,
+            q.dim,
+            self.cubes.len(),
+            self.requested_cubes,
+            longest.unwrap_or(0),
+            self.coverage.lrat_steps,
+            self.cubes.len().saturating_sub(1),
+        )
+    }
+}
+
+/// Splits the real question `(n, p)` into at least `target` cubes (fewer
+/// when the variables run out) and writes the split folder `dir` (created
+/// if needed). A folder that already holds the same split keeps its
+/// results; its other files are written again (they are deterministic).
+///
+/// # Errors
+/// [`Error::Options`] for a target of 0 cubes or above [`MAX_CUBES`], or
+/// a folder that holds another split; [`Error::Question`] for sizes out of range; a failed
+/// coverage check; [`Error::Io`].
+pub fn write_split(
+    dir: &Path,
+    n: usize,
+    p: usize,
+    options: &SkeletonOptions,
+    target: usize,
+) -> Result<RealSplitManifest> {
+    if target == 0 || target > MAX_CUBES {
+        return Err(Error::Options(format!(
+            "a split needs at least one cube and at most {MAX_CUBES}, not {target}"
+        )));
+    }
+    let sk = skeleton::build(n, p, options)?;
+    let question = RealQuestion {
+        space: "real".into(),
+        dim: n,
+        period: p,
+    };
+    if dir.join(MANIFEST).exists() {
+        let old = RealSplitManifest::read(dir)?;
+        if old.question != question || &old.options != options || old.requested_cubes != target {
+            return Err(Error::Options(format!(
+                "{} already holds another split ({MANIFEST}); choose another folder or remove it",
+                dir.display()
+            )));
+        }
+    }
+    let cubes = make_cubes(&sk, target);
+    let coverage = coverage_cnf(&sk, &cubes);
+    let checked = refute_coverage(&coverage)?;
+    let proof = std::fs::read(checked.path()).map_err(|e| Error::io(checked.path(), e))?;
+    let results = dir.join(RESULTS_DIR);
+    std::fs::create_dir_all(&results).map_err(|e| Error::io(&results, e))?;
+    let put = |name: &str, bytes: &[u8]| -> Result<FileEntry> {
+        write_atomically(&dir.join(name), bytes)?;
+        Ok(FileEntry::of(name, bytes))
+    };
+    let skeleton_text = skeleton::render(&sk);
+    let skeleton_entry = put(SKELETON, &skeleton_text)?;
+    let cov = put(COVERAGE, &render_coverage(&sk, &coverage, cubes.len()))?;
+    let cov_proof = put(COVERAGE_PROOF, &proof)?;
+    let m = RealSplitManifest {
+        format: FORMAT.into(),
+        orbitcnf_version: VERSION.into(),
+        question,
+        options: options.clone(),
+        requested_cubes: target,
+        split: RealSplitRule {
+            rule: RULE.into(),
+            order: "T(i,j,c) then T(j,i,c) for c = 0..n-1, over the pairs (0,1)..(0,p-1), then \
+                    the other pairs i < j in lexicographic order; split the node with fewest \
+                    literals; propagate the skeleton's units; drop refuted children"
+                .into(),
+        },
+        coverage: RealCoverage {
+            cnf: cov,
+            proof: cov_proof,
+            skeleton_clauses: sk.cnf.num_clauses(),
+            lrat_steps: checked.info.lrat.steps,
+        },
+        cubes: cubes
+            .into_iter()
+            .enumerate()
+            .map(|(index, literals)| RealCube {
+                index,
+                sha256: cube_digest(&skeleton_entry.sha256, &literals),
+                literals,
+            })
+            .collect(),
+        skeleton: skeleton_entry,
+    };
+    let text = serde_json::to_string_pretty(&m).map_err(|e| Error::Options(e.to_string()))? + "\n";
+    write_atomically(&dir.join(MANIFEST), text.as_bytes())?;
+    Ok(m)
+}
+
+/// Re-checks a split against a fresh build: `skeleton.cnf` must be exactly
+/// the skeleton of the manifest's question and options, every cube's
+/// digest must match the skeleton's and its literals, every literal must
+/// be a `T` variable, and `coverage.lrat` must refute the coverage CNF
+/// rebuilt from the manifest's cube list. Returns the skeleton and the
+/// coverage proof's summary.
+///
+/// # Errors
+/// [`Error::Parse`] naming the file or cube that differs; [`Error::Proof`]
+/// for a rejected coverage proof (for instance, a cube left out of the
+/// manifest).
+pub fn verify_split(dir: &Path, m: &RealSplitManifest) -> Result<(Skeleton, LratSummary)> {
+    let q = &m.question;
+    let sk = skeleton::build(q.dim, q.period, &m.options)?;
+    let mpath = dir.join(MANIFEST).display().to_string();
+    let fresh = skeleton::render(&sk);
+    let on_disk = m.skeleton.read_checked(dir, MANIFEST)?;
+    if on_disk != fresh || m.skeleton.name != SKELETON {
+        return Err(Error::file(
+            dir.join(SKELETON).display().to_string(),
+            format!(
+                "differs from the skeleton this orbitcnf ({VERSION}) builds for the manifest's question and options"
+            ),
+        ));
+    }
+    let sha = sha256_hex(&fresh);
+    let tight_vars = (q.dim * q.period * (q.period - 1)) as u32;
+    for c in &m.cubes {
+        if let Some(&bad) = c
+            .literals
+            .iter()
+            .find(|l| **l == 0 || l.unsigned_abs() > tight_vars)
+        {
+            return Err(Error::file(
+                &mpath,
+                format!(
+                    "cube {} has the literal {bad}, not a T(i,j,c) variable",
+                    c.index
+                ),
+            ));
+        }
+        if c.sha256 != cube_digest(&sha, &c.literals) {
+            return Err(Error::file(
+                &mpath,
+                format!(
+                    "cube {}: its digest does not match the skeleton and its literals",
+                    c.index
+                ),
+            ));
+        }
+    }
+    let cubes: Vec<Vec<i32>> = m.cubes.iter().map(|c| c.literals.clone()).collect();
+    let coverage = coverage_cnf(&sk, &cubes);
+    let options = LratOptions {
+        ids_follow_cnf: true,
+        ..LratOptions::default()
+    };
+    let path = dir.join(COVERAGE_PROOF);
+    let stored = recheck_file(&coverage, &path, &options)?;
+    let summary = stored.check.map_err(|e| {
+        Error::file(
+            path.display().to_string(),
+            format!(
+                "does not refute the coverage CNF rebuilt from the manifest's {} cubes, so the \
+                 cubes are not known to cover the question: {e}",
+                m.cubes.len()
+            ),
+        )
+    })?;
+    Ok((sk, summary))
+}
+
+#[cfg(test)]
+mod tests;

@@ -1,8 +1,10 @@
 //! The benchmark: a fixed set of questions solved under several encodings in one run.
 //!
-//! Each case is solved with the default encoding, without the two-threshold
-//! profile clauses (`--no-nested`, the default before that family existed),
-//! without any profile exclusions (`--no-classes --no-nested`), with `--symmetry none`
+//! Each case is solved with the default encoding, without the biclique-cover
+//! clauses (`--no-bicliques`, the default before that family existed),
+//! without them and the two-threshold profile clauses (`--no-nested
+//! --no-bicliques`, the default before those), without any profile
+//! exclusions (`--no-classes --no-nested --no-bicliques`), with `--symmetry none`
 //! (redundant constraints kept) and with the plain reference encoding (no
 //! symmetry breaking, no redundant constraints), each under a time limit; the
 //! report prints time and conflicts per run and the ratios of the baselines to
@@ -79,7 +81,7 @@ pub fn cases(quick: bool) -> Vec<Case> {
 /// One solve of one case under one encoding.
 #[derive(Clone, Debug, Serialize)]
 pub struct Run {
-    /// The encoding's name: `default`, `no-nested`, `no-classes`,
+    /// The encoding's name: `default`, `no-bicliques`, `no-nested`, `no-classes`,
     /// `symmetry-none` or `plain`.
     pub encoding: String,
     /// The encoding resolves to the same options as the default on this
@@ -126,16 +128,25 @@ pub struct ProofCost {
     pub steps: u64,
 }
 
-/// The encodings compared: the default and four baselines (the default
-/// without the two-threshold profile clauses, without any profile
-/// exclusions, without symmetry breaking, and plain).
+/// The encodings compared: the default and five baselines (the default
+/// without the biclique-cover clauses, without those and the two-threshold
+/// profile clauses, without any profile exclusions, without symmetry
+/// breaking, and plain).
 pub fn encodings() -> Vec<(&'static str, EncodeOptions)> {
     vec![
         ("default", EncodeOptions::default()),
         (
+            "no-bicliques",
+            EncodeOptions {
+                bicliques: false,
+                ..EncodeOptions::default()
+            },
+        ),
+        (
             "no-nested",
             EncodeOptions {
                 nested: false,
+                bicliques: false,
                 ..EncodeOptions::default()
             },
         ),
@@ -144,6 +155,7 @@ pub fn encodings() -> Vec<(&'static str, EncodeOptions)> {
             EncodeOptions {
                 classes: false,
                 nested: false,
+                bicliques: false,
                 ..EncodeOptions::default()
             },
         ),
@@ -273,12 +285,15 @@ pub fn run_case(case: &Case, limit: Duration, baselines: bool) -> Result<Row> {
 /// The table header of [`format_row`].
 pub fn header() -> String {
     format!(
-        "{:<8} {:<11} {:>9} {:>10} {:>7} | {:>9} {:>10} {:>8} | {:>9} {:>10} {:>8} | {:>9} {:>10} {:>8} | {:>9} {:>10} {:>8} | {:>9} {:>8} {:>10}",
+        "{:<8} {:<11} {:>9} {:>10} {:>7} | {:>9} {:>10} {:>8} | {:>9} {:>10} {:>8} | {:>9} {:>10} {:>8} | {:>9} {:>10} {:>8} | {:>9} {:>10} {:>8} | {:>9} {:>8} {:>10}",
         "case",
         "verdict",
         "default s",
         "conflicts",
         "target",
+        "no-bicl",
+        "conflicts",
+        "ratio",
         "no-nest",
         "conflicts",
         "ratio",

@@ -714,10 +714,34 @@ mod tests {
             assert!(cubes.len() < 2 * target + 2, "{target}: {}", cubes.len());
             refute_coverage(&e, &coverage_cnf(&e, &cubes)).unwrap();
         }
-        // 36 binary necklaces of length 8 under the cyclic multiplier group: the leaders.
+        // 36 binary necklaces of length 8 under the cyclic multiplier group:
+        // the leaders; `biclique-cover` excludes all but 15 of them (each
+        // one dropped falsifies one of its clauses, checked here).
         let all = profile_cubes(&e, usize::MAX).unwrap();
         assert!(all.iter().all(|c| c.prefix.len() == 8));
-        assert_eq!(all.len(), 36);
+        assert_eq!(all.len(), 15);
+        let without = encode(
+            &e.question,
+            &EncodeOptions {
+                bicliques: false,
+                ..EncodeOptions::default()
+            },
+            u64::MAX,
+        )
+        .unwrap();
+        let leaders = profile_cubes(&without, usize::MAX).unwrap();
+        assert_eq!(leaders.len(), 36);
+        let range = family_range(&e, bicliques::FAMILY).unwrap();
+        for c in leaders
+            .iter()
+            .filter(|c| !all.iter().any(|a| a.prefix == c.prefix))
+        {
+            let units: Vec<Lit> = c.lits();
+            let falsified = range
+                .clone()
+                .any(|i| e.cnf.clause(i).iter().all(|l| units.contains(&!*l)));
+            assert!(falsified, "{:?} dropped but no clause falsified", c.prefix);
+        }
     }
 
     #[test]

@@ -96,8 +96,7 @@ pub fn applies_to(q: &Question) -> bool {
     q.class == MapClass::Nonexpansive
         && q.points.is_none()
         && q.grid.diameter() >= 1
-        && h >= 1
-        && h <= MAX_OFFSETS
+        && (1..=MAX_OFFSETS).contains(&h)
         && r < 64
         && (q.period as u128) > (1u128 << r)
 }
@@ -360,7 +359,10 @@ mod tests {
                             (a.contains(&x) && b.contains(&y)) || (a.contains(&y) && b.contains(&x))
                         })
                         .count();
-                    assert!(held <= 1, "p={p} mask={mask:b}: {a:?}×{b:?} holds {held} of {set:?}");
+                    assert!(
+                        held <= 1,
+                        "p={p} mask={mask:b}: {a:?}×{b:?} holds {held} of {set:?}"
+                    );
                 }
             }
         }
@@ -376,7 +378,11 @@ mod tests {
         let ruled = ruled_out(&x, false);
         assert!(!ruled.is_empty());
         for e in &ruled {
-            let named: u64 = e.far.iter().chain(&e.close).fold(0, |m, k| m | 1 << (k - 1));
+            let named: u64 = e
+                .far
+                .iter()
+                .chain(&e.close)
+                .fold(0, |m, k| m | 1 << (k - 1));
             let flipped = e.source ^ (!named & ((1 << 9) - 1));
             for mask in [e.source, flipped] {
                 assert!(e.far.iter().all(|k| (mask >> (k - 1)) & 1 == 1));
@@ -402,7 +408,10 @@ mod tests {
     fn on_the_five_cube_p_34_it_excludes_the_counted_profiles() {
         // 14,674 of the 16,460 lex-least profiles (counted by a separate
         // enumeration when the family was written).
-        assert_eq!(ruled_out(&q("-1..1,-1..1,-1..1,-1..1,-1..1", 34), false).len(), 14_674);
+        assert_eq!(
+            ruled_out(&q("-1..1,-1..1,-1..1,-1..1,-1..1", 34), false).len(),
+            14_674
+        );
     }
 
     #[test]
@@ -425,13 +434,17 @@ mod tests {
                 for cycle in crate::brute::all_cycles(g.ranges(), p, 400) {
                     let top = |k: usize| crate::brute::sup_distance(&cycle[0], &cycle[k]) == l;
                     for e in &ruled {
-                        let matches = e.far.iter().all(|&k| top(k)) && e.close.iter().all(|&k| !top(k));
+                        let matches =
+                            e.far.iter().all(|&k| top(k)) && e.close.iter().all(|&k| !top(k));
                         assert!(!matches, "{spec} p={p} {e:?}: {cycle:?}");
                     }
                     tested += 1;
                 }
             }
         }
-        assert!(tested > 500 && clauses > 20, "{tested} cycles, {clauses} clauses");
+        assert!(
+            tested > 500 && clauses > 20,
+            "{tested} cycles, {clauses} clauses"
+        );
     }
 }

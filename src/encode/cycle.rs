@@ -12,7 +12,9 @@
 use std::cell::OnceCell;
 
 use super::family::{Family, always};
-use super::{bicliques, classes, coords, count, distance, edges, packing, points, profile, symmetry, topical};
+use super::{
+    bicliques, classes, coords, count, distance, edges, packing, points, profile, symmetry, topical,
+};
 use crate::question::Question;
 
 /// The context the cycle families share: the question, and what two

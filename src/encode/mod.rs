@@ -278,9 +278,12 @@ pub fn encode(q: &Question, options: &EncodeOptions, max_clauses: u64) -> Result
             &o,
             max_clauses,
         ),
-        Formulation::TopicalCycle => {
-            run(cycle::TOPICAL_CYCLE, &cycle::Cycle::new(q, &o), &o, max_clauses)
-        }
+        Formulation::TopicalCycle => run(
+            cycle::TOPICAL_CYCLE,
+            &cycle::Cycle::new(q, &o),
+            &o,
+            max_clauses,
+        ),
         Formulation::FullMap => run(
             fullmap::FULL_MAP,
             &fullmap::FullMap::new(q),

@@ -475,6 +475,21 @@ fn wide_box(q: &QuestionFacts) -> bool {
             .is_some_and(|b| b.iter().any(|(lo, hi)| hi - lo >= 3))
 }
 
+/// Whether the family `biclique-cover` can act on `q` (a nonexpansive
+/// question on a box, [`crate::encode::bicliques::applies_to`]).
+fn bicliques_box(q: &QuestionFacts) -> bool {
+    if q.points.is_some() || q.class_name != "nonexpansive" {
+        return false;
+    }
+    let Some(bounds) = q.bounds.clone() else {
+        return false;
+    };
+    crate::grid::Grid::new(bounds)
+        .ok()
+        .and_then(|g| crate::question::Question::new(g, q.period).ok())
+        .is_some_and(|question| crate::encode::bicliques::applies_to(&question))
+}
+
 /// The flags that state the domain and class of `q` (not the period).
 fn domain_flags(q: &QuestionFacts) -> Vec<String> {
     let mut f = Vec::new();
@@ -503,8 +518,9 @@ fn domain_flags(q: &QuestionFacts) -> Vec<String> {
 /// The flags that rebuild the encoding options recorded in `options`.
 /// `wide` says that the question's box has a side of 3 or more, where an
 /// isometric-cycle encoding without `nested` was asked for without it (a
-/// header records `nested` only when it is on).
-fn option_flags(options: Option<&Value>, on_points: bool, wide: bool) -> Vec<String> {
+/// header records `nested` only when it is on); `cover` says the same of
+/// `bicliques` ([`bicliques_box`]).
+fn option_flags(options: Option<&Value>, on_points: bool, wide: bool, cover: bool) -> Vec<String> {
     let Some(o) = options else { return Vec::new() };
     let mut f = Vec::new();
     if let Some(sym) = o.get("symmetry").and_then(Value::as_object) {
@@ -535,6 +551,9 @@ fn option_flags(options: Option<&Value>, on_points: bool, wide: bool) -> Vec<Str
     let cycle = formulation.is_some_and(|s| s.starts_with("isometric-cycle"));
     if wide && cycle && o.get("nested").and_then(Value::as_bool) != Some(true) {
         f.push("--no-nested".into());
+    }
+    if cover && cycle && o.get("bicliques").and_then(Value::as_bool) != Some(true) {
+        f.push("--no-bicliques".into());
     }
     let full_map = formulation.is_some_and(|s| s.starts_with("full-map"));
     if full_map && !on_points {
@@ -588,6 +607,7 @@ pub fn recheck_answer(a: &Answer, origin: &Origin) -> Vec<(String, String)> {
                 a.options.as_ref(),
                 q.points.is_some(),
                 wide_box(q),
+                bicliques_box(q),
             ));
             enc.extend(["-o".into(), "formula.cnf".into()]);
             out.push((
@@ -615,6 +635,7 @@ pub fn recheck_answer(a: &Answer, origin: &Origin) -> Vec<(String, String)> {
             a.options.as_ref(),
             q.points.is_some(),
             wide_box(q),
+            bicliques_box(q),
         ));
         w.extend(["--bundle".into(), "bundle".into()]);
         out.push((

@@ -322,6 +322,17 @@ mod tests {
         }
     }
 
+    /// Without `biclique-cover`, whose excluded profiles have no cube (the
+    /// brute force counts lex-leaders only).
+    fn enc_without_bicliques(spec: &str, dim: usize, p: usize) -> Encoding {
+        let q = Question::new(Grid::parse(spec, Some(dim)).unwrap(), p).unwrap();
+        let o = EncodeOptions {
+            bicliques: false,
+            ..EncodeOptions::default()
+        };
+        encode(&q, &o, u64::MAX).unwrap()
+    }
+
     #[test]
     fn the_count_of_whole_profiles_is_the_number_of_full_profile_cubes() {
         for (spec, dim, p) in [
@@ -330,7 +341,7 @@ mod tests {
             ("0..3", 2, 7),
             ("0..3", 4, 17),
         ] {
-            let e = enc(spec, dim, p);
+            let e = enc_without_bicliques(spec, dim, p);
             let all = profile_cubes(&e, usize::MAX).unwrap();
             assert!(
                 all.iter()
@@ -343,17 +354,27 @@ mod tests {
         }
         // The figure of the 300 s experiment on {0,1,2,3}^4, p = 17.
         assert_eq!(
-            full_profile_count(&enc("0..3", 4, 17), usize::MAX),
+            full_profile_count(&enc_without_bicliques("0..3", 4, 17), usize::MAX),
             Some(834)
         );
+        // With `biclique-cover`, its excluded profiles get no cube.
+        for (spec, dim, p) in [("-1..1", 3, 9), ("-1..1", 4, 17), ("0..3", 4, 17)] {
+            let e = enc(spec, dim, p);
+            let all = profile_cubes(&e, usize::MAX).unwrap();
+            assert_eq!(full_profile_count(&e, usize::MAX), Some(all.len()));
+            assert!(all.len() < brute_count(&e), "{spec} {dim} {p}");
+        }
     }
 
     #[test]
     fn the_rule_takes_whole_profiles_below_the_cap_and_prefixes_above() {
         let small = choose_cubes(&enc("-1..1", 4, 17)).unwrap();
         assert_eq!(small.rule, "full-profile");
-        // {−1,0,1}^5, p = 34: 2^17 profiles, far more lex-leaders than the cap.
-        let big = enc("-1..1", 5, 34);
+        // {−1,0,1}^5, p = 34: 16,460 lex-leaders, far more than the cap;
+        // `biclique-cover` leaves 1,786 of them, one cube each.
+        let cover = enc("-1..1", 5, 34);
+        assert_eq!(full_profile_count(&cover, FULL_PROFILE_CAP), Some(1786));
+        let big = enc_without_bicliques("-1..1", 5, 34);
         assert_eq!(full_profile_count(&big, FULL_PROFILE_CAP), None);
         let c = choose_cubes(&big).unwrap();
         assert_eq!(c.rule, "breadth-first");

@@ -442,7 +442,13 @@ pub(crate) mod tests {
         // Keys are made from resolved options (`key_for`); on this grid
         // resolution leaves out `nested`, which the older stores never had.
         let nonexpansive = Question::from_record(&record(MapClass::Nonexpansive)).unwrap();
-        let options = EncodeOptions::default().resolve(&nonexpansive);
+        // `biclique-cover`, newer than those stores, acts on this question:
+        // the key of the formula without it is the old one.
+        let options = EncodeOptions {
+            bicliques: false,
+            ..EncodeOptions::default()
+        }
+        .resolve(&nonexpansive);
         assert_eq!(
             key(&record(MapClass::Nonexpansive), &options),
             "919a13f12f7ea9ba7fad8be039643be110cc2be1c86f0584daa814ef61caafc5"

@@ -67,7 +67,7 @@ pub const FAMILY: &str = "biclique-cover";
 
 /// The family acts only when the profile has at most this many offsets
 /// (`2^MAX_OFFSETS` top patterns are walked).
-pub const MAX_OFFSETS: usize = 17;
+pub const MAX_OFFSETS: usize = 18;
 
 /// Search nodes one top pattern may use before it is left without a clause.
 const NODE_BUDGET: u64 = 20_000;
@@ -398,7 +398,8 @@ mod tests {
         assert!(applies_to(&q("-1..1,-1..1,-1..1,-1..1", 17)));
         // One full coordinate of side 3: r = 1, so every p ≥ 3.
         assert!(applies_to(&q("0..3,0..1,0..1", 3)));
-        assert!(!applies_to(&q("-1..1,-1..1,-1..1,-1..1,-1..1", 36)));
+        assert!(applies_to(&q("-1..1,-1..1,-1..1,-1..1,-1..1", 37)));
+        assert!(!applies_to(&q("-1..1,-1..1,-1..1,-1..1,-1..1", 38)));
         let mut topical = q("-1..1,-1..1", 5);
         topical.class = MapClass::Topical;
         assert!(!applies_to(&topical));

@@ -120,7 +120,9 @@ pub fn ruled_out(q: &Question, with_images: bool) -> Vec<Exclusion> {
         let Some(pairs) = fooling_set(p, mask, need) else {
             continue;
         };
-        let x = exclusion(p, mask, &pairs);
+        let Some(x) = exclusion(p, mask, &pairs) else {
+            continue;
+        };
         if with_images {
             for map in &maps {
                 out.insert(image(&x, map));
@@ -250,7 +252,7 @@ fn grow(
 /// The partial pattern that makes `pairs` a fooling set under `mask`: their
 /// offsets far, and for every two of them and each placement one cross pair
 /// close (reusing offsets already named where possible).
-fn exclusion(p: usize, mask: u64, pairs: &[(usize, usize)]) -> Exclusion {
+fn exclusion(p: usize, mask: u64, pairs: &[(usize, usize)]) -> Option<Exclusion> {
     let far_set: BTreeSet<usize> = pairs.iter().map(|&(a, b)| fold(b + p - a, p)).collect();
     let mut close = BTreeSet::new();
     for (x, &(a, b)) in pairs.iter().enumerate() {
@@ -265,17 +267,21 @@ fn exclusion(p: usize, mask: u64, pairs: &[(usize, usize)]) -> Exclusion {
                     .filter(|&&(u, v)| !far(p, mask, u, v))
                     .map(|&(u, v)| fold(v + p - u, p))
                     .collect();
+                // Incompatible pairs always leave one cross pair close; if
+                // none were, the pairs would not be a fooling set, and the
+                // pattern gets no clause rather than an unsound one.
+                let first = closes.first()?;
                 if !closes.iter().any(|k| close.contains(k)) {
-                    close.insert(closes[0]);
+                    close.insert(*first);
                 }
             }
         }
     }
-    Exclusion {
+    Some(Exclusion {
         far: far_set.into_iter().collect(),
         close: close.into_iter().collect(),
         source: mask,
-    }
+    })
 }
 
 /// `x` relabelled by a multiplier map (offset `k` to `map[k]`).

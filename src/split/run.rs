@@ -330,6 +330,28 @@ pub struct Pending {
     pub reason: String,
 }
 
+/// The result that `read` gave for cube `index`, or `None` after adding to
+/// `pending` why there is none: `missing` without a result file, `rejected`
+/// when the file cannot be read. Shared by the merges of grid and real
+/// folders.
+pub fn result_or_pending<R>(
+    read: Result<Option<R>>,
+    index: usize,
+    pending: &mut Vec<Pending>,
+) -> Option<R> {
+    let (state, reason) = match read {
+        Ok(Some(r)) => return Some(r),
+        Ok(None) => ("missing", "no result file".to_string()),
+        Err(e) => ("rejected", e.to_string()),
+    };
+    pending.push(Pending {
+        index,
+        state: state.into(),
+        reason,
+    });
+    None
+}
+
 /// What backs a merged verdict.
 #[derive(Clone, Debug, PartialEq, Serialize)]
 #[serde(tag = "kind", rename_all = "kebab-case")]
@@ -567,18 +589,8 @@ pub fn merge(
             state: state.into(),
             reason,
         };
-        let r = match read_result(dir, i) {
-            Ok(Some(r)) => r,
-            Ok(None) => {
-                report
-                    .pending
-                    .push(pending("missing", "no result file".into()));
-                continue;
-            }
-            Err(e) => {
-                report.pending.push(pending("rejected", e.to_string()));
-                continue;
-            }
+        let Some(r) = result_or_pending(read_result(dir, i), i, &mut report.pending) else {
+            continue;
         };
         report.solve_seconds += r.seconds;
         if r.cube_sha256 != entry.digest() {

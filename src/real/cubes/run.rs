@@ -28,7 +28,7 @@ use crate::proof::LratSummary;
 use crate::real::certificate::{self, CertificateFiles, check_parts};
 use crate::real::{Progress, RealAnswer, RealOptions, decide_cube};
 use crate::report::Verdict;
-use crate::split::run::{CubeStatus, Pending};
+use crate::split::run::{CubeStatus, Pending, result_or_pending};
 use crate::verify::{OrbitCheck, check_orbit};
 
 /// The format tag of [`RealCubeResult`].
@@ -453,18 +453,8 @@ pub fn merge(dir: &Path, accept_claims: bool) -> Result<RealMergeReport> {
             state: state.into(),
             reason,
         };
-        let r = match read_result(dir, i) {
-            Ok(Some(r)) => r,
-            Ok(None) => {
-                report
-                    .pending
-                    .push(pending("missing", "no result file".into()));
-                continue;
-            }
-            Err(e) => {
-                report.pending.push(pending("rejected", e.to_string()));
-                continue;
-            }
+        let Some(r) = result_or_pending(read_result(dir, i), i, &mut report.pending) else {
+            continue;
         };
         report.solve_seconds += r.seconds;
         if r.cube_sha256 != cube.sha256 {

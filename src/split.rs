@@ -63,7 +63,8 @@ use crate::artifact::write_atomically;
 use crate::cnf::{Cnf, FamilyCount, Lit};
 use crate::dimacs::{VERSION, render_cnf};
 use crate::encode::{
-    EncodeOptions, Encoding, Formulation, bicliques, encode, fullmap, profile, symmetry,
+    EncodeOptions, Encoding, Formulation, bicliques, classes, encode, fullmap, gaps, profile,
+    subbox, symmetry,
 };
 use crate::error::{Error, Result};
 use crate::question::Question;
@@ -153,50 +154,126 @@ pub fn prefix_survives(prefix: &[i64], maps: &[Vec<usize>], k_max: usize) -> boo
     })
 }
 
-/// The top patterns that the `biclique-cover` clauses of `enc` exclude, as
-/// pairs `(far, close)` of offset masks (bit `k − 1` for offset `k`): a
-/// whole profile whose offsets at the diameter form the mask `T` falsifies
-/// the clause when `T` holds all of `far` and none of `close`. Read from
-/// the formula itself, so the cubes drop exactly what its clauses exclude.
-pub fn top_exclusions(enc: &Encoding) -> Vec<(u64, u64)> {
-    let l = enc.question.grid.diameter() as i64;
-    let Some(range) = family_range(enc, bicliques::FAMILY) else {
-        return Vec::new();
-    };
-    range
-        .filter_map(|i| {
-            let (mut far, mut close) = (0u64, 0u64);
-            for lit in enc.cnf.clause(i) {
-                match enc.map.meaning(lit.var()) {
-                    Some(Meaning::Profile { k, value }) if *value == l && (1..=64).contains(k) => {
-                        if !lit.is_positive() {
-                            far |= 1 << (k - 1);
-                        } else {
-                            close |= 1 << (k - 1);
-                        }
-                    }
-                    _ => return None,
-                }
-            }
-            Some((far, close))
-        })
-        .collect()
+/// The families whose clauses speak of the profile alone, so that a whole
+/// profile either satisfies or falsifies each of them.
+pub const PROFILE_EXCLUSION_FAMILIES: &[&str] = &[
+    classes::FAMILY,
+    classes::FAMILY_NESTED,
+    gaps::FAMILY,
+    bicliques::FAMILY,
+    subbox::FAMILY,
+];
+
+/// One clause of a profile-exclusion family, as masks per threshold (bit
+/// `k − 1` for offset `k`): a whole profile `g` falsifies it when, at every
+/// listed threshold `t`, `g(k) ≥ t` for each `k` of `ge` and `g(k) < t` for
+/// each `k` of `lt`.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct ProfileExclusion {
+    /// `(t, ge, lt)` for each threshold the clause names.
+    pub parts: Vec<(i64, u64, u64)>,
 }
 
-/// Whether the whole profile `values` (`g(1..)`, at most 64 offsets)
-/// falsifies one of the `exclusions` ([`top_exclusions`]) at diameter `l`.
-pub fn profile_excluded(values: &[i64], l: i64, exclusions: &[(u64, u64)]) -> bool {
-    if exclusions.is_empty() || values.len() > 64 {
-        return false;
+/// The clauses of `enc`'s [`PROFILE_EXCLUSION_FAMILIES`] as
+/// [`ProfileExclusion`]s, read from the formula itself, so that the cubes
+/// drop exactly what its clauses exclude. A clause that names anything but
+/// a profile variable of an offset up to 64 is left out (never the case for
+/// formulas `encode` writes).
+pub fn profile_exclusions(enc: &Encoding) -> Vec<ProfileExclusion> {
+    let mut out = Vec::new();
+    for family in PROFILE_EXCLUSION_FAMILIES {
+        let Some(range) = family_range(enc, family) else {
+            continue;
+        };
+        out.extend(range.filter_map(|i| {
+            let mut parts: Vec<(i64, u64, u64)> = Vec::new();
+            for lit in enc.cnf.clause(i) {
+                let Some(Meaning::Profile { k, value }) = enc.map.meaning(lit.var()) else {
+                    return None;
+                };
+                if !(1..=64).contains(k) {
+                    return None;
+                }
+                let at = match parts.iter().position(|p| p.0 == *value) {
+                    Some(at) => at,
+                    None => {
+                        parts.push((*value, 0, 0));
+                        parts.len() - 1
+                    }
+                };
+                // ¬G[k,t] is false when g(k) ≥ t; G[k,t] when g(k) < t.
+                if lit.is_positive() {
+                    parts[at].2 |= 1 << (k - 1);
+                } else {
+                    parts[at].1 |= 1 << (k - 1);
+                }
+            }
+            Some(ProfileExclusion { parts })
+        }));
     }
-    let top = values
-        .iter()
-        .enumerate()
-        .filter(|&(_, &v)| v == l)
-        .fold(0u64, |m, (k0, _)| m | 1 << k0);
-    exclusions
-        .iter()
-        .any(|&(far, close)| top & far == far && top & close == 0)
+    out
+}
+
+/// The profile exclusions indexed by their last offset, so that a walk over
+/// prefixes of the profile tests each clause once, as soon as the prefix
+/// decides it: a prefix `g(1..j)` that falsifies a clause whose offsets all
+/// lie in `1..=j` is falsified by every completion, so its whole subtree has
+/// no cube.
+#[derive(Clone, Debug, Default)]
+pub struct ExclusionIndex {
+    by_last: Vec<Vec<ProfileExclusion>>,
+}
+
+impl ExclusionIndex {
+    /// Indexes `exclusions` ([`profile_exclusions`]); a clause with no
+    /// literal (never written) is left out.
+    pub fn new(exclusions: Vec<ProfileExclusion>) -> ExclusionIndex {
+        let mut by_last: Vec<Vec<ProfileExclusion>> = vec![Vec::new(); 65];
+        for x in exclusions {
+            let all = x.parts.iter().fold(0u64, |m, &(_, ge, lt)| m | ge | lt);
+            if all != 0 {
+                by_last[64 - all.leading_zeros() as usize].push(x);
+            }
+        }
+        ExclusionIndex { by_last }
+    }
+
+    /// The number of clauses whose last offset is `j`.
+    pub fn count_at(&self, j: usize) -> usize {
+        self.by_last.get(j).map_or(0, Vec::len)
+    }
+
+    /// Whether the prefix `values` (`g(1..=j)`, `j ≤ 64`) falsifies one of
+    /// the clauses whose last offset is `j`.
+    pub fn falsified_at_end(&self, values: &[i64]) -> bool {
+        let Some(list) = self.by_last.get(values.len()) else {
+            return false;
+        };
+        if list.is_empty() {
+            return false;
+        }
+        let at_least = |t: i64| {
+            values
+                .iter()
+                .enumerate()
+                .filter(|&(_, &v)| v >= t)
+                .fold(0u64, |m, (k0, _)| m | 1 << k0)
+        };
+        let top = values.iter().copied().max().unwrap_or(0).max(0);
+        let masks: Vec<u64> = (0..=top + 1).map(at_least).collect();
+        let mask = |t: i64| masks[t.clamp(0, top + 1) as usize];
+        list.iter().any(|x| {
+            x.parts
+                .iter()
+                .all(|&(t, ge, lt)| mask(t) & ge == ge && mask(t) & lt == 0)
+        })
+    }
+
+    /// Whether the whole profile (or prefix) `values` falsifies any indexed
+    /// clause whose offsets all lie within it.
+    pub fn falsified(&self, values: &[i64]) -> bool {
+        (1..=values.len().min(64)).any(|j| self.falsified_at_end(&values[..j]))
+    }
 }
 
 /// The literals saying `g(k) = value`, with `1 ≤ value ≤ L`, as the encoding's variables.
@@ -235,7 +312,7 @@ pub fn profile_cubes(enc: &Encoding, target: usize) -> Result<Vec<Cube>> {
         Vec::new()
     };
     let target = target.max(1);
-    let excluded = top_exclusions(enc);
+    let excluded = ExclusionIndex::new(profile_exclusions(enc));
     let mut prefixes: Vec<Vec<i64>> = vec![Vec::new()];
     // One pass per level: the shortest prefixes are replaced by their
     // extensions from left to right until the target is reached, as one
@@ -260,7 +337,7 @@ pub fn profile_cubes(enc: &Encoding, target: usize) -> Result<Vec<Cube>> {
                         c
                     })
                     .filter(|c| prefix_survives(c, &maps, k_max))
-                    .filter(|c| c.len() < k_max || !profile_excluded(c, l, &excluded)),
+                    .filter(|c| !excluded.falsified_at_end(c)),
             );
             count = count + (next.len() - before) - 1;
         }
@@ -363,7 +440,15 @@ pub fn coverage_sources(enc: &Encoding) -> Vec<usize> {
     let families: &[&str] = if enc.options.formulation == Formulation::FullMap {
         &[fullmap::orbit::FAMILY_PLACE, fullmap::symmetry::ISOMETRY]
     } else {
-        &[profile::FAMILY, symmetry::MULTIPLIER, bicliques::FAMILY]
+        &[
+            profile::FAMILY,
+            symmetry::MULTIPLIER,
+            classes::FAMILY,
+            classes::FAMILY_NESTED,
+            gaps::FAMILY,
+            bicliques::FAMILY,
+            subbox::FAMILY,
+        ]
     };
     families
         .iter()
@@ -702,27 +787,35 @@ mod tests {
         let e = enc("-1..1", 2, 5);
         let cubes = profile_cubes(&e, 10).unwrap();
         let prefixes: Vec<Vec<i64>> = cubes.iter().map(|c| c.prefix.clone()).collect();
-        assert_eq!(prefixes, vec![vec![1, 1], vec![1, 2], vec![2, 2]]);
+        // (1, 1), five points pairwise at distance 1, falsifies a
+        // `pack-classes` clause (one corner box holds four), so it gets no cube.
+        assert_eq!(prefixes, vec![vec![1, 2], vec![2, 2]]);
     }
 
     #[test]
     fn refinement_stops_at_the_requested_count() {
         let e = enc("-1..1", 4, 17);
-        for target in [1, 2, 5, 8, 16, 30] {
+        for target in [1, 2, 5, 8, 12, 30] {
             let cubes = profile_cubes(&e, target).unwrap();
-            assert!(cubes.len() >= target, "{target}: {}", cubes.len());
+            // Only 14 whole profiles survive (below), so 30 is out of reach:
+            // the refinement then stops at the whole profiles.
+            assert!(cubes.len() >= target.min(14), "{target}: {}", cubes.len());
             assert!(cubes.len() < 2 * target + 2, "{target}: {}", cubes.len());
             refute_coverage(&e, &coverage_cnf(&e, &cubes)).unwrap();
         }
         // 36 binary necklaces of length 8 under the cyclic multiplier group:
-        // the leaders; `biclique-cover` excludes all but 15 of them (each
-        // one dropped falsifies one of its clauses, checked here).
+        // the leaders; the profile exclusions (`biclique-cover`, and
+        // `pack-classes` for "every distance 1") leave 14 of them (each one
+        // dropped falsifies one of their clauses, checked here).
         let all = profile_cubes(&e, usize::MAX).unwrap();
         assert!(all.iter().all(|c| c.prefix.len() == 8));
-        assert_eq!(all.len(), 15);
+        assert_eq!(all.len(), 14);
         let without = encode(
             &e.question,
             &EncodeOptions {
+                classes: false,
+                nested: false,
+                subbox: false,
                 bicliques: false,
                 ..EncodeOptions::default()
             },
@@ -731,15 +824,50 @@ mod tests {
         .unwrap();
         let leaders = profile_cubes(&without, usize::MAX).unwrap();
         assert_eq!(leaders.len(), 36);
-        let range = family_range(&e, bicliques::FAMILY).unwrap();
-        for c in leaders
+        dropped_profiles_falsify_a_clause(&e, &without);
+        // On {0,1,2,3}^3, p = 9, `sub-box` drops profiles too.
+        let e = enc("0..3", 3, 9);
+        let without = encode(
+            &e.question,
+            &EncodeOptions {
+                subbox: false,
+                ..EncodeOptions::default()
+            },
+            u64::MAX,
+        )
+        .unwrap();
+        let (with, all) = (
+            profile_cubes(&e, usize::MAX).unwrap(),
+            profile_cubes(&without, usize::MAX).unwrap(),
+        );
+        assert!(with.len() < all.len(), "{} {}", with.len(), all.len());
+        dropped_profiles_falsify_a_clause(&e, &without);
+    }
+
+    /// Every whole profile that has a cube under `without` but none under
+    /// `e` falsifies a clause of one of `e`'s profile-exclusion families.
+    fn dropped_profiles_falsify_a_clause(e: &Encoding, without: &Encoding) {
+        let kept = profile_cubes(e, usize::MAX).unwrap();
+        let ranges: Vec<_> = PROFILE_EXCLUSION_FAMILIES
             .iter()
-            .filter(|c| !all.iter().any(|a| a.prefix == c.prefix))
+            .filter_map(|f| family_range(e, f))
+            .collect();
+        for c in profile_cubes(without, usize::MAX)
+            .unwrap()
+            .iter()
+            .filter(|c| !kept.iter().any(|a| a.prefix == c.prefix))
         {
-            let units: Vec<Lit> = c.lits();
-            let falsified = range
-                .clone()
-                .any(|i| e.cnf.clause(i).iter().all(|l| units.contains(&!*l)));
+            // Each literal read through the variable map, on the whole profile.
+            let false_on_profile = |l: &Lit| match e.map.meaning(l.var()) {
+                Some(Meaning::Profile { k, value }) => {
+                    (c.prefix[k - 1] >= *value) != l.is_positive()
+                }
+                _ => false,
+            };
+            let falsified = ranges.iter().any(|r| {
+                r.clone()
+                    .any(|i| e.cnf.clause(i).iter().all(false_on_profile))
+            });
             assert!(falsified, "{:?} dropped but no clause falsified", c.prefix);
         }
     }

@@ -236,6 +236,21 @@ pub struct EncodingArgs {
     /// biclique-cover.
     #[arg(long)]
     pub no_bicliques: bool,
+    /// Leave out the sub-box exclusions (on by default on boxes whose
+    /// diameter L is 3 or more): a cycle with every distance at most m < L
+    /// fits in a box of side m, so the profile exclusions of that smaller
+    /// box (pack-classes, pack-nested, pack-gap, biclique-cover, each as
+    /// switched)
+    /// hold for it; see encodings/redundant.md, sub-box.
+    #[arg(long = "no-sub-box")]
+    pub no_subbox: bool,
+    /// Leave out the gap exclusions (on by default on boxes whose diameter
+    /// is 3 or more): when the offsets with distance at most t are the
+    /// multiples of d and all others are more than T > t apart, the classes
+    /// fit windows of side t and meet disjoint windows of side T, which
+    /// bounds d; see encodings/redundant.md, pack-gap.
+    #[arg(long)]
+    pub no_gaps: bool,
     /// The formulation: `cycle` (isometric cycles; boxes only; the default
     /// on boxes) or `full-map` (the whole map f: D → D; the only one for
     /// --points, and available on boxes for comparison).
@@ -283,6 +298,8 @@ impl EncodingArgs {
             classes: !self.no_classes,
             nested: !self.no_nested,
             bicliques: !self.no_bicliques,
+            subbox: !self.no_subbox,
+            gaps: !self.no_gaps,
             ..base
         })
     }

@@ -58,7 +58,8 @@
 
 use std::collections::BTreeSet;
 
-use super::{Encoder, Term, profile, symmetry};
+use super::profile::ProfileLit;
+use super::{Encoder, profile, symmetry};
 use crate::cnf::Size;
 use crate::question::{MapClass, Question};
 
@@ -307,15 +308,19 @@ pub fn size(ruled: &[Exclusion]) -> Size {
     }
 }
 
-/// Adds one clause per exclusion.
+/// The clause of one exclusion on a box of diameter `l`:
+/// `⋁_{k ∈ far} ¬G[k, l] ∨ ⋁_{k ∈ close} G[k, l]`.
+pub fn clause(l: i64, x: &Exclusion) -> Vec<ProfileLit> {
+    let far = x.far.iter().map(|&k| ProfileLit::lt(k, l));
+    let close = x.close.iter().map(|&k| ProfileLit::ge(k, l));
+    far.chain(close).collect()
+}
+
+/// Adds one clause per exclusion ([`clause`]).
 pub fn add(e: &mut Encoder, q: &Question, ruled: &[Exclusion]) {
     let l = q.grid.diameter() as i64;
-    for x in ruled {
-        let mut terms: Vec<Term> = Vec::with_capacity(x.far.len() + x.close.len());
-        terms.extend(x.far.iter().map(|&k| !profile::ge(e, q, k, l)));
-        terms.extend(x.close.iter().map(|&k| profile::ge(e, q, k, l)));
-        e.clause(&terms);
-    }
+    let clauses: Vec<Vec<ProfileLit>> = ruled.iter().map(|x| clause(l, x)).collect();
+    profile::add_clauses(e, q, &clauses);
 }
 
 #[cfg(test)]

@@ -77,6 +77,7 @@
 //! `c_2(17) ≤ 16 = W_2` there, so `pack-classes` misses it. Soundness as
 //! above: each clause negates a pattern no isometric cycle has.
 
+use super::profile::ProfileLit;
 use super::{Encoder, packing, profile};
 use crate::cnf::Size;
 use crate::question::Question;
@@ -162,25 +163,29 @@ pub fn far_packing(g: &crate::grid::Grid, t: u64, u: u64) -> u64 {
         .fold(1u64, |acc, x| acc.saturating_mul(x))
 }
 
-/// Adds one clause per pattern of [`ruled_out`], given as `ruled`:
+/// The clause that excludes the pattern `x` in a `p`-cycle:
 /// `⋁_{d∤k} ¬G[k,t+1] ∨ ⋁_{d|k} (G[k,t+1] ∨ ¬G[k,u+1])`, the last literal
 /// only when `u ≥ 1`.
-pub fn add(e: &mut Encoder, q: &Question, ruled: &[Excluded]) {
-    for x in ruled {
-        let mut clause = Vec::new();
-        for k in 1..=q.period / 2 {
-            let far = profile::ge(e, q, k, x.t as i64 + 1);
-            if k % x.d != 0 {
-                clause.push(!far);
-                continue;
-            }
-            clause.push(far);
-            if x.u >= 1 {
-                clause.push(!profile::ge(e, q, k, x.u as i64 + 1));
-            }
+pub fn clause(p: usize, x: &Excluded) -> Vec<ProfileLit> {
+    let (t, u) = (x.t as i64, x.u as i64);
+    let mut clause = Vec::new();
+    for k in 1..=p / 2 {
+        if k % x.d != 0 {
+            clause.push(ProfileLit::lt(k, t + 1));
+            continue;
         }
-        e.clause(&clause);
+        clause.push(ProfileLit::ge(k, t + 1));
+        if u >= 1 {
+            clause.push(ProfileLit::lt(k, u + 1));
+        }
     }
+    clause
+}
+
+/// Adds one clause per pattern of [`ruled_out`], given as `ruled` ([`clause`]).
+pub fn add(e: &mut Encoder, q: &Question, ruled: &[Excluded]) {
+    let clauses: Vec<Vec<ProfileLit>> = ruled.iter().map(|x| clause(q.period, x)).collect();
+    profile::add_clauses(e, q, &clauses);
 }
 
 /// As [`classes_meet_at_least`], for sets of points that are also pairwise
@@ -277,6 +282,21 @@ fn far_fewer_exist(
 /// a window meet fewer, when no window holds `s` points is `true`, and
 /// `false` as well when the search exceeds its budget (unproven).
 pub fn classes_meet_at_least(sets: &[Vec<u32>], windows: u64, s: usize, need: u64) -> bool {
+    meet_at_least((sets, windows), (sets, windows), s, need)
+}
+
+/// As [`classes_meet_at_least`] with two kinds of windows: whether every
+/// `s` distinct grid points that lie in one window of `inner` meet at least
+/// `need` windows of `outer` together. Each is `(sets, windows)`: for every
+/// grid point the sorted indices of the windows containing it, and their
+/// number. `false` when fewer is possible or the budget runs out.
+pub fn meet_at_least(
+    inner: (&[Vec<u32>], u64),
+    outer: (&[Vec<u32>], u64),
+    s: usize,
+    need: u64,
+) -> bool {
+    let ((inner_sets, inner_windows), (sets, windows)) = (inner, outer);
     if need <= 1 || s == 0 {
         return need <= 1;
     }
@@ -294,8 +314,8 @@ pub fn classes_meet_at_least(sets: &[Vec<u32>], windows: u64, s: usize, need: u6
     // The budget counts words of stored unions, so memory stays bounded
     // (about 100 MB at most) however many windows the grid has.
     let mut budget = SEARCH_BUDGET / words.max(1) as u64;
-    for w0 in 0..windows as u32 {
-        let inside = points_inside(sets, w0);
+    for w0 in 0..inner_windows as u32 {
+        let inside = points_inside(inner_sets, w0);
         if inside.len() < s {
             continue;
         }

@@ -13,7 +13,8 @@ use std::cell::OnceCell;
 
 use super::family::{Family, always};
 use super::{
-    bicliques, classes, coords, count, distance, edges, packing, points, profile, symmetry, topical,
+    bicliques, classes, coords, count, distance, edges, gaps, packing, points, profile, subbox,
+    symmetry, topical,
 };
 use crate::question::Question;
 
@@ -30,6 +31,10 @@ pub struct Cycle {
     /// exclusions: unless the profile takes two values and the multiplier
     /// break is on (see [`bicliques`]).
     bicliques_images: bool,
+    subbox: OnceCell<Vec<Vec<profile::ProfileLit>>>,
+    gaps: OnceCell<Vec<gaps::Gap>>,
+    /// What `sub-box` carries over from the sub-boxes.
+    carried: subbox::Carried,
 }
 
 impl Cycle {
@@ -41,6 +46,15 @@ impl Cycle {
             stabilizer: OnceCell::new(),
             ruled_out: OnceCell::new(),
             bicliques: OnceCell::new(),
+            subbox: OnceCell::new(),
+            gaps: OnceCell::new(),
+            carried: subbox::Carried {
+                classes: o.classes,
+                nested: o.nested,
+                bicliques: o.bicliques,
+                gaps: o.gaps,
+                multiplier: o.symmetry.multiplier,
+            },
         }
     }
 
@@ -63,6 +77,20 @@ impl Cycle {
     pub fn bicliques(&self) -> &[bicliques::Exclusion] {
         self.bicliques
             .get_or_init(|| bicliques::ruled_out(&self.q, self.bicliques_images))
+    }
+}
+
+impl Cycle {
+    /// The clauses of `sub-box` ([`subbox::ruled_out`]).
+    pub fn subbox(&self) -> &[Vec<profile::ProfileLit>] {
+        self.subbox
+            .get_or_init(|| subbox::ruled_out(&self.q, self.carried))
+    }
+
+    /// The patterns of `pack-gap` ([`gaps::ruled_out`]).
+    pub fn gaps(&self) -> &[gaps::Gap] {
+        self.gaps
+            .get_or_init(|| gaps::ruled_out(&self.q, self.ruled_out()))
     }
 }
 
@@ -165,10 +193,22 @@ pub static ISOMETRIC_CYCLE: &[Family<Cycle>] = &[
         add: |e, x| classes::add(e, &x.q, &classes::select(x.ruled_out(), true)),
     },
     Family {
+        name: gaps::FAMILY,
+        applies: |_, o| o.gaps,
+        size: |x| gaps::size(x.gaps()),
+        add: |e, x| gaps::add(e, &x.q, x.gaps()),
+    },
+    Family {
         name: bicliques::FAMILY,
         applies: |_, o| o.bicliques,
         size: |x| bicliques::size(x.bicliques()),
         add: |e, x| bicliques::add(e, &x.q, x.bicliques()),
+    },
+    Family {
+        name: subbox::FAMILY,
+        applies: |_, o| o.subbox,
+        size: |x| subbox::size(x.subbox()),
+        add: |e, x| subbox::add(e, &x.q, x.subbox()),
     },
     Family {
         name: edges::FAMILY,

@@ -66,10 +66,12 @@ pub mod edges;
 pub mod family;
 pub mod formulation;
 pub mod fullmap;
+pub mod gaps;
 pub mod options;
 pub mod packing;
 pub mod points;
 pub mod profile;
+pub mod subbox;
 pub mod symmetry;
 pub mod topical;
 

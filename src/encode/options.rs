@@ -169,6 +169,17 @@ pub struct EncodeOptions {
     /// what they hold.
     #[serde(default, skip_serializing_if = "is_false")]
     pub bicliques: bool,
+    /// The profile exclusions of the sub-boxes, carried to profiles that
+    /// stay below the diameter ([`super::subbox`], family `sub-box`).
+    /// [`EncodeOptions::resolve`] switches them off on boxes of diameter
+    /// below 3, and a header records the option only when it is on.
+    #[serde(default, skip_serializing_if = "is_false")]
+    pub subbox: bool,
+    /// The gap patterns: classes close at one threshold, far at a higher
+    /// one ([`super::gaps`], family `pack-gap`). Off on boxes of diameter
+    /// below 3, and recorded in a header only when on.
+    #[serde(default, skip_serializing_if = "is_false")]
+    pub gaps: bool,
 }
 
 fn is_false(b: &bool) -> bool {
@@ -186,6 +197,8 @@ impl Default for EncodeOptions {
             classes: true,
             nested: true,
             bicliques: true,
+            subbox: true,
+            gaps: true,
         }
     }
 }
@@ -201,6 +214,8 @@ impl EncodeOptions {
             classes: false,
             nested: false,
             bicliques: false,
+            subbox: false,
+            gaps: false,
         }
     }
 
@@ -232,6 +247,8 @@ impl EncodeOptions {
             o.classes = false;
             o.nested = false;
             o.bicliques = false;
+            o.subbox = false;
+            o.gaps = false;
             o.symmetry.reverse = false;
         }
         o
@@ -262,9 +279,13 @@ impl EncodeOptions {
         if q.grid.diameter() < 3 || q.period < 2 {
             // Two thresholds 1 ≤ u < t < L need a side of 3 or more.
             o.nested = false;
+            o.gaps = false;
         }
         if !super::bicliques::applies_to(q) {
             o.bicliques = false;
+        }
+        if !super::subbox::applies_to(q) {
+            o.subbox = false;
         }
         let point_eq_ok = q.period as u128 * q.grid.num_points() <= POINT_EQ_LIMIT;
         if !point_eq_ok {

@@ -44,6 +44,64 @@ pub fn add(e: &mut Encoder, q: &Question) {
     }
 }
 
+/// A literal about the profile alone: `g(k) ≥ t` when `positive`, else
+/// `g(k) < t`. The profile-exclusion families (`pack-classes`,
+/// `pack-nested`, `biclique-cover`, `sub-box`) state their clauses in these
+/// terms, so that a clause can be moved between boxes ([`super::subbox`])
+/// and evaluated on a whole profile ([`ProfileLit::holds`]).
+#[derive(Clone, Copy, Debug, PartialEq, Eq, PartialOrd, Ord, Hash)]
+pub struct ProfileLit {
+    /// The offset, `1 ≤ k ≤ K`.
+    pub k: usize,
+    /// The threshold, `1 ≤ t ≤ L`.
+    pub t: i64,
+    /// `g(k) ≥ t` (`true`) or `g(k) < t` (`false`).
+    pub positive: bool,
+}
+
+impl ProfileLit {
+    /// `g(k) ≥ t`.
+    pub fn ge(k: usize, t: i64) -> ProfileLit {
+        ProfileLit {
+            k,
+            t,
+            positive: true,
+        }
+    }
+
+    /// `g(k) < t`.
+    pub fn lt(k: usize, t: i64) -> ProfileLit {
+        ProfileLit {
+            k,
+            t,
+            positive: false,
+        }
+    }
+
+    /// The literal as the encoding's term.
+    pub fn term(self, e: &Encoder, q: &Question) -> Term {
+        let t = ge(e, q, self.k, self.t);
+        if self.positive { t } else { !t }
+    }
+
+    /// Whether the literal holds on the whole profile `g` (`g[k − 1] = g(k)`);
+    /// `None` when `g` has no entry for the offset.
+    pub fn holds(self, g: &[i64]) -> Option<bool> {
+        let v = *g.get(self.k.checked_sub(1)?)?;
+        Some((v >= self.t) == self.positive)
+    }
+}
+
+/// Adds each clause of profile literals.
+pub fn add_clauses(e: &mut Encoder, q: &Question, clauses: &[Vec<ProfileLit>]) {
+    let mut terms = Vec::new();
+    for c in clauses {
+        terms.clear();
+        terms.extend(c.iter().map(|l| l.term(e, q)));
+        e.clause(&terms);
+    }
+}
+
 /// The term `g(k) ≥ t`, folded to a constant outside `[1, L]`.
 pub fn ge(e: &Encoder, q: &Question, k: usize, t: i64) -> Term {
     if t <= 0 {

@@ -66,6 +66,8 @@ fn all_combinations() -> Vec<EncodeOptions> {
                     classes,
                     nested: classes,
                     bicliques: classes,
+                    subbox: classes,
+                    gaps: classes,
                     ..EncodeOptions::default()
                 });
             }

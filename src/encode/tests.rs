@@ -80,6 +80,8 @@ pub(crate) fn variations(
             classes,
             nested: classes,
             bicliques: classes,
+            subbox: classes,
+            gaps: classes,
             ..base.clone()
         });
     symmetric.chain(counting).collect()

@@ -517,8 +517,8 @@ fn domain_flags(q: &QuestionFacts) -> Vec<String> {
 
 /// The flags that rebuild the encoding options recorded in `options`.
 /// `wide` says that the question's box has a side of 3 or more, where an
-/// isometric-cycle encoding without `nested` was asked for without it (a
-/// header records `nested` only when it is on); `cover` says the same of
+/// isometric-cycle encoding without `nested` or `subbox` was asked for
+/// without it (a header records each only when it is on); `cover` says the same of
 /// `bicliques` ([`bicliques_box`]).
 fn option_flags(options: Option<&Value>, on_points: bool, wide: bool, cover: bool) -> Vec<String> {
     let Some(o) = options else { return Vec::new() };
@@ -551,6 +551,14 @@ fn option_flags(options: Option<&Value>, on_points: bool, wide: bool, cover: boo
     let cycle = formulation.is_some_and(|s| s.starts_with("isometric-cycle"));
     if wide && cycle && o.get("nested").and_then(Value::as_bool) != Some(true) {
         f.push("--no-nested".into());
+    }
+    // `sub-box` acts on exactly the boxes `pack-nested` does (a side of 3
+    // or more), and its header entry too is written only when it is on.
+    if wide && cycle && o.get("subbox").and_then(Value::as_bool) != Some(true) {
+        f.push("--no-sub-box".into());
+    }
+    if wide && cycle && o.get("gaps").and_then(Value::as_bool) != Some(true) {
+        f.push("--no-gaps".into());
     }
     if cover && cycle && o.get("bicliques").and_then(Value::as_bool) != Some(true) {
         f.push("--no-bicliques".into());

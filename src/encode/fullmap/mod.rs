@@ -104,6 +104,8 @@ pub fn for_domain(options: &EncodeOptions) -> EncodeOptions {
         classes: false,
         nested: false,
         bicliques: false,
+        subbox: false,
+        gaps: false,
     }
 }
 

@@ -14,7 +14,10 @@
 //! contains the multiplier lex-leader family (`sym-multiplier`, on by
 //! default), an extension is dropped when the prefix already decides that the
 //! profile is not lexicographically least under some multiplier
-//! ([`prefix_survives`]): no model of `F` has such a prefix.
+//! ([`prefix_survives`]): no model of `F` has such a prefix. Likewise an
+//! extension that falsifies a clause of one of the profile-exclusion
+//! families ([`PROFILE_EXCLUSION_FAMILIES`]) whose offsets it covers is
+//! dropped ([`ExclusionIndex`]): those clauses are in `F` too.
 //!
 //! A split folder ([`write_split`]) holds `formula.cnf` (`F` with the orbitcnf
 //! header), `cubes.icnf` (`F` in iCNF with one `a … 0` line per cube),
@@ -432,8 +435,9 @@ fn family_range(enc: &Encoding, family: &str) -> Option<std::ops::Range<usize>> 
 }
 
 /// The indices (in `enc.cnf`) of the clauses that the coverage check keeps:
-/// the `profile` family, then `sym-multiplier` and `biclique-cover` when
-/// present (whose excluded profiles get no cube); in the full-map
+/// the `profile` family, then `sym-multiplier` and the
+/// [`PROFILE_EXCLUSION_FAMILIES`] when present (whose excluded profiles get
+/// no cube); in the full-map
 /// formulation `orbit-place` (whose first clause says x_0 is some point),
 /// then `fm-isometry` when present.
 pub fn coverage_sources(enc: &Encoding) -> Vec<usize> {

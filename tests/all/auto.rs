@@ -174,10 +174,10 @@ fn a_compact_split_with_the_automatic_cubes_merges_to_the_verdict_of_decide() {
 /// so that a change of the encoding that loses it is seen; every answer must
 /// come with one LRAT proof of the whole CNF that the checker accepts.
 #[test]
-#[ignore = "about 30 minutes on 2 cores (p = 21, 22 and 25 under a minute each in one solve, p = 18 and 20 about 10 and 16 minutes in cubes); run on purpose"]
+#[ignore = "about 45 minutes on 2 cores (p = 21, 22, 25 and 26 under a minute each in one solve, p = 18, 27 and 20 about 10, 12 and 16 minutes in cubes); run on purpose"]
 fn q0_3_n4_composite_periods_are_refuted_with_one_checked_proof() {
     let dir = TestDir::new();
-    for p in [21, 22, 25, 18, 20] {
+    for p in [21, 22, 25, 26, 18, 27, 20] {
         let q = Q::cube(0, 3, 4, p);
         let run = dir
             .orbitcnf()

@@ -271,12 +271,6 @@ impl ExclusionIndex {
                 .all(|&(t, ge, lt)| mask(t) & ge == ge && mask(t) & lt == 0)
         })
     }
-
-    /// Whether the whole profile (or prefix) `values` falsifies any indexed
-    /// clause whose offsets all lie within it.
-    pub fn falsified(&self, values: &[i64]) -> bool {
-        (1..=values.len().min(64)).any(|j| self.falsified_at_end(&values[..j]))
-    }
 }
 
 /// The literals saying `g(k) = value`, with `1 ≤ value ≤ L`, as the encoding's variables.

@@ -122,15 +122,18 @@ pub fn ruled_out(q: &Question, carried: Carried) -> Vec<Vec<ProfileLit>> {
         if (p as u128) > gm.num_points() {
             inner.push(Vec::new());
         } else if let Ok(qm) = Question::new(gm, p) {
-            if carried.classes || carried.nested {
-                for x in classes::ruled_out(&qm) {
-                    if (x.u == 0 && carried.classes) || (x.u >= 1 && carried.nested) {
-                        inner.push(classes::clause(p, &x));
-                    }
+            // One window search serves both families that need it.
+            let ruled = if carried.classes || carried.nested || carried.gaps {
+                classes::ruled_out(&qm)
+            } else {
+                Vec::new()
+            };
+            for x in &ruled {
+                if (x.u == 0 && carried.classes) || (x.u >= 1 && carried.nested) {
+                    inner.push(classes::clause(p, x));
                 }
             }
             if carried.gaps {
-                let ruled = classes::ruled_out(&qm);
                 for x in gaps::ruled_out(&qm, &ruled) {
                     inner.push(gaps::clause(p, &x));
                 }

@@ -108,6 +108,12 @@ pub struct CubeChoice {
     pub rule: &'static str,
 }
 
+/// Steps [`full_profile_count`] may take, counting each prefix visited and
+/// each exclusion tested on it: a few seconds at most. {−1,0,1}^5, p = 34
+/// needs about 0.25 G (16,460 whole profiles against 14,674 clauses);
+/// {0,1,2,3}^3, p = 36 would need several G (about half a minute).
+pub const WALK_WORK: u64 = 1_000_000_000;
+
 /// The number of whole profiles `g(1..K)` that no multiplier map rules out
 /// ([`prefix_survives`]) and no profile-exclusion clause excludes (tested
 /// on each prefix as soon as it decides the clause, [`super::ExclusionIndex`]),
@@ -118,16 +124,6 @@ pub struct CubeChoice {
 /// prefix that is ruled out is not extended, since every extension of it is
 /// ruled out too.
 pub fn full_profile_count(enc: &Encoding, cap: usize) -> Option<usize> {
-    full_profile_count_within(enc, cap)
-}
-
-/// Steps [`full_profile_count`] may take, counting each prefix visited and
-/// each exclusion tested on it: a few seconds at most. {−1,0,1}^5, p = 34
-/// needs about 0.25 G (16,460 whole profiles against 14,674 clauses);
-/// {0,1,2,3}^3, p = 36 would need several G (about half a minute).
-pub const WALK_WORK: u64 = 1_000_000_000;
-
-fn full_profile_count_within(enc: &Encoding, cap: usize) -> Option<usize> {
     let q = &enc.question;
     let k_max = profile_len(q);
     let l = q.grid.diameter() as i64;

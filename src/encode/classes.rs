@@ -221,8 +221,10 @@ pub fn far_classes_meet_at_least(
         if s as u64 >= need && saturating_matching(sets, &inside) {
             continue;
         }
-        let mut union = std::collections::BTreeSet::new();
-        match far_fewer_exist(sets, &inside, &far, s, need, &mut union, 0, &mut budget) {
+        let search = FarSearch::new(sets, windows, &inside, &far, s, need);
+        let all = Bits::all(inside.len());
+        let union = vec![0u64; search.masks.first().map_or(0, Vec::len)];
+        match search.fewer_exist(&all, &union, 0, &mut budget) {
             Some(false) => {}
             Some(true) | None => return false,
         }
@@ -230,50 +232,137 @@ pub fn far_classes_meet_at_least(
     true
 }
 
-/// Whether `s` of the `candidates`, pairwise far, have a union of windows
-/// (together with `union`) smaller than `need`; `None` past the budget.
-#[allow(clippy::too_many_arguments)]
-fn far_fewer_exist(
-    sets: &[Vec<u32>],
-    candidates: &[usize],
-    far: &dyn Fn(usize, usize) -> bool,
+/// A set of indices below some bound, one bit each.
+type Bits = Vec<u64>;
+
+/// Bit sets over indices, as [`far_classes_meet_at_least`] walks them.
+trait BitSet {
+    /// The set `{0, …, n − 1}`.
+    fn all(n: usize) -> Self;
+    /// The members, in increasing order.
+    fn members(&self) -> impl Iterator<Item = usize>;
+    /// The number of members.
+    fn count(&self) -> usize;
+}
+
+impl BitSet for Bits {
+    fn all(n: usize) -> Self {
+        let mut b = vec![0u64; n.div_ceil(64)];
+        for i in 0..n {
+            b[i / 64] |= 1 << (i % 64);
+        }
+        b
+    }
+    fn members(&self) -> impl Iterator<Item = usize> {
+        self.iter().enumerate().flat_map(|(w, &word)| {
+            let mut rest = word;
+            std::iter::from_fn(move || {
+                (rest != 0).then(|| {
+                    let bit = rest.trailing_zeros() as usize;
+                    rest &= rest - 1;
+                    w * 64 + bit
+                })
+            })
+        })
+    }
+    fn count(&self) -> usize {
+        self.iter().map(|w| w.count_ones() as usize).sum()
+    }
+}
+
+/// The search of [`far_classes_meet_at_least`] inside one window, on bit
+/// sets: the points of the window are numbered `0..inside.len()` in grid
+/// order, `masks[i]` is the set of windows containing point `i` and
+/// `far[i]` the points after `i` that are more than `u` from it.
+struct FarSearch {
+    masks: Vec<Bits>,
+    far: Vec<Bits>,
     s: usize,
     need: u64,
-    union: &mut std::collections::BTreeSet<u32>,
-    chosen: usize,
-    budget: &mut u64,
-) -> Option<bool> {
-    *budget = budget.checked_sub(1)?;
-    if chosen == s {
-        return Some(true);
-    }
-    for (i, &z) in candidates.iter().enumerate() {
-        if chosen + (candidates.len() - i) < s {
-            break;
-        }
-        let added: Vec<u32> = sets[z]
+}
+
+impl FarSearch {
+    fn new(
+        sets: &[Vec<u32>],
+        windows: u64,
+        inside: &[usize],
+        far: &dyn Fn(usize, usize) -> bool,
+        s: usize,
+        need: u64,
+    ) -> Self {
+        let words = (windows as usize).div_ceil(64);
+        let masks = inside
             .iter()
-            .copied()
-            .filter(|w| !union.contains(w))
+            .map(|&z| {
+                let mut m = vec![0u64; words];
+                for &w in &sets[z] {
+                    m[w as usize / 64] |= 1 << (w % 64);
+                }
+                m
+            })
             .collect();
-        if (union.len() + added.len()) as u64 >= need {
-            continue;
-        }
-        union.extend(&added);
-        let rest: Vec<usize> = candidates[i + 1..]
-            .iter()
-            .copied()
-            .filter(|&y| far(z, y))
+        let n = inside.len();
+        let far = (0..n)
+            .map(|i| {
+                let mut b = vec![0u64; n.div_ceil(64)];
+                for j in (i + 1..n).filter(|&j| far(inside[i], inside[j])) {
+                    b[j / 64] |= 1 << (j % 64);
+                }
+                b
+            })
             .collect();
-        let found = far_fewer_exist(sets, &rest, far, s, need, union, chosen + 1, budget);
-        for w in &added {
-            union.remove(w);
-        }
-        if found != Some(false) {
-            return found;
+        FarSearch {
+            masks,
+            far,
+            s,
+            need,
         }
     }
-    Some(false)
+
+    /// Whether `s − chosen` of the `candidates`, pairwise far, have windows
+    /// that together with `union` number fewer than `need`; `None` past the
+    /// budget. Candidates are tried in increasing order and each branch
+    /// keeps only the later candidates far from the one chosen, so every
+    /// set of points is reached once.
+    fn fewer_exist(
+        &self,
+        candidates: &Bits,
+        union: &[u64],
+        chosen: usize,
+        budget: &mut u64,
+    ) -> Option<bool> {
+        *budget = budget.checked_sub(1)?;
+        if chosen == self.s {
+            return Some(true);
+        }
+        let mut left = candidates.count();
+        for i in candidates.members() {
+            if chosen + left < self.s {
+                break;
+            }
+            left -= 1;
+            let mask = &self.masks[i];
+            let size: u64 = union
+                .iter()
+                .zip(mask)
+                .map(|(a, b)| u64::from((a | b).count_ones()))
+                .sum();
+            if size >= self.need {
+                continue;
+            }
+            let next: Vec<u64> = union.iter().zip(mask).map(|(a, b)| a | b).collect();
+            let rest: Bits = candidates
+                .iter()
+                .zip(&self.far[i])
+                .map(|(c, f)| c & f)
+                .collect();
+            let found = self.fewer_exist(&rest, &next, chosen + 1, budget);
+            if found != Some(false) {
+                return found;
+            }
+        }
+        Some(false)
+    }
 }
 
 /// Whether every `s` distinct grid points lying in one common window meet at
@@ -575,6 +664,73 @@ mod two_thresholds {
                     }
                 }
                 assert_eq!(far_packing(&g, t, u), best, "{spec} t={t} u={u}");
+            }
+        }
+    }
+
+    #[test]
+    fn the_far_search_agrees_with_every_subset_of_every_window() {
+        // Independent brute force: for each window, every set of points of
+        // it that are pairwise more than u apart, and the windows they meet
+        // together (each point's windows recomputed from coordinates, not
+        // from `window_sets`). The search must say "at least need" exactly
+        // when the least union over sets of s points is at least need.
+        for (spec, t) in [
+            ("0..3,0..3", 2),
+            ("0..3,0..3", 3),
+            ("0..4,0..2", 3),
+            ("0..4,0..4", 2),
+        ] {
+            let g = Grid::parse(spec, None).unwrap();
+            let sets = packing::window_sets(&g, t);
+            let (total, _) = packing::windows(&g, t);
+            let points: Vec<Vec<i64>> = g.points().collect();
+            let origins: Vec<Vec<i64>> = g
+                .points()
+                .filter(|z| (0..g.dim()).all(|c| z[c] + t.min(g.side(c)) as i64 <= g.hi(c)))
+                .collect();
+            assert_eq!(origins.len() as u64, total, "{spec}");
+            let holds = |o: &[i64], z: &[i64]| {
+                (0..g.dim()).all(|c| o[c] <= z[c] && z[c] <= o[c] + t.min(g.side(c)) as i64)
+            };
+            for u in 1..t {
+                // least[s]: the fewest windows that s such points meet.
+                let mut least = vec![u64::MAX; 40];
+                for o in &origins {
+                    let inside: Vec<&Vec<i64>> = points.iter().filter(|z| holds(o, z)).collect();
+                    for mask in 1u32..1 << inside.len() {
+                        let chosen: Vec<&Vec<i64>> = (0..inside.len())
+                            .filter(|i| mask >> i & 1 == 1)
+                            .map(|i| inside[i])
+                            .collect();
+                        let far = chosen.iter().enumerate().all(|(i, a)| {
+                            chosen[i + 1..]
+                                .iter()
+                                .all(|b| crate::brute::sup_distance(a, b) as u64 > u)
+                        });
+                        if !far {
+                            continue;
+                        }
+                        let met = origins
+                            .iter()
+                            .filter(|w| chosen.iter().any(|z| holds(w, z)))
+                            .count() as u64;
+                        let s = chosen.len();
+                        least[s] = least[s].min(met);
+                    }
+                }
+                for s in 1..least.len() {
+                    if least[s] == u64::MAX {
+                        continue;
+                    }
+                    for need in 1..=total + 1 {
+                        assert_eq!(
+                            far_classes_meet_at_least(&g, &sets, total, s, need, u),
+                            least[s] >= need,
+                            "{spec} t={t} u={u} s={s} need={need}"
+                        );
+                    }
+                }
             }
         }
     }

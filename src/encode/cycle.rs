@@ -98,6 +98,7 @@ impl Cycle {
 const COORD_ORDER: Family<Cycle> = Family {
     name: coords::FAMILY,
     applies: always,
+    searched: false,
     size: |x| coords::size(&x.q),
     add: |e, x| coords::add(e, &x.q),
 };
@@ -105,6 +106,7 @@ const COORD_ORDER: Family<Cycle> = Family {
 const PROFILE: Family<Cycle> = Family {
     name: profile::FAMILY,
     applies: always,
+    searched: false,
     size: |x| profile::size(&x.q),
     add: |e, x| profile::add(e, &x.q),
 };
@@ -112,6 +114,7 @@ const PROFILE: Family<Cycle> = Family {
 const POINT_EQ: Family<Cycle> = Family {
     name: points::FAMILY,
     applies: |_, o| o.needs_points(),
+    searched: false,
     size: |x| points::size(&x.q),
     add: |e, x| points::add(e, &x.q),
 };
@@ -119,6 +122,7 @@ const POINT_EQ: Family<Cycle> = Family {
 const SYM_TRANSLATE: Family<Cycle> = Family {
     name: symmetry::TRANSLATE,
     applies: |_, o| o.symmetry.translate,
+    searched: false,
     size: |x| symmetry::sizes::translate(&x.q),
     add: |e, x| symmetry::add_translate(e, &x.q),
 };
@@ -126,6 +130,7 @@ const SYM_TRANSLATE: Family<Cycle> = Family {
 const SYM_MULTIPLIER: Family<Cycle> = Family {
     name: symmetry::MULTIPLIER,
     applies: |_, o| o.symmetry.multiplier,
+    searched: false,
     size: |x| symmetry::sizes::multiplier(&x.q),
     add: |e, x| symmetry::add_multiplier(e, &x.q),
 };
@@ -133,6 +138,7 @@ const SYM_MULTIPLIER: Family<Cycle> = Family {
 const SYM_ROTATE: Family<Cycle> = Family {
     name: symmetry::ROTATE,
     applies: |_, o| o.symmetry.rotate,
+    searched: false,
     size: |x| symmetry::sizes::rotate(&x.q),
     add: |e, x| symmetry::add_rotate(e, &x.q),
 };
@@ -140,6 +146,7 @@ const SYM_ROTATE: Family<Cycle> = Family {
 const SYM_ISOMETRY: Family<Cycle> = Family {
     name: symmetry::ISOMETRY,
     applies: |_, o| o.symmetry.isometry,
+    searched: false,
     size: |_| symmetry::sizes::isometry(),
     add: |e, x| symmetry::add_isometry(e, &x.q),
 };
@@ -147,6 +154,7 @@ const SYM_ISOMETRY: Family<Cycle> = Family {
 const SYM_STABILIZER: Family<Cycle> = Family {
     name: symmetry::STABILIZER,
     applies: |_, o| o.symmetry.stabilizer,
+    searched: false,
     size: |x| symmetry::sizes::stabilizer(&x.q),
     add: |e, x| symmetry::add_stabilizer(e, &x.q, x.stabilizer_classes()),
 };
@@ -158,12 +166,14 @@ pub static ISOMETRIC_CYCLE: &[Family<Cycle>] = &[
     Family {
         name: distance::FAMILY_UPPER,
         applies: always,
+        searched: false,
         size: |x| distance::size_upper(&x.q),
         add: |e, x| distance::add_upper(e, &x.q),
     },
     Family {
         name: distance::FAMILY_LOWER,
         applies: always,
+        searched: false,
         size: |x| distance::size_lower(&x.q),
         add: |e, x| distance::add_lower(e, &x.q),
     },
@@ -171,48 +181,56 @@ pub static ISOMETRIC_CYCLE: &[Family<Cycle>] = &[
     Family {
         name: count::FAMILY,
         applies: |_, o| o.count,
+        searched: false,
         size: |x| count::size(&x.q),
         add: |e, x| count::add(e, &x.q),
     },
     Family {
         name: packing::FAMILY,
         applies: |_, o| o.packing,
+        searched: false,
         size: |x| packing::size(&x.q),
         add: |e, x| packing::add(e, &x.q),
     },
     Family {
         name: classes::FAMILY,
         applies: |_, o| o.classes,
+        searched: true,
         size: |x| classes::size(&classes::select(x.ruled_out(), false)),
         add: |e, x| classes::add(e, &x.q, &classes::select(x.ruled_out(), false)),
     },
     Family {
         name: classes::FAMILY_NESTED,
         applies: |_, o| o.nested,
+        searched: true,
         size: |x| classes::size(&classes::select(x.ruled_out(), true)),
         add: |e, x| classes::add(e, &x.q, &classes::select(x.ruled_out(), true)),
     },
     Family {
         name: gaps::FAMILY,
         applies: |_, o| o.gaps,
+        searched: true,
         size: |x| gaps::size(x.gaps()),
         add: |e, x| gaps::add(e, &x.q, x.gaps()),
     },
     Family {
         name: bicliques::FAMILY,
         applies: |_, o| o.bicliques,
+        searched: true,
         size: |x| bicliques::size(x.bicliques()),
         add: |e, x| bicliques::add(e, &x.q, x.bicliques()),
     },
     Family {
         name: subbox::FAMILY,
         applies: |_, o| o.subbox,
+        searched: true,
         size: |x| subbox::size(x.subbox()),
         add: |e, x| subbox::add(e, &x.q, x.subbox()),
     },
     Family {
         name: edges::FAMILY,
         applies: |_, o| o.classes,
+        searched: false,
         size: |x| edges::size(&x.q),
         add: |e, x| edges::add(e, &x.q),
     },
@@ -224,6 +242,7 @@ pub static ISOMETRIC_CYCLE: &[Family<Cycle>] = &[
     Family {
         name: symmetry::REVERSE,
         applies: |_, o| o.symmetry.reverse,
+        searched: false,
         size: |x| symmetry::sizes::reverse(x.stabilizer_classes()),
         add: |e, x| symmetry::add_reverse(e, &x.q, x.stabilizer_classes()),
     },
@@ -236,12 +255,14 @@ pub static TOPICAL_CYCLE: &[Family<Cycle>] = &[
     Family {
         name: topical::FAMILY_UPPER,
         applies: always,
+        searched: false,
         size: |x| topical::size_upper(&x.q),
         add: |e, x| topical::add_upper(e, &x.q),
     },
     Family {
         name: topical::FAMILY_LOWER,
         applies: always,
+        searched: false,
         size: |x| topical::size_lower(&x.q),
         add: |e, x| topical::add_lower(e, &x.q),
     },
@@ -252,6 +273,7 @@ pub static TOPICAL_CYCLE: &[Family<Cycle>] = &[
     Family {
         name: symmetry::SORT,
         applies: |_, o| o.symmetry.rotate,
+        searched: false,
         size: |x| symmetry::sizes::sort(&x.q),
         add: |e, x| symmetry::add_sort(e, &x.q),
     },

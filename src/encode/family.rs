@@ -16,7 +16,9 @@
 //! evaluates every applicable row's size before it builds anything, to
 //! refuse formulas above the clause limit, so sizes are closed forms (each
 //! module's doc gives and proves its formula) wherever the family does not
-//! rest on a search whose outcome decides the clauses (`pack-classes`).
+//! rest on a search whose outcome decides the clauses (`pack-classes`). Rows
+//! that do are marked [`Family::searched`]; their sizes are read only once
+//! the closed-form rows fit under the limit.
 
 use super::{EncodeOptions, Encoder};
 use crate::cnf::{FamilyCount, Size};
@@ -28,6 +30,12 @@ pub struct Family<X> {
     /// Whether the family is part of the encoding, given the context and the
     /// options as [`EncodeOptions::resolve`] left them for the question.
     pub applies: fn(&X, &EncodeOptions) -> bool,
+    /// Whether `size` runs a search (the window searches of `pack-classes`
+    /// and the families that share them). [`super::encode`] sums the sizes
+    /// of the other rows first and refuses a formula that is already too
+    /// large on those, so that an oversized question is refused at once
+    /// instead of after searches whose clauses would never be written.
+    pub searched: bool,
     /// The exact number of variables and clauses that `add` adds.
     pub size: fn(&X) -> Size,
     /// Emits the family: registers its variables and adds its clauses.

@@ -304,15 +304,25 @@ fn run<X>(
     o: &EncodeOptions,
     max_clauses: u64,
 ) -> Result<Encoder> {
+    let refuse = |total: Size| -> Result<()> {
+        if total.clauses > max_clauses || total.vars > i32::MAX as u64 / 2 {
+            return Err(Error::TooLarge {
+                clauses: total.clauses,
+                vars: total.vars,
+                limit: max_clauses,
+            });
+        }
+        Ok(())
+    };
+    // The closed-form rows first: a formula they already make too large is
+    // refused before any search runs (a lower bound of the whole).
+    let closed: Size = family::active(table, x, o)
+        .filter(|f| !f.searched)
+        .map(|f| (f.size)(x))
+        .sum();
+    refuse(closed)?;
     let est = family::estimate(table, x, o);
-    let total: Size = est.iter().map(FamilyCount::size).sum();
-    if total.clauses > max_clauses || total.vars > i32::MAX as u64 / 2 {
-        return Err(Error::TooLarge {
-            clauses: total.clauses,
-            vars: total.vars,
-            limit: max_clauses,
-        });
-    }
+    refuse(est.iter().map(FamilyCount::size).sum())?;
     Ok(family::build(table, x, o))
 }
 

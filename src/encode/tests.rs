@@ -413,6 +413,31 @@ fn oversized_questions_are_refused_from_the_base_families() {
 }
 
 #[test]
+fn an_oversized_question_is_refused_before_the_window_searches() {
+    // {0,…,30}^2 with p = 12: the closed-form families alone exceed the
+    // default limit, while the window searches of `pack-classes` and its
+    // companions on 31 × 31 windows took more than a minute. The refusal
+    // reports the closed-form rows' size: every row but the searched ones.
+    let question = q("0..30", 2, 12);
+    let err = encode(&question, &EncodeOptions::default(), DEFAULT_MAX_CLAUSES).unwrap_err();
+    let Error::TooLarge { clauses, .. } = err else {
+        panic!("{err}");
+    };
+    let mut closed = EncodeOptions::default();
+    (
+        closed.classes,
+        closed.nested,
+        closed.gaps,
+        closed.bicliques,
+        closed.subbox,
+    ) = (false, false, false, false, false);
+    // `pack-edges` is closed-form but switched with `pack-classes`.
+    let without: u64 = estimate(&question, &closed).iter().map(|f| f.clauses).sum();
+    assert_eq!(clauses, without + edges::size(&question).clauses);
+    assert!(clauses > DEFAULT_MAX_CLAUSES);
+}
+
+#[test]
 fn offset_classes_fold_around_the_cycle() {
     assert_eq!(offset_class(0, 7, 8), 1);
     assert_eq!(offset_class(2, 6, 8), 4);

@@ -173,12 +173,14 @@ pub static FULL_MAP: &[Family<FullMap>] = &[
     Family {
         name: map::FAMILY_CHOICE,
         applies: always,
+        searched: false,
         size: |x| map::size_choice(x.dom.len()),
         add: |e, x| map::add_choice(e, &x.dom),
     },
     Family {
         name: map::FAMILY_NONEXP,
         applies: always,
+        searched: false,
         size: |x| map::size_nonexp(&x.dom),
         add: |e, x| {
             let m = x.m(e);
@@ -188,12 +190,14 @@ pub static FULL_MAP: &[Family<FullMap>] = &[
     Family {
         name: orbit::FAMILY_PLACE,
         applies: always,
+        searched: false,
         size: |x| orbit::size_place(x.dom.len(), x.p),
         add: |e, x| orbit::add_place(e, &x.dom, x.p),
     },
     Family {
         name: orbit::FAMILY_STEP,
         applies: always,
+        searched: false,
         size: |x| orbit::size_step(x.dom.len(), x.p),
         add: |e, x| {
             let (m, o) = (x.m(e), x.o(e));
@@ -203,6 +207,7 @@ pub static FULL_MAP: &[Family<FullMap>] = &[
     Family {
         name: profile::FAMILY,
         applies: |_, o| o.count,
+        searched: false,
         size: |x| profile::size(&x.dom, x.p),
         add: |e, x| {
             let o = x.o(e);
@@ -212,6 +217,7 @@ pub static FULL_MAP: &[Family<FullMap>] = &[
     Family {
         name: symmetry::ROTATE,
         applies: |_, o| o.symmetry.rotate,
+        searched: false,
         size: |x| symmetry::size_rotate(x.dom.len(), x.p),
         add: |e, x| {
             let o = x.o(e);
@@ -221,6 +227,7 @@ pub static FULL_MAP: &[Family<FullMap>] = &[
     Family {
         name: symmetry::ISOMETRY,
         applies: |_, o| o.symmetry.isometry,
+        searched: false,
         size: |x| symmetry::size_isometry(x.minima()),
         add: |e, x| {
             let o = x.o(e);

@@ -40,7 +40,7 @@ enum Command {
     /// answered there, with the ordinary report. Otherwise, while time remains
     /// (--time-limit), the question is split into cubes, one per distance
     /// profile g(1..K) that the symmetry breaking leaves, solved on every
-    /// core (--jobs K); with more than 4096 such profiles there is one solve
+    /// core (--jobs K); with more than 20,000 such profiles there is one solve
     /// and no switch (measured: prefix cubes cost more there). Every cube's
     /// proof is checked and one LRAT proof of the whole CNF is assembled and
     /// checked. The report's `strategy` line (JSON: "strategy") says so.

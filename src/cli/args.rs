@@ -439,8 +439,8 @@ pub struct ScaleArgs {
     pub cubes: Option<usize>,
     /// The probe: one ordinary solve of at most SECS seconds (default 60)
     /// before a question is split into one cube per lex-leader distance
-    /// profile that the biclique-cover clauses leave (when there are at
-    /// most 4096; otherwise one solve is made
+    /// profile that the profile exclusions leave (when there are at
+    /// most 20,000; otherwise one solve is made
     /// with the whole time limit). A question answered within the probe
     /// gets the ordinary report; otherwise the report's `strategy` line
     /// says what followed.

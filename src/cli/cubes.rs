@@ -26,7 +26,7 @@ g(k) = ‖x_i − x_{i+k}‖∞; prefixes are refined breadth-first until there 
 at least --cubes of them (or every profile is fixed), and prefixes that no
 multiplier lex-leader extends are dropped. --cubes auto takes one cube per
 whole lex-leader profile (the cubes `decide` switches to by itself) while there
-are at most 4096 of them, else 1024 breadth-first prefixes. coverage.cnf (the profile's order
+are at most 20,000 of them, else 1024 breadth-first prefixes. coverage.cnf (the profile's order
 encoding and lex-leader clauses of formula.cnf, plus the negation of every
 cube) is refuted and its LRAT proof checked before anything is written: every
 model of formula.cnf lies in some cube (encodings/cubes.md).
@@ -115,7 +115,7 @@ pub struct SplitArgs {
     /// How many cubes to aim for: prefixes of the profile are refined until
     /// there are at least this many (fewer when the profile runs out); or
     /// `auto`: one per whole lex-leader profile (the cubes `decide` switches
-    /// to when its probe gives no answer) while there are at most 4096 of
+    /// to when its probe gives no answer) while there are at most 20,000 of
     /// them, else 1024 breadth-first prefixes.
     #[arg(long, value_name = "N|auto", default_value = "16", value_parser = parse_cube_target)]
     cubes: CubeTarget,

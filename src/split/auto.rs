@@ -61,7 +61,12 @@ use crate::solve::certified::Certified;
 use crate::solve::{Backend, Limits};
 
 /// At most this many full-profile cubes; above it, breadth-first prefixes.
-pub const FULL_PROFILE_CAP: usize = 4096;
+/// Measured on 2026-12-03: the 8,098 whole-profile cubes of {0,1,2,3}^4,
+/// p = 24 took 34 minutes on two cores as separate `run-cube` processes
+/// (4,000 s in all, 0.5 s a cube on average, the longest 244 s), where one
+/// solve had no answer after 1,200 s; with the cap at 4096 `decide` made
+/// that one solve.
+pub const FULL_PROFILE_CAP: usize = 20_000;
 
 /// The cube count that breadth-first refinement aims for above the cap.
 pub const BREADTH_FIRST_TARGET: usize = 1024;
@@ -385,12 +390,17 @@ mod tests {
     fn the_rule_takes_whole_profiles_below_the_cap_and_prefixes_above() {
         let small = choose_cubes(&enc("-1..1", 4, 17)).unwrap();
         assert_eq!(small.rule, "full-profile");
-        // {−1,0,1}^5, p = 34: 16,460 lex-leaders, far more than the cap;
-        // the profile exclusions (`biclique-cover` above all) leave 1,783
-        // of them, one cube each.
+        // {−1,0,1}^5, p = 34: 16,460 lex-leaders; the profile exclusions
+        // (`biclique-cover` above all) leave 1,783 of them, one cube each.
         let cover = enc("-1..1", 5, 34);
         assert_eq!(full_profile_count(&cover, FULL_PROFILE_CAP), Some(1783));
-        let big = enc_without_exclusions("-1..1", 5, 34);
+        assert_eq!(
+            full_profile_count(&enc_without_exclusions("-1..1", 5, 34), usize::MAX),
+            Some(16_460)
+        );
+        // {−2,…,2}^4, p = 24: more than the cap even with the exclusions
+        // (`split --cubes 100000` stops at 100,000 prefixes of g(1..12)).
+        let big = enc("-2..2", 4, 24);
         assert_eq!(full_profile_count(&big, FULL_PROFILE_CAP), None);
         let c = choose_cubes(&big).unwrap();
         assert_eq!(c.rule, "breadth-first");

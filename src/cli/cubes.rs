@@ -332,6 +332,8 @@ pub struct MergeArgs {
     /// Print one JSON object instead of text.
     #[arg(long)]
     json: bool,
+    #[command(flatten)]
+    progress: ProgressArgs,
 }
 
 /// Runs `merge`.
@@ -351,7 +353,13 @@ pub fn run_merge(a: MergeArgs) -> Outcome {
         print(&idx.iter().map(|i| format!("{i}\n")).collect::<String>())?;
         return Ok(0);
     }
-    let r = cube_run::merge(&a.dir, a.proof.as_deref(), a.trust_solver, a.proof_encoding)?;
+    let r = cube_run::merge(
+        &a.dir,
+        a.proof.as_deref(),
+        a.trust_solver,
+        a.proof_encoding,
+        a.progress.mode(a.json),
+    )?;
     print_either(
         a.json,
         || serde_json::to_string(&r).expect("serialises"),

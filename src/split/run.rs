@@ -31,6 +31,7 @@ use crate::dimacs::VERSION;
 use crate::error::{Error, Result};
 use crate::evidence;
 use crate::grid::Point;
+use crate::progress::{Progress, ProgressMode, duration_words};
 use crate::proof::lift::{assemble, lift_cube};
 use crate::proof::{LratFormat, LratOptions, LratSummary};
 use crate::question::{Question, QuestionRecord};
@@ -549,7 +550,9 @@ fn list(v: &[usize]) -> String {
 /// solver's word counts as refuted when `accept_claims` holds (the verdict
 /// is then marked unchecked); otherwise it is listed as pending. With
 /// `combined`, also writes one LRAT proof of `formula.cnf` there, in the
-/// encoding `format` (when every cube has a proof), and checks it.
+/// encoding `format` (when every cube has a proof), and checks it. Reports
+/// how far it got through `progress` (thousands of cube proofs take
+/// minutes to re-check, and the assembled proof as long again).
 ///
 /// # Errors
 /// A split that fails [`verify_split`]; unreadable result files;
@@ -560,7 +563,9 @@ pub fn merge(
     combined: Option<&Path>,
     accept_claims: bool,
     format: LratFormat,
+    progress: ProgressMode,
 ) -> Result<MergeReport> {
+    let mut progress = Progress::new(progress);
     let m = SplitManifest::read(dir)?;
     let (enc, _coverage, coverage_summary) = verify_split(dir, &m)?;
     let q = Question::from_record(&m.question)?;
@@ -582,8 +587,17 @@ pub fn merge(
         solve_seconds: 0.0,
     };
     let mut proofs: Vec<(Cube, PathBuf)> = Vec::new();
-    for entry in &m.cubes {
+    let start = Instant::now();
+    for (read, entry) in m.cubes.iter().enumerate() {
         let i = entry.cube.index;
+        progress.status(|| {
+            format!(
+                "merge: {read} of {} cube results read, {} proofs checked ({})",
+                m.cubes.len(),
+                report.certified.len(),
+                duration_words(start.elapsed().as_secs_f64())
+            )
+        });
         let pending = |state: &str, reason: String| Pending {
             index: i,
             state: state.into(),
@@ -663,7 +677,8 @@ pub fn merge(
         report.verdict = Verdict::Infeasible;
         if report.uncertified.is_empty() {
             if let Some(path) = combined {
-                let (bytes, summary) = combine(&enc, &m, dir, &proofs, path, format)?;
+                let (bytes, summary) =
+                    combine(&enc, &m, dir, &proofs, path, format, &mut progress)?;
                 report.certificate = MergeCertificate::CombinedProof {
                     file: path.to_path_buf(),
                     bytes,
@@ -678,6 +693,7 @@ pub fn merge(
             report.certificate = MergeCertificate::PartlyUncertified;
         }
     }
+    progress.clear();
     Ok(report)
 }
 
@@ -700,10 +716,12 @@ fn combine(
     proofs: &[(Cube, PathBuf)],
     path: &Path,
     format: LratFormat,
+    progress: &mut Progress,
 ) -> Result<(u64, LratSummary)> {
     let open = |p: &Path| std::fs::File::open(p).map_err(|e| Error::io(p, e));
     let mut lifted = Vec::with_capacity(proofs.len());
-    for (c, p) in proofs {
+    for (done, (c, p)) in proofs.iter().enumerate() {
+        progress.status(|| format!("merge: lifting cube proofs, {done} of {}", proofs.len()));
         let tmp = temp_proof_file(Some(path))?;
         let out = BufWriter::new(tmp.reopen().map_err(|e| Error::io(tmp.path(), e))?);
         let lc = lift_cube(
@@ -723,8 +741,10 @@ fn combine(
     let out = BufWriter::new(tmp.reopen().map_err(|e| Error::io(tmp.path(), e))?);
     let coverage = open(&dir.join(&m.coverage.proof.name))?;
     let sources = coverage_sources(enc);
+    progress.event(|| "merge: assembling the proof of the whole CNF".into());
     assemble(&enc.cnf, &sources, pieces, coverage, out, format)?;
     drop(lifted);
+    progress.event(|| "merge: checking the assembled proof".into());
     let options = LratOptions {
         ids_follow_cnf: true,
         ..LratOptions::default()

@@ -151,9 +151,15 @@ fn a_compact_split_with_the_automatic_cubes_merges_to_the_verdict_of_decide() {
     crate::scaleout::parallel_run_cubes(&dir, "sp", &all);
     let merged = dir
         .orbitcnf()
-        .args(["merge", "sp", "--proof", "all.lrat"])
+        .args(["merge", "sp", "--proof", "all.lrat", "--progress", "lines"])
         .run();
-    merged.code(INFEASIBLE).stdout_has("all 14 cubes refuted");
+    // A log sees how far a long merge got, and the report stays on stdout.
+    merged
+        .code(INFEASIBLE)
+        .stdout_has("all 14 cubes refuted")
+        .stderr_has("orbitcnf: progress: ")
+        .stderr_has("merge: 0 of 14 cube results read")
+        .stderr_has("merge: checking the assembled proof");
     dir.orbitcnf()
         .args(["verify-proof", "sp/formula.cnf", "all.lrat"])
         .run()

@@ -24,6 +24,7 @@
 pub mod lift;
 pub mod lrat;
 pub mod produce;
+pub mod spool;
 #[cfg(test)]
 mod tests;
 

@@ -38,6 +38,7 @@ use crate::evidence::Evidence;
 use crate::pool::{self, Event};
 use crate::progress::{Progress, duration_words};
 use crate::proof::lift::{LiftedCube, assemble, lift_cube};
+use crate::proof::spool::Spool;
 use crate::proof::{LratFormat, LratOptions};
 use crate::question::Question;
 use crate::report::{Report, SizeStats, Verdict};
@@ -186,8 +187,17 @@ pub fn solve_cubes(
         }
         run
     };
+    // Each refuted cube's lifted proof moves into one spool as it comes in,
+    // so that open files do not grow with the number of cubes
+    // (`proof::spool`); `slots[i]` is where cube i's went.
+    let mut spool = if opts.certify {
+        Some(Spool::new(opts.lrat.as_deref())?)
+    } else {
+        None
+    };
+    let mut slots: Vec<Option<usize>> = vec![None; n];
     pool::run(n, threads, &stop, work, |event, state| match event {
-        Event::Finished(i, run) => {
+        Event::Finished(i, mut run) => {
             progress.event(|| {
                 format!(
                     "decide: cube {i} ({}) {}; {}",
@@ -196,6 +206,19 @@ pub fn solve_cubes(
                     state_words(state)
                 )
             });
+            if let (CubeRun::Unsat(Some((lc, tmp))), Some(spool)) = (&run, spool.as_mut()) {
+                let copied = tmp
+                    .reopen()
+                    .map_err(|e| Error::io(tmp.path(), e))
+                    .and_then(|f| spool.append(*lc, io::BufReader::new(f)));
+                run = match copied {
+                    Ok(slot) => {
+                        slots[i] = Some(slot);
+                        CubeRun::Unsat(None)
+                    }
+                    Err(e) => CubeRun::Failed(e),
+                };
+            }
             runs[i] = Some(run);
             progress.status(|| format!("decide: {}", state_words(state)));
         }
@@ -241,13 +264,12 @@ pub fn solve_cubes(
             ));
         }
     }
-    let mut lifted = Vec::with_capacity(n);
     let mut open = Vec::new();
     let mut why = None;
     for (i, r) in runs.into_iter().enumerate() {
         match r {
             Some(CubeRun::Failed(e)) => return Err(e),
-            Some(CubeRun::Unsat(l)) => lifted.extend(l),
+            Some(CubeRun::Unsat(_)) => {}
             Some(CubeRun::Unknown(w)) => {
                 why.get_or_insert(w);
                 open.push(i);
@@ -278,10 +300,16 @@ pub fn solve_cubes(
         };
         return Ok(report(Verdict::Infeasible, None, cert, None, solver));
     }
-    let pieces = lifted
-        .iter()
-        .map(|(lc, tmp)| Ok((*lc, tmp.reopen().map_err(|e| Error::io(tmp.path(), e))?)))
-        .collect::<Result<Vec<_>>>()?;
+    let Some(mut spool) = spool else {
+        return Err(Error::Solver {
+            solver: NAME.into(),
+            reason: "refuted cubes without their lifted proofs".into(),
+        });
+    };
+    // Every cube is refuted with a proof here, so every slot is filled;
+    // one missing would leave its negation underived and the check of the
+    // assembled proof would reject it.
+    let pieces = spool.sections(slots.iter().flatten().copied())?;
     let tmp = temp_proof_file(opts.lrat.as_deref())?;
     let out = io::BufWriter::new(tmp.reopen().map_err(|e| Error::io(tmp.path(), e))?);
     let sources = coverage_sources(enc);
@@ -291,7 +319,7 @@ pub fn solve_cubes(
         None => LratFormat::Binary,
     };
     assemble(&enc.cnf, &sources, pieces, cov, out, format)?;
-    drop(lifted);
+    drop(spool);
     let options = LratOptions {
         ids_follow_cnf: true,
         ..LratOptions::default()

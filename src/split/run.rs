@@ -32,7 +32,8 @@ use crate::error::{Error, Result};
 use crate::evidence;
 use crate::grid::Point;
 use crate::progress::{Progress, ProgressMode, duration_words};
-use crate::proof::lift::{assemble, lift_cube};
+use crate::proof::lift::assemble;
+use crate::proof::spool::Spool;
 use crate::proof::{LratFormat, LratOptions, LratSummary};
 use crate::question::{Question, QuestionRecord};
 use crate::report::Verdict;
@@ -719,31 +720,21 @@ fn combine(
     progress: &mut Progress,
 ) -> Result<(u64, LratSummary)> {
     let open = |p: &Path| std::fs::File::open(p).map_err(|e| Error::io(p, e));
-    let mut lifted = Vec::with_capacity(proofs.len());
+    // One spool for every lifted proof: a file per cube would hold a
+    // descriptor per cube until the end (`proof::spool`).
+    let mut spool = Spool::new(Some(path))?;
     for (done, (c, p)) in proofs.iter().enumerate() {
         progress.status(|| format!("merge: lifting cube proofs, {done} of {}", proofs.len()));
-        let tmp = temp_proof_file(Some(path))?;
-        let out = BufWriter::new(tmp.reopen().map_err(|e| Error::io(tmp.path(), e))?);
-        let lc = lift_cube(
-            &enc.cnf,
-            &c.lits(),
-            BufReader::new(open(p)?),
-            out,
-            LratFormat::Binary,
-        )?;
-        lifted.push((lc, tmp));
+        spool.lift(&enc.cnf, &c.lits(), BufReader::new(open(p)?))?;
     }
-    let pieces = lifted
-        .iter()
-        .map(|(lc, tmp)| Ok((*lc, BufReader::new(open(tmp.path())?))))
-        .collect::<Result<Vec<_>>>()?;
+    let pieces = spool.sections(0..spool.len())?;
     let tmp = temp_proof_file(Some(path))?;
     let out = BufWriter::new(tmp.reopen().map_err(|e| Error::io(tmp.path(), e))?);
     let coverage = open(&dir.join(&m.coverage.proof.name))?;
     let sources = coverage_sources(enc);
     progress.event(|| "merge: assembling the proof of the whole CNF".into());
     assemble(&enc.cnf, &sources, pieces, coverage, out, format)?;
-    drop(lifted);
+    drop(spool);
     progress.event(|| "merge: checking the assembled proof".into());
     let options = LratOptions {
         ids_follow_cnf: true,

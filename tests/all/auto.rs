@@ -174,6 +174,40 @@ fn a_compact_split_with_the_automatic_cubes_merges_to_the_verdict_of_decide() {
         .error_with(&["cube 3: its digest does not match"]);
 }
 
+/// Open files stay bounded however many cubes there are: with the limit at
+/// 64, `decide` assembles the proof of 196 cubes and `merge` that of a
+/// split of as many. (With a temporary file per lifted cube, both failed
+/// with "Too many open files" from about 30 cubes on; many systems set the
+/// limit to 1024, which cube counts in the thousands passed.)
+#[test]
+fn many_cubes_are_assembled_under_a_low_limit_of_open_files() {
+    let dir = TestDir::new();
+    let under_limit = |args: &str| {
+        let line = format!("ulimit -n 64 && exec '{}' {args}", crate::util::bin());
+        dir.program("sh").args(["-c", &line]).run()
+    };
+    let q = "--dim 3 --grid 0..3 -p 12";
+    under_limit(&format!("decide {q} --jobs 2 --cubes 400 --proof all.lrat"))
+        .code(INFEASIBLE)
+        .stdout_has("196 cubes on 2 threads");
+    dir.orbitcnf()
+        .args([
+            "encode", "--grid", "0..3", "--dim", "3", "-p", "12", "--output", "f.cnf",
+        ])
+        .run()
+        .code(0);
+    dir.orbitcnf()
+        .args(["verify-proof", "f.cnf", "all.lrat"])
+        .run()
+        .code(0);
+    under_limit(&format!("split {q} --cubes 400 --layout compact --out sp")).code(0);
+    let all: Vec<String> = (0..196).map(|i| i.to_string()).collect();
+    crate::scaleout::parallel_run_cubes(&dir, "sp", &all);
+    under_limit("merge sp --proof merged.lrat")
+        .code(INFEASIBLE)
+        .stdout_has("all 196 cubes refuted");
+}
+
 /// Composite periods on {0,1,2,3}^4 refuted by computation (README, "What is
 /// proven and what is open"). Nothing published settles them, so the
 /// expectation is orbitcnf's own certified answer of 2026-12-03, pinned here

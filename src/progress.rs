@@ -193,6 +193,11 @@ fn log_line(text: &str) {
     let _ = writeln!(err, "orbitcnf: progress: {stamp} {text}");
 }
 
+/// A number of threads in words: `1 thread`, `2 threads`.
+pub fn threads_words(n: usize) -> String {
+    format!("{n} thread{}", if n == 1 { "" } else { "s" })
+}
+
 /// Seconds in words: `0.42 s`, `12.3 s`, `4m05s`, `2h07m`.
 pub fn duration_words(s: f64) -> String {
     if !s.is_finite() || s < 0.0 {

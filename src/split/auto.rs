@@ -286,11 +286,11 @@ pub fn decide_auto(
     };
     Progress::new(limits.progress).event(|| {
         format!(
-            "decide: the probe gave no answer ({}); switching to {} {} cubes on {} threads",
+            "decide: the probe gave no answer ({}); switching to {} {} cubes on {}",
             probe.reason.as_deref().unwrap_or("no answer"),
             strategy.cubes,
             strategy.cube_rule,
-            threads
+            crate::progress::threads_words(threads)
         )
     });
     let run = CubesRun {

@@ -36,7 +36,7 @@ use crate::encode::{EncodeOptions, Encoding, encode};
 use crate::error::{Error, Result};
 use crate::evidence::Evidence;
 use crate::pool::{self, Event};
-use crate::progress::{Progress, duration_words};
+use crate::progress::{Progress, duration_words, threads_words};
 use crate::proof::lift::{LiftedCube, assemble, lift_cube};
 use crate::proof::spool::Spool;
 use crate::proof::{LratFormat, LratOptions};
@@ -173,9 +173,10 @@ pub fn solve_cubes(
     let mut progress = Progress::new(limits.progress);
     let state_words = |s: &pool::State| {
         format!(
-            "{}/{n} cubes done, {} running on {threads} threads, {}, {} conflicts",
+            "{}/{n} cubes done, {} running on {}, {}, {} conflicts",
             s.finished,
             s.running.len(),
+            threads_words(threads),
             duration_words(start.elapsed().as_secs_f64()),
             conflicts.load(Ordering::Relaxed)
         )
@@ -229,8 +230,9 @@ pub fn solve_cubes(
     progress.clear();
     let size = SizeStats::of(&enc.cnf, enc.families.clone(), encode_seconds);
     let solver = format!(
-        "{NAME}{}, {n} cubes on {threads} threads",
-        if opts.certify { " (LRAT)" } else { "" }
+        "{NAME}{}, {n} cubes on {}",
+        if opts.certify { " (LRAT)" } else { "" },
+        threads_words(threads)
     );
     let stats = |solver: String| SolveStats {
         solver,

@@ -44,10 +44,10 @@ impl RealJobsReport {
     /// The report for people: the merge's, with a line on the run.
     pub fn to_text(&self) -> String {
         format!(
-            "{}strategy     {} cubes on {} threads: split {:.2} s, cubes {:.2} s, merge (every certificate re-checked) {:.2} s\n",
+            "{}strategy     {} cubes on {}: split {:.2} s, cubes {:.2} s, merge (every certificate re-checked) {:.2} s\n",
             self.merge.to_text(),
             self.merge.cubes,
-            self.jobs,
+            crate::progress::threads_words(self.jobs),
             self.split_seconds,
             self.cubes_seconds,
             self.merge_seconds

@@ -101,10 +101,11 @@ enum Command {
     /// Example: orbitcnf split --dim 4 --grid=-1..1 --period 17 --cubes 32 --out t4p17
     #[command(after_help = cubes::SPLIT_HELP)]
     Split(cubes::SplitArgs),
-    /// Solve one cube of a split folder and write its result file
-    /// (results/cube-NNNN.json, with the LRAT proof beside it).
+    /// Solve one cube of a split folder (or a range of them) and write its
+    /// result file (results/cube-NNNN.json, with the LRAT proof beside it).
     ///
     /// Example: orbitcnf run-cube t4p17 5 --time-limit 3600
+    /// (or: orbitcnf run-cube t4p17 0..99)
     #[command(after_help = cubes::RUN_CUBE_HELP)]
     RunCube(cubes::RunCubeArgs),
     /// Combine the results of a split folder into one verdict, re-checking

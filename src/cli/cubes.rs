@@ -198,6 +198,25 @@ fn parse_cube_target(s: &str) -> Result<CubeTarget, String> {
     }
 }
 
+/// `N` as `(N, N)`, or `A..B` (inclusive, `A ≤ B`) as `(A, B)`.
+fn parse_indices(s: &str) -> Result<(usize, usize), String> {
+    let num = |t: &str| {
+        t.trim()
+            .parse::<usize>()
+            .map_err(|_| format!("{s:?}: write a cube index (5) or an inclusive range (0..99)"))
+    };
+    let (a, b) = match s.split_once("..") {
+        Some((a, b)) => (num(a)?, num(b.strip_prefix('=').unwrap_or(b))?),
+        None => (num(s)?, num(s)?),
+    };
+    if a > b {
+        return Err(format!(
+            "{s:?}: the range is empty (its first index is above its last)"
+        ));
+    }
+    Ok((a, b))
+}
+
 fn parse_layout(s: &str) -> Result<LayoutChoice, String> {
     match s {
         "auto" => Ok(LayoutChoice::Auto),
@@ -212,8 +231,12 @@ fn parse_layout(s: &str) -> Result<LayoutChoice, String> {
 pub struct RunCubeArgs {
     /// The split folder written by `orbitcnf split`.
     dir: PathBuf,
-    /// The cube's index, from 0.
-    index: usize,
+    /// The cube's index, from 0; or an inclusive range `A..B` of grid
+    /// cubes, solved one after another in this process (the formula is
+    /// read once, which is most of the cost of an easy cube), with one
+    /// result line per cube (one JSON object per line with --json).
+    #[arg(value_name = "INDEX|A..B", value_parser = parse_indices)]
+    index: (usize, usize),
     #[command(flatten)]
     solver: SolverArgs,
     /// Give up after this many seconds and record "unknown".
@@ -257,9 +280,16 @@ pub fn run_cube(a: RunCubeArgs) -> Outcome {
         let mut o = real::RealOptions::new();
         o.certify = !a.no_certify;
         o.handoff = super::real::handoff(&a.solver.solver, a.handoff_after)?;
+        let (index, last) = a.index;
+        if index != last {
+            return Err(Error::Options(
+                "a range of cubes applies to grid splits; run a real-space cube by its index"
+                    .into(),
+            ));
+        }
         return super::real::run_cube(
             &a.dir,
-            a.index,
+            index,
             &o,
             a.time_limit,
             a.force,
@@ -277,32 +307,39 @@ pub fn run_cube(a: RunCubeArgs) -> Outcome {
         progress: a.progress.mode(a.json),
         ..Limits::default()
     };
-    let lrat = cube_run::lrat_target(&a.dir, a.index);
-    let mut external = a.solver.external(!a.no_certify)?;
-    if let Some(p) = external.as_mut().and_then(|e| e.proof.as_mut()) {
-        p.keep_lrat = Some(lrat.clone());
+    let (first, last) = a.index;
+    let mut runner = cube_run::CubeRunner::new(&a.dir)?;
+    if last >= runner.cubes() {
+        return Err(cube_run::out_of_range(&a.dir, last, runner.cubes()));
     }
-    let mut bundled = Bundled;
-    let mut certified = Certified {
-        lrat: Some(lrat),
-        drat: None,
-        format: a.proof_encoding,
-    };
-    let backend: &mut dyn Backend = match (external.as_mut(), a.no_certify) {
-        (Some(ext), _) => ext,
-        (None, true) => &mut bundled,
-        (None, false) => &mut certified,
-    };
-    let outcome = cube_run::run_cube(&a.dir, a.index, backend, &limits, a.force)?;
-    let (r, note) = match &outcome {
-        cube_run::RunOutcome::Solved(r) => (r, ""),
-        cube_run::RunOutcome::AlreadyDone(r) => (r, " (already solved; --force solves again)"),
-    };
-    print_either(
-        a.json,
-        || serde_json::to_string(r).expect("serialises"),
-        || r.to_text(note),
-    )?;
+    for index in first..=last {
+        let lrat = cube_run::lrat_target(&a.dir, index);
+        let mut external = a.solver.external(!a.no_certify)?;
+        if let Some(p) = external.as_mut().and_then(|e| e.proof.as_mut()) {
+            p.keep_lrat = Some(lrat.clone());
+        }
+        let mut bundled = Bundled;
+        let mut certified = Certified {
+            lrat: Some(lrat),
+            drat: None,
+            format: a.proof_encoding,
+        };
+        let backend: &mut dyn Backend = match (external.as_mut(), a.no_certify) {
+            (Some(ext), _) => ext,
+            (None, true) => &mut bundled,
+            (None, false) => &mut certified,
+        };
+        let outcome = runner.run(index, backend, &limits, a.force)?;
+        let (r, note) = match &outcome {
+            cube_run::RunOutcome::Solved(r) => (r, ""),
+            cube_run::RunOutcome::AlreadyDone(r) => (r, " (already solved; --force solves again)"),
+        };
+        print_either(
+            a.json,
+            || serde_json::to_string(r).expect("serialises"),
+            || r.to_text(note),
+        )?;
+    }
     Ok(0)
 }
 

@@ -101,31 +101,55 @@ pub fn cube_digest(base_sha256: &str, literals: &[i32]) -> String {
 /// [`Error::Parse`] for a file that does not match its digest or is not an
 /// orbitcnf CNF; [`Error::Io`].
 pub fn cube_problem(dir: &Path, m: &SplitManifest, entry: &CubeEntry) -> Result<(CnfFile, String)> {
-    let (bytes, name) = match &entry.file {
-        Some(f) => (f.read_checked(dir, MANIFEST)?, dir.join(&f.name)),
-        None => (m.formula.read_checked(dir, MANIFEST)?, dir.join(FORMULA)),
-    };
+    match &entry.file {
+        Some(f) => parse_checked(f.read_checked(dir, MANIFEST)?, dir.join(&f.name)),
+        None => with_cube(dir, &formula_problem(dir, m)?, entry),
+    }
+}
+
+/// `formula.cnf` of the split in `dir`, checked against the manifest's
+/// digest and parsed, with its name for messages.
+///
+/// # Errors
+/// As [`cube_problem`].
+pub fn formula_problem(dir: &Path, m: &SplitManifest) -> Result<(CnfFile, String)> {
+    parse_checked(m.formula.read_checked(dir, MANIFEST)?, dir.join(FORMULA))
+}
+
+fn parse_checked(bytes: Vec<u8>, name: std::path::PathBuf) -> Result<(CnfFile, String)> {
     let name = name.display().to_string();
     let text =
         String::from_utf8(bytes).map_err(|_| Error::parse(&name, 0, "the file is not UTF-8"))?;
-    let mut file = dimacs::parse_cnf_file(&text, &name)?;
-    if entry.file.is_none() {
-        for l in entry.cube.lits() {
-            if l.var().index() >= file.cnf.num_vars() as usize {
-                return Err(Error::parse(
-                    dir.join(MANIFEST).display().to_string(),
-                    0,
-                    format!(
-                        "cube {} has the literal {}, not a variable of the formula",
-                        entry.cube.index,
-                        l.dimacs()
-                    ),
-                ));
-            }
-            file.cnf.add_clause(&[l]);
-        }
-        let name = format!("{name} with cube {}", entry.cube.index);
-        return Ok((file, name));
-    }
+    let file = dimacs::parse_cnf_file(&text, &name)?;
     Ok((file, name))
+}
+
+/// The formula `base` ([`formula_problem`]) with the literals of cube
+/// `entry` added as unit clauses, as a cube file has them.
+///
+/// # Errors
+/// [`Error::Parse`] naming the manifest when a literal is not a variable
+/// of the formula.
+pub fn with_cube(
+    dir: &Path,
+    base: &(CnfFile, String),
+    entry: &CubeEntry,
+) -> Result<(CnfFile, String)> {
+    let (base, name) = base;
+    let mut file = base.clone();
+    for l in entry.cube.lits() {
+        if l.var().index() >= file.cnf.num_vars() as usize {
+            return Err(Error::parse(
+                dir.join(MANIFEST).display().to_string(),
+                0,
+                format!(
+                    "cube {} has the literal {}, not a variable of the formula",
+                    entry.cube.index,
+                    l.dimacs()
+                ),
+            ));
+        }
+        file.cnf.add_clause(&[l]);
+    }
+    Ok((file, format!("{name} with cube {}", entry.cube.index)))
 }

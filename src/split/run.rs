@@ -22,12 +22,12 @@ use std::time::Instant;
 
 use serde::{Deserialize, Serialize};
 
-use super::layout::cube_problem;
-use super::{Cube, RESULTS_DIR, SplitManifest, coverage_sources, verify_split};
+use super::layout::{cube_problem, formula_problem, with_cube};
+use super::{Cube, CubeEntry, RESULTS_DIR, SplitManifest, coverage_sources, verify_split};
 use crate::artifact::write_atomically;
 use crate::cnf::Cnf;
 use crate::decide;
-use crate::dimacs::VERSION;
+use crate::dimacs::{CnfFile, VERSION};
 use crate::error::{Error, Result};
 use crate::evidence;
 use crate::grid::Point;
@@ -205,23 +205,94 @@ pub fn run_cube(
     limits: &Limits,
     force: bool,
 ) -> Result<RunOutcome> {
-    let m = SplitManifest::read(dir)?;
-    let entry = m.cubes.get(index).ok_or_else(|| {
-        Error::Options(format!(
-            "cube index {index} is out of range: {} has {} cubes (0..={})",
-            dir.display(),
-            m.cubes.len(),
-            m.cubes.len().saturating_sub(1)
-        ))
-    })?;
-    if !force
-        && let Ok(Some(r)) = read_result(dir, index)
-        && r.status.is_final()
-        && r.cube_sha256 == entry.digest()
-    {
-        return Ok(RunOutcome::AlreadyDone(r));
+    CubeRunner::new(dir)?.run(index, backend, limits, force)
+}
+
+/// Runs cubes of one split folder one after another, reading the manifest
+/// once and, in the compact layout, `formula.cnf` once (checked against its
+/// digest, then copied for each cube). Measured on {0,1,2,3}^4 with
+/// p = 28: ten easy cubes took 5.0 s as ten processes and 3.5 s in one.
+pub struct CubeRunner<'a> {
+    dir: &'a Path,
+    m: SplitManifest,
+    formula: Option<(CnfFile, String)>,
+}
+
+impl<'a> CubeRunner<'a> {
+    /// A runner for the split in `dir`.
+    ///
+    /// # Errors
+    /// A manifest that cannot be read.
+    pub fn new(dir: &'a Path) -> Result<CubeRunner<'a>> {
+        Ok(CubeRunner {
+            dir,
+            m: SplitManifest::read(dir)?,
+            formula: None,
+        })
     }
-    let (file, cube_name) = cube_problem(dir, &m, entry)?;
+
+    /// The number of cubes of the split.
+    pub fn cubes(&self) -> usize {
+        self.m.cubes.len()
+    }
+
+    /// As [`run_cube`], for cube `index` of this runner's split.
+    ///
+    /// # Errors
+    /// As [`run_cube`].
+    pub fn run(
+        &mut self,
+        index: usize,
+        backend: &mut dyn Backend,
+        limits: &Limits,
+        force: bool,
+    ) -> Result<RunOutcome> {
+        let dir = self.dir;
+        let m = &self.m;
+        let entry = m
+            .cubes
+            .get(index)
+            .ok_or_else(|| out_of_range(dir, index, m.cubes.len()))?;
+        if !force
+            && let Ok(Some(r)) = read_result(dir, index)
+            && r.status.is_final()
+            && r.cube_sha256 == entry.digest()
+        {
+            return Ok(RunOutcome::AlreadyDone(r));
+        }
+        let (file, cube_name) = if entry.file.is_some() {
+            cube_problem(dir, m, entry)?
+        } else {
+            if self.formula.is_none() {
+                self.formula = Some(formula_problem(dir, m)?);
+            }
+            let base = self.formula.as_ref().expect("read just above");
+            with_cube(dir, base, entry)?
+        };
+        solve_one(dir, entry, &file, &cube_name, backend, limits)
+    }
+}
+
+/// The error for cube `index` of a split in `dir` that has `n` cubes.
+pub fn out_of_range(dir: &Path, index: usize, n: usize) -> Error {
+    Error::Options(format!(
+        "cube index {index} is out of range: {} has {n} cubes (0..={})",
+        dir.display(),
+        n.saturating_sub(1)
+    ))
+}
+
+/// Solves the cube `entry` as the problem `file` and writes its result.
+fn solve_one(
+    dir: &Path,
+    entry: &CubeEntry,
+    file: &CnfFile,
+    cube_name: &str,
+    backend: &mut dyn Backend,
+    limits: &Limits,
+) -> Result<RunOutcome> {
+    let index = entry.cube.index;
+
     let results = dir.join(RESULTS_DIR);
     std::fs::create_dir_all(&results).map_err(|e| Error::io(&results, e))?;
     crate::artifact::sweep_stale(&results, true);
@@ -264,7 +335,7 @@ pub fn run_cube(
                 &file.cnf,
                 &file.map,
                 &model,
-                &cube_name,
+                cube_name,
                 Some(&file.clause_lines),
             ) {
                 Ok(w) => {

@@ -738,3 +738,65 @@ fn n5_period_33_is_refuted_by_certified_cubes() {
         .code(INFEASIBLE)
         .stdout_has("64 refuted with a re-checked LRAT proof, 0 on the solver's word only");
 }
+
+/// `run-cube DIR A..B` solves a range of cubes in one process, with the
+/// results that one process per cube writes: `merge` agrees with `decide`,
+/// a second run keeps the results, and bad ranges are errors.
+#[test]
+fn a_range_of_cubes_in_one_process_merges_to_the_verdict_of_decide() {
+    let dir = TestDir::new();
+    let q = Q::cube(0, 3, 3, 10);
+    assert_eq!(monolithic(&dir, &q), "infeasible");
+    dir.orbitcnf()
+        .arg("split")
+        .args(q.args())
+        .args(["--cubes", "40", "--layout", "compact", "--out", "sp"])
+        .run()
+        .code(0);
+    let n = cube_count(&serde_json::from_str(&dir.read("sp/manifest.json")).unwrap());
+    assert!(n >= 40, "{n} cubes");
+    let last = (n - 1).to_string();
+    // Two ranges that meet, the second as JSON lines.
+    let first = dir.orbitcnf().args(["run-cube", "sp", "0..9"]).run();
+    first
+        .code(0)
+        .stdout_has("cube 0: infeasible")
+        .stdout_has("cube 9: infeasible");
+    let rest = dir
+        .orbitcnf()
+        .args(["run-cube", "sp", &format!("10..{last}"), "--json"])
+        .run();
+    rest.code(0);
+    let lines: Vec<Value> = rest
+        .stdout
+        .lines()
+        .map(|l| serde_json::from_str(l).expect("one JSON object per line"))
+        .collect();
+    assert_eq!(lines.len(), n - 10);
+    assert!(
+        lines.iter().all(|v| v["status"] == "infeasible"),
+        "{lines:?}"
+    );
+    assert!(pending(&dir, "sp").is_empty());
+    dir.orbitcnf()
+        .args(["merge", "sp"])
+        .run()
+        .code(INFEASIBLE)
+        .stdout_has(&format!("all {n} cubes refuted"));
+    // Solved cubes are kept.
+    dir.orbitcnf()
+        .args(["run-cube", "sp", "0..2"])
+        .run()
+        .code(0)
+        .stdout_has("already solved");
+    for (bad, needle) in [
+        (format!("0..{n}"), "out of range".to_string()),
+        ("5..3".to_string(), "the range is empty".to_string()),
+        ("1..x".to_string(), "an inclusive range".to_string()),
+    ] {
+        dir.orbitcnf()
+            .args(["run-cube", "sp", &bad])
+            .run()
+            .error_with(&[&needle]);
+    }
+}

@@ -162,14 +162,10 @@ pub fn run_cube(
     progress: &mut dyn FnMut(&Progress),
 ) -> Result<RealRunOutcome> {
     let m = RealSplitManifest::read(dir)?;
-    let cube = m.cubes.get(index).ok_or_else(|| {
-        Error::Options(format!(
-            "cube index {index} is out of range: {} has {} cubes (0..={})",
-            dir.display(),
-            m.cubes.len(),
-            m.cubes.len().saturating_sub(1)
-        ))
-    })?;
+    let cube = m
+        .cubes
+        .get(index)
+        .ok_or_else(|| crate::split::run::out_of_range(dir, index, m.cubes.len()))?;
     if !force
         && let Ok(Some(r)) = read_result(dir, index)
         && r.status.is_final()

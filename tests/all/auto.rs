@@ -231,3 +231,30 @@ fn q0_3_n4_composite_periods_are_refuted_with_one_checked_proof() {
         assert_eq!(v["certificate"]["kind"], "checked-proof", "p = {p}");
     }
 }
+
+/// {0,1,2,3}^4, p = 24 and 28, refuted by computation on 2026-12-03 (README,
+/// "What is proven and what is open"): more than 4096 whole profiles each
+/// (8,098 and 10,346), so `decide` splits them itself only since its cap
+/// is 20,000. Nothing published settles them; the expectation is
+/// orbitcnf's own certified answer, pinned so that a change that loses it
+/// is seen, and it must come with one LRAT proof of the whole CNF that the
+/// checker accepts.
+#[test]
+#[ignore = "about 45 minutes each on 2 cores (8,098 and 10,346 whole-profile cubes); run on purpose"]
+fn q0_3_n4_periods_24_and_28_are_refuted_in_whole_profile_cubes() {
+    let dir = TestDir::new();
+    for (p, cubes) in [(24, 8098), (28, 10346)] {
+        let q = Q::cube(0, 3, 4, p);
+        let run = dir
+            .orbitcnf()
+            .arg("decide")
+            .args(q.args())
+            .args(["--jobs", "2", "--json"])
+            .run();
+        run.code(INFEASIBLE);
+        let v = run.json();
+        assert_eq!(v["certified"], true, "p = {p}");
+        assert_eq!(v["certificate"]["kind"], "checked-proof", "p = {p}");
+        assert_eq!(v["strategy"]["cubes"], cubes, "p = {p}: {}", v["strategy"]);
+    }
+}

@@ -7,8 +7,9 @@
 //! open files (1024 on many systems) and failed at the last step. A
 //! [`Spool`] appends them all to one locked temporary file and records
 //! where each begins and ends; a [`Section`] opens the file only when it is
-//! first read and closes it when dropped. Assembling then holds at most two
-//! descriptors, whatever the number of cubes.
+//! first read and closes it when dropped. Assembling then holds three
+//! descriptors (the spool's file, its writer and the section being read),
+//! whatever the number of cubes.
 
 use std::fs::File;
 use std::io::{BufReader, BufWriter, Read, Seek, SeekFrom, Take, Write};

@@ -39,9 +39,10 @@ enum Command {
     /// (the probe; --probe SECS, --probe-conflicts N). Most questions are
     /// answered there, with the ordinary report. Otherwise, while time remains
     /// (--time-limit), the question is split into cubes, one per distance
-    /// profile g(1..K) that the symmetry breaking leaves, solved on every
-    /// core (--jobs K); with more than 20,000 such profiles there is one solve
-    /// and no switch (measured: prefix cubes cost more there). Every cube's
+    /// profile g(1..K) that the symmetry breaking and the profile exclusions
+    /// leave, solved on every core (--jobs K); with more than 20,000 such
+    /// profiles there is one solve and no switch (measured: prefix cubes cost
+    /// more there). Every cube's
     /// proof is checked and one LRAT proof of the whole CNF is assembled and
     /// checked. The report's `strategy` line (JSON: "strategy") says so.
     /// --no-auto-split keeps the single solve; --cubes N splits at once;

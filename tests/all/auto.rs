@@ -218,18 +218,24 @@ fn many_cubes_are_assembled_under_a_low_limit_of_open_files() {
 fn q0_3_n4_composite_periods_are_refuted_with_one_checked_proof() {
     let dir = TestDir::new();
     for p in [21, 22, 25, 26, 18, 27, 20] {
-        let q = Q::cube(0, 3, 4, p);
-        let run = dir
-            .orbitcnf()
-            .arg("decide")
-            .args(q.args())
-            .args(["--jobs", "2", "--json"])
-            .run();
-        run.code(INFEASIBLE);
-        let v = run.json();
-        assert_eq!(v["certified"], true, "p = {p}");
-        assert_eq!(v["certificate"]["kind"], "checked-proof", "p = {p}");
+        refuted_with_one_checked_proof(&dir, p);
     }
+}
+
+/// `decide --jobs 2 --json` on {0,1,2,3}^4 with period `p`: infeasible with
+/// one checked LRAT proof of the whole CNF; returns the JSON report.
+fn refuted_with_one_checked_proof(dir: &TestDir, p: usize) -> Value {
+    let run = dir
+        .orbitcnf()
+        .arg("decide")
+        .args(Q::cube(0, 3, 4, p).args())
+        .args(["--jobs", "2", "--json"])
+        .run();
+    run.code(INFEASIBLE);
+    let v = run.json();
+    assert_eq!(v["certified"], true, "p = {p}");
+    assert_eq!(v["certificate"]["kind"], "checked-proof", "p = {p}");
+    v
 }
 
 /// {0,1,2,3}^4, p = 24 and 28, refuted by computation on 2026-12-03 (README,
@@ -244,17 +250,7 @@ fn q0_3_n4_composite_periods_are_refuted_with_one_checked_proof() {
 fn q0_3_n4_periods_24_and_28_are_refuted_in_whole_profile_cubes() {
     let dir = TestDir::new();
     for (p, cubes) in [(24, 8098), (28, 10346)] {
-        let q = Q::cube(0, 3, 4, p);
-        let run = dir
-            .orbitcnf()
-            .arg("decide")
-            .args(q.args())
-            .args(["--jobs", "2", "--json"])
-            .run();
-        run.code(INFEASIBLE);
-        let v = run.json();
-        assert_eq!(v["certified"], true, "p = {p}");
-        assert_eq!(v["certificate"]["kind"], "checked-proof", "p = {p}");
+        let v = refuted_with_one_checked_proof(&dir, p);
         assert_eq!(v["strategy"]["cubes"], cubes, "p = {p}: {}", v["strategy"]);
     }
 }

@@ -1,5 +1,5 @@
 //! The real-space benchmark: n = 3, p = 9..12 over R^3 (the theorem of
-//! R. Lyons and R. D. Nussbaum, 1992 [recalled]), each certified, with the
+//! R. Lyons and R. D. Nussbaum, 1992 \[recalled\]), each certified, with the
 //! certificate check included, against z3 on the same question with minimal
 //! symmetry breaking (`scripts/real_z3.py`).
 //!

@@ -186,9 +186,9 @@ pub fn write_bundle(
 /// Re-checks a real-space bundle end to end.
 ///
 /// # Errors
-/// [`Error::Parse`] for a missing or malformed manifest or a digest that
-/// does not match; [`Error::File`] for a missing file or an orbit of
-/// another question; the errors of [`certificate::check_dir`] for a
+/// [`Error::Io`] for a missing file; [`Error::Parse`] for a malformed
+/// manifest, a digest that does not match or an orbit of another
+/// question; the errors of [`certificate::check_dir`] for a
 /// rejected certificate; [`Error::Check`] for a bad orbit.
 pub fn check_bundle(dir: &Path) -> Result<RealBundleCheck> {
     let mpath = dir.join(MANIFEST);

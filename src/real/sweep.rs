@@ -15,7 +15,7 @@
 //! re-checked; a stored infeasible answer after its bundle's digests are
 //! checked (in full, Farkas lemmas and LRAT, with `recheck`). Unknown
 //! answers are not stored. An answer that contradicts a published theorem
-//! [recalled] (infeasible at p ≤ 2^n, where {0,1}^n has a cycle; feasible
+//! \[recalled\] (infeasible at p ≤ 2^n, where {0,1}^n has a cycle; feasible
 //! above max_k 2^k·C(n,k), B. Lemmens and M. Scheutzow 2005) is an
 //! [`Error::Contradiction`].
 

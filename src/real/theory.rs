@@ -14,14 +14,14 @@
 //! `x_v − x_u ≤ w(u, v)` with `w = −D_κ` when `T(v, u, c)` is asserted and
 //! `w = +D_κ` otherwise. It is feasible iff no cycle has negative weight, and
 //! then shortest-path potentials are a solution (R. Bellman, On a routing
-//! problem, Quart. Appl. Math. 16 (1958) [recalled]). A cycle's weight is a
+//! problem, Quart. Appl. Math. 16 (1958) \[recalled\]). A cycle's weight is a
 //! linear form `a·D` with integer `a`, so the whole system is feasible iff
 //! some `D` satisfies the normalisation and `a·D ≥ 0` for every cycle.
 //!
 //! The theory keeps a candidate integer profile `D*` and potentials per
 //! coordinate. A new atom is checked incrementally (Dijkstra on reduced
 //! costs, as in S. Cotton and O. Maler, Fast and flexible difference
-//! constraint propagation for DPLL(T), SAT 2006 [recalled]). A negative cycle
+//! constraint propagation for DPLL(T), SAT 2006 \[recalled\]). A negative cycle
 //! becomes a *cut* `a·D ≥ 0` in the exact simplex over `D` ([`super::lp`]);
 //! if the simplex finds a new `D*`, all potentials are recomputed
 //! (Bellman–Ford), otherwise its conflict row gives Farkas multipliers over

@@ -3,7 +3,7 @@
 //! varisat 0.2.2 has no time limit, no conflict counter and no interrupt. It
 //! does write a proof while solving, through a buffered writer that we supply,
 //! and it aborts `solve` with an error as soon as that writer fails. So the
-//! solver is handed a [`Meter`]: a binary-DRAT sink that counts the clauses
+//! solver is handed a `Meter`: a binary-DRAT sink that counts the clauses
 //! added (one learned clause per conflict), reports progress, and
 //! fails once the deadline has passed. An aborted solve is reported as
 //! [`Outcome::Unknown`]: no answer is ever derived from it, so the limit is

@@ -30,7 +30,7 @@
 //!   [`Error::ExternalSolver`] with a typed [`ExternalFailure`], never a verdict.
 //! * An UNSAT answer without a proof is returned with no
 //!   [`super::refute::ProofInfo`], so the
-//!   report marks it [`crate::report::Certificate::SolverClaim`].
+//!   report marks it [`crate::evidence::Evidence::SolverClaim`].
 //! * With a [`ProofRequest`] the solver is asked for a proof file. An LRAT
 //!   proof is checked by orbitcnf's own checker through
 //!   [`super::refute::accept_proof`], in pieces from a file. A DRAT

@@ -37,7 +37,7 @@
 //!    them in any order are an isometric `p`-cycle ([`unit_cube`](crate::theory::unit_cube)). Topical,
 //!    `p ≤ C(n', ⌊n'/2⌋)`: points of the middle layer of that cube
 //!    ([`middle_layer`](crate::theory::middle_layer)). The orbit is checked with the class's check
-//!    ([`Question::check_orbit`](crate::Question::check_orbit)), and on boxes of at most
+//!    ([`crate::evidence::check_orbit`]), and on boxes of at most
 //!    [`MAP_CHECK_POINTS`] points the class's extension is built and checked
 //!    by exhaustion ([`crate::verify::extend`] and [`crate::verify::check_map`];
 //!    [`crate::verify::extend_topical`] and [`crate::verify::check_topical_map`]). No

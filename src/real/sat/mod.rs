@@ -10,7 +10,7 @@
 //! after every complete unit propagation, as in DPLL(T) (R. Nieuwenhuis,
 //! A. Oliveras and C. Tinelli, JACM 53 (2006)); a theory conflict becomes a
 //! *lemma* clause that the search then learns from like any other conflict.
-//! All these citations are [recalled].
+//! All these citations are \[recalled\].
 //!
 //! # Proof
 //!

@@ -231,10 +231,11 @@ fn parse_layout(s: &str) -> Result<LayoutChoice, String> {
 pub struct RunCubeArgs {
     /// The split folder written by `orbitcnf split`.
     dir: PathBuf,
-    /// The cube's index, from 0; or an inclusive range `A..B` of grid
-    /// cubes, solved one after another in this process (the formula is
-    /// read once, which is most of the cost of an easy cube), with one
-    /// result line per cube (one JSON object per line with --json).
+    /// The cube's index, from 0; or an inclusive range `A..B` of cubes,
+    /// solved one after another in this process (for grid splits the
+    /// formula is read once, which is most of the cost of an easy cube),
+    /// with one result line per cube (one JSON object per line with
+    /// --json). Each cube's result is written as soon as it is known.
     #[arg(value_name = "INDEX|A..B", value_parser = parse_indices)]
     index: (usize, usize),
     #[command(flatten)]
@@ -280,22 +281,23 @@ pub fn run_cube(a: RunCubeArgs) -> Outcome {
         let mut o = real::RealOptions::new();
         o.certify = !a.no_certify;
         o.handoff = super::real::handoff(&a.solver.solver, a.handoff_after)?;
-        let (index, last) = a.index;
-        if index != last {
-            return Err(Error::Options(
-                "a range of cubes applies to grid splits; run a real-space cube by its index"
-                    .into(),
-            ));
+        let (first, last) = a.index;
+        let cubes = real::cubes::run::cube_count(&a.dir)?;
+        if last >= cubes {
+            return Err(cube_run::out_of_range(&a.dir, last, cubes));
         }
-        return super::real::run_cube(
-            &a.dir,
-            index,
-            &o,
-            a.time_limit,
-            a.force,
-            a.json,
-            a.progress.mode(a.json),
-        );
+        for index in first..=last {
+            super::real::run_cube(
+                &a.dir,
+                index,
+                &o,
+                a.time_limit,
+                a.force,
+                a.json,
+                a.progress.mode(a.json),
+            )?;
+        }
+        return Ok(0);
     }
     if a.handoff_after.is_some() {
         return Err(Error::Options(
@@ -383,7 +385,13 @@ pub fn run_merge(a: MergeArgs) -> Outcome {
                     .into(),
             ));
         }
-        return super::real::merge(&a.dir, a.pending, a.trust_solver, a.json);
+        return super::real::merge(
+            &a.dir,
+            a.pending,
+            a.trust_solver,
+            a.json,
+            a.progress.mode(a.json),
+        );
     }
     if a.pending {
         let idx = cube_run::pending_indices(&a.dir)?;

@@ -270,13 +270,19 @@ pub fn run_cube(
 }
 
 /// `merge` (and `merge --pending`) on a real-space split folder.
-pub fn merge(dir: &Path, pending: bool, accept_claims: bool, json: bool) -> Outcome {
+pub fn merge(
+    dir: &Path,
+    pending: bool,
+    accept_claims: bool,
+    json: bool,
+    progress: ProgressMode,
+) -> Outcome {
     if pending {
         let idx = real::cubes::run::pending_indices(dir)?;
         super::print(&idx.iter().map(|i| format!("{i}\n")).collect::<String>())?;
         return Ok(0);
     }
-    let r = real::cubes::run::merge(dir, accept_claims)?;
+    let r = real::cubes::run::merge(dir, accept_claims, progress)?;
     print_either(
         json,
         || serde_json::to_string(&r).unwrap_or_default(),
@@ -288,7 +294,7 @@ pub fn merge(dir: &Path, pending: bool, accept_claims: bool, json: bool) -> Outc
 /// `check-bundle` on a real-space split folder (as `decide --real --jobs
 /// --bundle` writes it): the merge, which must give a certified verdict.
 pub fn check_split(dir: &Path, json: bool) -> Outcome {
-    let r = real::cubes::run::merge(dir, false)?;
+    let r = real::cubes::run::merge(dir, false, ProgressMode::Off)?;
     print_either(
         json,
         || serde_json::to_string(&r).unwrap_or_default(),

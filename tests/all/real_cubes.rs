@@ -86,7 +86,7 @@ fn split_run_cube_merge_decides_r2_and_r3() {
 }
 
 #[test]
-fn merge_lists_pending_cubes_and_run_cube_refuses_bad_indices() {
+fn merge_lists_pending_cubes_and_run_cube_takes_ranges_and_refuses_bad_indices() {
     let dir = TestDir::new();
     let m = split(&dir, 2, 6, 4, "sp");
     let n = count(&m);
@@ -109,6 +109,33 @@ fn merge_lists_pending_cubes_and_run_cube_refuses_bad_indices() {
         .run()
         .code(ERROR)
         .stderr_has("out of range");
+    dir.orbitcnf()
+        .args(["run-cube", "sp", &format!("1..{n}")])
+        .run()
+        .code(ERROR)
+        .stderr_has("out of range");
+    // the rest as one range: one JSON line per cube, cube 0 already solved
+    let range = dir
+        .orbitcnf()
+        .args(["run-cube", "sp", &format!("0..{}", n - 1), "--json", "-q"])
+        .run();
+    range.code(0);
+    let lines: Vec<Value> = range
+        .stdout
+        .lines()
+        .map(|l| serde_json::from_str(l).expect("one JSON object per line"))
+        .collect();
+    assert_eq!(lines.len(), n);
+    for (i, l) in lines.iter().enumerate() {
+        assert_eq!(l["index"], i);
+        assert_eq!(l["status"], "infeasible");
+    }
+    let merged = dir
+        .orbitcnf()
+        .args(["merge", "sp", "--progress", "lines"])
+        .run();
+    merged.code(INFEASIBLE).stdout_has("INFEASIBLE");
+    merged.stderr_has("merge: 0 of ");
     dir.orbitcnf()
         .args(["merge", "sp", "--proof", "x.lrat"])
         .run()

@@ -126,7 +126,7 @@ pub fn decide_jobs(
     progress("");
     let cubes_seconds = t1.elapsed().as_secs_f64();
     let t2 = Instant::now();
-    let merged = merge(dir, !options.certify)?;
+    let merged = merge(dir, !options.certify, crate::progress::ProgressMode::Off)?;
     Ok(RealJobsReport {
         merge: merged,
         jobs,

@@ -24,6 +24,7 @@ use super::{MANIFEST, RESULTS_DIR, RealSplitManifest, SKELETON, verify_split};
 use crate::artifact::{FileEntry, write_atomically};
 use crate::dimacs::VERSION;
 use crate::error::{Error, Result};
+use crate::progress::{Progress as Reporter, ProgressMode, duration_words};
 use crate::proof::LratSummary;
 use crate::real::certificate::{self, CertificateFiles, check_parts};
 use crate::real::{Progress, RealAnswer, RealOptions, decide_cube};
@@ -412,15 +413,27 @@ fn list(v: &[usize]) -> String {
         .join(" ")
 }
 
+/// How many cubes the real-space split in `dir` has (from its manifest).
+///
+/// # Errors
+/// A manifest that cannot be read or parsed.
+pub fn cube_count(dir: &Path) -> Result<usize> {
+    Ok(RealSplitManifest::read(dir)?.cubes.len())
+}
+
 /// Merges the results of the real-space split in `dir`. A cube refuted on
 /// the search's word only counts when `accept_claims` holds (the verdict
-/// is then unchecked); otherwise it is pending.
+/// is then unchecked); otherwise it is pending. Says through `progress`
+/// how many results it has read and re-checked (every certificate is
+/// checked again, which is most of a merge's time).
 ///
 /// # Errors
 /// A split that fails [`verify_split`] (skeleton, digests, coverage);
 /// [`Error::Io`]. Missing, unknown, failed and rejected cubes are not
 /// errors: they are listed in [`RealMergeReport::pending`].
-pub fn merge(dir: &Path, accept_claims: bool) -> Result<RealMergeReport> {
+pub fn merge(dir: &Path, accept_claims: bool, progress: ProgressMode) -> Result<RealMergeReport> {
+    let mut progress = Reporter::new(progress);
+    let start = Instant::now();
     let m = RealSplitManifest::read(dir)?;
     let (_sk, coverage) = verify_split(dir, &m)?;
     let (n, p) = (m.question.dim, m.question.period);
@@ -442,8 +455,16 @@ pub fn merge(dir: &Path, accept_claims: bool) -> Result<RealMergeReport> {
     };
     let results = dir.join(RESULTS_DIR);
     let skeleton = dir.join(SKELETON);
-    for cube in &m.cubes {
+    for (read, cube) in m.cubes.iter().enumerate() {
         let i = cube.index;
+        progress.status(|| {
+            format!(
+                "merge: {read} of {} cube results read, {} certificates checked ({})",
+                m.cubes.len(),
+                report.certified.len(),
+                duration_words(start.elapsed().as_secs_f64())
+            )
+        });
         let pending = |state: &str, reason: String| Pending {
             index: i,
             state: state.into(),
@@ -525,6 +546,7 @@ pub fn merge(dir: &Path, accept_claims: bool) -> Result<RealMergeReport> {
             )),
         }
     }
+    progress.clear();
     report.verdict = if report.orbit.is_some() {
         Verdict::Feasible
     } else if report.pending.is_empty() {

@@ -114,5 +114,16 @@ pub fn format(rows: &[BenchRow]) -> String {
             r.n, r.p, r.answer, r.seconds, r.check_seconds, r.lemmas
         ));
     }
+    let ours: f64 = rows.iter().map(|r| r.seconds).sum();
+    s.push_str(&format!("total  orbitcnf {ours:.1} s"));
+    let z3: Option<f64> = rows.iter().map(|r| r.z3.as_ref().map(|z| z.1)).sum();
+    if let Some(z) = z3 {
+        s.push_str(&format!(
+            ", z3 {z:.1} s: orbitcnf takes {:.2} of z3's time ({:.1} times faster; target 10)",
+            ours / z.max(1e-9),
+            z / ours.max(1e-9)
+        ));
+    }
+    s.push('\n');
     s
 }

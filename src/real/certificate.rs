@@ -74,8 +74,16 @@ pub fn render_lemmas(
         for lit in lemma_lits(n, p, facts, l) {
             let _ = write!(s, "{lit} ");
         }
+        if let Some(set) = &l.equilateral {
+            let _ = write!(s, "0 e");
+            for i in set {
+                let _ = write!(s, " {i}");
+            }
+            writeln!(out, "{s}")?;
+            continue;
+        }
         let ms = l
-            .conclusion
+            .conclusions
             .iter()
             .map(|x| &x.1)
             .chain(l.facts.iter().map(|x| &x.1))
@@ -99,13 +107,11 @@ pub fn render_lemmas(
 }
 
 /// The clause of a lemma as DIMACS literals, in the lemma file's order: the
-/// conclusion, the negated facts, the negated atoms. `facts[f].0` is fact `f`'s variable.
+/// conclusions, the negated facts, the negated atoms. `facts[f].0` is fact `f`'s variable.
 pub fn lemma_lits(n: usize, p: usize, facts: &[(u32, Vec<i64>)], l: &Lemma) -> Vec<i32> {
     let fvar = |f: usize| facts.get(f).map_or(0, |x| x.0 as i32);
-    let mut out = Vec::with_capacity(1 + l.facts.len() + l.atoms.len());
-    if let Some((f, _)) = &l.conclusion {
-        out.push(fvar(*f));
-    }
+    let mut out = Vec::with_capacity(l.conclusions.len() + l.facts.len() + l.atoms.len());
+    out.extend(l.conclusions.iter().map(|(f, _)| fvar(*f)));
     out.extend(l.facts.iter().map(|(f, _)| -fvar(*f)));
     out.extend(
         l.atoms

@@ -33,6 +33,15 @@
 //! | `g K Y` | `−D_K ≤ −1` (`1 ≤ K ≤ ⌊p/2⌋`) |
 //! | `u Q Y` | `D_1 − D_Q ≤ 0` (`2 ≤ Q ≤ ⌊p/2⌋`, `gcd(Q, p) = 1`) |
 //!
+//! A line may instead close its clause with `e I_1 … I_q`: an *equilateral
+//! lemma*. It is accepted when the `I_t` are more than `2^n` distinct
+//! indices of `0..p`, every literal is a negated fact `D_k − D_l ≥ 0`, and
+//! these facts, read as `D_k ≥ D_l`, force every class `κ(I_s, I_t)` to one
+//! value (each is reachable from each other along them). If every literal
+//! were false, the points `x_{I_t}` would be more than `2^n` points at one
+//! sup-norm distance, which do not exist in R^n (the volume argument of
+//! `encodings/real-space.md` §5).
+//!
 //! A lemma is accepted when every literal is a negated tight variable
 //! `T(i,j,c)` or a declared fact of either sign, and the multiplier-weighted
 //! sum of the rows has every coefficient of every `x_{i,c}` and `D_k` equal
@@ -181,8 +190,20 @@ fn check_line(
         rhs: 0,
     };
     let mut strict = false;
-    if toks.next() != Some("y") {
-        return Err("expected 'y' and one multiplier per literal after the clause".into());
+    match toks.next() {
+        Some("y") => {}
+        Some("e") => {
+            let set: Vec<&str> = toks.collect();
+            return check_equilateral(n, p, first_fact, facts, &clause, &set)
+                .map(|()| (clause.clone(), clause.len()));
+        }
+        _ => {
+            return Err(
+                "expected 'y' and one multiplier per literal, or 'e' and an index set, after \
+                 the clause"
+                    .into(),
+            );
+        }
     }
     for &l in &clause {
         let y = num(toks.next(), "literal multiplier")?;
@@ -278,6 +299,95 @@ fn check_line(
         ));
     }
     Ok((clause, rows))
+}
+
+/// Checks an equilateral lemma: its index set `I` has more than `2^n`
+/// distinct indices of `0..p`, every literal is a negated fact of the form
+/// `D_k − D_l ≥ 0`, and these relations, read as edges `k → l`, lead from
+/// every class of a pair of `I` to every other. If every literal were
+/// false, all those classes would have one distance, and the points of `I`
+/// would be more than `2^n` points of `(R^n, ‖·‖∞)` at equal distances,
+/// which the volume argument of `encodings/real-space.md` §5 excludes.
+fn check_equilateral(
+    n: usize,
+    p: usize,
+    first_fact: usize,
+    facts: &[Vec<i128>],
+    clause: &[i32],
+    set: &[&str],
+) -> Result<(), String> {
+    let mut idx = Vec::with_capacity(set.len());
+    for t in set {
+        let i: usize = t.parse().map_err(|_| format!("e: {t:?} is not an index"))?;
+        if i >= p || idx.contains(&i) {
+            return Err(format!("e: index {i} is out of 0..{p} or repeated"));
+        }
+        idx.push(i);
+    }
+    let bound_exceeded = u32::try_from(n)
+        .ok()
+        .and_then(|n| 1u128.checked_shl(n))
+        .is_some_and(|b| (idx.len() as u128) > b);
+    if !bound_exceeded {
+        return Err(format!(
+            "e: {} indices are not more than 2^{n}, so the equilateral bound says nothing",
+            idx.len()
+        ));
+    }
+    let m = p / 2;
+    let mut edge = vec![vec![false; m + 1]; m + 1];
+    for &l in clause {
+        let v = l.unsigned_abs() as usize;
+        let a = v
+            .checked_sub(first_fact)
+            .and_then(|f| facts.get(f))
+            .filter(|_| l < 0)
+            .ok_or_else(|| format!("e: literal {l} is not a negated declared fact"))?;
+        let plus: Vec<usize> = (0..m).filter(|&k| a[k] == 1).collect();
+        let minus: Vec<usize> = (0..m).filter(|&k| a[k] == -1).collect();
+        let zeros = a.iter().filter(|&&x| x == 0).count();
+        if plus.len() != 1 || minus.len() != 1 || zeros + 2 != m {
+            return Err(format!(
+                "e: fact of literal {l} is not of the form D_k − D_l ≥ 0"
+            ));
+        }
+        edge[plus[0] + 1][minus[0] + 1] = true;
+    }
+    let mut classes: Vec<usize> = Vec::new();
+    for &i in &idx {
+        for &j in &idx {
+            if i != j {
+                let k = class(i, j, p);
+                if !classes.contains(&k) {
+                    classes.push(k);
+                }
+            }
+        }
+    }
+    // reachability along k → l (D_k ≥ D_l) from the first class, both ways
+    let reach = |from: usize, forward: bool| {
+        let mut seen = vec![false; m + 1];
+        let mut stack = vec![from];
+        seen[from] = true;
+        while let Some(k) = stack.pop() {
+            for l in 1..=m {
+                let e = if forward { edge[k][l] } else { edge[l][k] };
+                if e && !seen[l] {
+                    seen[l] = true;
+                    stack.push(l);
+                }
+            }
+        }
+        seen
+    };
+    let k0 = classes[0];
+    let (down, up) = (reach(k0, true), reach(k0, false));
+    if let Some(k) = classes.iter().find(|&&k| !down[k] || !up[k]) {
+        return Err(format!(
+            "e: the facts do not force D_{k} to equal D_{k0}, so the set need not be equilateral"
+        ));
+    }
+    Ok(())
 }
 
 /// Checks every lemma of a lemma file for `(n, p)`, whose fact variables

@@ -66,6 +66,9 @@ pub struct RealOptions {
     pub certificate_dir: Option<PathBuf>,
     /// Start with the lemmas of every two-atom cycle ([`theory::Theory::pattern_lemmas`]).
     pub patterns: bool,
+    /// Start with the order lemmas of the profile and the equilateral
+    /// lemmas ([`theory::Theory::order_lemmas`]).
+    pub order: bool,
     /// Hand the propositional endgame to an external solver; `None` (the
     /// default) searches with the bundled CDCL(T) only.
     pub handoff: Option<Handoff>,
@@ -95,6 +98,7 @@ impl RealOptions {
             certify: true,
             certificate_dir: None,
             patterns: true,
+            order: true,
             handoff: None,
             stop: None,
         }
@@ -233,6 +237,7 @@ pub fn decide_cube(
     let th = theory::Theory::new(n, p);
     let mut solver = sat::Solver::new(&cnf, Some(th), atom, options.certify)?;
     solver.patterns = options.patterns;
+    solver.order = options.order;
     solver.stop = options.stop.clone();
     let deadline = time.map(|t| t0 + t);
     let inner = match &options.handoff {

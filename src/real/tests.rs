@@ -324,3 +324,150 @@ fn orbit_coordinates_come_from_tight_variables() {
     }
     let _ = Var::from_dimacs(1);
 }
+
+/// The order lemmas (totality, transitivity) and the equilateral lemmas all
+/// pass the independent checker, which rejects an equilateral line with too
+/// few indices, with a fact that does not force equality, or with a
+/// positive literal.
+#[test]
+fn order_and_equilateral_lemmas_pass_the_checker_and_tampering_is_caught() {
+    for (n, p) in [(1, 4), (2, 6), (2, 9), (3, 9), (3, 12)] {
+        let mut th = theory::Theory::new(n, p);
+        let lemmas = th.order_lemmas();
+        let eq = lemmas.iter().filter(|l| l.equilateral.is_some()).count();
+        assert_eq!(eq, theory::equilateral_sets(n, p, u64::MAX).len());
+        assert!(eq >= 1, "n={n} p={p}: no equilateral lemma");
+        let base = (n * p * (p - 1)) as u32 + 1;
+        let facts: Vec<(u32, Vec<i64>)> = th
+            .facts()
+            .iter()
+            .enumerate()
+            .map(|(f, x)| (base + f as u32, x.coeffs.clone()))
+            .collect();
+        let mut buf = Vec::new();
+        certificate::render_lemmas(n, p, &facts, &lemmas, &mut buf).unwrap();
+        let text = String::from_utf8(buf).unwrap();
+        let (clauses, _) = farkas_check::check_lemmas(n, p, base as usize, &text).unwrap();
+        assert_eq!(clauses.len(), lemmas.len());
+        // tamper with the first equilateral line
+        let lines: Vec<&str> = text.lines().collect();
+        let at = lines.iter().position(|l| l.contains(" 0 e ")).unwrap();
+        let (clause, set) = lines[at].split_once(" 0 e ").unwrap();
+        let mut idx: Vec<&str> = set.split_whitespace().collect();
+        let tampered = |line: String| {
+            let mut t = lines.clone();
+            t[at] = &line;
+            let r = farkas_check::check_lemmas(n, p, base as usize, &(t.join("\n") + "\n"));
+            let e = r.expect_err("tampered equilateral lemma accepted");
+            assert_eq!(e.line, at + 1, "{e}");
+            e.reason
+        };
+        idx.pop();
+        let r = tampered(format!("{clause} 0 e {}", idx.join(" ")));
+        assert!(r.contains("not more than"), "{r}");
+        let lits: Vec<&str> = clause.split_whitespace().collect();
+        let r = tampered(format!("{} 0 e {set}", lits[1..].join(" ")));
+        assert!(
+            r.contains("do not force") || r.contains("is no"),
+            "dropping a literal: {r}"
+        );
+        let flipped = lits[0].trim_start_matches('-');
+        let r = tampered(format!("{flipped} {} 0 e {set}", lits[1..].join(" ")));
+        assert!(r.contains("not a negated declared fact"), "{r}");
+    }
+}
+
+/// `equilateral_sets` against brute force: every set is a clique of more
+/// than 2^n indices of the circulant graph of its classes, and its class
+/// sets are exactly the minimal class sets (two classes or more) whose
+/// circulant graph has such a clique, found here by trying every subset.
+#[test]
+fn equilateral_sets_are_exactly_the_minimal_class_sets_with_large_cliques() {
+    for (n, p) in [(1, 3), (1, 6), (2, 5), (2, 8), (2, 11), (3, 9), (3, 12)] {
+        let q = (1usize << n) + 1;
+        let sets = theory::equilateral_sets(n, p, u64::MAX);
+        let mut ks = Vec::new();
+        for set in &sets {
+            assert_eq!(set.len(), q);
+            let k = theory::classes_of(set, p);
+            assert!(k.len() >= 2);
+            ks.push(k);
+        }
+        let m = p / 2;
+        let has_clique = |k: &[usize]| {
+            (0u32..1 << p).any(|s| {
+                s.count_ones() as usize == q
+                    && (0..p).all(|i| {
+                        (0..p).all(|j| {
+                            i == j
+                                || s & (1 << i) == 0
+                                || s & (1 << j) == 0
+                                || k.contains(&skeleton::kappa(i, j, p))
+                        })
+                    })
+            })
+        };
+        let subsets: Vec<Vec<usize>> = (1u32..1 << m)
+            .map(|b| (1..=m).filter(|&k| b & (1 << (k - 1)) != 0).collect())
+            .collect();
+        let good: Vec<&Vec<usize>> = subsets.iter().filter(|k| has_clique(k)).collect();
+        let minimal: Vec<&Vec<usize>> = good
+            .iter()
+            .copied()
+            .filter(|k| k.len() >= 2)
+            .filter(|k| {
+                !good
+                    .iter()
+                    .any(|g| g.len() < k.len() && g.iter().all(|x| k.contains(x)))
+            })
+            .collect();
+        let mut want: Vec<Vec<usize>> = minimal.into_iter().cloned().collect();
+        want.sort();
+        ks.sort();
+        assert_eq!(ks, want, "n={n} p={p}");
+    }
+}
+
+/// The bound behind the equilateral lemmas, by brute force on small boxes:
+/// (R^n, sup-norm) has 2^n points at one distance from each other but not
+/// 2^n + 1, for n = 1, 2 (on {0..4}^n, every distance; Petty's bound
+/// [recalled], proved in encodings/real-space.md §5).
+#[test]
+fn no_equilateral_set_beyond_two_to_the_n_on_small_boxes() {
+    for n in 1..=2usize {
+        let pts: Vec<Vec<i64>> = (0..5i64.pow(n as u32))
+            .map(|mut v| {
+                (0..n)
+                    .map(|_| {
+                        let x = v % 5;
+                        v /= 5;
+                        x
+                    })
+                    .collect()
+            })
+            .collect();
+        let d = |a: &[i64], b: &[i64]| a.iter().zip(b).map(|(x, y)| (x - y).abs()).max().unwrap();
+        for r in 1..=4 {
+            // largest set at pairwise distance r, by extending cliques
+            fn grow(
+                pts: &[Vec<i64>],
+                set: &mut Vec<usize>,
+                from: usize,
+                ok: &dyn Fn(usize, usize) -> bool,
+            ) -> usize {
+                let mut best = set.len();
+                for v in from..pts.len() {
+                    if set.iter().all(|&u| ok(u, v)) {
+                        set.push(v);
+                        best = best.max(grow(pts, set, v + 1, ok));
+                        set.pop();
+                    }
+                }
+                best
+            }
+            let ok = |u: usize, v: usize| d(&pts[u], &pts[v]) == r;
+            let best = grow(&pts, &mut Vec::new(), 0, &ok);
+            assert_eq!(best, 1 << n, "n={n} r={r}");
+        }
+    }
+}

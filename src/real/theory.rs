@@ -40,12 +40,14 @@ use num_traits::{One, ToPrimitive, Zero};
 use super::lp::{ExactLp, Side};
 use super::skeleton::kappa;
 
-/// A theory lemma over tight atoms and profile facts, with its Farkas certificate.
+/// A theory lemma over tight atoms and profile facts, with its Farkas
+/// certificate (or, for [`Lemma::equilateral`], the index set of the
+/// equilateral bound).
 ///
-/// The clause is `F_conclusion ∨ ¬F_facts… ∨ ¬T_atoms…`. Rows in `≤` form
+/// The clause is `F_conclusions… ∨ ¬F_facts… ∨ ¬T_atoms…`. Rows in `≤` form
 /// (see `encodings/real-space.md` §5): atom `T(i,j,c)` is
 /// `x_{i,c} − x_{j,c} + D_κ ≤ 0`; fact `F_f` (assumed true) is `−a_f·D ≤ 0`;
-/// the negated conclusion is the strict row `a_f·D < 0`; background
+/// each negated conclusion is the strict row `a_f·D < 0`; background
 /// `(u, v, c)` is `x_{v,c} − x_{u,c} − D_κ ≤ 0`; `norm k` is `−D_k ≤ −1`;
 /// `unit u` is `D_1 − D_u ≤ 0`. The nonnegative integer combination has
 /// every variable coefficient 0 and right-hand side `< 0`, or `= 0` when the
@@ -56,14 +58,20 @@ pub struct Lemma {
     pub atoms: Vec<((usize, usize, usize), BigInt)>,
     /// Facts assumed true (negative literals), by index, with multipliers.
     pub facts: Vec<(usize, BigInt)>,
-    /// The fact concluded (a positive literal), with the multiplier of its strict row.
-    pub conclusion: Option<(usize, BigInt)>,
+    /// The facts concluded (positive literals), with the multipliers of their strict rows.
+    pub conclusions: Vec<(usize, BigInt)>,
     /// Background rows `(u, v, c)`, with their multipliers.
     pub background: Vec<((usize, usize, usize), BigInt)>,
     /// Normalisation rows `D_k ≥ 1` (`k` is the class, 1-based), with multipliers.
     pub norm: Vec<(usize, BigInt)>,
     /// Normalisation rows `D_1 ≤ D_u` (`u` is the class), with multipliers.
     pub unit: Vec<(usize, BigInt)>,
+    /// `Some(I)` for a lemma justified by the equilateral bound instead of
+    /// a Farkas combination: the clause is `¬F_facts…` only, the facts say
+    /// `D_k ≥ D_l` and together force every class between two indices of
+    /// `I` to the same value, and `|I| > 2^n` (`encodings/real-space.md`
+    /// §5, "Equilateral lemmas"). The multipliers are then unused.
+    pub equilateral: Option<Vec<usize>>,
 }
 
 impl Lemma {
@@ -78,10 +86,11 @@ impl Lemma {
         Lemma {
             atoms,
             facts: Vec::new(),
-            conclusion: Some((fact, g)),
+            conclusions: vec![(fact, g)],
             background,
             norm: Vec::new(),
             unit: Vec::new(),
+            equilateral: None,
         }
     }
 }
@@ -624,6 +633,102 @@ impl Theory {
         (f, g)
     }
 
+    /// The order lemmas of the profile: the facts `D_x ≥ D_y` for all
+    /// classes `x ≠ y`, their totality (`D_x ≥ D_y ∨ D_y ≥ D_x`) and
+    /// transitivity, each with its Farkas certificate, and the equilateral
+    /// lemmas of [`equilateral_sets`] (`encodings/real-space.md` §5). They let
+    /// the search split on the order of the profile, which is where the
+    /// equilateral bound, a counting argument that resolution finds only
+    /// slowly, applies.
+    pub fn order_lemmas(&mut self) -> Vec<Lemma> {
+        let m = self.m;
+        let mut ge = vec![vec![0usize; m]; m];
+        for (x, row) in ge.iter_mut().enumerate() {
+            for (y, slot) in row.iter_mut().enumerate() {
+                if x != y {
+                    let mut a = vec![0i64; m];
+                    a[x] = 1;
+                    a[y] = -1;
+                    *slot = self.fact_for(&a).0;
+                }
+            }
+        }
+        let one = BigInt::one;
+        let lemma = |facts: Vec<usize>, conclusions: Vec<usize>| Lemma {
+            atoms: Vec::new(),
+            facts: facts.into_iter().map(|f| (f, one())).collect(),
+            conclusions: conclusions.into_iter().map(|f| (f, one())).collect(),
+            background: Vec::new(),
+            norm: Vec::new(),
+            unit: Vec::new(),
+            equilateral: None,
+        };
+        let mut out = Vec::new();
+        for x in 0..m {
+            for y in x + 1..m {
+                // strict rows D_x − D_y < 0 and D_y − D_x < 0 sum to 0 < 0
+                out.push(lemma(vec![], vec![ge[x][y], ge[y][x]]));
+            }
+        }
+        for x in 0..m {
+            for y in (0..m).filter(|&y| y != x) {
+                for z in (0..m).filter(|&z| z != x && z != y) {
+                    // D_y − D_x ≤ 0, D_z − D_y ≤ 0 and D_x − D_z < 0 sum to 0 < 0
+                    out.push(lemma(vec![ge[x][y], ge[y][z]], vec![ge[x][z]]));
+                }
+            }
+        }
+        let (n, p) = (self.n, self.p);
+        let pairs = p * (p - 1);
+        if n * pairs * pairs <= CROSSING_ORDER_CAP {
+            let k = |u: usize, v: usize| kappa(u, v, p) - 1;
+            for c in 0..n {
+                for a in 0..p {
+                    for b in (0..p).filter(|&b| b != a) {
+                        for e in 0..p {
+                            for d in (0..p).filter(|&d| d != e && d != a) {
+                                if (e, d) == (a, b) || e == b {
+                                    continue;
+                                }
+                                let (k1, k2, j, h) = (k(a, b), k(e, d), k(a, d), k(e, b));
+                                // j = k1 leaves nothing to conclude; (k2, h) = (j, k1)
+                                // would make the clause a tautology
+                                if j == k1 || (k2, h) == (j, k1) {
+                                    continue;
+                                }
+                                // atoms T(a,b,c), T(e,d,c) and background (a,d), (e,b)
+                                // sum to D_k1 + D_k2 − D_j − D_h ≤ 0; with
+                                // D_k2 ≥ D_h (fact) and D_j < D_k1 (strict) to 0 < 0
+                                let mut l = lemma(
+                                    if h == k2 { vec![] } else { vec![ge[k2][h]] },
+                                    vec![ge[j][k1]],
+                                );
+                                let mut atoms = vec![((a, b, c), one()), ((e, d, c), one())];
+                                atoms.sort();
+                                l.atoms = atoms;
+                                let mut bg = vec![((a, d, c), one()), ((e, b, c), one())];
+                                bg.sort();
+                                l.background = bg;
+                                out.push(l);
+                            }
+                        }
+                    }
+                }
+            }
+        }
+        for set in equilateral_sets(self.n, self.p, EQUILATERAL_BUDGET) {
+            let classes = classes_of(&set, self.p);
+            let r = classes.len();
+            let facts = (0..r)
+                .map(|t| ge[classes[t] - 1][classes[(t + 1) % r] - 1])
+                .collect();
+            let mut l = lemma(facts, vec![]);
+            l.equilateral = Some(set);
+            out.push(l);
+        }
+        out
+    }
+
     /// The implication lemmas of every cycle with two atoms, in every
     /// coordinate: chains `T(a,b,c) ∧ T(b,e,c) → D_κ(a,e) ≥ D_κ(a,b) + D_κ(b,e)`
     /// and crossings `T(a,b,c) ∧ T(d,e,c) → D_κ(a,e) + D_κ(d,b) ≥ D_κ(a,b) + D_κ(d,e)`
@@ -737,14 +842,121 @@ impl Theory {
         let mut out = Lemma {
             atoms: Vec::new(),
             facts: facts.iter().map(|(f, x)| (*f, int(x))).collect(),
-            conclusion: None,
+            conclusions: Vec::new(),
             background: Vec::new(),
             norm: norm.iter().map(|(k, x)| (*k, int(x))).collect(),
             unit: unit.iter().map(|(k, x)| (*k, int(x))).collect(),
+            equilateral: None,
         };
         out.facts.sort();
         out.norm.sort();
         out.unit.sort();
         Ok(out)
     }
+}
+
+/// [`Theory::order_lemmas`] writes its crossing lemmas only while
+/// `n·(p(p−1))²`, about their number, is at most this.
+pub const CROSSING_ORDER_CAP: usize = 300_000;
+
+/// Search nodes [`equilateral_sets`] may spend in [`Theory::order_lemmas`].
+pub const EQUILATERAL_BUDGET: u64 = 2_000_000;
+
+/// The classes `κ(i, j)` of the pairs of `set`, sorted, without repeats.
+pub fn classes_of(set: &[usize], p: usize) -> Vec<usize> {
+    let mut k: Vec<usize> = set
+        .iter()
+        .flat_map(|&i| {
+            set.iter()
+                .filter(move |&&j| j != i)
+                .map(move |&j| kappa(i, j, p))
+        })
+        .collect();
+    k.sort_unstable();
+    k.dedup();
+    k
+}
+
+/// Index sets `I ⊆ Z_p` of more than `2^n` indices whose pairs fall in at
+/// least two classes, one for each class set `K` of two or more classes
+/// that is minimal (no subset, not even a single class, has such an `I`): if the profile were constant on `K`, the points of `I`
+/// would be an equilateral set of more than `2^n` points in
+/// `(R^n, ‖·‖∞)`, which does not exist (`encodings/real-space.md` §5).
+/// A set `I` for `K` is a clique of the circulant graph on `Z_p` with
+/// offsets `K`, found by a search from index 0 (the graph is
+/// vertex-transitive). At most `budget` search nodes in all; past that the
+/// list is cut short, which only means fewer lemmas. Empty when
+/// `2^n ≥ p` or `p > 41` (more than 2^20 class sets).
+pub fn equilateral_sets(n: usize, p: usize, budget: u64) -> Vec<Vec<usize>> {
+    let q = match 1usize.checked_shl(n as u32) {
+        Some(v) if v < p && n < 63 => v + 1,
+        _ => return Vec::new(),
+    };
+    if p > 41 {
+        return Vec::new();
+    }
+    let m = p / 2;
+    let mut masks: Vec<u64> = (1u64..(1u64 << m)).collect();
+    masks.sort_by_key(|k| (k.count_ones(), *k));
+    let mut found: Vec<u64> = Vec::new();
+    let mut out = Vec::new();
+    let mut nodes = 0u64;
+    for k in masks {
+        if found.iter().any(|&f| f & !k == 0) {
+            continue;
+        }
+        // the degree of a vertex bounds the clique: 2|K|, one less with p/2 ∈ K
+        let half = p.is_multiple_of(2) && k & (1 << (m - 1)) != 0;
+        if 2 * (k.count_ones() as usize) - usize::from(half) + 1 < q {
+            continue;
+        }
+        let adj: Vec<u64> = (0..p)
+            .map(|i| {
+                (0..p)
+                    .filter(|&j| j != i && k & (1 << (kappa(i, j, p) - 1)) != 0)
+                    .fold(0u64, |a, j| a | (1 << j))
+            })
+            .collect();
+        let mut clique = vec![0usize];
+        if grow_clique(&adj, &mut clique, adj[0], q, &mut nodes, budget) {
+            found.push(k);
+            // one class alone would make an empty clause; such a period
+            // (a multiple of 3 in R^1) is left to the search
+            if k.count_ones() >= 2 {
+                out.push(clique);
+            }
+        }
+        if nodes >= budget {
+            break;
+        }
+    }
+    out
+}
+
+/// Extends `clique` by vertices of `cand` (all adjacent to the clique) to size `q`.
+fn grow_clique(
+    adj: &[u64],
+    clique: &mut Vec<usize>,
+    mut cand: u64,
+    q: usize,
+    nodes: &mut u64,
+    budget: u64,
+) -> bool {
+    if clique.len() == q {
+        return true;
+    }
+    while cand != 0 && *nodes < budget {
+        if clique.len() + (cand.count_ones() as usize) < q {
+            return false;
+        }
+        *nodes += 1;
+        let v = cand.trailing_zeros() as usize;
+        cand &= cand - 1;
+        clique.push(v);
+        if grow_clique(adj, clique, cand & adj[v], q, nodes, budget) {
+            return true;
+        }
+        clique.pop();
+    }
+    false
 }

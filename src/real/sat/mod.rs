@@ -117,6 +117,8 @@ pub struct Solver {
     cla_inc: f32,
     /// Add the two-atom cycle lemmas of [`Theory::pattern_lemmas`] before searching.
     pub patterns: bool,
+    /// Add the order and equilateral lemmas of [`Theory::order_lemmas`] before searching.
+    pub order: bool,
     /// Ends the search (unknown) once set, checked with the deadline.
     pub stop: Option<std::sync::Arc<std::sync::atomic::AtomicBool>>,
     /// Counters.
@@ -202,6 +204,7 @@ impl Solver {
             garbage: 0,
             cla_inc: 1.0,
             patterns: true,
+            order: true,
             stop: None,
             stats: SatStats::default(),
         };
@@ -780,6 +783,30 @@ impl Solver {
             for (fact, lemma) in pats {
                 let fv = self.fact_variable(fact);
                 let mut lits = vec![fv << 1];
+                for &((i, j, c), _) in &lemma.atoms {
+                    if let Some(&v) = self.atom_var.get(&Item::Tight(i, j, c)) {
+                        lits.push((v << 1) | 1);
+                    }
+                }
+                let id = self.log.lemma();
+                self.lemmas.push(lemma);
+                self.attach(&lits, id, false, 0);
+            }
+        }
+        if self.order {
+            let order = self
+                .theory
+                .as_mut()
+                .map(Theory::order_lemmas)
+                .unwrap_or_default();
+            for lemma in order {
+                let mut lits: Vec<u32> = Vec::with_capacity(lemma.facts.len() + 2);
+                for &(f, _) in &lemma.conclusions {
+                    lits.push(self.fact_variable(f) << 1);
+                }
+                for &(f, _) in &lemma.facts {
+                    lits.push((self.fact_variable(f) << 1) | 1);
+                }
                 for &((i, j, c), _) in &lemma.atoms {
                     if let Some(&v) = self.atom_var.get(&Item::Tight(i, j, c)) {
                         lits.push((v << 1) | 1);

@@ -94,15 +94,29 @@ impl RealBundleCheck {
         if let Some(c) = &self.certificate {
             s.push_str(&format!(
                 "skeleton     identical to a fresh build ({} clauses)\n\
-                 lemmas       {} Farkas certificates accepted ({} rows, exact arithmetic)\n\
+                 lemmas       {} Farkas certificates accepted ({} rows, exact arithmetic){}\n\
                  verdict      INFEASIBLE, certified: LRAT proof of {} steps accepted (empty clause at id {})\n",
-                c.skeleton_clauses, c.farkas.lemmas, c.farkas.rows, c.lrat.steps, c.lrat.empty_clause_id
+                c.skeleton_clauses,
+                c.farkas.lemmas - c.farkas.equilateral,
+                c.farkas.rows,
+                equilateral_words(c.farkas.equilateral),
+                c.lrat.steps,
+                c.lrat.empty_clause_id
             ));
         }
         if let Some(o) = &self.orbit {
             s.push_str(&format!("verdict      FEASIBLE, certified: {o}\n"));
         }
         s
+    }
+}
+
+/// `", and N equilateral lemma(s) (index sets checked)"` for `N > 0`, else empty.
+pub fn equilateral_words(n: usize) -> String {
+    match n {
+        0 => String::new(),
+        1 => ", and 1 equilateral lemma (its index set checked)".into(),
+        n => format!(", and {n} equilateral lemmas (their index sets checked)"),
     }
 }
 

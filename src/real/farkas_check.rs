@@ -87,6 +87,9 @@ pub struct FarkasSummary {
     pub literals: usize,
     /// Rows over all lemmas (atoms, background and normalisation).
     pub rows: usize,
+    /// Of the lemmas: those justified by the equilateral bound (`e` lines)
+    /// instead of Farkas multipliers.
+    pub equilateral: usize,
 }
 
 /// The header line a lemma file for `(n, p)` starts with.
@@ -432,6 +435,7 @@ pub fn check_lemmas(
         lemmas: 0,
         literals: 0,
         rows: 0,
+        equilateral: 0,
     };
     for (k, line) in lines {
         let t = line.trim();
@@ -469,6 +473,9 @@ pub fn check_lemmas(
         }
         let (clause, rows) = check_line(n, p, first_fact, &facts, t).map_err(|r| err(k + 1, r))?;
         summary.lemmas += 1;
+        if t.contains(" 0 e ") || t.starts_with("0 e ") {
+            summary.equilateral += 1;
+        }
         summary.literals += clause.len();
         summary.rows += rows;
         clauses.push(clause);

@@ -103,8 +103,10 @@ impl RealReport {
                 );
                 let _ = writeln!(
                     s,
-                    "lemmas       {} theory lemmas ({} profile facts), every Farkas certificate accepted by the exact checker",
-                    c.farkas.lemmas, c.farkas.facts
+                    "lemmas       {} theory lemmas ({} profile facts), every Farkas certificate accepted by the exact checker{}",
+                    c.farkas.lemmas,
+                    c.farkas.facts,
+                    super::bundle::equilateral_words(c.farkas.equilateral)
                 );
                 let _ = writeln!(
                     s,

@@ -64,7 +64,7 @@ fn dimensions_one_and_two_match_the_published_periods() {
 
 /// Periods 1..8 occur in R^3 (docs/math.md §5); the refutations of 9..12 (the
 /// theorem of R. Lyons and R. D. Nussbaum, 1992 [recalled], with the bound 12 of
-/// Lemmens and Scheutzow) are in the ignored test below.
+/// Lemmens and Scheutzow) are tests of the binary (see below).
 #[test]
 fn dimension_three_has_every_period_up_to_eight() {
     for p in 1..=8 {
@@ -73,8 +73,8 @@ fn dimension_three_has_every_period_up_to_eight() {
 }
 
 // n = 3, p = 9..12 (R. Lyons and R. D. Nussbaum, 1992 [recalled]) are in
-// tests/all/real_cli.rs, one ignored test per period, through the binary
-// with the hand-off to CaDiCaL.
+// tests/all/real_cli.rs: one test of the bundled search with bundles
+// re-checked, and one ignored test per period with the hand-off to CaDiCaL.
 
 /// Every period feasible on a small box (independent brute force) is feasible
 /// over R^n, and the orbit found spans at most max D per coordinate.

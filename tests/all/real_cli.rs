@@ -328,6 +328,28 @@ fn lyons_nussbaum(p: usize) {
         .stdout_has("INFEASIBLE, certified");
 }
 
+/// R^3 has no period 9, 10, 11 or 12 (R. Lyons and R. D. Nussbaum, 1992
+/// [recalled]; 12 is the bound of B. Lemmens and M. Scheutzow, 2005
+/// [recalled]), refuted by the bundled CDCL(T) alone with the order and
+/// equilateral lemmas (encodings/real-space.md §5), each certificate kept as
+/// a bundle and re-checked by `check-bundle`. About 30 s in all here.
+#[test]
+fn real_space_dimension_three_has_no_period_9_to_12() {
+    let dir = TestDir::new();
+    for p in 9..=12 {
+        let b = format!("b{p}");
+        let r = real(&dir, 3, p, &["-q", "--json", "--bundle", &b]);
+        r.code(INFEASIBLE);
+        assert_eq!(r.json()["certified"], true, "p = {p}");
+        dir.orbitcnf()
+            .args(["check-bundle", &b])
+            .run()
+            .code(0)
+            .stdout_has("INFEASIBLE, certified")
+            .stdout_has("equilateral lemma");
+    }
+}
+
 #[test]
 #[ignore = "long: 1-2 minutes (R^3, p = 9, certified; cadical and rate)"]
 fn real_space_dimension_three_has_no_period_9() {

@@ -87,7 +87,7 @@ impl RealCubeResult {
             CubeStatus::Feasible => "feasible (orbit checked)".to_string(),
             CubeStatus::Infeasible => match &self.certificate {
                 Some(c) => format!(
-                    "infeasible, certificate checked ({} Farkas lemmas, LRAT proof of {} steps)",
+                    "infeasible, certificate checked ({} theory lemmas, LRAT proof of {} steps)",
                     c.lemma_count, c.lrat_steps
                 ),
                 None => "infeasible, UNCHECKED (no certificate)".to_string(),
@@ -375,7 +375,7 @@ impl RealMergeReport {
         );
         let _ = writeln!(
             s,
-            "cubes        {} certified infeasible ({} Farkas lemmas, {} LRAT steps re-checked), {} on the search's word",
+            "cubes        {} certified infeasible ({} theory lemmas, {} LRAT steps re-checked), {} on the search's word",
             self.certified.len(),
             self.lemmas,
             self.lrat_steps,

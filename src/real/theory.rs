@@ -857,7 +857,7 @@ impl Theory {
 
 /// [`Theory::order_lemmas`] writes its crossing lemmas only while
 /// `n·(p(p−1))²`, about their number, is at most this.
-pub const CROSSING_ORDER_CAP: usize = 300_000;
+pub const CROSSING_ORDER_CAP: usize = 1_000_000;
 
 /// Search nodes [`equilateral_sets`] may spend in [`Theory::order_lemmas`].
 pub const EQUILATERAL_BUDGET: u64 = 2_000_000;

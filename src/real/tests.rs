@@ -150,7 +150,9 @@ fn normalised_assignment(orbit: &[Vec<i64>], sk: &skeleton::Skeleton) -> (Vec<bo
 
 /// Every isometric cycle found by brute force on small boxes has an image
 /// under the symmetries whose truth values satisfy every skeleton clause and
-/// whose profile satisfies the normalisation (`D_1 ≤ D_u`; `D_k ≥ 1` after scaling).
+/// every order lemma (totality, transitivity, crossing-order; the
+/// equilateral lemmas exist only where no cycle does), and whose profile
+/// satisfies the normalisation (`D_1 ≤ D_u`; `D_k ≥ 1` after scaling).
 #[test]
 fn every_small_cycle_has_an_image_satisfying_the_skeleton() {
     let mut seen = 0;
@@ -164,6 +166,9 @@ fn every_small_cycle_has_an_image_satisfying_the_skeleton() {
         let bounds = vec![(0, side); n];
         for p in ps {
             let sk = skeleton::build(n, p, &SkeletonOptions::default()).unwrap();
+            let mut th = theory::Theory::new(n, p);
+            let order = th.order_lemmas();
+            let facts: Vec<Vec<i64>> = th.facts().iter().map(|f| f.coeffs.clone()).collect();
             for orbit in brute::all_cycles(&bounds, p, 300) {
                 let (val, g) = normalised_assignment(&orbit, &sk);
                 if let Some(k) = sk.cnf.first_falsified(&val) {
@@ -171,6 +176,17 @@ fn every_small_cycle_has_an_image_satisfying_the_skeleton() {
                         "n={n} p={p} orbit {orbit:?}: clause {k} {:?} fails",
                         sk.cnf.clause(k)
                     );
+                }
+                // the order lemmas, each literal read at this cycle
+                let holds =
+                    |f: usize| facts[f].iter().zip(&g).map(|(a, d)| a * d).sum::<i64>() >= 0;
+                let tight =
+                    |i: usize, j: usize, c: usize| val[skeleton::tight_var(n, p, i, j, c).index()];
+                for l in &order {
+                    let sat = l.conclusions.iter().any(|&(f, _)| holds(f))
+                        || l.facts.iter().any(|&(f, _)| !holds(f))
+                        || l.atoms.iter().any(|&((i, j, c), _)| !tight(i, j, c));
+                    assert!(sat, "n={n} p={p} orbit {orbit:?}: order lemma {l:?} fails");
                 }
                 for u in 2..=p / 2 {
                     if num_integer::Integer::gcd(&u, &p) == 1 {

@@ -73,6 +73,11 @@ pub struct DecideArgs {
     /// PROOF; a DRAT proof, converted to LRAT by `rate` and checked).
     #[arg(long, value_name = "SECS", value_parser = parse_seconds, requires = "real")]
     handoff_after: Option<Duration>,
+    /// With --real: leave out the order lemmas of the profile (totality,
+    /// transitivity, crossing-order and equilateral lemmas,
+    /// encodings/real-space.md §5), as before they existed; for comparisons.
+    #[arg(long, requires = "real")]
+    no_order_lemmas: bool,
 }
 
 /// Runs `decide`.
@@ -161,6 +166,7 @@ fn run_real(n: usize, a: DecideArgs) -> Outcome {
         bundle: a.bundle,
         certify: !a.certify.no_certify,
         handoff,
+        order: !a.no_order_lemmas,
         jobs: a.scale.jobs,
         cubes: a.scale.cubes,
     })

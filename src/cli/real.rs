@@ -30,6 +30,8 @@ pub struct RealDecide {
     pub certify: bool,
     /// Hand the propositional endgame to an external solver.
     pub handoff: Option<Handoff>,
+    /// Start with the order lemmas (`RealOptions::order`).
+    pub order: bool,
     /// Threads for cubes (`--jobs`); with `cubes`, a run in cubes.
     pub jobs: Option<usize>,
     /// Cubes to aim for (`--cubes`).
@@ -92,6 +94,7 @@ pub fn decide(a: RealDecide) -> Outcome {
     let mut o = RealOptions::new();
     o.certify = a.certify;
     o.handoff = a.handoff;
+    o.order = a.order;
     o.certificate_dir = keep.as_ref().map(|t| t.path().to_path_buf());
     let mut line = progress_line(a.progress);
     let report = real::decide(a.n, a.p, &o, a.time_limit, &mut |pr| {
@@ -198,6 +201,7 @@ fn decide_jobs(a: RealDecide) -> Outcome {
     let mut o = RealOptions::new();
     o.certify = a.certify;
     o.handoff = a.handoff;
+    o.order = a.order;
     let mut line = progress_line(a.progress);
     let r =
         real::cubes::jobs::decide_jobs(a.n, a.p, &o, jobs, cubes, dir, a.time_limit, &mut |t| {

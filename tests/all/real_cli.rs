@@ -448,3 +448,25 @@ fn real_space_spectrum_answers_multiples_by_section_9() {
         .code(0)
         .stdout_has("by §9: 5 is infeasible (certified)");
 }
+
+/// `--no-order-lemmas` leaves the order lemmas out (the certificate has no
+/// equilateral lemma) and still decides; without --real it is refused.
+#[test]
+fn real_space_without_order_lemmas_still_decides() {
+    let dir = TestDir::new();
+    let r = real(&dir, 2, 6, &["--no-order-lemmas", "--bundle", "b"]);
+    r.code(INFEASIBLE);
+    assert!(!r.stdout.contains("equilateral"), "{}", r.stdout);
+    dir.orbitcnf()
+        .args(["check-bundle", "b"])
+        .run()
+        .code(0)
+        .stdout_has("INFEASIBLE, certified");
+    let with = real(&dir, 2, 6, &[]);
+    with.code(INFEASIBLE).stdout_has("1 equilateral lemma");
+    dir.orbitcnf()
+        .args(["decide", "--dim", "2", "-p", "6", "--no-order-lemmas"])
+        .run()
+        .code(ERROR)
+        .stderr_has("--real");
+}

@@ -252,8 +252,9 @@ fn grow(
 
 /// The partial pattern that makes `pairs` a fooling set under `mask`: their
 /// offsets far, and for every two of them and each placement one cross pair
-/// close (reusing offsets already named where possible).
-fn exclusion(p: usize, mask: u64, pairs: &[(usize, usize)]) -> Option<Exclusion> {
+/// close (reusing offsets already named where possible). `None` when
+/// `pairs` is no fooling set under `mask`.
+pub fn exclusion(p: usize, mask: u64, pairs: &[(usize, usize)]) -> Option<Exclusion> {
     let far_set: BTreeSet<usize> = pairs.iter().map(|&(a, b)| fold(b + p - a, p)).collect();
     let mut close = BTreeSet::new();
     for (x, &(a, b)) in pairs.iter().enumerate() {

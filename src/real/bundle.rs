@@ -97,9 +97,9 @@ impl RealBundleCheck {
                  lemmas       {} Farkas certificates accepted ({} rows, exact arithmetic){}\n\
                  verdict      INFEASIBLE, certified: LRAT proof of {} steps accepted (empty clause at id {})\n",
                 c.skeleton_clauses,
-                c.farkas.lemmas - c.farkas.equilateral,
+                c.farkas.lemmas - c.farkas.equilateral - c.farkas.top,
                 c.farkas.rows,
-                equilateral_words(c.farkas.equilateral),
+                special_words(&c.farkas),
                 c.lrat.steps,
                 c.lrat.empty_clause_id
             ));
@@ -111,13 +111,26 @@ impl RealBundleCheck {
     }
 }
 
-/// `", and N equilateral lemma(s) (index sets checked)"` for `N > 0`, else empty.
-pub fn equilateral_words(n: usize) -> String {
-    match n {
-        0 => String::new(),
-        1 => ", and 1 equilateral lemma (its index set checked)".into(),
-        n => format!(", and {n} equilateral lemmas (their index sets checked)"),
+/// `", and N equilateral lemma(s) … and M top-pattern lemma(s) …"` for the
+/// lemmas checked by their own rules instead of Farkas multipliers; empty
+/// when there are none.
+pub fn special_words(f: &crate::real::farkas_check::FarkasSummary) -> String {
+    let mut s = String::new();
+    match f.equilateral {
+        0 => {}
+        1 => s.push_str(", and 1 equilateral lemma (its index set checked)"),
+        k => s.push_str(&format!(
+            ", and {k} equilateral lemmas (their index sets checked)"
+        )),
     }
+    match f.top {
+        0 => {}
+        1 => s.push_str(", and 1 top-pattern lemma (its pairs checked)"),
+        k => s.push_str(&format!(
+            ", and {k} top-pattern lemmas (their pairs checked)"
+        )),
+    }
+    s
 }
 
 /// Whether `dir` holds a real-space bundle: a manifest whose question is in

@@ -74,6 +74,14 @@ pub fn render_lemmas(
         for lit in lemma_lits(n, p, facts, l) {
             let _ = write!(s, "{lit} ");
         }
+        if let Some(pairs) = &l.fooling {
+            let _ = write!(s, "0 t");
+            for (a, b) in pairs {
+                let _ = write!(s, " {a} {b}");
+            }
+            writeln!(out, "{s}")?;
+            continue;
+        }
         if let Some(set) = &l.equilateral {
             let _ = write!(s, "0 e");
             for i in set {

@@ -42,6 +42,16 @@
 //! sup-norm distance, which do not exist in R^n (the volume argument of
 //! `encodings/real-space.md` §5).
 //!
+//! A line may also close its clause with `t A_1 B_1 … A_{n+1} B_{n+1}`: a
+//! *top-pattern lemma* over order facts `D_k − D_l ≥ 0` only. It is
+//! accepted when the negated facts make the class of the first pair the
+//! largest and every pair's class at least as large, and for every two
+//! pairs and each way of putting them on the low and high side of one
+//! coordinate some cross pair joins an index to itself or has a class that
+//! a positive literal makes shorter than another: then the `n + 1` pairs
+//! are at the largest distance and need `n + 1` coordinates (see
+//! [`check_top`]).
+//!
 //! A lemma is accepted when every literal is a negated tight variable
 //! `T(i,j,c)` or a declared fact of either sign, and the multiplier-weighted
 //! sum of the rows has every coefficient of every `x_{i,c}` and `D_k` equal
@@ -90,6 +100,8 @@ pub struct FarkasSummary {
     /// Of the lemmas: those justified by the equilateral bound (`e` lines)
     /// instead of Farkas multipliers.
     pub equilateral: usize,
+    /// Of the lemmas: those justified by the top-pattern argument (`t` lines).
+    pub top: usize,
 }
 
 /// The header line a lemma file for `(n, p)` starts with.
@@ -200,10 +212,15 @@ fn check_line(
             return check_equilateral(n, p, first_fact, facts, &clause, &set)
                 .map(|()| (clause.clone(), clause.len()));
         }
+        Some("t") => {
+            let pairs: Vec<&str> = toks.collect();
+            return check_top(n, p, first_fact, facts, &clause, &pairs)
+                .map(|()| (clause.clone(), clause.len()));
+        }
         _ => {
             return Err(
-                "expected 'y' and one multiplier per literal, or 'e' and an index set, after \
-                 the clause"
+                "expected 'y' and one multiplier per literal, 'e' and an index set, or 't' \
+                 and pairs, after the clause"
                     .into(),
             );
         }
@@ -393,6 +410,117 @@ fn check_equilateral(
     Ok(())
 }
 
+/// The class pair `(k, l)` of an order fact `D_k − D_l ≥ 0` (classes from 1).
+fn order_fact(a: &[i128]) -> Option<(usize, usize)> {
+    let plus: Vec<usize> = (0..a.len()).filter(|&k| a[k] == 1).collect();
+    let minus: Vec<usize> = (0..a.len()).filter(|&k| a[k] == -1).collect();
+    let zeros = a.iter().filter(|&&x| x == 0).count();
+    (plus.len() == 1 && minus.len() == 1 && zeros + 2 == a.len())
+        .then(|| (plus[0] + 1, minus[0] + 1))
+}
+
+/// Checks a top-pattern lemma (`t` line): `n + 1` distinct pairs of
+/// distinct indices; every literal an order fact `D_k − D_l ≥ 0`, negated
+/// (read as `D_k ≥ D_l`) or not (read as `D_k < D_l`); the negated ones
+/// making the class `k₀` of the first pair at least every class and every
+/// pair's class at least `k₀`; and for every two pairs and each of the two
+/// ways to put them on the low and high side of one coordinate, a cross
+/// pair that joins an index to itself or whose class is shorter than some
+/// class (a positive literal). If every literal were false, the pairs would
+/// all be at the largest distance and need `n + 1` different coordinates
+/// (`encodings/real-space.md` §5, "Top-pattern lemmas").
+fn check_top(
+    n: usize,
+    p: usize,
+    first_fact: usize,
+    facts: &[Vec<i128>],
+    clause: &[i32],
+    toks: &[&str],
+) -> Result<(), String> {
+    let m = p / 2;
+    if toks.len() % 2 != 0 {
+        return Err("t: an odd number of indices".into());
+    }
+    let mut pairs: Vec<(usize, usize)> = Vec::new();
+    for w in toks.chunks(2) {
+        let idx = |t: &str| {
+            t.parse::<usize>()
+                .ok()
+                .filter(|&i| i < p)
+                .ok_or_else(|| format!("t: {t:?} is not an index of 0..{p}"))
+        };
+        let (a, b) = (idx(w[0])?, idx(w[1])?);
+        if a == b
+            || pairs
+                .iter()
+                .any(|&(x, y)| (x, y) == (a, b) || (x, y) == (b, a))
+        {
+            return Err(format!("t: pair ({a}, {b}) is degenerate or repeated"));
+        }
+        pairs.push((a, b));
+    }
+    if pairs.len() != n + 1 {
+        return Err(format!(
+            "t: {} pairs where n + 1 = {} are needed",
+            pairs.len(),
+            n + 1
+        ));
+    }
+    let mut ge = vec![vec![false; m + 1]; m + 1];
+    let mut shorter = vec![false; m + 1];
+    for &l in clause {
+        let a = (l.unsigned_abs() as usize)
+            .checked_sub(first_fact)
+            .and_then(|f| facts.get(f))
+            .ok_or_else(|| format!("t: literal {l} is not a declared fact"))?;
+        let (k, j) = order_fact(a)
+            .ok_or_else(|| format!("t: fact of literal {l} is not of the form D_k − D_l ≥ 0"))?;
+        if l < 0 {
+            ge[k][j] = true;
+        } else {
+            shorter[k] = true;
+        }
+    }
+    let reach = |from: usize, forward: bool| {
+        let mut seen = vec![false; m + 1];
+        let mut stack = vec![from];
+        seen[from] = true;
+        while let Some(k) = stack.pop() {
+            for l in 1..=m {
+                let e = if forward { ge[k][l] } else { ge[l][k] };
+                if e && !seen[l] {
+                    seen[l] = true;
+                    stack.push(l);
+                }
+            }
+        }
+        seen
+    };
+    let k0 = class(pairs[0].0, pairs[0].1, p);
+    let (below, above) = (reach(k0, true), reach(k0, false));
+    if let Some(l) = (1..=m).find(|&l| !below[l]) {
+        return Err(format!("t: the facts do not make D_{k0} at least D_{l}"));
+    }
+    if let Some(&(a, b)) = pairs.iter().find(|&&(a, b)| !above[class(a, b, p)]) {
+        return Err(format!(
+            "t: the facts do not make pair ({a}, {b}) a longest pair"
+        ));
+    }
+    let blocked = |u: usize, v: usize| u == v || shorter[class(u, v, p)];
+    for (x, &(a, b)) in pairs.iter().enumerate() {
+        for &(e, f) in &pairs[x + 1..] {
+            let same_sides = blocked(a, f) || blocked(e, b);
+            let crossed = blocked(a, e) || blocked(f, b);
+            if !same_sides || !crossed {
+                return Err(format!(
+                    "t: pairs ({a}, {b}) and ({e}, {f}) could share a coordinate"
+                ));
+            }
+        }
+    }
+    Ok(())
+}
+
 /// Checks every lemma of a lemma file for `(n, p)`, whose fact variables
 /// start at `first_fact`; returns the clauses in file order.
 ///
@@ -436,6 +564,7 @@ pub fn check_lemmas(
         literals: 0,
         rows: 0,
         equilateral: 0,
+        top: 0,
     };
     for (k, line) in lines {
         let t = line.trim();
@@ -475,6 +604,9 @@ pub fn check_lemmas(
         summary.lemmas += 1;
         if t.contains(" 0 e ") || t.starts_with("0 e ") {
             summary.equilateral += 1;
+        }
+        if t.contains(" 0 t ") || t.starts_with("0 t ") {
+            summary.top += 1;
         }
         summary.literals += clause.len();
         summary.rows += rows;

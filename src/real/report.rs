@@ -106,7 +106,7 @@ impl RealReport {
                     "lemmas       {} theory lemmas ({} profile facts), every Farkas certificate accepted by the exact checker{}",
                     c.farkas.lemmas,
                     c.farkas.facts,
-                    super::bundle::equilateral_words(c.farkas.equilateral)
+                    super::bundle::special_words(&c.farkas)
                 );
                 let _ = writeln!(
                     s,

@@ -487,3 +487,117 @@ fn no_equilateral_set_beyond_two_to_the_n_on_small_boxes() {
         }
     }
 }
+
+/// Whether the far graph of `mask` (classes at the largest distance) is the
+/// union of `n` bicliques "low end × high end" of coordinates, by brute force
+/// over each point's side (low, high or neither) in each coordinate.
+fn far_graph_fits(n: usize, p: usize, mask: u64) -> bool {
+    let far = |a: usize, b: usize| mask >> (skeleton::kappa(a, b, p) - 1) & 1 == 1;
+    // sides[i][c]: 0 neither, 1 low, 2 high
+    fn go(
+        i: usize,
+        n: usize,
+        p: usize,
+        sides: &mut Vec<Vec<u8>>,
+        far: &dyn Fn(usize, usize) -> bool,
+    ) -> bool {
+        if i == p {
+            return true;
+        }
+        for code in 0..3usize.pow(n as u32) {
+            let s: Vec<u8> = (0..n)
+                .map(|c| (code / 3usize.pow(c as u32) % 3) as u8)
+                .collect();
+            let ok = (0..i).all(|j| {
+                let split = (0..n).any(|c| s[c] != 0 && sides[j][c] != 0 && s[c] != sides[j][c]);
+                split == far(i, j)
+            });
+            if ok {
+                sides.push(s);
+                if go(i + 1, n, p, sides, far) {
+                    return true;
+                }
+                sides.pop();
+            }
+        }
+        false
+    }
+    go(0, n, p, &mut Vec::new(), &far)
+}
+
+/// Every top-pattern exclusion holds against brute force: no top pattern
+/// it covers has a far graph that is the union of `n` bicliques, which is
+/// what a cycle in R^n with that top pattern would need
+/// (encodings/real-space.md §5, "Top-pattern lemmas"). And the lemmas pass
+/// the checker, which rejects a missing pair and a missing shorter class.
+#[test]
+fn top_pattern_exclusions_hold_against_brute_force_and_the_checker() {
+    let mut found = 0;
+    for (n, p) in [
+        (1usize, 3usize),
+        (1, 4),
+        (1, 5),
+        (2, 5),
+        (2, 6),
+        (2, 7),
+        (2, 8),
+    ] {
+        let m = p / 2;
+        let ex = theory::top_exclusions(n, p);
+        found += ex.len();
+        for (pairs, far, close) in &ex {
+            assert_eq!(pairs.len(), n + 1);
+            for mask in 1u64..1 << m {
+                let covers = far.iter().all(|&k| mask >> (k - 1) & 1 == 1)
+                    && close.iter().all(|&j| mask >> (j - 1) & 1 == 0);
+                if covers {
+                    assert!(
+                        !far_graph_fits(n, p, mask),
+                        "n={n} p={p} mask {mask:b}: excluded, but the far graph fits"
+                    );
+                }
+            }
+        }
+        let mut th = theory::Theory::new(n, p);
+        let lemmas = th.order_lemmas();
+        assert_eq!(
+            lemmas.iter().filter(|l| l.fooling.is_some()).count(),
+            ex.len()
+        );
+        let base = (n * p * (p - 1)) as u32 + 1;
+        let facts: Vec<(u32, Vec<i64>)> = th
+            .facts()
+            .iter()
+            .enumerate()
+            .map(|(f, x)| (base + f as u32, x.coeffs.clone()))
+            .collect();
+        let mut buf = Vec::new();
+        certificate::render_lemmas(n, p, &facts, &lemmas, &mut buf).unwrap();
+        let text = String::from_utf8(buf).unwrap();
+        let (_, summary) = farkas_check::check_lemmas(n, p, base as usize, &text).unwrap();
+        assert_eq!(summary.top, ex.len());
+        let lines: Vec<&str> = text.lines().collect();
+        let Some(at) = lines.iter().position(|l| l.contains(" 0 t ")) else {
+            continue;
+        };
+        let (clause, pairs) = lines[at].split_once(" 0 t ").unwrap();
+        let tampered = |line: String| {
+            let mut t = lines.clone();
+            t[at] = &line;
+            farkas_check::check_lemmas(n, p, base as usize, &(t.join("\n") + "\n"))
+                .expect_err("tampered top-pattern lemma accepted")
+                .reason
+        };
+        let ws: Vec<&str> = pairs.split_whitespace().collect();
+        let r = tampered(format!("{clause} 0 t {}", ws[..ws.len() - 2].join(" ")));
+        assert!(r.contains("pairs where"), "{r}");
+        let lits: Vec<&str> = clause.split_whitespace().collect();
+        if let Some(pos) = lits.iter().position(|l| !l.starts_with('-')) {
+            let mut fewer = lits.clone();
+            fewer.remove(pos);
+            let r = tampered(format!("{} 0 t {pairs}", fewer.join(" ")));
+            assert!(r.contains("could share"), "{r}");
+        }
+    }
+    assert!(found >= 10, "only {found} exclusions");
+}

@@ -66,6 +66,12 @@ pub struct Lemma {
     pub norm: Vec<(usize, BigInt)>,
     /// Normalisation rows `D_1 ≤ D_u` (`u` is the class), with multipliers.
     pub unit: Vec<(usize, BigInt)>,
+    /// `Some(pairs)` for a lemma justified by the top-pattern argument
+    /// instead of a Farkas combination: the clause is over order facts only
+    /// and says that the classes of these `n + 1` pairs are not all the
+    /// largest distance while the named cross classes are shorter
+    /// (`encodings/real-space.md` §5, "Top-pattern lemmas").
+    pub fooling: Option<Vec<(usize, usize)>>,
     /// `Some(I)` for a lemma justified by the equilateral bound instead of
     /// a Farkas combination: the clause is `¬F_facts…` only, the facts say
     /// `D_k ≥ D_l` and together force every class between two indices of
@@ -91,6 +97,7 @@ impl Lemma {
             norm: Vec::new(),
             unit: Vec::new(),
             equilateral: None,
+            fooling: None,
         }
     }
 }
@@ -662,6 +669,7 @@ impl Theory {
             norm: Vec::new(),
             unit: Vec::new(),
             equilateral: None,
+            fooling: None,
         };
         let mut out = Vec::new();
         for x in 0..m {
@@ -724,6 +732,18 @@ impl Theory {
                 .collect();
             let mut l = lemma(facts, vec![]);
             l.equilateral = Some(set);
+            out.push(l);
+        }
+        for (pairs, far, close) in top_exclusions(n, p) {
+            let k0 = far[0];
+            let mut facts: Vec<usize> = (1..=m)
+                .filter(|&l| l != k0)
+                .map(|l| ge[k0 - 1][l - 1])
+                .collect();
+            facts.extend(far[1..].iter().map(|&k| ge[k - 1][k0 - 1]));
+            let conclusions = close.iter().map(|&j| ge[j - 1][k0 - 1]).collect();
+            let mut l = lemma(facts, conclusions);
+            l.fooling = Some(pairs);
             out.push(l);
         }
         out
@@ -847,12 +867,53 @@ impl Theory {
             norm: norm.iter().map(|(k, x)| (*k, int(x))).collect(),
             unit: unit.iter().map(|(k, x)| (*k, int(x))).collect(),
             equilateral: None,
+            fooling: None,
         };
         out.facts.sort();
         out.norm.sort();
         out.unit.sort();
         Ok(out)
     }
+}
+
+/// [`top_exclusions`] walks the top patterns only up to this many classes.
+pub const TOP_PATTERN_MAX_CLASSES: usize = 13;
+
+/// Partial top patterns of the profile that no cycle in R^n has: for each,
+/// `n + 1` pairs (a fooling set of the far graph), the classes that must be
+/// the largest distance (`far`, sorted) and the classes that must be
+/// shorter (`close`, sorted), as [`crate::encode::bicliques::exclusion`]
+/// describes them. Every nonempty top pattern is walked that no exclusion
+/// found so far covers, and searched for a fooling set of `n + 1` pairs
+/// ([`crate::encode::bicliques::fooling_set`], with its node budget). Empty
+/// for `p ≤ 2^n` or more than [`TOP_PATTERN_MAX_CLASSES`] classes.
+pub fn top_exclusions(n: usize, p: usize) -> Vec<(Vec<(usize, usize)>, Vec<usize>, Vec<usize>)> {
+    use crate::encode::bicliques::{exclusion, fooling_set};
+    let m = p / 2;
+    let beyond = u32::try_from(n)
+        .ok()
+        .and_then(|n| 1usize.checked_shl(n))
+        .is_none_or(|b| p > b);
+    if !beyond || m == 0 || m > TOP_PATTERN_MAX_CLASSES {
+        return Vec::new();
+    }
+    let mut out: Vec<(Vec<(usize, usize)>, Vec<usize>, Vec<usize>)> = Vec::new();
+    let bit = |k: usize| 1u64 << (k - 1);
+    for mask in 1u64..(1u64 << m) {
+        let covered = out.iter().any(|(_, far, close)| {
+            far.iter().all(|&k| mask & bit(k) != 0) && close.iter().all(|&j| mask & bit(j) == 0)
+        });
+        if covered {
+            continue;
+        }
+        let Some(pairs) = fooling_set(p, mask, n + 1) else {
+            continue;
+        };
+        if let Some(x) = exclusion(p, mask, &pairs) {
+            out.push((pairs, x.far, x.close));
+        }
+    }
+    out
 }
 
 /// [`Theory::order_lemmas`] writes its crossing lemmas only while

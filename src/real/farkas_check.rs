@@ -363,15 +363,9 @@ fn check_equilateral(
             .and_then(|f| facts.get(f))
             .filter(|_| l < 0)
             .ok_or_else(|| format!("e: literal {l} is not a negated declared fact"))?;
-        let plus: Vec<usize> = (0..m).filter(|&k| a[k] == 1).collect();
-        let minus: Vec<usize> = (0..m).filter(|&k| a[k] == -1).collect();
-        let zeros = a.iter().filter(|&&x| x == 0).count();
-        if plus.len() != 1 || minus.len() != 1 || zeros + 2 != m {
-            return Err(format!(
-                "e: fact of literal {l} is not of the form D_k − D_l ≥ 0"
-            ));
-        }
-        edge[plus[0] + 1][minus[0] + 1] = true;
+        let (k, j) = order_fact(a)
+            .ok_or_else(|| format!("e: fact of literal {l} is not of the form D_k − D_l ≥ 0"))?;
+        edge[k][j] = true;
     }
     let mut classes: Vec<usize> = Vec::new();
     for &i in &idx {

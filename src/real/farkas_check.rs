@@ -50,7 +50,7 @@
 //! coordinate some cross pair joins an index to itself or has a class that
 //! a positive literal makes shorter than another: then the `n + 1` pairs
 //! are at the largest distance and need `n + 1` coordinates (see
-//! [`check_top`]).
+//! `check_top`).
 //!
 //! A lemma is accepted when every literal is a negated tight variable
 //! `T(i,j,c)` or a declared fact of either sign, and the multiplier-weighted
@@ -432,7 +432,7 @@ fn check_top(
     toks: &[&str],
 ) -> Result<(), String> {
     let m = p / 2;
-    if toks.len() % 2 != 0 {
+    if !toks.len().is_multiple_of(2) {
         return Err("t: an odd number of indices".into());
     }
     let mut pairs: Vec<(usize, usize)> = Vec::new();

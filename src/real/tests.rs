@@ -545,7 +545,7 @@ fn top_pattern_exclusions_hold_against_brute_force_and_the_checker() {
         let m = p / 2;
         let ex = theory::top_exclusions(n, p);
         found += ex.len();
-        for (pairs, far, close) in &ex {
+        for theory::TopExclusion { pairs, far, close } in &ex {
             assert_eq!(pairs.len(), n + 1);
             for mask in 1u64..1 << m {
                 let covers = far.iter().all(|&k| mask >> (k - 1) & 1 == 1)

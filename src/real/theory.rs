@@ -734,7 +734,7 @@ impl Theory {
             l.equilateral = Some(set);
             out.push(l);
         }
-        for (pairs, far, close) in top_exclusions(n, p) {
+        for TopExclusion { pairs, far, close } in top_exclusions(n, p) {
             let k0 = far[0];
             let mut facts: Vec<usize> = (1..=m)
                 .filter(|&l| l != k0)
@@ -879,6 +879,17 @@ impl Theory {
 /// [`top_exclusions`] walks the top patterns only up to this many classes.
 pub const TOP_PATTERN_MAX_CLASSES: usize = 13;
 
+/// A partial top pattern that no cycle in R^n has (see [`top_exclusions`]).
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct TopExclusion {
+    /// `n + 1` pairs `(a, b)`, `a < b`: a fooling set of the far graph.
+    pub pairs: Vec<(usize, usize)>,
+    /// The classes that must be the largest distance (sorted).
+    pub far: Vec<usize>,
+    /// The classes that must be shorter (sorted).
+    pub close: Vec<usize>,
+}
+
 /// Partial top patterns of the profile that no cycle in R^n has: for each,
 /// `n + 1` pairs (a fooling set of the far graph), the classes that must be
 /// the largest distance (`far`, sorted) and the classes that must be
@@ -887,7 +898,7 @@ pub const TOP_PATTERN_MAX_CLASSES: usize = 13;
 /// found so far covers, and searched for a fooling set of `n + 1` pairs
 /// ([`crate::encode::bicliques::fooling_set`], with its node budget). Empty
 /// for `p ≤ 2^n` or more than [`TOP_PATTERN_MAX_CLASSES`] classes.
-pub fn top_exclusions(n: usize, p: usize) -> Vec<(Vec<(usize, usize)>, Vec<usize>, Vec<usize>)> {
+pub fn top_exclusions(n: usize, p: usize) -> Vec<TopExclusion> {
     use crate::encode::bicliques::{exclusion, fooling_set};
     let m = p / 2;
     let beyond = u32::try_from(n)
@@ -897,11 +908,11 @@ pub fn top_exclusions(n: usize, p: usize) -> Vec<(Vec<(usize, usize)>, Vec<usize
     if !beyond || m == 0 || m > TOP_PATTERN_MAX_CLASSES {
         return Vec::new();
     }
-    let mut out: Vec<(Vec<(usize, usize)>, Vec<usize>, Vec<usize>)> = Vec::new();
+    let mut out: Vec<TopExclusion> = Vec::new();
     let bit = |k: usize| 1u64 << (k - 1);
     for mask in 1u64..(1u64 << m) {
-        let covered = out.iter().any(|(_, far, close)| {
-            far.iter().all(|&k| mask & bit(k) != 0) && close.iter().all(|&j| mask & bit(j) == 0)
+        let covered = out.iter().any(|x| {
+            x.far.iter().all(|&k| mask & bit(k) != 0) && x.close.iter().all(|&j| mask & bit(j) == 0)
         });
         if covered {
             continue;
@@ -910,7 +921,11 @@ pub fn top_exclusions(n: usize, p: usize) -> Vec<(Vec<(usize, usize)>, Vec<usize
             continue;
         };
         if let Some(x) = exclusion(p, mask, &pairs) {
-            out.push((pairs, x.far, x.close));
+            out.push(TopExclusion {
+                pairs,
+                far: x.far,
+                close: x.close,
+            });
         }
     }
     out

@@ -60,3 +60,23 @@ fn real_space_agrees_with_z3_in_dimensions_up_to_three() {
         }
     }
 }
+
+/// n = 3, p = 9..12: orbitcnf's certified refutations agree with z3 (R. Lyons
+/// and R. D. Nussbaum, 1992 [recalled]). z3 takes minutes here, so this is
+/// run on purpose; `orbitcnf bench --real` prints the same comparison.
+#[test]
+#[ignore = "long: z3 takes 5-6 minutes for p = 9..12"]
+fn real_space_agrees_with_z3_on_dimension_three_beyond_eight() {
+    if !have_z3() {
+        return;
+    }
+    for p in 9..=12 {
+        let ours = decide(3, p, &RealOptions::new(), None, &mut |_| {}).expect("decides");
+        assert!(
+            matches!(ours.answer, RealAnswer::Infeasible { check: Some(_), .. }),
+            "p = {p}: {:?}",
+            ours.answer
+        );
+        assert_eq!(z3_says(3, p), "unsat", "p = {p}");
+    }
+}

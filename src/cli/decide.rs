@@ -74,7 +74,7 @@ pub struct DecideArgs {
     #[arg(long, value_name = "SECS", value_parser = parse_seconds, requires = "real")]
     handoff_after: Option<Duration>,
     /// With --real: leave out the order lemmas of the profile (totality,
-    /// transitivity, crossing-order and equilateral lemmas,
+    /// transitivity, crossing-order, equilateral and top-pattern lemmas,
     /// encodings/real-space.md §5), as before they existed; for comparisons.
     #[arg(long, requires = "real")]
     no_order_lemmas: bool,

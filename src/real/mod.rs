@@ -486,11 +486,19 @@ fn write_certificate(
     log: prooflog::ProofLog,
 ) -> Result<()> {
     use std::io::Write;
-    write_files(dir, sk, facts, lemmas)?;
+    std::fs::create_dir_all(dir).map_err(|e| Error::io(dir, e))?;
     let path = dir.join(certificate::PROOF);
     let f = std::fs::File::create(&path).map_err(|e| Error::io(&path, e))?;
     let mut w = std::io::BufWriter::new(f);
-    log.finish(&mut w)?;
+    let kept = log.finish(&mut w)?;
     w.flush().map_err(|e| Error::io(&path, e))?;
-    Ok(())
+    // the proof numbers only the lemmas it names (prooflog.rs): the lemma
+    // file lists those, in the same order
+    let named: Vec<theory::Lemma> = lemmas
+        .iter()
+        .zip(&kept)
+        .filter(|(_, k)| **k)
+        .map(|(l, _)| l.clone())
+        .collect();
+    write_files(dir, sk, facts, &named)
 }

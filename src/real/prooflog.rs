@@ -9,11 +9,19 @@
 //! rewrites it with the final numbering:
 //!
 //! * skeleton clause `id ≤ m` keeps its id;
-//! * the `r`-th lemma (0-based) gets `m + 1 + r`;
-//! * the `s`-th derived clause gets `m + L + 1 + s`, where `L` is the number of lemmas.
+//! * the `r`-th lemma that some derived clause names as a hint gets
+//!   `m + 1 + r` (0-based among those: a lemma no hint names is left out of
+//!   the certificate, its deletions too);
+//! * the `s`-th derived clause gets `m + L + 1 + s`, where `L` is the number
+//!   of lemmas kept.
 //!
 //! Both maps are increasing, so every derived clause still has a larger id
-//! than every clause its hints name, as LRAT demands.
+//! than every clause its hints name, as LRAT demands. Leaving out the
+//! unnamed lemmas cannot break the proof: an LRAT step is checked by unit
+//! propagation over the clauses its hints name and nothing else, so a
+//! clause no hint names never takes part in a check. It matters for size:
+//! a cube of R^4, p = 18 is refuted with a few dozen of the 441,404 lemmas
+//! written before the search (`encodings/real-space.md` §7).
 
 use std::io::{BufRead, BufReader, BufWriter, Read, Seek, Write};
 
@@ -158,26 +166,62 @@ impl ProofLog {
         self.steps
     }
 
-    fn final_id(&self, id: u64) -> u64 {
+    /// The final id of internal id `id`, or `None` for a lemma left out.
+    /// `kept_before[r]` is the number of kept lemmas of rank below `r`
+    /// (one entry more than there are lemmas), `kept[r]` whether lemma `r`
+    /// is kept.
+    fn final_id(&self, id: u64, kept: &[bool], kept_before: &[u64]) -> Option<u64> {
         if id <= self.m {
-            return id;
+            return Some(id);
         }
-        let l = self.lemma_ids.len() as u64;
         match self.lemma_ids.binary_search(&id) {
-            Ok(r) => self.m + 1 + r as u64,
+            Ok(r) => kept[r].then(|| self.m + 1 + kept_before[r]),
             Err(before) => {
                 // derived: its rank among derived ids
                 let rank = id - self.m - 1 - before as u64;
-                self.m + l + 1 + rank
+                Some(self.m + kept_before[self.lemma_ids.len()] + 1 + rank)
             }
         }
     }
 
-    /// Writes the text LRAT proof with the final numbering to `sink`.
+    /// Which lemmas (by rank) some derived clause of the log names as a hint.
+    fn hinted_lemmas(&self, r: &mut impl BufRead) -> std::io::Result<Vec<bool>> {
+        let mut used = vec![false; self.lemma_ids.len()];
+        while !r.fill_buf()?.is_empty() {
+            let mut tag = [0u8];
+            r.read_exact(&mut tag)?;
+            match tag[0] {
+                LEMMA | DEL => {
+                    get(r)?;
+                }
+                ADD => {
+                    get(r)?;
+                    for _ in 0..get(r)? {
+                        get(r)?;
+                    }
+                    for _ in 0..get(r)? {
+                        if let Ok(k) = self.lemma_ids.binary_search(&get(r)?) {
+                            used[k] = true;
+                        }
+                    }
+                }
+                t => {
+                    return Err(std::io::Error::other(format!(
+                        "proof log: unknown record {t}"
+                    )));
+                }
+            }
+        }
+        Ok(used)
+    }
+
+    /// Writes the text LRAT proof with the final numbering to `sink`, and
+    /// returns which lemmas (by rank) it keeps: the certificate's lemma file
+    /// must list exactly those, in order.
     ///
     /// # Errors
     /// [`Error::Io`] when the log or the sink fails, or when nothing was logged.
-    pub fn finish(mut self, sink: &mut dyn Write) -> Result<()> {
+    pub fn finish(mut self, sink: &mut dyn Write) -> Result<Vec<bool>> {
         let err = |e: std::io::Error| Error::io("<proof log>", e);
         if let Some(e) = self.failed.take() {
             return Err(err(e));
@@ -189,6 +233,20 @@ impl ProofLog {
             });
         };
         let mut f = w.into_inner().map_err(|e| err(e.into_error()))?;
+        f.rewind().map_err(err)?;
+        let kept = self
+            .hinted_lemmas(&mut BufReader::with_capacity(1 << 20, &mut f))
+            .map_err(err)?;
+        let mut kept_before = Vec::with_capacity(kept.len() + 1);
+        kept_before.push(0u64);
+        for &k in &kept {
+            kept_before.push(kept_before[kept_before.len() - 1] + u64::from(k));
+        }
+        let dropped = || {
+            err(std::io::Error::other(
+                "proof log: a hint names a lemma left out",
+            ))
+        };
         f.rewind().map_err(err)?;
         let mut r = BufReader::with_capacity(1 << 20, f);
         let mut out = BufWriter::with_capacity(1 << 20, sink);
@@ -206,13 +264,16 @@ impl ProofLog {
                     get(&mut r).map_err(err)?;
                 }
                 DEL => {
-                    let id = self.final_id(get(&mut r).map_err(err)?);
-                    use std::fmt::Write as _;
-                    let _ = writeln!(line, "{last} d {id} 0");
+                    let id = get(&mut r).map_err(err)?;
+                    if let Some(id) = self.final_id(id, &kept, &kept_before) {
+                        use std::fmt::Write as _;
+                        let _ = writeln!(line, "{last} d {id} 0");
+                    }
                 }
                 ADD => {
                     use std::fmt::Write as _;
-                    let id = self.final_id(get(&mut r).map_err(err)?);
+                    let id = get(&mut r).map_err(err)?;
+                    let id = self.final_id(id, &kept, &kept_before).ok_or_else(dropped)?;
                     last = id;
                     let _ = write!(line, "{id}");
                     let nl = get(&mut r).map_err(err)?;
@@ -222,7 +283,9 @@ impl ProofLog {
                     line.push_str(" 0");
                     let nh = get(&mut r).map_err(err)?;
                     for _ in 0..nh {
-                        let _ = write!(line, " {}", self.final_id(get(&mut r).map_err(err)?));
+                        let h = get(&mut r).map_err(err)?;
+                        let h = self.final_id(h, &kept, &kept_before).ok_or_else(dropped)?;
+                        let _ = write!(line, " {h}");
                     }
                     line.push_str(" 0\n");
                 }
@@ -235,6 +298,46 @@ impl ProofLog {
             out.write_all(line.as_bytes()).map_err(err)?;
         }
         out.flush().map_err(err)?;
-        Ok(())
+        Ok(kept)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// Skeleton of two clauses `x1`, `¬x1 ∨ x2`; three lemmas of which the
+    /// proof names the first and the third; the second is deleted.
+    #[test]
+    fn lemmas_no_hint_names_are_left_out_and_ids_close_up() {
+        let mut log = ProofLog::new(2, true).unwrap();
+        let a = log.lemma(); // ¬x2 ∨ x3
+        let b = log.lemma(); // unused
+        let d = log.derive(&[2], &[1, 2]);
+        log.delete(b);
+        let c = log.lemma(); // ¬x3
+        log.derive(&[], &[d, a, c]);
+        let mut buf = Vec::new();
+        let kept = log.finish(&mut buf).unwrap();
+        assert_eq!(kept, vec![true, false, true]);
+        // lemmas a, c become ids 3, 4; derived clauses 5, 6; b's deletion is gone
+        assert_eq!(
+            String::from_utf8(buf).unwrap(),
+            "5 2 0 1 2 0\n6 0 5 3 4 0\n"
+        );
+    }
+
+    #[test]
+    fn a_log_without_lemmas_keeps_its_numbering() {
+        let mut log = ProofLog::new(3, true).unwrap();
+        let d = log.derive(&[1], &[1, 2]);
+        log.delete(2);
+        log.derive(&[], &[d, 3]);
+        let mut buf = Vec::new();
+        assert!(log.finish(&mut buf).unwrap().is_empty());
+        assert_eq!(
+            String::from_utf8(buf).unwrap(),
+            "4 1 0 1 2 0\n4 d 2 0\n5 0 4 3 0\n"
+        );
     }
 }

@@ -36,6 +36,10 @@ pub struct ProofLog {
     m: u64,
     next: u64,
     lemma_ids: Vec<u64>,
+    /// Bit `id − m − 1` is set when some derived clause names internal id
+    /// `id` as a hint (kept during the search, so that finishing needs no
+    /// extra pass over the log).
+    hinted: Vec<u64>,
     out: Option<BufWriter<std::fs::File>>,
     failed: Option<std::io::Error>,
     steps: u64,
@@ -95,6 +99,7 @@ impl ProofLog {
             m,
             next: m + 1,
             lemma_ids: Vec::new(),
+            hinted: Vec::new(),
             out,
             failed: None,
             steps: 0,
@@ -141,6 +146,13 @@ impl ProofLog {
             put(&mut b, hints.len() as u64);
             for &h in hints {
                 put(&mut b, h);
+                if h > self.m {
+                    let bit = (h - self.m - 1) as usize;
+                    if bit / 64 >= self.hinted.len() {
+                        self.hinted.resize(bit / 64 + 1, 0);
+                    }
+                    self.hinted[bit / 64] |= 1 << (bit % 64);
+                }
             }
             self.write(&b);
         }
@@ -184,35 +196,17 @@ impl ProofLog {
         }
     }
 
-    /// Which lemmas (by rank) some derived clause of the log names as a hint.
-    fn hinted_lemmas(&self, r: &mut impl BufRead) -> std::io::Result<Vec<bool>> {
-        let mut used = vec![false; self.lemma_ids.len()];
-        while !r.fill_buf()?.is_empty() {
-            let mut tag = [0u8];
-            r.read_exact(&mut tag)?;
-            match tag[0] {
-                LEMMA | DEL => {
-                    get(r)?;
-                }
-                ADD => {
-                    get(r)?;
-                    for _ in 0..get(r)? {
-                        get(r)?;
-                    }
-                    for _ in 0..get(r)? {
-                        if let Ok(k) = self.lemma_ids.binary_search(&get(r)?) {
-                            used[k] = true;
-                        }
-                    }
-                }
-                t => {
-                    return Err(std::io::Error::other(format!(
-                        "proof log: unknown record {t}"
-                    )));
-                }
-            }
-        }
-        Ok(used)
+    /// Which lemmas (by rank) some derived clause names as a hint.
+    fn hinted_lemmas(&self) -> Vec<bool> {
+        self.lemma_ids
+            .iter()
+            .map(|&id| {
+                let bit = (id - self.m - 1) as usize;
+                self.hinted
+                    .get(bit / 64)
+                    .is_some_and(|w| (w >> (bit % 64)) & 1 == 1)
+            })
+            .collect()
     }
 
     /// Writes the text LRAT proof with the final numbering to `sink`, and
@@ -233,10 +227,7 @@ impl ProofLog {
             });
         };
         let mut f = w.into_inner().map_err(|e| err(e.into_error()))?;
-        f.rewind().map_err(err)?;
-        let kept = self
-            .hinted_lemmas(&mut BufReader::with_capacity(1 << 20, &mut f))
-            .map_err(err)?;
+        let kept = self.hinted_lemmas();
         let mut kept_before = Vec::with_capacity(kept.len() + 1);
         kept_before.push(0u64);
         for &k in &kept {

@@ -222,13 +222,34 @@ fn q0_3_n4_composite_periods_are_refuted_with_one_checked_proof() {
     }
 }
 
+/// {−2,…,2}^4, p = 21, refuted by computation on 2026-12-03 (README, "What
+/// is proven and what is open"; run there as 4,224 whole-profile cubes with
+/// `split`, `run-cube` and `merge`, 88 minutes on one core). Nothing
+/// published settles it; the expectation is orbitcnf's own certified
+/// answer, pinned so that a change that loses it is seen. `decide` takes
+/// the same 4,224 cubes after its probe.
+#[test]
+#[ignore = "about 50 minutes on 2 cores (4,224 whole-profile cubes, about 4,700 s of solving); run on purpose"]
+fn m2_n4_period_21_is_refuted_in_whole_profile_cubes() {
+    let dir = TestDir::new();
+    let v = refuted_on(&dir, Q::cube(-2, 2, 4, 21));
+    assert_eq!(v["strategy"]["cubes"], 4224, "{}", v["strategy"]);
+}
+
 /// `decide --jobs 2 --json` on {0,1,2,3}^4 with period `p`: infeasible with
 /// one checked LRAT proof of the whole CNF; returns the JSON report.
 fn refuted_with_one_checked_proof(dir: &TestDir, p: usize) -> Value {
+    refuted_on(dir, Q::cube(0, 3, 4, p))
+}
+
+/// `decide --jobs 2 --json` on question `q`: infeasible with one checked
+/// LRAT proof of the whole CNF; returns the JSON report.
+fn refuted_on(dir: &TestDir, q: Q) -> Value {
+    let p = q.period;
     let run = dir
         .orbitcnf()
         .arg("decide")
-        .args(Q::cube(0, 3, 4, p).args())
+        .args(q.args())
         .args(["--jobs", "2", "--json"])
         .run();
     run.code(INFEASIBLE);

@@ -379,23 +379,8 @@ fn check_equilateral(
         }
     }
     // reachability along k → l (D_k ≥ D_l) from the first class, both ways
-    let reach = |from: usize, forward: bool| {
-        let mut seen = vec![false; m + 1];
-        let mut stack = vec![from];
-        seen[from] = true;
-        while let Some(k) = stack.pop() {
-            for l in 1..=m {
-                let e = if forward { edge[k][l] } else { edge[l][k] };
-                if e && !seen[l] {
-                    seen[l] = true;
-                    stack.push(l);
-                }
-            }
-        }
-        seen
-    };
     let k0 = classes[0];
-    let (down, up) = (reach(k0, true), reach(k0, false));
+    let (down, up) = (reach(&edge, k0, true), reach(&edge, k0, false));
     if let Some(k) = classes.iter().find(|&&k| !down[k] || !up[k]) {
         return Err(format!(
             "e: the facts do not force D_{k} to equal D_{k0}, so the set need not be equilateral"
@@ -475,23 +460,8 @@ fn check_top(
             shorter[k] = true;
         }
     }
-    let reach = |from: usize, forward: bool| {
-        let mut seen = vec![false; m + 1];
-        let mut stack = vec![from];
-        seen[from] = true;
-        while let Some(k) = stack.pop() {
-            for l in 1..=m {
-                let e = if forward { ge[k][l] } else { ge[l][k] };
-                if e && !seen[l] {
-                    seen[l] = true;
-                    stack.push(l);
-                }
-            }
-        }
-        seen
-    };
     let k0 = class(pairs[0].0, pairs[0].1, p);
-    let (below, above) = (reach(k0, true), reach(k0, false));
+    let (below, above) = (reach(&ge, k0, true), reach(&ge, k0, false));
     if let Some(l) = (1..=m).find(|&l| !below[l]) {
         return Err(format!("t: the facts do not make D_{k0} at least D_{l}"));
     }
@@ -607,6 +577,26 @@ pub fn check_lemmas(
         clauses.push(clause);
     }
     Ok((clauses, summary))
+}
+
+/// The classes reachable from `from` along the order facts `edge[k][l]`
+/// (D_k ≥ D_l), forwards (the classes at most as long) or backwards (at
+/// least as long); classes are numbered from 1, as `edge` is indexed.
+fn reach(edge: &[Vec<bool>], from: usize, forward: bool) -> Vec<bool> {
+    let m = edge.len() - 1;
+    let mut seen = vec![false; m + 1];
+    let mut stack = vec![from];
+    seen[from] = true;
+    while let Some(k) = stack.pop() {
+        for l in 1..=m {
+            let e = if forward { edge[k][l] } else { edge[l][k] };
+            if e && !seen[l] {
+                seen[l] = true;
+                stack.push(l);
+            }
+        }
+    }
+    seen
 }
 
 #[cfg(test)]

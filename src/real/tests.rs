@@ -203,22 +203,34 @@ fn every_small_cycle_has_an_image_satisfying_the_skeleton() {
     assert!(seen > 300, "only {seen} cycles");
 }
 
+/// The lemma file of `lemmas` with the theory's facts numbered right after
+/// the skeleton's `T` variables, as the search numbers them: the first fact
+/// variable, the fact table and the text.
+fn lemma_file(
+    th: &theory::Theory,
+    n: usize,
+    p: usize,
+    lemmas: &[theory::Lemma],
+) -> (u32, Vec<(u32, Vec<i64>)>, String) {
+    let base = (n * p * (p - 1)) as u32 + 1;
+    let facts: Vec<(u32, Vec<i64>)> = th
+        .facts()
+        .iter()
+        .enumerate()
+        .map(|(f, x)| (base + f as u32, x.coeffs.clone()))
+        .collect();
+    let mut buf = Vec::new();
+    certificate::render_lemmas(n, p, &facts, lemmas, &mut buf).unwrap();
+    (base, facts, String::from_utf8(buf).unwrap())
+}
+
 /// The pattern lemmas (two-atom cycles) all pass the independent checker.
 #[test]
 fn pattern_lemmas_pass_the_farkas_checker() {
     for (n, p) in [(1, 5), (2, 6), (3, 7)] {
         let mut th = theory::Theory::new(n, p);
         let lemmas: Vec<theory::Lemma> = th.pattern_lemmas().into_iter().map(|x| x.1).collect();
-        let base = (n * p * (p - 1)) as u32 + 1;
-        let facts: Vec<(u32, Vec<i64>)> = th
-            .facts()
-            .iter()
-            .enumerate()
-            .map(|(f, x)| (base + f as u32, x.coeffs.clone()))
-            .collect();
-        let mut buf = Vec::new();
-        certificate::render_lemmas(n, p, &facts, &lemmas, &mut buf).unwrap();
-        let text = String::from_utf8(buf).unwrap();
+        let (base, facts, text) = lemma_file(&th, n, p, &lemmas);
         let (clauses, s) = farkas_check::check_lemmas(n, p, base as usize, &text).unwrap();
         assert_eq!(clauses.len(), lemmas.len());
         assert_eq!(s.facts, facts.len());
@@ -353,16 +365,7 @@ fn order_and_equilateral_lemmas_pass_the_checker_and_tampering_is_caught() {
         let eq = lemmas.iter().filter(|l| l.equilateral.is_some()).count();
         assert_eq!(eq, theory::equilateral_sets(n, p, u64::MAX).len());
         assert!(eq >= 1, "n={n} p={p}: no equilateral lemma");
-        let base = (n * p * (p - 1)) as u32 + 1;
-        let facts: Vec<(u32, Vec<i64>)> = th
-            .facts()
-            .iter()
-            .enumerate()
-            .map(|(f, x)| (base + f as u32, x.coeffs.clone()))
-            .collect();
-        let mut buf = Vec::new();
-        certificate::render_lemmas(n, p, &facts, &lemmas, &mut buf).unwrap();
-        let text = String::from_utf8(buf).unwrap();
+        let (base, _, text) = lemma_file(&th, n, p, &lemmas);
         let (clauses, _) = farkas_check::check_lemmas(n, p, base as usize, &text).unwrap();
         assert_eq!(clauses.len(), lemmas.len());
         // tamper with the first equilateral line
@@ -564,16 +567,7 @@ fn top_pattern_exclusions_hold_against_brute_force_and_the_checker() {
             lemmas.iter().filter(|l| l.fooling.is_some()).count(),
             ex.len()
         );
-        let base = (n * p * (p - 1)) as u32 + 1;
-        let facts: Vec<(u32, Vec<i64>)> = th
-            .facts()
-            .iter()
-            .enumerate()
-            .map(|(f, x)| (base + f as u32, x.coeffs.clone()))
-            .collect();
-        let mut buf = Vec::new();
-        certificate::render_lemmas(n, p, &facts, &lemmas, &mut buf).unwrap();
-        let text = String::from_utf8(buf).unwrap();
+        let (base, _, text) = lemma_file(&th, n, p, &lemmas);
         let (_, summary) = farkas_check::check_lemmas(n, p, base as usize, &text).unwrap();
         assert_eq!(summary.top, ex.len());
         let lines: Vec<&str> = text.lines().collect();

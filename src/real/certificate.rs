@@ -52,11 +52,11 @@ pub struct CertificateCheck {
 
 /// Renders the fact declarations and the lemmas in the lemma-file format.
 /// `facts[f]` is fact `f`'s DIMACS variable and coefficients.
-pub fn render_lemmas(
+pub fn render_lemmas<'a>(
     n: usize,
     p: usize,
     facts: &[(u32, Vec<i64>)],
-    lemmas: &[Lemma],
+    lemmas: impl IntoIterator<Item = &'a Lemma>,
     out: &mut dyn Write,
 ) -> std::io::Result<()> {
     use std::fmt::Write as _;

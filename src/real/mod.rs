@@ -459,11 +459,11 @@ fn handoff(
 }
 
 /// Writes the skeleton and the lemma file of a certificate.
-fn write_files(
+fn write_files<'a>(
     dir: &Path,
     sk: &skeleton::Skeleton,
     facts: &[(u32, Vec<i64>)],
-    lemmas: &[theory::Lemma],
+    lemmas: impl IntoIterator<Item = &'a theory::Lemma>,
 ) -> Result<()> {
     use std::io::Write;
     std::fs::create_dir_all(dir).map_err(|e| Error::io(dir, e))?;
@@ -494,11 +494,10 @@ fn write_certificate(
     w.flush().map_err(|e| Error::io(&path, e))?;
     // the proof numbers only the lemmas it names (prooflog.rs): the lemma
     // file lists those, in the same order
-    let named: Vec<theory::Lemma> = lemmas
+    let named = lemmas
         .iter()
         .zip(&kept)
         .filter(|(_, k)| **k)
-        .map(|(l, _)| l.clone())
-        .collect();
-    write_files(dir, sk, facts, &named)
+        .map(|(l, _)| l);
+    write_files(dir, sk, facts, named)
 }

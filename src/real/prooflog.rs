@@ -20,7 +20,7 @@
 //! unnamed lemmas cannot break the proof: an LRAT step is checked by unit
 //! propagation over the clauses its hints name and nothing else, so a
 //! clause no hint names never takes part in a check. It matters for size:
-//! a cube of R^4, p = 18 is refuted with a few dozen of the 441,404 lemmas
+//! a cube of R^4, p = 18 is refuted with 2 to 17 of the 441,404 lemmas
 //! written before the search (`encodings/real-space.md` §7).
 
 use std::io::{BufRead, BufReader, BufWriter, Read, Seek, Write};

@@ -115,6 +115,13 @@ enum Command {
     /// Example: orbitcnf merge t4p17
     #[command(after_help = cubes::MERGE_HELP)]
     Merge(cubes::MergeArgs),
+    /// Cut the unanswered cubes of a real-space split into smaller cubes, in
+    /// place: the pieces are appended, a new coverage proof is checked, the
+    /// other results stay valid.
+    ///
+    /// Example: orbitcnf refine r18 --cubes 16
+    #[command(after_help = cubes::REFINE_HELP)]
+    Refine(cubes::RefineArgs),
 }
 
 /// `--grid` accepts values that start with a minus (`--grid -1..1`), so
@@ -207,6 +214,7 @@ fn main() -> ExitCode {
         Command::Split(a) => cubes::run_split(a),
         Command::RunCube(a) => cubes::run_cube(a),
         Command::Merge(a) => cubes::run_merge(a),
+        Command::Refine(a) => cubes::run_refine(a),
     };
     match outcome {
         Ok(code) => ExitCode::from(code),

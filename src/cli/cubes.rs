@@ -345,6 +345,63 @@ pub fn run_cube(a: RunCubeArgs) -> Outcome {
     Ok(0)
 }
 
+/// The long help of `refine`.
+pub const REFINE_HELP: &str = "\
+refine works on real-space splits (split --real). A cube that run-cube left
+unknown is cut into at least --cubes smaller cubes: each fixes more of the
+T(i,j,c) witness variables, chosen by the same look-ahead as the first split,
+so a hard region of the search gets more cubes while the rest stays as it was.
+The pieces are appended to the cube list (the cut cube records their
+indices), a new coverage check (the skeleton plus every cube still to solve,
+negated) is refuted and its LRAT proof checked, and only then is
+manifest.json replaced, in one atomic write. Results of the other cubes keep
+their indices and stay valid; merge and merge --pending skip the cut cubes
+and count their pieces instead (encodings/real-space.md §9).
+
+Without --only, every cube whose result is unknown or error is cut; cubes
+never run are left alone (most cubes are easy; run them first). Typical use:
+
+  orbitcnf split --real --dim 4 -p 18 --cubes 256 --out r18
+  orbitcnf run-cube r18 0..255 --time-limit 300
+  orbitcnf refine r18 --cubes 16
+  orbitcnf run-cube r18 256..815 --time-limit 300      (the indices it prints)
+  orbitcnf merge r18
+
+The manifest's format becomes orbitcnf-real-split/2, so that an orbitcnf
+that does not know about cut cubes refuses the folder instead of asking for
+their results.";
+
+/// Arguments of `refine`.
+#[derive(Args, Debug)]
+pub struct RefineArgs {
+    /// The real-space split folder (written by split --real).
+    dir: PathBuf,
+    /// Cut each cube into at least this many pieces (fewer when its
+    /// variables run out).
+    #[arg(long, value_name = "N", default_value = "16")]
+    cubes: usize,
+    /// Cut these cubes (comma-separated indices) instead of every cube
+    /// whose result is unknown or error.
+    #[arg(long, value_name = "I,J,...", value_delimiter = ',')]
+    only: Vec<usize>,
+    /// Print one JSON object instead of text.
+    #[arg(long)]
+    json: bool,
+}
+
+/// Runs `refine`.
+pub fn run_refine(a: RefineArgs) -> Outcome {
+    if !real::cubes::is_real_split(&a.dir) {
+        return Err(Error::Options(format!(
+            "{} is not a real-space split (split --real writes one); grid splits are cut \
+             with split --cubes at the start",
+            a.dir.display()
+        )));
+    }
+    let only = (!a.only.is_empty()).then_some(a.only.as_slice());
+    super::real::refine(&a.dir, only, a.cubes, a.json)
+}
+
 /// Arguments of `merge`.
 #[derive(Args, Debug)]
 pub struct MergeArgs {

@@ -241,6 +241,17 @@ pub fn split(n: usize, p: usize, cubes: usize, out: &Path, json: bool) -> Outcom
     Ok(0)
 }
 
+/// `refine` on a real-space split folder.
+pub fn refine(dir: &Path, which: Option<&[usize]>, per_cube: usize, json: bool) -> Outcome {
+    let r = real::cubes::refine_split(dir, which, per_cube)?;
+    print_either(
+        json,
+        || serde_json::to_string(&r).unwrap_or_default(),
+        || r.to_text(dir),
+    )?;
+    Ok(0)
+}
+
 /// `run-cube` on a real-space split folder.
 pub fn run_cube(
     dir: &Path,
@@ -263,6 +274,18 @@ pub fn run_cube(
         real::cubes::run::RealRunOutcome::Solved(r) => (r, ""),
         real::cubes::run::RealRunOutcome::AlreadyDone(r) => {
             (r, " (already solved; --force solves again)")
+        }
+        real::cubes::run::RealRunOutcome::Refined(into) => {
+            let pieces = match (into.first(), into.last()) {
+                (Some(a), Some(b)) => format!("cubes {a}..{b}"),
+                _ => "no cube (unit propagation refutes it)".into(),
+            };
+            print_either(
+                json,
+                || serde_json::json!({ "index": index, "refined_into": into }).to_string(),
+                || format!("cube {index}: cut into {pieces} by refine; nothing to solve\n"),
+            )?;
+            return Ok(0);
         }
     };
     print_either(

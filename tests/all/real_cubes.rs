@@ -207,6 +207,79 @@ fn decide_in_cubes_keeps_a_checkable_split_folder() {
     merge(&dir, "b").code(INFEASIBLE);
 }
 
+/// `refine` cuts unanswered cubes into pieces in place; `run-cube` over the
+/// whole range skips the cut cubes, `merge` counts the pieces, and a piece
+/// deleted from a cut cube's list is caught by the coverage check. R^2 has
+/// no period 6 (R. Lyons and R. D. Nussbaum, 1992 [recalled]).
+#[test]
+fn refine_cuts_cubes_and_merge_still_certifies() {
+    let dir = TestDir::new();
+    let m = split(&dir, 2, 6, 4, "rf");
+    let n = count(&m);
+    dir.orbitcnf()
+        .args(["refine", "rf"])
+        .run()
+        .code(ERROR)
+        .stderr_has("nothing to cut");
+    let r = dir
+        .orbitcnf()
+        .args(["refine", "rf", "--only", "1,3", "--cubes", "4", "--json"])
+        .run();
+    r.code(0);
+    let v = r.json();
+    assert_eq!(v["manifest"]["format"], "orbitcnf-real-split/2");
+    let cut = v["refined"].as_array().unwrap();
+    assert_eq!(cut.len(), 2);
+    assert_eq!(cut[0][0], 1);
+    assert_eq!(cut[1][0], 3);
+    let total = count(&v["manifest"]);
+    let pieces = total - n;
+    assert!(pieces >= 8, "{pieces} pieces");
+    let text = dir.orbitcnf().args(["refine", "rf", "--only", "1"]).run();
+    text.code(ERROR).stderr_has("already cut");
+    let range = dir
+        .orbitcnf()
+        .args(["run-cube", "rf", &format!("0..{}", total - 1), "-q"])
+        .run();
+    range.code(0).stdout_has("cube 1: cut into cubes");
+    let pending = dir.orbitcnf().args(["merge", "rf", "--pending"]).run();
+    pending.code(0);
+    assert_eq!(pending.stdout.trim(), "");
+    let r = merge(&dir, "rf");
+    r.code(INFEASIBLE);
+    let v = r.json();
+    assert_eq!(v["cubes"], total - 2);
+    assert_eq!(v["refined"], serde_json::json!([1, 3]));
+    let text = dir.orbitcnf().args(["merge", "rf"]).run();
+    text.code(INFEASIBLE).stdout_has("refined      cubes 1 3");
+    // writing the split again would lose the pieces
+    dir.orbitcnf()
+        .args([
+            "split", "--real", "--dim", "2", "-p", "6", "--cubes", "4", "--out", "rf",
+        ])
+        .run()
+        .code(ERROR)
+        .stderr_has("would lose");
+    // one piece of cube 1 marked as cut into nothing: the coverage proof no
+    // longer fits
+    let first_piece = n;
+    tamper(&dir, "rf", "manifest.json", |t| {
+        let mut v: Value = serde_json::from_str(&t).unwrap();
+        v["cubes"][first_piece]["refined_into"] = serde_json::json!([]);
+        serde_json::to_string_pretty(&v).unwrap()
+    });
+    merge(&dir, "rf")
+        .code(ERROR)
+        .stderr_has("coverage-1.lrat")
+        .stderr_has("not known to cover");
+    // a grid split is refused with the reason
+    dir.orbitcnf()
+        .args(["refine", "nowhere"])
+        .run()
+        .code(ERROR)
+        .stderr_has("not a real-space split");
+}
+
 /// Rewrites `file` of the split `name` with `f`.
 fn tamper(dir: &TestDir, name: &str, file: &str, f: impl FnOnce(String) -> String) {
     let path = dir.path(name).join(file);

@@ -103,8 +103,10 @@ pub fn decide_jobs(
         },
         |event, state| {
             if let Event::Finished(_, r) = &event {
-                let status = r.as_ref().map(|r| match r {
-                    RealRunOutcome::Solved(r) | RealRunOutcome::AlreadyDone(r) => r.status,
+                // a fresh split has no cut cubes
+                let status = r.as_ref().and_then(|r| match r {
+                    RealRunOutcome::Solved(r) | RealRunOutcome::AlreadyDone(r) => Some(r.status),
+                    RealRunOutcome::Refined(_) => None,
                 });
                 match status {
                     Some(CubeStatus::Feasible) => stop.store(true, Ordering::SeqCst),

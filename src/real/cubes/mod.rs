@@ -68,6 +68,10 @@ pub const COVERAGE_PROOF: &str = "coverage.lrat";
 pub const RESULTS_DIR: &str = "results";
 /// The format tag of [`RealSplitManifest`] (a grid split's is `orbitcnf-split/…`).
 pub const FORMAT: &str = "orbitcnf-real-split/1";
+/// The format tag of a split some of whose cubes were cut into smaller
+/// ones by [`refine_split`]: an orbitcnf that knows only [`FORMAT`] would
+/// ask for results of the cut cubes, so it is told apart.
+pub const FORMAT_REFINED: &str = "orbitcnf-real-split/2";
 /// The most cubes a split makes (each costs a search and a certificate).
 pub const MAX_CUBES: usize = 1 << 20;
 /// The rule [`make_cubes`] follows, as the manifest names it.
@@ -83,6 +87,18 @@ pub struct RealCube {
     /// [`cube_digest`] of the skeleton's SHA-256 and the literals: what
     /// results name, so that a result of another cube or skeleton is refused.
     pub sha256: String,
+    /// Set when [`refine_split`] cut this cube into smaller ones: their
+    /// indices (empty when unit propagation alone refutes the cube). Such
+    /// a cube needs no result; the coverage check lists its pieces instead.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub refined_into: Option<Vec<usize>>,
+}
+
+impl RealCube {
+    /// Whether the cube is one to solve: not cut into smaller cubes.
+    pub fn is_leaf(&self) -> bool {
+        self.refined_into.is_none()
+    }
 }
 
 /// The coverage check as the manifest records it.
@@ -126,8 +142,16 @@ pub struct RealSplitManifest {
     pub skeleton: FileEntry,
     /// The coverage check.
     pub coverage: RealCoverage,
-    /// The cubes, in index order.
+    /// The cubes, in index order: the first split's, then the pieces of
+    /// every refinement, appended.
     pub cubes: Vec<RealCube>,
+    /// How many times [`refine_split`] changed the split (0 for none).
+    #[serde(default, skip_serializing_if = "is_zero")]
+    pub refinements: usize,
+}
+
+fn is_zero(k: &usize) -> bool {
+    *k == 0
 }
 
 /// The `T(i, j, c)` of a skeleton variable (DIMACS number), if it is one.
@@ -306,11 +330,20 @@ fn choose(prop: &Propagator<'_>, node: &mut Node, order: &[Var]) -> Option<Optio
 /// out), as literal lists in tree order (see the module documentation).
 /// `target` 1 (or 0) gives one empty cube: the whole question.
 pub fn make_cubes(sk: &Skeleton, target: usize) -> Vec<Vec<i32>> {
+    make_cubes_under(sk, &[], target).unwrap_or_else(|| vec![Vec::new()])
+}
+
+/// The cubes that cut the cube `prefix` into at least `target` pieces
+/// (fewer when the variables run out), each extending `prefix`, in tree
+/// order. `None` when the skeleton's unit propagation refutes `prefix`,
+/// and no piece when the look-ahead refutes every branch: either way the
+/// cube needs no piece. `Some(vec![prefix])` when no variable is free.
+pub fn make_cubes_under(sk: &Skeleton, prefix: &[i32], target: usize) -> Option<Vec<Vec<i32>>> {
     let prop = Propagator::new(&sk.cnf);
     let order = split_order(sk.n, sk.p);
     let mut root = Node {
         val: vec![0; sk.cnf.num_vars() as usize],
-        lits: Vec::new(),
+        lits: prefix.to_vec(),
         done: false,
     };
     let units: Vec<Lit> = sk
@@ -318,9 +351,10 @@ pub fn make_cubes(sk: &Skeleton, target: usize) -> Vec<Vec<i32>> {
         .clauses()
         .filter(|c| c.len() == 1)
         .map(|c| c[0])
+        .chain(prefix.iter().map(|&l| Lit::from_dimacs(l)))
         .collect();
     if !prop.assign(&mut root.val, units) {
-        return vec![Vec::new()];
+        return None;
     }
     let mut nodes = vec![root];
     while nodes.len() < target {
@@ -349,7 +383,7 @@ pub fn make_cubes(sk: &Skeleton, target: usize) -> Vec<Vec<i32>> {
         }
         nodes.splice(k..k, children);
     }
-    nodes.into_iter().map(|n| n.lits).collect()
+    Some(nodes.into_iter().map(|n| n.lits).collect())
 }
 
 /// The coverage check: the skeleton's clauses, then the negation of every
@@ -417,7 +451,7 @@ pub fn is_real_split(dir: &Path) -> bool {
     std::fs::read(dir.join(MANIFEST))
         .ok()
         .and_then(|b| serde_json::from_slice::<serde_json::Value>(&b).ok())
-        .is_some_and(|v| v["format"] == FORMAT)
+        .is_some_and(|v| v["format"] == FORMAT || v["format"] == FORMAT_REFINED)
 }
 
 impl RealSplitManifest {
@@ -437,11 +471,14 @@ impl RealSplitManifest {
                 format!("not a real-space split manifest: {e}"),
             )
         })?;
-        if m.format != FORMAT || m.question.space != "real" {
+        let refined = m.cubes.iter().any(|c| !c.is_leaf());
+        let expected = if refined { FORMAT_REFINED } else { FORMAT };
+        if m.format != expected || m.question.space != "real" {
             return Err(Error::file(
                 &name,
                 format!(
-                    "format {:?} for space {:?}; this orbitcnf reads {FORMAT:?} for \"real\"",
+                    "format {:?} for space {:?}; this orbitcnf reads {FORMAT:?} (or, for a \
+                     refined split, {FORMAT_REFINED:?}) for \"real\"",
                     m.format, m.question.space
                 ),
             ));
@@ -452,14 +489,30 @@ impl RealSplitManifest {
                 "the cubes are not listed in index order",
             ));
         }
+        if let Some(c) = m.cubes.iter().find(|c| {
+            c.refined_into
+                .iter()
+                .flatten()
+                .any(|&k| k <= c.index || k >= m.cubes.len())
+        }) {
+            return Err(Error::file(
+                &name,
+                format!("cube {} lists pieces that are not later cubes", c.index),
+            ));
+        }
         Ok(m)
+    }
+
+    /// The cubes to solve: those not cut into smaller cubes, in index order.
+    pub fn leaves(&self) -> impl Iterator<Item = &RealCube> {
+        self.cubes.iter().filter(|c| c.is_leaf())
     }
 
     /// What `split` wrote to `dir`, and what to do next, for people.
     pub fn summary(&self, dir: &Path) -> String {
         let d = dir.display();
         let q = &self.question;
-        let longest = self.cubes.iter().map(|c| c.literals.len()).max();
+        let longest = self.leaves().map(|c| c.literals.len()).max();
         format!(
             "question     an isometric {}-cycle in (R^{}, sup-norm)\n\
              cubes        {} (asked for {}), literals of the skeleton's witness variables T(i,j,c), at most {} per cube\n\
@@ -507,6 +560,14 @@ pub fn write_split(
     };
     if dir.join(MANIFEST).exists() {
         let old = RealSplitManifest::read(dir)?;
+        if old.refinements > 0 {
+            return Err(Error::Options(format!(
+                "{} already holds this split with cubes cut into smaller ones ({} refinements), \
+                 which writing it again would lose; go on with it, or choose another folder",
+                dir.display(),
+                old.refinements
+            )));
+        }
         if old.question != question || &old.options != options || old.requested_cubes != target {
             return Err(Error::Options(format!(
                 "{} already holds another split ({MANIFEST}); choose another folder or remove it",
@@ -554,9 +615,11 @@ pub fn write_split(
                 index,
                 sha256: cube_digest(&skeleton_entry.sha256, &literals),
                 literals,
+                refined_into: None,
             })
             .collect(),
         skeleton: skeleton_entry,
+        refinements: 0,
     };
     let text = serde_json::to_string_pretty(&m).map_err(|e| Error::Options(e.to_string()))? + "\n";
     write_atomically(&dir.join(MANIFEST), text.as_bytes())?;
@@ -614,13 +677,19 @@ pub fn verify_split(dir: &Path, m: &RealSplitManifest) -> Result<(Skeleton, Lrat
             ));
         }
     }
-    let cubes: Vec<Vec<i32>> = m.cubes.iter().map(|c| c.literals.clone()).collect();
+    let cubes: Vec<Vec<i32>> = m.leaves().map(|c| c.literals.clone()).collect();
     let coverage = coverage_cnf(&sk, &cubes);
     let options = LratOptions {
         ids_follow_cnf: true,
         ..LratOptions::default()
     };
-    let path = dir.join(COVERAGE_PROOF);
+    if m.coverage.proof.name.contains(['/', '\\']) {
+        return Err(Error::file(
+            &mpath,
+            "names a coverage proof outside the split folder",
+        ));
+    }
+    let path = dir.join(&m.coverage.proof.name);
     let stored = recheck_file(&coverage, &path, &options)?;
     let summary = stored.check.map_err(|e| {
         Error::file(
@@ -628,11 +697,231 @@ pub fn verify_split(dir: &Path, m: &RealSplitManifest) -> Result<(Skeleton, Lrat
             format!(
                 "does not refute the coverage CNF rebuilt from the manifest's {} cubes, so the \
                  cubes are not known to cover the question: {e}",
-                m.cubes.len()
+                cubes.len()
             ),
         )
     })?;
     Ok((sk, summary))
+}
+
+/// What [`refine_split`] did.
+#[derive(Clone, Debug, Serialize)]
+pub struct RefineReport {
+    /// The cubes cut, each with the indices of its pieces (none when unit
+    /// propagation refutes it).
+    pub refined: Vec<(usize, Vec<usize>)>,
+    /// Cubes asked for that could not be cut: no witness variable is free.
+    pub uncut: Vec<usize>,
+    /// The manifest as written.
+    pub manifest: RealSplitManifest,
+}
+
+impl RefineReport {
+    /// What was done, and what to do next, for people.
+    pub fn to_text(&self, dir: &Path) -> String {
+        use std::fmt::Write as _;
+        let d = dir.display();
+        let m = &self.manifest;
+        let pieces: usize = self.refined.iter().map(|(_, v)| v.len()).sum();
+        let mut s = format!(
+            "refined      {} cubes into {pieces} smaller ones (refinement {})\n",
+            self.refined.len(),
+            m.refinements
+        );
+        for (k, (i, v)) in self.refined.iter().enumerate() {
+            if k == 20 {
+                let _ = writeln!(s, "             … and {} more", self.refined.len() - 20);
+                break;
+            }
+            let into = match (v.first(), v.last()) {
+                (Some(a), Some(b)) if a == b => format!("cube {a}"),
+                (Some(a), Some(b)) => format!("cubes {a}..{b}"),
+                _ => "nothing: unit propagation refutes it".into(),
+            };
+            let _ = writeln!(s, "             cube {i} -> {into}");
+        }
+        if !self.uncut.is_empty() {
+            let _ = writeln!(
+                s,
+                "not cut      {} (every witness variable is fixed)",
+                self.uncut
+                    .iter()
+                    .map(|i| i.to_string())
+                    .collect::<Vec<_>>()
+                    .join(" ")
+            );
+        }
+        let leaves = m.leaves().count();
+        let _ = writeln!(
+            s,
+            "cubes        {} listed, {leaves} to solve (the others are cut into pieces)",
+            m.cubes.len()
+        );
+        let _ = writeln!(
+            s,
+            "coverage     checked: LRAT proof of {} steps refutes {}, so every model of the skeleton lies in a cube to solve",
+            m.coverage.lrat_steps, m.coverage.cnf.name
+        );
+        match (
+            self.refined.iter().flat_map(|(_, v)| v).min(),
+            self.refined.iter().flat_map(|(_, v)| v).max(),
+        ) {
+            (Some(a), Some(b)) => {
+                let _ = writeln!(
+                    s,
+                    "next         orbitcnf run-cube {d} {a}..{b}   (or every index of merge {d} --pending)\n\
+                     \x20            orbitcnf merge {d}"
+                );
+            }
+            _ => {
+                let _ = writeln!(s, "next         orbitcnf merge {d}");
+            }
+        }
+        s
+    }
+}
+
+/// Cuts cubes of the split in `dir` into at least `per_cube` smaller
+/// cubes each, in place (`encodings/real-space.md` §9): the pieces extend
+/// the cube's literals and are chosen like the first split's cubes
+/// ([`make_cubes_under`]); they are appended to the cube list, the cut
+/// cube records their indices, and a new coverage check over the cubes
+/// left to solve is refuted and its proof checked before the manifest is
+/// replaced (one atomic write; results of other cubes stay valid, since
+/// their indices and digests do not change). `which` names the cubes to
+/// cut; `None` takes every cube whose result says unknown or error.
+///
+/// # Errors
+/// [`Error::Options`] for `per_cube` below 2, no cube to cut, a cube that
+/// is out of range, already cut or already answered, or a split that
+/// would exceed [`MAX_CUBES`]; a split that fails [`verify_split`]; a
+/// failed coverage check; [`Error::Io`].
+pub fn refine_split(dir: &Path, which: Option<&[usize]>, per_cube: usize) -> Result<RefineReport> {
+    if !(2..=MAX_CUBES).contains(&per_cube) {
+        return Err(Error::Options(format!(
+            "a cube is cut into at least 2 and at most {MAX_CUBES} pieces, not {per_cube}"
+        )));
+    }
+    let mut m = RealSplitManifest::read(dir)?;
+    let (sk, _) = verify_split(dir, &m)?;
+    let result_of = |i: usize| {
+        run::read_result(dir, i)
+            .ok()
+            .flatten()
+            .filter(|r| r.cube_sha256 == m.cubes[i].sha256)
+    };
+    let chosen: Vec<usize> = match which {
+        Some(list) => {
+            let mut v = list.to_vec();
+            v.sort_unstable();
+            v.dedup();
+            for &i in &v {
+                let Some(c) = m.cubes.get(i) else {
+                    return Err(crate::split::run::out_of_range(dir, i, m.cubes.len()));
+                };
+                if let Some(into) = &c.refined_into {
+                    return Err(Error::Options(format!(
+                        "cube {i} is already cut into {} pieces",
+                        into.len()
+                    )));
+                }
+                if let Some(r) = result_of(i).filter(|r| r.status.is_final()) {
+                    return Err(Error::Options(format!(
+                        "cube {i} is already answered ({}); only cubes without an answer are cut",
+                        if r.status == crate::split::run::CubeStatus::Feasible {
+                            "feasible"
+                        } else {
+                            "infeasible"
+                        }
+                    )));
+                }
+            }
+            v
+        }
+        None => m
+            .leaves()
+            .filter(|c| result_of(c.index).is_some_and(|r| !r.status.is_final()))
+            .map(|c| c.index)
+            .collect(),
+    };
+    if chosen.is_empty() {
+        return Err(Error::Options(format!(
+            "no cube of {} has an unknown or failed result, so there is nothing to cut; name \
+             the cubes to cut",
+            dir.display()
+        )));
+    }
+    let mut refined = Vec::new();
+    let mut uncut = Vec::new();
+    for &i in &chosen {
+        let parent = m.cubes[i].literals.clone();
+        let pieces = make_cubes_under(&sk, &parent, per_cube).unwrap_or_default();
+        if pieces.len() == 1 && pieces[0] == parent {
+            uncut.push(i);
+            continue;
+        }
+        let first = m.cubes.len();
+        if first + pieces.len() > MAX_CUBES {
+            return Err(Error::Options(format!(
+                "cutting cube {i} would make more than {MAX_CUBES} cubes"
+            )));
+        }
+        let indices: Vec<usize> = (first..first + pieces.len()).collect();
+        for (index, literals) in indices.iter().copied().zip(pieces) {
+            m.cubes.push(RealCube {
+                index,
+                sha256: cube_digest(&m.skeleton.sha256, &literals),
+                literals,
+                refined_into: None,
+            });
+        }
+        m.cubes[i].refined_into = Some(indices.clone());
+        refined.push((i, indices));
+    }
+    if refined.is_empty() {
+        return Err(Error::Options(format!(
+            "none of the cubes {} can be cut: every witness variable is fixed in each",
+            chosen
+                .iter()
+                .map(|i| i.to_string())
+                .collect::<Vec<_>>()
+                .join(" ")
+        )));
+    }
+    let leaves: Vec<Vec<i32>> = m.leaves().map(|c| c.literals.clone()).collect();
+    let coverage = coverage_cnf(&sk, &leaves);
+    let checked = refute_coverage(&coverage)?;
+    let proof = std::fs::read(checked.path()).map_err(|e| Error::io(checked.path(), e))?;
+    m.refinements += 1;
+    let stem = format!("coverage-{}", m.refinements);
+    let old = [m.coverage.cnf.name.clone(), m.coverage.proof.name.clone()];
+    let put = |name: String, bytes: &[u8]| -> Result<FileEntry> {
+        write_atomically(&dir.join(&name), bytes)?;
+        Ok(FileEntry::of(&name, bytes))
+    };
+    m.coverage = RealCoverage {
+        cnf: put(
+            format!("{stem}.cnf"),
+            &render_coverage(&sk, &coverage, leaves.len()),
+        )?,
+        proof: put(format!("{stem}.lrat"), &proof)?,
+        skeleton_clauses: sk.cnf.num_clauses(),
+        lrat_steps: checked.info.lrat.steps,
+    };
+    m.format = FORMAT_REFINED.into();
+    let text = serde_json::to_string_pretty(&m).map_err(|e| Error::Options(e.to_string()))? + "\n";
+    write_atomically(&dir.join(MANIFEST), text.as_bytes())?;
+    // The manifest names the new coverage files now; the old ones are stale.
+    for name in old {
+        if name != m.coverage.cnf.name && name != m.coverage.proof.name {
+            let _ = std::fs::remove_file(dir.join(name));
+        }
+    }
+    Ok(RefineReport {
+        refined,
+        uncut,
+        manifest: m,
+    })
 }
 
 #[cfg(test)]

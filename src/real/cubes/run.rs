@@ -143,6 +143,9 @@ pub enum RealRunOutcome {
     Solved(RealCubeResult),
     /// A final result was already there and `force` was not given.
     AlreadyDone(RealCubeResult),
+    /// The cube was cut into these smaller cubes ([`super::refine_split`]):
+    /// there is nothing to solve.
+    Refined(Vec<usize>),
 }
 
 /// Solves cube `index` of the split in `dir` and writes its result
@@ -167,6 +170,9 @@ pub fn run_cube(
         .cubes
         .get(index)
         .ok_or_else(|| crate::split::run::out_of_range(dir, index, m.cubes.len()))?;
+    if let Some(into) = &cube.refined_into {
+        return Ok(RealRunOutcome::Refined(into.clone()));
+    }
     if !force
         && let Ok(Some(r)) = read_result(dir, index)
         && r.status.is_final()
@@ -269,8 +275,12 @@ pub struct RealMergeReport {
     pub dim: usize,
     /// Period.
     pub period: usize,
-    /// The cube count.
+    /// The count of cubes to solve (those not cut into smaller ones).
     pub cubes: usize,
+    /// Cubes cut into smaller ones ([`super::refine_split`]): they need no
+    /// result of their own.
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub refined: Vec<usize>,
     /// Cubes refuted with a certificate that was re-checked now.
     pub certified: Vec<usize>,
     /// Cubes refuted on the search's word only.
@@ -326,6 +336,13 @@ impl RealMergeReport {
             "question     an isometric {}-cycle in (R^{}, sup-norm), in {} cubes",
             self.period, self.dim, self.cubes
         );
+        if !self.refined.is_empty() {
+            let _ = writeln!(
+                s,
+                "refined      cubes {} were cut into smaller ones, counted above instead",
+                list(&self.refined)
+            );
+        }
         match self.verdict {
             Verdict::Feasible => {
                 let _ = writeln!(
@@ -441,7 +458,13 @@ pub fn merge(dir: &Path, accept_claims: bool, progress: ProgressMode) -> Result<
         verdict: Verdict::Unknown,
         dim: n,
         period: p,
-        cubes: m.cubes.len(),
+        cubes: m.leaves().count(),
+        refined: m
+            .cubes
+            .iter()
+            .filter(|c| !c.is_leaf())
+            .map(|c| c.index)
+            .collect(),
         certified: Vec::new(),
         uncertified: Vec::new(),
         feasible_cube: None,
@@ -455,12 +478,12 @@ pub fn merge(dir: &Path, accept_claims: bool, progress: ProgressMode) -> Result<
     };
     let results = dir.join(RESULTS_DIR);
     let skeleton = dir.join(SKELETON);
-    for (read, cube) in m.cubes.iter().enumerate() {
+    for (read, cube) in m.leaves().enumerate() {
         let i = cube.index;
         progress.status(|| {
             format!(
                 "merge: {read} of {} cube results read, {} certificates checked ({})",
-                m.cubes.len(),
+                report.cubes,
                 report.certified.len(),
                 duration_words(start.elapsed().as_secs_f64())
             )
@@ -574,14 +597,14 @@ pub fn check_real_orbit(n: usize, p: usize, orbit: &[Vec<i64>]) -> Result<OrbitC
     Ok(check_orbit(&vec![(lo, hi); n], orbit)?)
 }
 
-/// The indices of the cubes without a final result, for re-running only those.
+/// The indices of the cubes to solve without a final result, for
+/// re-running only those (cubes cut into smaller ones are not listed).
 ///
 /// # Errors
 /// A manifest that cannot be read.
 pub fn pending_indices(dir: &Path) -> Result<Vec<usize>> {
     let m = RealSplitManifest::read(dir)?;
-    Ok(m.cubes
-        .iter()
+    Ok(m.leaves()
         .filter(|c| {
             !matches!(read_result(dir, c.index),
                 Ok(Some(r)) if r.status.is_final() && r.cube_sha256 == c.sha256)

@@ -172,3 +172,99 @@ fn a_cube_certificate_does_not_refute_another_cube_or_the_whole_question() {
     let e = crate::real::certificate::check_parts(2, 5, &files, &[0]).unwrap_err();
     assert!(e.to_string().contains("not a variable"), "{e}");
 }
+
+/// The pieces of a cube extend it, and every model of a tiny skeleton
+/// inside the cube lies in exactly one piece (enumeration, no solver).
+#[test]
+fn the_pieces_of_a_cube_partition_its_models() {
+    for (n, p) in [(1, 4), (2, 3)] {
+        let s = sk(n, p);
+        let vars = s.cnf.num_vars() as usize;
+        for parent in make_cubes(&s, 4) {
+            for target in [2, 3, 8] {
+                let Some(pieces) = make_cubes_under(&s, &parent, target) else {
+                    continue;
+                };
+                assert!(pieces.iter().all(|c| c.starts_with(&parent)));
+                for bits in 0u32..(1 << vars) {
+                    let model: Vec<bool> = (0..vars).map(|v| bits >> v & 1 == 1).collect();
+                    let holds = |c: &Vec<i32>| c.iter().all(|&l| Lit::from_dimacs(l).holds(&model));
+                    if s.cnf.first_falsified(&model).is_some() || !holds(&parent) {
+                        continue;
+                    }
+                    let holding = pieces.iter().filter(|c| holds(c)).count();
+                    assert_eq!(holding, 1, "n={n} p={p} {parent:?} bits={bits:b}");
+                }
+            }
+        }
+    }
+    // a cube that unit propagation refutes needs no piece
+    let s = sk(2, 3);
+    let v = skeleton::tight_var(2, 3, 0, 1, 0).dimacs() as i32;
+    assert_eq!(make_cubes_under(&s, &[v, -v], 4), None);
+}
+
+/// `refine_split` in a folder: pieces appended, the cut cube marked, a
+/// new coverage proof that `verify_split` accepts, the other results kept,
+/// and the merge counting the pieces; a manifest whose cut cube lost a
+/// piece fails the coverage check.
+#[test]
+fn refine_cuts_cubes_in_place_and_merge_counts_the_pieces() {
+    use crate::progress::ProgressMode;
+    use crate::report::Verdict;
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path();
+    let m = write_split(d, 2, 5, &SkeletonOptions::default(), 4).unwrap();
+    assert_eq!(m.format, FORMAT);
+    let o = RealOptions::new();
+    run::run_cube(d, 0, &o, None, false, &mut |_| {}).unwrap();
+    let e = refine_split(d, None, 4).unwrap_err().to_string();
+    assert!(e.contains("nothing to cut"), "{e}");
+    let e = refine_split(d, Some(&[0]), 4).unwrap_err().to_string();
+    assert!(e.contains("already answered"), "{e}");
+    let e = refine_split(d, Some(&[1]), 1).unwrap_err().to_string();
+    assert!(e.contains("at least 2"), "{e}");
+    let r = refine_split(d, Some(&[2, 1]), 4).unwrap();
+    let m = r.manifest;
+    assert_eq!(m.format, FORMAT_REFINED);
+    assert_eq!(m.refinements, 1);
+    assert_eq!(r.refined.iter().map(|x| x.0).collect::<Vec<_>>(), [1, 2]);
+    for (i, into) in &r.refined {
+        assert_eq!(m.cubes[*i].refined_into.as_ref(), Some(into));
+        for &k in into {
+            assert!(m.cubes[k].literals.starts_with(&m.cubes[*i].literals));
+        }
+    }
+    assert!(!d.join(COVERAGE).exists() && d.join("coverage-1.lrat").exists());
+    let again = RealSplitManifest::read(d).unwrap();
+    assert_eq!(again, m);
+    verify_split(d, &again).unwrap();
+    let e = refine_split(d, Some(&[1]), 4).unwrap_err().to_string();
+    assert!(e.contains("already cut"), "{e}");
+    let e = write_split(d, 2, 5, &SkeletonOptions::default(), 4)
+        .unwrap_err()
+        .to_string();
+    assert!(e.contains("would lose"), "{e}");
+    for c in m.cubes.iter() {
+        let out = run::run_cube(d, c.index, &o, None, false, &mut |_| {}).unwrap();
+        assert_eq!(
+            matches!(out, run::RealRunOutcome::Refined(_)),
+            !c.is_leaf(),
+            "cube {}",
+            c.index
+        );
+    }
+    assert!(run::pending_indices(d).unwrap().is_empty());
+    let merged = run::merge(d, false, ProgressMode::Off).unwrap();
+    assert_eq!(merged.verdict, Verdict::Infeasible);
+    assert_eq!(merged.cubes, m.cubes.len() - 2);
+    assert_eq!(merged.refined, [1, 2]);
+    assert_eq!(merged.certified.len(), merged.cubes);
+    // a piece dropped from the list: the coverage proof no longer fits
+    let mut bad = m.clone();
+    let (i, into) = &r.refined[0];
+    let dropped = into[0];
+    bad.cubes[*i].refined_into = Some(into[1..].to_vec());
+    bad.cubes[dropped].refined_into = Some(Vec::new());
+    assert!(verify_split(d, &bad).is_err());
+}

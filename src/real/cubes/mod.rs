@@ -562,10 +562,9 @@ pub fn write_split(
         let old = RealSplitManifest::read(dir)?;
         if old.refinements > 0 {
             return Err(Error::Options(format!(
-                "{} already holds this split with cubes cut into smaller ones ({} refinements), \
+                "{} already holds this split with cubes cut into smaller ones by refine, \
                  which writing it again would lose; go on with it, or choose another folder",
-                dir.display(),
-                old.refinements
+                dir.display()
             )));
         }
         if old.question != question || &old.options != options || old.requested_cubes != target {
@@ -723,9 +722,12 @@ impl RefineReport {
         let d = dir.display();
         let m = &self.manifest;
         let pieces: usize = self.refined.iter().map(|(_, v)| v.len()).sum();
+        let cubes = match self.refined.len() {
+            1 => "1 cube".to_string(),
+            k => format!("{k} cubes"),
+        };
         let mut s = format!(
-            "refined      {} cubes into {pieces} smaller ones (refinement {})\n",
-            self.refined.len(),
+            "refined      {cubes} into {pieces} smaller ones (refinement {})\n",
             m.refinements
         );
         for (k, (i, v)) in self.refined.iter().enumerate() {

@@ -251,7 +251,8 @@ fn refine_cuts_cubes_and_merge_still_certifies() {
     assert_eq!(v["cubes"], total - 2);
     assert_eq!(v["refined"], serde_json::json!([1, 3]));
     let text = dir.orbitcnf().args(["merge", "rf"]).run();
-    text.code(INFEASIBLE).stdout_has("refined      cubes 1 3");
+    text.code(INFEASIBLE)
+        .stdout_has("refined      1 3 (cut into smaller cubes");
     // writing the split again would lose the pieces
     dir.orbitcnf()
         .args([

@@ -339,7 +339,7 @@ impl RealMergeReport {
         if !self.refined.is_empty() {
             let _ = writeln!(
                 s,
-                "refined      cubes {} were cut into smaller ones, counted above instead",
+                "refined      {} (cut into smaller cubes by refine; the pieces are counted above)",
                 list(&self.refined)
             );
         }

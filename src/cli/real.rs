@@ -276,10 +276,7 @@ pub fn run_cube(
             (r, " (already solved; --force solves again)")
         }
         real::cubes::run::RealRunOutcome::Refined(into) => {
-            let pieces = match (into.first(), into.last()) {
-                (Some(a), Some(b)) => format!("cubes {a}..{b}"),
-                _ => "no cube (unit propagation refutes it)".into(),
-            };
+            let pieces = real::cubes::pieces_words(&into);
             print_either(
                 json,
                 || serde_json::json!({ "index": index, "refined_into": into }).to_string(),

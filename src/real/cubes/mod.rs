@@ -703,6 +703,25 @@ pub fn verify_split(dir: &Path, m: &RealSplitManifest) -> Result<(Skeleton, Lrat
     Ok((sk, summary))
 }
 
+/// Cube indices for people: `3 5 8`.
+pub(crate) fn list(v: &[usize]) -> String {
+    v.iter()
+        .map(|i| i.to_string())
+        .collect::<Vec<_>>()
+        .join(" ")
+}
+
+/// The pieces of a cut cube for people (they are always consecutive
+/// indices, since [`refine_split`] appends them): `cube 8`, `cubes 8..11`,
+/// or that propagation refuted the cube and it has none.
+pub fn pieces_words(pieces: &[usize]) -> String {
+    match (pieces.first(), pieces.last()) {
+        (Some(a), Some(b)) if a == b => format!("cube {a}"),
+        (Some(a), Some(b)) => format!("cubes {a}..{b}"),
+        _ => "no cube: unit propagation refutes it".into(),
+    }
+}
+
 /// What [`refine_split`] did.
 #[derive(Clone, Debug, Serialize)]
 pub struct RefineReport {
@@ -735,22 +754,13 @@ impl RefineReport {
                 let _ = writeln!(s, "             … and {} more", self.refined.len() - 20);
                 break;
             }
-            let into = match (v.first(), v.last()) {
-                (Some(a), Some(b)) if a == b => format!("cube {a}"),
-                (Some(a), Some(b)) => format!("cubes {a}..{b}"),
-                _ => "nothing: unit propagation refutes it".into(),
-            };
-            let _ = writeln!(s, "             cube {i} -> {into}");
+            let _ = writeln!(s, "             cube {i} -> {}", pieces_words(v));
         }
         if !self.uncut.is_empty() {
             let _ = writeln!(
                 s,
                 "not cut      {} (every witness variable is fixed)",
-                self.uncut
-                    .iter()
-                    .map(|i| i.to_string())
-                    .collect::<Vec<_>>()
-                    .join(" ")
+                list(&self.uncut)
             );
         }
         let leaves = m.leaves().count();
@@ -883,11 +893,7 @@ pub fn refine_split(dir: &Path, which: Option<&[usize]>, per_cube: usize) -> Res
     if refined.is_empty() {
         return Err(Error::Options(format!(
             "none of the cubes {} can be cut: every witness variable is fixed in each",
-            chosen
-                .iter()
-                .map(|i| i.to_string())
-                .collect::<Vec<_>>()
-                .join(" ")
+            list(&chosen)
         )));
     }
     let leaves: Vec<Vec<i32>> = m.leaves().map(|c| c.literals.clone()).collect();

@@ -20,7 +20,7 @@ use std::time::{Duration, Instant};
 
 use serde::{Deserialize, Serialize};
 
-use super::{MANIFEST, RESULTS_DIR, RealSplitManifest, SKELETON, verify_split};
+use super::{MANIFEST, RESULTS_DIR, RealSplitManifest, SKELETON, list, verify_split};
 use crate::artifact::{FileEntry, write_atomically};
 use crate::dimacs::VERSION;
 use crate::error::{Error, Result};
@@ -421,13 +421,6 @@ impl RealMergeReport {
         let _ = writeln!(s, "solve time   {:.3} s over all cubes", self.solve_seconds);
         s
     }
-}
-
-fn list(v: &[usize]) -> String {
-    v.iter()
-        .map(|i| i.to_string())
-        .collect::<Vec<_>>()
-        .join(" ")
 }
 
 /// How many cubes the real-space split in `dir` has (from its manifest).

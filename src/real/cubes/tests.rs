@@ -266,5 +266,9 @@ fn refine_cuts_cubes_in_place_and_merge_counts_the_pieces() {
     let dropped = into[0];
     bad.cubes[*i].refined_into = Some(into[1..].to_vec());
     bad.cubes[dropped].refined_into = Some(Vec::new());
-    assert!(verify_split(d, &bad).is_err());
+    let e = verify_split(d, &bad).unwrap_err().to_string();
+    assert!(
+        e.contains("coverage-1.lrat") && e.contains("not known to cover"),
+        "{e}"
+    );
 }

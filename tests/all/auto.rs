@@ -275,3 +275,85 @@ fn q0_3_n4_periods_24_and_28_are_refuted_in_whole_profile_cubes() {
         assert_eq!(v["strategy"]["cubes"], cubes, "p = {p}: {}", v["strategy"]);
     }
 }
+
+/// {0,1,2,3}^4, p = 30, refuted by computation on 2026-12-04 (README, "What
+/// is proven and what is open"): 25,674 whole profiles, more than the 20,000
+/// `decide` splits by itself, so it runs as a cluster would: `split`, then
+/// `run-cube` in blocks of 50 under GNU parallel, then `merge`, which
+/// re-checks the coverage proof and every cube's LRAT proof. Nothing
+/// published settles it; the expectation is orbitcnf's own certified
+/// answer, pinned so that a change that loses it is seen.
+#[test]
+#[ignore = "about 2 hours on 2 cores and 11 GB of disk (25,674 whole-profile cubes, about 12,600 s of solving, then an 8-minute merge); run on purpose"]
+fn q0_3_n4_period_30_is_refuted_in_blocks_of_cubes() {
+    let dir = TestDir::new();
+    refuted_in_blocks(&dir, &Q::cube(0, 3, 4, 30), 30_000, 25_674, &[]);
+}
+
+/// `split` of `q` into whole-profile cubes (asking for `requested`; there
+/// must be `cubes`), `run-cube` with binary proofs on blocks of at most 50
+/// cubes under GNU parallel, except the cubes in `hard`, which CaDiCaL
+/// refutes with a DRAT proof (turned into LRAT by `rate`), and `merge`:
+/// infeasible, every cube refuted with a checked proof.
+fn refuted_in_blocks(dir: &TestDir, q: &Q, requested: usize, cubes: usize, hard: &[usize]) {
+    crate::util::require_tools(&["parallel"]);
+    if !hard.is_empty() {
+        crate::util::require_tools(&["cadical", "rate"]);
+    }
+    dir.orbitcnf()
+        .arg("split")
+        .args(q.args())
+        .args(["--cubes", &requested.to_string()])
+        .args(["--layout", "compact", "--out", "sp"])
+        .run()
+        .code(0)
+        .stdout_has("coverage     checked");
+    let m: Value = serde_json::from_str(&dir.read("sp/manifest.json")).expect("manifest is JSON");
+    assert_eq!(m["cubes"].as_array().map(Vec::len), Some(cubes));
+    let mut jobs: Vec<String> = Vec::new();
+    let mut start = None;
+    for i in 0..=cubes {
+        let cut = i == cubes || hard.contains(&i);
+        if let Some(a) = start
+            && (cut || i - a == 50)
+        {
+            jobs.push(format!("{a}..{}", i - 1));
+            start = None;
+        }
+        if !cut && start.is_none() {
+            start = Some(i);
+        }
+    }
+    dir.program("parallel")
+        .args([
+            "--will-cite",
+            "-j",
+            "2",
+            crate::util::bin(),
+            "run-cube",
+            "sp",
+            "{}",
+        ])
+        .args(["--proof-encoding", "binary", "-q", ":::"])
+        .args(&jobs)
+        .run()
+        .code(0);
+    for i in hard {
+        dir.orbitcnf()
+            .args([
+                "run-cube",
+                "sp",
+                &i.to_string(),
+                "--solver",
+                "external:cadical -q",
+            ])
+            .args(["--proof-arg", "{}", "--proof-encoding", "binary", "-q"])
+            .run()
+            .code(0);
+    }
+    dir.orbitcnf()
+        .args(["merge", "sp"])
+        .run()
+        .code(INFEASIBLE)
+        .stdout_has(&format!("all {cubes} cubes refuted"));
+}

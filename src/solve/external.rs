@@ -60,7 +60,7 @@ use crate::artifact::persist;
 use crate::cnf::Cnf;
 use crate::dimacs::{self, Status};
 use crate::error::{Error, Result};
-use crate::progress::{Progress, duration_words};
+use crate::progress::{Progress, ProgressMode, duration_words};
 use crate::proof::LratOptions;
 
 /// How much of a solver's standard output is kept; more is an error.
@@ -344,13 +344,8 @@ fn run_until(
             let _ = child.wait();
             return Ok(Ended::TimedOut);
         }
-        if let Some((name, start, sink)) = progress.as_mut() {
-            sink.status(|| {
-                format!(
-                    "solving with {name}: {}",
-                    duration_words(start.elapsed().as_secs_f64())
-                )
-            });
+        if let Some((doing, start, sink)) = progress.as_mut() {
+            sink.status(|| format!("{doing}: {}", duration_words(start.elapsed().as_secs_f64())));
         }
         std::thread::sleep(pause);
         pause = (pause * 2).min(Duration::from_millis(20));
@@ -496,11 +491,12 @@ impl Backend for External {
         }
         let name = self.name();
         let mut progress = Progress::new(limits.progress);
+        let doing = format!("solving with {name}");
         let ended = run_until(
             &mut cmd,
             program,
             deadline,
-            Some((&*name, start, &mut progress)),
+            Some((&*doing, start, &mut progress)),
         );
         progress.clear();
         let stats = |conflicts| SolveStats {
@@ -596,7 +592,7 @@ impl Backend for External {
                     &cnf_path,
                     &proof_path,
                     &req,
-                    deadline,
+                    (deadline, limits.progress),
                     stats(conflicts),
                 )
             }
@@ -612,7 +608,7 @@ impl External {
         cnf_path: &Path,
         raw: &Path,
         req: &ProofRequest,
-        deadline: Option<Instant>,
+        (deadline, progress): (Option<Instant>, ProgressMode),
         mut stats: SolveStats,
     ) -> Result<SolveResult> {
         let raw_bytes = std::fs::metadata(raw)
@@ -655,7 +651,21 @@ impl External {
                     command: format!("{DRAT_CONVERTER} (DRAT to LRAT)"),
                     failure: f,
                 };
-                match run_until(&mut cmd, DRAT_CONVERTER, deadline, None).map_err(converter)? {
+                // Turning a large DRAT proof into LRAT can take longer than
+                // the solve did, so it reports progress as the solve does.
+                let mut sink = Progress::new(progress);
+                let doing = format!(
+                    "converting the DRAT proof ({:.0} MB) to LRAT with `{DRAT_CONVERTER}`",
+                    raw_bytes as f64 / 1e6
+                );
+                let ended = run_until(
+                    &mut cmd,
+                    DRAT_CONVERTER,
+                    deadline,
+                    Some((&*doing, Instant::now(), &mut sink)),
+                );
+                sink.clear();
+                match ended.map_err(converter)? {
                     Ended::TimedOut => {
                         return Ok(SolveResult {
                             outcome: Outcome::Unknown(

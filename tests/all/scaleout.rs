@@ -407,18 +407,21 @@ fn cadical_as_external_solver_on_feasible_infeasible_and_limited_questions() {
     assert_eq!(v["verdict"], "infeasible");
     assert_eq!(v["certified"], false);
     assert_eq!(v["certificate"]["kind"], "solver-claim");
-    // With a DRAT proof: checked through rate when rate is installed.
+    // With a DRAT proof: checked through rate when rate is installed, and
+    // a log hears of the conversion (which can outlast the solve).
     let run = dir
         .orbitcnf()
         .arg("decide")
         .args(q.args())
         .args(ext)
-        .args(["--proof-arg", "{}", "--json"])
+        .args(["--proof-arg", "{}", "--json", "--progress", "lines"])
         .run();
     let v = check_report(&dir, &q, &run);
     if have_tool("rate") {
         assert_eq!(v["verdict"], "infeasible");
         assert_eq!(v["certificate"]["kind"], "checked-proof", "{v}");
+        run.stderr_has("solving with external `cadical -q`: ")
+            .stderr_has(") to LRAT with `rate`: ");
     } else {
         // Without rate the DRAT proof stays unchecked, so the claim is no verdict.
         assert_eq!(v["verdict"], "unknown", "{v}");

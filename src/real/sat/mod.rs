@@ -356,9 +356,14 @@ impl Solver {
 
     /// Stores a clause and watches its first two literals; returns its index.
     fn attach(&mut self, lits: &[u32], id: u64, learnt: bool, lbd: u32) -> u32 {
+        let ci = self.cls.len() as u32;
+        // The index and length sit just before the literals, so that
+        // propagation, which finds a clause by its arena position, reads one
+        // stretch of memory instead of the metadata and then the literals.
+        self.arena.push(ci);
+        self.arena.push(lits.len() as u32);
         let start = self.arena.len() as u32;
         self.arena.extend_from_slice(lits);
-        let ci = self.cls.len() as u32;
         self.cls.push(ClauseData {
             start,
             len: lits.len() as u32,
@@ -369,8 +374,8 @@ impl Solver {
             deleted: false,
         });
         if lits.len() >= 2 {
-            self.watches[lits[0] as usize].push((ci, lits[1]));
-            self.watches[lits[1] as usize].push((ci, lits[0]));
+            self.watches[lits[0] as usize].push((start, lits[1]));
+            self.watches[lits[1] as usize].push((start, lits[0]));
         }
         ci
     }
@@ -386,24 +391,22 @@ impl Solver {
             let mut j = 0;
             let mut confl = None;
             while i < ws.len() {
-                let (ci, blocker) = ws[i];
+                let (start, blocker) = ws[i];
                 i += 1;
                 if self.lval(blocker) == 1 {
-                    ws[j] = (ci, blocker);
+                    ws[j] = (start, blocker);
                     j += 1;
                     continue;
                 }
-                let d = &self.cls[ci as usize];
-                if d.deleted {
-                    continue;
-                }
-                let (st, len) = (d.start as usize, d.len as usize);
+                // Watch lists hold no deleted clause: `reduce` purges them.
+                let st = start as usize;
+                let len = self.arena[st - 1] as usize;
                 if self.arena[st] == fl {
                     self.arena.swap(st, st + 1);
                 }
                 let first = self.arena[st];
                 if first != blocker && self.lval(first) == 1 {
-                    ws[j] = (ci, first);
+                    ws[j] = (start, first);
                     j += 1;
                     continue;
                 }
@@ -412,7 +415,7 @@ impl Solver {
                     let q = self.arena[st + k];
                     if self.lval(q) != -1 {
                         self.arena.swap(st + 1, st + k);
-                        self.watches[q as usize].push((ci, first));
+                        self.watches[q as usize].push((start, first));
                         moved = true;
                         break;
                     }
@@ -420,8 +423,9 @@ impl Solver {
                 if moved {
                     continue;
                 }
-                ws[j] = (ci, first);
+                ws[j] = (start, first);
                 j += 1;
+                let ci = self.arena[st - 2];
                 if self.lval(first) == -1 {
                     confl = Some(ci);
                     while i < ws.len() {
@@ -681,11 +685,12 @@ impl Solver {
         if old == new || (old.0 == new.1 && old.1 == new.0) {
             return;
         }
+        let start = d.start;
         for w in [old.0, old.1] {
-            self.watches[w as usize].retain(|&(c, _)| c != ci);
+            self.watches[w as usize].retain(|&(s, _)| s != start);
         }
-        self.watches[new.0 as usize].push((ci, new.1));
-        self.watches[new.1 as usize].push((ci, new.0));
+        self.watches[new.0 as usize].push((start, new.1));
+        self.watches[new.1 as usize].push((start, new.0));
     }
 
     fn reduce(&mut self) {
@@ -705,13 +710,15 @@ impl Solver {
             let locked = self.lval(first) == 1 && self.reason[var(first)] == c;
             if !locked {
                 self.cls[c as usize].deleted = true;
-                self.garbage += self.cls[c as usize].len as usize;
+                self.garbage += self.cls[c as usize].len as usize + 2;
                 self.log.delete(self.cls[c as usize].id);
                 self.stats.deleted += 1;
             }
         }
+        let arena = &self.arena;
+        let cls = &self.cls;
         for w in &mut self.watches {
-            w.retain(|&(c, _)| !self.cls[c as usize].deleted);
+            w.retain(|&(s, _)| !cls[arena[s as usize - 2] as usize].deleted);
         }
         if self.garbage > self.arena.len() / 2 {
             let mut arena = Vec::with_capacity(self.arena.len() - self.garbage);
@@ -721,12 +728,28 @@ impl Solver {
                     d.start = 0;
                     continue;
                 }
-                let s = arena.len() as u32;
-                arena.extend_from_slice(&self.arena[d.start as usize..(d.start + d.len) as usize]);
-                d.start = s;
+                // Index and length move with the literals (see `attach`).
+                let (s, e) = (d.start as usize - 2, (d.start + d.len) as usize);
+                arena.extend_from_slice(&self.arena[s..e]);
+                d.start = arena.len() as u32 - d.len;
             }
             self.arena = arena;
             self.garbage = 0;
+            // Positions changed: watch again the first two literals of every
+            // live clause, which are its watched ones (propagation and
+            // `rewatch` keep them there).
+            for w in &mut self.watches {
+                w.clear();
+            }
+            for d in &self.cls {
+                if d.deleted || d.len < 2 {
+                    continue;
+                }
+                let st = d.start as usize;
+                let (a, b) = (self.arena[st], self.arena[st + 1]);
+                self.watches[a as usize].push((d.start, b));
+                self.watches[b as usize].push((d.start, a));
+            }
         }
     }
 

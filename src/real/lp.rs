@@ -49,16 +49,41 @@ impl Num for Ratio<i128> {
     fn int(v: i64) -> Self {
         Ratio::from_integer(v as i128)
     }
+    // Most entries of the tableau are integers (the rows have coefficients
+    // ±1), and `Ratio`'s general operations spend two gcds and divisions of
+    // 128-bit numbers on every call; an integer result is `n/1` in
+    // `Ratio`'s reduced form, so building it raw gives the same value.
     fn add(&self, o: &Self) -> Option<Self> {
+        if self.denom() == &1 && o.denom() == &1 {
+            return Some(Ratio::new_raw(
+                i128::checked_add(*self.numer(), *o.numer())?,
+                1,
+            ));
+        }
         self.checked_add(o)
     }
     fn sub(&self, o: &Self) -> Option<Self> {
+        if self.denom() == &1 && o.denom() == &1 {
+            return Some(Ratio::new_raw(
+                i128::checked_sub(*self.numer(), *o.numer())?,
+                1,
+            ));
+        }
         self.checked_sub(o)
     }
     fn mul(&self, o: &Self) -> Option<Self> {
+        if self.denom() == &1 && o.denom() == &1 {
+            return Some(Ratio::new_raw(
+                i128::checked_mul(*self.numer(), *o.numer())?,
+                1,
+            ));
+        }
         self.checked_mul(o)
     }
     fn div(&self, o: &Self) -> Option<Self> {
+        if o == &Ratio::from_integer(1) {
+            return Some(*self);
+        }
         self.checked_div(o)
     }
     fn nil(&self) -> bool {

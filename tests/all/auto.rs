@@ -290,6 +290,21 @@ fn q0_3_n4_period_30_is_refuted_in_blocks_of_cubes() {
     refuted_in_blocks(&dir, &Q::cube(0, 3, 4, 30), 30_000, 25_674, &[]);
 }
 
+/// {-1,0,1}^5, p = 36, refuted by computation on 2026-12-04 (README, "What
+/// is proven and what is open"; so p = 72 is excluded too, by the divisor
+/// argument of docs/math.md §9): 4,412 whole-profile cubes. Two of them,
+/// 3803 and 4349, had no answer from the bundled solver in 30 minutes;
+/// they go to CaDiCaL (25 and 15 minutes), whose DRAT proofs `rate`
+/// turns into LRAT for orbitcnf's checker (up to 40 minutes each), the
+/// others to the bundled solver. Nothing published settles it; the expectation is orbitcnf's own
+/// certified answer.
+#[test]
+#[ignore = "about 2 hours on 2 cores and 12 GB of disk (4,412 whole-profile cubes, about 5,500 s of solving, and two cubes with CaDiCaL and rate, about an hour each); run on purpose"]
+fn m1_n5_period_36_is_refuted_in_blocks_of_cubes() {
+    let dir = TestDir::new();
+    refuted_in_blocks(&dir, &Q::cube(-1, 1, 5, 36), 20_000, 4_412, &[3803, 4349]);
+}
+
 /// `split` of `q` into whole-profile cubes (asking for `requested`; there
 /// must be `cubes`), `run-cube` with binary proofs on blocks of at most 50
 /// cubes under GNU parallel, except the cubes in `hard`, which CaDiCaL

@@ -89,8 +89,12 @@ pub struct Progress {
 /// The solver.
 pub struct Solver {
     nvars: usize,
+    /// Every clause as `[index, length, literals…]`; `ClauseData::start`
+    /// is the position of its first literal.
     arena: Vec<u32>,
     cls: Vec<ClauseData>,
+    /// Per literal: (arena position of a clause's first literal, a blocker
+    /// literal) for the clauses that watch it.
     watches: Vec<Vec<(u32, u32)>>,
     val: Vec<i8>,
     level: Vec<u32>,
@@ -400,6 +404,7 @@ impl Solver {
                 }
                 // Watch lists hold no deleted clause: `reduce` purges them.
                 let st = start as usize;
+                debug_assert!(!self.cls[self.arena[st - 2] as usize].deleted);
                 let len = self.arena[st - 1] as usize;
                 if self.arena[st] == fl {
                     self.arena.swap(st, st + 1);

@@ -85,7 +85,8 @@ Examples:
   orbitcnf spectrum --dim 3 --grid=-1..1
   orbitcnf spectrum --dim 4 --grid=-1..1 --jobs 2 --time-limit 600 --markdown t4.md
   orbitcnf spectrum --dim 2 --grid=0..3 --periods 5..8 --no-store --json
-  orbitcnf spectrum --class topical --dim 4 --grid=0..1";
+  orbitcnf spectrum --class topical --dim 4 --grid=0..1
+  orbitcnf spectrum --real --dim 3 --jobs 2 --no-store";
 
 /// The periods of `--periods`, parsed by clap so that a bad list is a usage
 /// error that names the flag (the library's error names none).
@@ -119,7 +120,8 @@ pub struct SpectrumArgs {
     /// (and stored) as unknown, and retried by a later run with a larger limit.
     #[arg(long, value_name = "SECS", value_parser = parse_seconds)]
     time_limit: Option<Duration>,
-    /// Periods solved at the same time (default: the number of cores).
+    /// Periods solved at the same time (default: the number of cores); with
+    /// --real as well, one search per period.
     #[arg(long, short = 'j', value_name = "N")]
     jobs: Option<usize>,
     /// The results store's folder.
@@ -209,7 +211,6 @@ fn run_real(n: usize, a: SpectrumArgs) -> Outcome {
         (a.class.class != MapClass::Nonexpansive, "--class"),
         (a.csv, "--csv"),
         (a.markdown.is_some(), "--markdown"),
-        (a.jobs.is_some(), "--jobs"),
     ];
     if let Some((_, flag)) = grid_only.iter().find(|(on, _)| *on) {
         return Err(Error::Options(format!(
@@ -238,13 +239,22 @@ fn run_real(n: usize, a: SpectrumArgs) -> Outcome {
         store: (!a.no_store).then(|| a.store.clone()),
         recheck: a.recheck,
         divisors: !a.no_divisors,
+        jobs: a.jobs.unwrap_or_else(orbitcnf::pool::default_jobs).max(1),
     };
     let mut line = super::real::progress_line(a.progress.mode(a.json));
-    let s = orbitcnf::real::sweep::run(&cfg, &mut |p, pr| {
-        line(&format!(
-            "real space R^{n} p = {p}: {:.0} s, {} conflicts, {} lemmas",
-            pr.seconds, pr.stats.conflicts, pr.lemmas
-        ));
+    let s = orbitcnf::real::sweep::run(&cfg, &mut |running| {
+        let words: Vec<String> = running
+            .iter()
+            .map(|(p, pr)| {
+                format!(
+                    "p = {p}: {:.0} s, {} conflicts, {} lemmas",
+                    pr.seconds, pr.stats.conflicts, pr.lemmas
+                )
+            })
+            .collect();
+        if !words.is_empty() {
+            line(&format!("real space R^{n} {}", words.join("; ")));
+        }
     });
     line("");
     let s = s?;

@@ -19,7 +19,10 @@
 //! above max_k 2^k·C(n,k), B. Lemmens and M. Scheutzow 2005) is an
 //! [`Error::Contradiction`].
 
+use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
+use std::sync::Mutex;
+use std::sync::atomic::{AtomicBool, Ordering};
 use std::time::{Duration, Instant};
 
 use serde::{Deserialize, Serialize};
@@ -28,6 +31,7 @@ use super::{Progress, RealAnswer, RealOptions, bundle, decide, skeleton};
 use crate::artifact::{sha256_hex, write_atomically};
 use crate::dimacs::VERSION;
 use crate::error::{Error, Result};
+use crate::pool::Event;
 use crate::theory::lemmens_scheutzow_bound;
 use crate::verify::check_orbit;
 
@@ -52,6 +56,8 @@ pub struct RealSweep {
     /// the sub-orbit, checked again. Such rows are not stored: a later run
     /// derives them again from the stored answer, after checking it.
     pub divisors: bool,
+    /// Periods searched at the same time, at least 1.
+    pub jobs: usize,
 }
 
 /// One period's answer.
@@ -260,76 +266,227 @@ fn by_divisors(n: usize, p: usize, rows: &[RealRow]) -> Result<Option<RealRow>> 
     Ok(Some(r))
 }
 
-/// Sweeps the periods of `cfg`; `progress` gets the period and the search's progress.
+/// Whether `row` gives the answer of period `p` by the divisor rule, as
+/// [`by_divisors`] reads it: an infeasible row of its own search whose
+/// period divides `p`, or a certified feasible row with an orbit whose
+/// period `p` divides.
+fn settles(row: &RealRow, p: usize) -> bool {
+    let divides = |a: usize, b: usize| a != b && a > 0 && b.is_multiple_of(a);
+    match row.verdict.as_str() {
+        "infeasible" => row.divisor.is_none() && divides(row.period, p),
+        "feasible" => row.certified && row.orbit.is_some() && divides(p, row.period),
+        _ => false,
+    }
+}
+
+/// The progress callback of [`run`]: the periods being searched, each with
+/// its latest progress.
+pub type Running<'a> = dyn FnMut(&[(usize, Progress)]) + 'a;
+
+/// One period's search, as a worker hands it to the calling thread: the
+/// report, the temporary certificate folder it wrote, and its seconds.
+type Searched = Result<(super::RealReport, tempfile::TempDir, f64)>;
+
+/// Searches period `p` with a fresh temporary certificate folder.
+fn search(cfg: &RealSweep, p: usize, progress: &mut dyn FnMut(&Progress)) -> Searched {
+    let t0 = Instant::now();
+    let tmp = tempfile::tempdir().map_err(|e| Error::io("<temporary directory>", e))?;
+    let mut o = cfg.options.clone();
+    o.certificate_dir = Some(tmp.path().to_path_buf());
+    let r = decide(cfg.n, p, &o, cfg.time_limit, progress)?;
+    Ok((r, tmp, t0.elapsed().as_secs_f64()))
+}
+
+/// Turns a search into its row, checks it against the published theorems
+/// and stores it when it is certified and a store is kept.
+fn finish(cfg: &RealSweep, p: usize, searched: Searched) -> Result<RealRow> {
+    let n = cfg.n;
+    let (r, tmp, seconds) = searched?;
+    if let Some(e) = contradiction(n, p, r.verdict()) {
+        return Err(e);
+    }
+    let mut row = RealRow {
+        period: p,
+        verdict: r.verdict().into(),
+        how: "search".into(),
+        certified: r.certified(),
+        seconds,
+        lemmas: r.lemmas,
+        orbit: None,
+        bundle: None,
+        reason: None,
+        divisor: None,
+    };
+    match &r.answer {
+        RealAnswer::Feasible { orbit, .. } => row.orbit = Some(orbit.clone()),
+        RealAnswer::Unknown { reason } => row.reason = Some(reason.clone()),
+        RealAnswer::Infeasible { .. } => {}
+    }
+    if let Some(store) = &cfg.store
+        && row.certified
+    {
+        let k = key(n, p);
+        let dir = store.join("real/bundles").join(&k);
+        bundle::write_bundle(&dir, &r, Some(tmp.path()))?;
+        row.bundle = Some(dir);
+        let answers = store.join("real/answers");
+        std::fs::create_dir_all(&answers).map_err(|e| Error::io(&answers, e))?;
+        let mut doc = serde_json::to_value(&row).unwrap_or_default();
+        doc["dim"] = n.into();
+        doc["orbitcnf_version"] = VERSION.into();
+        write_atomically(
+            &answers.join(format!("{k}.json")),
+            (doc.to_string() + "\n").as_bytes(),
+        )?;
+    }
+    Ok(row)
+}
+
+/// Sweeps the periods of `cfg` on [`RealSweep::jobs`] threads (one period
+/// per thread; each search is single-threaded).
+///
+/// Stored answers are taken first, then what §9 gives from them; the other
+/// periods are searched in the order asked, and a period that an answer
+/// already found settles by §9 is not started (one running meanwhile is
+/// finished, and its own answer kept). Which rows come from §9 can so
+/// depend on timing when `jobs > 1`; every row is checked either way.
+/// `progress` gets, about four times a second, the periods being searched
+/// with their latest progress.
 ///
 /// # Errors
 /// [`Error::Contradiction`] for an answer against a published theorem; the
-/// errors of [`decide`] and of the store's files.
-pub fn run(cfg: &RealSweep, progress: &mut dyn FnMut(usize, &Progress)) -> Result<RealSpectrum> {
+/// errors of [`decide`] and of the store's files. The first error stops
+/// the sweep (periods already running are finished first).
+pub fn run(cfg: &RealSweep, progress: &mut Running) -> Result<RealSpectrum> {
     let n = cfg.n;
-    let mut rows = Vec::new();
+    let mut rows: BTreeMap<usize, RealRow> = BTreeMap::new();
+    let mut tasks = Vec::new();
     for &p in &cfg.periods {
+        if rows.contains_key(&p) {
+            continue;
+        }
         if let Some(store) = &cfg.store
             && let Some(row) = reuse(n, p, store, cfg.recheck)?
         {
-            rows.push(row);
+            rows.insert(p, row);
             continue;
         }
-        if cfg.divisors
-            && let Some(row) = by_divisors(n, p, &rows)?
-        {
-            rows.push(row);
-            continue;
-        }
-        let t0 = Instant::now();
-        let tmp = tempfile::tempdir().map_err(|e| Error::io("<temporary directory>", e))?;
-        let mut o = cfg.options.clone();
-        o.certificate_dir = Some(tmp.path().to_path_buf());
-        let r = decide(n, p, &o, cfg.time_limit, &mut |pr| progress(p, pr))?;
-        if let Some(e) = contradiction(n, p, r.verdict()) {
-            return Err(e);
-        }
-        let mut row = RealRow {
-            period: p,
-            verdict: r.verdict().into(),
-            how: "search".into(),
-            certified: r.certified(),
-            seconds: t0.elapsed().as_secs_f64(),
-            lemmas: r.lemmas,
-            orbit: None,
-            bundle: None,
-            reason: None,
-            divisor: None,
-        };
-        match &r.answer {
-            RealAnswer::Feasible { orbit, .. } => row.orbit = Some(orbit.clone()),
-            RealAnswer::Unknown { reason } => row.reason = Some(reason.clone()),
-            RealAnswer::Infeasible { .. } => {}
-        }
-        if let Some(store) = &cfg.store
-            && row.certified
-        {
-            let k = key(n, p);
-            let dir = store.join("real/bundles").join(&k);
-            bundle::write_bundle(&dir, &r, Some(tmp.path()))?;
-            row.bundle = Some(dir);
-            let answers = store.join("real/answers");
-            std::fs::create_dir_all(&answers).map_err(|e| Error::io(&answers, e))?;
-            let mut doc = serde_json::to_value(&row).unwrap_or_default();
-            doc["dim"] = n.into();
-            doc["orbitcnf_version"] = VERSION.into();
-            write_atomically(
-                &answers.join(format!("{k}.json")),
-                (doc.to_string() + "\n").as_bytes(),
-            )?;
-        }
-        rows.push(row);
+        tasks.push(p);
     }
-    let all_decided = rows.iter().all(|r| r.verdict != "unknown");
+    let derive = |rows: &mut BTreeMap<usize, RealRow>, tasks: &[usize]| -> Result<()> {
+        for &p in tasks {
+            if !rows.contains_key(&p) {
+                let known: Vec<RealRow> = rows.values().cloned().collect();
+                if let Some(row) = by_divisors(n, p, &known)? {
+                    rows.insert(p, row);
+                }
+            }
+        }
+        Ok(())
+    };
+    if cfg.divisors {
+        derive(&mut rows, &tasks)?;
+        tasks.retain(|p| !rows.contains_key(p));
+    }
+    let settled: Vec<AtomicBool> = tasks.iter().map(|_| AtomicBool::new(false)).collect();
+    let latest: Vec<Mutex<Option<Progress>>> = tasks.iter().map(|_| Mutex::new(None)).collect();
+    let stop = AtomicBool::new(false);
+    let mut first_error: Option<Error> = None;
+    let work = |i: usize| -> Option<Searched> {
+        if settled[i].load(Ordering::SeqCst) {
+            return None;
+        }
+        let searched = search(cfg, tasks[i], &mut |pr| {
+            if let Ok(mut slot) = latest[i].lock() {
+                *slot = Some(pr.clone());
+            }
+        });
+        // Marked before the answer is sent, so that a worker taking the
+        // next task does not start a search that this answer settles.
+        // Should the calling thread refuse the answer, the sweep stops.
+        if cfg.divisors
+            && let Ok((r, _, _)) = &searched
+        {
+            let row = RealRow {
+                period: tasks[i],
+                verdict: r.verdict().into(),
+                how: "search".into(),
+                certified: r.certified(),
+                seconds: 0.0,
+                lemmas: 0,
+                orbit: match &r.answer {
+                    RealAnswer::Feasible { orbit, .. } => Some(orbit.clone()),
+                    _ => None,
+                },
+                bundle: None,
+                reason: None,
+                divisor: None,
+            };
+            for (j, &q) in tasks.iter().enumerate() {
+                if settles(&row, q) {
+                    settled[j].store(true, Ordering::SeqCst);
+                }
+            }
+        }
+        Some(searched)
+    };
+    crate::pool::run(tasks.len(), cfg.jobs, &stop, work, |event, state| {
+        if let Event::Finished(i, Some(searched)) = event {
+            let p = tasks[i];
+            match finish(cfg, p, searched) {
+                Ok(row) => {
+                    rows.insert(p, row);
+                }
+                Err(e) => {
+                    stop.store(true, Ordering::SeqCst);
+                    first_error.get_or_insert(e);
+                }
+            }
+        }
+        let running: Vec<(usize, Progress)> = state
+            .running
+            .keys()
+            .filter_map(|&i| {
+                let pr = latest[i].lock().ok()?.clone()?;
+                Some((tasks[i], pr))
+            })
+            .collect();
+        progress(&running);
+    });
+    if let Some(e) = first_error {
+        return Err(e);
+    }
+    if cfg.divisors {
+        derive(&mut rows, &tasks)?;
+    }
+    let mut out = Vec::new();
+    for &p in &cfg.periods {
+        if out.iter().any(|r: &RealRow| r.period == p) {
+            continue;
+        }
+        out.push(match rows.remove(&p) {
+            Some(row) => row,
+            // Skipped for §9, yet §9 gives nothing now: cannot happen, since
+            // the row that settled it is kept; reported, not guessed.
+            None => RealRow {
+                period: p,
+                verdict: "unknown".into(),
+                how: "§9".into(),
+                certified: false,
+                seconds: 0.0,
+                lemmas: 0,
+                orbit: None,
+                bundle: None,
+                reason: Some("not searched: §9 was to decide it from another period".into()),
+                divisor: None,
+            },
+        });
+    }
+    let all_decided = out.iter().all(|r| r.verdict != "unknown");
     Ok(RealSpectrum {
         domain: "real",
         dim: n,
-        rows,
+        rows: out,
         all_decided,
     })
 }
@@ -384,5 +541,29 @@ mod tests {
             vec![0, 5],
         ];
         assert!(by_divisors(2, 3, &[row(6, "feasible", Some(bad))]).is_err());
+    }
+
+    #[test]
+    fn a_worker_skips_exactly_the_periods_the_divisor_rule_then_answers() {
+        let square = vec![vec![0, 0], vec![0, 1], vec![1, 1], vec![1, 0]];
+        let mut unchecked = row(4, "feasible", Some(square.clone()));
+        unchecked.certified = false;
+        let mut derived = row(5, "infeasible", None);
+        derived.divisor = Some(5);
+        let sources = [
+            row(4, "feasible", Some(square)),
+            row(5, "infeasible", None),
+            row(6, "unknown", None),
+            unchecked,
+            derived,
+        ];
+        for source in &sources {
+            for p in 1..=20 {
+                let gives = by_divisors(2, p, std::slice::from_ref(source))
+                    .unwrap()
+                    .is_some();
+                assert_eq!(settles(source, p), gives, "{source:?} and p = {p}");
+            }
+        }
     }
 }

@@ -425,7 +425,8 @@ fn real_space_spectrum_answers_multiples_by_section_9() {
             .args(extra)
             .run()
     };
-    let with = sweep(&["--json"]).code(0).json();
+    // One period at a time, so that 10 is reached only after 5 is refuted.
+    let with = sweep(&["--json", "--jobs", "1"]).code(0).json();
     let without = sweep(&["--json", "--no-divisors"]).code(0).json();
     let verdicts = |v: &Value| -> Vec<String> {
         v["rows"]
@@ -444,9 +445,19 @@ fn real_space_spectrum_answers_multiples_by_section_9() {
         (&Value::from("§9"), &Value::from(5))
     );
     assert_eq!(without["rows"][6]["how"], "search");
-    sweep(&[])
+    sweep(&["--jobs", "1"])
         .code(0)
         .stdout_has("by §9: 5 is infeasible (certified)");
+    // Two periods at a time: the same verdicts, rows in the order asked.
+    let two = sweep(&["--json", "--jobs", "2"]).code(0).json();
+    assert_eq!(verdicts(&two), verdicts(&with));
+    let periods: Vec<u64> = two["rows"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|r| r["period"].as_u64().unwrap())
+        .collect();
+    assert_eq!(periods, (4..=10).collect::<Vec<u64>>());
 }
 
 /// `--no-order-lemmas` leaves the order lemmas out (the certificate has no

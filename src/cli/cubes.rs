@@ -14,6 +14,7 @@ use orbitcnf::solve::certified::Certified;
 use orbitcnf::solve::{Backend, Limits};
 use orbitcnf::split::auto::CubeTarget;
 use orbitcnf::split::layout::{LayoutChoice, SplitLayout};
+use orbitcnf::split::run::CubeStatus;
 use orbitcnf::split::{self, run as cube_run};
 
 use super::args::{EncodingArgs, ProgressArgs, QuestionArgs, SolverArgs, parse_seconds};
@@ -260,9 +261,14 @@ pub struct RunCubeArgs {
     json: bool,
     #[command(flatten)]
     progress: ProgressArgs,
-    /// Real-space splits with --solver external:'COMMAND': search with the
-    /// bundled CDCL(T) for SECS seconds (default 10), then hand the
-    /// propositional refutation of the cube to COMMAND (as decide --real).
+    /// With --solver external:'COMMAND': let the bundled solver try each
+    /// cube for SECS seconds first and hand only the cubes it leaves
+    /// unknown to COMMAND (--proof-arg and --time-limit apply to COMMAND's
+    /// run). For grid splits this sends the rare hard cube to a faster
+    /// solver without paying its start-up and proof conversion on the easy
+    /// ones. Real-space splits: search with the bundled CDCL(T) for SECS
+    /// seconds (default 10), then hand the propositional refutation of the
+    /// cube to COMMAND (as decide --real).
     #[arg(long, value_name = "SECS", value_parser = parse_seconds)]
     handoff_after: Option<Duration>,
 }
@@ -299,9 +305,11 @@ pub fn run_cube(a: RunCubeArgs) -> Outcome {
         }
         return Ok(0);
     }
-    if a.handoff_after.is_some() {
+    if a.handoff_after.is_some() && a.solver.solver.trim() == "bundled" {
         return Err(Error::Options(
-            "--handoff-after applies to real-space splits".into(),
+            "--handoff-after needs an external solver to hand hard cubes to \
+             (--solver external:'COMMAND')"
+                .into(),
         ));
     }
     let limits = Limits {
@@ -309,6 +317,12 @@ pub fn run_cube(a: RunCubeArgs) -> Outcome {
         progress: a.progress.mode(a.json),
         ..Limits::default()
     };
+    // With a hand-off the bundled solver tries each cube first, within the
+    // hand-off time (and the time limit, if shorter).
+    let first_limits = a.handoff_after.map(|after| Limits {
+        time: Some(a.time_limit.map_or(after, |t| t.min(after))),
+        ..limits.clone()
+    });
     let (first, last) = a.index;
     let mut runner = cube_run::CubeRunner::new(&a.dir)?;
     if last >= runner.cubes() {
@@ -326,23 +340,51 @@ pub fn run_cube(a: RunCubeArgs) -> Outcome {
             drat: None,
             format: a.proof_encoding,
         };
+        let mut note = String::new();
+        if let Some(first_limits) = &first_limits {
+            let own: &mut dyn Backend = if a.no_certify {
+                &mut bundled
+            } else {
+                &mut certified
+            };
+            match runner.run(index, own, first_limits, a.force)? {
+                cube_run::RunOutcome::Solved(r) if r.status == CubeStatus::Unknown => {
+                    note = format!(
+                        " (handed off after {:.2} s without an answer from the bundled solver)",
+                        r.seconds
+                    );
+                }
+                outcome => {
+                    print_outcome(a.json, &outcome, "")?;
+                    continue;
+                }
+            }
+        }
         let backend: &mut dyn Backend = match (external.as_mut(), a.no_certify) {
             (Some(ext), _) => ext,
             (None, true) => &mut bundled,
             (None, false) => &mut certified,
         };
+        // The bundled attempt's unknown is no final result, so this solves.
         let outcome = runner.run(index, backend, &limits, a.force)?;
-        let (r, note) = match &outcome {
-            cube_run::RunOutcome::Solved(r) => (r, ""),
-            cube_run::RunOutcome::AlreadyDone(r) => (r, " (already solved; --force solves again)"),
-        };
-        print_either(
-            a.json,
-            || serde_json::to_string(r).expect("serialises"),
-            || r.to_text(note),
-        )?;
+        print_outcome(a.json, &outcome, &note)?;
     }
     Ok(0)
+}
+
+/// Prints one cube's outcome, as text (with `note`) or as JSON.
+fn print_outcome(json: bool, outcome: &cube_run::RunOutcome, note: &str) -> Result<(), Error> {
+    let (r, note) = match outcome {
+        cube_run::RunOutcome::Solved(r) => (r, note.to_string()),
+        cube_run::RunOutcome::AlreadyDone(r) => {
+            (r, " (already solved; --force solves again)".to_string())
+        }
+    };
+    print_either(
+        json,
+        || serde_json::to_string(r).expect("serialises"),
+        || r.to_text(&note),
+    )
 }
 
 /// The long help of `refine`.

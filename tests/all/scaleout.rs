@@ -706,6 +706,68 @@ fn merge_rejects_a_tampered_split_and_a_tampered_proof() {
         .error_with(&["cube-0001.cnf", "SHA-256"]);
 }
 
+/// `run-cube --solver external:'cadical -q' --handoff-after SECS`: the
+/// bundled solver tries each cube first; a cube it leaves unknown goes to
+/// CaDiCaL, whose DRAT proof `rate` converts and orbitcnf checks. With a
+/// long hand-off time nothing is handed off; with a microsecond every cube
+/// is; either way `merge` re-checks every proof. Without an external solver
+/// the option is refused.
+#[test]
+fn cubes_the_bundled_solver_leaves_open_go_to_cadical() {
+    if !have_tool("cadical") || !have_tool("rate") {
+        return;
+    }
+    let dir = TestDir::new();
+    let q = Q::cube(-1, 1, 3, 9);
+    let n = cube_count(&split(&dir, &q, 4, "sp"));
+    let run = |range: &str, after: &str| {
+        dir.orbitcnf()
+            .args(["run-cube", "sp", range, "--solver", "external:cadical -q"])
+            .args(["--proof-arg", "{}", "--handoff-after", after])
+            .run()
+    };
+    let first = n / 2;
+    let own = run(&format!("0..{}", first - 1), "600");
+    own.code(0);
+    assert_eq!(
+        own.stdout.matches("with varisat").count(),
+        first,
+        "{}",
+        own.stdout
+    );
+    assert!(!own.stdout.contains("handed off"), "{}", own.stdout);
+    let handed = run(&format!("{first}..{}", n - 1), "0.000001");
+    handed.code(0);
+    assert_eq!(
+        handed
+            .stdout
+            .matches("with external `cadical -q` (handed off after")
+            .count(),
+        n - first,
+        "{}",
+        handed.stdout
+    );
+    assert!(
+        handed
+            .stdout
+            .lines()
+            .all(|l| l.contains("LRAT proof checked")),
+        "{}",
+        handed.stdout
+    );
+    dir.orbitcnf()
+        .args(["merge", "sp"])
+        .run()
+        .code(INFEASIBLE)
+        .stdout_has(&format!(
+            "{n} refuted with a re-checked LRAT proof, 0 on the solver's word only"
+        ));
+    dir.orbitcnf()
+        .args(["run-cube", "sp", "0", "--handoff-after", "5"])
+        .run()
+        .error_with(&["--handoff-after", "external solver"]);
+}
+
 /// {−1,0,1}^5 with p = 33, the first period above 2^5, split into 64 cubes,
 /// each refuted by CaDiCaL with a DRAT proof that `rate` and orbitcnf's
 /// checker accept, and merged with the coverage proof. No published answer

@@ -18,7 +18,7 @@ use orbitcnf::proof::LratFormat;
 use orbitcnf::question::MapClass;
 use orbitcnf::solve::external::{External, ProofFormat, ProofRequest};
 use orbitcnf::split::auto::{AutoOptions, DEFAULT_PROBE};
-use orbitcnf::split::jobs::JobsOptions;
+use orbitcnf::split::jobs::{CubeHandoff, JobsOptions};
 use orbitcnf::{Error, Grid, Question};
 
 /// `--progress MODE` and `-q`, shared by the commands that can run long.
@@ -462,8 +462,17 @@ impl ScaleArgs {
     ///
     /// # Errors
     /// As [`SolverArgs::external`]; an external solver with --jobs.
-    pub fn solver(&self, certify: bool, single_solve: bool) -> Result<Solver, Error> {
+    pub fn solver(
+        &self,
+        certify: bool,
+        single_solve: bool,
+        handoff_after: Option<Duration>,
+    ) -> Result<Solver, Error> {
         let parallel = self.jobs.is_some_and(|j| j != 1) || self.cubes.is_some();
+        let handoff = match handoff_after {
+            None => None,
+            Some(after) => Some(self.cube_handoff(certify, after)?),
+        };
         let jobs_options = |jobs: usize, cubes: usize| {
             Solver::Cubes(JobsOptions {
                 jobs,
@@ -471,8 +480,32 @@ impl ScaleArgs {
                 certify,
                 lrat: None,
                 format: LratFormat::Text,
+                handoff: handoff.clone(),
             })
         };
+        if handoff.is_some() {
+            let jobs = self.jobs.unwrap_or_else(orbitcnf::pool::default_jobs);
+            return match (self.cubes, self.no_auto_split) {
+                (Some(n), _) => Ok(jobs_options(self.jobs.unwrap_or(1), n)),
+                (None, true) if parallel => {
+                    Ok(jobs_options(jobs, JobsOptions::default_cubes(jobs)))
+                }
+                (None, true) => Err(Error::Options(
+                    "--handoff-after hands hard cubes to the external solver; with \
+                     --no-auto-split and one thread there are no cubes"
+                        .into(),
+                )),
+                (None, false) => Ok(Solver::Auto(AutoOptions {
+                    certify,
+                    jobs,
+                    probe: self.probe.unwrap_or(DEFAULT_PROBE),
+                    probe_conflicts: self.probe_conflicts,
+                    lrat: None,
+                    format: LratFormat::Text,
+                    handoff,
+                })),
+            };
+        }
         match self.solver.external(certify)? {
             Some(_) if parallel => Err(Error::Options(
                 "--jobs runs the bundled solver; for an external solver use \
@@ -496,9 +529,29 @@ impl ScaleArgs {
                     probe_conflicts: self.probe_conflicts,
                     lrat: None,
                     format: LratFormat::Text,
+                    handoff: None,
                 }),
             }),
         }
+    }
+
+    /// The hand-off of hard cubes to `--solver external:…` after `after`.
+    fn cube_handoff(&self, certify: bool, after: Duration) -> Result<CubeHandoff, Error> {
+        let Some(solver) = self.solver.external(certify)? else {
+            return Err(Error::Options(
+                "--handoff-after needs an external solver to hand hard cubes to \
+                 (--solver external:'COMMAND')"
+                    .into(),
+            ));
+        };
+        if certify && solver.proof.is_none() {
+            return Err(Error::Options(
+                "a handed-off cube needs a proof to be certified: add --proof-arg '{}' \
+                 (CaDiCaL, Kissat) or turn certification off with --no-certify"
+                    .into(),
+            ));
+        }
+        Ok(CubeHandoff { solver, after })
     }
 }
 
@@ -587,14 +640,56 @@ mod tests {
     }
 
     #[test]
+    fn a_handoff_goes_with_cubes_an_external_solver_and_its_proof() {
+        let after = Some(Duration::from_secs(7));
+        let ext = ["--solver", "external:cadical -q", "--proof-arg", "{}"];
+        let handoff_of = |s: &Solver| match s {
+            Solver::Auto(o) => o.handoff.clone(),
+            Solver::Cubes(o) => o.handoff.clone(),
+            _ => None,
+        };
+        // Automatic: the probe, then cubes with the hand-off.
+        let t = parse(&[&ext[..], &["-j", "2"]].concat()).unwrap();
+        let s = t.s.solver(true, false, after).unwrap();
+        assert!(matches!(&s, Solver::Auto(o) if o.jobs == 2));
+        let h = handoff_of(&s).unwrap();
+        assert_eq!(h.after, Duration::from_secs(7));
+        assert_eq!(h.solver.command, ["cadical", "-q"]);
+        assert!(h.solver.proof.is_some());
+        // Given cubes, or threads without the probe: cubes at once.
+        for extra in [&["--cubes", "5"][..], &["-j", "2", "--no-auto-split"]] {
+            let t = parse(&[&ext[..], extra].concat()).unwrap();
+            let s = t.s.solver(true, false, after).unwrap();
+            assert!(matches!(s, Solver::Cubes(_)), "{extra:?}");
+            assert!(handoff_of(&s).is_some(), "{extra:?}");
+        }
+        // Refused: no external solver, no proof while certifying, no cubes.
+        for (args, says) in [
+            (&["-j", "2"][..], "external solver"),
+            (&["--solver", "external:cadical -q"], "--proof-arg"),
+            (&[&ext[..], &["--no-auto-split"]].concat(), "no cubes"),
+        ] {
+            let e = parse(args)
+                .unwrap()
+                .s
+                .solver(true, false, after)
+                .unwrap_err();
+            assert!(e.to_string().contains(says), "{args:?}: {e}");
+        }
+        // Without certification the external solver's word may do.
+        let t = parse(&["--solver", "external:cadical -q"]).unwrap();
+        assert!(handoff_of(&t.s.solver(false, false, after).unwrap()).is_some());
+    }
+
+    #[test]
     fn solvers_and_certification_fit_together() {
         let t = parse(&[]).unwrap();
         assert!(matches!(
-            t.s.solver(true, false),
+            t.s.solver(true, false, None),
             Ok(Solver::Auto(o)) if o.certify && o.probe == DEFAULT_PROBE && o.jobs >= 1
         ));
         assert!(matches!(
-            t.s.solver(true, true),
+            t.s.solver(true, true, None),
             Ok(Solver::Bundled { certify: true })
         ));
         assert!(!t.c.accept_claims());
@@ -603,44 +698,46 @@ mod tests {
         let t = parse(&["--trust-solver"]).unwrap();
         assert!(t.c.accept_claims());
         let t = parse(&["-j", "2"]).unwrap();
-        assert!(matches!(t.s.solver(true, false), Ok(Solver::Auto(o)) if o.jobs == 2));
+        assert!(matches!(t.s.solver(true, false, None), Ok(Solver::Auto(o)) if o.jobs == 2));
         let t = parse(&["-j", "2", "--no-auto-split"]).unwrap();
-        assert!(matches!(t.s.solver(true, false), Ok(Solver::Cubes(o)) if o.cubes == 16));
+        assert!(matches!(t.s.solver(true, false, None), Ok(Solver::Cubes(o)) if o.cubes == 16));
         assert!(matches!(
-            parse(&["-j", "2"]).unwrap().s.solver(true, true),
+            parse(&["-j", "2"]).unwrap().s.solver(true, true, None),
             Ok(Solver::Cubes(o)) if o.cubes == 16
         ));
         let t = parse(&["--cubes", "5"]).unwrap();
-        assert!(matches!(t.s.solver(true, false), Ok(Solver::Cubes(o)) if o.jobs == 1));
+        assert!(matches!(t.s.solver(true, false, None), Ok(Solver::Cubes(o)) if o.jobs == 1));
         let t = parse(&["--no-auto-split"]).unwrap();
         assert!(matches!(
-            t.s.solver(true, false),
+            t.s.solver(true, false, None),
             Ok(Solver::Bundled { certify: true })
         ));
         assert!(parse(&["--no-auto-split", "--probe", "3"]).is_err());
         let t = parse(&["--solver", "external:cadical -q", "-j", "2"]).unwrap();
         assert!(
-            t.s.solver(true, false)
+            t.s.solver(true, false, None)
                 .unwrap_err()
                 .to_string()
                 .contains("--jobs")
         );
         let t = parse(&["--solver", "external:cadical", "--proof-arg", "{}"]).unwrap();
-        assert!(matches!(t.s.solver(true, false), Ok(Solver::External(e)) if e.proof.is_some()));
         assert!(
-            t.s.solver(false, false).is_err(),
+            matches!(t.s.solver(true, false, None), Ok(Solver::External(e)) if e.proof.is_some())
+        );
+        assert!(
+            t.s.solver(false, false, None).is_err(),
             "--proof-arg with --no-certify"
         );
         let t = parse(&["--solver", "kissat"]).unwrap();
         assert!(
-            t.s.solver(true, false)
+            t.s.solver(true, false, None)
                 .unwrap_err()
                 .to_string()
                 .contains("unknown solver")
         );
         let t = parse(&["--proof-arg", "{}"]).unwrap();
         assert!(
-            t.s.solver(true, false).is_err(),
+            t.s.solver(true, false, None).is_err(),
             "--proof-arg with the bundled solver"
         );
     }

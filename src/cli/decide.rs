@@ -67,11 +67,16 @@ pub struct DecideArgs {
     certify: CertifyArgs,
     #[command(flatten)]
     scale: ScaleArgs,
-    /// With --real and --solver external:'COMMAND': search with the bundled
-    /// CDCL(T) for SECS seconds, then hand the propositional refutation of
-    /// the skeleton plus the lemmas found to COMMAND (run as COMMAND CNF
-    /// PROOF; a DRAT proof, converted to LRAT by `rate` and checked).
-    #[arg(long, value_name = "SECS", value_parser = parse_seconds, requires = "real")]
+    /// With --solver external:'COMMAND': the bundled solver works first and
+    /// hands over what it leaves open. On grids: when the question goes to
+    /// cubes (after the probe, or with --jobs/--cubes), the bundled solver
+    /// tries each cube for SECS seconds and a cube it leaves unknown goes to
+    /// COMMAND (with --proof-arg for its proof, checked and assembled like
+    /// the others). With --real: search with the bundled CDCL(T) for SECS
+    /// seconds, then hand the propositional refutation of the skeleton plus
+    /// the lemmas found to COMMAND (run as COMMAND CNF PROOF; a DRAT proof,
+    /// converted to LRAT by `rate` and checked).
+    #[arg(long, value_name = "SECS", value_parser = parse_seconds)]
     handoff_after: Option<Duration>,
     /// With --real: leave out the order lemmas of the profile (totality,
     /// transitivity, crossing-order, equilateral and top-pattern lemmas,
@@ -89,7 +94,7 @@ pub fn run_decide(a: DecideArgs) -> Outcome {
     let options = a.encoding.options(question.points.is_some())?;
     let certify = !a.certify.no_certify;
     let req = Request {
-        solver: a.scale.solver(certify, a.drat.is_some())?,
+        solver: a.scale.solver(certify, a.drat.is_some(), a.handoff_after)?,
         outputs: Outputs {
             proof: a.proof,
             raw_proof: a.drat,

@@ -102,6 +102,9 @@ pub struct AutoOptions {
     pub lrat: Option<PathBuf>,
     /// The encoding of the proof written to `lrat`.
     pub format: LratFormat,
+    /// Cubes the bundled solver leaves open go to an external solver
+    /// ([`super::jobs::CubeHandoff`]); the probe is the bundled solver's.
+    pub handoff: Option<super::jobs::CubeHandoff>,
 }
 
 /// Cubes and the rule that chose them.
@@ -306,6 +309,7 @@ pub fn decide_auto(
         certify: opts.certify,
         lrat: opts.lrat.clone(),
         format: opts.format,
+        handoff: opts.handoff.clone(),
     };
     let mut report = solve_cubes(q, &run, &jobs, limits)?;
     report.strategy = Some(strategy);

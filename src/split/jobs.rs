@@ -15,6 +15,12 @@
 //! `encode` writes). A satisfiable cube's model is checked against every
 //! clause and decoded into an orbit that is verified independently.
 //!
+//! With a hand-off ([`CubeHandoff`]) the bundled solver gets each cube for
+//! a fixed time first; a cube it leaves open goes to an external solver,
+//! whose proof (LRAT, or DRAT converted by `rate`) is checked by orbitcnf's
+//! checker against `F ∧ cube` and lifted in the same way, so the assembled
+//! proof does not care which solver refuted which cube.
+//!
 //! varisat 0.2.2 cannot be interrupted, but it aborts as soon as its proof
 //! writer fails; the threads' proof sinks fail once another cube is found
 //! satisfiable, so no thread keeps solving after the answer is known. Without
@@ -43,6 +49,7 @@ use crate::proof::{LratFormat, LratOptions};
 use crate::question::Question;
 use crate::report::{Report, SizeStats, Verdict};
 use crate::solve::bundled::Bundled;
+use crate::solve::external::External;
 use crate::solve::refute::{ProofPlan, accept_proof, solve_bundled, temp_proof_file};
 use crate::solve::{Backend, Limits, Outcome, SolveStats};
 
@@ -61,6 +68,23 @@ pub struct JobsOptions {
     /// The encoding of the assembled proof written to `lrat`; a proof that
     /// is only checked, not kept, is binary.
     pub format: LratFormat,
+    /// Cubes the bundled solver leaves open this long go to an external
+    /// solver ([`CubeHandoff`]).
+    pub handoff: Option<CubeHandoff>,
+}
+
+/// A hand-off of hard cubes: the bundled solver tries each cube for
+/// `after`; a cube it leaves unknown (and time remains) goes to `solver`.
+/// With certification the external solver must be asked for a proof
+/// ([`External::proof`]): its LRAT proof (through `rate` for DRAT) is
+/// checked against `F ∧ cube` and lifted like the bundled solver's, so a
+/// handed-off cube is backed exactly as any other.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct CubeHandoff {
+    /// The external solver, with its proof request.
+    pub solver: External,
+    /// The bundled solver's time on each cube before the hand-off.
+    pub after: Duration,
 }
 
 impl JobsOptions {
@@ -76,6 +100,8 @@ enum CubeRun {
     Unsat(Option<(LiftedCube, NamedTempFile)>),
     Unknown(String),
     Failed(Error),
+    /// What the external solver of a hand-off made of the cube.
+    HandedOff(Box<CubeRun>),
 }
 
 impl CubeRun {
@@ -87,6 +113,15 @@ impl CubeRun {
             CubeRun::Unsat(None) => "refuted (no proof)".into(),
             CubeRun::Unknown(why) => format!("unknown: {why}"),
             CubeRun::Failed(e) => format!("failed: {e}"),
+            CubeRun::HandedOff(r) => format!("handed off: {}", r.words()),
+        }
+    }
+
+    /// The outcome itself, whoever found it.
+    fn outcome(self) -> CubeRun {
+        match self {
+            CubeRun::HandedOff(r) => r.outcome(),
+            r => r,
         }
     }
 }
@@ -183,11 +218,14 @@ pub fn solve_cubes(
     };
     let work = |i: usize| {
         let run = solve_cube(&enc.cnf, &cubes[i], deadline, opts, &stop, &conflicts);
-        if matches!(run, CubeRun::Sat(_)) {
+        if matches!(run, CubeRun::Sat(_))
+            || matches!(&run, CubeRun::HandedOff(r) if matches!(**r, CubeRun::Sat(_)))
+        {
             stop.store(true, Ordering::Relaxed);
         }
         run
     };
+    let mut handed_off = 0usize;
     // Each refuted cube's lifted proof moves into one spool as it comes in,
     // so that open files do not grow with the number of cubes
     // (`proof::spool`); `slots[i]` is where cube i's went.
@@ -198,7 +236,7 @@ pub fn solve_cubes(
     };
     let mut slots: Vec<Option<usize>> = vec![None; n];
     pool::run(n, threads, &stop, work, |event, state| match event {
-        Event::Finished(i, mut run) => {
+        Event::Finished(i, run) => {
             progress.event(|| {
                 format!(
                     "decide: cube {i} ({}) {}; {}",
@@ -207,6 +245,10 @@ pub fn solve_cubes(
                     state_words(state)
                 )
             });
+            if matches!(run, CubeRun::HandedOff(_)) {
+                handed_off += 1;
+            }
+            let mut run = run.outcome();
             if let (CubeRun::Unsat(Some((lc, tmp))), Some(spool)) = (&run, spool.as_mut()) {
                 let copied = tmp
                     .reopen()
@@ -230,9 +272,17 @@ pub fn solve_cubes(
     progress.clear();
     let size = SizeStats::of(&enc.cnf, enc.families.clone(), encode_seconds);
     let solver = format!(
-        "{NAME}{}, {n} cubes on {}",
+        "{NAME}{}, {n} cubes on {}{}",
         if opts.certify { " (LRAT)" } else { "" },
-        threads_words(threads)
+        threads_words(threads),
+        match &opts.handoff {
+            Some(h) => format!(
+                "; {handed_off} handed off to external `{}` after {} each",
+                h.solver.command.join(" "),
+                duration_words(h.after.as_secs_f64())
+            ),
+            None => String::new(),
+        }
     );
     let stats = |solver: String| SolveStats {
         solver,
@@ -276,7 +326,7 @@ pub fn solve_cubes(
                 why.get_or_insert(w);
                 open.push(i);
             }
-            Some(CubeRun::Sat(_)) | None => open.push(i),
+            Some(CubeRun::Sat(_) | CubeRun::HandedOff(_)) | None => open.push(i),
         }
     }
     if !open.is_empty() {
@@ -336,8 +386,30 @@ pub fn solve_cubes(
     ))
 }
 
-/// Solves `F ∧ cube` within the deadline; with certification, through the
-/// one refutation path, then lifts the checked proof.
+/// Lifts a cube's checked LRAT proof (opened by `open`) to a derivation of
+/// the cube's negation from `F`, in a temporary file.
+fn lifted(
+    f: &Cnf,
+    cube: &Cube,
+    opts: &JobsOptions,
+    open: impl FnOnce() -> Result<std::fs::File>,
+) -> CubeRun {
+    let lift = || -> Result<(LiftedCube, NamedTempFile)> {
+        let tmp = temp_proof_file(opts.lrat.as_deref())?;
+        let out = io::BufWriter::new(tmp.reopen().map_err(|e| Error::io(tmp.path(), e))?);
+        let src = io::BufReader::new(open()?);
+        let lc = lift_cube(f, &cube.lits(), src, out, LratFormat::Binary)?;
+        Ok((lc, tmp))
+    };
+    match lift() {
+        Ok(l) => CubeRun::Unsat(Some(l)),
+        Err(e) => CubeRun::Failed(e),
+    }
+}
+
+/// Solves `F ∧ cube` within the deadline: with the bundled solver, and
+/// with a hand-off ([`JobsOptions::handoff`]) then the external solver for
+/// a cube the bundled one leaves open while time remains.
 fn solve_cube(
     f: &Cnf,
     cube: &Cube,
@@ -352,13 +424,84 @@ fn solve_cube(
         return CubeRun::Unknown("time limit reached before the cube was started".into());
     }
     let cnf = super::run::cube_cnf(f, cube);
+    let Some(h) = &opts.handoff else {
+        return solve_cube_bundled(f, &cnf, cube, deadline, opts, stop, conflicts);
+    };
+    let own = match deadline {
+        Some(d) => d.min(now + h.after),
+        None => now + h.after,
+    };
+    let run = solve_cube_bundled(f, &cnf, cube, Some(own), opts, stop, conflicts);
+    let time_left = deadline.is_none_or(|d| Instant::now() < d);
+    if !matches!(run, CubeRun::Unknown(_)) || stop.load(Ordering::Relaxed) || !time_left {
+        return run;
+    }
+    CubeRun::HandedOff(Box::new(solve_cube_external(
+        f, &cnf, cube, deadline, opts, h,
+    )))
+}
+
+/// Solves `F ∧ cube` (`cnf`) with the external solver of a hand-off; with
+/// certification its checked LRAT proof is lifted as the bundled solver's is.
+fn solve_cube_external(
+    f: &Cnf,
+    cnf: &Cnf,
+    cube: &Cube,
+    deadline: Option<Instant>,
+    opts: &JobsOptions,
+    h: &CubeHandoff,
+) -> CubeRun {
+    let dir = match tempfile::tempdir() {
+        Ok(d) => d,
+        Err(e) => return CubeRun::Failed(Error::io("<temporary directory>", e)),
+    };
+    let kept = dir.path().join("cube.lrat");
+    let mut ext = h.solver.clone();
+    if let Some(p) = ext.proof.as_mut() {
+        p.keep_lrat = Some(kept.clone());
+    }
+    let limits = Limits {
+        time: deadline.map(|d| d.saturating_duration_since(Instant::now())),
+        ..Limits::default()
+    };
+    let r = match ext.solve(cnf, &limits) {
+        Ok(r) => r,
+        Err(e) => return CubeRun::Failed(e),
+    };
+    match (r.outcome, r.proof) {
+        (Outcome::Sat(m), _) => CubeRun::Sat(m),
+        (Outcome::Unknown(w), _) => CubeRun::Unknown(w),
+        (Outcome::Unsat, None) if !opts.certify => CubeRun::Unsat(None),
+        (Outcome::Unsat, None) => CubeRun::Unknown(format!(
+            "external `{}` answered UNSAT without a checked proof",
+            h.solver.command.join(" ")
+        )),
+        (Outcome::Unsat, Some(_)) => lifted(f, cube, opts, || {
+            std::fs::File::open(&kept).map_err(|e| Error::io(&kept, e))
+        }),
+    }
+}
+
+/// Solves `F ∧ cube` (`cnf`) with the bundled solver within the deadline;
+/// with certification, through the one refutation path, then lifts the
+/// checked proof.
+fn solve_cube_bundled(
+    f: &Cnf,
+    cnf: &Cnf,
+    cube: &Cube,
+    deadline: Option<Instant>,
+    opts: &JobsOptions,
+    stop: &AtomicBool,
+    conflicts: &Arc<AtomicU64>,
+) -> CubeRun {
+    let time = deadline.map(|d| d.saturating_duration_since(Instant::now()));
     let limits = Limits {
         time,
         conflicts: Some(conflicts.clone()),
         ..Limits::default()
     };
     if !opts.certify {
-        return match Bundled.solve(&cnf, &limits) {
+        return match Bundled.solve(cnf, &limits) {
             Ok(r) => match r.outcome {
                 Outcome::Sat(m) => CubeRun::Sat(m),
                 Outcome::Unsat => CubeRun::Unsat(None),
@@ -371,7 +514,7 @@ fn solve_cube(
         format: LratFormat::Binary,
         ..ProofPlan::default()
     };
-    let r = match solve_bundled(&cnf, &limits, &plan, Some(stop)) {
+    let r = match solve_bundled(cnf, &limits, &plan, Some(stop)) {
         Ok(r) => r,
         Err(e) => return CubeRun::Failed(e),
     };
@@ -390,18 +533,6 @@ fn solve_cube(
             solver: NAME.into(),
             reason: "an UNSAT answer without its checked proof".into(),
         }),
-        (Outcome::Unsat, Some(proof)) => {
-            let lifted = || -> Result<(LiftedCube, NamedTempFile)> {
-                let tmp = temp_proof_file(opts.lrat.as_deref())?;
-                let out = io::BufWriter::new(tmp.reopen().map_err(|e| Error::io(tmp.path(), e))?);
-                let src = io::BufReader::new(proof.open()?);
-                let lc = lift_cube(f, &cube.lits(), src, out, LratFormat::Binary)?;
-                Ok((lc, tmp))
-            };
-            match lifted() {
-                Ok(l) => CubeRun::Unsat(Some(l)),
-                Err(e) => CubeRun::Failed(e),
-            }
-        }
+        (Outcome::Unsat, Some(proof)) => lifted(f, cube, opts, || proof.open()),
     }
 }

@@ -768,6 +768,59 @@ fn cubes_the_bundled_solver_leaves_open_go_to_cadical() {
         .error_with(&["--handoff-after", "external solver"]);
 }
 
+/// `decide --solver external:'cadical -q' --proof-arg '{}' --handoff-after
+/// SECS`: the cubes the bundled solver leaves open go to CaDiCaL. With a
+/// microsecond every cube is handed off; an infeasible answer is then one
+/// assembled LRAT proof of the whole CNF that `verify-proof` accepts again,
+/// and a feasible one an orbit checked by the test's own verifier. The same
+/// verdicts as a monolithic `decide`.
+#[test]
+fn decide_hands_the_cubes_it_leaves_open_to_cadical() {
+    if !have_tool("cadical") || !have_tool("rate") {
+        return;
+    }
+    let dir = TestDir::new();
+    let handoff = |q: &Q, extra: &[&str]| {
+        dir.orbitcnf()
+            .arg("decide")
+            .args(q.args())
+            .args(["--solver", "external:cadical -q", "--proof-arg", "{}"])
+            .args(["--handoff-after", "0.000001", "--json"])
+            .args(extra)
+            .run()
+    };
+    let no = Q::cube(-1, 1, 3, 9);
+    assert_eq!(monolithic(&dir, &no), "infeasible");
+    let run = handoff(&no, &["--jobs", "2", "--cubes", "4", "--proof", "p.lrat"]);
+    let v = check_report(&dir, &no, &run);
+    assert_eq!(v["verdict"], "infeasible");
+    let solver = v["stats"]["solver"].as_str().unwrap();
+    assert!(
+        solver.contains("handed off to external `cadical -q`"),
+        "{solver}"
+    );
+    assert!(!solver.contains(" 0 handed off"), "{solver}");
+    dir.orbitcnf()
+        .arg("encode")
+        .args(no.args())
+        .args(["-o", "f.cnf"])
+        .run()
+        .code(0);
+    dir.orbitcnf()
+        .args(["verify-proof", "f.cnf", "p.lrat"])
+        .run()
+        .code(0);
+    // After a probe that gives no answer (one conflict), on its own.
+    let run = handoff(&no, &["--jobs", "2", "--probe-conflicts", "1"]);
+    let v = check_report(&dir, &no, &run);
+    assert_eq!(v["verdict"], "infeasible");
+    assert_eq!(v["strategy"]["cube_rule"], "full-profile");
+    let yes = Q::cube(-1, 1, 3, 8);
+    let run = handoff(&yes, &["--jobs", "2", "--cubes", "4"]);
+    let v = check_report(&dir, &yes, &run);
+    assert_eq!(v["verdict"], "feasible");
+}
+
 /// {−1,0,1}^5 with p = 33, the first period above 2^5, split into 64 cubes,
 /// each refuted by CaDiCaL with a DRAT proof that `rate` and orbitcnf's
 /// checker accept, and merged with the coverage proof. No published answer

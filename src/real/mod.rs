@@ -302,7 +302,14 @@ pub fn decide_cube(
                 .as_ref()
                 .map(|d: &tempfile::TempDir| d.path().to_path_buf());
             let dir = options.certificate_dir.clone().or(dir).unwrap_or_default();
-            write_files(&dir, &sk, &fact_table(&solver), solver.lemmas())?;
+            let lemmas = solver.lemmas();
+            let kept = trim_handed_proof(&dir, cnf.num_clauses() as u64, lemmas.len())?;
+            let named = lemmas
+                .iter()
+                .zip(&kept)
+                .filter(|(_, k)| **k)
+                .map(|(l, _)| l);
+            write_files(&dir, &sk, &fact_table(&solver), named)?;
             let check = check_cube_dir(n, p, &dir, cube)?;
             report.check_seconds = t1.elapsed().as_secs_f64();
             RealAnswer::Infeasible {
@@ -456,6 +463,32 @@ fn handoff(
             },
         }
     }
+}
+
+/// Trims the external solver's checked proof in `dir` (of the skeleton's
+/// `m0` clauses followed by `lemmas` lemma clauses) to the steps its empty
+/// clause depends on and the lemmas those steps name, renumbered densely
+/// (`crate::proof::lrat::trim::trim_inputs`); returns which lemmas stay,
+/// so that the lemma file lists exactly those, in their order. Nothing
+/// trusts this: the certificate is checked afterwards as written, and a
+/// lemma left out that a step needs is a failed LRAT step.
+fn trim_handed_proof(dir: &Path, m0: u64, lemmas: usize) -> Result<Vec<bool>> {
+    use crate::proof::lrat::trim::trim_inputs;
+    let path = dir.join(certificate::PROOF);
+    let src = std::fs::File::open(&path).map_err(|e| Error::io(&path, e))?;
+    let tmp = crate::solve::refute::temp_proof_file(Some(&path))?;
+    let out = std::io::BufWriter::new(tmp.reopen().map_err(|e| Error::io(tmp.path(), e))?);
+    let (_, kept) = trim_inputs(
+        std::io::BufReader::new(src),
+        m0,
+        m0 + lemmas as u64,
+        u32::MAX,
+        out,
+        crate::proof::LratFormat::Text,
+    )
+    .map_err(|e| Error::Certificate(format!("trimming the external solver's proof: {e}")))?;
+    crate::artifact::persist(tmp, &path)?;
+    Ok(kept)
 }
 
 /// Writes the skeleton and the lemma file of a certificate.

@@ -56,12 +56,36 @@ impl Additions {
 /// or a proof without the empty clause; [`LratReason::Io`] when `proof` or
 /// `out` fails.
 pub fn trim<R: Read + Seek>(
-    mut proof: R,
+    proof: R,
     m: u64,
     max_var: u32,
     out: impl Write,
     format: LratFormat,
 ) -> Result<TrimSummary, LratReason> {
+    trim_inputs(proof, m, m, max_var, out, format).map(|(s, _)| s)
+}
+
+/// As [`trim`], for a CNF whose clauses `m0 + 1..=m` may be left out as
+/// well: those no kept addition names as a hint go, and the others are
+/// renumbered densely from `m0 + 1`, in their order (the additions follow
+/// them). Returns, beside the summary, whether each of those clauses was
+/// kept (index `k` for clause `m0 + 1 + k`). The caller must write the
+/// CNF's clauses the same way: the kept ones of `m0 + 1..=m`, in order.
+/// Used for the theory lemmas of a real-space certificate after a
+/// hand-off, where the external solver's proof names only some of them.
+///
+/// # Errors
+/// As [`trim`].
+pub fn trim_inputs<R: Read + Seek>(
+    mut proof: R,
+    m0: u64,
+    m: u64,
+    max_var: u32,
+    out: impl Write,
+    format: LratFormat,
+) -> Result<(TrimSummary, Vec<bool>), LratReason> {
+    let m0 = m0.min(m);
+    let mut input_used = vec![false; (m - m0) as usize];
     let io = |e: std::io::Error| LratReason::Io(e.to_string());
     let malformed = |s: String| LratReason::Malformed(s);
     // 1. Where every addition starts.
@@ -116,6 +140,9 @@ pub fn trim<R: Read + Seek>(
         for &h in &step.refs {
             let h = h.unsigned_abs();
             if h <= m {
+                if h > m0 {
+                    input_used[(h - m0 - 1) as usize] = true;
+                }
                 continue;
             }
             let j = adds.index(h).filter(|&j| j < i).ok_or_else(|| {
@@ -129,13 +156,26 @@ pub fn trim<R: Read + Seek>(
     }
     // 3. The needed additions, renumbered, and the deletions that still matter.
     let mut new_id = vec![0u64; n];
-    let mut next = m + 1;
+    // new_input[k]: the new id of clause m0 + 1 + k, 0 when it goes.
+    let mut new_input = vec![0u64; input_used.len()];
+    let mut last_input = m0;
+    for (k, &used) in input_used.iter().enumerate() {
+        if used {
+            last_input += 1;
+            new_input[k] = last_input;
+        }
+    }
+    let mut next = last_input + 1;
     proof.seek(SeekFrom::Start(0)).map_err(io)?;
     let mut reader = LratReader::new(&mut proof, Some(in_format), max_var)?;
     let mut writer = LratWriter::new(out, format);
     let renumber = |id: u64, new_id: &[u64]| -> Option<u64> {
-        if id <= m {
+        if id <= m0 {
             return Some(id);
+        }
+        if id <= m {
+            let k = new_input[(id - m0 - 1) as usize];
+            return (k != 0).then_some(k);
         }
         let j = adds.index(id)?;
         (needed[j] && new_id[j] != 0).then(|| new_id[j])
@@ -173,11 +213,14 @@ pub fn trim<R: Read + Seek>(
         }
     }
     let (_, bytes) = writer.finish().map_err(io)?;
-    Ok(TrimSummary {
-        added: n as u64,
-        kept: next - m - 1,
-        bytes,
-    })
+    Ok((
+        TrimSummary {
+            added: n as u64,
+            kept: next - last_input - 1,
+            bytes,
+        },
+        input_used,
+    ))
 }
 
 #[cfg(test)]
@@ -191,6 +234,54 @@ mod tests {
         let s = trim(std::io::Cursor::new(proof), m, u32::MAX, &mut out, format).unwrap();
         assert_eq!(s.bytes, out.len() as u64);
         (s, out)
+    }
+
+    #[test]
+    fn unnamed_input_clauses_go_when_they_may() {
+        let cnf = |clauses: &[&[i32]]| {
+            let mut f = crate::cnf::Cnf::new();
+            for c in clauses {
+                let c: Vec<crate::cnf::Lit> =
+                    c.iter().map(|&x| crate::cnf::Lit::from_dimacs(x)).collect();
+                f.add_clause(&c);
+            }
+            f
+        };
+        // Clauses 3..5 may go; 3 is never named, 4 and 5 are.
+        let full = cnf(&[&[1, 2], &[1, -2], &[5, 6], &[-1, 2], &[-1, -2]]);
+        let p = "6 1 0 1 2 0\n6 d 3 0\n7 0 6 4 5 0\n";
+        check_lrat_with(&full, p, &Default::default()).unwrap();
+        let mut out = Vec::new();
+        let (s, kept) = trim_inputs(
+            std::io::Cursor::new(p),
+            2,
+            5,
+            u32::MAX,
+            &mut out,
+            LratFormat::Text,
+        )
+        .unwrap();
+        assert_eq!(kept, [false, true, true]);
+        assert_eq!((s.added, s.kept), (2, 2));
+        let text = String::from_utf8(out).unwrap();
+        assert!(text.starts_with("5 1 0 1 2 0\n"), "{text}");
+        assert!(text.ends_with("6 0 5 3 4 0\n"), "{text}");
+        // The proof is one of the CNF without clause 3, and of no other.
+        check_lrat_with(&square(), &text, &Default::default()).unwrap();
+        assert!(check_lrat_with(&full, &text, &Default::default()).is_err());
+        // With nothing that may go, as trim.
+        let mut again = Vec::new();
+        let (_, none) = trim_inputs(
+            std::io::Cursor::new(p),
+            5,
+            5,
+            u32::MAX,
+            &mut again,
+            LratFormat::Text,
+        )
+        .unwrap();
+        assert!(none.is_empty());
+        assert_eq!(again, trimmed(p.as_bytes(), 5, LratFormat::Text).1);
     }
 
     #[test]

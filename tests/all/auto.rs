@@ -287,7 +287,7 @@ fn q0_3_n4_periods_24_and_28_are_refuted_in_whole_profile_cubes() {
 #[ignore = "about 2 hours on 2 cores and 11 GB of disk (25,674 whole-profile cubes, about 12,600 s of solving, then an 8-minute merge); run on purpose"]
 fn q0_3_n4_period_30_is_refuted_in_blocks_of_cubes() {
     let dir = TestDir::new();
-    refuted_in_blocks(&dir, &Q::cube(0, 3, 4, 30), 30_000, 25_674, &[]);
+    refuted_in_blocks(&dir, &Q::cube(0, 3, 4, 30), 30_000, 25_674, &[], None);
 }
 
 /// {0,1,2,3}^4, p = 32, refuted by computation on 2026-12-04 the same way
@@ -297,7 +297,7 @@ fn q0_3_n4_period_30_is_refuted_in_blocks_of_cubes() {
 #[ignore = "about 2 hours on 2 cores and 14 GB of disk (23,124 whole-profile cubes, about 11,000 s of solving, then a 5-minute merge); run on purpose"]
 fn q0_3_n4_period_32_is_refuted_in_blocks_of_cubes() {
     let dir = TestDir::new();
-    refuted_in_blocks(&dir, &Q::cube(0, 3, 4, 32), 30_000, 23_124, &[]);
+    refuted_in_blocks(&dir, &Q::cube(0, 3, 4, 32), 30_000, 23_124, &[], None);
 }
 
 /// {-1,0,1}^5, p = 36, refuted by computation on 2026-12-04 (README, "What
@@ -312,17 +312,33 @@ fn q0_3_n4_period_32_is_refuted_in_blocks_of_cubes() {
 #[ignore = "about 2 hours on 2 cores and 12 GB of disk (4,412 whole-profile cubes, about 5,500 s of solving, and two cubes with CaDiCaL and rate, about an hour each); run on purpose"]
 fn m1_n5_period_36_is_refuted_in_blocks_of_cubes() {
     let dir = TestDir::new();
-    refuted_in_blocks(&dir, &Q::cube(-1, 1, 5, 36), 20_000, 4_412, &[3803, 4349]);
+    refuted_in_blocks(
+        &dir,
+        &Q::cube(-1, 1, 5, 36),
+        20_000,
+        4_412,
+        &[3803, 4349],
+        None,
+    );
 }
 
 /// `split` of `q` into whole-profile cubes (asking for `requested`; there
 /// must be `cubes`), `run-cube` with binary proofs on blocks of at most 50
 /// cubes under GNU parallel, except the cubes in `hard`, which CaDiCaL
 /// refutes with a DRAT proof (turned into LRAT by `rate`), and `merge`:
-/// infeasible, every cube refuted with a checked proof.
-fn refuted_in_blocks(dir: &TestDir, q: &Q, requested: usize, cubes: usize, hard: &[usize]) {
+/// infeasible, every cube refuted with a checked proof. With
+/// `handoff_after`, the blocks hand every cube the bundled solver leaves
+/// open for that many seconds to CaDiCaL in the same way.
+fn refuted_in_blocks(
+    dir: &TestDir,
+    q: &Q,
+    requested: usize,
+    cubes: usize,
+    hard: &[usize],
+    handoff_after: Option<&str>,
+) {
     crate::util::require_tools(&["parallel"]);
-    if !hard.is_empty() {
+    if !hard.is_empty() || handoff_after.is_some() {
         crate::util::require_tools(&["cadical", "rate"]);
     }
     dir.orbitcnf()
@@ -349,16 +365,22 @@ fn refuted_in_blocks(dir: &TestDir, q: &Q, requested: usize, cubes: usize, hard:
             start = Some(i);
         }
     }
+    // `-I @@`: the block goes where `@@` is, and `{}` stays for --proof-arg.
+    let handoff: Vec<&str> = match handoff_after {
+        Some(after) => vec![
+            "--solver",
+            "external:'cadical -q'",
+            "--proof-arg",
+            "'{}'",
+            "--handoff-after",
+            after,
+        ],
+        None => Vec::new(),
+    };
     dir.program("parallel")
-        .args([
-            "--will-cite",
-            "-j",
-            "2",
-            crate::util::bin(),
-            "run-cube",
-            "sp",
-            "{}",
-        ])
+        .args(["--will-cite", "-j", "2", "-I", "@@"])
+        .args([crate::util::bin(), "run-cube", "sp", "@@"])
+        .args(&handoff)
         .args(["--proof-encoding", "binary", "-q", ":::"])
         .args(&jobs)
         .run()

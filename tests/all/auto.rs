@@ -322,6 +322,27 @@ fn m1_n5_period_36_is_refuted_in_blocks_of_cubes() {
     );
 }
 
+/// {−2,…,2}^4, p = 18, refuted by computation on 2026-12-04 (README, "What
+/// is proven and what is open"): 10,333 whole-profile cubes. The bundled
+/// solver gets each for 60 s; the few it leaves open (cubes whose top
+/// pattern is a coset pattern, such as cube 8435, which it had not refuted
+/// in 30 minutes) go to CaDiCaL, whose DRAT proofs `rate` turns into LRAT
+/// for orbitcnf's checker. Nothing published settles it; the expectation
+/// is orbitcnf's own certified answer.
+#[test]
+#[ignore = "about 2.5 hours on 2 cores and 20 GB of disk (10,333 whole-profile cubes, some handed off to CaDiCaL and rate); run on purpose"]
+fn m2_n4_period_18_is_refuted_in_blocks_of_cubes() {
+    let dir = TestDir::new();
+    refuted_in_blocks(
+        &dir,
+        &Q::cube(-2, 2, 4, 18),
+        20_000,
+        10_333,
+        &[],
+        Some("60"),
+    );
+}
+
 /// `split` of `q` into whole-profile cubes (asking for `requested`; there
 /// must be `cubes`), `run-cube` with binary proofs on blocks of at most 50
 /// cubes under GNU parallel, except the cubes in `hard`, which CaDiCaL

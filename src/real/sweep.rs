@@ -297,14 +297,8 @@ fn search(cfg: &RealSweep, p: usize, progress: &mut dyn FnMut(&Progress)) -> Sea
     Ok((r, tmp, t0.elapsed().as_secs_f64()))
 }
 
-/// Turns a search into its row, checks it against the published theorems
-/// and stores it when it is certified and a store is kept.
-fn finish(cfg: &RealSweep, p: usize, searched: Searched) -> Result<RealRow> {
-    let n = cfg.n;
-    let (r, tmp, seconds) = searched?;
-    if let Some(e) = contradiction(n, p, r.verdict()) {
-        return Err(e);
-    }
+/// The row of a search of period `p` that took `seconds`.
+fn row_of(p: usize, r: &super::RealReport, seconds: f64) -> RealRow {
     let mut row = RealRow {
         period: p,
         verdict: r.verdict().into(),
@@ -322,6 +316,18 @@ fn finish(cfg: &RealSweep, p: usize, searched: Searched) -> Result<RealRow> {
         RealAnswer::Unknown { reason } => row.reason = Some(reason.clone()),
         RealAnswer::Infeasible { .. } => {}
     }
+    row
+}
+
+/// Turns a search into its row, checks it against the published theorems
+/// and stores it when it is certified and a store is kept.
+fn finish(cfg: &RealSweep, p: usize, searched: Searched) -> Result<RealRow> {
+    let n = cfg.n;
+    let (r, tmp, seconds) = searched?;
+    if let Some(e) = contradiction(n, p, r.verdict()) {
+        return Err(e);
+    }
+    let mut row = row_of(p, &r, seconds);
     if let Some(store) = &cfg.store
         && row.certified
     {
@@ -407,21 +413,7 @@ pub fn run(cfg: &RealSweep, progress: &mut Running) -> Result<RealSpectrum> {
         if cfg.divisors
             && let Ok((r, _, _)) = &searched
         {
-            let row = RealRow {
-                period: tasks[i],
-                verdict: r.verdict().into(),
-                how: "search".into(),
-                certified: r.certified(),
-                seconds: 0.0,
-                lemmas: 0,
-                orbit: match &r.answer {
-                    RealAnswer::Feasible { orbit, .. } => Some(orbit.clone()),
-                    _ => None,
-                },
-                bundle: None,
-                reason: None,
-                divisor: None,
-            };
+            let row = row_of(tasks[i], r, 0.0);
             for (j, &q) in tasks.iter().enumerate() {
                 if settles(&row, q) {
                     settled[j].store(true, Ordering::SeqCst);

@@ -341,6 +341,7 @@ pub fn run_cube(a: RunCubeArgs) -> Outcome {
             format: a.proof_encoding,
         };
         let mut note = String::new();
+        let mut handed_off_after = None;
         if let Some(first_limits) = &first_limits {
             let own: &mut dyn Backend = if a.no_certify {
                 &mut bundled
@@ -353,6 +354,7 @@ pub fn run_cube(a: RunCubeArgs) -> Outcome {
                         " (handed off after {:.2} s without an answer from the bundled solver)",
                         r.seconds
                     );
+                    handed_off_after = Some(r.seconds);
                 }
                 outcome => {
                     print_outcome(a.json, &outcome, "")?;
@@ -366,7 +368,7 @@ pub fn run_cube(a: RunCubeArgs) -> Outcome {
             (None, false) => &mut certified,
         };
         // The bundled attempt's unknown is no final result, so this solves.
-        let outcome = runner.run(index, backend, &limits, a.force)?;
+        let outcome = runner.run_after(index, backend, &limits, a.force, handed_off_after)?;
         print_outcome(a.json, &outcome, &note)?;
     }
     Ok(0)

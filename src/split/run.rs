@@ -106,10 +106,14 @@ pub struct CubeResult {
     pub reason: Option<String>,
     /// The back-end's name.
     pub solver: String,
-    /// Seconds spent solving.
+    /// Seconds spent solving (by the back-end named in `solver`).
     pub seconds: f64,
     /// Conflicts, when the back-end reports them.
     pub conflicts: Option<u64>,
+    /// Seconds the bundled solver spent on the cube without an answer
+    /// before it was handed off to `solver`; not part of `seconds`.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub handed_off_after: Option<f64>,
 }
 
 impl CubeResult {
@@ -247,6 +251,23 @@ impl<'a> CubeRunner<'a> {
         limits: &Limits,
         force: bool,
     ) -> Result<RunOutcome> {
+        self.run_after(index, backend, limits, force, None)
+    }
+
+    /// As [`CubeRunner::run`], for a cube that the bundled solver left open
+    /// after `handed_off_after` seconds (recorded in the result,
+    /// [`CubeResult::handed_off_after`]), when that is `Some`.
+    ///
+    /// # Errors
+    /// As [`run_cube`].
+    pub fn run_after(
+        &mut self,
+        index: usize,
+        backend: &mut dyn Backend,
+        limits: &Limits,
+        force: bool,
+        handed_off_after: Option<f64>,
+    ) -> Result<RunOutcome> {
         let dir = self.dir;
         let m = &self.m;
         let entry = m
@@ -269,7 +290,12 @@ impl<'a> CubeRunner<'a> {
             let base = self.formula.as_ref().expect("read just above");
             with_cube(dir, base, entry)?
         };
-        solve_one(dir, entry, &file, &cube_name, backend, limits)
+        let mut outcome = solve_one(dir, entry, &file, &cube_name, backend, limits)?;
+        if let (Some(after), RunOutcome::Solved(r)) = (handed_off_after, &mut outcome) {
+            r.handed_off_after = Some(after);
+            write_result(dir, r)?;
+        }
+        Ok(outcome)
     }
 }
 
@@ -309,6 +335,7 @@ fn solve_one(
         solver: backend.name(),
         seconds: 0.0,
         conflicts: None,
+        handed_off_after: None,
     };
     let fail = |mut result: CubeResult, e: Error| -> Result<RunOutcome> {
         result.status = CubeStatus::Error;
@@ -678,7 +705,7 @@ pub fn merge(
         let Some(r) = result_or_pending(read_result(dir, i), i, &mut report.pending) else {
             continue;
         };
-        report.solve_seconds += r.seconds;
+        report.solve_seconds += r.seconds + r.handed_off_after.unwrap_or(0.0);
         if r.cube_sha256 != entry.digest() {
             report.pending.push(pending(
                 "rejected",

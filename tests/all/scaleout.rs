@@ -755,6 +755,18 @@ fn cubes_the_bundled_solver_leaves_open_go_to_cadical() {
         "{}",
         handed.stdout
     );
+    // The result files say how long the bundled solver had each cube: the
+    // handed-off ones a little, the others not at all.
+    for i in 0..n {
+        let text = std::fs::read_to_string(orbitcnf::split::run::result_path(&dir.path("sp"), i))
+            .expect("a result file");
+        let r: serde_json::Value = serde_json::from_str(&text).unwrap();
+        assert_eq!(
+            r["handed_off_after"].is_number(),
+            i >= first,
+            "cube {i}: {r}"
+        );
+    }
     dir.orbitcnf()
         .args(["merge", "sp"])
         .run()

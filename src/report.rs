@@ -6,7 +6,7 @@
 
 use std::fmt::Write as _;
 
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 
 use crate::cnf::{Cnf, FamilyCount};
 use crate::encode::EncodeOptions;
@@ -149,12 +149,12 @@ pub struct Report {
 
 /// What the automatic strategy of `decide` did: a probe (one ordinary solve
 /// within a budget) that gave no answer, then cubes on threads.
-#[derive(Clone, Debug, PartialEq, Serialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct Strategy {
     /// The probe's time budget in seconds.
     pub probe_budget_seconds: f64,
     /// The probe's conflict budget, when one was set.
-    #[serde(skip_serializing_if = "Option::is_none")]
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub probe_budget_conflicts: Option<u64>,
     /// Seconds the probe ran.
     pub probe_seconds: f64,

@@ -7,7 +7,10 @@ use clap::Args;
 
 use orbitcnf::Error;
 use orbitcnf::question::MapClass;
-use orbitcnf::spectrum::{self, SweepConfig};
+use orbitcnf::solve::external::{External, ProofFormat, ProofRequest};
+use orbitcnf::spectrum::{self, SweepConfig, SweepSplit};
+use orbitcnf::split::auto::DEFAULT_PROBE;
+use orbitcnf::split::jobs::CubeHandoff;
 
 use super::args::{ClassArgs, DomainArgs, EncodingArgs, ProgressArgs, parse_seconds};
 use super::{Outcome, print};
@@ -38,13 +41,24 @@ How each period is answered, cheapest first:
                 --no-divisors turns this off
   solver        everything else: `decide` with the certified solver; infeasible
                 answers carry an LRAT proof accepted by orbitcnf's own checker
+  hard          a period that one solve of --probe seconds (default 60) leaves
+                unknown waits until the others are answered; then it is split
+                into one cube per lex-leader distance profile (as `decide` does
+                after its probe; with more than 20,000 profiles, one solve of
+                the time left), solved on every --jobs thread, each cube's
+                proof checked and lifted, one assembled proof checked and kept
+                (binary LRAT). Its row says 'hard: …'. With --handoff 'cadical
+                -q', cubes the bundled solver leaves open for --handoff-after
+                seconds go to CaDiCaL (DRAT through `rate`, then checked as
+                any cube's). --no-auto-split decides every period by one solve
 
 The results store (--store DIR, default ./orbitcnf-results):
   DIR/answers/<key>.json   one answer per file: verdict, how decided, orbit,
                            proof path and SHA-256, statistics, limits, tool
                            version, run id, start and finish times
   DIR/proofs/<key>.<run>.lrat   the LRAT proofs of infeasible answers
-                           (text LRAT; about 60 MB for all of {-1,0,1}^4)
+                           (text LRAT, binary for hard periods; about 60 MB
+                           for all of {-1,0,1}^4)
   <key> is the SHA-256 of question, resolved encoding options and formulation.
   Every file is written to a temporary file, fsynced and renamed into place, so
   a sweep killed at any moment keeps every answer it completed; run the same
@@ -86,6 +100,7 @@ Examples:
   orbitcnf spectrum --dim 4 --grid=-1..1 --jobs 2 --time-limit 600 --markdown t4.md
   orbitcnf spectrum --dim 2 --grid=0..3 --periods 5..8 --no-store --json
   orbitcnf spectrum --class topical --dim 4 --grid=0..1
+  orbitcnf spectrum --dim 4 --grid 0..3 --periods 17..18 --jobs 2 --handoff 'cadical -q' --handoff-after 60
   orbitcnf spectrum --real --dim 3 --jobs 2 --no-store";
 
 /// The periods of `--periods`, parsed by clap so that a bad list is a usage
@@ -151,15 +166,28 @@ pub struct SpectrumArgs {
     markdown: Option<PathBuf>,
     #[command(flatten)]
     progress: ProgressArgs,
-    /// With --real: after --handoff-after seconds of internal search on a
-    /// period, hand the propositional refutation of the skeleton plus the
-    /// lemmas found to COMMAND (e.g. 'cadical -q', run as COMMAND CNF PROOF;
-    /// its DRAT proof is converted to LRAT by `rate` and checked).
-    #[arg(long, value_name = "COMMAND", requires = "real")]
+    /// Hand hard work to an external DRAT solver COMMAND (e.g. 'cadical -q',
+    /// run as COMMAND CNF PROOF; `rate` converts its proof to LRAT, which
+    /// orbitcnf's checker checks). On a box: each cube of a hard period that
+    /// the bundled solver leaves open for --handoff-after seconds. With
+    /// --real: each period after --handoff-after seconds of internal search,
+    /// with the propositional refutation of the skeleton plus the lemmas found.
+    #[arg(long, value_name = "COMMAND")]
     handoff: Option<String>,
-    /// With --handoff: seconds of internal search before the hand-off.
+    /// With --handoff: seconds of the bundled solver (internal search) before
+    /// the hand-off.
     #[arg(long, value_name = "SECS", value_parser = parse_seconds, requires = "handoff", default_value = "10")]
     handoff_after: Duration,
+    /// A period that one solve of SECS seconds (default 60) does not answer
+    /// is hard: it waits until the other periods are answered, and is then
+    /// split into one cube per lex-leader distance profile, solved on every
+    /// --jobs thread; its proof is assembled from the cubes' and checked.
+    /// The row says so. Not with --real.
+    #[arg(long, value_name = "SECS", value_parser = parse_seconds)]
+    probe: Option<Duration>,
+    /// Decide every period by one solve, never in cubes.
+    #[arg(long, conflicts_with_all = ["probe", "handoff"])]
+    no_auto_split: bool,
 }
 
 /// Runs `spectrum`.
@@ -191,6 +219,28 @@ pub fn run(a: SpectrumArgs) -> Outcome {
     cfg.progress = a.progress.mode(false);
     cfg.recheck = a.recheck;
     cfg.divisors = !a.no_divisors;
+    cfg.split = if a.no_auto_split {
+        None
+    } else {
+        Some(SweepSplit {
+            probe: a.probe.unwrap_or(DEFAULT_PROBE),
+            handoff: match &a.handoff {
+                Some(command) => Some(CubeHandoff {
+                    solver: External {
+                        proof: Some(ProofRequest {
+                            args: vec!["{}".into()],
+                            format: ProofFormat::Drat,
+                            keep_lrat: None,
+                            keep_raw: None,
+                        }),
+                        ..External::parse(command)?
+                    },
+                    after: a.handoff_after,
+                }),
+                None => None,
+            },
+        })
+    };
     let s = spectrum::run(&cfg)?;
     if let Some(path) = &a.markdown {
         orbitcnf::artifact::write_atomically(path, s.to_markdown().as_bytes())?;
@@ -209,6 +259,8 @@ pub fn run(a: SpectrumArgs) -> Outcome {
 fn run_real(n: usize, a: SpectrumArgs) -> Outcome {
     let grid_only = [
         (a.class.class != MapClass::Nonexpansive, "--class"),
+        (a.probe.is_some(), "--probe"),
+        (a.no_auto_split, "--no-auto-split"),
         (a.csv, "--csv"),
         (a.markdown.is_some(), "--markdown"),
     ];

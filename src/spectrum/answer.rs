@@ -4,7 +4,7 @@
 use std::path::PathBuf;
 use std::sync::Arc;
 use std::sync::atomic::AtomicU64;
-use std::time::{Instant, SystemTime};
+use std::time::{Duration, Instant, SystemTime};
 
 use super::{MAP_CHECK_POINTS, SweepConfig};
 use crate::decide;
@@ -12,10 +12,12 @@ use crate::encode::EncodeOptions;
 use crate::error::{Error, Result};
 use crate::evidence::{Evidence, check_witness};
 use crate::grid::Point;
+use crate::proof::LratFormat;
 use crate::question::{MapClass, Question};
-use crate::report::Verdict;
+use crate::report::{Report, Strategy, Verdict};
 use crate::solve::Limits;
 use crate::solve::certified::Certified;
+use crate::split::auto::{AutoOptions, decide_auto};
 use crate::store::{self, Answer, AnswerStats, Backing, How, ProofRecord, RunLimits};
 use crate::theory::{construct, construction_limit};
 use crate::verify;
@@ -88,7 +90,26 @@ pub(super) fn constructed(
     Ok(a)
 }
 
-/// The answer of the certified solver for `task`; the solver counts its
+/// What one solve of a period gave.
+pub(super) enum Solved {
+    /// An answer to record (possibly unknown).
+    Answer(Box<Answer>),
+    /// The probe gave no answer and the time limit leaves time: the period
+    /// is hard, and is decided later in cubes ([`in_cubes`]).
+    Hard(Probed),
+}
+
+/// The probe of a hard period.
+#[derive(Clone, Copy, Debug)]
+pub(super) struct Probed {
+    /// Seconds it ran, encoding included.
+    pub seconds: f64,
+    /// Conflicts it took.
+    pub conflicts: u64,
+}
+
+/// The answer of the certified solver for `task` in one solve, within the
+/// probe when the sweep splits hard periods; the solver counts its
 /// conflicts into `conflicts` as it runs.
 pub(super) fn solved(
     task: &Task,
@@ -96,7 +117,7 @@ pub(super) fn solved(
     limits: &RunLimits,
     run_id: &str,
     conflicts: &Arc<AtomicU64>,
-) -> Result<Answer> {
+) -> Result<Solved> {
     let q = &task.question;
     let started = SystemTime::now();
     let t = Instant::now();
@@ -106,8 +127,14 @@ pub(super) fn solved(
         lrat: task.proof.as_ref().map(|(abs, _)| abs.clone()),
         ..Certified::default()
     };
+    // Only a probe shorter than the time limit can leave a period hard.
+    let probe = cfg
+        .split
+        .as_ref()
+        .map(|s| s.probe)
+        .filter(|&p| cfg.time_limit.is_none_or(|t| p < t));
     let solve_limits = Limits {
-        time: cfg.time_limit,
+        time: probe.or(cfg.time_limit),
         conflicts: Some(conflicts.clone()),
         ..Limits::default()
     };
@@ -118,61 +145,13 @@ pub(super) fn solved(
         &solve_limits,
         cfg.max_clauses,
     ) {
-        Ok(report) => {
-            a.verdict = report.verdict;
-            a.solver = Some(report.stats.solve.solver.clone());
-            a.stats = AnswerStats {
-                seconds: 0.0,
-                encode_seconds: report.stats.size.encode_seconds,
-                solve_seconds: report.stats.solve.seconds,
-                conflicts: report.stats.solve.conflicts,
-                variables: report.stats.size.variables,
-                clauses: report.stats.size.clauses,
-            };
-            match report.verdict {
-                Verdict::Feasible => {
-                    let orbit = report.orbit.clone().unwrap_or_default();
-                    // decide has checked it; checking again here costs little
-                    // and keeps the stored evidence self-contained.
-                    let w = check_witness(q, &report.options, &orbit, report.map.as_deref())?;
-                    let check = w.orbit;
-                    a.map_checked_points = match (&report.map, w.map) {
-                        // Full map: the decoded map was checked on all of D.
-                        (Some(map), Some(mc)) => {
-                            a.map = Some(map.clone());
-                            Some(mc.points_checked)
-                        }
-                        _ => map_check(q, &orbit)?,
-                    };
-                    a.profile = Some(check.profile);
-                    a.orbit = Some(orbit);
-                    a.backing = Backing::CheckedOrbit;
-                }
-                Verdict::Infeasible => match &report.certificate {
-                    Evidence::CheckedProof(info) => {
-                        let (file, sha256) = match (&task.proof, &info.lrat_file) {
-                            (Some((abs, rel)), Some(_)) => {
-                                let (digest, _) = store::sha256_file(abs)?;
-                                (Some(rel.clone()), Some(digest))
-                            }
-                            _ => (None, None),
-                        };
-                        a.proof = Some(ProofRecord {
-                            file,
-                            sha256,
-                            bytes: info.lrat_bytes,
-                            steps: info.lrat.steps,
-                            check_seconds: info.check_seconds,
-                        });
-                        a.backing = Backing::CheckedProof;
-                    }
-                    _ => a.backing = Backing::SolverClaim,
-                },
-                Verdict::Unknown => {
-                    a.reason = report.reason.clone();
-                }
-            }
+        Ok(report) if report.verdict == Verdict::Unknown && probe.is_some() => {
+            return Ok(Solved::Hard(Probed {
+                seconds: t.elapsed().as_secs_f64(),
+                conflicts: conflicts.load(std::sync::atomic::Ordering::Relaxed),
+            }));
         }
+        Ok(report) => record(&mut a, task, &report)?,
         Err(e @ Error::TooLarge { .. }) => {
             a.reason = Some(e.to_string());
         }
@@ -180,5 +159,122 @@ pub(super) fn solved(
     }
     a.stats.seconds = t.elapsed().as_secs_f64();
     a.finished_at = store::utc_timestamp(SystemTime::now());
+    Ok(Solved::Answer(Box::new(a)))
+}
+
+/// The answer for a hard period `task` ([`Solved::Hard`]): cubes on every
+/// thread of the sweep, without a second probe
+/// ([`crate::split::auto::decide_auto`]), within the time the probe left.
+/// The proof assembled from the cubes' is checked by `decide_auto` and
+/// kept in the store (binary LRAT, as such proofs are large).
+pub(super) fn in_cubes(
+    task: &Task,
+    cfg: &SweepConfig,
+    limits: &RunLimits,
+    run_id: &str,
+    conflicts: &Arc<AtomicU64>,
+    probed: Probed,
+) -> Result<Answer> {
+    let q = &task.question;
+    let split = cfg.split.clone().unwrap_or_default();
+    let started = SystemTime::now();
+    let t = Instant::now();
+    let started_at = store::utc_timestamp(started);
+    let mut a = Answer::unknown(q, &cfg.options, *limits, How::Solver, run_id, started_at);
+    let opts = AutoOptions {
+        certify: true,
+        jobs: cfg.jobs.max(1),
+        probe: Duration::ZERO,
+        probe_conflicts: None,
+        lrat: task.proof.as_ref().map(|(abs, _)| abs.clone()),
+        format: LratFormat::Binary,
+        handoff: split.handoff.clone(),
+    };
+    let probe_time = Duration::from_secs_f64(probed.seconds);
+    let solve_limits = Limits {
+        time: cfg.time_limit.map(|l| l.saturating_sub(probe_time)),
+        conflicts: Some(conflicts.clone()),
+        progress: cfg.progress,
+        ..Limits::default()
+    };
+    match decide_auto(q, &cfg.options, &opts, &solve_limits, cfg.max_clauses) {
+        Ok(report) => {
+            record(&mut a, task, &report)?;
+            a.strategy = report.strategy.map(|s| Strategy {
+                probe_budget_seconds: split.probe.as_secs_f64(),
+                probe_budget_conflicts: None,
+                probe_seconds: probed.seconds,
+                probe_conflicts: probed.conflicts,
+                ..s
+            });
+            a.stats.solve_seconds += probed.seconds;
+        }
+        Err(e @ Error::TooLarge { .. }) => {
+            a.reason = Some(e.to_string());
+        }
+        Err(e) => return Err(e),
+    }
+    a.stats.seconds = probed.seconds + t.elapsed().as_secs_f64();
+    a.finished_at = store::utc_timestamp(SystemTime::now());
     Ok(a)
+}
+
+/// Records in `a` what `report` (of the certified solver, for `task`)
+/// found, with its evidence checked again and its proof's digest.
+fn record(a: &mut Answer, task: &Task, report: &Report) -> Result<()> {
+    let q = &task.question;
+    a.verdict = report.verdict;
+    a.solver = Some(report.stats.solve.solver.clone());
+    a.stats = AnswerStats {
+        seconds: 0.0,
+        encode_seconds: report.stats.size.encode_seconds,
+        solve_seconds: report.stats.solve.seconds,
+        conflicts: report.stats.solve.conflicts,
+        variables: report.stats.size.variables,
+        clauses: report.stats.size.clauses,
+    };
+    match report.verdict {
+        Verdict::Feasible => {
+            let orbit = report.orbit.clone().unwrap_or_default();
+            // decide has checked it; checking again here costs little
+            // and keeps the stored evidence self-contained.
+            let w = check_witness(q, &report.options, &orbit, report.map.as_deref())?;
+            let check = w.orbit;
+            a.map_checked_points = match (&report.map, w.map) {
+                // Full map: the decoded map was checked on all of D.
+                (Some(map), Some(mc)) => {
+                    a.map = Some(map.clone());
+                    Some(mc.points_checked)
+                }
+                _ => map_check(q, &orbit)?,
+            };
+            a.profile = Some(check.profile);
+            a.orbit = Some(orbit);
+            a.backing = Backing::CheckedOrbit;
+        }
+        Verdict::Infeasible => match &report.certificate {
+            Evidence::CheckedProof(info) => {
+                let (file, sha256) = match (&task.proof, &info.lrat_file) {
+                    (Some((abs, rel)), Some(_)) => {
+                        let (digest, _) = store::sha256_file(abs)?;
+                        (Some(rel.clone()), Some(digest))
+                    }
+                    _ => (None, None),
+                };
+                a.proof = Some(ProofRecord {
+                    file,
+                    sha256,
+                    bytes: info.lrat_bytes,
+                    steps: info.lrat.steps,
+                    check_seconds: info.check_seconds,
+                });
+                a.backing = Backing::CheckedProof;
+            }
+            _ => a.backing = Backing::SolverClaim,
+        },
+        Verdict::Unknown => {
+            a.reason = report.reason.clone();
+        }
+    }
+    Ok(())
 }

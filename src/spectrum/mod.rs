@@ -42,7 +42,7 @@
 //!    by exhaustion ([`crate::verify::extend`] and [`crate::verify::check_map`];
 //!    [`crate::verify::extend_topical`] and [`crate::verify::check_topical_map`]). No
 //!    solver runs.
-//! 3. **By the solver**: [`crate::decide::decide`] with the [`Certified`](crate::solve::certified::Certified) back-end, so
+//! 3. **By the solver**: [`crate::decide::decide`] (hard periods in cubes, below) with the [`Certified`](crate::solve::certified::Certified) back-end, so
 //!    a feasible answer carries a checked orbit and an infeasible one an LRAT
 //!    proof accepted by orbitcnf's own checker; with a store the proof is kept
 //!    in `proofs/` and its SHA-256 recorded. A formula over `--max-clauses`
@@ -68,6 +68,26 @@
 //! contradicts a stored one or a theorem stops the sweep: no new period is
 //! started, the running ones are finished (and stored), and the error is
 //! returned.
+//!
+//! # Hard periods: a probe, then cubes
+//!
+//! With [`SweepConfig::split`] (the default), each solver period first gets
+//! one ordinary solve of at most [`SweepSplit::probe`] (the *probe*, as in
+//! `decide`, [`crate::split::auto`]). A period the probe leaves unknown,
+//! while the time limit leaves time, is *hard*: it is set aside until every
+//! other period is answered, and the hard periods are then decided one
+//! after another, in increasing order, each by
+//! [`crate::split::auto::decide_auto`] without a second probe: one cube per
+//! whole profile on all [`SweepConfig::jobs`] threads (one solve with the
+//! time left when there are too many profiles), every cube's proof checked
+//! and lifted, one assembled proof of the whole CNF checked and stored like
+//! any other. Hardness is measured, not guessed: it is what the probe did
+//! not answer. The probe's work is dropped, so the switch cannot change a
+//! verdict; its time counts against the time limit. The answer records
+//! what was done ([`Answer::strategy`]), and its row says so. Each hard
+//! answer settles by §9 the hard periods after it before they start.
+//! Cubes the bundled solver leaves open can go to an external solver
+//! ([`SweepSplit::handoff`]).
 //!
 //! # Crash safety
 //!
@@ -156,6 +176,30 @@ pub struct SweepConfig {
     /// infeasible, a divisor of a feasible one feasible (the module
     /// documentation says how).
     pub divisors: bool,
+    /// Switch hard periods to cubes after a probe (the module
+    /// documentation says how); `None` decides every period by one solve.
+    pub split: Option<SweepSplit>,
+}
+
+/// How a sweep decides its hard periods (see the module documentation).
+#[derive(Clone, Debug, PartialEq)]
+pub struct SweepSplit {
+    /// The probe: one ordinary solve of at most this long per period.
+    pub probe: Duration,
+    /// Cubes the bundled solver leaves open this long go to an external
+    /// solver, whose proof is checked and lifted like the bundled solver's.
+    pub handoff: Option<crate::split::jobs::CubeHandoff>,
+}
+
+impl Default for SweepSplit {
+    /// The probe of `decide` ([`crate::split::auto::DEFAULT_PROBE`]), no
+    /// hand-off.
+    fn default() -> SweepSplit {
+        SweepSplit {
+            probe: crate::split::auto::DEFAULT_PROBE,
+            handoff: None,
+        }
+    }
 }
 
 impl SweepConfig {
@@ -181,6 +225,7 @@ impl SweepConfig {
             progress: ProgressMode::Off,
             recheck: false,
             divisors: true,
+            split: Some(SweepSplit::default()),
         }
     }
 }

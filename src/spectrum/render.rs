@@ -6,7 +6,7 @@ use std::fmt::Write as _;
 
 use super::{Checked, Spectrum};
 use crate::encode::Symmetry;
-use crate::progress::duration_words;
+use crate::progress::{duration_words, threads_words};
 use crate::question::MapClass;
 use crate::report::Verdict;
 use crate::store::{Answer, Backing, How};
@@ -24,7 +24,17 @@ pub fn certificate_words(a: &Answer, checked: &Checked) -> String {
         }
         _ => String::new(),
     };
-    let what = evidence_words(a, &when);
+    let mut what = evidence_words(a, &when);
+    if let Some(st) = &a.strategy {
+        let _ = write!(
+            what,
+            "; hard: no answer in the {} probe, then {} {} cubes on {}",
+            duration_words(st.probe_seconds),
+            st.cubes,
+            st.cube_rule,
+            threads_words(st.threads)
+        );
+    }
     match checked {
         Checked::Rechecked => format!("{what}; re-checked in this run"),
         _ => what,

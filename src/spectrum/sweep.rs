@@ -5,7 +5,7 @@ use std::sync::Arc;
 use std::sync::atomic::{AtomicBool, AtomicU64, Ordering};
 use std::time::{Instant, SystemTime};
 
-use super::answer::{self, Task};
+use super::answer::{self, Probed, Solved, Task};
 use super::divisors;
 use super::{Checked, MAX_PERIODS, Row, Spectrum, Summary, SweepConfig};
 use crate::dimacs::VERSION;
@@ -136,6 +136,8 @@ pub fn run(cfg: &SweepConfig) -> Result<Spectrum> {
     let settled: Vec<AtomicBool> = tasks.iter().map(|_| AtomicBool::new(false)).collect();
     let stop = AtomicBool::new(false);
     let mut first_error: Option<Error> = None;
+    // Periods the probe left unknown, for cubes once the pool is done.
+    let mut hard: Vec<(usize, Probed)> = Vec::new();
     let work = |i: usize| {
         if settled[i].load(Ordering::SeqCst) {
             return None;
@@ -146,7 +148,7 @@ pub fn run(cfg: &SweepConfig) -> Result<Spectrum> {
         // search that this answer settles. Should the calling thread then
         // refuse this answer, the sweep stops, so nothing rests on the mark.
         if cfg.divisors
-            && let Ok(a) = &answer
+            && let Ok(Solved::Answer(a)) = &answer
         {
             for (j, t) in tasks.iter().enumerate() {
                 if divisors::decides(a, t.question.period) {
@@ -170,7 +172,14 @@ pub fn run(cfg: &SweepConfig) -> Result<Spectrum> {
             let outcome = match answer {
                 // Skipped: §9 gives its answer (made below, or already).
                 None => Ok(Vec::new()),
-                Some(answer) => (*answer).and_then(|a| {
+                Some(answer) => (*answer).and_then(|solved| {
+                    let a = match solved {
+                        Solved::Answer(a) => *a,
+                        Solved::Hard(probed) => {
+                            hard.push((i, probed));
+                            return Ok(Vec::new());
+                        }
+                    };
                     let new = !rows.contains_key(&p);
                     if new {
                         finish(grid, &mut store, &mut rows, a)?;
@@ -204,20 +213,7 @@ pub fn run(cfg: &SweepConfig) -> Result<Spectrum> {
             match outcome {
                 Ok(decided) => {
                     for d in decided {
-                        progress.event(|| {
-                            let r = &rows[&d];
-                            if r.how == How::Divisor {
-                                return watch.by_divisors(r, &rows);
-                            }
-                            format!(
-                                "spectrum {}: p={d} {} ({}, {}); {}",
-                                watch.grid,
-                                r.verdict.word(),
-                                r.how.word(),
-                                duration_words(r.seconds),
-                                watch.words(&rows, &running, state.queued)
-                            )
-                        });
+                        progress.event(|| watch.answered(&rows[&d], &rows, &running, state.queued));
                     }
                 }
                 Err(e) => {
@@ -249,6 +245,40 @@ pub fn run(cfg: &SweepConfig) -> Result<Spectrum> {
     progress.clear();
     if let Some(e) = first_error {
         return Err(e);
+    }
+    hard.sort_by_key(|&(i, _)| tasks[i].question.period);
+    for (k, &(i, probed)) in hard.iter().enumerate() {
+        let p = tasks[i].question.period;
+        if rows.contains_key(&p) {
+            continue;
+        }
+        progress.event(|| {
+            format!(
+                "spectrum {}: p={p}: the probe gave no answer in {} ({} conflicts); \
+                 deciding it in cubes on {} ({} hard period(s) left)",
+                watch.grid,
+                duration_words(probed.seconds),
+                probed.conflicts,
+                crate::progress::threads_words(cfg.jobs.max(1)),
+                hard.len() - k
+            )
+        });
+        let a = answer::in_cubes(&tasks[i], cfg, &limits, &run_id, &conflicts[i], probed)?;
+        finish(grid, &mut store, &mut rows, a)?;
+        let mut decided = vec![p];
+        if cfg.divisors {
+            let open: Vec<&Question> = hard[k + 1..]
+                .iter()
+                .map(|&(j, _)| &tasks[j].question)
+                .collect();
+            decided.extend(divisors::settle(
+                cfg, &limits, &run_id, &mut store, &mut rows, open,
+            )?);
+        }
+        warn_set_aside(&store, &mut warned, &mut progress);
+        for d in decided {
+            progress.event(|| watch.answered(&rows[&d], &rows, &[], 0));
+        }
     }
     for t in &tasks {
         if let std::collections::btree_map::Entry::Vacant(slot) = rows.entry(t.question.period) {
@@ -502,6 +532,29 @@ impl Watch {
             r.period,
             r.verdict.word(),
             self.decided(rows)
+        )
+    }
+
+    /// The progress line of the newly answered row `r`: `p=17 infeasible
+    /// (solver, 0.47 s); 17/32 periods decided (…)`, or as [`Watch::by_divisors`].
+    fn answered(
+        &self,
+        r: &Row,
+        rows: &BTreeMap<usize, Row>,
+        running: &[(usize, Instant, u64)],
+        queued: usize,
+    ) -> String {
+        if r.how == How::Divisor {
+            return self.by_divisors(r, rows);
+        }
+        format!(
+            "spectrum {}: p={} {} ({}, {}); {}",
+            self.grid,
+            r.period,
+            r.verdict.word(),
+            r.how.word(),
+            duration_words(r.seconds),
+            self.words(rows, running, queued)
         )
     }
 

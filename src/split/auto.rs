@@ -43,8 +43,7 @@
 //! [`super::start_cubes`]).
 
 use std::path::PathBuf;
-use std::sync::Arc;
-use std::sync::atomic::{AtomicU64, Ordering};
+use std::sync::atomic::Ordering;
 use std::time::{Duration, Instant};
 
 use super::jobs::{CubesRun, JobsOptions, solve_cubes};
@@ -94,7 +93,8 @@ pub struct AutoOptions {
     pub certify: bool,
     /// Threads for the cubes, at least 1.
     pub jobs: usize,
-    /// The probe's time budget.
+    /// The probe's time budget. Zero, with no conflict budget, is no
+    /// probe: the cubes start at once (for a caller that has probed).
     pub probe: Duration,
     /// The probe's conflict budget (reproducible, unlike time), if any.
     pub probe_conflicts: Option<u64>,
@@ -226,7 +226,9 @@ pub fn decide_auto(
     let enc = encode(q, options, max_clauses)?;
     let encode_seconds = t0.elapsed().as_secs_f64();
     let start = Instant::now();
-    let conflicts = Arc::new(AtomicU64::new(0));
+    // A caller's counter (a sweep's progress line) sees the probe's and the
+    // cubes' conflicts.
+    let conflicts = limits.conflicts.clone().unwrap_or_default();
     let probe_time = match limits.time {
         Some(t) => t.min(opts.probe),
         None => opts.probe,
@@ -265,16 +267,22 @@ pub fn decide_auto(
         };
         return decide_encoded(q, options, &enc, encode_seconds, backend, &limits);
     }
-    let probe = decide_encoded(q, options, &enc, encode_seconds, backend, &probe_limits)?;
+    // A zero budget is no probe: the caller has probed already (`spectrum`).
+    let why = if opts.probe.is_zero() && opts.probe_conflicts.is_none() {
+        None
+    } else {
+        let probe = decide_encoded(q, options, &enc, encode_seconds, backend, &probe_limits)?;
+        // The probe's answer stands when there is one, and so does its
+        // unknown when the probe was given all the time there is.
+        let no_time_left = limits
+            .time
+            .is_some_and(|t| t <= opts.probe || start.elapsed() >= t);
+        if probe.verdict != Verdict::Unknown || no_time_left {
+            return Ok(probe);
+        }
+        Some(probe.reason.unwrap_or_else(|| "no answer".into()))
+    };
     let probe_seconds = start.elapsed().as_secs_f64();
-    // The probe's answer stands when there is one, and so does its unknown
-    // when the probe was given all the time there is.
-    let no_time_left = limits
-        .time
-        .is_some_and(|t| t <= opts.probe || start.elapsed() >= t);
-    if probe.verdict != Verdict::Unknown || no_time_left {
-        return Ok(probe);
-    }
     let probe_conflicts = conflicts.load(Ordering::Relaxed);
     let choice = choose_cubes(&enc)?;
     let threads = opts.jobs.min(choice.cubes.len().max(1));
@@ -289,8 +297,10 @@ pub fn decide_auto(
     };
     Progress::new(limits.progress).event(|| {
         format!(
-            "decide: the probe gave no answer ({}); switching to {} {} cubes on {}",
-            probe.reason.as_deref().unwrap_or("no answer"),
+            "decide: {}switching to {} {} cubes on {}",
+            why.as_ref()
+                .map(|w| format!("the probe gave no answer ({w}); "))
+                .unwrap_or_default(),
             strategy.cubes,
             strategy.cube_rule,
             crate::progress::threads_words(threads)

@@ -195,6 +195,10 @@ pub struct Answer {
     /// The solver, when one ran.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub solver: Option<String>,
+    /// When the period was hard: the probe that gave no answer and the
+    /// cubes that followed (`spectrum` switches as `decide` does).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub strategy: Option<crate::report::Strategy>,
     /// The orbitcnf version that computed the answer.
     pub tool_version: String,
     /// The run that computed it ([`run_id`]).
@@ -238,6 +242,7 @@ impl Answer {
             limits,
             stats: AnswerStats::default(),
             solver: None,
+            strategy: None,
             tool_version: VERSION.into(),
             run_id: run_id.into(),
             started_at,

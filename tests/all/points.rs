@@ -827,3 +827,30 @@ fn check_verifies_the_map_of_a_point_set_report() {
         .run()
         .error_with(&["checked with its map", "has no \"map\""]);
 }
+
+#[test]
+fn spectrum_decides_a_hard_period_of_a_point_set_in_start_point_cubes() {
+    // The 27 points of {-1,0,1}^3 as a point set: period 7 ≤ 2^3 occurs (a
+    // cycle on the unit cube {0,1}^3, whose points are pairwise at distance
+    // 1). A probe of a millisecond does not answer it (encoding the full map
+    // alone takes longer), so the sweep decides it in start-point cubes;
+    // the map it returns is checked here again, independently.
+    let dir = TestDir::new();
+    let pts: Vec<Vec<i64>> = (0..27)
+        .map(|i| vec![i / 9 - 1, (i / 3) % 3 - 1, i % 3 - 1])
+        .collect();
+    let file = write_points(&dir, "cube27.txt", &pts);
+    let run = dir
+        .orbitcnf()
+        .args(["spectrum", "--points", &file, "--periods", "7", "-j", "2"])
+        .args(["--no-store", "--probe", "0.001", "--json"])
+        .run();
+    run.code(0);
+    let v = run.json();
+    let r = &v["rows"][0];
+    assert_eq!(r["verdict"], "feasible");
+    let a = &r["answer"];
+    assert_eq!(a["strategy"]["cube_rule"], "start-point", "{a}");
+    let orbit = orbit_of(a).unwrap();
+    assert_self_map(&pts, &map_of(a), &orbit, 7, "hard period 7");
+}

@@ -260,15 +260,15 @@ fn real_space_spectrum_stores_and_reuses_answers() {
 /// `spectrum --real --handoff`: with the hand-off on (on R^2 the internal
 /// search may finish before it), the periods above 2^2 = 4 are refuted
 /// (Lemmens and Scheutzow 2005 [paper]: no period above max_k 2^k·C(2,k) =
-/// 4), each with a certificate that check-bundle accepts; the hand-off flags
-/// are refused without --real.
+/// 4), each with a certificate that check-bundle accepts; the grid's
+/// switch to cubes is refused with --real.
 #[test]
 fn real_space_spectrum_hands_off_to_an_external_solver() {
     let dir = TestDir::new();
     dir.orbitcnf()
-        .args(["spectrum", "--dim", "2", "--handoff", "cadical -q"])
+        .args(["spectrum", "--real", "--dim", "2", "--no-auto-split"])
         .run()
-        .error_with(&["--real"]);
+        .error_with(&["--no-auto-split applies to grid spectra, not to --real"]);
     if !crate::util::have_tool("cadical") || !crate::util::have_tool("rate") {
         return;
     }

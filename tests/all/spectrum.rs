@@ -987,3 +987,91 @@ fn spectrum_answers_multiples_of_refuted_periods_by_section_9_with_the_same_verd
         .stdout_has("--no-divisors")
         .stdout_has("periods are closed under divisors");
 }
+
+#[test]
+fn spectrum_decides_hard_periods_in_cubes_with_a_stored_assembled_proof() {
+    // {-1,0,1}^3 has no period above 2^3 = 8 (Lyons and Nussbaum 1992
+    // [recalled]; p ≤ 12 by Lemmens and Scheutzow 2005). A probe of a
+    // millisecond answers nothing, so 9 and 10 are hard: each is decided in
+    // whole-profile cubes on both threads, its proof assembled, checked and
+    // stored; 18 then follows from 9 by §9 without a search.
+    let dir = TestDir::new();
+    let q = ["--dim", "3", "--grid=-1..1"];
+    let sweep = |store: &str, extra: &[&str]| {
+        let run = dir
+            .orbitcnf()
+            .arg("spectrum")
+            .args(q)
+            .args(["--periods", "9,10,18", "-j", "2", "--store", store])
+            .args(extra)
+            .run();
+        run.code(0);
+        run
+    };
+    let run = sweep(
+        "results",
+        &["--probe", "0.001", "--json", "--progress", "lines"],
+    );
+    let v = run.json();
+    assert_eq!(verdicts(&v), ["infeasible"; 3]);
+    let store = Store::open(&dir.path("results")).unwrap();
+    for r in &rows(&v)[..2] {
+        let st = &r["answer"]["strategy"];
+        assert_eq!(st["cube_rule"], "full-profile", "{r}");
+        assert_eq!(st["threads"], 2, "{r}");
+        assert_eq!(st["probe_budget_seconds"], 0.001, "{r}");
+        assert!(st["cubes"].as_u64().unwrap() >= 2, "{r}");
+        assert_stored_proof_accepted(&dir, &store, r, &q);
+    }
+    assert_eq!(rows(&v)[2]["how"], "divisor");
+    let lines = progress_lines(&run);
+    assert!(
+        lines
+            .iter()
+            .any(|l| l.contains("p=9: the probe gave no answer in")
+                && l.contains("deciding it in cubes on 2 threads")),
+        "{lines:#?}"
+    );
+    // A second run reuses them, re-checked; the row says how it was decided.
+    sweep("results", &["--recheck"])
+        .stdout_has("hard: no answer in the")
+        .stdout_has("full-profile cubes on 2 threads; re-checked in this run");
+    // Without the switch (and with the default probe) one solve decides each.
+    let plain = sweep("plain", &["--no-auto-split", "--json"]).json();
+    assert_eq!(verdicts(&plain), ["infeasible"; 3]);
+    assert!(rows(&plain)[0]["answer"]["strategy"].is_null());
+    dir.orbitcnf()
+        .args(["spectrum", "--real", "--dim", "2", "--probe", "1"])
+        .run()
+        .error_with(&["--probe applies to grid spectra"]);
+}
+
+#[test]
+fn spectrum_hands_the_cubes_of_a_hard_period_to_cadical() {
+    if !crate::util::have_tool("cadical") || !crate::util::have_tool("rate") {
+        return;
+    }
+    // As above, with every cube handed to CaDiCaL at once: its DRAT proof
+    // goes through `rate`, is checked against F ∧ cube and lifted, and the
+    // assembled proof is stored and accepted by `verify-proof`.
+    let dir = TestDir::new();
+    let q = ["--dim", "3", "--grid=-1..1"];
+    let v = dir
+        .orbitcnf()
+        .arg("spectrum")
+        .args(q)
+        .args(["--periods", "9", "-j", "2", "--store", "results", "--json"])
+        .args(["--probe", "0.001", "--handoff", "cadical -q"])
+        .args(["--handoff-after", "0.000001"])
+        .run()
+        .json();
+    let r = &rows(&v)[0];
+    assert_eq!(r["verdict"], "infeasible");
+    let solver = r["answer"]["solver"].as_str().unwrap();
+    assert!(
+        solver.contains("handed off to external `cadical -q`") && !solver.contains(" 0 handed"),
+        "{solver}"
+    );
+    let store = Store::open(&dir.path("results")).unwrap();
+    assert_stored_proof_accepted(&dir, &store, r, &q);
+}

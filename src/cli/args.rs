@@ -251,6 +251,12 @@ pub struct EncodingArgs {
     /// bounds d; see encodings/redundant.md, pack-gap.
     #[arg(long)]
     pub no_gaps: bool,
+    /// Encode the reversal break (symmetry step 6) as ternary clauses even
+    /// on large boxes. By default, where those would be more than 100,000
+    /// clauses ({−2,…,2}^4 and larger), the same constraint is written with
+    /// auxiliary variables in far fewer clauses; see encodings/symmetry.md.
+    #[arg(long)]
+    pub no_reverse_ladder: bool,
     /// The formulation: `cycle` (isometric cycles; boxes only; the default
     /// on boxes) or `full-map` (the whole map f: D → D; the only one for
     /// --points, and available on boxes for comparison).
@@ -300,6 +306,7 @@ impl EncodingArgs {
             bicliques: !self.no_bicliques,
             subbox: !self.no_subbox,
             gaps: !self.no_gaps,
+            reverse_ladder: !self.no_reverse_ladder,
             ..base
         })
     }

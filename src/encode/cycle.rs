@@ -241,10 +241,17 @@ pub static ISOMETRIC_CYCLE: &[Family<Cycle>] = &[
     SYM_STABILIZER,
     Family {
         name: symmetry::REVERSE,
-        applies: |_, o| o.symmetry.reverse,
+        applies: |_, o| o.symmetry.reverse && !o.reverse_ladder,
         searched: false,
         size: |x| symmetry::sizes::reverse(x.stabilizer_classes()),
         add: |e, x| symmetry::add_reverse(e, &x.q, x.stabilizer_classes()),
+    },
+    Family {
+        name: symmetry::REVERSE,
+        applies: |_, o| o.symmetry.reverse && o.reverse_ladder,
+        searched: false,
+        size: |x| symmetry::sizes::reverse_ladder(x.stabilizer_classes()),
+        add: |e, x| symmetry::add_reverse_ladder(e, &x.q, x.stabilizer_classes()),
     },
 ];
 

@@ -180,6 +180,39 @@ pub struct EncodeOptions {
     /// below 3, and recorded in a header only when on.
     #[serde(default, skip_serializing_if = "is_false")]
     pub gaps: bool,
+    /// Step 6 (`sym-reverse`) with auxiliary variables, in `O(|R|·N)`
+    /// clauses instead of `O(|R|·k·N)` ternary ones
+    /// ([`super::symmetry::add_reverse_ladder`]; same models on the point
+    /// indicators). [`EncodeOptions::resolve`] keeps it only where the
+    /// ternary form would have more than [`REVERSE_LADDER_ABOVE`] clauses,
+    /// and a header records it only when on, so formulas written before it
+    /// read as the ternary clauses they hold.
+    #[serde(default, skip_serializing_if = "is_false")]
+    pub reverse_ladder: bool,
+}
+
+/// The ternary `sym-reverse` clauses above which step 6 is encoded as a
+/// ladder. Measured on 2026-12-04: on {−2,…,2}^4 the ternary form is
+/// 580,708 of the 891,871 clauses at p = 22, and loading them (into the
+/// solver and its proof checker) dominated easy cubes; {0,1,2,3}^4 (42,856)
+/// and {−1,0,1}^5 (15,302) stay below, so their formulas are unchanged.
+pub const REVERSE_LADDER_ABOVE: u64 = 100_000;
+
+#[cfg(test)]
+thread_local! {
+    /// Tests switch the threshold off to check the ladder on small boxes.
+    pub(crate) static FORCE_LADDER: std::cell::Cell<bool> = const { std::cell::Cell::new(false) };
+}
+
+/// Whether the ternary `sym-reverse` of `q`'s box would have more than
+/// [`REVERSE_LADDER_ABOVE`] clauses (it depends on the box alone).
+fn reverse_ladder_pays(q: &Question) -> bool {
+    #[cfg(test)]
+    if FORCE_LADDER.with(std::cell::Cell::get) {
+        return true;
+    }
+    super::symmetry::stabilizer_classes(q)
+        .is_some_and(|c| super::symmetry::sizes::reverse(&c).clauses > REVERSE_LADDER_ABOVE)
 }
 
 fn is_false(b: &bool) -> bool {
@@ -199,6 +232,7 @@ impl Default for EncodeOptions {
             bicliques: true,
             subbox: true,
             gaps: true,
+            reverse_ladder: true,
         }
     }
 }
@@ -216,6 +250,7 @@ impl EncodeOptions {
             bicliques: false,
             subbox: false,
             gaps: false,
+            reverse_ladder: false,
         }
     }
 
@@ -250,6 +285,7 @@ impl EncodeOptions {
             o.subbox = false;
             o.gaps = false;
             o.symmetry.reverse = false;
+            o.reverse_ladder = false;
         }
         o
     }
@@ -303,6 +339,9 @@ impl EncodeOptions {
         }
         if !o.symmetry.stabilizer || q.period < 3 {
             o.symmetry.reverse = false;
+        }
+        if !o.symmetry.reverse || !reverse_ladder_pays(q) {
+            o.reverse_ladder = false;
         }
         o
     }

@@ -414,11 +414,12 @@ fn oversized_questions_are_refused_from_the_base_families() {
 
 #[test]
 fn an_oversized_question_is_refused_before_the_window_searches() {
-    // {0,…,30}^2 with p = 12: the closed-form families alone exceed the
+    // {0,…,40}^2 with p = 12: the closed-form families alone exceed the
     // default limit, while the window searches of `pack-classes` and its
-    // companions on 31 × 31 windows took more than a minute. The refusal
-    // reports the closed-form rows' size: every row but the searched ones.
-    let question = q("0..30", 2, 12);
+    // companions on such windows take minutes ({0,…,30}^2 fitted once step
+    // 6 became a ladder). The refusal reports the closed-form rows' size:
+    // every row but the searched ones.
+    let question = q("0..40", 2, 12);
     let err = encode(&question, &EncodeOptions::default(), DEFAULT_MAX_CLAUSES).unwrap_err();
     let Error::TooLarge { clauses, .. } = err else {
         panic!("{err}");

@@ -106,6 +106,7 @@ pub fn for_domain(options: &EncodeOptions) -> EncodeOptions {
         bicliques: false,
         subbox: false,
         gaps: false,
+        reverse_ladder: false,
     }
 }
 

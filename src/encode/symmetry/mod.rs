@@ -337,6 +337,64 @@ pub fn add_reverse(e: &mut Encoder, q: &Question, classes: &[(usize, Vec<usize>)
     }
 }
 
+/// Step 6 with auxiliary variables (the *ladder*, option `reverse_ladder`),
+/// given [`stabilizer_classes`]: the same constraint as [`add_reverse`] in
+/// `O(|R|·N)` clauses instead of `O(|R|·k·N)`.
+///
+/// For each `r ∈ R`, let `z_1 < … < z_k` be the least points of the
+/// `Stab(r)`-orbits and `o(w)` the position of `w`'s orbit in that list.
+/// Variables `Q[j]`, `2 ≤ j ≤ k`, read "`x_{p−1}`'s orbit precedes `z_j`"
+/// (`o(x_{p−1}) < j`). Clauses: `[x_{p−1} = w] → Q[o(w)+1]` for every `w`
+/// outside the last orbit, `Q[j] → Q[j+1]`, and
+/// `¬[x_0 = r] ∨ ¬[x_1 = z_j] ∨ ¬Q[j]` for `z_j ≠ r`. Counts
+/// ([`sizes::reverse_ladder`]): per `r` with `k ≥ 2`, `k − 1` variables and
+/// `(N − c_k) + (k − 2) + (k − 1 − [o(r) ≥ 2])` clauses, `c_k` the size of
+/// the last orbit.
+///
+/// Same models, projected on the point indicators, as the ternary clauses
+/// (`encodings/symmetry.md`, step 6): a model of those extends by giving
+/// each `Q[j]` its reading; in a model of these, `x_0 = r`, `x_1 = z_j` and
+/// `o(x_{p−1}) < j` would make `Q[o(x_{p−1})+1]` true, the chain `Q[j]`,
+/// and the last clause false. Unit propagation is as strong: from `x_0 = r`
+/// and `x_1 = z_j` it falsifies `Q[j]`, then every `Q[j′]` with `j′ < j`
+/// down the chain, then every `[x_{p−1} = w]` with `o(w) < j`.
+pub fn add_reverse_ladder(e: &mut Encoder, q: &Question, classes: &[(usize, Vec<usize>)]) {
+    let pts: Vec<Point> = q.grid.points().collect();
+    let last = q.period - 1;
+    for (r, min) in classes {
+        let least: Vec<usize> = (0..pts.len()).filter(|&z| min[z] == z).collect();
+        let k = least.len();
+        if k < 2 {
+            continue;
+        }
+        let mut pos = vec![0usize; pts.len()];
+        for (j, &z) in least.iter().enumerate() {
+            pos[z] = j;
+        }
+        // ladder[j − 1] is Q[j + 1] in 1-based orbit positions: "x_{p−1}'s
+        // orbit is one of the first j".
+        let ladder: Vec<Term> = (1..k).map(|_| e.aux(REVERSE)).collect();
+        for (w, pt) in pts.iter().enumerate() {
+            let o = pos[min[w]];
+            if o + 1 < k {
+                let xl = points::at(e, last, pt);
+                e.clause(&[!xl, ladder[o]]);
+            }
+        }
+        for j in 1..k - 1 {
+            e.clause(&[!ladder[j - 1], ladder[j]]);
+        }
+        let x0 = points::at(e, 0, &pts[*r]);
+        for j in 1..k {
+            let z = least[j];
+            if z != *r {
+                let x1 = points::at(e, 1, &pts[z]);
+                e.clause(&[!x0, !x1, !ladder[j - 1]]);
+            }
+        }
+    }
+}
+
 /// The order `≺` of the topical sorting step: higher type rank first, then
 /// smaller index. `ord[z]` is the position of grid point `z` (by index) in it.
 pub fn sort_order(g: &Grid) -> Vec<usize> {

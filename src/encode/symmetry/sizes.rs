@@ -278,6 +278,28 @@ pub fn reverse(classes: &[(usize, Vec<usize>)]) -> Size {
     Size::clauses(clauses)
 }
 
+/// Size of `sym-reverse` as a ladder ([`super::add_reverse_ladder`]): for
+/// each `r` whose stabiliser has `k ≥ 2` orbits, `k − 1` variables and
+/// `(N − c_k) + (k − 2) + (k − 1 − [r's orbit is not the first])` clauses,
+/// `c_k` the size of the last orbit.
+pub fn reverse_ladder(classes: &[(usize, Vec<usize>)]) -> Size {
+    let (mut vars, mut clauses) = (0u64, 0u64);
+    for (r, min) in classes {
+        let n = min.len() as u64;
+        let least: Vec<usize> = (0..min.len()).filter(|&z| min[z] == z).collect();
+        let k = least.len() as u64;
+        if k < 2 {
+            continue;
+        }
+        let last = *least.last().expect("k ≥ 2");
+        let c_k = min.iter().filter(|&&m| m == last).count() as u64;
+        let r_first = least[0] == *r;
+        vars += k - 1;
+        clauses += (n - c_k) + (k - 2) + (k - 1 - u64::from(!r_first));
+    }
+    Size::new(vars, clauses)
+}
+
 /// Size of `sym-sort` ([`super::add_sort`]).
 pub fn sort(q: &Question) -> Size {
     let p = q.period as u64;

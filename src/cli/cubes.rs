@@ -472,6 +472,10 @@ pub struct MergeArgs {
     /// Print one JSON object instead of text.
     #[arg(long)]
     json: bool,
+    /// Check the cube proofs on N threads (default: every core). Each holds
+    /// one cube's CNF in memory at a time.
+    #[arg(long, value_name = "N")]
+    jobs: Option<usize>,
     #[command(flatten)]
     progress: ProgressArgs,
 }
@@ -484,6 +488,11 @@ pub fn run_merge(a: MergeArgs) -> Outcome {
                 "--proof applies to grid splits; a real-space split's certificate is the \
                  folder itself (every cube's lemmas and LRAT proof, and the coverage proof)"
                     .into(),
+            ));
+        }
+        if a.jobs.is_some() {
+            return Err(Error::Options(
+                "--jobs applies to grid splits; a real-space split is merged on one thread".into(),
             ));
         }
         return super::real::merge(
@@ -505,6 +514,7 @@ pub fn run_merge(a: MergeArgs) -> Outcome {
         a.trust_solver,
         a.proof_encoding,
         a.progress.mode(a.json),
+        a.jobs.unwrap_or_else(orbitcnf::pool::default_jobs),
     )?;
     print_either(
         a.json,

@@ -28,6 +28,7 @@ use crate::artifact::write_atomically;
 use crate::cnf::Cnf;
 use crate::decide;
 use crate::dimacs::{CnfFile, VERSION};
+use crate::encode::EncodeOptions;
 use crate::error::{Error, Result};
 use crate::evidence;
 use crate::grid::Point;
@@ -651,7 +652,9 @@ fn list(v: &[usize]) -> String {
 /// `combined`, also writes one LRAT proof of `formula.cnf` there, in the
 /// encoding `format` (when every cube has a proof), and checks it. Reports
 /// how far it got through `progress` (thousands of cube proofs take
-/// minutes to re-check, and the assembled proof as long again).
+/// minutes to re-check, and the assembled proof as long again). The cube
+/// proofs are checked on `jobs` threads (at least one), each holding one
+/// cube's CNF at a time.
 ///
 /// # Errors
 /// A split that fails [`verify_split`]; unreadable result files;
@@ -663,6 +666,7 @@ pub fn merge(
     accept_claims: bool,
     format: LratFormat,
     progress: ProgressMode,
+    jobs: usize,
 ) -> Result<MergeReport> {
     let mut progress = Progress::new(progress);
     let m = SplitManifest::read(dir)?;
@@ -687,86 +691,56 @@ pub fn merge(
     };
     let mut proofs: Vec<(Cube, PathBuf)> = Vec::new();
     let start = Instant::now();
-    for (read, entry) in m.cubes.iter().enumerate() {
-        let i = entry.cube.index;
+    // The proofs are checked on `jobs` threads; the report is filled in
+    // cube order afterwards, so it does not depend on their timing.
+    let mut checked: Vec<Option<Checked>> = vec![None; m.cubes.len()];
+    let stop = std::sync::atomic::AtomicBool::new(false);
+    let work = |k: usize| check_result(dir, &m.cubes[k], &q, &m.options, &enc.cnf, accept_claims);
+    crate::pool::run(m.cubes.len(), jobs, &stop, work, |event, state| {
+        if let crate::pool::Event::Finished(k, c) = event {
+            checked[k] = Some(c);
+        }
         progress.status(|| {
             format!(
-                "merge: {read} of {} cube results read, {} proofs checked ({})",
-                m.cubes.len(),
-                report.certified.len(),
+                "merge: {} of {} cube results checked on {} ({})",
+                state.finished,
+                state.total,
+                crate::progress::threads_words(jobs.max(1).min(state.total.max(1))),
                 duration_words(start.elapsed().as_secs_f64())
             )
         });
-        let pending = |state: &str, reason: String| Pending {
-            index: i,
-            state: state.into(),
-            reason,
-        };
-        let Some(r) = result_or_pending(read_result(dir, i), i, &mut report.pending) else {
+    });
+    for (entry, c) in m.cubes.iter().zip(checked) {
+        let i = entry.cube.index;
+        let Some(c) = c else {
+            // Unreachable: the pool runs every task unless stopped, and
+            // nothing stops it; counted as pending all the same.
+            report.pending.push(Pending {
+                index: i,
+                state: "missing".into(),
+                reason: "not checked".into(),
+            });
             continue;
         };
-        report.solve_seconds += r.seconds + r.handed_off_after.unwrap_or(0.0);
-        if r.cube_sha256 != entry.digest() {
-            report.pending.push(pending(
-                "rejected",
-                "the result is for a different cube file (a stale result?)".into(),
-            ));
-            continue;
-        }
-        match r.status {
-            CubeStatus::Feasible => {
-                let Some(orbit) = r.orbit.clone() else {
-                    report
-                        .pending
-                        .push(pending("rejected", "feasible without an orbit".into()));
-                    continue;
-                };
-                match evidence::check_witness(&q, &m.options, &orbit, r.map.as_deref()) {
-                    Ok(w) => {
-                        if report.orbit.is_none() {
-                            report.feasible_cube = Some(i);
-                            report.orbit = Some(orbit);
-                            report.map = r.map.clone();
-                            report.check = Some(w.orbit);
-                            report.map_check = w.map;
-                        }
-                    }
-                    Err(e) => report.pending.push(pending("rejected", e.to_string())),
+        report.solve_seconds += c.seconds;
+        match c.kind {
+            CheckedKind::Pending(p) => report.pending.push(p),
+            CheckedKind::Uncertified => report.uncertified.push(i),
+            CheckedKind::Certified(path) => {
+                report.certified.push(i);
+                if combined.is_some() {
+                    proofs.push((entry.cube.clone(), path));
                 }
             }
-            CubeStatus::Infeasible => match &r.proof {
-                None if accept_claims => report.uncertified.push(i),
-                None => report.pending.push(pending(
-                    "unchecked",
-                    format!(
-                        "refuted only on the word of {} (no proof); solve it again with a proof, \
-                         or accept unchecked claims",
-                        r.solver
-                    ),
-                )),
-                Some(p) => {
-                    let cube_cnf = cube_cnf(&enc.cnf, &entry.cube);
-                    match check_cube_proof(dir, i, p, &cube_cnf) {
-                        Ok(path) => {
-                            report.certified.push(i);
-                            if combined.is_some() {
-                                proofs.push((entry.cube.clone(), path));
-                            }
-                        }
-                        Err(e) => report.pending.push(pending("rejected", e.to_string())),
-                    }
+            CheckedKind::Feasible { orbit, map, check } => {
+                if report.orbit.is_none() {
+                    report.feasible_cube = Some(i);
+                    report.orbit = Some(orbit);
+                    report.map = map;
+                    report.check = Some(check.orbit);
+                    report.map_check = check.map;
                 }
-            },
-            CubeStatus::Unknown => report.pending.push(pending(
-                "unknown",
-                r.reason.clone().unwrap_or_else(|| "no answer".into()),
-            )),
-            CubeStatus::Error => report.pending.push(pending(
-                "error",
-                r.reason
-                    .clone()
-                    .unwrap_or_else(|| "the solver failed".into()),
-            )),
+            }
         }
     }
     if report.orbit.is_some() {
@@ -794,6 +768,113 @@ pub fn merge(
     }
     progress.clear();
     Ok(report)
+}
+
+/// What [`merge`] made of one cube's result file.
+#[derive(Clone, Debug)]
+struct Checked {
+    /// The result's solving seconds (with those before a hand-off); 0
+    /// without a result.
+    seconds: f64,
+    kind: CheckedKind,
+}
+
+#[derive(Clone, Debug)]
+enum CheckedKind {
+    /// A feasible cube whose orbit (and map) the verifier accepted.
+    Feasible {
+        orbit: Vec<Point>,
+        map: Option<Vec<(Point, Point)>>,
+        check: evidence::WitnessCheck,
+    },
+    /// Refuted, with its proof re-checked now (the proof's path).
+    Certified(PathBuf),
+    /// Refuted on a solver's word, and such claims are accepted.
+    Uncertified,
+    /// Not decided, or its evidence rejected.
+    Pending(Pending),
+}
+
+/// Reads the result of cube `entry` and checks its evidence: the orbit
+/// with the independent verifier, the proof against `F` with the cube's
+/// units. The heavy part of [`merge`], run on its threads.
+fn check_result(
+    dir: &Path,
+    entry: &CubeEntry,
+    q: &Question,
+    options: &EncodeOptions,
+    formula: &Cnf,
+    accept_claims: bool,
+) -> Checked {
+    let i = entry.cube.index;
+    let pending = |state: &str, reason: String| Checked {
+        seconds: 0.0,
+        kind: CheckedKind::Pending(Pending {
+            index: i,
+            state: state.into(),
+            reason,
+        }),
+    };
+    let mut missing = Vec::new();
+    let Some(r) = result_or_pending(read_result(dir, i), i, &mut missing) else {
+        let p = missing
+            .pop()
+            .expect("result_or_pending adds one when it gives none");
+        return pending(&p.state, p.reason);
+    };
+    let seconds = r.seconds + r.handed_off_after.unwrap_or(0.0);
+    let kind = if r.cube_sha256 != entry.digest() {
+        pending(
+            "rejected",
+            "the result is for a different cube file (a stale result?)".into(),
+        )
+        .kind
+    } else {
+        match r.status {
+            CubeStatus::Feasible => match r.orbit {
+                None => pending("rejected", "feasible without an orbit".into()).kind,
+                Some(orbit) => {
+                    match evidence::check_witness(q, options, &orbit, r.map.as_deref()) {
+                        Ok(check) => CheckedKind::Feasible {
+                            orbit,
+                            map: r.map,
+                            check,
+                        },
+                        Err(e) => pending("rejected", e.to_string()).kind,
+                    }
+                }
+            },
+            CubeStatus::Infeasible => match &r.proof {
+                None if accept_claims => CheckedKind::Uncertified,
+                None => {
+                    pending(
+                        "unchecked",
+                        format!(
+                            "refuted only on the word of {} (no proof); solve it again with a \
+                             proof, or accept unchecked claims",
+                            r.solver
+                        ),
+                    )
+                    .kind
+                }
+                Some(p) => match check_cube_proof(dir, i, p, &cube_cnf(formula, &entry.cube)) {
+                    Ok(path) => CheckedKind::Certified(path),
+                    Err(e) => pending("rejected", e.to_string()).kind,
+                },
+            },
+            CubeStatus::Unknown => {
+                pending("unknown", r.reason.unwrap_or_else(|| "no answer".into())).kind
+            }
+            CubeStatus::Error => {
+                pending(
+                    "error",
+                    r.reason.unwrap_or_else(|| "the solver failed".into()),
+                )
+                .kind
+            }
+        }
+    };
+    Checked { seconds, kind }
 }
 
 /// `F` with the cube's units, as [`super::cube_encoding`] builds it.

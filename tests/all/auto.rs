@@ -158,7 +158,7 @@ fn a_compact_split_with_the_automatic_cubes_merges_to_the_verdict_of_decide() {
         .code(INFEASIBLE)
         .stdout_has("all 14 cubes refuted")
         .stderr_has("orbitcnf: progress: ")
-        .stderr_has("merge: 0 of 14 cube results read")
+        .stderr_has("merge: 0 of 14 cube results checked on")
         .stderr_has("merge: checking the assembled proof");
     dir.orbitcnf()
         .args(["verify-proof", "sp/formula.cnf", "all.lrat"])

@@ -166,6 +166,61 @@ fn split_writes_a_checked_coverage_proof_and_hashes_every_file() {
         .error_with(&["already holds a split"]);
 }
 
+/// `merge --jobs N` checks the cube proofs on N threads and reports exactly
+/// what one thread reports: the same verdict, the same pending cubes in the
+/// same order (here a missing result and a proof changed by one byte), the
+/// same certified list.
+#[test]
+fn merge_on_several_threads_reports_what_one_thread_reports() {
+    let dir = TestDir::new();
+    let q = Q::cube(-1, 1, 3, 9);
+    let n = cube_count(&split(&dir, &q, 8, "sp"));
+    assert!(n >= 4, "{n} cubes");
+    dir.orbitcnf()
+        .args(["run-cube", "sp", &format!("0..{}", n - 1), "-q"])
+        .run()
+        .code(0);
+    let merged = |jobs: &str| {
+        let run = dir
+            .orbitcnf()
+            .args(["merge", "sp", "--json", "--jobs", jobs])
+            .run();
+        (run.code, run.json())
+    };
+    let (code, whole) = merged("1");
+    assert_eq!(code, Some(INFEASIBLE), "{whole}");
+    assert_eq!(merged("3"), (code, whole));
+    // One result gone, one proof changed: both pending, in cube order.
+    std::fs::remove_file(dir.path("sp/results/cube-0001.json")).expect("remove a result");
+    let proof = dir.path(&format!("sp/results/cube-{:04}.lrat", n - 1));
+    let mut bytes = std::fs::read(&proof).expect("read a proof");
+    let last = bytes.len() - 2;
+    bytes[last] ^= 1;
+    std::fs::write(&proof, bytes).expect("write the proof back");
+    let (code, one) = merged("1");
+    assert_eq!(code, Some(UNKNOWN), "{one}");
+    let states: Vec<(u64, String)> = one["pending"]
+        .as_array()
+        .expect("a pending list")
+        .iter()
+        .map(|p| {
+            (
+                p["index"].as_u64().unwrap(),
+                p["state"].as_str().unwrap().to_string(),
+            )
+        })
+        .collect();
+    assert_eq!(
+        states,
+        [
+            (1, "missing".to_string()),
+            (n as u64 - 1, "rejected".to_string())
+        ],
+        "{one}"
+    );
+    assert_eq!(merged("2"), (code, one));
+}
+
 /// GNU parallel with a worker that dies (SIGKILL) on its first attempt at cube 2.
 #[test]
 fn parallel_with_a_killed_worker_then_rerun_refutes_every_cube() {

@@ -343,6 +343,27 @@ fn m2_n4_period_18_is_refuted_in_blocks_of_cubes() {
     );
 }
 
+/// {−2,…,2}^4, p = 22, refuted by computation on 2026-12-04 (README, "What
+/// is proven and what is open"): 13,703 whole-profile cubes, the first
+/// campaign on the formula whose reversal break is a ladder. As for p = 18,
+/// the bundled solver gets each cube for 60 s and hands what it leaves open
+/// to CaDiCaL, whose DRAT proofs `rate` turns into LRAT for orbitcnf's
+/// checker. Nothing published settles it; the expectation is orbitcnf's own
+/// certified answer.
+#[test]
+#[ignore = "about 45 minutes on 2 cores and 5.5 GB of disk (13,703 whole-profile cubes, one handed off to CaDiCaL and rate in the run of record), then a 1-minute merge; run on purpose"]
+fn m2_n4_period_22_is_refuted_in_blocks_of_cubes() {
+    let dir = TestDir::new();
+    refuted_in_blocks(
+        &dir,
+        &Q::cube(-2, 2, 4, 22),
+        20_000,
+        13_703,
+        &[],
+        Some("60"),
+    );
+}
+
 /// `split` of `q` into whole-profile cubes (asking for `requested`; there
 /// must be `cubes`), `run-cube` with binary proofs on blocks of at most 50
 /// cubes under GNU parallel, except the cubes in `hard`, which CaDiCaL

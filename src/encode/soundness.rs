@@ -386,7 +386,7 @@ fn every_topical_brute_force_cycle_has_an_image_satisfying_all_breaks() {
 
 /// Runs `f` with `sym-reverse` encoded as a ladder on every box, however
 /// small ([`super::options::FORCE_LADDER`]).
-fn with_ladder<R>(f: impl FnOnce() -> R) -> R {
+pub(super) fn with_ladder<R>(f: impl FnOnce() -> R) -> R {
     super::options::FORCE_LADDER.with(|c| c.set(true));
     let r = f();
     super::options::FORCE_LADDER.with(|c| c.set(false));

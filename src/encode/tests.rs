@@ -220,6 +220,31 @@ fn every_row_of_every_table_is_exact_on_every_question() {
     assert!(checked > 3000, "{checked} encodings");
 }
 
+/// The ladder row of `sym-reverse` shares its name with the ternary row, so
+/// the test above counts either; this one forces the ladder on the small
+/// questions (it is kept only on large boxes) and checks its size row on
+/// every one where step 6 acts.
+#[test]
+fn the_ladder_row_of_step_six_is_exact_on_every_question() {
+    let laddered = super::soundness::with_ladder(|| {
+        let mut laddered = 0;
+        for question in cycle_questions() {
+            for o in option_sets() {
+                let e = assert_estimate_is_exact(&question, &o);
+                if e.options.reverse_ladder
+                    && e.families
+                        .iter()
+                        .any(|f| f.family == "sym-reverse" && f.clauses > 0)
+                {
+                    laddered += 1;
+                }
+            }
+        }
+        laddered
+    });
+    assert!(laddered > 100, "{laddered} encodings with the ladder");
+}
+
 #[test]
 fn base_sizes_are_the_plain_cycle_formulas_and_bound_the_full_map() {
     for question in cycle_questions() {

@@ -401,15 +401,11 @@ pub(super) fn with_ladder<R>(f: impl FnOnce() -> R) -> R {
 fn brute_force_agrees_with_the_ladder_form_of_step_six() {
     let combos = [
         EncodeOptions::default(),
+        // Every break, no redundant family.
         EncodeOptions {
-            count: false,
-            packing: false,
-            classes: false,
-            nested: false,
-            bicliques: false,
-            subbox: false,
-            gaps: false,
-            ..EncodeOptions::default()
+            symmetry: EncodeOptions::default().symmetry,
+            reverse_ladder: true,
+            ..EncodeOptions::plain()
         },
     ];
     let mut grids = boxes(1, 6);

@@ -508,6 +508,11 @@ pub fn run_merge(a: MergeArgs) -> Outcome {
         print(&idx.iter().map(|i| format!("{i}\n")).collect::<String>())?;
         return Ok(0);
     }
+    if a.jobs == Some(0) {
+        return Err(Error::Options(
+            "merge needs at least one thread to check the cube proofs".into(),
+        ));
+    }
     let r = cube_run::merge(
         &a.dir,
         a.proof.as_deref(),

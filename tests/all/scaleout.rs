@@ -187,6 +187,10 @@ fn merge_on_several_threads_reports_what_one_thread_reports() {
             .run();
         (run.code, run.json())
     };
+    dir.orbitcnf()
+        .args(["merge", "sp", "--jobs", "0"])
+        .run()
+        .error_with(&["at least one thread"]);
     let (code, whole) = merged("1");
     assert_eq!(code, Some(INFEASIBLE), "{whole}");
     assert_eq!(merged("3"), (code, whole));

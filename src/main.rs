@@ -11,6 +11,13 @@ use clap::{Parser, Subcommand};
 use cli::{EXIT_CODES, bench, check, cubes, decide, report, sweep};
 use orbitcnf::Error;
 
+/// mimalloc instead of the system allocator: every cube of a block builds
+/// and drops a solver and its self-checker over the whole formula, millions
+/// of small allocations, and mimalloc measured about 15% less CPU on such
+/// cubes (`Cargo.toml` has the measurement).
+#[global_allocator]
+static ALLOC: mimalloc::MiMalloc = mimalloc::MiMalloc;
+
 /// Decide which periods sup-norm nonexpansive maps have on integer grids.
 ///
 /// For a box D of integer points, a period p asks: is there a map f: D → D

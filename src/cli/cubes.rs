@@ -271,6 +271,13 @@ pub struct RunCubeArgs {
     /// cube to COMMAND (as decide --real).
     #[arg(long, value_name = "SECS", value_parser = parse_seconds)]
     handoff_after: Option<Duration>,
+    /// Grid splits: solve each cube with a fresh bundled solver. By default
+    /// one solver holds the formula for the whole range and assumes one cube
+    /// after another, keeping what it learned (each refuted cube still gets
+    /// its own LRAT proof, checked before its result is written); on the
+    /// cubes of one split that is many times faster.
+    #[arg(long)]
+    fresh_solver: bool,
 }
 
 /// Runs `run-cube`.
@@ -327,6 +334,41 @@ pub fn run_cube(a: RunCubeArgs) -> Outcome {
     let mut runner = cube_run::CubeRunner::new(&a.dir)?;
     if last >= runner.cubes() {
         return Err(cube_run::out_of_range(&a.dir, last, runner.cubes()));
+    }
+    let bundled_first = a.solver.solver.trim() == "bundled" || first_limits.is_some();
+    if !a.fresh_solver && !a.no_certify && bundled_first {
+        let run = cube_run::SequenceRun {
+            per_cube: first_limits.as_ref().map_or(limits.time, |l| l.time),
+            format: a.proof_encoding,
+            force: a.force,
+        };
+        let left = runner.run_sequence(first..=last, &run, |outcome| {
+            let open = matches!(outcome, cube_run::RunOutcome::Solved(r) if r.status == CubeStatus::Unknown);
+            if open && first_limits.is_some() {
+                return Ok(());
+            }
+            print_outcome(a.json, outcome, "")
+        })?;
+        if first_limits.is_none() {
+            return Ok(0);
+        }
+        for index in left {
+            let lrat = cube_run::lrat_target(&a.dir, index);
+            let mut external = a.solver.external(true)?;
+            if let Some(p) = external.as_mut().and_then(|e| e.proof.as_mut()) {
+                p.keep_lrat = Some(lrat.clone());
+            }
+            let Some(ext) = external.as_mut() else {
+                break;
+            };
+            let after = cube_run::read_result(&a.dir, index)?.map_or(0.0, |r| r.seconds);
+            let note = format!(
+                " (handed off after {after:.2} s without an answer from the bundled solver)"
+            );
+            let outcome = runner.run_after(index, ext, &limits, true, Some(after))?;
+            print_outcome(a.json, &outcome, &note)?;
+        }
+        return Ok(0);
     }
     for index in first..=last {
         let lrat = cube_run::lrat_target(&a.dir, index);

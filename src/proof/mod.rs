@@ -13,6 +13,9 @@
 //!   clause id where it went wrong. It depends only on [`crate::cnf`].
 //! * [`produce::solve_with_proof_sinks`] runs varisat 0.2.2 and writes an
 //!   LRAT proof (through `varisat-lrat`) and/or a DRAT proof of an UNSAT answer.
+//! * [`sequence::solve_in_sequence`] solves many cubes of one formula with
+//!   one varisat solver under assumptions and cuts a standalone LRAT proof
+//!   of each refuted cube's CNF out of the shared proof.
 //! * [`lift`] turns the refutations of cubes into derivations of the cubes'
 //!   negations and assembles them with a coverage proof into one proof.
 //!
@@ -24,6 +27,7 @@
 pub mod lift;
 pub mod lrat;
 pub mod produce;
+pub mod sequence;
 pub mod spool;
 #[cfg(test)]
 mod tests;

@@ -218,7 +218,7 @@ pub fn solve_with_proof_sinks(
 
 /// The first point where reading the clauses in order refutes the CNF, with
 /// the LRAT hints (1-based ids) that refute it.
-fn refuted_while_loading(cnf: &Cnf) -> Option<(ProofRoute, Vec<u64>)> {
+pub(super) fn refuted_while_loading(cnf: &Cnf) -> Option<(ProofRoute, Vec<u64>)> {
     let code = |l: Lit| ((l.var().dimacs() as usize) << 1) | (!l.is_positive()) as usize;
     let mut unit_at: Vec<Option<usize>> = vec![None; 2 * (cnf.num_vars() as usize + 1)];
     for (i, clause) in cnf.clauses().enumerate() {

@@ -7,6 +7,9 @@
 //! A feasible answer's orbit is decoded and verified before it is written.
 //! A back-end failure is written as a result with status `error` (so that
 //! `merge` can list it) and returned as the error.
+//! [`CubeRunner::run_sequence`] solves a range of cubes with one bundled
+//! solver under assumptions ([`crate::proof::sequence`]) and writes the same
+//! results, each refuted cube with its own checked proof.
 //!
 //! [`merge`] first re-checks the split itself ([`super::verify_split`]: a fresh
 //! encoding gives byte-identical `formula.cnf`, cube files and coverage CNF,
@@ -297,6 +300,163 @@ impl<'a> CubeRunner<'a> {
             write_result(dir, r)?;
         }
         Ok(outcome)
+    }
+}
+
+/// The solver name in the results of [`CubeRunner::run_sequence`].
+pub const SEQUENCE_SOLVER: &str = "varisat-0.2.2 (LRAT, one solver for the range)";
+
+/// How [`CubeRunner::run_sequence`] runs.
+#[derive(Clone, Copy, Debug)]
+pub struct SequenceRun {
+    /// Time limit for each cube.
+    pub per_cube: Option<std::time::Duration>,
+    /// The encoding of the cube proofs kept in `results/`.
+    pub format: LratFormat,
+    /// Solve again cubes that already have a final result.
+    pub force: bool,
+}
+
+impl CubeRunner<'_> {
+    /// Solves the cubes `indices` with one bundled solver that holds the
+    /// split's formula and assumes each cube in turn
+    /// ([`crate::proof::sequence`]), and writes each cube's result as
+    /// [`CubeRunner::run`] does: a refuted cube keeps a standalone LRAT proof
+    /// of its own CNF, checked by orbitcnf's checker before the result is
+    /// written; a model is decoded and verified. Cubes with a final result are
+    /// skipped unless `run.force`. `each` gets every outcome as it is known
+    /// (skipped cubes too) and returns the indices of the cubes left unknown,
+    /// in order, when the range is done.
+    ///
+    /// On the cubes of one split this is much faster than a fresh solver per
+    /// cube: a clause learned on one cube often refutes its neighbours at
+    /// once, and the formula is loaded once.
+    ///
+    /// # Errors
+    /// As [`run_cube`]; the errors of `each`.
+    pub fn run_sequence(
+        &mut self,
+        indices: std::ops::RangeInclusive<usize>,
+        run: &SequenceRun,
+        mut each: impl FnMut(&RunOutcome) -> Result<()>,
+    ) -> Result<Vec<usize>> {
+        let n = self.m.cubes.len();
+        if !indices.is_empty() && *indices.end() >= n {
+            return Err(out_of_range(self.dir, *indices.end(), n));
+        }
+        let mut todo = Vec::new();
+        for index in indices {
+            let entry = &self.m.cubes[index];
+            if !run.force
+                && let Ok(Some(r)) = read_result(self.dir, index)
+                && r.status.is_final()
+                && r.cube_sha256 == entry.digest()
+            {
+                each(&RunOutcome::AlreadyDone(r))?;
+                continue;
+            }
+            todo.push((index, entry.cube.lits()));
+        }
+        if todo.is_empty() {
+            return Ok(Vec::new());
+        }
+        if self.formula.is_none() {
+            self.formula = Some(formula_problem(self.dir, &self.m)?);
+        }
+        let f = self.formula.take().expect("read just above");
+        let opts = crate::proof::sequence::SequenceOptions {
+            per_cube: run.per_cube,
+            format: run.format,
+            stop: None,
+        };
+        let mut unknown = Vec::new();
+        let solved =
+            crate::proof::sequence::solve_in_sequence(&f.0.cnf, todo, &opts, |index, s| {
+                let mut found = Found {
+                    answer: Some(s),
+                    proof_target: lrat_target(self.dir, index),
+                };
+                let outcome = self.run_with(index, &mut found, &f)?;
+                if let RunOutcome::Solved(r) = &outcome
+                    && r.status == CubeStatus::Unknown
+                {
+                    unknown.push(index);
+                }
+                each(&outcome)?;
+                Ok(true)
+            });
+        self.formula = Some(f);
+        solved?;
+        Ok(unknown)
+    }
+
+    /// Writes the result of cube `index` from the answer in `found`, with
+    /// the cube's CNF built from `base` (or read from its file).
+    fn run_with(
+        &self,
+        index: usize,
+        found: &mut Found,
+        base: &(CnfFile, String),
+    ) -> Result<RunOutcome> {
+        let entry = &self.m.cubes[index];
+        let (file, cube_name) = match entry.file {
+            Some(_) => cube_problem(self.dir, &self.m, entry)?,
+            None => with_cube(self.dir, base, entry)?,
+        };
+        solve_one(
+            self.dir,
+            entry,
+            &file,
+            &cube_name,
+            found,
+            &Limits::default(),
+        )
+    }
+}
+
+/// The answer the reused solver of [`CubeRunner::run_sequence`] found for
+/// one cube, handed to [`solve_one`] as a back-end's answer; a refutation's
+/// proof is checked here against the cube's CNF, like every back-end's.
+struct Found {
+    answer: Option<crate::proof::sequence::CubeSolved>,
+    proof_target: PathBuf,
+}
+
+impl Backend for Found {
+    fn name(&self) -> String {
+        SEQUENCE_SOLVER.into()
+    }
+
+    fn solve(&mut self, cnf: &Cnf, _limits: &Limits) -> Result<crate::solve::SolveResult> {
+        use crate::proof::sequence::CubeAnswer;
+        let s = self.answer.take().ok_or_else(|| Error::Solver {
+            solver: SEQUENCE_SOLVER.into(),
+            reason: "asked twice for one answer".into(),
+        })?;
+        let stats = crate::solve::SolveStats {
+            solver: SEQUENCE_SOLVER.into(),
+            seconds: s.seconds,
+            conflicts: Some(s.conflicts),
+        };
+        let (outcome, proof) = match s.answer {
+            CubeAnswer::Sat(model) => (Outcome::Sat(model), None),
+            CubeAnswer::Unknown(why) => (Outcome::Unknown(why), None),
+            CubeAnswer::Unsat { proof, .. } => {
+                let tmp = temp_proof_file(Some(&self.proof_target))?;
+                std::fs::write(tmp.path(), &proof).map_err(|e| Error::io(tmp.path(), e))?;
+                let options = LratOptions {
+                    ids_follow_cnf: true,
+                    ..LratOptions::default()
+                };
+                let checked = accept_proof(cnf, tmp, Some(&self.proof_target), &options)?;
+                (Outcome::Unsat, Some(checked.info))
+            }
+        };
+        Ok(crate::solve::SolveResult {
+            outcome,
+            stats,
+            proof,
+        })
     }
 }
 

@@ -989,3 +989,71 @@ fn a_range_of_cubes_in_one_process_merges_to_the_verdict_of_decide() {
             .error_with(&[&needle]);
     }
 }
+
+/// `run-cube DIR A..B` keeps one solver for the range and assumes one cube
+/// after another (`proof::sequence`); `--fresh-solver` gives each cube its
+/// own. On a question with feasible and infeasible cubes both give every
+/// cube the same status, each refuted cube keeps its own proof, which
+/// `merge` re-checks against that cube's CNF, and each feasible cube an
+/// orbit that the test's own verifier accepts.
+#[test]
+fn one_solver_for_a_range_answers_every_cube_as_fresh_solvers_do() {
+    let dir = TestDir::new();
+    for (q, code) in [
+        (Q::cube(-1, 1, 3, 8), FEASIBLE),
+        (Q::cube(0, 3, 3, 10), INFEASIBLE),
+    ] {
+        let mut statuses = Vec::new();
+        for (name, extra) in [("one", None), ("fresh", Some("--fresh-solver"))] {
+            dir.orbitcnf()
+                .arg("split")
+                .args(q.args())
+                .args(["--cubes", "24", "--layout", "compact", "--out", name])
+                .run()
+                .code(0);
+            let n = cube_count(
+                &serde_json::from_str(&dir.read(&format!("{name}/manifest.json"))).unwrap(),
+            );
+            let mut cmd = dir.orbitcnf();
+            cmd.args(["run-cube", name, &format!("0..{}", n - 1), "--json"]);
+            if let Some(x) = extra {
+                cmd.arg(x);
+            }
+            let run = cmd.run();
+            run.code(0);
+            let lines: Vec<Value> = run
+                .stdout
+                .lines()
+                .map(|l| serde_json::from_str(l).expect("one JSON object per line"))
+                .collect();
+            assert_eq!(lines.len(), n);
+            for v in &lines {
+                let one = v["solver"].as_str().unwrap().contains("one solver");
+                assert_eq!(one, extra.is_none(), "{v}");
+                if v["status"] == "feasible" {
+                    let orbit: Vec<Vec<i64>> = serde_json::from_value(v["orbit"].clone()).unwrap();
+                    assert_isometric_cycle(&q.bounds, &orbit, q.period, name);
+                } else {
+                    assert_eq!(v["status"], "infeasible", "{v}");
+                    assert!(v["proof"]["steps"].as_u64().unwrap() > 0, "{v}");
+                }
+            }
+            statuses.push(
+                lines
+                    .iter()
+                    .map(|v| v["status"].clone())
+                    .collect::<Vec<_>>(),
+            );
+            dir.orbitcnf().args(["merge", name]).run().code(code);
+            std::fs::remove_dir_all(dir.path(name)).unwrap();
+        }
+        assert_eq!(statuses[0], statuses[1], "{q:?}");
+        // The feasible question's split has cubes of both kinds.
+        for want in ["feasible", "infeasible"] {
+            assert!(
+                code == INFEASIBLE || statuses[0].iter().any(|s| s == want),
+                "{q:?}: no {want} cube"
+            );
+        }
+    }
+}

@@ -1,7 +1,8 @@
 //! A pool of worker threads for independent tasks: the periods of a sweep
 //! (`spectrum`) and the cubes of `decide --jobs`.
 //!
-//! [`run`] starts `min(jobs, n)` scoped threads. They take the tasks
+//! [`run`] starts `min(jobs, n)` scoped threads ([`run_streams`] too, for
+//! workers that keep state from task to task, such as a solver). They take the tasks
 //! `0..n` in index order, one at a time, and report to the calling thread
 //! over a channel; the workers only compute. Everything with side effects —
 //! storing an answer, checking it against a theorem, reporting progress —
@@ -67,6 +68,31 @@ pub fn run<R: Send>(
     jobs: usize,
     stop: &AtomicBool,
     work: impl Fn(usize) -> R + Sync,
+    handle: impl FnMut(Event<R>, &State),
+) {
+    run_streams(
+        n,
+        jobs,
+        stop,
+        |pull, push| {
+            while let Some(i) = pull() {
+                push(i, work(i));
+            }
+        },
+        handle,
+    );
+}
+
+/// As [`run`], for work that keeps state from one task to the next: each
+/// worker calls `work` once, with `pull`, which hands it the next task
+/// (`None` once every task is taken or `stop` is set), and `push`, which
+/// reports a task's result. A worker must push every task it pulled.
+/// The cube solvers use this to keep one solver per thread.
+pub fn run_streams<R: Send>(
+    n: usize,
+    jobs: usize,
+    stop: &AtomicBool,
+    work: impl Fn(&mut dyn FnMut() -> Option<usize>, &mut dyn FnMut(usize, R)) + Sync,
     mut handle: impl FnMut(Event<R>, &State),
 ) {
     let next = AtomicUsize::new(0);
@@ -81,43 +107,87 @@ pub fn run<R: Send>(
             let tx = tx.clone();
             let (next, work) = (&next, &work);
             scope.spawn(move || {
-                while !stop.load(Ordering::SeqCst) {
+                let mut pull = || {
+                    if stop.load(Ordering::SeqCst) {
+                        return None;
+                    }
                     let i = next.fetch_add(1, Ordering::SeqCst);
                     if i >= n || tx.send(Event::Started(i)).is_err() {
-                        break;
+                        return None;
                     }
-                    if tx.send(Event::Finished(i, work(i))).is_err() {
-                        break;
-                    }
-                }
+                    Some(i)
+                };
+                let mut push = |i, r| {
+                    let _ = tx.send(Event::Finished(i, r));
+                };
+                work(&mut pull, &mut push);
             });
         }
         drop(tx);
-        loop {
-            let event = match rx.recv_timeout(TICK) {
-                Ok(e) => e,
-                Err(mpsc::RecvTimeoutError::Timeout) => Event::Tick,
-                Err(mpsc::RecvTimeoutError::Disconnected) => break,
-            };
-            match &event {
-                Event::Started(i) => {
-                    state.running.insert(*i, Instant::now());
-                    state.queued -= 1;
-                }
-                Event::Finished(i, _) => {
-                    state.running.remove(i);
-                    state.finished += 1;
-                }
-                Event::Tick => {}
-            }
-            handle(event, &state);
-        }
+        deliver(&rx, &mut state, &mut handle);
     });
+}
+
+/// Hands the workers' events to `handle` until every worker has finished.
+fn deliver<R>(
+    rx: &mpsc::Receiver<Event<R>>,
+    state: &mut State,
+    handle: &mut impl FnMut(Event<R>, &State),
+) {
+    loop {
+        let event = match rx.recv_timeout(TICK) {
+            Ok(e) => e,
+            Err(mpsc::RecvTimeoutError::Timeout) => Event::Tick,
+            Err(mpsc::RecvTimeoutError::Disconnected) => break,
+        };
+        match &event {
+            Event::Started(i) => {
+                state.running.insert(*i, Instant::now());
+                state.queued -= 1;
+            }
+            Event::Finished(i, _) => {
+                state.running.remove(i);
+                state.finished += 1;
+            }
+            Event::Tick => {}
+        }
+        handle(event, state);
+    }
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn every_streamed_task_runs_once_and_results_reach_the_caller() {
+        for jobs in [1, 3, 20] {
+            let stop = AtomicBool::new(false);
+            let mut got = vec![None; 10];
+            run_streams(
+                10,
+                jobs,
+                &stop,
+                |pull, push| {
+                    // Each worker keeps a running total, as a solver keeps
+                    // what it learned.
+                    let mut seen = 0;
+                    while let Some(i) = pull() {
+                        seen += 1;
+                        push(i, (i * i, seen));
+                    }
+                },
+                |e, s| {
+                    if let Event::Finished(i, (r, _)) = e {
+                        assert!(got[i].replace(r).is_none(), "task {i} twice");
+                        assert!(!s.running.contains_key(&i));
+                    }
+                },
+            );
+            let want: Vec<_> = (0..10).map(|i| Some(i * i)).collect();
+            assert_eq!(got, want, "{jobs} jobs");
+        }
+    }
 
     #[test]
     fn every_task_runs_once_and_results_reach_the_caller() {

@@ -71,6 +71,10 @@ pub const RECORD_LIMIT: usize = 128 << 20;
 pub struct SequenceOptions<'s> {
     /// Time limit for each cube, counted from the start of its solve.
     pub per_cube: Option<Duration>,
+    /// A deadline for the whole sequence: a cube still open then is
+    /// unknown, and so is every later cube (each is tried once the deadline
+    /// has passed, and stops at its first step).
+    pub deadline: Option<Instant>,
     /// The encoding of the proofs handed out.
     pub format: LratFormat,
     /// Set by another thread to abandon the cube being solved (it is then
@@ -179,7 +183,10 @@ pub fn solve_in_sequence<K>(
             let start = Instant::now();
             {
                 let mut r = record.borrow_mut();
-                r.deadline = opts.per_cube.map(|t| start + t);
+                r.deadline = match (opts.per_cube.map(|t| start + t), opts.deadline) {
+                    (Some(a), Some(b)) => Some(a.min(b)),
+                    (a, b) => a.or(b),
+                };
                 r.failed = None;
                 r.expired = false;
                 r.learned_before = r.ids.len();
@@ -205,11 +212,13 @@ pub fn solve_in_sequence<K>(
                     }
                     Ok(false) => (r.cube_proof(m, &cube, opts.format)?, false),
                     Err(_) if r.expired => {
+                        let stopped = opts.stop.is_some_and(|s| s.load(Ordering::Relaxed));
                         let why = match opts.per_cube {
-                            Some(t) if r.deadline.is_some_and(|d| Instant::now() >= d) => {
+                            _ if stopped => "stopped".to_string(),
+                            Some(t) if opts.deadline.is_none_or(|d| start + t <= d) => {
                                 format!("time limit of {:.1} s reached", t.as_secs_f64())
                             }
-                            _ => "stopped".to_string(),
+                            _ => "time limit reached".to_string(),
                         };
                         (CubeAnswer::Unknown(why), true)
                     }

@@ -216,15 +216,6 @@ pub fn solve_cubes(
             conflicts.load(Ordering::Relaxed)
         )
     };
-    let work = |i: usize| {
-        let run = solve_cube(&enc.cnf, &cubes[i], deadline, opts, &stop, &conflicts);
-        if matches!(run, CubeRun::Sat(_))
-            || matches!(&run, CubeRun::HandedOff(r) if matches!(**r, CubeRun::Sat(_)))
-        {
-            stop.store(true, Ordering::Relaxed);
-        }
-        run
-    };
     let mut handed_off = 0usize;
     // Each refuted cube's lifted proof moves into one spool as it comes in,
     // so that open files do not grow with the number of cubes
@@ -235,7 +226,7 @@ pub fn solve_cubes(
         None
     };
     let mut slots: Vec<Option<usize>> = vec![None; n];
-    pool::run(n, threads, &stop, work, |event, state| match event {
+    let handler = |event: Event<CubeRun>, state: &pool::State| match event {
         Event::Finished(i, run) => {
             progress.event(|| {
                 format!(
@@ -268,12 +259,37 @@ pub fn solve_cubes(
         Event::Started(_) | Event::Tick => {
             progress.status(|| format!("decide: {}", state_words(state)));
         }
-    });
+    };
+    if opts.certify {
+        // One solver per thread, reused from cube to cube (`proof::sequence`).
+        let stream = |pull: &mut dyn FnMut() -> Option<usize>,
+                      push: &mut dyn FnMut(usize, CubeRun)| {
+            stream_cubes(
+                &enc.cnf, cubes, deadline, opts, &stop, &conflicts, pull, push,
+            );
+        };
+        pool::run_streams(n, threads, &stop, stream, handler);
+    } else {
+        let work = |i: usize| {
+            let run = solve_cube(&enc.cnf, &cubes[i], deadline, opts, &stop, &conflicts);
+            if matches!(run, CubeRun::Sat(_))
+                || matches!(&run, CubeRun::HandedOff(r) if matches!(**r, CubeRun::Sat(_)))
+            {
+                stop.store(true, Ordering::Relaxed);
+            }
+            run
+        };
+        pool::run(n, threads, &stop, work, handler);
+    }
     progress.clear();
     let size = SizeStats::of(&enc.cnf, enc.families.clone(), encode_seconds);
     let solver = format!(
         "{NAME}{}, {n} cubes on {}{}",
-        if opts.certify { " (LRAT)" } else { "" },
+        if opts.certify {
+            " (LRAT, one solver per thread)"
+        } else {
+            ""
+        },
         threads_words(threads),
         match &opts.handoff {
             Some(h) => format!(
@@ -403,6 +419,103 @@ fn lifted(
     };
     match lift() {
         Ok(l) => CubeRun::Unsat(Some(l)),
+        Err(e) => CubeRun::Failed(e),
+    }
+}
+
+/// Solves the cubes that `pull` hands out, one after another, with one
+/// bundled solver under assumptions ([`crate::proof::sequence`]), and
+/// pushes each cube's run: a refutation's proof is checked against the
+/// cube's CNF and lifted, as a fresh solver's is; with a hand-off, a cube
+/// left open after [`CubeHandoff::after`] goes to the external solver on
+/// this thread before the next cube is pulled. A satisfiable cube sets
+/// `stop`. Every pulled cube is pushed, the solver failing or not.
+#[allow(clippy::too_many_arguments)]
+fn stream_cubes(
+    f: &Cnf,
+    cubes: &[Cube],
+    deadline: Option<Instant>,
+    opts: &JobsOptions,
+    stop: &AtomicBool,
+    conflicts: &Arc<AtomicU64>,
+    pull: &mut dyn FnMut() -> Option<usize>,
+    push: &mut dyn FnMut(usize, CubeRun),
+) {
+    use crate::proof::sequence::{CubeAnswer, SequenceOptions, solve_in_sequence};
+    let open = std::cell::RefCell::new(Vec::new());
+    let pulled = std::iter::from_fn(|| {
+        let i = pull()?;
+        open.borrow_mut().push(i);
+        Some((i, cubes[i].lits()))
+    });
+    let seq = SequenceOptions {
+        per_cube: opts.handoff.as_ref().map(|h| h.after),
+        deadline,
+        format: LratFormat::Binary,
+        stop: Some(stop),
+    };
+    let solved = solve_in_sequence(f, pulled, &seq, |i, s| {
+        conflicts.fetch_add(s.conflicts, Ordering::Relaxed);
+        open.borrow_mut().retain(|&j| j != i);
+        let cube = &cubes[i];
+        let run = match s.answer {
+            CubeAnswer::Sat(m) => CubeRun::Sat(m),
+            CubeAnswer::Unsat { proof, .. } => checked_and_lifted(f, cube, opts, &proof),
+            CubeAnswer::Unknown(_) if stop.load(Ordering::Relaxed) => {
+                CubeRun::Unknown("stopped: another cube is satisfiable".into())
+            }
+            CubeAnswer::Unknown(_) if deadline.is_some_and(|d| Instant::now() >= d) => {
+                CubeRun::Unknown("time limit reached".into())
+            }
+            CubeAnswer::Unknown(why) => match &opts.handoff {
+                Some(h) => {
+                    let cnf = super::run::cube_cnf(f, cube);
+                    CubeRun::HandedOff(Box::new(solve_cube_external(
+                        f, &cnf, cube, deadline, opts, h,
+                    )))
+                }
+                None => CubeRun::Unknown(why),
+            },
+        };
+        if matches!(run, CubeRun::Sat(_))
+            || matches!(&run, CubeRun::HandedOff(r) if matches!(**r, CubeRun::Sat(_)))
+        {
+            stop.store(true, Ordering::Relaxed);
+        }
+        push(i, run);
+        Ok(true)
+    });
+    let left = open.take();
+    if let Err(e) = solved {
+        let mut e = Some(e);
+        for i in left {
+            let run = match e.take() {
+                Some(e) => CubeRun::Failed(e),
+                None => CubeRun::Unknown("not solved: the solver failed on an earlier cube".into()),
+            };
+            push(i, run);
+        }
+    } else {
+        for i in left {
+            push(i, CubeRun::Unknown("stopped".into()));
+        }
+    }
+}
+
+/// Checks the reused solver's proof of cube `cube` against the cube's CNF
+/// with orbitcnf's checker, then lifts it.
+fn checked_and_lifted(f: &Cnf, cube: &Cube, opts: &JobsOptions, proof: &[u8]) -> CubeRun {
+    let check = || -> Result<crate::solve::refute::CheckedProof> {
+        let tmp = temp_proof_file(opts.lrat.as_deref())?;
+        std::fs::write(tmp.path(), proof).map_err(|e| Error::io(tmp.path(), e))?;
+        let options = LratOptions {
+            ids_follow_cnf: true,
+            ..LratOptions::default()
+        };
+        accept_proof(&super::run::cube_cnf(f, cube), tmp, None, &options)
+    };
+    match check() {
+        Ok(checked) => lifted(f, cube, opts, || checked.open()),
         Err(e) => CubeRun::Failed(e),
     }
 }

@@ -366,6 +366,7 @@ impl CubeRunner<'_> {
         let f = self.formula.take().expect("read just above");
         let opts = crate::proof::sequence::SequenceOptions {
             per_cube: run.per_cube,
+            deadline: None,
             format: run.format,
             stop: None,
         };

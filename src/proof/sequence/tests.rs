@@ -45,6 +45,7 @@ fn random_cubes(vars: u32, len: usize, count: usize, seed: u64) -> Vec<Vec<Lit>>
 fn run_and_check(f: &Cnf, cubes: &[Vec<Lit>], format: LratFormat) -> (usize, usize) {
     let opts = SequenceOptions {
         per_cube: None,
+        deadline: None,
         format,
         stop: None,
     };
@@ -145,6 +146,7 @@ fn a_cube_out_of_time_is_unknown_and_the_next_cubes_are_still_answered() {
     let hard = php(9, 8);
     let opts = SequenceOptions {
         per_cube: Some(Duration::from_millis(50)),
+        deadline: None,
         format: LratFormat::Binary,
         stop: None,
     };
@@ -172,6 +174,7 @@ fn the_stop_flag_and_the_callback_end_the_sequence() {
     let stop = AtomicBool::new(false);
     let opts = SequenceOptions {
         per_cube: None,
+        deadline: None,
         format: LratFormat::Binary,
         stop: Some(&stop),
     };

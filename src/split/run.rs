@@ -224,6 +224,10 @@ pub struct CubeRunner<'a> {
     dir: &'a Path,
     m: SplitManifest,
     formula: Option<(CnfFile, String)>,
+    /// Whether `results/` was swept of abandoned temporary files. Once per
+    /// runner: the folder holds two files per solved cube, and listing it
+    /// for every cube made a long range quadratic.
+    swept: bool,
 }
 
 impl<'a> CubeRunner<'a> {
@@ -236,6 +240,7 @@ impl<'a> CubeRunner<'a> {
             dir,
             m: SplitManifest::read(dir)?,
             formula: None,
+            swept: false,
         })
     }
 
@@ -294,6 +299,10 @@ impl<'a> CubeRunner<'a> {
             let base = self.formula.as_ref().expect("read just above");
             with_cube(dir, base, entry)?
         };
+        if !self.swept {
+            crate::artifact::sweep_stale(&dir.join(RESULTS_DIR), true);
+            self.swept = true;
+        }
         let mut outcome = solve_one(dir, entry, &file, &cube_name, backend, limits)?;
         if let (Some(after), RunOutcome::Solved(r)) = (handed_off_after, &mut outcome) {
             r.handed_off_after = Some(after);
@@ -359,6 +368,10 @@ impl CubeRunner<'_> {
         }
         if todo.is_empty() {
             return Ok(Vec::new());
+        }
+        if !self.swept {
+            crate::artifact::sweep_stale(&self.dir.join(RESULTS_DIR), true);
+            self.swept = true;
         }
         if self.formula.is_none() {
             self.formula = Some(formula_problem(self.dir, &self.m)?);
@@ -483,7 +496,6 @@ fn solve_one(
 
     let results = dir.join(RESULTS_DIR);
     std::fs::create_dir_all(&results).map_err(|e| Error::io(&results, e))?;
-    crate::artifact::sweep_stale(&results, true);
     let mut result = CubeResult {
         format: RESULT_FORMAT.into(),
         orbitcnf_version: VERSION.into(),

@@ -128,17 +128,34 @@ fn parse_checked(bytes: Vec<u8>, name: std::path::PathBuf) -> Result<(CnfFile, S
 /// `entry` added as unit clauses, as a cube file has them.
 ///
 /// # Errors
-/// [`Error::Parse`] naming the manifest when a literal is not a variable
-/// of the formula.
+/// As [`cube_units`].
 pub fn with_cube(
     dir: &Path,
     base: &(CnfFile, String),
     entry: &CubeEntry,
 ) -> Result<(CnfFile, String)> {
+    let (cnf, name) = cube_units(dir, base, entry)?;
+    let mut file = base.0.clone();
+    file.cnf = cnf;
+    Ok((file, name))
+}
+
+/// The clauses of [`with_cube`] and its name, without copying the rest of
+/// the file (its variable map is as large as the clauses): what a range of
+/// cubes needs per cube.
+///
+/// # Errors
+/// [`Error::Parse`] naming the manifest when a literal is not a variable
+/// of the formula.
+pub fn cube_units(
+    dir: &Path,
+    base: &(CnfFile, String),
+    entry: &CubeEntry,
+) -> Result<(crate::cnf::Cnf, String)> {
     let (base, name) = base;
-    let mut file = base.clone();
+    let mut cnf = base.cnf.clone();
     for l in entry.cube.lits() {
-        if l.var().index() >= file.cnf.num_vars() as usize {
+        if l.var().index() >= cnf.num_vars() as usize {
             return Err(Error::parse(
                 dir.join(MANIFEST).display().to_string(),
                 0,
@@ -149,7 +166,7 @@ pub fn with_cube(
                 ),
             ));
         }
-        file.cnf.add_clause(&[l]);
+        cnf.add_clause(&[l]);
     }
-    Ok((file, format!("{name} with cube {}", entry.cube.index)))
+    Ok((cnf, format!("{name} with cube {}", entry.cube.index)))
 }

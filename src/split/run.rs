@@ -25,7 +25,7 @@ use std::time::Instant;
 
 use serde::{Deserialize, Serialize};
 
-use super::layout::{cube_problem, formula_problem, with_cube};
+use super::layout::{cube_problem, cube_units, formula_problem};
 use super::{Cube, CubeEntry, RESULTS_DIR, SplitManifest, coverage_sources, verify_split};
 use crate::artifact::write_atomically;
 use crate::cnf::Cnf;
@@ -290,20 +290,14 @@ impl<'a> CubeRunner<'a> {
         {
             return Ok(RunOutcome::AlreadyDone(r));
         }
-        let (file, cube_name) = if entry.file.is_some() {
-            cube_problem(dir, m, entry)?
-        } else {
-            if self.formula.is_none() {
-                self.formula = Some(formula_problem(dir, m)?);
-            }
-            let base = self.formula.as_ref().expect("read just above");
-            with_cube(dir, base, entry)?
-        };
+        if entry.file.is_none() && self.formula.is_none() {
+            self.formula = Some(formula_problem(dir, m)?);
+        }
         if !self.swept {
             crate::artifact::sweep_stale(&dir.join(RESULTS_DIR), true);
             self.swept = true;
         }
-        let mut outcome = solve_one(dir, entry, &file, &cube_name, backend, limits)?;
+        let mut outcome = self.solve_entry(index, backend, limits, self.formula.as_ref())?;
         if let (Some(after), RunOutcome::Solved(r)) = (handed_off_after, &mut outcome) {
             r.handed_off_after = Some(after);
             write_result(dir, r)?;
@@ -412,19 +406,29 @@ impl CubeRunner<'_> {
         found: &mut Found,
         base: &(CnfFile, String),
     ) -> Result<RunOutcome> {
+        self.solve_entry(index, found, &Limits::default(), Some(base))
+    }
+
+    /// Solves cube `index` with `backend` and writes its result: its own
+    /// file, or `base` (the compact layout's formula) with the cube's units.
+    fn solve_entry(
+        &self,
+        index: usize,
+        backend: &mut dyn Backend,
+        limits: &Limits,
+        base: Option<&(CnfFile, String)>,
+    ) -> Result<RunOutcome> {
         let entry = &self.m.cubes[index];
-        let (file, cube_name) = match entry.file {
-            Some(_) => cube_problem(self.dir, &self.m, entry)?,
-            None => with_cube(self.dir, base, entry)?,
-        };
-        solve_one(
-            self.dir,
-            entry,
-            &file,
-            &cube_name,
-            found,
-            &Limits::default(),
-        )
+        match (&entry.file, base) {
+            (None, Some(base)) => {
+                let (cnf, name) = cube_units(self.dir, base, entry)?;
+                solve_one(self.dir, entry, &base.0, &cnf, &name, backend, limits)
+            }
+            _ => {
+                let (file, name) = cube_problem(self.dir, &self.m, entry)?;
+                solve_one(self.dir, entry, &file, &file.cnf, &name, backend, limits)
+            }
+        }
     }
 }
 
@@ -483,11 +487,13 @@ pub fn out_of_range(dir: &Path, index: usize, n: usize) -> Error {
     ))
 }
 
-/// Solves the cube `entry` as the problem `file` and writes its result.
+/// Solves the cube `entry` as the problem `cnf` (with the header data of
+/// `file`) and writes its result.
 fn solve_one(
     dir: &Path,
     entry: &CubeEntry,
     file: &CnfFile,
+    cnf: &Cnf,
     cube_name: &str,
     backend: &mut dyn Backend,
     limits: &Limits,
@@ -518,7 +524,7 @@ fn solve_one(
         Err(e)
     };
     let t = Instant::now();
-    let solved = match backend.solve(&file.cnf, limits) {
+    let solved = match backend.solve(cnf, limits) {
         Ok(s) => s,
         Err(e) => {
             result.seconds = t.elapsed().as_secs_f64();
@@ -533,7 +539,7 @@ fn solve_one(
             match decide::witness(
                 &file.question,
                 &file.options,
-                &file.cnf,
+                cnf,
                 &file.map,
                 &model,
                 cube_name,

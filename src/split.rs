@@ -96,6 +96,27 @@ pub const FORMAT: &str = "orbitcnf-split/1";
 /// The family label of a cube's unit clauses in its CNF header.
 pub const CUBE_FAMILY: &str = "cube";
 
+/// Cube indices for people, consecutive ones as an inclusive range in
+/// run-cube's syntax: `3 5..8 12`. A list of 10,000 pending cubes from one
+/// campaign is a few ranges, not a screenful of numbers.
+pub fn index_ranges(v: &[usize]) -> String {
+    let mut out: Vec<String> = Vec::new();
+    let mut k = 0;
+    while k < v.len() {
+        let mut end = k;
+        while end + 1 < v.len() && v[end + 1] == v[end] + 1 {
+            end += 1;
+        }
+        out.push(if end == k {
+            v[k].to_string()
+        } else {
+            format!("{}..{}", v[k], v[end])
+        });
+        k = end + 1;
+    }
+    out.join(" ")
+}
+
 /// One cube: a prefix of the distance profile, as literals over `G[k,t]`;
 /// in the full-map formulation, the start point x_0 instead.
 #[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
@@ -773,6 +794,15 @@ mod tests {
     fn enc(spec: &str, dim: usize, p: usize) -> Encoding {
         let q = Question::new(Grid::parse(spec, Some(dim)).unwrap(), p).unwrap();
         encode(&q, &EncodeOptions::default(), u64::MAX).unwrap()
+    }
+
+    #[test]
+    fn index_lists_join_consecutive_indices_into_ranges() {
+        assert_eq!(index_ranges(&[]), "");
+        assert_eq!(index_ranges(&[7]), "7");
+        assert_eq!(index_ranges(&[3, 5, 6, 7, 8, 12]), "3 5..8 12");
+        assert_eq!(index_ranges(&[0, 1, 3, 4]), "0..1 3..4");
+        assert_eq!(index_ranges(&[4, 2]), "4 2");
     }
 
     #[test]

@@ -703,13 +703,7 @@ pub fn verify_split(dir: &Path, m: &RealSplitManifest) -> Result<(Skeleton, Lrat
     Ok((sk, summary))
 }
 
-/// Cube indices for people: `3 5 8`.
-pub(crate) fn list(v: &[usize]) -> String {
-    v.iter()
-        .map(|i| i.to_string())
-        .collect::<Vec<_>>()
-        .join(" ")
-}
+pub(crate) use crate::split::index_ranges as list;
 
 /// The pieces of a cut cube for people (they are always consecutive
 /// indices, since [`refine_split`] appends them): `cube 8`, `cubes 8..11`,

@@ -16,6 +16,26 @@ use crate::question::{MapClass, Question, QuestionRecord};
 use crate::solve::SolveStats;
 use crate::verify::{OrbitCheck, SelfMapCheck};
 
+/// The runs of consecutive numbers in `v`, each as `a` or `a..b` (an
+/// inclusive range, the syntax run-cube and `--periods` take), in order.
+pub fn consecutive_runs(v: &[usize]) -> Vec<String> {
+    let mut runs = Vec::new();
+    let mut i = 0;
+    while i < v.len() {
+        let mut j = i;
+        while j + 1 < v.len() && v[j + 1] == v[j] + 1 {
+            j += 1;
+        }
+        runs.push(if j == i {
+            v[i].to_string()
+        } else {
+            format!("{}..{}", v[i], v[j])
+        });
+        i = j + 1;
+    }
+    runs
+}
+
 /// The answer to a question.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
 #[serde(rename_all = "lowercase")]

@@ -100,21 +100,7 @@ pub const CUBE_FAMILY: &str = "cube";
 /// run-cube's syntax: `3 5..8 12`. A list of 10,000 pending cubes from one
 /// campaign is a few ranges, not a screenful of numbers.
 pub fn index_ranges(v: &[usize]) -> String {
-    let mut out: Vec<String> = Vec::new();
-    let mut k = 0;
-    while k < v.len() {
-        let mut end = k;
-        while end + 1 < v.len() && v[end + 1] == v[end] + 1 {
-            end += 1;
-        }
-        out.push(if end == k {
-            v[k].to_string()
-        } else {
-            format!("{}..{}", v[k], v[end])
-        });
-        k = end + 1;
-    }
-    out.join(" ")
+    crate::report::consecutive_runs(v).join(" ")
 }
 
 /// One cube: a prefix of the distance profile, as literals over `G[k,t]`;

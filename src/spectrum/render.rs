@@ -102,20 +102,7 @@ fn ordinal(m: usize) -> String {
 
 /// An increasing list of periods in short form: `1..8, 10, 12..13`.
 pub fn ranges_words(periods: &[usize]) -> String {
-    let mut parts: Vec<String> = Vec::new();
-    let mut i = 0;
-    while i < periods.len() {
-        let mut j = i;
-        while j + 1 < periods.len() && periods[j + 1] == periods[j] + 1 {
-            j += 1;
-        }
-        parts.push(if j == i {
-            periods[i].to_string()
-        } else {
-            format!("{}..{}", periods[i], periods[j])
-        });
-        i = j + 1;
-    }
+    let parts = crate::report::consecutive_runs(periods);
     if parts.is_empty() {
         "none".into()
     } else {

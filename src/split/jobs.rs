@@ -453,6 +453,7 @@ fn stream_cubes(
         deadline,
         format: LratFormat::Binary,
         stop: Some(stop),
+        cone_limit: crate::proof::sequence::CONE_LIMIT,
     };
     let solved = solve_in_sequence(f, pulled, &seq, |i, s| {
         conflicts.fetch_add(s.conflicts, Ordering::Relaxed);

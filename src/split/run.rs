@@ -376,6 +376,7 @@ impl CubeRunner<'_> {
             deadline: None,
             format: run.format,
             stop: None,
+            cone_limit: crate::proof::sequence::CONE_LIMIT,
         };
         let mut unknown = Vec::new();
         let solved =

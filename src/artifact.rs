@@ -16,7 +16,9 @@
 //!   exclusive advisory lock for as long as their writer lives. A process
 //!   that is killed loses the lock with its life, so [`sweep_stale`] can tell
 //!   an abandoned temporary file (lock free) from one that a live run is
-//!   still writing (locked), and removes only the former.
+//!   still writing (locked), and removes only the former. A process sweeps
+//!   a folder before its first write there, and again at most every ten
+//!   minutes (a campaign's folder of results is large to list).
 
 use std::io::Read;
 use std::path::{Path, PathBuf};
@@ -167,13 +169,14 @@ fn folder_of(path: &Path) -> &Path {
 /// open, so that [`persist`] can rename it into place atomically and
 /// [`sweep_stale`] leaves it alone. It is deleted if dropped unpersisted;
 /// if the process dies first, the next sweep of that folder removes it —
-/// and every call sweeps the folder it writes into first.
+/// and a process sweeps a folder before its first write there (then at most
+/// every ten minutes).
 ///
 /// # Errors
 /// [`Error::Io`] naming the path.
 pub fn temp_beside(path: &Path) -> Result<tempfile::NamedTempFile> {
     // Whoever writes into a folder clears what killed runs left there.
-    let _ = sweep_stale(folder_of(path), false);
+    sweep_now_and_then(folder_of(path));
     let tmp = tempfile::Builder::new()
         .prefix(TEMP_PREFIX)
         .tempfile_in(folder_of(path))
@@ -224,6 +227,35 @@ pub fn sync_dir(dir: &Path) {
     }
     #[cfg(not(unix))]
     let _ = dir;
+}
+
+/// How often one process sweeps a folder it writes into. Listing a folder
+/// costs time in its size, and a campaign's `results/` folder holds hundreds
+/// of thousands of files, two written per cube: sweeping it before every
+/// write made a range of cubes quadratic in the folder's size. Files left by
+/// killed runs are found by the next process's first write, or by a
+/// long-lived one within this interval.
+const SWEEP_INTERVAL: Duration = Duration::from_secs(600);
+
+/// The folders this process swept, and when.
+static SWEPT: std::sync::Mutex<Vec<(PathBuf, std::time::Instant)>> =
+    std::sync::Mutex::new(Vec::new());
+
+/// [`sweep_stale`] of `dir` (not owned), unless this process swept it less
+/// than [`SWEEP_INTERVAL`] ago.
+fn sweep_now_and_then(dir: &Path) {
+    let now = std::time::Instant::now();
+    {
+        // A poisoned lock only means another thread panicked mid-update;
+        // the list is still a list.
+        let mut swept = SWEPT.lock().unwrap_or_else(std::sync::PoisonError::into_inner);
+        match swept.iter_mut().find(|(d, _)| d == dir) {
+            Some((_, t)) if now.duration_since(*t) < SWEEP_INTERVAL => return,
+            Some((_, t)) => *t = now,
+            None => swept.push((dir.to_path_buf(), now)),
+        }
+    }
+    let _ = sweep_stale(dir, false);
 }
 
 /// Removes the temporary files and folders in `dir` that no live orbitcnf
@@ -324,7 +356,7 @@ pub fn replace_dir<T>(
     std::fs::create_dir_all(parent).map_err(|e| Error::io(parent, e))?;
     may_replace(dir, &replaceable)?;
     let exists = dir.exists();
-    let _ = sweep_stale(parent, false);
+    sweep_now_and_then(parent);
     let fresh = tempfile::Builder::new()
         .prefix(TEMP_PREFIX)
         .tempdir_in(parent)

@@ -239,7 +239,11 @@ fn real_space_spectrum_stores_and_reuses_answers() {
                 (r["period"].as_u64(), r["verdict"].as_str()),
                 (Some(p), Some(want))
             );
-            assert_eq!(r["how"], how, "{r}");
+            // A feasible answer may come from a multiple's orbit found first
+            // (§9: periods are closed under divisors), which of them is a
+            // race between the periods searched at once.
+            let derived = how == "search" && r["how"] == "§9" && p <= 4;
+            assert!(r["how"] == how || derived, "{r}");
             if let Some(orbit) = orbit_of(r) {
                 let hi = orbit.iter().flatten().copied().max().unwrap_or(0);
                 assert_isometric_cycle(&[(0, hi), (0, hi)], &orbit, p as usize, "spectrum");

@@ -279,7 +279,7 @@ fn q0_3_n4_periods_24_and_28_are_refuted_in_whole_profile_cubes() {
 /// {0,1,2,3}^4, p = 30, refuted by computation on 2026-12-04 (README, "What
 /// is proven and what is open"): 25,674 whole profiles, more than the 20,000
 /// `decide` splits by itself, so it runs as a cluster would: `split`, then
-/// `run-cube` in blocks of 50 under GNU parallel, then `merge`, which
+/// `run-cube` in blocks of cubes under GNU parallel, then `merge`, which
 /// re-checks the coverage proof and every cube's LRAT proof. Nothing
 /// published settles it; the expectation is orbitcnf's own certified
 /// answer, pinned so that a change that loses it is seen.
@@ -364,13 +364,18 @@ fn m2_n4_period_22_is_refuted_in_blocks_of_cubes() {
     );
 }
 
+/// Cubes per `run-cube` range: one solver takes a whole block, so blocks
+/// are long (docs/cluster.md measures why).
+const BLOCK: usize = 200;
+
 /// `split` of `q` into whole-profile cubes (asking for `requested`; there
-/// must be `cubes`), `run-cube` with binary proofs on blocks of at most 50
-/// cubes under GNU parallel, except the cubes in `hard`, which CaDiCaL
-/// refutes with a DRAT proof (turned into LRAT by `rate`), and `merge`:
-/// infeasible, every cube refuted with a checked proof. With
+/// must be `cubes`), `run-cube` with binary proofs on blocks of at most
+/// [`BLOCK`] cubes under GNU parallel, except the cubes in `hard`, which
+/// CaDiCaL refutes with a DRAT proof (turned into LRAT by `rate`), and
+/// `merge`: infeasible, every cube refuted with a checked proof. With
 /// `handoff_after`, the blocks hand every cube the bundled solver leaves
 /// open for that many seconds to CaDiCaL in the same way.
+
 fn refuted_in_blocks(
     dir: &TestDir,
     q: &Q,
@@ -398,7 +403,7 @@ fn refuted_in_blocks(
     for i in 0..=cubes {
         let cut = i == cubes || hard.contains(&i);
         if let Some(a) = start
-            && (cut || i - a == 50)
+            && (cut || i - a == BLOCK)
         {
             jobs.push(format!("{a}..{}", i - 1));
             start = None;

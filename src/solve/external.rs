@@ -47,6 +47,11 @@
 //! [`Limits::time`] has passed the process is killed (`SIGKILL`) and the
 //! answer is [`Outcome::Unknown`]. Only the solver process itself is killed:
 //! a wrapper script should `exec` the solver so that no grandchild survives.
+//!
+//! On Linux the solver (and `rate`) also dies with orbitcnf: a `run-cube`
+//! that its scheduler kills must not leave a CaDiCaL or a `rate` running for
+//! hours on a node that is now another job's (seen on this project's own
+//! campaigns before the guard).
 
 use std::io::{BufWriter, Read, Write};
 use std::path::{Path, PathBuf};
@@ -305,6 +310,32 @@ enum Ended {
 }
 
 /// Runs `cmd` to completion or until `deadline`, collecting its output.
+/// Asks the kernel to kill the child with `SIGKILL` when the thread that
+/// started it ends, which it does only after waiting for the child, or when
+/// orbitcnf dies.
+#[cfg(target_os = "linux")]
+fn die_with_parent(cmd: &mut Command) {
+    use std::os::unix::process::CommandExt;
+    let parent = std::process::id();
+    // SAFETY: between fork and exec the closure calls only prctl and
+    // getppid, which are async-signal-safe, and allocates nothing.
+    unsafe {
+        cmd.pre_exec(move || {
+            if libc::prctl(libc::PR_SET_PDEATHSIG, libc::SIGKILL) != 0 {
+                return Err(std::io::Error::last_os_error());
+            }
+            // orbitcnf may have died before the request took effect.
+            if libc::getppid() as u32 != parent {
+                return Err(std::io::Error::from_raw_os_error(libc::ESRCH));
+            }
+            Ok(())
+        });
+    }
+}
+
+#[cfg(not(target_os = "linux"))]
+fn die_with_parent(_: &mut Command) {}
+
 fn run_until(
     cmd: &mut Command,
     program: &str,
@@ -314,6 +345,7 @@ fn run_until(
     cmd.stdin(Stdio::null())
         .stdout(Stdio::piped())
         .stderr(Stdio::piped());
+    die_with_parent(cmd);
     let mut child: Child = cmd.spawn().map_err(|e| match e.kind() {
         std::io::ErrorKind::NotFound => ExternalFailure::NotFound {
             program: program.into(),

@@ -375,7 +375,6 @@ const BLOCK: usize = 200;
 /// `merge`: infeasible, every cube refuted with a checked proof. With
 /// `handoff_after`, the blocks hand every cube the bundled solver leaves
 /// open for that many seconds to CaDiCaL in the same way.
-
 fn refuted_in_blocks(
     dir: &TestDir,
     q: &Q,

@@ -1057,3 +1057,54 @@ fn one_solver_for_a_range_answers_every_cube_as_fresh_solvers_do() {
         }
     }
 }
+
+/// A killed orbitcnf takes its external solver with it (Linux): a cluster
+/// job killed by its scheduler must not leave a solver running on the node.
+#[cfg(target_os = "linux")]
+#[test]
+fn a_killed_run_leaves_no_external_solver_behind() {
+    use std::time::{Duration, Instant};
+    let dir = TestDir::new();
+    let pid_file = dir.path("solver.pid");
+    let solver = script(
+        &dir,
+        "slow.sh",
+        &format!("echo $$ > {}\nexec sleep 120\n", pid_file.display()),
+    );
+    let q = Q::cube(-1, 1, 2, 4);
+    let mut run = std::process::Command::new(crate::util::bin())
+        .arg("decide")
+        .args(q.args())
+        .args(["--solver", &format!("external:{solver}"), "--progress", "off"])
+        .stdout(std::process::Stdio::null())
+        .stderr(std::process::Stdio::null())
+        .spawn()
+        .expect("orbitcnf starts");
+    let started = Instant::now();
+    let pid = loop {
+        if let Ok(s) = std::fs::read_to_string(&pid_file)
+            && let Ok(pid) = s.trim().parse::<u32>()
+        {
+            break pid;
+        }
+        assert!(started.elapsed() < Duration::from_secs(30), "the solver never started");
+        std::thread::sleep(Duration::from_millis(20));
+    };
+    run.kill().expect("kill orbitcnf");
+    run.wait().expect("reap orbitcnf");
+    // The kernel sends SIGKILL when orbitcnf's thread ends; /proc shows the
+    // solver gone (or a zombie that init reaps) within moments.
+    let gone = || {
+        std::fs::read_to_string(format!("/proc/{pid}/stat"))
+            .map(|s| s.contains(") Z "))
+            .unwrap_or(true)
+    };
+    let killed = Instant::now();
+    while !gone() {
+        assert!(
+            killed.elapsed() < Duration::from_secs(10),
+            "the external solver {pid} outlived the killed orbitcnf"
+        );
+        std::thread::sleep(Duration::from_millis(20));
+    }
+}

@@ -369,14 +369,15 @@ impl Propagator {
             if conflict {
                 continue;
             }
+            // A hint clause that is already satisfied propagates nothing and
+            // is skipped: the rest of the hints must still reach the
+            // conflict, so accepting it adds no trust. CaDiCaL 2.2's LRAT
+            // proofs hold such redundant hints.
+            if clause.iter().any(|&c| self.val[c as usize] == 1) {
+                continue;
+            }
             let mut unit: Option<u32> = None;
             for &c in clause {
-                if self.val[c as usize] == 1 {
-                    return Err(LratReason::HintSatisfied {
-                        hint,
-                        position: k + 1,
-                    });
-                }
                 if self.val[(c ^ 1) as usize] == 1 {
                     continue;
                 }
@@ -470,13 +471,11 @@ mod tests {
     fn each_reason_with_its_step_and_id() {
         let cases: Vec<(&str, u64, Option<u64>, LratReason)> = vec![
             (
+                // Hint 3 holds 1, already true: it is skipped, so no conflict.
                 "5 1 0 3 0\n",
                 1,
                 Some(5),
-                LratReason::HintSatisfied {
-                    hint: 3,
-                    position: 1,
-                },
+                LratReason::NoConflict { hints: 1 },
             ),
             (
                 "5 0 1 0\n",
@@ -593,9 +592,11 @@ mod tests {
         let shown = reject("5 1 0 3 0\n").to_string();
         assert_eq!(
             shown,
-            "LRAT step 1 (clause 5), line 1: hint 3 (number 1 of the step) is already \
-             satisfied, not unit"
+            "LRAT step 1 (clause 5), line 1: the 1 hints propagate without a conflict: the \
+             clause is not implied by them"
         );
+        // A satisfied hint is skipped where the others still conflict.
+        check_lrat(&square(), "5 1 0 3 1 2 0\n6 0 5 3 4 0\n").unwrap();
         assert!(reject("5 1 0 3 0\n").reason.is_rup_failure());
         assert!(!reject("5 1 0 9 0\n").reason.is_rup_failure());
     }

@@ -55,7 +55,10 @@
 //! false and walks the hints in order. At its turn each hint must be *unit*
 //! (all its literals false except one unassigned literal, which is then
 //! assigned true) or a *conflict* (all literals false). A hint with a true
-//! literal, or with two or more unassigned literals, is rejected. After the
+//! literal is skipped: it forces nothing, so the other hints must still
+//! reach the conflict (CaDiCaL 2.2 writes such redundant hints; refusing
+//! them rejected valid proofs). A hint with two or more unassigned literals
+//! is rejected. After the
 //! conflict the remaining hints are only checked to exist. If the hints run
 //! out without a conflict the step is rejected. A clause that contains a
 //! literal and its negation is a tautology and needs no hints. Each clause is
@@ -243,14 +246,6 @@ pub enum LratReason {
         /// The step that deleted it.
         deleted_in_step: u64,
     },
-    /// A hint's clause has a true literal at its turn.
-    #[error("hint {hint} (number {position} of the step) is already satisfied, not unit")]
-    HintSatisfied {
-        /// The hint.
-        hint: u64,
-        /// 1-based position in the step's hint list.
-        position: usize,
-    },
     /// A hint's clause has two or more unassigned literals at its turn.
     #[error(
         "hint {hint} (number {position} of the step) has two or more unassigned literals, so it is not unit"
@@ -302,8 +297,7 @@ impl LratReason {
     pub fn is_rup_failure(&self) -> bool {
         matches!(
             self,
-            LratReason::HintSatisfied { .. }
-                | LratReason::HintNotUnit { .. }
+            LratReason::HintNotUnit { .. }
                 | LratReason::NoConflict { .. }
         )
     }

@@ -248,7 +248,9 @@ fn sweep_now_and_then(dir: &Path) {
     {
         // A poisoned lock only means another thread panicked mid-update;
         // the list is still a list.
-        let mut swept = SWEPT.lock().unwrap_or_else(std::sync::PoisonError::into_inner);
+        let mut swept = SWEPT
+            .lock()
+            .unwrap_or_else(std::sync::PoisonError::into_inner);
         match swept.iter_mut().find(|(d, _)| d == dir) {
             Some((_, t)) if now.duration_since(*t) < SWEEP_INTERVAL => return,
             Some((_, t)) => *t = now,

@@ -230,8 +230,7 @@ pub fn solve_in_sequence<K>(
                     }
                     Ok(false) => {
                         let proof = r.cube_proof(m, &cube, opts.format)?;
-                        let heavy =
-                            matches!(proof, CubeAnswer::Unsat { steps, .. } if steps > opts.cone_limit);
+                        let heavy = matches!(proof, CubeAnswer::Unsat { steps, .. } if steps > opts.cone_limit);
                         (proof, heavy)
                     }
                     Err(_) if r.expired => {

@@ -26,7 +26,10 @@ use std::time::Instant;
 use serde::{Deserialize, Serialize};
 
 use super::layout::{cube_problem, cube_units, formula_problem};
-use super::{Cube, CubeEntry, index_ranges as list, RESULTS_DIR, SplitManifest, coverage_sources, verify_split};
+use super::{
+    Cube, CubeEntry, RESULTS_DIR, SplitManifest, coverage_sources, index_ranges as list,
+    verify_split,
+};
 use crate::artifact::write_atomically;
 use crate::cnf::Cnf;
 use crate::decide;
@@ -818,7 +821,6 @@ impl MergeReport {
         s
     }
 }
-
 
 /// Merges the results of the split in `dir`. A cube refuted only on a
 /// solver's word counts as refuted when `accept_claims` holds (the verdict

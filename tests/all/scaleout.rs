@@ -1075,7 +1075,12 @@ fn a_killed_run_leaves_no_external_solver_behind() {
     let mut run = std::process::Command::new(crate::util::bin())
         .arg("decide")
         .args(q.args())
-        .args(["--solver", &format!("external:{solver}"), "--progress", "off"])
+        .args([
+            "--solver",
+            &format!("external:{solver}"),
+            "--progress",
+            "off",
+        ])
         .stdout(std::process::Stdio::null())
         .stderr(std::process::Stdio::null())
         .spawn()
@@ -1087,7 +1092,10 @@ fn a_killed_run_leaves_no_external_solver_behind() {
         {
             break pid;
         }
-        assert!(started.elapsed() < Duration::from_secs(30), "the solver never started");
+        assert!(
+            started.elapsed() < Duration::from_secs(30),
+            "the solver never started"
+        );
         std::thread::sleep(Duration::from_millis(20));
     };
     run.kill().expect("kill orbitcnf");

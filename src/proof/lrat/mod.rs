@@ -297,8 +297,7 @@ impl LratReason {
     pub fn is_rup_failure(&self) -> bool {
         matches!(
             self,
-            LratReason::HintNotUnit { .. }
-                | LratReason::NoConflict { .. }
+            LratReason::HintNotUnit { .. } | LratReason::NoConflict { .. }
         )
     }
 }

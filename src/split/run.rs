@@ -296,10 +296,7 @@ impl<'a> CubeRunner<'a> {
         if entry.file.is_none() && self.formula.is_none() {
             self.formula = Some(formula_problem(dir, m)?);
         }
-        if !self.swept {
-            crate::artifact::sweep_stale(&dir.join(RESULTS_DIR), true);
-            self.swept = true;
-        }
+        self.sweep_once();
         let mut outcome = self.solve_entry(index, backend, limits, self.formula.as_ref())?;
         if let (Some(after), RunOutcome::Solved(r)) = (handed_off_after, &mut outcome) {
             r.handed_off_after = Some(after);
@@ -366,10 +363,7 @@ impl CubeRunner<'_> {
         if todo.is_empty() {
             return Ok(Vec::new());
         }
-        if !self.swept {
-            crate::artifact::sweep_stale(&self.dir.join(RESULTS_DIR), true);
-            self.swept = true;
-        }
+        self.sweep_once();
         if self.formula.is_none() {
             self.formula = Some(formula_problem(self.dir, &self.m)?);
         }
@@ -400,6 +394,15 @@ impl CubeRunner<'_> {
         self.formula = Some(f);
         solved?;
         Ok(unknown)
+    }
+
+    /// Sweeps `results/` of abandoned temporary files (and old-style ones,
+    /// since orbitcnf owns the folder) the first time this runner writes.
+    fn sweep_once(&mut self) {
+        if !self.swept {
+            crate::artifact::sweep_stale(&self.dir.join(RESULTS_DIR), true);
+            self.swept = true;
+        }
     }
 
     /// Writes the result of cube `index` from the answer in `found`, with

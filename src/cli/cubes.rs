@@ -331,6 +331,7 @@ pub fn run_cube(a: RunCubeArgs) -> Outcome {
         ..limits.clone()
     });
     let (first, last) = a.index;
+    let mut failures = Failures::default();
     let mut runner = cube_run::CubeRunner::new(&a.dir)?;
     if last >= runner.cubes() {
         return Err(cube_run::out_of_range(&a.dir, last, runner.cubes()));
@@ -343,6 +344,13 @@ pub fn run_cube(a: RunCubeArgs) -> Outcome {
             force: a.force,
         };
         let left = runner.run_sequence(first..=last, &run, |outcome| {
+            let outcome = match outcome {
+                Ok(outcome) => outcome,
+                Err((index, e)) => {
+                    failures.note(index, e);
+                    return Ok(());
+                }
+            };
             let open = matches!(outcome, cube_run::RunOutcome::Solved(r) if r.status == CubeStatus::Unknown);
             if open && first_limits.is_some() {
                 return Ok(());
@@ -350,7 +358,7 @@ pub fn run_cube(a: RunCubeArgs) -> Outcome {
             print_outcome(a.json, outcome, "")
         })?;
         if first_limits.is_none() {
-            return Ok(0);
+            return failures.finish();
         }
         for index in left {
             let lrat = cube_run::lrat_target(&a.dir, index);
@@ -365,10 +373,12 @@ pub fn run_cube(a: RunCubeArgs) -> Outcome {
             let note = format!(
                 " (handed off after {after:.2} s without an answer from the bundled solver)"
             );
-            let outcome = runner.run_after(index, ext, &limits, true, Some(after))?;
-            print_outcome(a.json, &outcome, &note)?;
+            let outcome = runner.run_after(index, ext, &limits, true, Some(after));
+            if let Some(outcome) = failures.sift(&a.dir, index, outcome)? {
+                print_outcome(a.json, &outcome, &note)?;
+            }
         }
-        return Ok(0);
+        return failures.finish();
     }
     for index in first..=last {
         let lrat = cube_run::lrat_target(&a.dir, index);
@@ -390,7 +400,11 @@ pub fn run_cube(a: RunCubeArgs) -> Outcome {
             } else {
                 &mut certified
             };
-            match runner.run(index, own, first_limits, a.force)? {
+            let outcome = runner.run(index, own, first_limits, a.force);
+            let Some(outcome) = failures.sift(&a.dir, index, outcome)? else {
+                continue;
+            };
+            match outcome {
                 cube_run::RunOutcome::Solved(r) if r.status == CubeStatus::Unknown => {
                     note = format!(
                         " (handed off after {:.2} s without an answer from the bundled solver)",
@@ -410,10 +424,62 @@ pub fn run_cube(a: RunCubeArgs) -> Outcome {
             (None, false) => &mut certified,
         };
         // The bundled attempt's unknown is no final result, so this solves.
-        let outcome = runner.run_after(index, backend, &limits, a.force, handed_off_after)?;
-        print_outcome(a.json, &outcome, &note)?;
+        let outcome = runner.run_after(index, backend, &limits, a.force, handed_off_after);
+        if let Some(outcome) = failures.sift(&a.dir, index, outcome)? {
+            print_outcome(a.json, &outcome, &note)?;
+        }
     }
-    Ok(0)
+    failures.finish()
+}
+
+/// The cubes of a `run-cube` range that ended in an error recorded in their
+/// results ([`cube_run::recorded_error`]). Such an error is the cube's own
+/// (a back-end that failed, a rejected proof), so the range goes on with
+/// the other cubes; each error is printed on stderr when it happens, and
+/// the run ends with an error naming them all.
+#[derive(Default)]
+struct Failures(Vec<usize>);
+
+impl Failures {
+    /// Prints the recorded error `e` of cube `index` and remembers the cube.
+    fn note(&mut self, index: usize, e: &Error) {
+        eprintln!("orbitcnf: cube {index}: error: {e} (recorded in its result; the range goes on)");
+        self.0.push(index);
+    }
+
+    /// The outcome of cube `index`, or `None` after [`Failures::note`] when
+    /// it is an error recorded in the cube's result; other errors stop the
+    /// range.
+    fn sift(
+        &mut self,
+        dir: &std::path::Path,
+        index: usize,
+        outcome: Result<cube_run::RunOutcome, Error>,
+    ) -> Result<Option<cube_run::RunOutcome>, Error> {
+        match outcome {
+            Ok(outcome) => Ok(Some(outcome)),
+            Err(e) if cube_run::recorded_error(dir, index, &e) => {
+                self.note(index, &e);
+                Ok(None)
+            }
+            Err(e) => Err(e),
+        }
+    }
+
+    /// Exit code 0 when no cube failed, or the error that names the cubes.
+    fn finish(self) -> Outcome {
+        match self.0.as_slice() {
+            [] => Ok(0),
+            [index] => Err(Error::Options(format!(
+                "cube {index} ended in an error, recorded in its result (above)"
+            ))),
+            many => Err(Error::Options(format!(
+                "{} cubes ended in an error, recorded in their results (above): {}",
+                many.len(),
+                split::index_ranges(many)
+            ))),
+        }
+    }
 }
 
 /// Prints one cube's outcome, as text (with `note`) or as JSON.

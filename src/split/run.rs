@@ -328,8 +328,10 @@ impl CubeRunner<'_> {
     /// of its own CNF, checked by orbitcnf's checker before the result is
     /// written; a model is decoded and verified. Cubes with a final result are
     /// skipped unless `run.force`. `each` gets every outcome as it is known
-    /// (skipped cubes too) and returns the indices of the cubes left unknown,
-    /// in order, when the range is done.
+    /// (skipped cubes too), or the error of a cube whose result was written
+    /// with status `error` ([`recorded_error`]): such a cube does not stop
+    /// the range. Returns the indices of the cubes left unknown, in order,
+    /// when the range is done.
     ///
     /// On the cubes of one split this is much faster than a fresh solver per
     /// cube: a clause learned on one cube often refutes its neighbours at
@@ -341,7 +343,7 @@ impl CubeRunner<'_> {
         &mut self,
         indices: std::ops::RangeInclusive<usize>,
         run: &SequenceRun,
-        mut each: impl FnMut(&RunOutcome) -> Result<()>,
+        mut each: impl FnMut(std::result::Result<&RunOutcome, (usize, &Error)>) -> Result<()>,
     ) -> Result<Vec<usize>> {
         let n = self.m.cubes.len();
         if !indices.is_empty() && *indices.end() >= n {
@@ -355,7 +357,7 @@ impl CubeRunner<'_> {
                 && r.status.is_final()
                 && r.cube_sha256 == entry.digest()
             {
-                each(&RunOutcome::AlreadyDone(r))?;
+                each(Ok(&RunOutcome::AlreadyDone(r)))?;
                 continue;
             }
             todo.push((index, entry.cube.lits()));
@@ -382,13 +384,20 @@ impl CubeRunner<'_> {
                     answer: Some(s),
                     proof_target: lrat_target(self.dir, index),
                 };
-                let outcome = self.run_with(index, &mut found, &f)?;
+                let outcome = match self.run_with(index, &mut found, &f) {
+                    Ok(outcome) => outcome,
+                    Err(e) if recorded_error(self.dir, index, &e) => {
+                        each(Err((index, &e)))?;
+                        return Ok(true);
+                    }
+                    Err(e) => return Err(e),
+                };
                 if let RunOutcome::Solved(r) = &outcome
                     && r.status == CubeStatus::Unknown
                 {
                     unknown.push(index);
                 }
-                each(&outcome)?;
+                each(Ok(&outcome))?;
                 Ok(true)
             });
         self.formula = Some(f);
@@ -492,6 +501,19 @@ pub fn out_of_range(dir: &Path, index: usize, n: usize) -> Error {
         dir.display(),
         n.saturating_sub(1)
     ))
+}
+
+/// Whether `e`, returned for cube `index` of the split in `dir`, is already
+/// recorded in that cube's result (status `error`, with `e` as the reason).
+/// Such an error belongs to the cube alone (a back-end that failed, a proof
+/// the checker rejected, a wrong model), so a run over a range of cubes can
+/// go on with the others; `merge` lists the cube as pending with the reason.
+pub fn recorded_error(dir: &Path, index: usize, e: &Error) -> bool {
+    matches!(
+        read_result(dir, index),
+        Ok(Some(r)) if r.status == CubeStatus::Error
+            && r.reason.as_deref() == Some(e.to_string().as_str())
+    )
 }
 
 /// Solves the cube `entry` as the problem `cnf` (with the header data of

@@ -839,6 +839,53 @@ fn cubes_the_bundled_solver_leaves_open_go_to_cadical() {
         .error_with(&["--handoff-after", "external solver"]);
 }
 
+/// A cube whose hand-off fails (here a solver that runs out of memory)
+/// gets a result with status `error` and the reason, and the range goes on
+/// with its other cubes, with one solver for the range and with a fresh one
+/// per cube; the run then ends with one error naming the failed cubes, and
+/// `merge --pending` lists them for a rerun.
+#[test]
+fn a_failed_hand_off_is_recorded_and_the_range_goes_on() {
+    let dir = TestDir::new();
+    let q = Q::cube(-1, 1, 3, 9);
+    let n = cube_count(&split(&dir, &q, 4, "sp"));
+    assert!(n >= 3, "{n} cubes");
+    let oom = script(&dir, "oom.sh", "echo 'out of memory' >&2\nexit 3\n");
+    for extra in [&[][..], &["--fresh-solver"][..]] {
+        let run = dir
+            .orbitcnf()
+            .args(["run-cube", "sp", &format!("0..{}", n - 1), "--force"])
+            .args(["--solver", &format!("external:{oom}")])
+            .args(["--handoff-after", "0.000001"])
+            .args(extra)
+            .run();
+        run.code(ERROR);
+        let cube_lines: Vec<&str> = run
+            .stderr
+            .lines()
+            .filter(|l| l.contains("(recorded in its result; the range goes on)"))
+            .collect();
+        assert_eq!(cube_lines.len(), n, "{extra:?}: {}", run.stderr);
+        assert!(
+            cube_lines.iter().all(|l| l.contains("exited with code 3")),
+            "{}",
+            run.stderr
+        );
+        run.stderr_has(&format!(
+            "orbitcnf: error: {n} cubes ended in an error, recorded in their results (above): 0..{}",
+            n - 1
+        ));
+        for i in 0..n {
+            let text =
+                std::fs::read_to_string(orbitcnf::split::run::result_path(&dir.path("sp"), i))
+                    .expect("a result file");
+            let r: serde_json::Value = serde_json::from_str(&text).unwrap();
+            assert_eq!(r["status"], "error", "cube {i}: {r}");
+        }
+        assert_eq!(pending(&dir, "sp").len(), n, "{extra:?}");
+    }
+}
+
 /// `decide --solver external:'cadical -q' --proof-arg '{}' --handoff-after
 /// SECS`: the cubes the bundled solver leaves open go to CaDiCaL. With a
 /// microsecond every cube is handed off; an infeasible answer is then one

@@ -248,19 +248,22 @@ impl ExclusionIndex {
         ExclusionIndex { by_last }
     }
 
-    /// The number of clauses whose last offset is `j`.
-    pub fn count_at(&self, j: usize) -> usize {
-        self.by_last.get(j).map_or(0, Vec::len)
-    }
-
     /// Whether the prefix `values` (`g(1..=j)`, `j ≤ 64`) falsifies one of
     /// the clauses whose last offset is `j`.
     pub fn falsified_at_end(&self, values: &[i64]) -> bool {
+        self.test_at_end(values).0
+    }
+
+    /// As [`ExclusionIndex::falsified_at_end`], with the number of clauses
+    /// tested: all of them for a prefix that survives, up to the first
+    /// falsified one otherwise. This is the work a walk over the prefixes
+    /// really does.
+    pub fn test_at_end(&self, values: &[i64]) -> (bool, u64) {
         let Some(list) = self.by_last.get(values.len()) else {
-            return false;
+            return (false, 0);
         };
         if list.is_empty() {
-            return false;
+            return (false, 0);
         }
         let at_least = |t: i64| {
             values
@@ -272,11 +275,14 @@ impl ExclusionIndex {
         let top = values.iter().copied().max().unwrap_or(0).max(0);
         let masks: Vec<u64> = (0..=top + 1).map(at_least).collect();
         let mask = |t: i64| masks[t.clamp(0, top + 1) as usize];
-        list.iter().any(|x| {
+        match list.iter().position(|x| {
             x.parts
                 .iter()
                 .all(|&(t, ge, lt)| mask(t) & ge == ge && mask(t) & lt == 0)
-        })
+        }) {
+            Some(i) => (true, i as u64 + 1),
+            None => (false, list.len() as u64),
+        }
     }
 }
 

@@ -117,10 +117,15 @@ pub struct CubeChoice {
 }
 
 /// Steps [`full_profile_count`] may take, counting each prefix visited and
-/// each exclusion tested on it: a few seconds at most. {−1,0,1}^5, p = 34
-/// needs about 0.25 G (16,460 whole profiles against 14,674 clauses);
-/// {0,1,2,3}^3, p = 36 would need several G (about half a minute).
-pub const WALK_WORK: u64 = 1_000_000_000;
+/// each exclusion clause tested on it: seconds, not minutes. Measured on
+/// 2026-12-04 (release build, both cores busy with other work; the ignored
+/// test `profile_walk_work_and_time` prints these): {−1,0,1}^5, p = 34
+/// takes 18 M steps (0.25 s) for its 1,783 whole profiles; {−2,…,2}^4,
+/// p = 25 takes 412 M (4.5 s) for 4,383; {−2,…,2}^4, p = 24 passes the cap
+/// after 452 M (8.0 s); {0,1,2,3}^3, p = 36 would need 9.0 G (290 s), where
+/// nearly every profile is excluded, so it stops at this limit, after
+/// about 16 s by proportion (not timed).
+pub const WALK_WORK: u64 = 500_000_000;
 
 /// The number of whole profiles `g(1..K)` that no multiplier map rules out
 /// ([`prefix_survives`]) and no profile-exclusion clause excludes (tested
@@ -132,6 +137,12 @@ pub const WALK_WORK: u64 = 1_000_000_000;
 /// prefix that is ruled out is not extended, since every extension of it is
 /// ruled out too.
 pub fn full_profile_count(enc: &Encoding, cap: usize) -> Option<usize> {
+    profile_walk(enc, cap, WALK_WORK).0
+}
+
+/// [`full_profile_count`] with the work limit `limit`, and the steps the
+/// walk took (to the point where it stopped).
+fn profile_walk(enc: &Encoding, cap: usize, limit: u64) -> (Option<usize>, u64) {
     let q = &enc.question;
     let k_max = profile_len(q);
     let l = q.grid.diameter() as i64;
@@ -147,6 +158,7 @@ pub fn full_profile_count(enc: &Encoding, cap: usize) -> Option<usize> {
         maps: &'a [Vec<usize>],
         excluded: &'a super::ExclusionIndex,
         cap: usize,
+        limit: u64,
     }
     fn walk(prefix: &mut Vec<i64>, w: &Walk, count: &mut usize, nodes: &mut u64) -> bool {
         let (k_max, l, maps) = (w.k_max, w.l, w.maps);
@@ -157,10 +169,14 @@ pub fn full_profile_count(enc: &Encoding, cap: usize) -> Option<usize> {
         }
         for v in 1..=l {
             prefix.push(v);
-            *nodes += 1 + w.excluded.count_at(prefix.len()) as u64;
-            let ok = *nodes <= WALK_WORK
+            *nodes += 1;
+            let ok = *nodes <= w.limit
                 && (!prefix_survives(prefix, maps, k_max)
-                    || w.excluded.falsified_at_end(prefix)
+                    || {
+                        let (falsified, tested) = w.excluded.test_at_end(prefix);
+                        *nodes += tested;
+                        falsified
+                    }
                     || walk(prefix, w, count, nodes));
             prefix.pop();
             if !ok {
@@ -176,8 +192,11 @@ pub fn full_profile_count(enc: &Encoding, cap: usize) -> Option<usize> {
         maps: &maps,
         excluded: &excluded,
         cap,
+        limit,
     };
-    walk(&mut Vec::new(), &w, &mut count, &mut 0).then_some(count)
+    let mut nodes = 0;
+    let done = walk(&mut Vec::new(), &w, &mut count, &mut nodes);
+    (done.then_some(count), nodes)
 }
 
 /// The cubes of the automatic strategy (see the module docs).
@@ -400,6 +419,27 @@ mod tests {
         }
     }
 
+    /// The walk's work on the questions that set [`WALK_WORK`], printed
+    /// with the time it takes (figures for its doc comment).
+    #[test]
+    #[ignore = "prints measurements; a few seconds in release"]
+    fn profile_walk_work_and_time() {
+        for (spec, dim, p) in [
+            ("-1..1", 5, 34),
+            ("-2..2", 4, 25),
+            ("-2..2", 4, 24),
+            ("0..3", 3, 36),
+        ] {
+            let e = enc(spec, dim, p);
+            let t = std::time::Instant::now();
+            let (count, work) = profile_walk(&e, FULL_PROFILE_CAP, u64::MAX);
+            eprintln!(
+                "{spec}^{dim} p={p}: {count:?} profiles, work {work}, {:.2?}",
+                t.elapsed()
+            );
+        }
+    }
+
     #[test]
     fn the_rule_takes_whole_profiles_below_the_cap_and_prefixes_above() {
         let small = choose_cubes(&enc("-1..1", 4, 17)).unwrap();
@@ -412,8 +452,16 @@ mod tests {
             full_profile_count(&enc_without_exclusions("-1..1", 5, 34), usize::MAX),
             Some(16_460)
         );
+        // {−2,…,2}^4, p = 25: 4,383 whole profiles, although its prefixes
+        // g(1..11) number more than 30,000 (most whole profiles are
+        // excluded at the last offset). The walk's work counts the clauses
+        // it really tests, not every clause at each depth, which had
+        // stopped it early here.
+        let m25 = enc("-2..2", 4, 25);
+        assert_eq!(full_profile_count(&m25, FULL_PROFILE_CAP), Some(4383));
+        assert_eq!(choose_cubes(&m25).unwrap().rule, "full-profile");
         // {−2,…,2}^4, p = 24: more than the cap even with the exclusions
-        // (`split --cubes 100000` stops at 100,000 prefixes of g(1..12)).
+        // (146,529 whole profiles, `split --cubes 200000`).
         let big = enc("-2..2", 4, 24);
         assert_eq!(full_profile_count(&big, FULL_PROFILE_CAP), None);
         let c = choose_cubes(&big).unwrap();

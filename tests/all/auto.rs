@@ -287,7 +287,14 @@ fn q0_3_n4_periods_24_and_28_are_refuted_in_whole_profile_cubes() {
 #[ignore = "about 2 hours on 2 cores and 11 GB of disk (25,674 whole-profile cubes, about 12,600 s of solving, then an 8-minute merge); run on purpose"]
 fn q0_3_n4_period_30_is_refuted_in_blocks_of_cubes() {
     let dir = TestDir::new();
-    refuted_in_blocks(&dir, &Q::cube(0, 3, 4, 30), 30_000, 25_674, &[], None);
+    refuted_in_blocks(
+        &dir,
+        &Q::cube(0, 3, 4, 30),
+        30_000,
+        25_674,
+        &[],
+        Handoff::None,
+    );
 }
 
 /// {0,1,2,3}^4, p = 32, refuted by computation on 2026-12-04 the same way
@@ -297,7 +304,14 @@ fn q0_3_n4_period_30_is_refuted_in_blocks_of_cubes() {
 #[ignore = "about 2 hours on 2 cores and 14 GB of disk (23,124 whole-profile cubes, about 11,000 s of solving, then a 5-minute merge); run on purpose"]
 fn q0_3_n4_period_32_is_refuted_in_blocks_of_cubes() {
     let dir = TestDir::new();
-    refuted_in_blocks(&dir, &Q::cube(0, 3, 4, 32), 30_000, 23_124, &[], None);
+    refuted_in_blocks(
+        &dir,
+        &Q::cube(0, 3, 4, 32),
+        30_000,
+        23_124,
+        &[],
+        Handoff::None,
+    );
 }
 
 /// {-1,0,1}^5, p = 36, refuted by computation on 2026-12-04 (README, "What
@@ -318,7 +332,7 @@ fn m1_n5_period_36_is_refuted_in_blocks_of_cubes() {
         20_000,
         4_412,
         &[3803, 4349],
-        None,
+        Handoff::None,
     );
 }
 
@@ -339,7 +353,7 @@ fn m2_n4_period_18_is_refuted_in_blocks_of_cubes() {
         20_000,
         10_333,
         &[],
-        Some("60"),
+        Handoff::Drat("60"),
     );
 }
 
@@ -360,7 +374,67 @@ fn m2_n4_period_22_is_refuted_in_blocks_of_cubes() {
         20_000,
         13_703,
         &[],
-        Some("60"),
+        Handoff::Drat("60"),
+    );
+}
+
+/// {−2,…,2}^4, p = 20, refuted by computation on 2026-12-04 (README, "What
+/// is proven and what is open"): 16,844 whole-profile cubes. The bundled
+/// solver gets each for 10 s and hands what it leaves open to a CaDiCaL that
+/// writes LRAT itself ([`Handoff::Lrat`]): with Debian's CaDiCaL, `rate`
+/// had not converted the 369 MB DRAT proof of cube 11844 within 2 hours.
+/// Nothing published settles it; the expectation is orbitcnf's own
+/// certified answer.
+#[test]
+#[ignore = "about 4 hours on 2 cores and 13 GB of disk (16,844 whole-profile cubes, 35 handed off to a CaDiCaL named by ORBITCNF_LRAT_CADICAL that writes LRAT, one for an hour); run on purpose"]
+fn m2_n4_period_20_is_refuted_in_blocks_of_cubes() {
+    let dir = TestDir::new();
+    refuted_in_blocks(
+        &dir,
+        &Q::cube(-2, 2, 4, 20),
+        200_000,
+        16_844,
+        &[],
+        Handoff::Lrat("10"),
+    );
+}
+
+/// {−2,…,2}^4, p = 25, refuted by computation on 2026-12-04 (README, "What
+/// is proven and what is open"): 4,383 whole-profile cubes in 11 minutes on
+/// 2 shared cores. Seven cubes were handed off after 10 s to a CaDiCaL that
+/// writes LRAT ([`Handoff::Lrat`]), the longest for 280 s. Nothing
+/// published settles it; the expectation is orbitcnf's own certified
+/// answer.
+#[test]
+#[ignore = "about 15 minutes on 2 cores and 1 GB of disk (4,383 whole-profile cubes, 7 handed off to a CaDiCaL named by ORBITCNF_LRAT_CADICAL that writes LRAT); run on purpose"]
+fn m2_n4_period_25_is_refuted_in_blocks_of_cubes() {
+    let dir = TestDir::new();
+    refuted_in_blocks(
+        &dir,
+        &Q::cube(-2, 2, 4, 25),
+        200_000,
+        4_383,
+        &[],
+        Handoff::Lrat("10"),
+    );
+}
+
+/// {−2,…,2}^4, p = 27, refuted by computation on 2026-12-04 (README, "What
+/// is proven and what is open"): 40,907 whole-profile cubes in 41 minutes
+/// on 2 shared cores, 11 handed off after 10 s to a CaDiCaL that writes
+/// LRAT ([`Handoff::Lrat`]), the longest for 993 s. Nothing published
+/// settles it; the expectation is orbitcnf's own certified answer.
+#[test]
+#[ignore = "about an hour on 2 cores and 2.4 GB of disk (40,907 whole-profile cubes, 11 handed off to a CaDiCaL named by ORBITCNF_LRAT_CADICAL that writes LRAT), then a merge of about 15 minutes; run on purpose"]
+fn m2_n4_period_27_is_refuted_in_blocks_of_cubes() {
+    let dir = TestDir::new();
+    refuted_in_blocks(
+        &dir,
+        &Q::cube(-2, 2, 4, 27),
+        200_000,
+        40_907,
+        &[],
+        Handoff::Lrat("10"),
     );
 }
 
@@ -368,25 +442,50 @@ fn m2_n4_period_22_is_refuted_in_blocks_of_cubes() {
 /// are long (docs/cluster.md measures why).
 const BLOCK: usize = 200;
 
+/// Where the blocks of [`refuted_in_blocks`] send the cubes that the
+/// bundled solver leaves open for the given number of seconds.
+enum Handoff<'a> {
+    /// Nowhere: the bundled solver answers every cube.
+    None,
+    /// To CaDiCaL on `PATH`, whose DRAT proof `rate` turns into LRAT.
+    Drat(&'a str),
+    /// To the CaDiCaL named by the environment variable [`LRAT_CADICAL`],
+    /// which writes LRAT itself (`--lrat`, CaDiCaL 2.0 on; Debian's 1.5
+    /// does not). For campaigns whose hardest cubes would keep `rate` for
+    /// hours on their DRAT proofs.
+    Lrat(&'a str),
+}
+
+/// The environment variable that names a CaDiCaL able to write LRAT
+/// (`--lrat`), for [`Handoff::Lrat`].
+const LRAT_CADICAL: &str = "ORBITCNF_LRAT_CADICAL";
+
 /// `split` of `q` into whole-profile cubes (asking for `requested`; there
 /// must be `cubes`), `run-cube` with binary proofs on blocks of at most
 /// [`BLOCK`] cubes under GNU parallel, except the cubes in `hard`, which
 /// CaDiCaL refutes with a DRAT proof (turned into LRAT by `rate`), and
-/// `merge`: infeasible, every cube refuted with a checked proof. With
-/// `handoff_after`, the blocks hand every cube the bundled solver leaves
-/// open for that many seconds to CaDiCaL in the same way.
+/// `merge`: infeasible, every cube refuted with a checked proof. The
+/// blocks hand the cubes the bundled solver leaves open as `handoff` says.
 fn refuted_in_blocks(
     dir: &TestDir,
     q: &Q,
     requested: usize,
     cubes: usize,
     hard: &[usize],
-    handoff_after: Option<&str>,
+    handoff: Handoff,
 ) {
     crate::util::require_tools(&["parallel"]);
-    if !hard.is_empty() || handoff_after.is_some() {
+    if !hard.is_empty() || matches!(handoff, Handoff::Drat(_)) {
         crate::util::require_tools(&["cadical", "rate"]);
     }
+    let lrat_cadical = match handoff {
+        Handoff::Lrat(_) => Some(std::env::var(LRAT_CADICAL).unwrap_or_else(|_| {
+            panic!(
+                "this check needs {LRAT_CADICAL}, the path of a CaDiCaL that writes LRAT (--lrat)"
+            )
+        })),
+        _ => None,
+    };
     dir.orbitcnf()
         .arg("split")
         .args(q.args())
@@ -412,16 +511,28 @@ fn refuted_in_blocks(
         }
     }
     // `-I @@`: the block goes where `@@` is, and `{}` stays for --proof-arg.
-    let handoff: Vec<&str> = match handoff_after {
-        Some(after) => vec![
+    let handoff: Vec<String> = match (handoff, lrat_cadical) {
+        (Handoff::Drat(after), _) => [
             "--solver",
             "external:'cadical -q'",
             "--proof-arg",
             "'{}'",
             "--handoff-after",
             after,
+        ]
+        .map(String::from)
+        .to_vec(),
+        (Handoff::Lrat(after), Some(cadical)) => vec![
+            "--solver".into(),
+            format!("external:'{cadical} -q --lrat'"),
+            "--proof-arg".into(),
+            "'{}'".into(),
+            "--proof-format".into(),
+            "lrat".into(),
+            "--handoff-after".into(),
+            after.into(),
         ],
-        None => Vec::new(),
+        _ => Vec::new(),
     };
     dir.program("parallel")
         .args(["--will-cite", "-j", "2", "-I", "@@"])

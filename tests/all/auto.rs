@@ -401,12 +401,13 @@ fn m2_n4_period_20_is_refuted_in_blocks_of_cubes() {
 
 /// {−2,…,2}^4, p = 25, refuted by computation on 2026-12-04 (README, "What
 /// is proven and what is open"): 4,383 whole-profile cubes in 11 minutes on
-/// 2 shared cores. Seven cubes were handed off after 10 s to a CaDiCaL that
-/// writes LRAT ([`Handoff::Lrat`]), the longest for 280 s. Nothing
+/// 2 shared cores; this test, run the same evening, passed in 307 s. Seven
+/// cubes were handed off after 10 s to a CaDiCaL that writes LRAT
+/// ([`Handoff::Lrat`]), the longest for 280 s. Nothing
 /// published settles it; the expectation is orbitcnf's own certified
 /// answer.
 #[test]
-#[ignore = "about 15 minutes on 2 cores and 1 GB of disk (4,383 whole-profile cubes, 7 handed off to a CaDiCaL named by ORBITCNF_LRAT_CADICAL that writes LRAT); run on purpose"]
+#[ignore = "about 5 minutes on 2 cores (307 s on 2026-12-04 beside another campaign) and 1 GB of disk (4,383 whole-profile cubes, some handed off to a CaDiCaL named by ORBITCNF_LRAT_CADICAL that writes LRAT); run on purpose"]
 fn m2_n4_period_25_is_refuted_in_blocks_of_cubes() {
     let dir = TestDir::new();
     refuted_in_blocks(

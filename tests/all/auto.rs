@@ -420,6 +420,27 @@ fn m2_n4_period_25_is_refuted_in_blocks_of_cubes() {
     );
 }
 
+/// {−2,…,2}^4, p = 26, refuted by computation on 2026-12-04 (README, "What
+/// is proven and what is open"): this test is the run of record, 7 min 14 s
+/// on 2 quiet cores. An earlier campaign on shared cores had refuted all
+/// 33,348 whole-profile cubes, 8 handed off after 10 s to a CaDiCaL that
+/// writes LRAT ([`Handoff::Lrat`]), the longest for 99 s; one solve of the
+/// whole question had no answer in 900 s. Nothing published settles it;
+/// the expectation is orbitcnf's own certified answer.
+#[test]
+#[ignore = "about 7 minutes on 2 cores (434 s on 2026-12-04, merge included) and 3.4 GB of disk (33,348 whole-profile cubes, some handed off to a CaDiCaL named by ORBITCNF_LRAT_CADICAL that writes LRAT); run on purpose"]
+fn m2_n4_period_26_is_refuted_in_blocks_of_cubes() {
+    let dir = TestDir::new();
+    refuted_in_blocks(
+        &dir,
+        &Q::cube(-2, 2, 4, 26),
+        200_000,
+        33_348,
+        &[],
+        Handoff::Lrat("10"),
+    );
+}
+
 /// {−2,…,2}^4, p = 27, refuted by computation on 2026-12-04 (README, "What
 /// is proven and what is open"): 40,907 whole-profile cubes in 41 minutes
 /// on 2 shared cores, 11 handed off after 10 s to a CaDiCaL that writes

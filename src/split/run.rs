@@ -25,7 +25,7 @@ use std::time::Instant;
 
 use serde::{Deserialize, Serialize};
 
-use super::layout::{cube_problem, cube_units, formula_problem};
+use super::layout::{CubeScratch, cube_problem, cube_units, formula_problem};
 use super::{
     Cube, CubeEntry, RESULTS_DIR, SplitManifest, coverage_sources, index_ranges as list,
     verify_split,
@@ -378,13 +378,14 @@ impl CubeRunner<'_> {
             cone_limit: crate::proof::sequence::CONE_LIMIT,
         };
         let mut unknown = Vec::new();
+        let mut scratch = CubeScratch::new(&f);
         let solved =
             crate::proof::sequence::solve_in_sequence(&f.0.cnf, todo, &opts, |index, s| {
                 let mut found = Found {
                     answer: Some(s),
                     proof_target: lrat_target(self.dir, index),
                 };
-                let outcome = match self.run_with(index, &mut found, &f) {
+                let outcome = match self.run_with(index, &mut found, &f, &mut scratch) {
                     Ok(outcome) => outcome,
                     Err(e) if recorded_error(self.dir, index, &e) => {
                         each(Err((index, &e)))?;
@@ -421,8 +422,22 @@ impl CubeRunner<'_> {
         index: usize,
         found: &mut Found,
         base: &(CnfFile, String),
+        scratch: &mut CubeScratch,
     ) -> Result<RunOutcome> {
-        self.solve_entry(index, found, &Limits::default(), Some(base))
+        let entry = &self.m.cubes[index];
+        if entry.file.is_some() {
+            return self.solve_entry(index, found, &Limits::default(), Some(base));
+        }
+        let (cnf, name) = scratch.with_units(self.dir, entry)?;
+        solve_one(
+            self.dir,
+            entry,
+            &base.0,
+            cnf,
+            &name,
+            found,
+            &Limits::default(),
+        )
     }
 
     /// Solves cube `index` with `backend` and writes its result: its own

@@ -712,7 +712,10 @@ fn lying_solvers_are_caught() {
             &format!("external:{}", cases[0].0),
         ])
         .run()
-        .error_with(&["its model is wrong"]);
+        .code(1)
+        .stderr_has("orbitcnf: cube 0: error: ")
+        .stderr_has("its model is wrong")
+        .stderr_has("orbitcnf: error: cube 0 ended in an error, recorded in its result");
     let r: Value = serde_json::from_str(&dir.read("sp/results/cube-0000.json")).unwrap();
     assert_eq!(r["status"], "error");
     // Cube 0 failed and the others were never run: unknown, with cube 0 listed as an error.

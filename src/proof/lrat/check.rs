@@ -6,7 +6,7 @@ use std::path::Path;
 
 use super::read::{LratReader, Step, StepKind};
 use super::{LratError, LratFileError, LratFormat, LratOptions, LratReason, LratSummary};
-use crate::cnf::Cnf;
+use crate::cnf::{Cnf, Lit};
 
 /// Checks an LRAT proof (text or binary, detected) that `cnf` is unsatisfiable.
 ///
@@ -195,14 +195,53 @@ impl Entry {
     }
 }
 
-/// Clause storage by id.
-struct Db {
-    /// Ids, strictly increasing; empty while the ids are `1, 2, …` (dense),
-    /// so that an id is its own index.
+/// The literals of one live clause: a clause of the CNF, read in place, or
+/// one the proof added, stored as codes.
+#[derive(Clone, Copy, Debug)]
+enum Lits<'a> {
+    Cnf(&'a [Lit]),
+    Added(&'a [u32]),
+}
+
+impl<'a> Lits<'a> {
+    /// The literal codes (see [`code_of`]).
+    fn codes(self) -> impl Iterator<Item = u32> + Clone + 'a {
+        let (cnf, added): (&[Lit], &[u32]) = match self {
+            Lits::Cnf(l) => (l, &[]),
+            Lits::Added(c) => (&[], c),
+        };
+        cnf.iter()
+            .map(|l| code_of(l.dimacs()))
+            .chain(added.iter().copied())
+    }
+}
+
+/// Where a clause id lives.
+#[derive(Clone, Copy)]
+enum Slot {
+    /// Clause `i` of the CNF (id `i + 1`).
+    Cnf(usize),
+    /// Entry `i` of the added clauses.
+    Added(usize),
+}
+
+/// Clause storage by id: the CNF's clauses (ids `1..=m`) are read where
+/// they are, so a check costs nothing per clause of the CNF that the proof
+/// never names (a cube's proof of a few hundred steps against a formula of
+/// a million clauses, checked once per cube); only the clauses the proof
+/// adds are stored.
+struct Db<'a> {
+    cnf: &'a Cnf,
+    /// For each clause of the CNF, the step that deleted it, or 0 while it
+    /// is live (steps count from 1). Empty until the first deletion of a
+    /// CNF clause.
+    cnf_deleted: Vec<u64>,
+    /// Ids of the added clauses, strictly increasing; empty while they are
+    /// `m + 1, m + 2, …` (dense), so that an id gives its index directly.
     ids: Vec<u64>,
     entries: Vec<Entry>,
-    /// Literal codes of the live clauses, back to back (with the gaps of
-    /// deleted ones until the next compaction).
+    /// Literal codes of the live added clauses, back to back (with the gaps
+    /// of deleted ones until the next compaction).
     lits: Vec<u32>,
     /// Literals in `lits` that belong to deleted clauses.
     dead: usize,
@@ -210,34 +249,35 @@ struct Db {
     max_id: u64,
 }
 
-impl Db {
+impl<'a> Db<'a> {
     /// Below this many stored literals the array is never compacted.
     const COMPACT_MIN: usize = 1 << 16;
 
-    fn new(cnf: &Cnf) -> Db {
-        let mut db = Db {
+    fn new(cnf: &'a Cnf) -> Db<'a> {
+        Db {
+            cnf,
+            cnf_deleted: Vec::new(),
             ids: Vec::new(),
-            entries: Vec::with_capacity(cnf.num_clauses() * 2),
-            lits: Vec::with_capacity(cnf.num_lits() * 2),
+            entries: Vec::new(),
+            lits: Vec::new(),
             dead: 0,
             dense: true,
-            max_id: 0,
-        };
-        let mut buf = Vec::new();
-        for (i, clause) in cnf.clauses().enumerate() {
-            buf.clear();
-            buf.extend(clause.iter().map(|l| code_of(l.dimacs())));
-            db.push(i as u64 + 1, &buf);
+            max_id: cnf.num_clauses() as u64,
         }
-        db
     }
 
-    /// Stores a clause; `id` must exceed every id so far.
+    /// The number of clauses of the CNF, `m`.
+    fn m(&self) -> u64 {
+        self.cnf.num_clauses() as u64
+    }
+
+    /// Stores an added clause; `id` must exceed every id so far (and so `m`).
     fn push(&mut self, id: u64, lits: &[u32]) {
         debug_assert!(id > self.max_id);
-        if self.dense && id != self.entries.len() as u64 + 1 {
+        if self.dense && id != self.m() + self.entries.len() as u64 + 1 {
             self.dense = false;
-            self.ids = (1..=self.entries.len() as u64).collect();
+            let m = self.m();
+            self.ids = (1..=self.entries.len() as u64).map(|k| m + k).collect();
         }
         if !self.dense {
             self.ids.push(id);
@@ -253,42 +293,71 @@ impl Db {
         self.max_id = id;
     }
 
-    fn index(&self, id: u64) -> Option<usize> {
+    fn index(&self, id: u64) -> Option<Slot> {
+        let i = id.checked_sub(1)?;
+        if i < self.m() {
+            return Some(Slot::Cnf(i as usize));
+        }
         if self.dense {
-            let i = id.checked_sub(1)? as usize;
-            (i < self.entries.len()).then_some(i)
+            let k = (i - self.m()) as usize;
+            (k < self.entries.len()).then_some(Slot::Added(k))
         } else {
-            self.ids.binary_search(&id).ok()
+            self.ids.binary_search(&id).ok().map(Slot::Added)
         }
     }
 
-    /// The literals of the live clause at `index`, or the step that deleted it.
-    fn clause(&self, index: usize) -> Result<&[u32], u64> {
-        let e = self.entries[index];
-        match e.deleted_in() {
-            Some(step) => Err(step),
-            None => Ok(&self.lits[e.start as usize..e.start as usize + e.len as usize]),
+    /// The literals of the live clause at `slot`, or the step that deleted it.
+    fn clause(&self, slot: Slot) -> Result<Lits<'_>, u64> {
+        match slot {
+            Slot::Cnf(i) => match self.cnf_deleted.get(i) {
+                Some(&step) if step != 0 => Err(step),
+                _ => Ok(Lits::Cnf(self.cnf.clause(i))),
+            },
+            Slot::Added(k) => {
+                let e = self.entries[k];
+                match e.deleted_in() {
+                    Some(step) => Err(step),
+                    None => Ok(Lits::Added(
+                        &self.lits[e.start as usize..e.start as usize + e.len as usize],
+                    )),
+                }
+            }
         }
     }
 
     fn delete(&mut self, id: u64, step: u64) -> Result<(), LratReason> {
-        let i = self
-            .index(id)
-            .ok_or(LratReason::DeleteUnknown { clause: id })?;
-        let e = &mut self.entries[i];
-        if let Some(first) = e.deleted_in() {
-            return Err(LratReason::DeleteDeleted {
-                clause: id,
-                deleted_in_step: first,
-            });
-        }
-        self.dead += e.len as usize;
-        *e = Entry {
-            start: step,
-            len: Entry::DELETED,
+        let already = |first| LratReason::DeleteDeleted {
+            clause: id,
+            deleted_in_step: first,
         };
-        if self.dead > Self::COMPACT_MIN && 2 * self.dead > self.lits.len() {
-            self.compact();
+        match self
+            .index(id)
+            .ok_or(LratReason::DeleteUnknown { clause: id })?
+        {
+            Slot::Cnf(i) => {
+                if self.cnf_deleted.is_empty() {
+                    self.cnf_deleted = vec![0; self.cnf.num_clauses()];
+                }
+                let d = &mut self.cnf_deleted[i];
+                if *d != 0 {
+                    return Err(already(*d));
+                }
+                *d = step;
+            }
+            Slot::Added(k) => {
+                let e = &mut self.entries[k];
+                if let Some(first) = e.deleted_in() {
+                    return Err(already(first));
+                }
+                self.dead += e.len as usize;
+                *e = Entry {
+                    start: step,
+                    len: Entry::DELETED,
+                };
+                if self.dead > Self::COMPACT_MIN && 2 * self.dead > self.lits.len() {
+                    self.compact();
+                }
+            }
         }
         Ok(())
     }
@@ -373,11 +442,11 @@ impl Propagator {
             // is skipped: the rest of the hints must still reach the
             // conflict, so accepting it adds no trust. CaDiCaL 2.2's LRAT
             // proofs hold such redundant hints.
-            if clause.iter().any(|&c| self.val[c as usize] == 1) {
+            if clause.codes().any(|c| self.val[c as usize] == 1) {
                 continue;
             }
             let mut unit: Option<u32> = None;
-            for &c in clause {
+            for c in clause.codes() {
                 if self.val[(c ^ 1) as usize] == 1 {
                     continue;
                 }
@@ -632,12 +701,17 @@ mod tests {
             "{}",
             db.lits.len()
         );
-        assert_eq!(
-            db.clause(db.index(3 + rounds).unwrap()),
-            Ok(&[2, 3, 4, 2][..])
-        );
-        assert_eq!(db.clause(db.index(1).unwrap()), Ok(&[2, 4][..]));
-        assert_eq!(db.clause(db.index(5).unwrap()), Err(2));
+        let codes = |db: &Db, id| {
+            db.clause(db.index(id).unwrap())
+                .map(|l| l.codes().collect::<Vec<_>>())
+        };
+        assert_eq!(codes(&db, 3 + rounds), Ok(vec![2, 3, 4, 2]));
+        assert_eq!(codes(&db, 1), Ok(vec![2, 4]));
+        assert_eq!(codes(&db, 5), Err(2));
         assert!(db.ids.is_empty(), "ids 1, 2, … are found without a list");
+        assert!(
+            db.cnf_deleted.is_empty(),
+            "no clause of the CNF was deleted"
+        );
     }
 }

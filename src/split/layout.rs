@@ -153,18 +153,14 @@ pub fn cube_units(
 ) -> Result<(crate::cnf::Cnf, String)> {
     let mut scratch = CubeScratch::new(base);
     let name = scratch.with_units(dir, entry)?.1;
-    Ok((scratch.cnf, name))
+    Ok((scratch.cnf.into_cnf(), name))
 }
 
 /// The clauses of [`cube_units`] for one cube after another of a range,
-/// in one buffer: the formula's clauses are copied once, and each cube
-/// replaces the units of the one before. A range of small cubes spent most
-/// of its time copying the formula per cube before (measured on
-/// 2026-12-04: 1,000 cubes of {−2,…,2}^4, p = 29, 6.6 s of CPU, of which
-/// the copies and the checker's own copy of the formula were most).
+/// in one buffer ([`crate::cnf::WithUnits`]): the formula's clauses are
+/// copied once, and each cube replaces the units of the one before.
 pub struct CubeScratch {
-    cnf: crate::cnf::Cnf,
-    base_clauses: usize,
+    cnf: crate::cnf::WithUnits,
     name: String,
 }
 
@@ -172,8 +168,7 @@ impl CubeScratch {
     /// A buffer holding the clauses of `base` ([`formula_problem`]).
     pub fn new(base: &(CnfFile, String)) -> CubeScratch {
         CubeScratch {
-            cnf: base.0.cnf.clone(),
-            base_clauses: base.0.cnf.num_clauses(),
+            cnf: crate::cnf::WithUnits::new(&base.0.cnf),
             name: base.1.clone(),
         }
     }
@@ -183,31 +178,30 @@ impl CubeScratch {
     ///
     /// # Errors
     /// [`Error::Parse`] naming the manifest when a literal is not a variable
-    /// of the formula (the buffer then holds the formula alone).
+    /// of the formula.
     pub fn with_units(
         &mut self,
         dir: &Path,
         entry: &CubeEntry,
     ) -> Result<(&crate::cnf::Cnf, String)> {
-        self.cnf.truncate(self.base_clauses);
-        for l in entry.cube.lits() {
-            if l.var().index() >= self.cnf.num_vars() as usize {
-                self.cnf.truncate(self.base_clauses);
-                return Err(Error::parse(
-                    dir.join(MANIFEST).display().to_string(),
-                    0,
-                    format!(
-                        "cube {} has the literal {}, not a variable of the formula",
-                        entry.cube.index,
-                        l.dimacs()
-                    ),
-                ));
-            }
-            self.cnf.add_clause(&[l]);
+        let vars = self.cnf.cnf().num_vars() as usize;
+        if let Some(l) = entry
+            .cube
+            .lits()
+            .into_iter()
+            .find(|l| l.var().index() >= vars)
+        {
+            return Err(Error::parse(
+                dir.join(MANIFEST).display().to_string(),
+                0,
+                format!(
+                    "cube {} has the literal {}, not a variable of the formula",
+                    entry.cube.index,
+                    l.dimacs()
+                ),
+            ));
         }
-        Ok((
-            &self.cnf,
-            format!("{} with cube {}", self.name, entry.cube.index),
-        ))
+        let name = format!("{} with cube {}", self.name, entry.cube.index);
+        Ok((self.cnf.set(entry.cube.lits()), name))
     }
 }

@@ -911,8 +911,25 @@ pub fn merge(
     // cube order afterwards, so it does not depend on their timing.
     let mut checked: Vec<Option<Checked>> = vec![None; m.cubes.len()];
     let stop = std::sync::atomic::AtomicBool::new(false);
-    let work = |k: usize| check_result(dir, &m.cubes[k], &q, &m.options, &enc.cnf, accept_claims);
-    crate::pool::run(m.cubes.len(), jobs, &stop, work, |event, state| {
+    // One buffer of formula + cube units per thread (`WithUnits`): copying
+    // the formula per cube was most of the time of a merge of small cubes.
+    let work = |pull: &mut dyn FnMut() -> Option<usize>, push: &mut dyn FnMut(usize, Checked)| {
+        let mut scratch = crate::cnf::WithUnits::new(&enc.cnf);
+        while let Some(k) = pull() {
+            push(
+                k,
+                check_result(
+                    dir,
+                    &m.cubes[k],
+                    &q,
+                    &m.options,
+                    &mut scratch,
+                    accept_claims,
+                ),
+            );
+        }
+    };
+    crate::pool::run_streams(m.cubes.len(), jobs, &stop, work, |event, state| {
         if let crate::pool::Event::Finished(k, c) = event {
             checked[k] = Some(c);
         }
@@ -1019,7 +1036,7 @@ fn check_result(
     entry: &CubeEntry,
     q: &Question,
     options: &EncodeOptions,
-    formula: &Cnf,
+    formula: &mut crate::cnf::WithUnits,
     accept_claims: bool,
 ) -> Checked {
     let i = entry.cube.index;
@@ -1073,7 +1090,7 @@ fn check_result(
                     )
                     .kind
                 }
-                Some(p) => match check_cube_proof(dir, i, p, &cube_cnf(formula, &entry.cube)) {
+                Some(p) => match check_cube_proof(dir, i, p, formula.set(entry.cube.lits())) {
                     Ok(path) => CheckedKind::Certified(path),
                     Err(e) => pending("rejected", e.to_string()).kind,
                 },

@@ -295,6 +295,28 @@ mod tests {
     use super::*;
 
     #[test]
+    fn units_replace_the_units_of_the_use_before() {
+        let mut f = Cnf::new();
+        f.add_clause(&[Lit::from_dimacs(1), Lit::from_dimacs(-2)]);
+        f.add_clause(&[Lit::from_dimacs(2), Lit::from_dimacs(3)]);
+        let mut w = WithUnits::new(&f);
+        let lits = |c: &Cnf| c.clauses().map(<[Lit]>::to_vec).collect::<Vec<_>>();
+        let a = w.set([Lit::from_dimacs(-1), Lit::from_dimacs(3)]);
+        assert_eq!(a.num_clauses(), 4);
+        assert_eq!(a.clause(3), &[Lit::from_dimacs(3)]);
+        let b = lits(w.set([Lit::from_dimacs(2)]));
+        let mut expected = lits(&f);
+        expected.push(vec![Lit::from_dimacs(2)]);
+        assert_eq!(b, expected);
+        assert_eq!(lits(w.set([])), lits(&f));
+        let mut t = f.clone();
+        t.truncate(5);
+        assert_eq!(t.num_clauses(), 2);
+        t.truncate(0);
+        assert_eq!((t.num_clauses(), t.num_lits(), t.num_vars()), (0, 0, 3));
+    }
+
+    #[test]
     fn literals_and_clauses() {
         let a = Var::from_dimacs(1);
         let b = Var::from_dimacs(3);

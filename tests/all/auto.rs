@@ -420,6 +420,46 @@ fn m2_n4_period_25_is_refuted_in_blocks_of_cubes() {
     );
 }
 
+/// {−2,…,2}^4, p = 24, refuted by computation on 2026-12-04 (README, "What
+/// is proven and what is open"): 146,529 whole-profile cubes in about 66
+/// minutes on 2 shared cores, 69 handed off after 10 s to a CaDiCaL that
+/// writes LRAT ([`Handoff::Lrat`]), the longest for 1,408 s; the merge 2 min
+/// 42 s. Nothing published settles it; the expectation is orbitcnf's own
+/// certified answer.
+#[test]
+#[ignore = "about 70 minutes on 2 cores and 32 GB of disk (146,529 whole-profile cubes, 69 handed off to a CaDiCaL named by ORBITCNF_LRAT_CADICAL that writes LRAT), then a merge of about 3 minutes; run on purpose"]
+fn m2_n4_period_24_is_refuted_in_blocks_of_cubes() {
+    let dir = TestDir::new();
+    refuted_in_blocks(
+        &dir,
+        &Q::cube(-2, 2, 4, 24),
+        1_000_000,
+        146_529,
+        &[],
+        Handoff::Lrat("10"),
+    );
+}
+
+/// {−2,…,2}^4, p = 29: a prime period above 2^4, so excluded on all of R^4
+/// by the theorem on prime periods (R. Lyons and R. D. Nussbaum, 1992; a
+/// proof in B. Lemmens and R. D. Nussbaum, Nonlinear Perron–Frobenius
+/// Theory, Cambridge University Press, 2012) **[recalled]**: a test of the
+/// method on 8,930 whole-profile cubes (62 s of cubes and a 25 s merge on
+/// 2026-12-04, one cube handed off for 8 s).
+#[test]
+#[ignore = "about 2 minutes on 2 cores and 0.6 GB of disk (8,930 whole-profile cubes, one handed off to a CaDiCaL named by ORBITCNF_LRAT_CADICAL that writes LRAT); run on purpose"]
+fn m2_n4_period_29_is_refuted_in_blocks_of_cubes() {
+    let dir = TestDir::new();
+    refuted_in_blocks(
+        &dir,
+        &Q::cube(-2, 2, 4, 29),
+        200_000,
+        8_930,
+        &[],
+        Handoff::Lrat("10"),
+    );
+}
+
 /// {−2,…,2}^4, p = 26, refuted by computation on 2026-12-04 (README, "What
 /// is proven and what is open"): this test is the run of record, 7 min 14 s
 /// on 2 quiet cores. An earlier campaign on shared cores had refuted all

@@ -440,6 +440,26 @@ fn m2_n4_period_24_is_refuted_in_blocks_of_cubes() {
     );
 }
 
+/// {−2,…,2}^4, p = 28, refuted by computation on 2026-12-04 (README, "What
+/// is proven and what is open"): 215,234 whole-profile cubes, all but one in
+/// 45 minutes on 2 shared cores; 23 handed off after 10 s to a CaDiCaL that
+/// writes LRAT ([`Handoff::Lrat`]), the longest (cube 199478) for 1,304 s;
+/// the merge 2 min 15 s. Nothing published settles it; the expectation is
+/// orbitcnf's own certified answer.
+#[test]
+#[ignore = "about 70 minutes on 2 cores and 22 GB of disk (215,234 whole-profile cubes, 23 handed off to a CaDiCaL named by ORBITCNF_LRAT_CADICAL that writes LRAT, one for 22 minutes), then a merge of about 2 minutes; run on purpose"]
+fn m2_n4_period_28_is_refuted_in_blocks_of_cubes() {
+    let dir = TestDir::new();
+    refuted_in_blocks(
+        &dir,
+        &Q::cube(-2, 2, 4, 28),
+        1_000_000,
+        215_234,
+        &[],
+        Handoff::Lrat("10"),
+    );
+}
+
 /// {−2,…,2}^4, p = 29: a prime period above 2^4, so excluded on all of R^4
 /// by the theorem on prime periods (R. Lyons and R. D. Nussbaum, 1992; a
 /// proof in B. Lemmens and R. D. Nussbaum, Nonlinear Perron–Frobenius

@@ -268,15 +268,24 @@ impl WithUnits {
     }
 
     /// The formula with `units` as unit clauses after its own, in order
-    /// (the CNF a cube file holds). A unit over a variable beyond the
-    /// formula's raises the variable count, which stays raised for the uses
-    /// after it.
-    pub fn set(&mut self, units: impl IntoIterator<Item = Lit>) -> &Cnf {
+    /// (the CNF a cube file holds).
+    ///
+    /// # Errors
+    /// The first unit over a variable the formula does not have: a cube that
+    /// names one is not a cube of this formula, and adding it would raise
+    /// the variable count for every use after it. The buffer then holds
+    /// the formula alone.
+    pub fn set(&mut self, units: impl IntoIterator<Item = Lit>) -> Result<&Cnf, Lit> {
         self.cnf.truncate(self.base);
+        let vars = self.cnf.num_vars() as usize;
         for l in units {
+            if l.var().index() >= vars {
+                self.cnf.truncate(self.base);
+                return Err(l);
+            }
             self.cnf.add_clause(&[l]);
         }
-        &self.cnf
+        Ok(&self.cnf)
     }
 
     /// The formula with the units of the last [`WithUnits::set`].
@@ -301,14 +310,22 @@ mod tests {
         f.add_clause(&[Lit::from_dimacs(2), Lit::from_dimacs(3)]);
         let mut w = WithUnits::new(&f);
         let lits = |c: &Cnf| c.clauses().map(<[Lit]>::to_vec).collect::<Vec<_>>();
-        let a = w.set([Lit::from_dimacs(-1), Lit::from_dimacs(3)]);
+        let a = w.set([Lit::from_dimacs(-1), Lit::from_dimacs(3)]).unwrap();
         assert_eq!(a.num_clauses(), 4);
         assert_eq!(a.clause(3), &[Lit::from_dimacs(3)]);
-        let b = lits(w.set([Lit::from_dimacs(2)]));
+        let b = lits(w.set([Lit::from_dimacs(2)]).unwrap());
         let mut expected = lits(&f);
         expected.push(vec![Lit::from_dimacs(2)]);
         assert_eq!(b, expected);
-        assert_eq!(lits(w.set([])), lits(&f));
+        assert_eq!(lits(w.set([]).unwrap()), lits(&f));
+        // A unit beyond the formula's variables is refused, and the buffer
+        // keeps neither it nor the units before it.
+        assert_eq!(
+            w.set([Lit::from_dimacs(1), Lit::from_dimacs(-4)]),
+            Err(Lit::from_dimacs(-4))
+        );
+        assert_eq!(lits(w.cnf()), lits(&f));
+        assert_eq!(w.cnf().num_vars(), 3);
         let mut t = f.clone();
         t.truncate(5);
         assert_eq!(t.num_clauses(), 2);

@@ -467,7 +467,16 @@ fn stream_cubes(
         let run = match s.answer {
             CubeAnswer::Sat(m) => CubeRun::Sat(m),
             CubeAnswer::Unsat { proof, .. } => {
-                checked_and_lifted(f, scratch.set(cube.lits()), cube, opts, &proof)
+                match scratch.set(cube.lits()) {
+                    Ok(cnf) => checked_and_lifted(f, cnf, cube, opts, &proof),
+                    // The cubes come from this split of `f`; a stranger
+                    // literal is a bug, reported as a failure, not a panic.
+                    Err(l) => CubeRun::Failed(Error::Options(format!(
+                        "cube {} has the literal {}, not a variable of the formula",
+                        cube.index,
+                        l.dimacs()
+                    ))),
+                }
             }
             CubeAnswer::Unknown(_) if stop.load(Ordering::Relaxed) => {
                 CubeRun::Unknown("stopped: another cube is satisfiable".into())

@@ -184,14 +184,10 @@ impl CubeScratch {
         dir: &Path,
         entry: &CubeEntry,
     ) -> Result<(&crate::cnf::Cnf, String)> {
-        let vars = self.cnf.cnf().num_vars() as usize;
-        if let Some(l) = entry
-            .cube
-            .lits()
-            .into_iter()
-            .find(|l| l.var().index() >= vars)
-        {
-            return Err(Error::parse(
+        let name = format!("{} with cube {}", self.name, entry.cube.index);
+        match self.cnf.set(entry.cube.lits()) {
+            Ok(cnf) => Ok((cnf, name)),
+            Err(l) => Err(Error::parse(
                 dir.join(MANIFEST).display().to_string(),
                 0,
                 format!(
@@ -199,9 +195,7 @@ impl CubeScratch {
                     entry.cube.index,
                     l.dimacs()
                 ),
-            ));
+            )),
         }
-        let name = format!("{} with cube {}", self.name, entry.cube.index);
-        Ok((self.cnf.set(entry.cube.lits()), name))
     }
 }

@@ -25,7 +25,7 @@ use std::time::Instant;
 
 use serde::{Deserialize, Serialize};
 
-use super::layout::{CubeScratch, cube_problem, cube_units, formula_problem};
+use super::layout::{CubeScratch, cube_problem, formula_problem};
 use super::{
     Cube, CubeEntry, RESULTS_DIR, SplitManifest, coverage_sources, index_ranges as list,
     verify_split,
@@ -221,16 +221,32 @@ pub fn run_cube(
 
 /// Runs cubes of one split folder one after another, reading the manifest
 /// once and, in the compact layout, `formula.cnf` once (checked against its
-/// digest, then copied for each cube). Measured on {0,1,2,3}^4 with
-/// p = 28: ten easy cubes took 5.0 s as ten processes and 3.5 s in one.
+/// digest, then held in one buffer whose units change from cube to cube).
+/// Measured on {0,1,2,3}^4 with p = 28: ten easy cubes took 5.0 s as ten
+/// processes and 3.5 s in one.
 pub struct CubeRunner<'a> {
     dir: &'a Path,
     m: SplitManifest,
-    formula: Option<(CnfFile, String)>,
+    formula: Option<Compact>,
     /// Whether `results/` was swept of abandoned temporary files. Once per
     /// runner: the folder holds two files per solved cube, and listing it
     /// for every cube made a long range quadratic.
     swept: bool,
+}
+
+/// The compact layout's formula, read once per runner, and the buffer in
+/// which each cube's units follow its clauses.
+struct Compact {
+    base: (CnfFile, String),
+    scratch: CubeScratch,
+}
+
+impl Compact {
+    fn read(dir: &Path, m: &SplitManifest) -> Result<Compact> {
+        let base = formula_problem(dir, m)?;
+        let scratch = CubeScratch::new(&base);
+        Ok(Compact { base, scratch })
+    }
 }
 
 impl<'a> CubeRunner<'a> {
@@ -294,10 +310,17 @@ impl<'a> CubeRunner<'a> {
             return Ok(RunOutcome::AlreadyDone(r));
         }
         if entry.file.is_none() && self.formula.is_none() {
-            self.formula = Some(formula_problem(dir, m)?);
+            self.formula = Some(Compact::read(dir, m)?);
         }
         self.sweep_once();
-        let mut outcome = self.solve_entry(index, backend, limits, self.formula.as_ref())?;
+        let mut outcome = solve_entry(
+            self.dir,
+            &self.m,
+            index,
+            backend,
+            limits,
+            self.formula.as_mut().map(|c| (&c.base.0, &mut c.scratch)),
+        )?;
         if let (Some(after), RunOutcome::Solved(r)) = (handed_off_after, &mut outcome) {
             r.handed_off_after = Some(after);
             write_result(dir, r)?;
@@ -367,9 +390,9 @@ impl CubeRunner<'_> {
         }
         self.sweep_once();
         if self.formula.is_none() {
-            self.formula = Some(formula_problem(self.dir, &self.m)?);
+            self.formula = Some(Compact::read(self.dir, &self.m)?);
         }
-        let f = self.formula.take().expect("read just above");
+        let mut f = self.formula.take().expect("read just above");
         let opts = crate::proof::sequence::SequenceOptions {
             per_cube: run.per_cube,
             deadline: None,
@@ -378,16 +401,25 @@ impl CubeRunner<'_> {
             cone_limit: crate::proof::sequence::CONE_LIMIT,
         };
         let mut unknown = Vec::new();
-        let mut scratch = CubeScratch::new(&f);
+        let (dir, m) = (self.dir, &self.m);
+        let (base, scratch) = (&f.base.0, &mut f.scratch);
         let solved =
-            crate::proof::sequence::solve_in_sequence(&f.0.cnf, todo, &opts, |index, s| {
+            crate::proof::sequence::solve_in_sequence(&base.cnf, todo, &opts, |index, s| {
                 let mut found = Found {
                     answer: Some(s),
                     proof_target: lrat_target(self.dir, index),
                 };
-                let outcome = match self.run_with(index, &mut found, &f, &mut scratch) {
+                let limits = Limits::default();
+                let outcome = match solve_entry(
+                    dir,
+                    m,
+                    index,
+                    &mut found,
+                    &limits,
+                    Some((base, &mut *scratch)),
+                ) {
                     Ok(outcome) => outcome,
-                    Err(e) if recorded_error(self.dir, index, &e) => {
+                    Err(e) if recorded_error(dir, index, &e) => {
                         each(Err((index, &e)))?;
                         return Ok(true);
                     }
@@ -414,51 +446,28 @@ impl CubeRunner<'_> {
             self.swept = true;
         }
     }
+}
 
-    /// Writes the result of cube `index` from the answer in `found`, with
-    /// the cube's CNF built from `base` (or read from its file).
-    fn run_with(
-        &self,
-        index: usize,
-        found: &mut Found,
-        base: &(CnfFile, String),
-        scratch: &mut CubeScratch,
-    ) -> Result<RunOutcome> {
-        let entry = &self.m.cubes[index];
-        if entry.file.is_some() {
-            return self.solve_entry(index, found, &Limits::default(), Some(base));
+/// Solves cube `index` of the split `m` in `dir` with `backend` and writes
+/// its result: its own file, or the compact layout's formula `base` with
+/// the cube's units (in the buffer `scratch`).
+fn solve_entry(
+    dir: &Path,
+    m: &SplitManifest,
+    index: usize,
+    backend: &mut dyn Backend,
+    limits: &Limits,
+    compact: Option<(&CnfFile, &mut CubeScratch)>,
+) -> Result<RunOutcome> {
+    let entry = &m.cubes[index];
+    match (&entry.file, compact) {
+        (None, Some((base, scratch))) => {
+            let (cnf, name) = scratch.with_units(dir, entry)?;
+            solve_one(dir, entry, base, cnf, &name, backend, limits)
         }
-        let (cnf, name) = scratch.with_units(self.dir, entry)?;
-        solve_one(
-            self.dir,
-            entry,
-            &base.0,
-            cnf,
-            &name,
-            found,
-            &Limits::default(),
-        )
-    }
-
-    /// Solves cube `index` with `backend` and writes its result: its own
-    /// file, or `base` (the compact layout's formula) with the cube's units.
-    fn solve_entry(
-        &self,
-        index: usize,
-        backend: &mut dyn Backend,
-        limits: &Limits,
-        base: Option<&(CnfFile, String)>,
-    ) -> Result<RunOutcome> {
-        let entry = &self.m.cubes[index];
-        match (&entry.file, base) {
-            (None, Some(base)) => {
-                let (cnf, name) = cube_units(self.dir, base, entry)?;
-                solve_one(self.dir, entry, &base.0, &cnf, &name, backend, limits)
-            }
-            _ => {
-                let (file, name) = cube_problem(self.dir, &self.m, entry)?;
-                solve_one(self.dir, entry, &file, &file.cnf, &name, backend, limits)
-            }
+        _ => {
+            let (file, name) = cube_problem(dir, m, entry)?;
+            solve_one(dir, entry, &file, &file.cnf, &name, backend, limits)
         }
     }
 }
@@ -1090,9 +1099,22 @@ fn check_result(
                     )
                     .kind
                 }
-                Some(p) => match check_cube_proof(dir, i, p, formula.set(entry.cube.lits())) {
-                    Ok(path) => CheckedKind::Certified(path),
-                    Err(e) => pending("rejected", e.to_string()).kind,
+                Some(p) => match formula.set(entry.cube.lits()) {
+                    Err(l) => {
+                        pending(
+                            "rejected",
+                            format!(
+                                "the manifest's cube has the literal {}, not a variable of \
+                                 the formula",
+                                l.dimacs()
+                            ),
+                        )
+                        .kind
+                    }
+                    Ok(cnf) => match check_cube_proof(dir, i, p, cnf) {
+                        Ok(path) => CheckedKind::Certified(path),
+                        Err(e) => pending("rejected", e.to_string()).kind,
+                    },
                 },
             },
             CubeStatus::Unknown => {

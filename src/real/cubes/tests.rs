@@ -272,3 +272,33 @@ fn refine_cuts_cubes_in_place_and_merge_counts_the_pieces() {
         "{e}"
     );
 }
+
+#[test]
+fn the_format_is_read_from_the_head_or_from_the_whole_object() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("m.json");
+    let cases: [(&str, Option<&str>); 7] = [
+        // As serde_json writes manifests: `format` first, compact or pretty.
+        (r#"{"format":"a/1","cubes":[1,2]}"#, Some("a/1")),
+        (
+            "\n {\n  \"format\" : \"b\\u002f2\",\n  \"x\": 1\n}",
+            Some("b/2"),
+        ),
+        // `format` elsewhere: the whole object is read.
+        (r#"{"x":{"format":"no"},"format":"c/3"}"#, Some("c/3")),
+        // Not a manifest.
+        (r#"{"x":1}"#, None),
+        (r#"{"format":3}"#, None),
+        ("[1, 2]", None),
+        ("", None),
+    ];
+    for (text, want) in cases {
+        std::fs::write(&path, text).unwrap();
+        assert_eq!(manifest_format(&path).as_deref(), want, "{text}");
+    }
+    // A head cut inside the string falls back to the whole file.
+    let long = format!(r#"{{"format":"{}","n":1}}"#, "z".repeat(5000));
+    std::fs::write(&path, &long).unwrap();
+    assert_eq!(manifest_format(&path).map(|f| f.len()), Some(5000));
+    assert_eq!(manifest_format(&dir.path().join("missing.json")), None);
+}

@@ -480,6 +480,25 @@ fn m2_n4_period_29_is_refuted_in_blocks_of_cubes() {
     );
 }
 
+/// {−2,…,2}^4, p = 31: a prime period above 2^4, so excluded on all of R^4
+/// by the theorem on prime periods (Lyons and Nussbaum, 1992; see p = 29)
+/// **[recalled]**: a test of the method on 200,000 cubes, prefixes of 13
+/// and 14 of the 15 distances (2026-12-04/05: about 24 minutes of cubes on
+/// 2 shared cores, one handed off for 13 s; the merge 36 s).
+#[test]
+#[ignore = "about 25 minutes on 2 cores and 1.3 GB of disk (200,000 prefix cubes, one handed off to a CaDiCaL named by ORBITCNF_LRAT_CADICAL that writes LRAT); run on purpose"]
+fn m2_n4_period_31_is_refuted_in_blocks_of_cubes() {
+    let dir = TestDir::new();
+    refuted_in_blocks(
+        &dir,
+        &Q::cube(-2, 2, 4, 31),
+        200_000,
+        200_000,
+        &[],
+        Handoff::Lrat("10"),
+    );
+}
+
 /// {−2,…,2}^4, p = 26, refuted by computation on 2026-12-04 (README, "What
 /// is proven and what is open"): this test is the run of record, 7 min 14 s
 /// on 2 quiet cores. An earlier campaign on shared cores had refuted all
@@ -524,6 +543,13 @@ fn m2_n4_period_27_is_refuted_in_blocks_of_cubes() {
 /// are long (docs/cluster.md measures why).
 const BLOCK: usize = 200;
 
+/// Cubes per range on splits of more than [`BIG_SPLIT`] cubes: every
+/// process reads the whole manifest (about 1 s for a million cubes).
+const BIG_BLOCK: usize = 2_000;
+
+/// See [`BIG_BLOCK`].
+const BIG_SPLIT: usize = 300_000;
+
 /// Where the blocks of [`refuted_in_blocks`] send the cubes that the
 /// bundled solver leaves open for the given number of seconds.
 enum Handoff<'a> {
@@ -542,9 +568,9 @@ enum Handoff<'a> {
 /// (`--lrat`), for [`Handoff::Lrat`].
 const LRAT_CADICAL: &str = "ORBITCNF_LRAT_CADICAL";
 
-/// `split` of `q` into whole-profile cubes (asking for `requested`; there
+/// `split` of `q` into cubes (asking for `requested`; there
 /// must be `cubes`), `run-cube` with binary proofs on blocks of at most
-/// [`BLOCK`] cubes under GNU parallel, except the cubes in `hard`, which
+/// [`BLOCK`] (or [`BIG_BLOCK`]) cubes under GNU parallel, except the cubes in `hard`, which
 /// CaDiCaL refutes with a DRAT proof (turned into LRAT by `rate`), and
 /// `merge`: infeasible, every cube refuted with a checked proof. The
 /// blocks hand the cubes the bundled solver leaves open as `handoff` says.
@@ -578,12 +604,13 @@ fn refuted_in_blocks(
         .stdout_has("coverage     checked");
     let m: Value = serde_json::from_str(&dir.read("sp/manifest.json")).expect("manifest is JSON");
     assert_eq!(m["cubes"].as_array().map(Vec::len), Some(cubes));
+    let block = if cubes > BIG_SPLIT { BIG_BLOCK } else { BLOCK };
     let mut jobs: Vec<String> = Vec::new();
     let mut start = None;
     for i in 0..=cubes {
         let cut = i == cubes || hard.contains(&i);
         if let Some(a) = start
-            && (cut || i - a == BLOCK)
+            && (cut || i - a == block)
         {
             jobs.push(format!("{a}..{}", i - 1));
             start = None;

@@ -56,6 +56,18 @@
 //! each of the next 70 cubes had a proof of about 53,000 steps and took
 //! 2.3 s, against 0.02–0.2 s from a fresh solver, which loads that formula
 //! in about 0.1 s.
+//!
+//! The steps of an inherited cone are also large: their hints are long
+//! resolution chains. On the million prefix cubes of `{−2,…,2}^4`,
+//! `p = 30` (2026-12-05), 2.4% of the cubes had proofs of more than 1,000
+//! steps (mostly one cone, repeated by cube after cube with no conflict of
+//! its own, at about 1.5 KB a step) and held 90% of the 49 GB written for
+//! the first 463,000 cubes. So a cube whose proof has more than
+//! [`CONE_BYTES`] bytes also ends the solver's life. On cubes
+//! 400000..401999 of that split (one range, binary proofs) that took the
+//! proofs from 3.5 GB to 172 MB and the range from 41 s to 11 s wall; on
+//! ranges without such cones (cubes 100000..101999 of it, 2000..2999 of
+//! `p = 29`) nothing changed (16 MB and 7.9 MB; 5–6 s and 1.4–1.6 s).
 
 use std::cell::RefCell;
 use std::rc::Rc;
@@ -81,6 +93,10 @@ pub const RECORD_LIMIT: usize = 128 << 20;
 /// long costs about what loading a formula of 100,000 clauses afresh does.
 pub const CONE_LIMIT: u64 = 10_000;
 
+/// The proof size (bytes) past which the solver is replaced before the
+/// next cube (see the module docs).
+pub const CONE_BYTES: u64 = 1_000_000;
+
 /// How [`solve_in_sequence`] runs.
 #[derive(Clone, Debug)]
 pub struct SequenceOptions<'s> {
@@ -98,6 +114,9 @@ pub struct SequenceOptions<'s> {
     /// Replace the solver after a cube whose proof has more steps than this
     /// ([`CONE_LIMIT`] unless a test wants every path exercised).
     pub cone_limit: u64,
+    /// Replace the solver after a cube whose proof has more bytes than
+    /// this ([`CONE_BYTES`] by default; see the module docs).
+    pub cone_bytes: u64,
 }
 
 /// The answer for one cube.
@@ -230,7 +249,9 @@ pub fn solve_in_sequence<K>(
                     }
                     Ok(false) => {
                         let proof = r.cube_proof(m, &cube, opts.format)?;
-                        let heavy = matches!(proof, CubeAnswer::Unsat { steps, .. } if steps > opts.cone_limit);
+                        let heavy = matches!(&proof, CubeAnswer::Unsat { steps, proof, .. }
+                            if *steps > opts.cone_limit
+                                || proof.len() as u64 > opts.cone_bytes);
                         (proof, heavy)
                     }
                     Err(_) if r.expired => {

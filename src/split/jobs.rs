@@ -454,6 +454,7 @@ fn stream_cubes(
         format: LratFormat::Binary,
         stop: Some(stop),
         cone_limit: crate::proof::sequence::CONE_LIMIT,
+        cone_bytes: crate::proof::sequence::CONE_BYTES,
     };
     // The cubes' CNFs for the checker, in one buffer (`WithUnits`), as in
     // `run-cube`. Here the lifting and assembly of the proofs cost more: on

@@ -341,6 +341,9 @@ pub struct SequenceRun {
     pub format: LratFormat,
     /// Solve again cubes that already have a final result.
     pub force: bool,
+    /// Replace the range's solver after a cube whose proof has more bytes
+    /// than this ([`crate::proof::sequence::CONE_BYTES`] unless asked).
+    pub cone_bytes: u64,
 }
 
 impl CubeRunner<'_> {
@@ -399,6 +402,7 @@ impl CubeRunner<'_> {
             format: run.format,
             stop: None,
             cone_limit: crate::proof::sequence::CONE_LIMIT,
+            cone_bytes: run.cone_bytes,
         };
         let mut unknown = Vec::new();
         let (dir, m) = (self.dir, &self.m);

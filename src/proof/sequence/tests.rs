@@ -43,16 +43,17 @@ fn random_cubes(vars: u32, len: usize, count: usize, seed: u64) -> Vec<Vec<Lit>>
 
 /// Runs the sequence and checks every answer; returns (sat, unsat) counts.
 fn run_and_check(f: &Cnf, cubes: &[Vec<Lit>], format: LratFormat) -> (usize, usize) {
-    run_and_check_with(f, cubes, format, CONE_LIMIT)
+    run_and_check_with(f, cubes, format, CONE_LIMIT, CONE_BYTES)
 }
 
 /// As [`run_and_check`], replacing the solver after every cube whose proof
-/// has more than `cone_limit` steps.
+/// has more than `cone_limit` steps or more than `cone_bytes` bytes.
 fn run_and_check_with(
     f: &Cnf,
     cubes: &[Vec<Lit>],
     format: LratFormat,
     cone_limit: u64,
+    cone_bytes: u64,
 ) -> (usize, usize) {
     let opts = SequenceOptions {
         per_cube: None,
@@ -60,6 +61,7 @@ fn run_and_check_with(
         format,
         stop: None,
         cone_limit,
+        cone_bytes,
     };
     let mut answers = Vec::new();
     solve_in_sequence(f, cubes.iter().cloned().enumerate(), &opts, |i, s| {
@@ -118,21 +120,27 @@ fn every_cube_of_random_formulas_gets_a_checked_answer() {
 
 #[test]
 fn a_solver_replaced_after_every_refuted_cube_answers_as_one_kept() {
-    // Cone limit 0: every refuted cube ends its solver's life, so each of
-    // these sequences starts over many times between cubes.
+    // Cone limit 0, in steps or in bytes: every refuted cube ends its
+    // solver's life, so each of these sequences starts over many times
+    // between cubes.
     for seed in 1..=4u64 {
         let f = random_3sat(40, 150, seed);
         let cubes = random_cubes(40, 4, 25, seed * 104_729);
         let kept = run_and_check(&f, &cubes, LratFormat::Binary);
-        assert_eq!(
-            run_and_check_with(&f, &cubes, LratFormat::Binary, 0),
-            kept,
-            "seed {seed}"
-        );
+        for (steps, bytes) in [(0, CONE_BYTES), (CONE_LIMIT, 0)] {
+            assert_eq!(
+                run_and_check_with(&f, &cubes, LratFormat::Binary, steps, bytes),
+                kept,
+                "seed {seed}"
+            );
+        }
     }
     let f = php(6, 5);
     let cubes = random_cubes(30, 2, 10, 7);
-    assert_eq!(run_and_check_with(&f, &cubes, LratFormat::Text, 0), (0, 10));
+    assert_eq!(
+        run_and_check_with(&f, &cubes, LratFormat::Text, 0, CONE_BYTES),
+        (0, 10)
+    );
 }
 
 #[test]
@@ -181,6 +189,7 @@ fn a_cube_out_of_time_is_unknown_and_the_next_cubes_are_still_answered() {
         format: LratFormat::Binary,
         stop: None,
         cone_limit: CONE_LIMIT,
+        cone_bytes: CONE_BYTES,
     };
     // The first cube leaves PHP(9, 8) as hard as it is; the second is
     // refuted by the formula's own clauses (pigeon 1 in no hole).
@@ -210,6 +219,7 @@ fn the_stop_flag_and_the_callback_end_the_sequence() {
         format: LratFormat::Binary,
         stop: Some(&stop),
         cone_limit: CONE_LIMIT,
+        cone_bytes: CONE_BYTES,
     };
     let mut seen = 0;
     solve_in_sequence(&f, cubes.iter().cloned().enumerate(), &opts, |i, _| {

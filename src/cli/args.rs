@@ -230,7 +230,7 @@ pub struct EncodingArgs {
     pub no_nested: bool,
     /// Leave out the biclique-cover exclusions (on by default where
     /// p > 2^r, r the number of coordinates whose side is the box's
-    /// diameter, and p/2 ≤ 18): the pairs at the diameter are covered by one
+    /// diameter, and p/2 ≤ 40): the pairs at the diameter are covered by one
     /// biclique per such coordinate, so r + 1 far pairs of which no two can
     /// share a biclique rule the pattern out; see encodings/redundant.md,
     /// biclique-cover.

@@ -379,6 +379,13 @@ pub fn run_cube(a: RunCubeArgs) -> Outcome {
             return failures.finish();
         }
         for index in left {
+            // Another process (a second run over the same range, or one
+            // started by hand on the cube) may have settled it meanwhile;
+            // the external solver's hours are not spent twice.
+            let prior = cube_run::read_result(&a.dir, index)?;
+            if prior.as_ref().is_some_and(|r| r.status.is_final()) {
+                continue;
+            }
             let lrat = cube_run::lrat_target(&a.dir, index);
             let mut external = a.solver.external(true)?;
             if let Some(p) = external.as_mut().and_then(|e| e.proof.as_mut()) {
@@ -387,7 +394,7 @@ pub fn run_cube(a: RunCubeArgs) -> Outcome {
             let Some(ext) = external.as_mut() else {
                 break;
             };
-            let after = cube_run::read_result(&a.dir, index)?.map_or(0.0, |r| r.seconds);
+            let after = prior.map_or(0.0, |r| r.seconds);
             let note = format!(
                 " (handed off after {after:.2} s without an answer from the bundled solver)"
             );

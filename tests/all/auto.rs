@@ -336,6 +336,28 @@ fn m1_n5_period_36_is_refuted_in_blocks_of_cubes() {
     );
 }
 
+/// {-1,0,1}^5, p = 39, refuted by computation on 2026-12-05 (README, "What
+/// is proven and what is open"; so p = 78 is excluded too, by docs/math.md
+/// §9): 2,602 whole-profile cubes, the split the pruned biclique-cover walk
+/// leaves (44,421 before it). About 6.5 minutes of cubes beside another
+/// campaign, three handed off after 10 s to a CaDiCaL that writes LRAT
+/// ([`Handoff::Lrat`]), the longest for 94 s; the merge 32 s on one
+/// thread. Nothing published settles it; the expectation is orbitcnf's own
+/// certified answer.
+#[test]
+#[ignore = "about 10 minutes on 2 cores and 1.1 GB of disk (2,602 whole-profile cubes, three handed off to a CaDiCaL named by ORBITCNF_LRAT_CADICAL that writes LRAT); run on purpose"]
+fn m1_n5_period_39_is_refuted_in_blocks_of_cubes() {
+    let dir = TestDir::new();
+    refuted_in_blocks(
+        &dir,
+        &Q::cube(-1, 1, 5, 39),
+        200_000,
+        2_602,
+        &[],
+        Handoff::Lrat("10"),
+    );
+}
+
 /// {−2,…,2}^4, p = 18, refuted by computation on 2026-12-04 (README, "What
 /// is proven and what is open"): 10,333 whole-profile cubes. The bundled
 /// solver gets each for 60 s; the few it leaves open (cubes whose top

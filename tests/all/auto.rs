@@ -336,6 +336,48 @@ fn m1_n5_period_36_is_refuted_in_blocks_of_cubes() {
     );
 }
 
+/// {-1,0,1}^5, p = 38, refuted by computation on 2026-12-05 (README, "What
+/// is proven and what is open"; so p = 76 is excluded too, by docs/math.md
+/// §9): 3,848 whole-profile cubes, the split the pruned biclique-cover walk
+/// leaves (58,285 before it). Two were handed off after 10 s to a CaDiCaL
+/// that writes LRAT ([`Handoff::Lrat`]): cube 3784 (distance 1 exactly at
+/// offsets 1, 18 and 19) took it 31 minutes and a proof of 4.26 M steps,
+/// cube 3788 90 s. Nothing published settles it; the expectation is
+/// orbitcnf's own certified answer.
+#[test]
+#[ignore = "about 40 minutes on 2 cores and 2.7 GB of disk (3,848 whole-profile cubes, two handed off to a CaDiCaL named by ORBITCNF_LRAT_CADICAL that writes LRAT, one for half an hour); run on purpose"]
+fn m1_n5_period_38_is_refuted_in_blocks_of_cubes() {
+    let dir = TestDir::new();
+    refuted_in_blocks(
+        &dir,
+        &Q::cube(-1, 1, 5, 38),
+        200_000,
+        3_848,
+        &[],
+        Handoff::Lrat("10"),
+    );
+}
+
+/// {-1,0,1}^5, p = 41: a prime period above 2^5, so excluded on all of R^5
+/// by the theorem on prime periods (Lyons and Nussbaum, 1992; see p = 29
+/// on {−2,…,2}^4) **[recalled]**: a test of the method on the 2,359
+/// whole-profile cubes the pruned biclique-cover walk leaves (2026-12-05:
+/// 4 minutes of cubes on one shared core, one handed off for 18 s; the
+/// merge 26 s).
+#[test]
+#[ignore = "about 5 minutes on 2 cores and 1 GB of disk (2,359 whole-profile cubes, one handed off to a CaDiCaL named by ORBITCNF_LRAT_CADICAL that writes LRAT); run on purpose"]
+fn m1_n5_period_41_is_refuted_in_blocks_of_cubes() {
+    let dir = TestDir::new();
+    refuted_in_blocks(
+        &dir,
+        &Q::cube(-1, 1, 5, 41),
+        200_000,
+        2_359,
+        &[],
+        Handoff::Lrat("10"),
+    );
+}
+
 /// {-1,0,1}^5, p = 39, refuted by computation on 2026-12-05 (README, "What
 /// is proven and what is open"; so p = 78 is excluded too, by docs/math.md
 /// §9): 2,602 whole-profile cubes, the split the pruned biclique-cover walk

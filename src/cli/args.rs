@@ -257,6 +257,13 @@ pub struct EncodingArgs {
     /// auxiliary variables in far fewer clauses; see encodings/symmetry.md.
     #[arg(long)]
     pub no_reverse_ladder: bool,
+    /// Leave out the twin break (symmetry step 7, on by default for even
+    /// p ≥ 8 unless --symmetry none): when the profile has g(s) = g(p/2 − s)
+    /// for every s, x_k and x_{k+p/2} can be swapped without changing any
+    /// distance, so the encoding asks x_k to come first in grid order
+    /// (2 ≤ k ≤ p/2 − 2); see encodings/symmetry.md, step 7.
+    #[arg(long)]
+    pub no_twins: bool,
     /// The formulation: `cycle` (isometric cycles; boxes only; the default
     /// on boxes) or `full-map` (the whole map f: D → D; the only one for
     /// --points, and available on boxes for comparison).
@@ -307,6 +314,7 @@ impl EncodingArgs {
             subbox: !self.no_subbox,
             gaps: !self.no_gaps,
             reverse_ladder: !self.no_reverse_ladder,
+            twins: !self.no_twins,
             ..base
         })
     }

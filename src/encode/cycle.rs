@@ -253,6 +253,13 @@ pub static ISOMETRIC_CYCLE: &[Family<Cycle>] = &[
         size: |x| symmetry::sizes::reverse_ladder(x.stabilizer_classes()),
         add: |e, x| symmetry::add_reverse_ladder(e, &x.q, x.stabilizer_classes()),
     },
+    Family {
+        name: symmetry::TWINS,
+        applies: |_, o| o.twins,
+        searched: false,
+        size: |x| symmetry::sizes::twins(&x.q),
+        add: |e, x| symmetry::add_twins(e, &x.q),
+    },
 ];
 
 /// The families of `topical-cycle/1`, in the order they are added.

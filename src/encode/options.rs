@@ -189,6 +189,14 @@ pub struct EncodeOptions {
     /// read as the ternary clauses they hold.
     #[serde(default, skip_serializing_if = "is_false")]
     pub reverse_ladder: bool,
+    /// Step 7 (`sym-twins`, [`super::symmetry::add_twins`]): when the
+    /// period is even and the profile has `g(s) = g(h − s)` (`h = p/2`),
+    /// `x_k` precedes `x_{k+h}` for `2 ≤ k ≤ h − 2`. [`EncodeOptions::resolve`]
+    /// keeps it only on even periods from 8 on with the point indicators
+    /// and some other symmetry family on, and a header records it only
+    /// when on, so formulas written before it read as what they hold.
+    #[serde(default, skip_serializing_if = "is_false")]
+    pub twins: bool,
 }
 
 /// The ternary `sym-reverse` clauses above which step 6 is encoded as a
@@ -233,6 +241,7 @@ impl Default for EncodeOptions {
             subbox: true,
             gaps: true,
             reverse_ladder: true,
+            twins: true,
         }
     }
 }
@@ -251,6 +260,7 @@ impl EncodeOptions {
             subbox: false,
             gaps: false,
             reverse_ladder: false,
+            twins: false,
         }
     }
 
@@ -286,6 +296,7 @@ impl EncodeOptions {
             o.gaps = false;
             o.symmetry.reverse = false;
             o.reverse_ladder = false;
+            o.twins = false;
         }
         o
     }
@@ -343,12 +354,26 @@ impl EncodeOptions {
         if !o.symmetry.reverse || !reverse_ladder_pays(q) {
             o.reverse_ladder = false;
         }
+        if !point_eq_ok
+            || !q.period.is_multiple_of(2)
+            || q.period < 8
+            || o.symmetry == Symmetry::NONE
+            || q.class != MapClass::Nonexpansive
+        {
+            o.twins = false;
+        }
         o
     }
 
     /// Whether the `point-eq` family is needed.
     pub fn needs_points(&self) -> bool {
         let s = &self.symmetry;
-        self.count || self.packing || s.rotate || s.isometry || s.stabilizer || s.reverse
+        self.count
+            || self.packing
+            || s.rotate
+            || s.isometry
+            || s.stabilizer
+            || s.reverse
+            || self.twins
     }
 }

@@ -259,6 +259,31 @@ fn gcd(a: usize, b: usize) -> usize {
     if b == 0 { a } else { gcd(b, a % b) }
 }
 
+/// Step 7 of the normalisation (`encodings/symmetry.md`), done here
+/// independently of the encoder: if `p = 2h ≥ 8` and the cycle's distances
+/// satisfy `g(s) = g(h − s)`, the cycle with `x_k` and `x_{k+h}` swapped
+/// wherever `x_{k+h}` comes first in grid order (`2 ≤ k ≤ h − 2`); `None`
+/// when the step does not apply.
+fn twin_normalised(g: &Grid, cycle: &[Point]) -> Option<Vec<Point>> {
+    let p = cycle.len();
+    if !p.is_multiple_of(2) || p < 8 {
+        return None;
+    }
+    let h = p / 2;
+    let dist = |a: &Point, b: &Point| a.iter().zip(b).map(|(x, y)| (x - y).abs()).max();
+    let gap = |s: usize| dist(&cycle[0], &cycle[s]);
+    if (1..h).any(|s| gap(s) != gap(h - s)) {
+        return None;
+    }
+    let mut out = cycle.to_vec();
+    for k in 2..=h - 2 {
+        if isometry::index_of(g, &out[k + h]) < isometry::index_of(g, &out[k]) {
+            out.swap(k, k + h);
+        }
+    }
+    Some(out)
+}
+
 fn some_image_satisfies_all_breaks(g: &Grid, p: usize, limit: usize) -> usize {
     image_check(g, p, limit, MapClass::Nonexpansive)
 }
@@ -280,7 +305,9 @@ fn image_check(g: &Grid, p: usize, limit: usize, class: MapClass) -> usize {
     }
     for cycle in &cycles {
         let mut ok = false;
-        for image in images(g, cycle, class) {
+        let all = images(g, cycle, class);
+        let twinned = all.iter().filter_map(|x| twin_normalised(g, x));
+        for image in all.iter().cloned().chain(twinned) {
             let mut assumptions = Vec::new();
             for (i, x) in image.iter().enumerate() {
                 for c in 0..g.dim() {
@@ -313,6 +340,49 @@ fn image_check(g: &Grid, p: usize, limit: usize, class: MapClass) -> usize {
         );
     }
     cycles.len()
+}
+
+/// Step 7 acts where the period is even, at least 8, and the profile is
+/// twin-symmetric: on {0,1}^4 every profile is (all distances are 1), and
+/// on {−1,0,1}^3 with p = 8 some are. Every cycle brute force finds there
+/// has an image under the symmetries, twin swaps included, that satisfies
+/// the whole default CNF.
+#[test]
+fn every_brute_force_cycle_of_a_twin_profile_has_an_image_satisfying_step_seven() {
+    let mut checked = 0;
+    for (spec, dim, ps, limit) in [("0..1", 4, 8..=12, 6), ("-1..1", 3, 8..=8, 40)] {
+        let g = Grid::parse(spec, Some(dim)).unwrap();
+        for p in ps.step_by(2) {
+            let q = Question::new(g.clone(), p).unwrap();
+            let e = encode(&q, &EncodeOptions::default(), u64::MAX).unwrap();
+            assert!(e.options.twins, "{} p={p}: step 7 is off", g.spec());
+            checked += some_image_satisfies_all_breaks(&g, p, limit);
+        }
+    }
+    assert!(checked >= 50, "only {checked} cycles checked");
+}
+
+/// Exact sizes of step 7 (module docs of `symmetry::add_twins`): on
+/// {−1,0,1}^3 with p = 8 (h = 4: M = 1, L = 2, N = 27, one pair)
+/// 1 + 2 + 26 = 29 variables and 1 + 8 + 104 = 113 clauses; on {0,1}^4
+/// with p = 10 (h = 5: M = 2, L = 1, N = 16, two pairs) 1 + 2 + 30 = 33
+/// and 1 + 8 + 120 = 129; nothing on odd periods.
+#[test]
+fn step_seven_has_its_exact_size() {
+    for (spec, dim, p, size) in [
+        ("-1..1", 3, 8, Some((29, 113))),
+        ("0..1", 4, 10, Some((33, 129))),
+        ("-1..1", 4, 17, None),
+    ] {
+        let q = Question::new(Grid::parse(spec, Some(dim)).unwrap(), p).unwrap();
+        let e = encode(&q, &EncodeOptions::default(), u64::MAX).unwrap();
+        let row = e
+            .families
+            .iter()
+            .find(|f| f.family == super::symmetry::TWINS)
+            .map(|f| (f.vars, f.clauses));
+        assert_eq!(row, size, "{spec}^{dim} p={p}");
+    }
 }
 
 #[test]

@@ -324,6 +324,9 @@ fn symmetry_counts_of_the_cube_question() {
             // Σ_r Σ_j (c_1 + … + c_{j−1}) over the four representatives (the
             // same formula is evaluated by hand on the square below).
             ("sym-reverse", 0, 417),
+            // h = 4: M = 1 pair of offsets, one pair of twins (k = 2):
+            // 1 + M·L + (N − 1) = 29 vars; 1 + 4·M·L + (4N − 4) = 113 clauses.
+            ("sym-twins", 29, 113),
         ]
     );
 }

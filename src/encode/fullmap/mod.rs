@@ -107,6 +107,7 @@ pub fn for_domain(options: &EncodeOptions) -> EncodeOptions {
         subbox: false,
         gaps: false,
         reverse_ladder: false,
+        twins: false,
     }
 }
 

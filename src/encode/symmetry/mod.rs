@@ -1,12 +1,13 @@
 //! Symmetry breaking: families `sym-translate`, `sym-multiplier`,
-//! `sym-rotate`, `sym-isometry`, `sym-stabilizer`, `sym-reverse`.
+//! `sym-rotate`, `sym-isometry`, `sym-stabilizer`, `sym-reverse`,
+//! `sym-twins`.
 //!
 //! The isometric-cycle condition is invariant under translations of the orbit
 //! that keep it in the box, the box's isometries ([`crate::isometry`]),
 //! rotations `i ↦ i + r`, and the multipliers `i ↦ a·i` with `gcd(a, p) = 1`
 //! (which include the reversal `a = −1`). Each family adds constraints that
 //! some image of every solution satisfies; the argument that *all* of them
-//! hold together for one image is a normalisation in five steps, each keeping
+//! hold together for one image is a normalisation in steps, each keeping
 //! what the earlier steps achieved (full write-up: `encodings/symmetry.md`):
 //!
 //! 1. `sym-translate`: shift the orbit towards the lower faces until, in every
@@ -29,6 +30,12 @@
 //!    keeps `x_0`, the profile and the types, take the one whose `x_1` has the
 //!    smaller stabiliser class (class = smallest point of the orbit); step 5
 //!    keeps classes, so the order survives it.
+//!
+//! 7. `sym-twins` ([`add_twins`]): on even periods whose profile has
+//!    `g(s) = g(p/2 − s)`, positions `k` and `k + p/2` can be swapped
+//!    without changing a distance; for `2 ≤ k ≤ p/2 − 2` (away from the
+//!    positions 0, 1 and `p − 1` that steps 3–6 look at) the smaller point
+//!    in grid order comes first.
 //!
 //! Steps 5 and 6 enumerate the box's isometries and are switched off
 //! (recorded in the header's options) when that group is large
@@ -72,6 +79,8 @@ pub const STABILIZER: &str = "sym-stabilizer";
 pub const REVERSE: &str = "sym-reverse";
 /// Label of the topical sorting step, added with step 3.
 pub const SORT: &str = "sym-sort";
+/// Label of step 7.
+pub const TWINS: &str = "sym-twins";
 
 /// Largest `|group|·|D|` for which steps 5 and 6 enumerate the group.
 pub const STABILIZER_WORK_LIMIT: u128 = 20_000_000;
@@ -463,6 +472,77 @@ pub fn add_sort(e: &mut Encoder, q: &Question) {
         for (z, point) in pts.iter().enumerate() {
             let at = points::at(e, i, point);
             e.clause(&[!s, !at, w[i][ord[z] + 1]]);
+        }
+    }
+}
+
+/// Step 7 (`sym-twins`): for even `p = 2h ≥ 8`, if the profile has
+/// `g(s) = g(h − s)` for `1 ≤ s ≤ h − 1`, then `x_k` precedes `x_{k+h}` in
+/// grid order for `2 ≤ k ≤ h − 2`.
+///
+/// Under that profile condition `x_k` and `x_{k+h}` are *twins*: every
+/// other point of the orbit is as far from one as from the other, so
+/// swapping them keeps every distance, and the swapped sequence is again an
+/// isometric cycle with the same profile and the same set of points. The
+/// swaps leave `x_0`, `x_1` and `x_{p−1}` where they are (the pairs with
+/// `k = 0, 1, h − 1` are left out), so whatever steps 1–6 achieved
+/// survives them (`encodings/symmetry.md`, step 7).
+///
+/// Variables: `E` ("the profile is twin-symmetric"); `d[s,t]` for
+/// `1 ≤ s ≤ M = ⌊(h−1)/2⌋`, `1 ≤ t ≤ L`, with `d → (g(s) ≥ t) ≠ (g(h−s) ≥ t)`;
+/// `U[k,z]` for the pairs `k` and `0 ≤ z ≤ N − 2` (`z` in grid order, `N`
+/// points), meaning `x_k ≤ z` exactly. Clauses: `E ∨ ⋁ d`, and
+/// `E → (g(s) ≥ t ↔ g(h−s) ≥ t)` (so `E` is true exactly on twin-symmetric
+/// profiles), two per `d` and two per `(s, t)` for `E`; per pair,
+/// `[x_k = z] → U[k,z]`, `U[k,z−1] → U[k,z]`, `U[k,z] → U[k,z−1] ∨ [x_k = z]`,
+/// `U[k,0] → [x_k = 0]`, and `E ∧ [x_{k+h} = z] → U[k,z−1]` (for `z = 0`,
+/// `¬E ∨ ¬[x_{k+h} = 0]`). Counts ([`sizes::twins`]), with
+/// `P = h − 3` pairs: `1 + M·L + P·(N − 1)` variables and
+/// `1 + 4·M·L + P·(4N − 4)` clauses.
+pub fn add_twins(e: &mut Encoder, q: &Question) {
+    let p = q.period;
+    if !p.is_multiple_of(2) || p < 8 {
+        return;
+    }
+    let h = p / 2;
+    let l = q.grid.diameter() as i64;
+    let pts: Vec<Point> = q.grid.points().collect();
+    let n = pts.len();
+    let twin = e.aux(TWINS);
+    let mut mismatch = vec![twin];
+    for s in 1..=(h - 1) / 2 {
+        for t in 1..=l {
+            let (a, b) = (profile::ge(e, q, s, t), profile::ge(e, q, h - s, t));
+            let d = e.aux(TWINS);
+            e.clause(&[!d, a, b]);
+            e.clause(&[!d, !a, !b]);
+            e.clause(&[!twin, !a, b]);
+            e.clause(&[!twin, a, !b]);
+            mismatch.push(d);
+        }
+    }
+    e.clause(&mismatch);
+    for k in 2..=h - 2 {
+        // below[z] reads "x_k ≤ point z" for z = 0..n-2; "≤ the last point"
+        // is always true and needs no variable.
+        let below: Vec<Term> = (0..n - 1).map(|_| e.aux(TWINS)).collect();
+        for z in 0..n - 1 {
+            let at = points::at(e, k, &pts[z]);
+            e.clause(&[!at, below[z]]);
+            if z == 0 {
+                e.clause(&[!below[0], at]);
+            } else {
+                e.clause(&[!below[z - 1], below[z]]);
+                e.clause(&[!below[z], below[z - 1], at]);
+            }
+        }
+        for (z, pt) in pts.iter().enumerate() {
+            let partner = points::at(e, k + h, pt);
+            if z == 0 {
+                e.clause(&[!twin, !partner]);
+            } else {
+                e.clause(&[!twin, !partner, below[z - 1]]);
+            }
         }
     }
 }

@@ -309,6 +309,20 @@ pub fn sort(q: &Question) -> Size {
     Size::new(1 + pl + p1 * (n - 1), 1 + 2 * pl + p1 * (2 * n - 1))
 }
 
+/// Size of `sym-twins` ([`super::add_twins`]): nothing on odd periods and
+/// below 8.
+pub fn twins(q: &Question) -> Size {
+    let p = q.period as u64;
+    if !p.is_multiple_of(2) || p < 8 {
+        return Size::new(0, 0);
+    }
+    let h = p / 2;
+    let ml = (h - 1) / 2 * q.grid.diameter();
+    let n = u64::try_from(q.grid.num_points()).unwrap_or(u64::MAX);
+    let pairs = h - 3;
+    Size::new(1 + ml + pairs * (n - 1), 1 + 4 * ml + pairs * (4 * n - 4))
+}
+
 #[cfg(test)]
 mod tests {
     use super::super::{multiplier_maps_for, representatives_for, stabilizer_classes, type_ranks};

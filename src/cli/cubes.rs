@@ -289,11 +289,28 @@ pub struct RunCubeArgs {
     max_proof_mb: u64,
 }
 
-/// Parses a positive number of megabytes into bytes.
+/// Parses a number of megabytes into bytes: at least one byte (a bound that
+/// rounds to nothing would silently mean "a fresh solver after every cube").
 fn parse_megabytes(s: &str) -> std::result::Result<u64, String> {
     match s.trim().parse::<f64>() {
-        Ok(mb) if mb.is_finite() && mb > 0.0 && mb <= 1e9 => Ok((mb * 1e6) as u64),
-        _ => Err(format!("{s:?} is not a positive number of megabytes")),
+        Ok(mb) if mb.is_finite() && mb * 1e6 >= 1.0 && mb <= 1e9 => Ok((mb * 1e6) as u64),
+        _ => Err(format!(
+            "{s:?} is not a number of megabytes from 0.000001 to 10^9"
+        )),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::parse_megabytes;
+
+    #[test]
+    fn megabytes_become_bytes_and_a_bound_of_no_bytes_is_refused() {
+        assert_eq!(parse_megabytes("1"), Ok(1_000_000));
+        assert_eq!(parse_megabytes("0.25"), Ok(250_000));
+        for bad in ["0", "-1", "0.0000001", "nan", "inf", "1e10", "one"] {
+            assert!(parse_megabytes(bad).is_err(), "{bad} accepted");
+        }
     }
 }
 

@@ -378,6 +378,28 @@ fn m1_n5_period_41_is_refuted_in_blocks_of_cubes() {
     );
 }
 
+/// {-1,0,1}^5, p = 40, refuted by computation on 2026-12-05 (README, "What
+/// is proven and what is open"; so p = 80 is excluded too, by docs/math.md
+/// §9): 8,084 whole-profile cubes on the formula with the twin break
+/// (symmetry step 7). 53 minutes of cubes on 2 shared cores, 36 handed off
+/// after 10 s to a CaDiCaL that writes LRAT ([`Handoff::Lrat`]), the
+/// longest for 20 minutes (cube 8071, a twin-symmetric profile); the merge
+/// about 5 minutes. Nothing published settles it; the expectation is
+/// orbitcnf's own certified answer.
+#[test]
+#[ignore = "about an hour on 2 cores and 5 GB of disk (8,084 whole-profile cubes, 36 handed off to a CaDiCaL named by ORBITCNF_LRAT_CADICAL that writes LRAT, three for 10 to 20 minutes); run on purpose"]
+fn m1_n5_period_40_is_refuted_in_blocks_of_cubes() {
+    let dir = TestDir::new();
+    refuted_in_blocks(
+        &dir,
+        &Q::cube(-1, 1, 5, 40),
+        200_000,
+        8_084,
+        &[],
+        Handoff::Lrat("10"),
+    );
+}
+
 /// {-1,0,1}^5, p = 39, refuted by computation on 2026-12-05 (README, "What
 /// is proven and what is open"; so p = 78 is excluded too, by docs/math.md
 /// §9): 2,602 whole-profile cubes, the split the pruned biclique-cover walk

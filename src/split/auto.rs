@@ -123,8 +123,13 @@ pub struct CubeChoice {
 /// takes 18 M steps (0.25 s) for its 1,783 whole profiles; {−2,…,2}^4,
 /// p = 25 takes 412 M (4.5 s) for 4,383; {−2,…,2}^4, p = 24 passes the cap
 /// after 452 M (8.0 s); {0,1,2,3}^3, p = 36 would need 9.0 G (290 s), where
-/// nearly every profile is excluded, so it stops at this limit, after
-/// about 16 s by proportion (not timed).
+/// nearly every profile is excluded, so it stops at this limit. Since the
+/// exclusion index keeps its clauses in flat lists (2026-12-05, same
+/// steps, loaded machine): 0.07 s, 1.35 s, 2.1 s and 47 s for those four;
+/// {−1,0,1}^5, p = 40 takes 177 M steps (0.6 s) for 8,084 whole profiles
+/// and p = 42 632 M (2.6 s) for 15,040, above this limit, so
+/// `split --cubes auto` gives p = 42 breadth-first prefixes and
+/// `split --cubes 200000` its whole profiles.
 pub const WALK_WORK: u64 = 500_000_000;
 
 /// The number of whole profiles `g(1..K)` that no multiplier map rules out
@@ -426,6 +431,8 @@ mod tests {
     fn profile_walk_work_and_time() {
         for (spec, dim, p) in [
             ("-1..1", 5, 34),
+            ("-1..1", 5, 40),
+            ("-1..1", 5, 42),
             ("-2..2", 4, 25),
             ("-2..2", 4, 24),
             ("0..3", 3, 36),

@@ -348,6 +348,8 @@ impl FarTable {
 
 /// A fooling set of `need` far pairs of the circulant graph of `mask`, if
 /// the search finds one within its budget. Pairs are `(a, b)` with `a < b`.
+/// `None` for `p > 128` too (the far table's width; the family acts only
+/// up to `p = 81`, and the real-space lemmas on smaller periods).
 pub fn fooling_set(p: usize, mask: u64, need: usize) -> Option<Vec<(usize, usize)>> {
     fooling_set_counted(p, mask, need, NODE_BUDGET, &mut 0)
 }

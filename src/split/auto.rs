@@ -125,13 +125,16 @@ pub struct CubeChoice {
 /// after 452 M (8.0 s); {0,1,2,3}^3, p = 36 would need 9.0 G (290 s), where
 /// nearly every profile is excluded, so it stops at this limit. Since the
 /// exclusion index keeps its clauses in flat lists (2026-12-05, same
-/// steps, loaded machine): 0.07 s, 1.35 s, 2.1 s and 47 s for those four;
-/// {−1,0,1}^5, p = 40 takes 177 M steps (0.6 s) for 8,084 whole profiles
-/// and p = 42 632 M (2.6 s) for 15,040, above this limit, so
-/// `split --cubes auto` gives p = 42 breadth-first prefixes and
-/// `split --cubes 200000` its whole profiles; so do p = 44 (563 M steps,
-/// 13,903 whole profiles) and p = 46 (849 M, 17,661).
-pub const WALK_WORK: u64 = 500_000_000;
+/// steps, loaded machine): 0.07 s, 1.35 s, 2.1 s and 47 s for those four,
+/// so the limit costs at most about 5 s; {−1,0,1}^5, p = 40 takes 177 M
+/// steps (0.6 s) for 8,084 whole profiles, p = 42 632 M (2.6 s) for
+/// 15,040, p = 44 563 M for 13,903 and p = 46 849 M for 17,661. Those
+/// three are refuted as whole-profile cubes and hopeless in one solve
+/// (README: p = 42 was refuted in 15,040 cubes; p = 34 had no answer from
+/// one solve in 300 s), which is why the limit went from 500 M to 10^9 on
+/// 2026-12-05: `split --cubes auto` and `decide` now take their whole
+/// profiles instead of 1,024 breadth-first prefixes or one solve.
+pub const WALK_WORK: u64 = 1_000_000_000;
 
 /// The number of whole profiles `g(1..K)` that no multiplier map rules out
 /// ([`prefix_survives`]) and no profile-exclusion clause excludes (tested

@@ -378,6 +378,31 @@ fn m1_n5_period_41_is_refuted_in_blocks_of_cubes() {
     );
 }
 
+/// {-1,0,1}^5, p = 42, refuted by computation on 2026-12-05 (README, "What
+/// is proven and what is open"; so p = 84 is excluded too, by docs/math.md
+/// §9, though it lies above the Lemmens–Scheutzow bound anyway): 15,040
+/// whole-profile cubes. Counting them takes the pruned walk 632 M steps,
+/// above the bound `split --cubes auto` gives itself, so the test asks for
+/// them with a large cube budget, as the campaign did. About 80 minutes of
+/// cubes on 2 shared cores, 21 handed off after 10 s to a CaDiCaL that
+/// writes LRAT ([`Handoff::Lrat`]), the longest 16 minutes (cube 15038,
+/// distance 1 exactly at offsets 14 and 21) and 15 minutes (cube 13257,
+/// offsets 1, 20 and 21). Nothing published settles it; the expectation is
+/// orbitcnf's own certified answer.
+#[test]
+#[ignore = "about 90 minutes on 2 cores and 7.5 GB of disk (15,040 whole-profile cubes, 21 handed off to a CaDiCaL named by ORBITCNF_LRAT_CADICAL that writes LRAT, two for about 15 minutes); run on purpose"]
+fn m1_n5_period_42_is_refuted_in_blocks_of_cubes() {
+    let dir = TestDir::new();
+    refuted_in_blocks(
+        &dir,
+        &Q::cube(-1, 1, 5, 42),
+        200_000,
+        15_040,
+        &[],
+        Handoff::Lrat("10"),
+    );
+}
+
 /// {-1,0,1}^5, p = 40, refuted by computation on 2026-12-05 (README, "What
 /// is proven and what is open"; so p = 80 is excluded too, by docs/math.md
 /// §9): 8,084 whole-profile cubes on the formula with the twin break

@@ -444,6 +444,14 @@ fn stream_cubes(
     use crate::proof::sequence::{CubeAnswer, SequenceOptions, solve_in_sequence};
     let open = std::cell::RefCell::new(Vec::new());
     let pulled = std::iter::from_fn(|| {
+        // Past the deadline every cube would end at once as unknown, but a
+        // solve stopped at its deadline ends its solver's life, so each
+        // would first load the whole formula into a fresh solver: on the
+        // 8,098 cubes of {0,1,2,3}^4, p = 24 that kept a two-second time
+        // limit running for minutes. Cubes not pulled count as not started.
+        if deadline.is_some_and(|d| Instant::now() >= d) {
+            return None;
+        }
         let i = pull()?;
         open.borrow_mut().push(i);
         Some((i, cubes[i].lits()))
@@ -671,5 +679,38 @@ fn solve_cube_bundled(
             reason: "an UNSAT answer without its checked proof".into(),
         }),
         (Outcome::Unsat, Some(proof)) => lifted(f, cube, opts, || proof.open()),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::grid::Grid;
+    use crate::report::Verdict;
+
+    /// Once the time limit has passed no cube is started: before, every
+    /// remaining cube was pulled, loaded into a fresh solver and ended as
+    /// unknown at once, so a short limit on thousands of cubes ran for
+    /// minutes. The reason names the first cube's; pulled cubes would say
+    /// "time limit reached".
+    #[test]
+    fn no_cube_is_started_after_the_time_limit() {
+        let q = Question::new(Grid::parse("-1..1", Some(4)).unwrap(), 18).unwrap();
+        let opts = JobsOptions {
+            jobs: 2,
+            cubes: 200,
+            certify: true,
+            lrat: None,
+            format: LratFormat::Binary,
+            handoff: None,
+        };
+        let limits = Limits {
+            time: Some(Duration::from_nanos(1)),
+            ..Limits::default()
+        };
+        let r = decide_parallel(&q, &EncodeOptions::default(), &opts, &limits, 10_000_000).unwrap();
+        assert_eq!(r.verdict, Verdict::Unknown);
+        let why = r.reason.unwrap();
+        assert!(why.ends_with(": not started"), "{why}");
     }
 }

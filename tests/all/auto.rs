@@ -378,6 +378,26 @@ fn m1_n5_period_41_is_refuted_in_blocks_of_cubes() {
     );
 }
 
+/// {-1,0,1}^5, p = 45, refuted by computation on 2026-12-05 (README, "What
+/// is proven and what is open"): 9,549 whole-profile cubes. About 16
+/// minutes of cubes on 2 shared cores, 13 handed off after 10 s to a
+/// CaDiCaL that writes LRAT ([`Handoff::Lrat`]), the longest 207 s (cube
+/// 9391, distance 1 exactly at offsets 1, 14, 15 and 16). Nothing published
+/// settles it; the expectation is orbitcnf's own certified answer.
+#[test]
+#[ignore = "about 20 minutes on 2 cores and 3.6 GB of disk (9,549 whole-profile cubes, 13 handed off to a CaDiCaL named by ORBITCNF_LRAT_CADICAL that writes LRAT); run on purpose"]
+fn m1_n5_period_45_is_refuted_in_blocks_of_cubes() {
+    let dir = TestDir::new();
+    refuted_in_blocks(
+        &dir,
+        &Q::cube(-1, 1, 5, 45),
+        200_000,
+        9_549,
+        &[],
+        Handoff::Lrat("10"),
+    );
+}
+
 /// {-1,0,1}^5, p = 42, refuted by computation on 2026-12-05 (README, "What
 /// is proven and what is open"; so p = 84 is excluded too, by docs/math.md
 /// §9, though it lies above the Lemmens–Scheutzow bound anyway): 15,040

@@ -378,6 +378,28 @@ fn m1_n5_period_41_is_refuted_in_blocks_of_cubes() {
     );
 }
 
+/// {-1,0,1}^5, p = 44, refuted by computation on 2026-12-05 (README, "What
+/// is proven and what is open"): 13,903 whole-profile cubes, which
+/// `split --cubes auto` writes since the walk's bound is 10^9 steps. About
+/// 31 minutes of cubes on 2 shared cores, 11 handed off after 10 s to a
+/// CaDiCaL that writes LRAT ([`Handoff::Lrat`]), the longest 14 minutes
+/// (cube 13563, distance 1 exactly at offsets 1, 21 and 22) and 12 minutes
+/// (cube 13873, offsets 2, 20 and 22). Nothing published settles it; the
+/// expectation is orbitcnf's own certified answer.
+#[test]
+#[ignore = "about 40 minutes on 2 cores and 6.5 GB of disk (13,903 whole-profile cubes, 11 handed off to a CaDiCaL named by ORBITCNF_LRAT_CADICAL that writes LRAT, two for 12 to 14 minutes); run on purpose"]
+fn m1_n5_period_44_is_refuted_in_blocks_of_cubes() {
+    let dir = TestDir::new();
+    refuted_in_blocks(
+        &dir,
+        &Q::cube(-1, 1, 5, 44),
+        200_000,
+        13_903,
+        &[],
+        Handoff::Lrat("10"),
+    );
+}
+
 /// {-1,0,1}^5, p = 45, refuted by computation on 2026-12-05 (README, "What
 /// is proven and what is open"): 9,549 whole-profile cubes. About 16
 /// minutes of cubes on 2 shared cores, 13 handed off after 10 s to a
@@ -750,6 +772,10 @@ fn refuted_in_blocks(
             start = Some(i);
         }
     }
+    // The highest blocks first: the hard cubes of a whole-profile split
+    // gather at its end, and started first they overlap the easy blocks
+    // (docs/cluster.md, "Blocks of cubes, the highest first").
+    jobs.reverse();
     // `-I @@`: the block goes where `@@` is, and `{}` stays for --proof-arg.
     let handoff: Vec<String> = match (handoff, lrat_cadical) {
         (Handoff::Drat(after), _) => [

@@ -378,6 +378,26 @@ fn m1_n5_period_41_is_refuted_in_blocks_of_cubes() {
     );
 }
 
+/// {-1,0,1}^5, p = 49, refuted by computation on 2026-12-05 (README, "What
+/// is proven and what is open"): 12,359 whole-profile cubes. About 12
+/// minutes of cubes on 2 shared cores, 9 handed off after 10 s to a
+/// CaDiCaL that writes LRAT ([`Handoff::Lrat`]), the longest 59 s. Nothing
+/// published settles it; the expectation is orbitcnf's own certified
+/// answer.
+#[test]
+#[ignore = "about 20 minutes on 2 cores and 4.5 GB of disk (12,359 whole-profile cubes, 9 handed off to a CaDiCaL named by ORBITCNF_LRAT_CADICAL that writes LRAT); run on purpose"]
+fn m1_n5_period_49_is_refuted_in_blocks_of_cubes() {
+    let dir = TestDir::new();
+    refuted_in_blocks(
+        &dir,
+        &Q::cube(-1, 1, 5, 49),
+        200_000,
+        12_359,
+        &[],
+        Handoff::Lrat("10"),
+    );
+}
+
 /// {-1,0,1}^5, p = 44, refuted by computation on 2026-12-05 (README, "What
 /// is proven and what is open"): 13,903 whole-profile cubes, which
 /// `split --cubes auto` writes since the walk's bound is 10^9 steps. About

@@ -378,6 +378,28 @@ fn m1_n5_period_41_is_refuted_in_blocks_of_cubes() {
     );
 }
 
+/// {-1,0,1}^5, p = 51, refuted by computation on 2026-12-05 (README, "What
+/// is proven and what is open"): 24,344 whole-profile cubes, more than the
+/// 20,000 `split --cubes auto` takes whole, so the test asks for them with
+/// a large cube budget, as the campaign did. About 26 minutes of cubes on
+/// 2 cores shared with a CI run, 12 handed off after 10 s to a CaDiCaL
+/// that writes LRAT ([`Handoff::Lrat`]), the longest 509 s (cube 24265,
+/// distance 1 exactly at offsets 1, 16, 17 and 18). Nothing published
+/// settles it; the expectation is orbitcnf's own certified answer.
+#[test]
+#[ignore = "about 30 minutes on 2 cores and 8 GB of disk (24,344 whole-profile cubes, 12 handed off to a CaDiCaL named by ORBITCNF_LRAT_CADICAL that writes LRAT); run on purpose"]
+fn m1_n5_period_51_is_refuted_in_blocks_of_cubes() {
+    let dir = TestDir::new();
+    refuted_in_blocks(
+        &dir,
+        &Q::cube(-1, 1, 5, 51),
+        200_000,
+        24_344,
+        &[],
+        Handoff::Lrat("10"),
+    );
+}
+
 /// {-1,0,1}^5, p = 49, refuted by computation on 2026-12-05 (README, "What
 /// is proven and what is open"): 12,359 whole-profile cubes. About 12
 /// minutes of cubes on 2 shared cores, 9 handed off after 10 s to a

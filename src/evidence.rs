@@ -11,7 +11,9 @@
 //!   refutation of the exact CNF of the question, accepted by orbitcnf's own
 //!   checker ([`check_refutation`], [`check_proof_file`]); or, only where the
 //!   user chose so, a [solver's claim](Evidence::SolverClaim), which nothing
-//!   checks and every output marks as unchecked;
+//!   checks and every output marks as unchecked; or a split folder whose
+//!   cubes are all refuted with LRAT proofs and provably cover every model
+//!   ([`check_split_refutation`], which merges the folder again);
 //! * **unknown** — [nothing](Evidence::None).
 //!
 //! `decide`, `decode`, certificate bundles, the results store, `spectrum`,
@@ -245,6 +247,102 @@ pub fn proof_info(check: ProofCheck, file: Option<PathBuf>) -> ProofInfo {
         drat_bytes: None,
         check_seconds: check.seconds,
     }
+}
+
+/// What [`check_split_refutation`] established about a split folder.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct SplitRefutation {
+    /// Cubes in the split, each refuted with an LRAT proof checked now.
+    pub cubes: usize,
+    /// Steps of the coverage proof, checked now.
+    pub coverage_steps: u64,
+    /// Solving seconds summed over the cubes' results.
+    pub solve_seconds: f64,
+}
+
+/// The hex SHA-256 of the split folder `dir`'s manifest, which pins the
+/// whole split (the digests of its formula, cubes and coverage proof), or
+/// an error saying that the folder or its manifest is gone.
+///
+/// # Errors
+/// [`Error::Parse`] about the manifest when it cannot be read.
+pub fn split_manifest_digest(dir: &Path) -> Result<String> {
+    let path = dir.join(crate::split::MANIFEST);
+    crate::artifact::sha256_file(&path)
+        .map(|(digest, _)| digest)
+        .map_err(|e| {
+            Error::parse(
+                path.display().to_string(),
+                0,
+                format!("the split folder's manifest cannot be read ({e})"),
+            )
+        })
+}
+
+/// Checks the split folder `dir` as the refutation of `q` under `options`:
+/// its manifest must still have the SHA-256 `manifest_sha256` and state
+/// exactly this question and these options, and a fresh merge (on `jobs`
+/// threads) must re-check the formula, every cube's digest, the coverage
+/// proof and every cube's LRAT proof, with no cube pending and none
+/// refuted only on a solver's word.
+///
+/// # Errors
+/// [`Error::Parse`] naming what differs or which cubes lack a checked
+/// proof; the errors of [`crate::split::run::merge`] for a damaged split.
+pub fn check_split_refutation(
+    q: &Question,
+    options: &EncodeOptions,
+    dir: &Path,
+    manifest_sha256: &str,
+    jobs: usize,
+) -> Result<SplitRefutation> {
+    let where_ = dir.display().to_string();
+    let bad = |why: String| Error::parse(&where_, 0, why);
+    if split_manifest_digest(dir)? != manifest_sha256 {
+        return Err(bad(
+            "its manifest.json is not the one recorded (SHA-256 differs)".into(),
+        ));
+    }
+    let m = crate::split::SplitManifest::read(dir)?;
+    if m.question != q.record() {
+        return Err(bad(format!(
+            "the split is about another question ({})",
+            Question::from_record(&m.question)
+                .map(|other| other.statement())
+                .unwrap_or_else(|_| "unreadable".into())
+        )));
+    }
+    if m.options.resolve(q) != options.resolve(q) {
+        return Err(bad(
+            "the split was encoded with other options than the answer records".into(),
+        ));
+    }
+    let r = crate::split::run::merge(
+        dir,
+        None,
+        false,
+        crate::proof::LratFormat::Text,
+        crate::progress::ProgressMode::Off,
+        jobs,
+    )?;
+    if r.verdict != crate::report::Verdict::Infeasible || !r.uncertified.is_empty() {
+        let missing: Vec<usize> = r
+            .pending
+            .iter()
+            .map(|p| p.index)
+            .chain(r.uncertified.iter().copied())
+            .collect();
+        return Err(bad(format!(
+            "the merge is {}, not a certified refutation: cubes {} have no checked proof",
+            r.verdict.word(),
+            crate::split::index_ranges(&missing)
+        )));
+    }
+    Ok(SplitRefutation {
+        cubes: r.cubes,
+        coverage_steps: r.coverage.steps,
+        solve_seconds: r.solve_seconds,
+    })
 }
 
 #[cfg(test)]

@@ -12,6 +12,7 @@ use orbitcnf::real;
 use orbitcnf::solve::bundled::Bundled;
 use orbitcnf::solve::certified::Certified;
 use orbitcnf::solve::{Backend, Limits};
+use orbitcnf::spectrum::Recorded;
 use orbitcnf::split::auto::CubeTarget;
 use orbitcnf::split::layout::{LayoutChoice, SplitLayout};
 use orbitcnf::split::run::CubeStatus;
@@ -98,6 +99,14 @@ Exit codes (the SAT convention):
       --trust-solver)
    0  unknown: some cube has no usable result (or --pending)
    1  error: the split folder is damaged or from another orbitcnf version
+
+With --store DIR the verdict also goes into a results store, so that
+`spectrum --store DIR` reuses it (and refutes its multiples by the divisor
+rule) and `report DIR` shows it beside the other periods: infeasible backed
+by this folder (recorded only when every cube has a checked proof), feasible
+with its orbit. Each reuse checks that the folder's manifest.json still has
+the SHA-256 recorded; `spectrum --recheck` merges the folder again. Keep the
+folder where it is, or the stored answer is set aside and decided again.
 
 On a real-space split, merge rebuilds the skeleton and compares
 skeleton.cnf byte for byte, recomputes every cube's digest, checks the
@@ -596,6 +605,27 @@ pub fn run_refine(a: RefineArgs) -> Outcome {
     super::real::refine(&a.dir, only, a.cubes, a.json)
 }
 
+/// The report line of `merge --store`.
+fn recorded_text(rec: &Recorded) -> String {
+    match rec {
+        Recorded::Written(path) => format!("stored       {}\n", path.display()),
+        Recorded::Kept(path) => format!(
+            "stored       {} (already there, with the same verdict; kept)\n",
+            path.display()
+        ),
+        Recorded::NotDecided(why) => format!("stored       nothing: {why}\n"),
+    }
+}
+
+/// The `store` member of `merge --store --json`.
+fn recorded_json(rec: &Recorded) -> serde_json::Value {
+    match rec {
+        Recorded::Written(path) => serde_json::json!({"action": "written", "file": path}),
+        Recorded::Kept(path) => serde_json::json!({"action": "kept", "file": path}),
+        Recorded::NotDecided(why) => serde_json::json!({"action": "none", "reason": why}),
+    }
+}
+
 /// Arguments of `merge`.
 #[derive(Args, Debug)]
 pub struct MergeArgs {
@@ -626,6 +656,15 @@ pub struct MergeArgs {
     /// one cube's CNF in memory at a time.
     #[arg(long, value_name = "N")]
     jobs: Option<usize>,
+    /// Also record the verdict in the results store DIR (created when
+    /// missing; the store `spectrum --store` keeps), so that a sweep of the
+    /// same question reuses it and `report DIR` shows it: a feasible
+    /// verdict with its orbit, an infeasible one backed by this split
+    /// folder, only when every cube has a checked proof. Later sweeps check
+    /// that the folder's manifest is unchanged; `spectrum --recheck` merges
+    /// the folder again.
+    #[arg(long, value_name = "DIR")]
+    store: Option<PathBuf>,
     #[command(flatten)]
     progress: ProgressArgs,
 }
@@ -643,6 +682,13 @@ pub fn run_merge(a: MergeArgs) -> Outcome {
         if a.jobs.is_some() {
             return Err(Error::Options(
                 "--jobs applies to grid splits; a real-space split is merged on one thread".into(),
+            ));
+        }
+        if a.store.is_some() {
+            return Err(Error::Options(
+                "--store applies to grid splits; a real-space split's certificate is the folder \
+                 itself"
+                    .into(),
             ));
         }
         return super::real::merge(
@@ -671,10 +717,31 @@ pub fn run_merge(a: MergeArgs) -> Outcome {
         a.progress.mode(a.json),
         a.jobs.unwrap_or_else(orbitcnf::pool::default_jobs),
     )?;
+    let recorded = match &a.store {
+        Some(root) => Some(orbitcnf::spectrum::record_merge(
+            root,
+            &a.dir,
+            &r,
+            &orbitcnf::store::run_id(),
+        )?),
+        None => None,
+    };
     print_either(
         a.json,
-        || serde_json::to_string(&r).expect("serialises"),
-        || r.to_text(),
+        || {
+            let mut v = serde_json::to_value(&r).expect("serialises");
+            if let Some(rec) = &recorded {
+                v["store"] = recorded_json(rec);
+            }
+            v.to_string()
+        },
+        || {
+            let mut text = r.to_text();
+            if let Some(rec) = &recorded {
+                text.push_str(&recorded_text(rec));
+            }
+            text
+        },
     )?;
     Ok(code(r.exit_code()))
 }

@@ -49,7 +49,7 @@
 //! they were) and `⌊p/2⌋ ≤` [`MAX_OFFSETS_PRUNED`]. Up to [`MAX_OFFSETS`]
 //! offsets every lex-least top pattern is searched; above, the walk skips
 //! the patterns that an exclusion found before already matches
-//! ([`pruned_walk`]): on `{−1,0,1}^5` it leaves 3,848 whole profiles of
+//! (`pruned_walk`): on `{−1,0,1}^5` it leaves 3,848 whole profiles of
 //! `p = 38` instead of 58,285, and 15,040 of `p = 42` instead of 355,193.
 //!
 //! Variables: none. Clauses: one per exclusion ([`size`]), each with at most
@@ -81,7 +81,7 @@ pub const MAX_OFFSETS_PRUNED: usize = 40;
 /// Search nodes (fooling-set searches and visited patterns together) the
 /// pruned walk may use; where it runs out, the exclusions found so far are
 /// kept, and the patterns not reached get no clause (as a pattern whose
-/// search runs out of [`NODE_BUDGET`] gets none). A count, not a time, so
+/// search runs out of `NODE_BUDGET` gets none). A count, not a time, so
 /// the formula does not depend on the machine.
 pub const PRUNED_WALK_BUDGET: u64 = 1_000_000_000;
 

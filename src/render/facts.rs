@@ -405,8 +405,21 @@ pub fn certificate_words(a: &Answer) -> (String, bool) {
                 .map(|f| format!(": {f}"))
                 .unwrap_or_default();
             format!(
-                "by §9 (periods are closed under divisors): {p} is infeasible, by an LRAT proof \
-                 accepted by orbitcnf's own checker{file}"
+                "by §9 (periods are closed under divisors): {p} is infeasible, refuted with \
+                 proofs accepted by orbitcnf's own checker{file}"
+            )
+        }
+        EvidenceKind::CheckedCubes { cubes } => {
+            let n = cubes.map_or("every".to_string(), |n| format!("all {n}"));
+            let cover = e.steps.map(|s| format!(" ({s} steps)")).unwrap_or_default();
+            let file = e
+                .file
+                .as_ref()
+                .map(|f| format!("; split folder {f}"))
+                .unwrap_or_default();
+            format!(
+                "{n} cubes of a split refuted, each by an LRAT proof accepted by orbitcnf's own \
+                 checker, and a checked proof{cover} that the cubes cover every model{file}"
             )
         }
         EvidenceKind::None => match &a.reason {

@@ -138,6 +138,14 @@ pub enum EvidenceKind {
         /// The refuted divisor, as the input names it.
         period: Option<u64>,
     },
+    /// Every cube of a split folder refuted with an LRAT proof, and the
+    /// cubes' coverage proof, re-checked by `merge` when it recorded the
+    /// answer (the evidence's file is the folder, its digest the
+    /// manifest's).
+    CheckedCubes {
+        /// Cubes in the split, as the input states it.
+        cubes: Option<u64>,
+    },
     /// Nothing (unknown answers).
     None,
     /// A kind this version does not know, as the input named it.
@@ -490,6 +498,20 @@ fn evidence_of(v: &Value) -> Evidence {
             },
             file: as_string(d.get("proof_file")),
             sha256: as_string(d.get("proof_sha256")),
+            ..Evidence::of_kind(EvidenceKind::None)
+        };
+    }
+    if v.get("backing").and_then(Value::as_str) == Some("checked-cubes") {
+        let c = v.get("cubes").filter(|c| c.is_object());
+        return Evidence {
+            kind: EvidenceKind::CheckedCubes {
+                cubes: c.and_then(|c| c.get("cubes")).and_then(Value::as_u64),
+            },
+            file: c.and_then(|c| as_string(c.get("folder"))),
+            sha256: c.and_then(|c| as_string(c.get("manifest_sha256"))),
+            steps: c
+                .and_then(|c| c.get("coverage_steps"))
+                .and_then(Value::as_u64),
             ..Evidence::of_kind(EvidenceKind::None)
         };
     }

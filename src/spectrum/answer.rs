@@ -90,6 +90,117 @@ pub(super) fn constructed(
     Ok(a)
 }
 
+/// What [`record_merge`] did with a merged split.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Recorded {
+    /// The answer was written to this file of the store.
+    Written(PathBuf),
+    /// A decided answer with the same verdict was already stored in this
+    /// file, and was kept.
+    Kept(PathBuf),
+    /// Nothing was recorded, for the reason given: the merge is unknown, or
+    /// some cube is refuted only on a solver's word.
+    NotDecided(String),
+}
+
+/// Records the verdict of the split folder `dir`, merged into `report` by
+/// [`crate::split::run::merge`], in the results store at `root` (created
+/// when missing) by run `run_id`, so that a sweep of the same question and
+/// options (its key is the manifest's question and options) reuses it: a
+/// feasible verdict with its orbit (checked again here, with its box
+/// extension on small boxes, as for any stored orbit), an infeasible one
+/// backed by the folder ([`Backing::CheckedCubes`]: every later reuse
+/// checks the manifest's SHA-256, and a full re-check merges the folder
+/// again). The store refuses a verdict that contradicts a stored one or a
+/// published theorem.
+///
+/// # Errors
+/// [`Error::Contradiction`]; the errors of [`store::Store::open`] and
+/// [`store::Store::put`]; a split folder whose manifest cannot be read.
+pub fn record_merge(
+    root: &std::path::Path,
+    dir: &std::path::Path,
+    report: &crate::split::run::MergeReport,
+    run_id: &str,
+) -> Result<Recorded> {
+    use crate::split::run::MergeCertificate;
+    let m = crate::split::SplitManifest::read(dir)?;
+    let q = Question::from_record(&m.question)?;
+    let limits = RunLimits {
+        time_seconds: None,
+        max_clauses: crate::encode::DEFAULT_MAX_CLAUSES,
+    };
+    let started_at = store::utc_timestamp(SystemTime::now());
+    let mut a = Answer::unknown(&q, &m.options, limits, How::Cubes, run_id, started_at);
+    a.stats.solve_seconds = report.solve_seconds;
+    a.stats.seconds = report.solve_seconds;
+    match (report.verdict, &report.certificate) {
+        (Verdict::Feasible, _) => {
+            let Some(orbit) = report.orbit.clone() else {
+                return Ok(Recorded::NotDecided(
+                    "the feasible merge has no orbit".into(),
+                ));
+            };
+            let w = check_witness(&q, &a.options, &orbit, report.map.as_deref())?;
+            a.map_checked_points = match (&report.map, w.map) {
+                (Some(map), Some(mc)) => {
+                    a.map = Some(map.clone());
+                    Some(mc.points_checked)
+                }
+                _ => map_check(&q, &orbit)?,
+            };
+            a.verdict = Verdict::Feasible;
+            a.backing = Backing::CheckedOrbit;
+            a.profile = Some(w.orbit.profile);
+            a.orbit = Some(orbit);
+        }
+        (
+            Verdict::Infeasible,
+            MergeCertificate::CubeProofs { .. } | MergeCertificate::CombinedProof { .. },
+        ) => {
+            let folder = std::path::absolute(dir).unwrap_or_else(|_| dir.to_path_buf());
+            a.verdict = Verdict::Infeasible;
+            a.backing = Backing::CheckedCubes;
+            a.cubes = Some(store::CubesRecord {
+                folder: folder.display().to_string(),
+                manifest_sha256: crate::evidence::split_manifest_digest(dir)?,
+                cubes: report.cubes as u64,
+                coverage_steps: report.coverage.steps,
+                solve_seconds: report.solve_seconds,
+            });
+        }
+        (Verdict::Infeasible, _) => {
+            return Ok(Recorded::NotDecided(
+                "some cubes are refuted only on a solver's word, and the store keeps only \
+                 checked verdicts"
+                    .into(),
+            ));
+        }
+        (Verdict::Unknown, _) => {
+            return Ok(Recorded::NotDecided(format!(
+                "the merge is unknown ({} of {} cubes without a usable result)",
+                report.pending.len(),
+                report.cubes
+            )));
+        }
+    }
+    let grid = q.grid.clone();
+    if let Some(theorem) = crate::theory::theorem_conflict_for(&a.question, &grid, a.verdict) {
+        return Err(Error::Contradiction {
+            question: store::question_words(&a.question),
+            first: theorem,
+            second: format!("the merge of {} says {}", dir.display(), a.verdict.word()),
+        });
+    }
+    a.finished_at = store::utc_timestamp(SystemTime::now());
+    let mut s = store::Store::open(root)?;
+    let path = s.answer_path(&a.key);
+    Ok(match s.put(a)? {
+        store::Put::Written => Recorded::Written(path),
+        store::Put::Kept(_) => Recorded::Kept(path),
+    })
+}
+
 /// What one solve of a period gave.
 pub(super) enum Solved {
     /// An answer to record (possibly unknown).

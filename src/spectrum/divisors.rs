@@ -39,7 +39,9 @@ pub(super) fn decides(a: &Answer, r: usize) -> bool {
         return false;
     }
     match (a.verdict, a.backing) {
-        (Verdict::Infeasible, Backing::CheckedProof | Backing::Divisor) => r.is_multiple_of(p),
+        (Verdict::Infeasible, Backing::CheckedProof | Backing::CheckedCubes | Backing::Divisor) => {
+            r.is_multiple_of(p)
+        }
         (Verdict::Feasible, Backing::CheckedOrbit) => p.is_multiple_of(r),
         _ => false,
     }
@@ -81,8 +83,9 @@ pub(super) fn by_divisors(
                 _ => DivisorRecord {
                     period: from.question.period,
                     key: from.key.clone(),
-                    proof_sha256: from.proof.as_ref().and_then(|p| p.sha256.clone()),
+                    proof_sha256: from.evidence_sha256(),
                     proof_file: from.proof.as_ref().and_then(|p| p.file.clone()),
+                    split_folder: from.cubes.as_ref().map(|c| c.folder.clone()),
                 },
             };
             a.verdict = Verdict::Infeasible;
@@ -107,6 +110,7 @@ pub(super) fn by_divisors(
                 key: from.key.clone(),
                 proof_sha256: None,
                 proof_file: None,
+                split_folder: None,
             });
         }
     }

@@ -108,7 +108,8 @@
 //! # Files
 //!
 //! `mod.rs` the configuration and the result types; `sweep.rs` the sweep
-//! ([`run`]); `answer.rs` one period's answer (construction or solver);
+//! ([`run`]); `answer.rs` one period's answer (construction or solver),
+//! and the answer of a merged split folder ([`record_merge`]);
 //! `divisors.rs` answers by the divisor rule (docs/math.md §9);
 //! `render.rs` the reports.
 
@@ -133,6 +134,7 @@ use crate::report::Verdict;
 use crate::store::{Answer, Backing, How, SetAside};
 use crate::theory::{Published, period_bound, published_for};
 
+pub use answer::{Recorded, record_merge};
 pub use render::{certificate_words, ranges_words};
 pub use sweep::run;
 
@@ -334,7 +336,10 @@ impl Checked {
     /// proof), [`Checked::Never`] for any other.
     fn of(a: &Answer, now: Checked) -> Checked {
         match a.backing {
-            Backing::CheckedOrbit | Backing::CheckedProof | Backing::Divisor => now,
+            Backing::CheckedOrbit
+            | Backing::CheckedProof
+            | Backing::CheckedCubes
+            | Backing::Divisor => now,
             Backing::SolverClaim | Backing::None => Checked::Never,
         }
     }
@@ -404,6 +409,8 @@ pub struct Summary {
     /// Answers read off another period's by the divisor rule (docs/math.md
     /// §9; this run or stored).
     pub by_divisors: usize,
+    /// Answers of merged split folders, recorded by `merge` (always stored).
+    pub by_cubes: usize,
     /// Answers reused from the store.
     pub reused: usize,
     /// Reused infeasible answers whose proof this run did not check again
@@ -424,6 +431,7 @@ impl Summary {
             by_construction: count(&|r| r.how == How::Construction),
             by_solver: count(&|r| r.how == How::Solver),
             by_divisors: count(&|r| r.how == How::Divisor),
+            by_cubes: count(&|r| r.how == How::Cubes),
             reused: count(&|r| r.reused),
             proofs_not_rechecked: count(&|r| {
                 r.verdict == Verdict::Infeasible && matches!(r.checked, Checked::Earlier { .. })

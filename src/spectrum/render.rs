@@ -64,16 +64,23 @@ fn evidence_words(a: &Answer, when: &str) -> String {
             (None, MapClass::Topical) => format!("topical orbit checked{from}"),
         },
         Backing::Divisor => match &a.divisor {
-            Some(d) => {
-                let file = d
-                    .proof_file
-                    .as_ref()
-                    .map_or(", not kept".to_string(), |f| format!(": {f}"));
-                format!(
-                    "by §9: p = {} is infeasible (LRAT proof checked{when}{file})",
+            Some(d) => match &d.split_folder {
+                Some(folder) => format!(
+                    "by §9: p = {} is infeasible (every cube's LRAT proof and the coverage \
+                     proof checked{when}: {folder})",
                     d.period
-                )
-            }
+                ),
+                None => {
+                    let file = d
+                        .proof_file
+                        .as_ref()
+                        .map_or(", not kept".to_string(), |f| format!(": {f}"));
+                    format!(
+                        "by §9: p = {} is infeasible (LRAT proof checked{when}{file})",
+                        d.period
+                    )
+                }
+            },
             None => "by §9, from an unnamed period".into(),
         },
         Backing::CheckedProof => match &a.proof {
@@ -82,6 +89,13 @@ fn evidence_words(a: &Answer, when: &str) -> String {
                 None => format!("LRAT proof checked{when} ({} steps), not kept", p.steps),
             },
             None => format!("LRAT proof checked{when}"),
+        },
+        Backing::CheckedCubes => match &a.cubes {
+            Some(c) => format!(
+                "{} cubes, each LRAT proof and the coverage proof ({} steps) checked{when}: {}",
+                c.cubes, c.coverage_steps, c.folder
+            ),
+            None => format!("cubes checked{when} (no split folder recorded)"),
         },
         Backing::SolverClaim => "the solver's claim, no proof checked".into(),
         Backing::None => format!("none: {}", a.reason.as_deref().unwrap_or("no answer")),
@@ -208,9 +222,15 @@ impl Spectrum {
         let _ = writeln!(s, "summary      {}", self.summary_words());
         let _ = writeln!(
             s,
-            "             {} by construction, {} by the solver, {} by §9 (divisors); {} reused from the store; {} elapsed with {} job(s)",
+            "             {} by construction, {} by the solver{}, {} by §9 (divisors); {} reused from the store; {} elapsed with {} job(s)",
             self.summary.by_construction,
             self.summary.by_solver,
+            // Named only when there are some, so that sweeps without
+            // merged splits read as they always did.
+            match self.summary.by_cubes {
+                0 => String::new(),
+                n => format!(", {n} in cubes (merged split folders)"),
+            },
             self.summary.by_divisors,
             self.summary.reused,
             duration_words(self.elapsed_seconds),

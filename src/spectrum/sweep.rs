@@ -425,7 +425,7 @@ fn reusable(
 /// checked again too. Says what was checked in this run.
 fn check_stored(s: &Store, q: &Question, a: &Answer, recheck: bool) -> Result<Checked> {
     let proof_checked = if recheck {
-        s.recheck(a)?.proof.is_some()
+        s.recheck(a)?.refutation_checked()
     } else {
         s.quick_check(a)?;
         false

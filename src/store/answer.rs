@@ -33,15 +33,19 @@ pub enum How {
     /// feasible one is feasible with the sub-orbit as its witness. The answer
     /// names that period in [`Answer::divisor`].
     Divisor,
+    /// Decided in cubes by `split`, `run-cube` and `merge`, and recorded by
+    /// `merge` (the split folder is named in [`Answer::cubes`]).
+    Cubes,
 }
 
 impl How {
-    /// The word used in reports: `construction` or `solver`.
+    /// The word used in reports: `construction`, `solver`, `§9` or `cubes`.
     pub fn word(self) -> &'static str {
         match self {
             How::Construction => "construction",
             How::Solver => "solver",
             How::Divisor => "§9",
+            How::Cubes => "cubes",
         }
     }
 }
@@ -63,8 +67,33 @@ pub enum Backing {
     /// that one ([`crate::store::Store::quick_check`],
     /// [`crate::store::Store::recheck`]).
     Divisor,
+    /// Every cube of a split folder (named in [`Answer::cubes`]) refuted with
+    /// an LRAT proof, and the proof that the cubes cover every model, all
+    /// re-checked by `merge` before it recorded the answer. Every check of
+    /// the answer checks that the folder's manifest is still the one
+    /// recorded; the full check ([`crate::store::Store::recheck`]) merges
+    /// the folder again.
+    CheckedCubes,
     /// Nothing (unknown answers).
     None,
+}
+
+/// The split folder behind an answer decided in cubes ([`How::Cubes`]).
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct CubesRecord {
+    /// The split folder, as `merge` was given it, made absolute when it
+    /// could be.
+    pub folder: String,
+    /// Hex SHA-256 of the folder's `manifest.json` when the answer was
+    /// recorded: the manifest holds the digests of the formula, of every
+    /// cube and of the coverage proof, so it pins the whole split.
+    pub manifest_sha256: String,
+    /// Cubes in the split.
+    pub cubes: u64,
+    /// Steps of the coverage proof.
+    pub coverage_steps: u64,
+    /// Solving seconds summed over the cubes' results.
+    pub solve_seconds: f64,
 }
 
 /// The other period an answer by the divisor rule ([`How::Divisor`]) was
@@ -78,13 +107,19 @@ pub struct DivisorRecord {
     /// The store key of that period's answer.
     pub key: String,
     /// For an infeasible answer: the SHA-256 of that answer's proof file,
-    /// when it was kept, so that a replaced proof is noticed.
+    /// when it was kept, or of its split folder's manifest, for an answer
+    /// decided in cubes ([`Answer::evidence_sha256`]), so that a replaced
+    /// proof or split is noticed.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub proof_sha256: Option<String>,
     /// For an infeasible answer: that answer's proof file, relative to the
     /// store, when it was kept (for reports; the check goes by `key`).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub proof_file: Option<String>,
+    /// For an infeasible answer decided in cubes: its split folder (for
+    /// reports; the check goes by `key`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub split_folder: Option<String>,
 }
 
 /// The proof of an infeasible answer.
@@ -185,6 +220,9 @@ pub struct Answer {
     /// divisor rule ([`How::Divisor`]).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub divisor: Option<DivisorRecord>,
+    /// The split folder of an answer decided in cubes ([`How::Cubes`]).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub cubes: Option<CubesRecord>,
     /// Why the answer is unknown.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub reason: Option<String>,
@@ -238,6 +276,7 @@ impl Answer {
             map_checked_points: None,
             proof: None,
             divisor: None,
+            cubes: None,
             reason: None,
             limits,
             stats: AnswerStats::default(),
@@ -247,6 +286,17 @@ impl Answer {
             run_id: run_id.into(),
             started_at,
             finished_at: String::new(),
+        }
+    }
+
+    /// The digest of what refutes an infeasible answer: its kept proof
+    /// file's SHA-256, or its split folder's manifest's for an answer
+    /// decided in cubes.
+    pub fn evidence_sha256(&self) -> Option<String> {
+        match (&self.proof, &self.cubes) {
+            (Some(p), _) => p.sha256.clone(),
+            (None, Some(c)) => Some(c.manifest_sha256.clone()),
+            (None, None) => None,
         }
     }
 

@@ -9,6 +9,12 @@
 //! DIR/quarantine/                   files set aside (see below)
 //! ```
 //!
+//! An infeasible answer decided in cubes (`merge --store`) keeps no proof
+//! here: it names its split folder and the SHA-256 of the folder's
+//! manifest ([`CubesRecord`]), which every reuse compares and a full
+//! [`Store::recheck`] follows by merging the folder again
+//! ([`crate::evidence::check_split_refutation`]).
+//!
 //! The key ([`key`]) is the hex SHA-256 of the question record, the encoding
 //! options as resolved for the question ([`EncodeOptions::resolve`](crate::encode::EncodeOptions::resolve)) and the
 //! formulation version, so two runs that would build the same CNF share a
@@ -67,8 +73,8 @@ use serde::Serialize;
 
 pub use crate::artifact::sha256_file;
 pub use answer::{
-    Answer, AnswerStats, Backing, DivisorRecord, How, ProofRecord, RunLimits, SCHEMA, check_agree,
-    key, key_for, question_words, run_id, utc_timestamp,
+    Answer, AnswerStats, Backing, CubesRecord, DivisorRecord, How, ProofRecord, RunLimits, SCHEMA,
+    check_agree, key, key_for, question_words, run_id, utc_timestamp,
 };
 
 use crate::artifact::{sha256_hex, sync_dir, write_atomically};
@@ -103,6 +109,17 @@ pub struct Recheck {
     pub orbit: Option<OrbitCheck>,
     /// For an infeasible answer with a kept proof: the accepted proof.
     pub proof: Option<LratSummary>,
+    /// For an infeasible answer decided in cubes: the split folder merged
+    /// again.
+    pub cubes: Option<crate::evidence::SplitRefutation>,
+}
+
+impl Recheck {
+    /// Whether an infeasible answer's refutation (a proof, or a split's
+    /// cubes) was checked again, not only its file's presence.
+    pub fn refutation_checked(&self) -> bool {
+        self.proof.is_some() || self.cubes.is_some()
+    }
 }
 
 /// A file of the store that could not be used, and where it went.
@@ -369,6 +386,7 @@ impl Store {
         let mut out = Recheck {
             orbit: None,
             proof: None,
+            cubes: None,
         };
         match a.verdict {
             Verdict::Feasible => {
@@ -376,10 +394,23 @@ impl Store {
             }
             Verdict::Infeasible if a.backing == Backing::Divisor => {
                 let source = self.divisor_source(a, &file)?;
-                out.proof = self
+                let r = self
                     .recheck(source)
-                    .map_err(|e| refused(&file, source, &e))?
-                    .proof;
+                    .map_err(|e| refused(&file, source, &e))?;
+                out.proof = r.proof;
+                out.cubes = r.cubes;
+            }
+            Verdict::Infeasible if a.backing == Backing::CheckedCubes => {
+                let c = cubes_record(a, &file)?;
+                let r = crate::evidence::check_split_refutation(
+                    &q,
+                    &a.options,
+                    Path::new(&c.folder),
+                    &c.manifest_sha256,
+                    crate::pool::default_jobs(),
+                )
+                .map_err(|e| Error::parse(&file, 0, format!("its split folder: {}", why(&e))))?;
+                out.cubes = Some(r);
             }
             Verdict::Infeasible => {
                 let Some(rel) = a.proof.as_ref().and_then(|p| p.file.as_ref()) else {
@@ -434,6 +465,24 @@ impl Store {
                 let source = self.divisor_source(a, &file)?;
                 self.quick_check(source)
                     .map_err(|e| refused(&file, source, &e))?;
+            }
+            Verdict::Infeasible if a.backing == Backing::CheckedCubes => {
+                let c = cubes_record(a, &file)?;
+                let digest =
+                    crate::evidence::split_manifest_digest(Path::new(&c.folder)).map_err(|e| {
+                        Error::parse(&file, 0, format!("its split folder: {}", why(&e)))
+                    })?;
+                if digest != c.manifest_sha256 {
+                    return Err(Error::parse(
+                        file,
+                        0,
+                        format!(
+                            "the manifest of its split folder {} is not the one recorded \
+                             (SHA-256 differs)",
+                            c.folder
+                        ),
+                    ));
+                }
             }
             Verdict::Infeasible => {
                 if let Some(p) = &a.proof
@@ -498,21 +547,36 @@ impl Store {
                 a.question.period
             )));
         }
-        if source.verdict != Verdict::Infeasible || source.backing != Backing::CheckedProof {
+        if source.verdict != Verdict::Infeasible
+            || !matches!(
+                source.backing,
+                Backing::CheckedProof | Backing::CheckedCubes
+            )
+        {
             return Err(bad(format!(
                 "it is infeasible because p = {p} is (§9), but the stored answer to p = {p} is {} \
                  and not backed by a checked proof",
                 source.verdict.word()
             )));
         }
-        let kept = source.proof.as_ref().and_then(|pr| pr.sha256.as_ref());
-        if kept != rec.proof_sha256.as_ref() {
+        if source.evidence_sha256() != rec.proof_sha256 {
             return Err(bad(format!(
                 "the proof of p = {p} is not the one this answer was derived from (SHA-256 differs)"
             )));
         }
         Ok(source)
     }
+}
+
+/// The split folder record of an answer backed by its cubes.
+fn cubes_record<'a>(a: &'a Answer, file: &str) -> Result<&'a CubesRecord> {
+    a.cubes.as_ref().ok_or_else(|| {
+        Error::parse(
+            file,
+            0,
+            "an answer decided in cubes that does not name its split folder",
+        )
+    })
 }
 
 /// The error refusing an answer by §9 (in `file`) because the answer it

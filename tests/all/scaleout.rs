@@ -768,6 +768,145 @@ fn merge_rejects_a_tampered_split_and_a_tampered_proof() {
         .error_with(&["cube-0001.cnf", "SHA-256"]);
 }
 
+/// `merge --store`: a merged split's verdict goes into a results store,
+/// where `spectrum` reuses it (and reads its multiples off it by §9 of
+/// docs/math.md); the quick check notices a changed manifest, the full
+/// re-check merges the folder again and notices a changed cube proof, and
+/// both then set the answer aside and decide the period afresh. An unknown
+/// merge records nothing; a feasible one records its checked orbit. p = 5
+/// on {0,1,2,3}^2 is above the bound 4 of Lemmens and Scheutzow (2005) for
+/// n = 2, so infeasible is the expected verdict.
+#[test]
+fn merge_records_its_verdict_in_a_store_that_spectrum_reuses() {
+    let dir = TestDir::new();
+    let q = Q::cube(0, 3, 2, 5);
+    let n = cube_count(&split(&dir, &q, 3, "sp"));
+    assert!(n >= 2, "{n} cubes");
+    dir.orbitcnf()
+        .args(["run-cube", "sp", &format!("0..{}", n - 1), "-q"])
+        .run()
+        .code(0);
+    dir.orbitcnf()
+        .args(["merge", "sp", "--store", "st"])
+        .run()
+        .code(INFEASIBLE)
+        .stdout_has("stored       st/answers/");
+    // Recording again keeps the stored answer.
+    let again = dir
+        .orbitcnf()
+        .args(["merge", "sp", "--store", "st", "--json"])
+        .run();
+    again.code(INFEASIBLE);
+    assert_eq!(again.json()["store"]["action"], "kept");
+    let sweep = |extra: &[&str]| {
+        let run = dir
+            .orbitcnf()
+            .args([
+                "spectrum",
+                "--dim",
+                "2",
+                "--grid",
+                "0..3",
+                "--periods",
+                "5,10",
+            ])
+            .args(["--store", "st", "--json", "-q"])
+            .args(extra)
+            .run();
+        run.code(0);
+        run
+    };
+    let v = sweep(&[]).json();
+    let rows = v["rows"].as_array().unwrap();
+    assert_eq!(rows[0]["how"], "cubes");
+    assert_eq!(rows[0]["reused"], true);
+    assert_eq!(rows[0]["answer"]["backing"], "checked-cubes");
+    assert_eq!(rows[0]["answer"]["cubes"]["cubes"], n as u64);
+    let cert = rows[0]["certificate"].as_str().unwrap();
+    assert!(cert.contains("not re-checked in this run"), "{cert}");
+    assert_eq!(rows[1]["how"], "divisor");
+    assert_eq!(rows[1]["answer"]["divisor"]["period"], 5);
+    assert_eq!(v["summary"]["by_cubes"], 1);
+    // --recheck merges the folder again.
+    let v = sweep(&["--recheck"]).json();
+    let cert = v["rows"][0]["certificate"].as_str().unwrap().to_string();
+    assert!(cert.contains("re-checked in this run"), "{cert}");
+    // A changed cube proof: the full re-check refuses the folder, the answer
+    // (and the one read off it) is set aside, and p = 5 is solved afresh.
+    let p = dir.path("sp/results/cube-0000.lrat");
+    let mut bytes = std::fs::read(&p).unwrap();
+    bytes.extend_from_slice(b"c tampered\n");
+    std::fs::write(&p, bytes).unwrap();
+    let run = sweep(&["--recheck"]);
+    run.stderr_has("set aside");
+    let v = run.json();
+    assert_eq!(v["rows"][0]["how"], "solver");
+    assert_eq!(v["rows"][0]["verdict"], "infeasible");
+    assert!(
+        v["set_aside"][0]["reason"]
+            .as_str()
+            .unwrap()
+            .contains("its split folder"),
+        "{}",
+        v["set_aside"]
+    );
+    // A changed manifest is noticed by the quick check alone.
+    let m = dir.path("sp/manifest.json");
+    dir.orbitcnf()
+        .args(["merge", "sp", "--store", "st2"])
+        .run()
+        .code(UNKNOWN)
+        .stdout_has("stored       nothing: the merge is unknown");
+    dir.orbitcnf()
+        .args(["run-cube", "sp", "0", "--force", "-q"])
+        .run()
+        .code(0);
+    dir.orbitcnf()
+        .args(["merge", "sp", "--store", "st2"])
+        .run()
+        .code(INFEASIBLE);
+    let mut text = std::fs::read(&m).unwrap();
+    text.push(b'\n');
+    std::fs::write(&m, text).unwrap();
+    dir.orbitcnf()
+        .args(["spectrum", "--dim", "2", "--grid", "0..3", "--periods", "5"])
+        .args(["--store", "st2", "-q"])
+        .run()
+        .code(0)
+        .stderr_has("is not the one recorded (SHA-256 differs)");
+    // A feasible merge records its orbit, checked.
+    let yes = Q::cube(-1, 1, 2, 4);
+    let n = cube_count(&split(&dir, &yes, 3, "yes"));
+    dir.orbitcnf()
+        .args(["run-cube", "yes", &format!("0..{}", n - 1), "-q"])
+        .run()
+        .code(0);
+    let run = dir
+        .orbitcnf()
+        .args(["merge", "yes", "--store", "st3", "--json"])
+        .run();
+    run.code(FEASIBLE);
+    let file = run.json()["store"]["file"].as_str().unwrap().to_string();
+    let a: Value = serde_json::from_str(&dir.read(&file)).unwrap();
+    assert_eq!(
+        (a["how"].as_str(), a["backing"].as_str()),
+        (Some("cubes"), Some("checked-orbit"))
+    );
+    let orbit = orbit_of(&a).expect("an orbit");
+    assert_isometric_cycle(&[(-1, 1), (-1, 1)], &orbit, 4, "merge --store");
+    // A real-space split's certificate is its folder: no store for it.
+    dir.orbitcnf()
+        .args([
+            "split", "--real", "--dim", "2", "-p", "6", "--cubes", "4", "--out", "r",
+        ])
+        .run()
+        .code(0);
+    dir.orbitcnf()
+        .args(["merge", "r", "--store", "st4"])
+        .run()
+        .error_with(&["--store applies to grid splits"]);
+}
+
 /// `run-cube --solver external:'cadical -q' --handoff-after SECS`: the
 /// bundled solver tries each cube first; a cube it leaves unknown goes to
 /// CaDiCaL, whose DRAT proof `rate` converts and orbitcnf checks. With a

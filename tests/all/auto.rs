@@ -462,6 +462,28 @@ fn m1_n5_period_45_is_refuted_in_blocks_of_cubes() {
     );
 }
 
+/// {-1,0,1}^5, p = 46, refuted by computation on 2026-12-05
+/// (docs/campaigns.md; README, "What is proven and what is open"): 17,661
+/// whole-profile cubes, which `split --cubes auto` writes since the walk's
+/// bound is 10^9 steps. About 41 minutes of cubes on 2 shared cores, 6
+/// handed off after 10 s to a CaDiCaL that writes LRAT ([`Handoff::Lrat`]),
+/// the longest 729 s (cube 17527, distance 1 exactly at offsets 1, 22 and
+/// 23). Nothing published settles it; the expectation is orbitcnf's own
+/// certified answer.
+#[test]
+#[ignore = "about 45 minutes on 2 cores and 7.5 GB of disk (17,661 whole-profile cubes, 6 handed off to a CaDiCaL named by ORBITCNF_LRAT_CADICAL that writes LRAT, one for about 12 minutes); run on purpose"]
+fn m1_n5_period_46_is_refuted_in_blocks_of_cubes() {
+    let dir = TestDir::new();
+    refuted_in_blocks(
+        &dir,
+        &Q::cube(-1, 1, 5, 46),
+        200_000,
+        17_661,
+        &[],
+        Handoff::Lrat("10"),
+    );
+}
+
 /// {-1,0,1}^5, p = 42, refuted by computation on 2026-12-05 (README, "What
 /// is proven and what is open"; so p = 84 is excluded too, by docs/math.md
 /// §9, though it lies above the Lemmens–Scheutzow bound anyway): 15,040

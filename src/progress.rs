@@ -19,10 +19,20 @@
 //!
 //! The text of a status or event is built by a closure that runs only when
 //! the line is shown, so callers may report on every step at no cost.
+//!
+//! Some long computations sit deep inside the library, where no sink is at
+//! hand: the walks over top patterns and profiles that encoding and
+//! splitting do, minutes long on the largest questions. They publish their
+//! state as a *step* ([`begin_step`], [`step_done`]), and a [`Watcher`]
+//! thread started by the caller reports the step in progress through a sink
+//! of its own.
 
 use std::fmt;
 use std::io::{IsTerminal, Write};
 use std::str::FromStr;
+use std::sync::atomic::{AtomicBool, AtomicU64, Ordering};
+use std::sync::{Arc, Mutex};
+use std::thread::JoinHandle;
 use std::time::{Duration, Instant, SystemTime};
 
 use crate::error::{Error, Result};
@@ -193,6 +203,130 @@ fn log_line(text: &str) {
     let _ = writeln!(err, "orbitcnf: progress: {stamp} {text}");
 }
 
+/// The step in progress: its generation, name, bound and start.
+struct Step {
+    generation: u64,
+    name: &'static str,
+    bound: u64,
+    started: Instant,
+}
+
+static STEP: Mutex<Option<Step>> = Mutex::new(None);
+static STEP_GENERATION: AtomicU64 = AtomicU64::new(0);
+static STEP_DONE: AtomicU64 = AtomicU64::new(0);
+
+/// Ends its step when dropped (see [`begin_step`]).
+#[must_use = "the step ends when the guard is dropped"]
+pub struct StepGuard {
+    generation: u64,
+}
+
+impl Drop for StepGuard {
+    fn drop(&mut self) {
+        let mut step = STEP.lock().unwrap_or_else(|e| e.into_inner());
+        if step
+            .as_ref()
+            .is_some_and(|s| s.generation == self.generation)
+        {
+            *step = None;
+        }
+    }
+}
+
+/// Publishes a long step named `name` (for people: `biclique-cover: walk
+/// of the top patterns`) that does at most `bound` steps, until the
+/// returned guard is dropped; [`step_done`] says how far it got. The
+/// process holds one such step: a step begun while another runs (two
+/// threads encoding at once) replaces it in the reports, and each guard
+/// ends only its own.
+pub fn begin_step(name: &'static str, bound: u64) -> StepGuard {
+    let generation = STEP_GENERATION.fetch_add(1, Ordering::Relaxed) + 1;
+    STEP_DONE.store(0, Ordering::Relaxed);
+    let mut step = STEP.lock().unwrap_or_else(|e| e.into_inner());
+    *step = Some(Step {
+        generation,
+        name,
+        bound,
+        started: Instant::now(),
+    });
+    StepGuard { generation }
+}
+
+/// Says that the step in progress has done `done` of its steps. Cheap (one
+/// relaxed store), but callers in tight loops still call it only every
+/// million steps or so.
+pub fn step_done(done: u64) {
+    STEP_DONE.store(done, Ordering::Relaxed);
+}
+
+/// The step in progress, as a status text: `biclique-cover: walk of the top
+/// patterns, 412 M of at most 1000 M steps, for 3m20s`.
+pub fn step_words() -> Option<String> {
+    let step = STEP.lock().unwrap_or_else(|e| e.into_inner());
+    let s = step.as_ref()?;
+    let done = STEP_DONE.load(Ordering::Relaxed);
+    Some(format!(
+        "{}, {} M of at most {} M steps, for {}",
+        s.name,
+        done / 1_000_000,
+        s.bound / 1_000_000,
+        duration_words(s.started.elapsed().as_secs_f64())
+    ))
+}
+
+/// A thread that reports the step in progress ([`begin_step`]) in its own
+/// sink, as `LABEL: STEP`, while the caller works; it stops, and erases a
+/// drawn line, when dropped. Nothing is shown while no step runs, so a
+/// watcher may span a whole command.
+pub struct Watcher {
+    stop: Arc<AtomicBool>,
+    thread: Option<JoinHandle<()>>,
+}
+
+impl Watcher {
+    /// Starts watching in `mode` (no thread for [`ProgressMode::Off`]).
+    pub fn start(mode: ProgressMode, label: &'static str) -> Watcher {
+        Watcher::with_interval(mode, label, LOG_INTERVAL)
+    }
+
+    /// [`Watcher::start`] with log lines at most every `every`.
+    pub fn with_interval(mode: ProgressMode, label: &'static str, every: Duration) -> Watcher {
+        let stop = Arc::new(AtomicBool::new(false));
+        let thread = mode.is_on().then(|| {
+            let stop = Arc::clone(&stop);
+            std::thread::spawn(move || {
+                let mut sink = Progress::with_interval(mode, every);
+                let mut shown = None;
+                while !stop.load(Ordering::Relaxed) {
+                    match step_words() {
+                        Some(words) => {
+                            // A new step gets its first log line at once.
+                            let generation = STEP_GENERATION.load(Ordering::Relaxed);
+                            if shown != Some(generation) {
+                                shown = Some(generation);
+                                sink.last = None;
+                            }
+                            sink.status(|| format!("{label}: {words}"));
+                        }
+                        None => sink.clear(),
+                    }
+                    std::thread::sleep(Duration::from_millis(50));
+                }
+            })
+        });
+        Watcher { stop, thread }
+    }
+}
+
+impl Drop for Watcher {
+    fn drop(&mut self) {
+        self.stop.store(true, Ordering::Relaxed);
+        if let Some(t) = self.thread.take() {
+            let _ = t.join();
+        }
+    }
+}
+
 /// A number of threads in words: `1 thread`, `2 threads`.
 pub fn threads_words(n: usize) -> String {
     format!("{n} thread{}", if n == 1 { "" } else { "s" })
@@ -223,6 +357,33 @@ pub fn duration_words(s: f64) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn a_step_is_reported_until_its_own_guard_ends_it() {
+        // Other tests in this process may encode too, so only the state
+        // this test sets is asserted, under the lock the steps share.
+        let first = begin_step("first walk", 3_000_000);
+        step_done(2_000_000);
+        let words = step_words().unwrap_or_default();
+        assert!(
+            words.starts_with("first walk, 2 M of at most 3 M steps, for "),
+            "{words}"
+        );
+        // A second step replaces the first in the reports; the first's
+        // guard, dropped later, leaves the second alone.
+        let second = begin_step("second walk", 5_000_000);
+        drop(first);
+        let words = step_words().unwrap_or_default();
+        assert!(
+            words.starts_with("second walk, 0 M of at most 5 M"),
+            "{words}"
+        );
+        drop(second);
+        assert!(
+            step_words().is_none_or(|w| !w.starts_with("second walk")),
+            "the step ended with its guard"
+        );
+    }
 
     #[test]
     fn modes_parse_and_name_themselves() {

@@ -26,7 +26,8 @@ use orbitcnf::{Error, Grid, Question};
 pub struct ProgressArgs {
     /// Progress on stderr: `bar`, one line redrawn in place; `lines`, plain
     /// timestamped lines for logs (`orbitcnf: progress: …`, one for every
-    /// decided period or finished cube and a status every 30 s); `off`; or
+    /// decided period or finished cube, one when a long walk inside
+    /// encoding or splitting starts, and a status every 30 s); `off`; or
     /// `auto`, the default: `bar` when stderr is a terminal (and no --json
     /// report is asked of decide or run-cube), nothing otherwise.
     #[arg(long, value_name = "MODE", value_enum, default_value_t = ProgressChoice::Auto)]

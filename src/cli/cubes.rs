@@ -142,6 +142,8 @@ pub struct SplitArgs {
     /// Print the manifest as JSON instead of the summary.
     #[arg(long)]
     json: bool,
+    #[command(flatten)]
+    progress: ProgressArgs,
 }
 
 /// Runs `split`.
@@ -175,6 +177,8 @@ pub fn run_split(a: SplitArgs) -> Outcome {
     }
     let q = a.question.question()?;
     let options = a.encoding.options(q.points.is_some())?;
+    // The walks of the largest splits take minutes; the watcher reports them.
+    let watch = orbitcnf::progress::Watcher::start(a.progress.mode(a.json), "split");
     let w = split::write_split(
         &a.out,
         &q,
@@ -182,7 +186,9 @@ pub fn run_split(a: SplitArgs) -> Outcome {
         a.cubes,
         a.layout,
         a.encoding.max_clauses,
-    )?;
+    );
+    drop(watch);
+    let w = w?;
     if !w.restored.is_empty() {
         eprintln!(
             "the split in {} was repaired: written again: {}",

@@ -111,7 +111,12 @@ pub fn run_decide(a: DecideArgs) -> Outcome {
         question,
         options,
     };
-    let d = decide::run(&req)?;
+    // Encoding the largest questions walks patterns and profiles for
+    // minutes before the first solve; the watcher reports those walks.
+    let watch = orbitcnf::progress::Watcher::start(req.limits.progress, "decide");
+    let d = decide::run(&req);
+    drop(watch);
+    let d = d?;
     match &d.bundle {
         BundleOutcome::NotAsked => {}
         BundleOutcome::Written(dir) => {
@@ -219,13 +224,18 @@ pub struct EncodeArgs {
     /// Where to write the CNF (`-` for stdout).
     #[arg(long, short, value_name = "FILE")]
     output: PathBuf,
+    #[command(flatten)]
+    progress: ProgressArgs,
 }
 
 /// Runs `encode`.
 pub fn run_encode(a: EncodeArgs) -> Outcome {
     let q = a.question.question()?;
     let options = a.encoding.options(q.points.is_some())?;
-    let enc = encode::encode(&q, &options, a.encoding.max_clauses)?;
+    let watch = orbitcnf::progress::Watcher::start(a.progress.mode(false), "encode");
+    let enc = encode::encode(&q, &options, a.encoding.max_clauses);
+    drop(watch);
+    let enc = enc?;
     if a.output.as_os_str() == "-" {
         let mut out = std::io::stdout().lock();
         match out.write_all(&dimacs::render_cnf(&enc)) {

@@ -241,7 +241,18 @@ pub fn run(a: SpectrumArgs) -> Outcome {
             },
         })
     };
-    let s = spectrum::run(&cfg)?;
+    // The walks inside encoding (minutes on the largest questions) go to
+    // the log as lines; a terminal's bar is the sweep's own.
+    let watch = orbitcnf::progress::Watcher::start(
+        match cfg.progress {
+            orbitcnf::progress::ProgressMode::Lines => orbitcnf::progress::ProgressMode::Lines,
+            _ => orbitcnf::progress::ProgressMode::Off,
+        },
+        "spectrum",
+    );
+    let s = spectrum::run(&cfg);
+    drop(watch);
+    let s = s?;
     if let Some(path) = &a.markdown {
         orbitcnf::artifact::write_atomically(path, s.to_markdown().as_bytes())?;
     }

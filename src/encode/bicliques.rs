@@ -85,6 +85,10 @@ pub const MAX_OFFSETS_PRUNED: usize = 40;
 /// the formula does not depend on the machine.
 pub const PRUNED_WALK_BUDGET: u64 = 1_000_000_000;
 
+/// How many search nodes pass between two reports of the walk's progress
+/// ([`crate::progress::step_done`]).
+const REPORT_EVERY: u64 = 1 << 20;
+
 /// Search nodes one top pattern may use before it is left without a clause.
 const NODE_BUDGET: u64 = 20_000;
 
@@ -202,6 +206,8 @@ fn pruned_walk_with(
         nodes: u64,
         searched: u64,
         budget: u64,
+        // When to tell the progress reports next (`nodes` at that point).
+        next_report: u64,
     }
     // Returns the largest named offset of an exclusion found below that
     // matches the current path, when it is at most `depth` (the path is then
@@ -211,6 +217,10 @@ fn pruned_walk_with(
             return 0;
         }
         w.nodes += 1;
+        if w.nodes >= w.next_report {
+            crate::progress::step_done(w.nodes);
+            w.next_report = w.nodes + REPORT_EVERY;
+        }
         if depth == w.h {
             if mask == 0 {
                 return usize::MAX;
@@ -256,7 +266,12 @@ fn pruned_walk_with(
         nodes: 0,
         searched: 0,
         budget,
+        next_report: REPORT_EVERY,
     };
+    let _step = crate::progress::begin_step(
+        "biclique-cover: walk of the top patterns",
+        PRUNED_WALK_BUDGET,
+    );
     walk(&mut w, 0, 0, out);
     (w.searched, w.nodes)
 }

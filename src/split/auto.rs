@@ -136,6 +136,9 @@ pub struct CubeChoice {
 /// profiles instead of 1,024 breadth-first prefixes or one solve.
 pub const WALK_WORK: u64 = 1_000_000_000;
 
+/// Steps between two reports of the walk's progress.
+const REPORT_EVERY: u64 = 1 << 20;
+
 /// The number of whole profiles `g(1..K)` that no multiplier map rules out
 /// ([`prefix_survives`]) and no profile-exclusion clause excludes (tested
 /// on each prefix as soon as it decides the clause, [`super::ExclusionIndex`]),
@@ -168,6 +171,8 @@ fn profile_walk(enc: &Encoding, cap: usize, limit: u64) -> (Option<usize>, u64) 
         excluded: &'a super::ExclusionIndex,
         cap: usize,
         limit: u64,
+        // When to tell the progress reports next (`nodes` at that point).
+        next_report: std::cell::Cell<u64>,
     }
     fn walk(prefix: &mut Vec<i64>, w: &Walk, count: &mut usize, nodes: &mut u64) -> bool {
         let (k_max, l, maps) = (w.k_max, w.l, w.maps);
@@ -179,6 +184,10 @@ fn profile_walk(enc: &Encoding, cap: usize, limit: u64) -> (Option<usize>, u64) 
         for v in 1..=l {
             prefix.push(v);
             *nodes += 1;
+            if *nodes >= w.next_report.get() {
+                crate::progress::step_done(*nodes);
+                w.next_report.set(*nodes + REPORT_EVERY);
+            }
             let ok = *nodes <= w.limit
                 && (!prefix_survives(prefix, maps, k_max)
                     || {
@@ -202,8 +211,10 @@ fn profile_walk(enc: &Encoding, cap: usize, limit: u64) -> (Option<usize>, u64) 
         excluded: &excluded,
         cap,
         limit,
+        next_report: std::cell::Cell::new(REPORT_EVERY),
     };
     let mut nodes = 0;
+    let _step = crate::progress::begin_step("walk of the whole profiles", limit);
     let done = walk(&mut Vec::new(), &w, &mut count, &mut nodes);
     (done.then_some(count), nodes)
 }

@@ -1165,3 +1165,18 @@ fn bench_spectrum_reports_the_ternary_four_cube() {
     assert_eq!(v["uncertified"], 0, "{v}");
     assert!(v["seconds"].as_f64().is_some_and(|s| s > 0.0), "{v}");
 }
+
+/// `encode --progress lines` reports the long walks inside encoding: on
+/// {−1,0,1}^5 with p = 38 the biclique-cover family walks the top patterns
+/// for seconds before the CNF is written.
+#[test]
+fn encode_reports_the_walks_inside_encoding_in_a_log() {
+    let dir = TestDir::new();
+    dir.orbitcnf()
+        .args(["encode", "--dim", "5", "--grid=-1..1", "-p", "38"])
+        .args(["--progress", "lines", "-o", "f.cnf"])
+        .run()
+        .code(0)
+        .stderr_has("encode: biclique-cover: walk of the top patterns, ")
+        .stderr_has("orbitcnf: progress: ");
+}

@@ -200,9 +200,11 @@ fn pruned_walk_with(
         h: usize,
         need: usize,
         maps: &'a [Vec<usize>],
-        // The exclusions found, by their largest named offset: (far, close)
-        // as bit masks.
-        by_end: Vec<Vec<(u64, u64)>>,
+        // The exclusions found, by their largest named offset `k` and by
+        // the value they name for it (0: `k` close, 1: `k` far): (far,
+        // close) as bit masks. A path matches only the exclusions that name
+        // its own bit `k`, so it scans half of them.
+        by_end: Vec<[Vec<(u64, u64)>; 2]>,
         nodes: u64,
         searched: u64,
         budget: u64,
@@ -234,7 +236,9 @@ fn pruned_walk_with(
             };
             let bits = |ks: &[usize]| ks.iter().fold(0u64, |m, &k| m | 1 << (k - 1));
             let end = x.far.iter().chain(&x.close).copied().max().unwrap_or(0);
-            w.by_end[end].push((bits(&x.far), bits(&x.close)));
+            let far = bits(&x.far);
+            let side = usize::from(end > 0 && (far >> (end - 1)) & 1 == 1);
+            w.by_end[end][side].push((far, bits(&x.close)));
             out.insert(x);
             return end;
         }
@@ -244,7 +248,7 @@ fn pruned_walk_with(
             if !prefix_lex_least(next, k, w.maps) {
                 continue;
             }
-            if w.by_end[k]
+            if w.by_end[k][bit as usize]
                 .iter()
                 .any(|&(far, close)| next & far == far && next & close == 0)
             {
@@ -262,7 +266,7 @@ fn pruned_walk_with(
         h,
         need,
         maps,
-        by_end: vec![Vec::new(); h + 1],
+        by_end: vec![[Vec::new(), Vec::new()]; h + 1],
         nodes: 0,
         searched: 0,
         budget,

@@ -462,6 +462,28 @@ fn m1_n5_period_45_is_refuted_in_blocks_of_cubes() {
     );
 }
 
+/// {-1,0,1}^5, p = 55, refuted by computation on 2026-12-05
+/// (docs/campaigns.md; README, "What is proven and what is open"): 46,590
+/// whole-profile cubes, more than `split --cubes auto` takes whole, so the
+/// test asks for them with a large cube budget, as the campaign did. About
+/// 46 minutes of cubes on 2 shared cores, 6 handed off after 10 s to a
+/// CaDiCaL that writes LRAT ([`Handoff::Lrat`]), the longest 166 s (cube
+/// 46145). Nothing published settles it; the expectation is orbitcnf's own
+/// certified answer.
+#[test]
+#[ignore = "about an hour on 2 cores and 15 GB of disk (46,590 whole-profile cubes, 6 handed off to a CaDiCaL named by ORBITCNF_LRAT_CADICAL that writes LRAT); run on purpose"]
+fn m1_n5_period_55_is_refuted_in_blocks_of_cubes() {
+    let dir = TestDir::new();
+    refuted_in_blocks(
+        &dir,
+        &Q::cube(-1, 1, 5, 55),
+        200_000,
+        46_590,
+        &[],
+        Handoff::Lrat("10"),
+    );
+}
+
 /// {-1,0,1}^5, p = 46, refuted by computation on 2026-12-05
 /// (docs/campaigns.md; README, "What is proven and what is open"): 17,661
 /// whole-profile cubes, which `split --cubes auto` writes since the walk's

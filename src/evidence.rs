@@ -325,6 +325,11 @@ pub fn check_split_refutation(
         crate::progress::ProgressMode::Off,
         jobs,
     )?;
+    if let Some(cube) = r.feasible_cube {
+        return Err(bad(format!(
+            "the merge is feasible (cube {cube} has a checked orbit), not a refutation"
+        )));
+    }
     if r.verdict != crate::report::Verdict::Infeasible || !r.uncertified.is_empty() {
         let missing: Vec<usize> = r
             .pending

@@ -132,6 +132,8 @@ pub fn record_merge(
     };
     let started_at = store::utc_timestamp(SystemTime::now());
     let mut a = Answer::unknown(&q, &m.options, limits, How::Cubes, run_id, started_at);
+    // merge knows the solving summed over the cubes, not the wall time of
+    // the campaign, which ran elsewhere and at other times.
     a.stats.solve_seconds = report.solve_seconds;
     a.stats.seconds = report.solve_seconds;
     match (report.verdict, &report.certificate) {
@@ -184,8 +186,7 @@ pub fn record_merge(
             )));
         }
     }
-    let grid = q.grid.clone();
-    if let Some(theorem) = crate::theory::theorem_conflict_for(&a.question, &grid, a.verdict) {
+    if let Some(theorem) = crate::theory::theorem_conflict_for(&a.question, &q.grid, a.verdict) {
         return Err(Error::Contradiction {
             question: store::question_words(&a.question),
             first: theorem,

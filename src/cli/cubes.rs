@@ -669,7 +669,7 @@ pub struct MergeArgs {
     /// folder, only when every cube has a checked proof. Later sweeps check
     /// that the folder's manifest is unchanged; `spectrum --recheck` merges
     /// the folder again.
-    #[arg(long, value_name = "DIR")]
+    #[arg(long, value_name = "DIR", conflicts_with = "pending")]
     store: Option<PathBuf>,
     #[command(flatten)]
     progress: ProgressArgs,

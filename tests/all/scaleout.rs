@@ -894,6 +894,11 @@ fn merge_records_its_verdict_in_a_store_that_spectrum_reuses() {
     );
     let orbit = orbit_of(&a).expect("an orbit");
     assert_isometric_cycle(&[(-1, 1), (-1, 1)], &orbit, 4, "merge --store");
+    // --pending only lists cubes; it records nothing.
+    dir.orbitcnf()
+        .args(["merge", "yes", "--pending", "--store", "st3"])
+        .run()
+        .error_with(&["--pending"]);
     // A real-space split's certificate is its folder: no store for it.
     dir.orbitcnf()
         .args([

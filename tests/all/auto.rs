@@ -484,6 +484,28 @@ fn m1_n5_period_55_is_refuted_in_blocks_of_cubes() {
     );
 }
 
+/// {-1,0,1}^5, p = 48, refuted by computation on 2026-12-05
+/// (docs/campaigns.md; README, "What is proven and what is open"): 41,287
+/// whole-profile cubes, more than `split --cubes auto` takes whole, so the
+/// test asks for them with a large cube budget, as the campaign did. About
+/// 74 minutes of cubes on 2 cores, 28 handed off after 10 s to a
+/// CaDiCaL that writes LRAT ([`Handoff::Lrat`]), the longest 1,460 s (cube
+/// 41164, distance 1 exactly at offsets 3, 21 and 24). Nothing published
+/// settles it; the expectation is orbitcnf's own certified answer.
+#[test]
+#[ignore = "about 90 minutes on 2 cores and 18 GB of disk (41,287 whole-profile cubes, 28 handed off to a CaDiCaL named by ORBITCNF_LRAT_CADICAL that writes LRAT, one for about 25 minutes); run on purpose"]
+fn m1_n5_period_48_is_refuted_in_blocks_of_cubes() {
+    let dir = TestDir::new();
+    refuted_in_blocks(
+        &dir,
+        &Q::cube(-1, 1, 5, 48),
+        200_000,
+        41_287,
+        &[],
+        Handoff::Lrat("10"),
+    );
+}
+
 /// {-1,0,1}^5, p = 46, refuted by computation on 2026-12-05
 /// (docs/campaigns.md; README, "What is proven and what is open"): 17,661
 /// whole-profile cubes, which `split --cubes auto` writes since the walk's

@@ -71,7 +71,8 @@ pub fn run_check(a: CheckArgs) -> Outcome {
 pub struct VerifyProofArgs {
     /// The CNF (a file written by `orbitcnf encode`, or plain DIMACS).
     cnf: PathBuf,
-    /// The LRAT proof (text or binary).
+    /// The LRAT proof (text or binary, either possibly a zstd frame, as
+    /// run-cube --proof-encoding zstd keeps cube proofs).
     proof: PathBuf,
     /// Print one JSON object instead of text.
     #[arg(long)]

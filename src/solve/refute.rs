@@ -39,6 +39,7 @@ use super::{Limits, Outcome, SolveStats};
 use crate::artifact::{persist, temp_beside};
 use crate::cnf::Cnf;
 use crate::error::{Error, Result};
+use crate::proof::lrat::compressed::ProofSource;
 use crate::proof::lrat::{LratError, LratFileError, check_lrat_file, check_lrat_read};
 use crate::proof::{LratFormat, LratOptions, LratSummary, ProofSinks, solve_with_proof_sinks};
 
@@ -312,13 +313,17 @@ impl StoredProof {
 /// error here but [`StoredProof::check`].
 pub fn recheck_file(cnf: &Cnf, path: &Path, options: &LratOptions) -> Result<StoredProof> {
     let file = File::open(path).map_err(|e| Error::io(path, e))?;
-    let mut src = Hashing {
+    // The digest is of the file as stored (compressed or not); the check
+    // reads the proof inside.
+    let hashing = Hashing {
         inner: file,
         hash: Sha256::new(),
         bytes: 0,
     };
-    let check = check_lrat_read(cnf, &mut src, options);
+    let mut proof = ProofSource::new(hashing).map_err(|e| Error::io(path, e))?;
+    let check = check_lrat_read(cnf, &mut proof, options);
     // The checker stops at a rejected step: the digest needs the rest.
+    let mut src = proof.into_inner();
     std::io::copy(&mut src, &mut std::io::sink()).map_err(|e| Error::io(path, e))?;
     Ok(StoredProof {
         sha256: format!("{:x}", src.hash.finalize()),

@@ -19,7 +19,7 @@
 //! feasible when some cube is, infeasible when every cube is refuted, and
 //! unknown otherwise, with the missing and failed cubes listed by index.
 
-use std::io::{BufReader, BufWriter};
+use std::io::{BufWriter, Write};
 use std::path::{Path, PathBuf};
 use std::time::Instant;
 
@@ -40,6 +40,7 @@ use crate::evidence;
 use crate::grid::Point;
 use crate::progress::{Progress, ProgressMode, duration_words};
 use crate::proof::lift::assemble;
+use crate::proof::lrat::compressed::{self, ProofSource};
 use crate::proof::spool::Spool;
 use crate::proof::{LratFormat, LratOptions, LratSummary};
 use crate::question::{Question, QuestionRecord};
@@ -232,6 +233,9 @@ pub struct CubeRunner<'a> {
     /// runner: the folder holds two files per solved cube, and listing it
     /// for every cube made a long range quadratic.
     swept: bool,
+    /// Whether a refuted cube's proof is kept as a zstd frame
+    /// ([`crate::proof::lrat::compressed`]) once it is checked.
+    compress: bool,
 }
 
 /// The compact layout's formula, read once per runner, and the buffer in
@@ -260,7 +264,15 @@ impl<'a> CubeRunner<'a> {
             m: SplitManifest::read(dir)?,
             formula: None,
             swept: false,
+            compress: false,
         })
+    }
+
+    /// Keep the proofs of the cubes this runner refutes compressed with
+    /// zstd (each is checked first, as it was written; `merge` reads either
+    /// form). On {−1,0,1}^5, p = 50 that kept 18–29% of the bytes.
+    pub fn compress_proofs(&mut self, on: bool) {
+        self.compress = on;
     }
 
     /// The number of cubes of the split.
@@ -320,6 +332,7 @@ impl<'a> CubeRunner<'a> {
             backend,
             limits,
             self.formula.as_mut().map(|c| (&c.base.0, &mut c.scratch)),
+            self.compress,
         )?;
         if let (Some(after), RunOutcome::Solved(r)) = (handed_off_after, &mut outcome) {
             r.handed_off_after = Some(after);
@@ -405,13 +418,14 @@ impl CubeRunner<'_> {
             cone_bytes: run.cone_bytes,
         };
         let mut unknown = Vec::new();
-        let (dir, m) = (self.dir, &self.m);
+        let (dir, m, compress) = (self.dir, &self.m, self.compress);
         let (base, scratch) = (&f.base.0, &mut f.scratch);
         let solved =
             crate::proof::sequence::solve_in_sequence(&base.cnf, todo, &opts, |index, s| {
                 let mut found = Found {
                     answer: Some(s),
                     proof_target: lrat_target(self.dir, index),
+                    compress,
                 };
                 let limits = Limits::default();
                 let outcome = match solve_entry(
@@ -421,6 +435,7 @@ impl CubeRunner<'_> {
                     &mut found,
                     &limits,
                     Some((base, &mut *scratch)),
+                    compress,
                 ) {
                     Ok(outcome) => outcome,
                     Err(e) if recorded_error(dir, index, &e) => {
@@ -462,16 +477,18 @@ fn solve_entry(
     backend: &mut dyn Backend,
     limits: &Limits,
     compact: Option<(&CnfFile, &mut CubeScratch)>,
+    compress: bool,
 ) -> Result<RunOutcome> {
     let entry = &m.cubes[index];
+    let to = Keep { dir, compress };
     match (&entry.file, compact) {
         (None, Some((base, scratch))) => {
             let (cnf, name) = scratch.with_units(dir, entry)?;
-            solve_one(dir, entry, base, cnf, &name, backend, limits)
+            solve_one(to, entry, base, cnf, &name, backend, limits)
         }
         _ => {
             let (file, name) = cube_problem(dir, m, entry)?;
-            solve_one(dir, entry, &file, &file.cnf, &name, backend, limits)
+            solve_one(to, entry, &file, &file.cnf, &name, backend, limits)
         }
     }
 }
@@ -482,6 +499,10 @@ fn solve_entry(
 struct Found {
     answer: Option<crate::proof::sequence::CubeSolved>,
     proof_target: PathBuf,
+    /// Write the proof as a zstd frame: the check then reads it through
+    /// the decompressor, so what is checked is what is kept, and the file is
+    /// written and synced once.
+    compress: bool,
 }
 
 impl Backend for Found {
@@ -505,7 +526,13 @@ impl Backend for Found {
             CubeAnswer::Unknown(why) => (Outcome::Unknown(why), None),
             CubeAnswer::Unsat { proof, .. } => {
                 let tmp = temp_proof_file(Some(&self.proof_target))?;
-                std::fs::write(tmp.path(), &proof).map_err(|e| Error::io(tmp.path(), e))?;
+                let written = if self.compress {
+                    let mut out = std::io::BufWriter::new(tmp.as_file());
+                    compressed::compress(&proof[..], &mut out).and_then(|_| out.flush())
+                } else {
+                    std::fs::write(tmp.path(), &proof)
+                };
+                written.map_err(|e| Error::io(tmp.path(), e))?;
                 let options = LratOptions {
                     ids_follow_cnf: true,
                     ..LratOptions::default()
@@ -544,10 +571,29 @@ pub fn recorded_error(dir: &Path, index: usize, e: &Error) -> bool {
     )
 }
 
+/// Where [`solve_one`] keeps a cube's result, and in which form its proof.
+#[derive(Clone, Copy)]
+struct Keep<'a> {
+    dir: &'a Path,
+    compress: bool,
+}
+
+/// Replaces the checked proof at `path` by a zstd frame around the same
+/// bytes, atomically (a reader sees one form or the other, each of them the
+/// proof that was checked).
+fn compress_in_place(path: &Path) -> Result<()> {
+    let src = std::fs::File::open(path).map_err(|e| Error::io(path, e))?;
+    let tmp = crate::artifact::temp_beside(path)?;
+    let out = BufWriter::new(tmp.as_file());
+    compressed::compress(std::io::BufReader::new(src), out).map_err(|e| Error::io(path, e))?;
+    crate::artifact::persist(tmp, path)?;
+    Ok(())
+}
+
 /// Solves the cube `entry` as the problem `cnf` (with the header data of
 /// `file`) and writes its result.
 fn solve_one(
-    dir: &Path,
+    keep: Keep<'_>,
     entry: &CubeEntry,
     file: &CnfFile,
     cnf: &Cnf,
@@ -556,7 +602,7 @@ fn solve_one(
     limits: &Limits,
 ) -> Result<RunOutcome> {
     let index = entry.cube.index;
-
+    let dir = keep.dir;
     let results = dir.join(RESULTS_DIR);
     std::fs::create_dir_all(&results).map_err(|e| Error::io(&results, e))?;
     let mut result = CubeResult {
@@ -626,6 +672,11 @@ fn solve_one(
                             proof_path(dir, index).display()
                         )),
                     );
+                }
+                if keep.compress
+                    && !compressed::is_compressed(&path).map_err(|e| Error::io(&path, e))?
+                {
+                    compress_in_place(&path)?;
                 }
                 let (sha256, bytes) = crate::artifact::sha256_file(&path)?;
                 result.proof = Some(ProofRecord {
@@ -1163,7 +1214,8 @@ fn combine(
     let mut spool = Spool::new(Some(path))?;
     for (done, (c, p)) in proofs.iter().enumerate() {
         progress.status(|| format!("merge: lifting cube proofs, {done} of {}", proofs.len()));
-        spool.lift(&enc.cnf, &c.lits(), BufReader::new(open(p)?))?;
+        let proof = ProofSource::new(open(p)?).map_err(|e| Error::io(p, e))?;
+        spool.lift(&enc.cnf, &c.lits(), proof)?;
     }
     let pieces = spool.sections(0..spool.len())?;
     let tmp = temp_proof_file(Some(path))?;

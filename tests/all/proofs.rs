@@ -322,7 +322,7 @@ fn binary_proofs_say_what_text_proofs_say() {
 }
 
 #[test]
-fn split_runs_keep_binary_cube_proofs_and_merge_writes_either_encoding() {
+fn split_runs_keep_cube_proofs_in_any_encoding_and_merge_writes_either() {
     let dir = TestDir::new();
     dir.orbitcnf()
         .args(["split", "--dim", "3", "--grid=-1..1", "--period", "10"])
@@ -331,8 +331,9 @@ fn split_runs_keep_binary_cube_proofs_and_merge_writes_either_encoding() {
         .code(0);
     let manifest: serde_json::Value = serde_json::from_str(&dir.read("sp/manifest.json")).unwrap();
     let n = manifest["cubes"].as_array().unwrap().len();
+    const ZSTD_MAGIC: [u8; 4] = [0x28, 0xB5, 0x2F, 0xFD];
     for i in 0..n {
-        let encoding = if i % 2 == 0 { "binary" } else { "text" };
+        let encoding = ["binary", "text", "zstd"][i % 3];
         dir.orbitcnf()
             .args(["run-cube", "sp", &i.to_string(), "-q"])
             .args(["--proof-encoding", encoding])
@@ -341,9 +342,31 @@ fn split_runs_keep_binary_cube_proofs_and_merge_writes_either_encoding() {
         let proof = std::fs::read(dir.path(&format!("sp/results/cube-{i:04}.lrat"))).unwrap();
         assert_eq!(
             matches!(proof.first(), Some(b'a' | b'd')),
-            i % 2 == 0,
+            encoding == "binary",
             "cube {i}"
         );
+        assert_eq!(
+            proof.starts_with(&ZSTD_MAGIC),
+            encoding == "zstd",
+            "cube {i}"
+        );
+        // The kept proof, compressed or not, is a proof of the cube's CNF
+        // for the checker (the result file names its digest and steps).
+        let v = dir
+            .orbitcnf()
+            .args(["verify-proof", &format!("sp/cubes/cube-{i:04}.cnf")])
+            .arg(format!("sp/results/cube-{i:04}.lrat"))
+            .arg("--json")
+            .run();
+        v.code(0);
+        let result: serde_json::Value =
+            serde_json::from_str(&dir.read(&format!("sp/results/cube-{i:04}.json"))).unwrap();
+        assert_eq!(
+            v.json()["summary"]["steps"],
+            result["proof"]["steps"],
+            "cube {i}"
+        );
+        assert_eq!(result["proof"]["bytes"].as_u64(), Some(proof.len() as u64));
     }
     for encoding in ["text", "binary"] {
         let out = format!("all.{encoding}.lrat");

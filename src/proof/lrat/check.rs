@@ -19,7 +19,9 @@ pub fn check_lrat(cnf: &Cnf, proof: impl AsRef<[u8]>) -> Result<LratSummary, Lra
 }
 
 /// Checks the proof in the file at `path` with [`check_lrat_read`], reading
-/// it in pieces: the proof is never held in memory as a whole.
+/// it in pieces: the proof is never held in memory as a whole. A file that
+/// is a zstd frame is decompressed as it is read
+/// ([`super::compressed::ProofSource`]).
 ///
 /// # Errors
 /// [`LratFileError::Io`] when the file cannot be opened,
@@ -30,10 +32,12 @@ pub fn check_lrat_file(
     path: &Path,
     options: &LratOptions,
 ) -> Result<LratSummary, LratFileError> {
-    let file = std::fs::File::open(path).map_err(|source| LratFileError::Io {
-        path: path.to_path_buf(),
-        source,
-    })?;
+    let file = std::fs::File::open(path)
+        .and_then(super::compressed::ProofSource::new)
+        .map_err(|source| LratFileError::Io {
+            path: path.to_path_buf(),
+            source,
+        })?;
     check_lrat_read(cnf, file, options).map_err(|source| LratFileError::Rejected {
         path: path.to_path_buf(),
         source,

@@ -8,6 +8,9 @@
 //!   (measured on {−1,0,1}^5, p = 33: 68% of the additions and 70% of the
 //!   bytes stay, for about four times the cost of a check, so nothing trims
 //!   by default).
+//! * [`compressed::ProofSource`] reads a proof file that is a zstd frame
+//!   around either encoding (cube proofs of large campaigns are kept so);
+//!   every reader of proof files goes through it.
 //! * [`check_lrat_read`] and its wrappers check a proof against a
 //!   [`Cnf`](crate::cnf::Cnf).
 //!
@@ -91,6 +94,7 @@
 //! a CNF with a different clause count at step 1.
 
 mod check;
+pub mod compressed;
 pub mod read;
 pub mod trim;
 pub mod write;

@@ -321,7 +321,7 @@ pub fn check_split_refutation(
         dir,
         None,
         false,
-        crate::proof::LratFormat::Text,
+        crate::proof::lrat::compressed::FileEncoding::Text,
         crate::progress::ProgressMode::Off,
         jobs,
     )?;

@@ -7,7 +7,7 @@ use std::time::Duration;
 use clap::Args;
 
 use orbitcnf::Error;
-use orbitcnf::proof::LratFormat;
+use orbitcnf::proof::lrat::compressed::FileEncoding;
 use orbitcnf::real;
 use orbitcnf::solve::bundled::Bundled;
 use orbitcnf::solve::certified::Certified;
@@ -274,7 +274,7 @@ pub struct RunCubeArgs {
     /// of the binary bytes, in the same time). merge and verify-proof read
     /// all three. Grid splits.
     #[arg(long, value_name = "ENC", default_value = "text")]
-    proof_encoding: CubeProofEncoding,
+    proof_encoding: FileEncoding,
     /// Print the result as JSON.
     #[arg(long)]
     json: bool,
@@ -386,7 +386,7 @@ pub fn run_cube(a: RunCubeArgs) -> Outcome {
     let (first, last) = a.index;
     let mut failures = Failures::default();
     let mut runner = cube_run::CubeRunner::new(&a.dir)?;
-    runner.compress_proofs(a.proof_encoding == CubeProofEncoding::Zstd);
+    runner.compress_proofs(a.proof_encoding.compressed());
     if last >= runner.cubes() {
         return Err(cube_run::out_of_range(&a.dir, last, runner.cubes()));
     }
@@ -648,9 +648,11 @@ pub struct MergeArgs {
     /// DIR/formula.cnf FILE` or any LRAT checker).
     #[arg(long, value_name = "FILE")]
     proof: Option<PathBuf>,
-    /// The encoding of the proof written with --proof: text or binary.
+    /// The encoding of the proof written with --proof: text, binary, or
+    /// zstd (binary LRAT compressed with zstd; verify-proof reads it, other
+    /// checkers after `zstd -d`).
     #[arg(long, value_name = "ENC", default_value = "text")]
-    proof_encoding: LratFormat,
+    proof_encoding: FileEncoding,
     /// Only print the indices of the cubes without a final result, one per
     /// line (for rerunning them), and exit 0.
     #[arg(long)]
@@ -755,36 +757,4 @@ pub fn run_merge(a: MergeArgs) -> Outcome {
         },
     )?;
     Ok(code(r.exit_code()))
-}
-
-/// How `run-cube` keeps a refuted cube's proof.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
-enum CubeProofEncoding {
-    Text,
-    Binary,
-    Zstd,
-}
-
-impl CubeProofEncoding {
-    /// The LRAT encoding the bundled solver writes (zstd wraps binary).
-    fn format(self) -> LratFormat {
-        match self {
-            CubeProofEncoding::Text => LratFormat::Text,
-            CubeProofEncoding::Binary | CubeProofEncoding::Zstd => LratFormat::Binary,
-        }
-    }
-}
-
-impl std::str::FromStr for CubeProofEncoding {
-    type Err = String;
-    fn from_str(s: &str) -> Result<CubeProofEncoding, String> {
-        match s {
-            "text" => Ok(CubeProofEncoding::Text),
-            "binary" => Ok(CubeProofEncoding::Binary),
-            "zstd" => Ok(CubeProofEncoding::Zstd),
-            other => Err(format!(
-                "unknown proof encoding {other:?}; choose text, binary or zstd"
-            )),
-        }
-    }
 }

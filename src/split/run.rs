@@ -40,7 +40,7 @@ use crate::evidence;
 use crate::grid::Point;
 use crate::progress::{Progress, ProgressMode, duration_words};
 use crate::proof::lift::assemble;
-use crate::proof::lrat::compressed::{self, ProofSource};
+use crate::proof::lrat::compressed::{self, FileEncoding, ProofSource};
 use crate::proof::spool::Spool;
 use crate::proof::{LratFormat, LratOptions, LratSummary};
 use crate::question::{Question, QuestionRecord};
@@ -944,7 +944,7 @@ pub fn merge(
     dir: &Path,
     combined: Option<&Path>,
     accept_claims: bool,
-    format: LratFormat,
+    format: FileEncoding,
     progress: ProgressMode,
     jobs: usize,
 ) -> Result<MergeReport> {
@@ -1198,14 +1198,15 @@ pub fn cube_cnf(f: &Cnf, cube: &Cube) -> Cnf {
 
 /// Lifts the cube proofs at `proofs` and assembles them with the split's
 /// coverage proof into one LRAT proof of `formula.cnf` in `format`, checked
-/// and then written to `path`; returns its size and summary.
+/// (through the decompressor, when compressed) and then written to `path`;
+/// returns its size and summary.
 fn combine(
     enc: &crate::encode::Encoding,
     m: &SplitManifest,
     dir: &Path,
     proofs: &[(Cube, PathBuf)],
     path: &Path,
-    format: LratFormat,
+    format: FileEncoding,
     progress: &mut Progress,
 ) -> Result<(u64, LratSummary)> {
     let open = |p: &Path| std::fs::File::open(p).map_err(|e| Error::io(p, e));
@@ -1223,7 +1224,12 @@ fn combine(
     let coverage = open(&dir.join(&m.coverage.proof.name))?;
     let sources = coverage_sources(enc);
     progress.event(|| "merge: assembling the proof of the whole CNF".into());
-    assemble(&enc.cnf, &sources, pieces, coverage, out, format)?;
+    if format.compressed() {
+        let out = compressed::encoder(out).map_err(|e| Error::io(tmp.path(), e))?;
+        assemble(&enc.cnf, &sources, pieces, coverage, out, format.format())?;
+    } else {
+        assemble(&enc.cnf, &sources, pieces, coverage, out, format.format())?;
+    }
     drop(spool);
     progress.event(|| "merge: checking the assembled proof".into());
     let options = LratOptions {

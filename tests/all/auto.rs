@@ -506,6 +506,27 @@ fn m1_n5_period_48_is_refuted_in_blocks_of_cubes() {
     );
 }
 
+/// {-1,0,1}^5, p = 50, refuted by computation on 2026-12-05
+/// (docs/campaigns.md; README, "What is proven and what is open"): 46,249
+/// whole-profile cubes (`split --cubes 200000`). About 21 minutes of cubes
+/// on 2 cores, 6 handed off after 10 s to a CaDiCaL that writes LRAT
+/// ([`Handoff::Lrat`]), the longest 215 s (cube 45322, distance 1 exactly at
+/// offsets 1, 24 and 25). Nothing published settles it; the expectation is
+/// orbitcnf's own certified answer.
+#[test]
+#[ignore = "about 30 minutes on 2 cores and 17 GB of disk (46,249 whole-profile cubes, 6 handed off to a CaDiCaL named by ORBITCNF_LRAT_CADICAL that writes LRAT, one for about 4 minutes); run on purpose"]
+fn m1_n5_period_50_is_refuted_in_blocks_of_cubes() {
+    let dir = TestDir::new();
+    refuted_in_blocks(
+        &dir,
+        &Q::cube(-1, 1, 5, 50),
+        200_000,
+        46_249,
+        &[],
+        Handoff::Lrat("10"),
+    );
+}
+
 /// {-1,0,1}^5, p = 46, refuted by computation on 2026-12-05
 /// (docs/campaigns.md; README, "What is proven and what is open"): 17,661
 /// whole-profile cubes, which `split --cubes auto` writes since the walk's

@@ -368,7 +368,7 @@ fn split_runs_keep_cube_proofs_in_any_encoding_and_merge_writes_either() {
         );
         assert_eq!(result["proof"]["bytes"].as_u64(), Some(proof.len() as u64));
     }
-    for encoding in ["text", "binary"] {
+    for encoding in ["text", "binary", "zstd"] {
         let out = format!("all.{encoding}.lrat");
         let m = dir
             .orbitcnf()
@@ -388,4 +388,7 @@ fn split_runs_keep_cube_proofs_in_any_encoding_and_merge_writes_either() {
         .unwrap()
         .len();
     assert!(binary < text, "{binary} ≥ {text}");
+    let packed = std::fs::read(dir.path("all.zstd.lrat")).unwrap();
+    assert!(packed.starts_with(&ZSTD_MAGIC));
+    assert!((packed.len() as u64) < binary, "{} ≥ {binary}", packed.len());
 }

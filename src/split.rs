@@ -103,6 +103,21 @@ pub fn index_ranges(v: &[usize]) -> String {
     crate::report::consecutive_runs(v).join(" ")
 }
 
+/// The cubes `first..=last` in blocks of `block` (at least one) cubes,
+/// aligned at `first`, the highest block first: the order in which a
+/// campaign runs them, since the hard cubes of a whole-profile split gather
+/// at its end (the profiles with the most large distances come last) and,
+/// started first, they overlap the easy blocks instead of trailing them.
+pub fn blocks_highest_first(first: usize, last: usize, block: usize) -> Vec<(usize, usize)> {
+    let block = block.max(1);
+    let mut blocks: Vec<(usize, usize)> = (first..=last)
+        .step_by(block)
+        .map(|a| (a, a.saturating_add(block - 1).min(last)))
+        .collect();
+    blocks.reverse();
+    blocks
+}
+
 /// One cube: a prefix of the distance profile, as literals over `G[k,t]`;
 /// in the full-map formulation, the start point x_0 instead.
 #[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
@@ -830,6 +845,20 @@ mod tests {
     fn enc(spec: &str, dim: usize, p: usize) -> Encoding {
         let q = Question::new(Grid::parse(spec, Some(dim)).unwrap(), p).unwrap();
         encode(&q, &EncodeOptions::default(), u64::MAX).unwrap()
+    }
+
+    #[test]
+    fn blocks_cover_the_range_once_the_highest_first() {
+        assert_eq!(
+            blocks_highest_first(3, 12, 4),
+            vec![(11, 12), (7, 10), (3, 6)]
+        );
+        assert_eq!(blocks_highest_first(5, 5, 200), vec![(5, 5)]);
+        assert_eq!(blocks_highest_first(0, 2, 0), vec![(2, 2), (1, 1), (0, 0)]);
+        assert_eq!(
+            blocks_highest_first(usize::MAX - 1, usize::MAX, 7),
+            vec![(usize::MAX - 1, usize::MAX)]
+        );
     }
 
     #[test]

@@ -214,8 +214,12 @@ fn parse_cube_target(s: &str) -> Result<CubeTarget, String> {
     }
 }
 
-/// `N` as `(N, N)`, or `A..B` (inclusive, `A ≤ B`) as `(A, B)`.
+/// `N` as `(N, N)`, `A..B` (inclusive, `A ≤ B`) as `(A, B)`, or `all` as
+/// `(0, usize::MAX)`.
 fn parse_indices(s: &str) -> Result<(usize, usize), String> {
+    if s.trim() == "all" {
+        return Ok((0, usize::MAX));
+    }
     let num = |t: &str| {
         t.trim()
             .parse::<usize>()
@@ -247,12 +251,13 @@ fn parse_layout(s: &str) -> Result<LayoutChoice, String> {
 pub struct RunCubeArgs {
     /// The split folder written by `orbitcnf split`.
     dir: PathBuf,
-    /// The cube's index, from 0; or an inclusive range `A..B` of cubes,
+    /// The cube's index, from 0; an inclusive range `A..B` of cubes,
     /// solved one after another in this process (for grid splits the
     /// formula is read once, which is most of the cost of an easy cube),
     /// with one result line per cube (one JSON object per line with
-    /// --json). Each cube's result is written as soon as it is known.
-    #[arg(value_name = "INDEX|A..B", value_parser = parse_indices)]
+    /// --json); or `all`. Each cube's result is written as soon as it is
+    /// known.
+    #[arg(value_name = "INDEX|A..B|all", value_parser = parse_indices)]
     index: (usize, usize),
     #[command(flatten)]
     solver: SolverArgs,
@@ -297,6 +302,16 @@ pub struct RunCubeArgs {
     /// cubes of one split that is many times faster.
     #[arg(long)]
     fresh_solver: bool,
+    /// Grid splits: run the range on N workers, in blocks of --block cubes,
+    /// the highest block first (each block one process's worth of work: one
+    /// solver, then the hand-off of what it left open). This is what a
+    /// campaign under GNU parallel does, in one command; the result lines
+    /// of a block are printed when it is done.
+    #[arg(long, value_name = "N", default_value_t = 1)]
+    jobs: usize,
+    /// The cubes per block with --jobs.
+    #[arg(long, value_name = "B", default_value_t = 200, value_parser = clap::builder::RangedU64ValueParser::<usize>::new().range(1..))]
+    block: usize,
     /// Grid splits, one solver for the range: start a fresh solver after a
     /// cube whose proof is larger than MB megabytes. After a hard cube the
     /// easy cubes that follow are often refuted through its learned
@@ -344,14 +359,18 @@ pub fn run_cube(a: RunCubeArgs) -> Outcome {
                     .into(),
             ));
         }
+        if a.jobs > 1 {
+            return Err(Error::Options(
+                "--jobs applies to grid splits; run ranges of a real-space split side by side \
+                 instead (docs/cluster.md)"
+                    .into(),
+            ));
+        }
         let mut o = real::RealOptions::new();
         o.certify = !a.no_certify;
         o.handoff = super::real::handoff(&a.solver.solver, a.handoff_after)?;
-        let (first, last) = a.index;
         let cubes = real::cubes::run::cube_count(&a.dir)?;
-        if last >= cubes {
-            return Err(cube_run::out_of_range(&a.dir, last, cubes));
-        }
+        let (first, last) = resolve_range(&a, cubes)?;
         for index in first..=last {
             super::real::run_cube(
                 &a.dir,
@@ -372,6 +391,123 @@ pub fn run_cube(a: RunCubeArgs) -> Outcome {
                 .into(),
         ));
     }
+    if a.jobs == 0 {
+        return Err(Error::Options(
+            "run-cube needs at least one worker (--jobs 1 or more)".into(),
+        ));
+    }
+    let cubes = cube_run::CubeRunner::new(&a.dir)?.cubes();
+    let (first, last) = resolve_range(&a, cubes)?;
+    let mut failures = Failures::default();
+    if a.jobs == 1 {
+        run_range(&a, first, last, &mut |item| failures.emit(a.json, item))?;
+        return failures.finish();
+    }
+    // Blocks of the range, the highest first: the hard cubes of a
+    // whole-profile split gather at its end, and started first they
+    // overlap the easy blocks (docs/cluster.md, "Blocks of cubes, the
+    // highest first"). Each worker runs whole blocks, one solver per block.
+    let blocks = split::blocks_highest_first(first, last, a.block);
+    let stop = std::sync::atomic::AtomicBool::new(false);
+    let mut progress = orbitcnf::progress::Progress::new(a.progress.mode(a.json));
+    let started = std::time::Instant::now();
+    let (mut done, total) = (0usize, last - first + 1);
+    let mut broken: Option<Error> = None;
+    orbitcnf::pool::run(
+        blocks.len(),
+        a.jobs,
+        &stop,
+        |i| {
+            let (lo, hi) = blocks[i];
+            let mut items = Vec::new();
+            let r = run_range(&a, lo, hi, &mut |item| {
+                items.push(item);
+                Ok(())
+            });
+            (items, r.err().map(|e| e.to_string()))
+        },
+        |event, state| {
+            let finished = match event {
+                orbitcnf::pool::Event::Finished(i, r) => Some((i, r)),
+                _ => None,
+            };
+            if let Some((i, (items, err))) = finished {
+                let (lo, hi) = blocks[i];
+                done += hi - lo + 1;
+                for item in items {
+                    if let Err(e) = failures.emit(a.json, item) {
+                        broken.get_or_insert(e);
+                        stop.store(true, std::sync::atomic::Ordering::SeqCst);
+                    }
+                }
+                if let Some(e) = err {
+                    broken.get_or_insert(Error::Options(format!("cubes {lo}..{hi}: {e}")));
+                    stop.store(true, std::sync::atomic::Ordering::SeqCst);
+                }
+                progress.event(|| {
+                    format!(
+                        "run-cube: cubes {lo}..{hi} done; {done} of {total} cubes, {} of {} blocks, {}",
+                        state.finished,
+                        state.total,
+                        orbitcnf::progress::duration_words(started.elapsed().as_secs_f64())
+                    )
+                });
+            } else {
+                progress.status(|| {
+                    format!(
+                        "run-cube: {done} of {total} cubes done, {} of {} blocks running on {}, {}",
+                        state.running.len(),
+                        state.total,
+                        orbitcnf::progress::threads_words(a.jobs),
+                        orbitcnf::progress::duration_words(started.elapsed().as_secs_f64())
+                    )
+                });
+            }
+        },
+    );
+    progress.clear();
+    match broken {
+        Some(e) => Err(e),
+        None => failures.finish(),
+    }
+}
+
+/// The inclusive range of cubes that `a.index` names in a split of `cubes`
+/// cubes (`all` is every cube).
+fn resolve_range(a: &RunCubeArgs, cubes: usize) -> Result<(usize, usize), Error> {
+    let (first, last) = a.index;
+    if last == usize::MAX && first == 0 {
+        return match cubes {
+            0 => Err(Error::Options(format!(
+                "{} has no cubes to run",
+                a.dir.display()
+            ))),
+            n => Ok((0, n - 1)),
+        };
+    }
+    if last >= cubes {
+        return Err(cube_run::out_of_range(&a.dir, last, cubes));
+    }
+    Ok((first, last))
+}
+
+/// What [`run_range`] reports for each cube, as it is known.
+enum Item {
+    /// The cube's outcome, with a note for its line.
+    Outcome(Box<cube_run::RunOutcome>, String),
+    /// The cube ended in an error recorded in its result; the range goes on.
+    Failed(usize, String),
+}
+
+/// Solves the cubes `first..=last` of a grid split as `a` asks, one solver
+/// for the range unless `a` says otherwise, with the hand-off of the cubes
+/// it leaves open; hands every cube's outcome to `emit`.
+fn run_range(
+    a: &RunCubeArgs,
+    first: usize,
+    last: usize,
+    emit: &mut dyn FnMut(Item) -> Result<(), Error>,
+) -> Result<(), Error> {
     let limits = Limits {
         time: a.time_limit,
         progress: a.progress.mode(a.json),
@@ -383,13 +519,8 @@ pub fn run_cube(a: RunCubeArgs) -> Outcome {
         time: Some(a.time_limit.map_or(after, |t| t.min(after))),
         ..limits.clone()
     });
-    let (first, last) = a.index;
-    let mut failures = Failures::default();
     let mut runner = cube_run::CubeRunner::new(&a.dir)?;
     runner.compress_proofs(a.proof_encoding.compressed());
-    if last >= runner.cubes() {
-        return Err(cube_run::out_of_range(&a.dir, last, runner.cubes()));
-    }
     let bundled_first = a.solver.solver.trim() == "bundled" || first_limits.is_some();
     if !a.fresh_solver && !a.no_certify && bundled_first {
         let run = cube_run::SequenceRun {
@@ -401,19 +532,16 @@ pub fn run_cube(a: RunCubeArgs) -> Outcome {
         let left = runner.run_sequence(first..=last, &run, |outcome| {
             let outcome = match outcome {
                 Ok(outcome) => outcome,
-                Err((index, e)) => {
-                    failures.note(index, e);
-                    return Ok(());
-                }
+                Err((index, e)) => return emit(Item::Failed(index, e.to_string())),
             };
             let open = matches!(outcome, cube_run::RunOutcome::Solved(r) if r.status == CubeStatus::Unknown);
             if open && first_limits.is_some() {
                 return Ok(());
             }
-            print_outcome(a.json, outcome, "")
+            emit(Item::Outcome(Box::new(outcome.clone()), String::new()))
         })?;
         if first_limits.is_none() {
-            return failures.finish();
+            return Ok(());
         }
         for index in left {
             // Another process (a second run over the same range, or one
@@ -436,11 +564,11 @@ pub fn run_cube(a: RunCubeArgs) -> Outcome {
                 " (handed off after {after:.2} s without an answer from the bundled solver)"
             );
             let outcome = runner.run_after(index, ext, &limits, true, Some(after));
-            if let Some(outcome) = failures.sift(&a.dir, index, outcome)? {
-                print_outcome(a.json, &outcome, &note)?;
+            if let Some(outcome) = sift(&a.dir, index, outcome, emit)? {
+                emit(Item::Outcome(Box::new(outcome), note))?;
             }
         }
-        return failures.finish();
+        return Ok(());
     }
     for index in first..=last {
         let lrat = cube_run::lrat_target(&a.dir, index);
@@ -463,7 +591,7 @@ pub fn run_cube(a: RunCubeArgs) -> Outcome {
                 &mut certified
             };
             let outcome = runner.run(index, own, first_limits, a.force);
-            let Some(outcome) = failures.sift(&a.dir, index, outcome)? else {
+            let Some(outcome) = sift(&a.dir, index, outcome, emit)? else {
                 continue;
             };
             match outcome {
@@ -475,7 +603,7 @@ pub fn run_cube(a: RunCubeArgs) -> Outcome {
                     handed_off_after = Some(r.seconds);
                 }
                 outcome => {
-                    print_outcome(a.json, &outcome, "")?;
+                    emit(Item::Outcome(Box::new(outcome), String::new()))?;
                     continue;
                 }
             }
@@ -487,11 +615,11 @@ pub fn run_cube(a: RunCubeArgs) -> Outcome {
         };
         // The bundled attempt's unknown is no final result, so this solves.
         let outcome = runner.run_after(index, backend, &limits, a.force, handed_off_after);
-        if let Some(outcome) = failures.sift(&a.dir, index, outcome)? {
-            print_outcome(a.json, &outcome, &note)?;
+        if let Some(outcome) = sift(&a.dir, index, outcome, emit)? {
+            emit(Item::Outcome(Box::new(outcome), note))?;
         }
     }
-    failures.finish()
+    Ok(())
 }
 
 /// The cubes of a `run-cube` range that ended in an error recorded in their
@@ -503,33 +631,25 @@ pub fn run_cube(a: RunCubeArgs) -> Outcome {
 struct Failures(Vec<usize>);
 
 impl Failures {
-    /// Prints the recorded error `e` of cube `index` and remembers the cube.
-    fn note(&mut self, index: usize, e: &Error) {
-        eprintln!("orbitcnf: cube {index}: error: {e} (recorded in its result; the range goes on)");
-        self.0.push(index);
-    }
-
-    /// The outcome of cube `index`, or `None` after [`Failures::note`] when
-    /// it is an error recorded in the cube's result; other errors stop the
-    /// range.
-    fn sift(
-        &mut self,
-        dir: &std::path::Path,
-        index: usize,
-        outcome: Result<cube_run::RunOutcome, Error>,
-    ) -> Result<Option<cube_run::RunOutcome>, Error> {
-        match outcome {
-            Ok(outcome) => Ok(Some(outcome)),
-            Err(e) if cube_run::recorded_error(dir, index, &e) => {
-                self.note(index, &e);
-                Ok(None)
+    /// Prints `item`: a cube's line on stdout, or the recorded error of a
+    /// cube on stderr (and remembers the cube).
+    fn emit(&mut self, json: bool, item: Item) -> Result<(), Error> {
+        match item {
+            Item::Outcome(outcome, note) => print_outcome(json, &outcome, &note),
+            Item::Failed(index, e) => {
+                eprintln!(
+                    "orbitcnf: cube {index}: error: {e} (recorded in its result; the range goes on)"
+                );
+                self.0.push(index);
+                Ok(())
             }
-            Err(e) => Err(e),
         }
     }
 
     /// Exit code 0 when no cube failed, or the error that names the cubes.
-    fn finish(self) -> Outcome {
+    fn finish(mut self) -> Outcome {
+        // Blocks on several workers finish in any order.
+        self.0.sort_unstable();
         match self.0.as_slice() {
             [] => Ok(0),
             [index] => Err(Error::Options(format!(
@@ -541,6 +661,25 @@ impl Failures {
                 split::index_ranges(many)
             ))),
         }
+    }
+}
+
+/// The outcome of cube `index`, or `None` after handing [`Item::Failed`]
+/// to `emit` when it is an error recorded in the cube's result; other
+/// errors stop the range.
+fn sift(
+    dir: &std::path::Path,
+    index: usize,
+    outcome: Result<cube_run::RunOutcome, Error>,
+    emit: &mut dyn FnMut(Item) -> Result<(), Error>,
+) -> Result<Option<cube_run::RunOutcome>, Error> {
+    match outcome {
+        Ok(outcome) => Ok(Some(outcome)),
+        Err(e) if cube_run::recorded_error(dir, index, &e) => {
+            emit(Item::Failed(index, e.to_string()))?;
+            Ok(None)
+        }
+        Err(e) => Err(e),
     }
 }
 

@@ -164,6 +164,7 @@ impl SplitManifest {
              coverage     checked: LRAT proof of {} steps refutes coverage.cnf, so every model lies in a cube\n\
              written      {d}/manifest.json, formula.cnf, cubes.icnf, coverage.cnf, coverage.lrat{}\n\
              next         orbitcnf run-cube {d} INDEX   for INDEX in 0..{}   (docs/cluster.md: Slurm, GNU parallel)\n\
+             \x20            (on this machine: orbitcnf run-cube {d} all --jobs N)\n\
              \x20            orbitcnf merge {d}\n",
             if self.auto_cubes {
                 "chosen as decide chooses them".to_string()

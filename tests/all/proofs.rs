@@ -390,5 +390,9 @@ fn split_runs_keep_cube_proofs_in_any_encoding_and_merge_writes_either() {
     assert!(binary < text, "{binary} ≥ {text}");
     let packed = std::fs::read(dir.path("all.zstd.lrat")).unwrap();
     assert!(packed.starts_with(&ZSTD_MAGIC));
-    assert!((packed.len() as u64) < binary, "{} ≥ {binary}", packed.len());
+    assert!(
+        (packed.len() as u64) < binary,
+        "{} ≥ {binary}",
+        packed.len()
+    );
 }

@@ -1184,6 +1184,96 @@ fn a_range_of_cubes_in_one_process_merges_to_the_verdict_of_decide() {
     }
 }
 
+/// `run-cube DIR all --jobs 2 --block B` runs every cube on two workers in
+/// blocks, the highest first, as a campaign under GNU parallel does: one
+/// result per cube, `merge` agrees with `decide`, a second run keeps every
+/// result, and a hand-off that fails in every block is recorded per cube
+/// and named in one error at the end. Real-space splits refuse `--jobs`.
+#[test]
+fn all_cubes_on_two_workers_in_blocks_merge_to_the_verdict_of_decide() {
+    let dir = TestDir::new();
+    let q = Q::cube(0, 3, 3, 10);
+    assert_eq!(monolithic(&dir, &q), "infeasible");
+    dir.orbitcnf()
+        .arg("split")
+        .args(q.args())
+        .args(["--cubes", "40", "--layout", "compact", "--out", "sp"])
+        .run()
+        .code(0);
+    let n = cube_count(&serde_json::from_str(&dir.read("sp/manifest.json")).unwrap());
+    let run = dir
+        .orbitcnf()
+        .args(["run-cube", "sp", "all", "--jobs", "2", "--block", "7"])
+        .args(["--json", "--progress", "lines", "--proof-encoding", "zstd"])
+        .run();
+    run.code(0);
+    let mut seen: Vec<u64> = run
+        .stdout
+        .lines()
+        .map(|l| {
+            let v: Value = serde_json::from_str(l).expect("one JSON object per line");
+            assert_eq!(v["status"], "infeasible", "{v}");
+            v["index"].as_u64().unwrap()
+        })
+        .collect();
+    seen.sort_unstable();
+    assert_eq!(seen, (0..n as u64).collect::<Vec<_>>());
+    // One progress line per block, the last one with every cube.
+    let blocks = n.div_ceil(7);
+    let done: Vec<&str> = run
+        .stderr
+        .lines()
+        .filter(|l| l.contains("run-cube: cubes "))
+        .collect();
+    assert_eq!(done.len(), blocks, "{}", run.stderr);
+    run.stderr_has(&format!("{n} of {n} cubes, {blocks} of {blocks} blocks"));
+    dir.orbitcnf()
+        .args(["merge", "sp"])
+        .run()
+        .code(INFEASIBLE)
+        .stdout_has(&format!("all {n} cubes refuted"));
+    let again = dir
+        .orbitcnf()
+        .args(["run-cube", "sp", "all", "--jobs", "2"])
+        .run();
+    again.code(0);
+    assert_eq!(again.stdout.matches("already solved").count(), n);
+    // A hand-off that fails: every cube's error recorded, one error at the end.
+    let oom = script(&dir, "oom.sh", "echo 'out of memory' >&2\nexit 3\n");
+    let failed = dir
+        .orbitcnf()
+        .args([
+            "run-cube", "sp", "all", "--jobs", "2", "--block", "7", "--force",
+        ])
+        .args(["--solver", &format!("external:{oom}")])
+        .args(["--handoff-after", "0.000001"])
+        .run();
+    failed.code(ERROR);
+    assert_eq!(
+        failed
+            .stderr
+            .matches("(recorded in its result; the range goes on)")
+            .count(),
+        n,
+        "{}",
+        failed.stderr
+    );
+    failed.stderr_has(&format!(
+        "orbitcnf: error: {n} cubes ended in an error, recorded in their results (above): 0..{}",
+        n - 1
+    ));
+    dir.orbitcnf()
+        .args([
+            "split", "--real", "--dim", "2", "-p", "6", "--cubes", "8", "--out", "r",
+        ])
+        .run()
+        .code(0);
+    dir.orbitcnf()
+        .args(["run-cube", "r", "all", "--jobs", "2"])
+        .run()
+        .error_with(&["--jobs applies to grid splits"]);
+}
+
 /// `run-cube DIR A..B` keeps one solver for the range and assumes one cube
 /// after another (`proof::sequence`); `--fresh-solver` gives each cube its
 /// own. On a question with feasible and infeasible cubes both give every

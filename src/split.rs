@@ -51,6 +51,7 @@ pub mod auto;
 pub mod jobs;
 pub mod layout;
 mod manifest;
+pub mod range;
 pub mod run;
 mod verify;
 

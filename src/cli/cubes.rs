@@ -9,13 +9,10 @@ use clap::Args;
 use orbitcnf::Error;
 use orbitcnf::proof::lrat::compressed::FileEncoding;
 use orbitcnf::real;
-use orbitcnf::solve::bundled::Bundled;
-use orbitcnf::solve::certified::Certified;
-use orbitcnf::solve::{Backend, Limits};
 use orbitcnf::spectrum::Recorded;
 use orbitcnf::split::auto::CubeTarget;
 use orbitcnf::split::layout::{LayoutChoice, SplitLayout};
-use orbitcnf::split::run::CubeStatus;
+use orbitcnf::split::range::CubeEvent;
 use orbitcnf::split::{self, run as cube_run};
 
 use super::args::{EncodingArgs, ProgressArgs, QuestionArgs, SolverArgs, parse_seconds};
@@ -398,78 +395,41 @@ pub fn run_cube(a: RunCubeArgs) -> Outcome {
     }
     let cubes = cube_run::CubeRunner::new(&a.dir)?.cubes();
     let (first, last) = resolve_range(&a, cubes)?;
+    let o = split::range::RangeOptions {
+        time_limit: a.time_limit,
+        progress: a.progress.mode(a.json),
+        external: a.solver.external(!a.no_certify)?,
+        handoff_after: a.handoff_after,
+        fresh_solver: a.fresh_solver,
+        certify: !a.no_certify,
+        force: a.force,
+        encoding: a.proof_encoding,
+        cone_bytes: a.max_proof_mb,
+    };
     let mut failures = Failures::default();
     if a.jobs == 1 {
-        run_range(&a, first, last, &mut |item| failures.emit(a.json, item))?;
+        split::range::run_range(&a.dir, first, last, &o, &mut |e| failures.emit(a.json, e))?;
         return failures.finish();
     }
-    // Blocks of the range, the highest first: the hard cubes of a
-    // whole-profile split gather at its end, and started first they
-    // overlap the easy blocks (docs/cluster.md, "Blocks of cubes, the
-    // highest first"). Each worker runs whole blocks, one solver per block.
-    let blocks = split::blocks_highest_first(first, last, a.block);
-    let stop = std::sync::atomic::AtomicBool::new(false);
-    let mut progress = orbitcnf::progress::Progress::new(a.progress.mode(a.json));
-    let started = std::time::Instant::now();
-    let (mut done, total) = (0usize, last - first + 1);
-    let mut broken: Option<Error> = None;
-    orbitcnf::pool::run(
-        blocks.len(),
-        a.jobs,
-        &stop,
-        |i| {
-            let (lo, hi) = blocks[i];
-            let mut items = Vec::new();
-            let r = run_range(&a, lo, hi, &mut |item| {
-                items.push(item);
-                Ok(())
-            });
-            (items, r.err().map(|e| e.to_string()))
-        },
-        |event, state| {
-            let finished = match event {
-                orbitcnf::pool::Event::Finished(i, r) => Some((i, r)),
-                _ => None,
-            };
-            if let Some((i, (items, err))) = finished {
-                let (lo, hi) = blocks[i];
-                done += hi - lo + 1;
-                for item in items {
-                    if let Err(e) = failures.emit(a.json, item) {
-                        broken.get_or_insert(e);
-                        stop.store(true, std::sync::atomic::Ordering::SeqCst);
-                    }
-                }
-                if let Some(e) = err {
-                    broken.get_or_insert(Error::Options(format!("cubes {lo}..{hi}: {e}")));
-                    stop.store(true, std::sync::atomic::Ordering::SeqCst);
-                }
-                progress.event(|| {
-                    format!(
-                        "run-cube: cubes {lo}..{hi} done; {done} of {total} cubes, {} of {} blocks, {}",
-                        state.finished,
-                        state.total,
-                        orbitcnf::progress::duration_words(started.elapsed().as_secs_f64())
-                    )
-                });
-            } else {
-                progress.status(|| {
-                    format!(
-                        "run-cube: {done} of {total} cubes done, {} of {} blocks running on {}, {}",
-                        state.running.len(),
-                        state.total,
-                        orbitcnf::progress::threads_words(a.jobs),
-                        orbitcnf::progress::duration_words(started.elapsed().as_secs_f64())
-                    )
-                });
+    // Each block's solves report no progress of their own: the blocks do.
+    let quiet = split::range::RangeOptions {
+        progress: orbitcnf::progress::ProgressMode::Off,
+        ..o
+    };
+    split::range::run_blocks(
+        &a.dir,
+        (first, last),
+        &quiet,
+        (a.jobs, a.block),
+        a.progress.mode(a.json),
+        |done| {
+            for e in done.events {
+                failures.emit(a.json, e)?;
             }
+            Ok(())
         },
-    );
-    progress.clear();
-    match broken {
-        Some(e) => Err(e),
-        None => failures.finish(),
-    }
+    )?;
+    failures.finish()
 }
 
 /// The inclusive range of cubes that `a.index` names in a split of `cubes`
@@ -491,137 +451,6 @@ fn resolve_range(a: &RunCubeArgs, cubes: usize) -> Result<(usize, usize), Error>
     Ok((first, last))
 }
 
-/// What [`run_range`] reports for each cube, as it is known.
-enum Item {
-    /// The cube's outcome, with a note for its line.
-    Outcome(Box<cube_run::RunOutcome>, String),
-    /// The cube ended in an error recorded in its result; the range goes on.
-    Failed(usize, String),
-}
-
-/// Solves the cubes `first..=last` of a grid split as `a` asks, one solver
-/// for the range unless `a` says otherwise, with the hand-off of the cubes
-/// it leaves open; hands every cube's outcome to `emit`.
-fn run_range(
-    a: &RunCubeArgs,
-    first: usize,
-    last: usize,
-    emit: &mut dyn FnMut(Item) -> Result<(), Error>,
-) -> Result<(), Error> {
-    let limits = Limits {
-        time: a.time_limit,
-        progress: a.progress.mode(a.json),
-        ..Limits::default()
-    };
-    // With a hand-off the bundled solver tries each cube first, within the
-    // hand-off time (and the time limit, if shorter).
-    let first_limits = a.handoff_after.map(|after| Limits {
-        time: Some(a.time_limit.map_or(after, |t| t.min(after))),
-        ..limits.clone()
-    });
-    let mut runner = cube_run::CubeRunner::new(&a.dir)?;
-    runner.compress_proofs(a.proof_encoding.compressed());
-    let bundled_first = a.solver.solver.trim() == "bundled" || first_limits.is_some();
-    if !a.fresh_solver && !a.no_certify && bundled_first {
-        let run = cube_run::SequenceRun {
-            per_cube: first_limits.as_ref().map_or(limits.time, |l| l.time),
-            format: a.proof_encoding.format(),
-            force: a.force,
-            cone_bytes: a.max_proof_mb,
-        };
-        let left = runner.run_sequence(first..=last, &run, |outcome| {
-            let outcome = match outcome {
-                Ok(outcome) => outcome,
-                Err((index, e)) => return emit(Item::Failed(index, e.to_string())),
-            };
-            let open = matches!(outcome, cube_run::RunOutcome::Solved(r) if r.status == CubeStatus::Unknown);
-            if open && first_limits.is_some() {
-                return Ok(());
-            }
-            emit(Item::Outcome(Box::new(outcome.clone()), String::new()))
-        })?;
-        if first_limits.is_none() {
-            return Ok(());
-        }
-        for index in left {
-            // Another process (a second run over the same range, or one
-            // started by hand on the cube) may have settled it meanwhile;
-            // the external solver's hours are not spent twice.
-            let prior = cube_run::read_result(&a.dir, index)?;
-            if prior.as_ref().is_some_and(|r| r.status.is_final()) {
-                continue;
-            }
-            let lrat = cube_run::lrat_target(&a.dir, index);
-            let mut external = a.solver.external(true)?;
-            if let Some(p) = external.as_mut().and_then(|e| e.proof.as_mut()) {
-                p.keep_lrat = Some(lrat.clone());
-            }
-            let Some(ext) = external.as_mut() else {
-                break;
-            };
-            let after = prior.map_or(0.0, |r| r.seconds);
-            let note = format!(
-                " (handed off after {after:.2} s without an answer from the bundled solver)"
-            );
-            let outcome = runner.run_after(index, ext, &limits, true, Some(after));
-            if let Some(outcome) = sift(&a.dir, index, outcome, emit)? {
-                emit(Item::Outcome(Box::new(outcome), note))?;
-            }
-        }
-        return Ok(());
-    }
-    for index in first..=last {
-        let lrat = cube_run::lrat_target(&a.dir, index);
-        let mut external = a.solver.external(!a.no_certify)?;
-        if let Some(p) = external.as_mut().and_then(|e| e.proof.as_mut()) {
-            p.keep_lrat = Some(lrat.clone());
-        }
-        let mut bundled = Bundled;
-        let mut certified = Certified {
-            lrat: Some(lrat),
-            drat: None,
-            format: a.proof_encoding.format(),
-        };
-        let mut note = String::new();
-        let mut handed_off_after = None;
-        if let Some(first_limits) = &first_limits {
-            let own: &mut dyn Backend = if a.no_certify {
-                &mut bundled
-            } else {
-                &mut certified
-            };
-            let outcome = runner.run(index, own, first_limits, a.force);
-            let Some(outcome) = sift(&a.dir, index, outcome, emit)? else {
-                continue;
-            };
-            match outcome {
-                cube_run::RunOutcome::Solved(r) if r.status == CubeStatus::Unknown => {
-                    note = format!(
-                        " (handed off after {:.2} s without an answer from the bundled solver)",
-                        r.seconds
-                    );
-                    handed_off_after = Some(r.seconds);
-                }
-                outcome => {
-                    emit(Item::Outcome(Box::new(outcome), String::new()))?;
-                    continue;
-                }
-            }
-        }
-        let backend: &mut dyn Backend = match (external.as_mut(), a.no_certify) {
-            (Some(ext), _) => ext,
-            (None, true) => &mut bundled,
-            (None, false) => &mut certified,
-        };
-        // The bundled attempt's unknown is no final result, so this solves.
-        let outcome = runner.run_after(index, backend, &limits, a.force, handed_off_after);
-        if let Some(outcome) = sift(&a.dir, index, outcome, emit)? {
-            emit(Item::Outcome(Box::new(outcome), note))?;
-        }
-    }
-    Ok(())
-}
-
 /// The cubes of a `run-cube` range that ended in an error recorded in their
 /// results ([`cube_run::recorded_error`]). Such an error is the cube's own
 /// (a back-end that failed, a rejected proof), so the range goes on with
@@ -633,10 +462,10 @@ struct Failures(Vec<usize>);
 impl Failures {
     /// Prints `item`: a cube's line on stdout, or the recorded error of a
     /// cube on stderr (and remembers the cube).
-    fn emit(&mut self, json: bool, item: Item) -> Result<(), Error> {
-        match item {
-            Item::Outcome(outcome, note) => print_outcome(json, &outcome, &note),
-            Item::Failed(index, e) => {
+    fn emit(&mut self, json: bool, event: CubeEvent) -> Result<(), Error> {
+        match event {
+            CubeEvent::Outcome(outcome, note) => print_outcome(json, &outcome, &note),
+            CubeEvent::Failed(index, e) => {
                 eprintln!(
                     "orbitcnf: cube {index}: error: {e} (recorded in its result; the range goes on)"
                 );
@@ -661,25 +490,6 @@ impl Failures {
                 split::index_ranges(many)
             ))),
         }
-    }
-}
-
-/// The outcome of cube `index`, or `None` after handing [`Item::Failed`]
-/// to `emit` when it is an error recorded in the cube's result; other
-/// errors stop the range.
-fn sift(
-    dir: &std::path::Path,
-    index: usize,
-    outcome: Result<cube_run::RunOutcome, Error>,
-    emit: &mut dyn FnMut(Item) -> Result<(), Error>,
-) -> Result<Option<cube_run::RunOutcome>, Error> {
-    match outcome {
-        Ok(outcome) => Ok(Some(outcome)),
-        Err(e) if cube_run::recorded_error(dir, index, &e) => {
-            emit(Item::Failed(index, e.to_string()))?;
-            Ok(None)
-        }
-        Err(e) => Err(e),
     }
 }
 

@@ -230,7 +230,14 @@ pub fn choose_cubes(enc: &Encoding) -> Result<CubeChoice> {
             rule: "start-point",
         });
     }
-    Ok(match full_profile_count(enc, FULL_PROFILE_CAP) {
+    choose_counted(enc, full_profile_count(enc, FULL_PROFILE_CAP))
+}
+
+/// [`choose_cubes`] for a profile question whose count of whole profiles
+/// ([`full_profile_count`] with [`FULL_PROFILE_CAP`]) is known: a caller
+/// that has counted them does not walk them again.
+fn choose_counted(enc: &Encoding, count: Option<usize>) -> Result<CubeChoice> {
+    Ok(match count {
         Some(_) => CubeChoice {
             // A target no prefix list reaches refines every prefix to a whole profile.
             cubes: profile_cubes(enc, usize::MAX)?,
@@ -292,8 +299,13 @@ pub fn decide_auto(
     // ({−1,0,1}^5, p = 33: 10.7 M conflicts over 807 of 1024 cubes in 360 s,
     // against 297,684 conflicts for the whole question in one solve), so
     // above the cap the question gets one solve with all the time there is.
-    let whole_profiles = enc.options.formulation == Formulation::FullMap
-        || full_profile_count(&enc, FULL_PROFILE_CAP).is_some();
+    let full_map = enc.options.formulation == Formulation::FullMap;
+    let count = if full_map {
+        None
+    } else {
+        full_profile_count(&enc, FULL_PROFILE_CAP)
+    };
+    let whole_profiles = full_map || count.is_some();
     if !whole_profiles {
         Progress::new(limits.progress).event(|| {
             format!(
@@ -323,7 +335,12 @@ pub fn decide_auto(
     };
     let probe_seconds = start.elapsed().as_secs_f64();
     let probe_conflicts = conflicts.load(Ordering::Relaxed);
-    let choice = choose_cubes(&enc)?;
+    // The count above is the one `choose_cubes` would make again.
+    let choice = if full_map {
+        choose_cubes(&enc)?
+    } else {
+        choose_counted(&enc, count)?
+    };
     let threads = opts.jobs.min(choice.cubes.len().max(1));
     let strategy = Strategy {
         probe_budget_seconds: opts.probe.as_secs_f64(),

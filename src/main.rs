@@ -113,7 +113,8 @@ enum Command {
     /// result file (results/cube-NNNN.json, with the LRAT proof beside it).
     ///
     /// Example: orbitcnf run-cube t4p17 5 --time-limit 3600
-    /// (or: orbitcnf run-cube t4p17 0..99)
+    /// (or: orbitcnf run-cube t4p17 0..99; every cube on 8 workers: orbitcnf
+    /// run-cube t4p17 all --jobs 8)
     #[command(after_help = cubes::RUN_CUBE_HELP)]
     RunCube(cubes::RunCubeArgs),
     /// Combine the results of a split folder into one verdict, re-checking

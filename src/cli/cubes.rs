@@ -66,6 +66,13 @@ skipped unless --force, so rerunning every index redoes only what is missing.
 With the bundled solver an infeasible cube's LRAT proof is checked and kept as
 results/cube-NNNN.lrat; merge checks it again.
 
+Every cube on one machine, in blocks of 200, the highest first (the blocks
+that the campaign of {-1,0,1}^5 with p = 52, 86,870 cubes, ran in 40 minutes
+on 2 cores under GNU parallel; docs/campaigns.md):
+  orbitcnf run-cube g52 all --jobs 2 --proof-encoding zstd \\
+      --solver external:'cadical -q --lrat' --proof-arg '{}' --proof-format lrat \\
+      --handoff-after 10 --time-limit 7200 --progress lines
+
 Exit codes: 0 when a result was written (whatever the verdict: it is in the
 result file, and merge combines them), 1 on error (a failed or lying solver is
 recorded in the result file as status \"error\" before exiting).

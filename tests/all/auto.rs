@@ -784,6 +784,29 @@ fn m2_n4_period_29_is_refuted_in_blocks_of_cubes() {
     );
 }
 
+/// {−2,…,2}^4, p = 30, refuted by computation on 2026-12-05 (README, "What
+/// is proven and what is open"): 1,000,001 cubes from `split --cubes
+/// 1000000` (more than a million whole profiles, so prefixes), solved with
+/// `run-cube DIR all --jobs 2` and the hand-off to a CaDiCaL that writes
+/// LRAT ([`Handoff::Lrat`]; this test runs the same blocks under GNU
+/// parallel): about 75 minutes of cubes on 2 shared cores,
+/// 51 handed off, the longest 327 s (cube 968026); 4,386 s of solving; the
+/// merge 5 min 9 s. Nothing published settles it; the expectation is
+/// orbitcnf's own certified answer.
+#[test]
+#[ignore = "about 90 minutes on 2 cores and 12 GB of disk with zstd proofs (1,000,001 prefix cubes, 51 handed off to a CaDiCaL named by ORBITCNF_LRAT_CADICAL that writes LRAT, one for about 5 minutes); run on purpose"]
+fn m2_n4_period_30_is_refuted_in_blocks_of_cubes() {
+    let dir = TestDir::new();
+    refuted_in_blocks(
+        &dir,
+        &Q::cube(-2, 2, 4, 30),
+        1_000_000,
+        1_000_001,
+        &[],
+        Handoff::Lrat("10"),
+    );
+}
+
 /// {−2,…,2}^4, p = 31: a prime period above 2^4, so excluded on all of R^4
 /// by the theorem on prime periods (Lyons and Nussbaum, 1992; see p = 29)
 /// **[recalled]**: a test of the method on 200,000 cubes, prefixes of 13

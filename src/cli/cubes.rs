@@ -423,19 +423,19 @@ pub fn run_cube(a: RunCubeArgs) -> Outcome {
         progress: orbitcnf::progress::ProgressMode::Off,
         ..o
     };
-    split::range::run_blocks(
-        &a.dir,
-        (first, last),
-        &quiet,
-        (a.jobs, a.block),
-        a.progress.mode(a.json),
-        |done| {
-            for e in done.events {
-                failures.emit(a.json, e)?;
-            }
-            Ok(())
-        },
-    )?;
+    let plan = split::range::BlockPlan {
+        jobs: a.jobs,
+        block: a.block,
+        progress: a.progress.mode(a.json),
+        label: "run-cube",
+        go_on: &|| true,
+    };
+    split::range::run_blocks(&a.dir, (first, last), &quiet, &plan, |done| {
+        for e in done.events {
+            failures.emit(a.json, e)?;
+        }
+        Ok(())
+    })?;
     failures.finish()
 }
 

@@ -8,8 +8,8 @@ use clap::Args;
 use orbitcnf::Error;
 use orbitcnf::question::MapClass;
 use orbitcnf::solve::external::{External, ProofFormat, ProofRequest};
-use orbitcnf::spectrum::{self, SweepConfig, SweepSplit};
-use orbitcnf::split::auto::DEFAULT_PROBE;
+use orbitcnf::spectrum::{self, STORE_SPLIT_CUBES, SweepConfig, SweepSplit};
+use orbitcnf::split::auto::{DEFAULT_PROBE, FULL_PROFILE_CAP};
 use orbitcnf::split::jobs::CubeHandoff;
 
 use super::args::{ClassArgs, DomainArgs, EncodingArgs, ProgressArgs, parse_seconds};
@@ -44,13 +44,25 @@ How each period is answered, cheapest first:
   hard          a period that one solve of --probe seconds (default 60) leaves
                 unknown waits until the others are answered; then it is split
                 into one cube per lex-leader distance profile (as `decide` does
-                after its probe; with more than 20,000 profiles, one solve of
-                the time left), solved on every --jobs thread, each cube's
+                after its probe), solved on every --jobs thread, each cube's
                 proof checked and lifted, one assembled proof checked and kept
                 (binary LRAT). Its row says 'hard: …'. With --handoff 'cadical
                 -q', cubes the bundled solver leaves open for --handoff-after
                 seconds go to CaDiCaL (DRAT through `rate`, then checked as
-                any cube's). --no-auto-split decides every period by one solve
+                any cube's; --handoff 'cadical -q --lrat' --handoff-proof lrat
+                for CaDiCaL 2). --no-auto-split decides every period by one solve
+  hard, in the store
+                a hard period with more than --split-above whole profiles
+                (default 20,000) is split into about --split-cubes cubes
+                (default 1,000,000) in DIR/splits/<key>/ and solved there in
+                blocks of 200 on every --jobs thread, each refuted cube's proof
+                checked and kept (zstd); when every cube has a result the folder
+                is merged (coverage proof and every cube proof checked again)
+                and the answer is backed by it. A run stopped by --time-limit
+                (no block starts after it) or killed keeps every cube result:
+                its unknown says how far it got, and the next run goes on from
+                there. Cubes can also be run elsewhere meanwhile (orbitcnf
+                run-cube DIR/splits/<key> A..B). Without a store: one solve
 
 The results store (--store DIR, default ./orbitcnf-results):
   DIR/answers/<key>.json   one answer per file: verdict, how decided, orbit,
@@ -59,6 +71,9 @@ The results store (--store DIR, default ./orbitcnf-results):
   DIR/proofs/<key>.<run>.lrat   the LRAT proofs of infeasible answers
                            (text LRAT, binary for hard periods; about 60 MB
                            for all of {-1,0,1}^4)
+  DIR/splits/<key>/        split folders of hard periods with many profiles
+                           (a manifest, the formula, the coverage proof, one
+                           result and one zstd proof per cube)
   <key> is the SHA-256 of question, resolved encoding options and formulation.
   Every file is written to a temporary file, fsynced and renamed into place, so
   a sweep killed at any moment keeps every answer it completed; run the same
@@ -70,7 +85,8 @@ The results store (--store DIR, default ./orbitcnf-results):
   edited proof), is moved (never deleted) to DIR/quarantine/ with a warning,
   listed in the report, and its period is decided again.
   An unknown answer is retried only when this run has a larger --time-limit
-  (or none) or a larger --max-clauses than the run that gave up.
+  (or none) or a larger --max-clauses than the run that gave up; the unknown
+  of an unfinished split in DIR/splits/ is always taken up again.
   A new or stored answer whose verdict differs from another stored answer to the
   same question (under any options) is a CONTRADICTION: an error naming both
   runs. So is an answer that contradicts a published theorem (feasible above
@@ -185,6 +201,28 @@ pub struct SpectrumArgs {
     /// The row says so. Not with --real.
     #[arg(long, value_name = "SECS", value_parser = parse_seconds)]
     probe: Option<Duration>,
+    /// With --handoff on a box: the proof the external solver writes,
+    /// `drat` (converted by `rate`) or `lrat` (checked directly; CaDiCaL 2
+    /// writes it with --lrat: --handoff 'cadical -q --lrat').
+    #[arg(
+        long,
+        value_name = "FORMAT",
+        requires = "handoff",
+        default_value = "drat"
+    )]
+    handoff_proof: ProofFormat,
+    /// A hard period with more than N whole profiles (default 20,000, the
+    /// most one assembled proof holds) is split into a folder of the store,
+    /// STORE/splits/<key>/, and solved there in blocks of cubes; a run that
+    /// stops (time limit, kill) goes on from there next time.
+    #[arg(long, value_name = "N")]
+    split_above: Option<usize>,
+    /// About how many cubes such a split has: every whole profile when
+    /// there are at most N, otherwise N profile prefixes.
+    /// Default 1,000,000.
+    #[arg(long, value_name = "N",
+          value_parser = clap::builder::RangedU64ValueParser::<usize>::new().range(1..))]
+    split_cubes: Option<usize>,
     /// Decide every period by one solve, never in cubes.
     #[arg(long, conflicts_with_all = ["probe", "handoff"])]
     no_auto_split: bool,
@@ -229,7 +267,7 @@ pub fn run(a: SpectrumArgs) -> Outcome {
                     solver: External {
                         proof: Some(ProofRequest {
                             args: vec!["{}".into()],
-                            format: ProofFormat::Drat,
+                            format: a.handoff_proof,
                             keep_lrat: None,
                             keep_raw: None,
                         }),
@@ -239,6 +277,8 @@ pub fn run(a: SpectrumArgs) -> Outcome {
                 }),
                 None => None,
             },
+            store_split_above: a.split_above.unwrap_or(FULL_PROFILE_CAP),
+            store_split_cubes: a.split_cubes.unwrap_or(STORE_SPLIT_CUBES),
         })
     };
     // The walks inside encoding (minutes on the largest questions) go to
@@ -272,6 +312,9 @@ fn run_real(n: usize, a: SpectrumArgs) -> Outcome {
         (a.class.class != MapClass::Nonexpansive, "--class"),
         (a.probe.is_some(), "--probe"),
         (a.no_auto_split, "--no-auto-split"),
+        (a.split_above.is_some(), "--split-above"),
+        (a.split_cubes.is_some(), "--split-cubes"),
+        (a.handoff_proof != ProofFormat::Drat, "--handoff-proof"),
         (a.csv, "--csv"),
         (a.markdown.is_some(), "--markdown"),
     ];

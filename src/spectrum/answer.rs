@@ -123,6 +123,36 @@ pub fn record_merge(
     report: &crate::split::run::MergeReport,
     run_id: &str,
 ) -> Result<Recorded> {
+    let folder = std::path::absolute(dir).unwrap_or_else(|_| dir.to_path_buf());
+    let a = match merged_answer(dir, folder.display().to_string(), report, run_id)? {
+        Ok(a) => a,
+        Err(why) => return Ok(Recorded::NotDecided(why)),
+    };
+    let mut s = store::Store::open(root)?;
+    let path = s.answer_path(&a.key);
+    Ok(match s.put(a)? {
+        store::Put::Written => Recorded::Written(path),
+        store::Put::Kept(_) => Recorded::Kept(path),
+    })
+}
+
+/// The answer that `report`, the merge of the split folder `dir` by
+/// [`crate::split::run::merge`], gives to the folder's question (run
+/// `run_id`, [`How::Cubes`]): a feasible one with its orbit checked again
+/// (and its box extension on small boxes), an infeasible one backed by the
+/// folder, recorded as `folder` ([`Backing::CheckedCubes`]); or, as `Err`,
+/// why the merge decides nothing the store keeps (it is unknown, or some
+/// cube is refuted only on a solver's word).
+///
+/// # Errors
+/// [`Error::Contradiction`] with a published theorem; a manifest that
+/// cannot be read; a feasible orbit that fails its check.
+pub(super) fn merged_answer(
+    dir: &std::path::Path,
+    folder: String,
+    report: &crate::split::run::MergeReport,
+    run_id: &str,
+) -> Result<std::result::Result<Answer, String>> {
     use crate::split::run::MergeCertificate;
     let m = crate::split::SplitManifest::read(dir)?;
     let q = Question::from_record(&m.question)?;
@@ -139,9 +169,7 @@ pub fn record_merge(
     match (report.verdict, &report.certificate) {
         (Verdict::Feasible, _) => {
             let Some(orbit) = report.orbit.clone() else {
-                return Ok(Recorded::NotDecided(
-                    "the feasible merge has no orbit".into(),
-                ));
+                return Ok(Err("the feasible merge has no orbit".into()));
             };
             let w = check_witness(&q, &a.options, &orbit, report.map.as_deref())?;
             a.map_checked_points = match (&report.map, w.map) {
@@ -160,11 +188,10 @@ pub fn record_merge(
             Verdict::Infeasible,
             MergeCertificate::CubeProofs { .. } | MergeCertificate::CombinedProof { .. },
         ) => {
-            let folder = std::path::absolute(dir).unwrap_or_else(|_| dir.to_path_buf());
             a.verdict = Verdict::Infeasible;
             a.backing = Backing::CheckedCubes;
             a.cubes = Some(store::CubesRecord {
-                folder: folder.display().to_string(),
+                folder,
                 manifest_sha256: crate::evidence::split_manifest_digest(dir)?,
                 cubes: report.cubes as u64,
                 coverage_steps: report.coverage.steps,
@@ -172,14 +199,14 @@ pub fn record_merge(
             });
         }
         (Verdict::Infeasible, _) => {
-            return Ok(Recorded::NotDecided(
+            return Ok(Err(
                 "some cubes are refuted only on a solver's word, and the store keeps only \
                  checked verdicts"
                     .into(),
             ));
         }
         (Verdict::Unknown, _) => {
-            return Ok(Recorded::NotDecided(format!(
+            return Ok(Err(format!(
                 "the merge is unknown ({} of {} cubes without a usable result)",
                 report.pending.len(),
                 report.cubes
@@ -194,12 +221,7 @@ pub fn record_merge(
         });
     }
     a.finished_at = store::utc_timestamp(SystemTime::now());
-    let mut s = store::Store::open(root)?;
-    let path = s.answer_path(&a.key);
-    Ok(match s.put(a)? {
-        store::Put::Written => Recorded::Written(path),
-        store::Put::Kept(_) => Recorded::Kept(path),
-    })
+    Ok(Ok(a))
 }
 
 /// What one solve of a period gave.
@@ -289,6 +311,12 @@ pub(super) fn in_cubes(
 ) -> Result<Answer> {
     let q = &task.question;
     let split = cfg.split.clone().unwrap_or_default();
+    if let Some(root) = &cfg.store
+        && q.points.is_none()
+        && too_many_profiles(q, cfg, split.store_split_above)
+    {
+        return super::store_split::in_store_split(task, cfg, limits, run_id, probed, root);
+    }
     let started = SystemTime::now();
     let t = Instant::now();
     let started_at = store::utc_timestamp(started);
@@ -329,6 +357,18 @@ pub(super) fn in_cubes(
     a.stats.seconds = probed.seconds + t.elapsed().as_secs_f64();
     a.finished_at = store::utc_timestamp(SystemTime::now());
     Ok(a)
+}
+
+/// Whether `q` in the profile formulation has more than `cap` whole
+/// profiles ([`crate::split::auto::full_profile_count`]; a walk that
+/// stops at its work limit counts as more). A question that cannot be
+/// encoded has not: [`in_cubes`] then reports why as for any period.
+fn too_many_profiles(q: &Question, cfg: &SweepConfig, cap: usize) -> bool {
+    let Ok(enc) = crate::encode::encode(q, &cfg.options, cfg.max_clauses) else {
+        return false;
+    };
+    enc.options.formulation != crate::encode::Formulation::FullMap
+        && crate::split::auto::full_profile_count(&enc, cap).is_none()
 }
 
 /// Records in `a` what `report` (of the certified solver, for `task`)

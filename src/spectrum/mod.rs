@@ -78,10 +78,15 @@
 //! other period is answered, and the hard periods are then decided one
 //! after another, in increasing order, each by
 //! [`crate::split::auto::decide_auto`] without a second probe: one cube per
-//! whole profile on all [`SweepConfig::jobs`] threads (one solve with the
-//! time left when there are too many profiles), every cube's proof checked
-//! and lifted, one assembled proof of the whole CNF checked and stored like
-//! any other. Hardness is measured, not guessed: it is what the probe did
+//! whole profile on all [`SweepConfig::jobs`] threads, every cube's proof
+//! checked and lifted, one assembled proof of the whole CNF checked and
+//! stored like any other. A period with more whole profiles than
+//! [`SweepSplit::store_split_above`] (20,000 by default) is, in a sweep with
+//! a store, split into a folder of the store instead and solved there in
+//! blocks, each cube's proof kept on its own and the folder merged at the
+//! end: the campaign of `split`, `run-cube all --jobs N` and `merge
+//! --store`, resumable across runs (`store_split.rs`). Without a store such
+//! a period gets one solve with the time left. Hardness is measured, not guessed: it is what the probe did
 //! not answer. The probe's work is dropped, so the switch cannot change a
 //! verdict; its time counts against the time limit. The answer records
 //! what was done ([`Answer::strategy`]), and its row says so. Each hard
@@ -116,6 +121,7 @@
 mod answer;
 mod divisors;
 mod render;
+mod store_split;
 mod sweep;
 
 use std::path::PathBuf;
@@ -136,6 +142,7 @@ use crate::theory::{Published, period_bound, published_for};
 
 pub use answer::{Recorded, record_merge};
 pub use render::{certificate_words, ranges_words};
+pub use store_split::{STORE_SPLIT_BLOCK, STORE_SPLIT_CONE_BYTES};
 pub use sweep::run;
 
 /// Most periods one sweep accepts.
@@ -191,15 +198,31 @@ pub struct SweepSplit {
     /// Cubes the bundled solver leaves open this long go to an external
     /// solver, whose proof is checked and lifted like the bundled solver's.
     pub handoff: Option<crate::split::jobs::CubeHandoff>,
+    /// A hard period with more whole profiles than this, in a sweep with a
+    /// store, is decided as a split folder inside the store (resumable, see
+    /// `store_split.rs`) instead of in memory with one assembled proof.
+    pub store_split_above: usize,
+    /// About how many cubes such a split has ([`crate::split::cubes`]).
+    pub store_split_cubes: usize,
 }
+
+/// The default of [`SweepSplit::store_split_cubes`]: the size of the
+/// campaigns that settled {−2,…,2}^4, p = 30 (1,000,001 prefix cubes, about
+/// 75 minutes on two cores) and {−1,0,1}^5, p = 52 (86,870 whole profiles).
+/// The split takes about a minute and 1.3 GB to write at this size.
+pub const STORE_SPLIT_CUBES: usize = 1_000_000;
 
 impl Default for SweepSplit {
     /// The probe of `decide` ([`crate::split::auto::DEFAULT_PROBE`]), no
-    /// hand-off.
+    /// hand-off, splits in the store above `decide`'s cap of whole profiles
+    /// ([`crate::split::auto::FULL_PROFILE_CAP`]) with
+    /// [`STORE_SPLIT_CUBES`] cubes.
     fn default() -> SweepSplit {
         SweepSplit {
             probe: crate::split::auto::DEFAULT_PROBE,
             handoff: None,
+            store_split_above: crate::split::auto::FULL_PROFILE_CAP,
+            store_split_cubes: STORE_SPLIT_CUBES,
         }
     }
 }

@@ -174,8 +174,15 @@ impl Spectrum {
             s.unknown,
             ranges_words(&self.periods_with(Verdict::Unknown)),
         );
+        let splits = self
+            .rows
+            .iter()
+            .any(|r| r.verdict == Verdict::Unknown && r.how == How::Cubes);
         t.push_str(if s.all_decided {
             ": every period decided"
+        } else if splits {
+            ": some periods undecided (a rerun goes on with the splits in the store; \
+             others are retried with a larger --time-limit)"
         } else {
             ": some periods undecided (a rerun with a larger --time-limit retries them)"
         });

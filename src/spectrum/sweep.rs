@@ -406,7 +406,9 @@ fn reusable(
     let Some(a) = s.get(key).cloned() else {
         return Ok(None);
     };
-    if !a.is_decided() && limits.exceeds(&a.limits) {
+    // An unfinished split in the store is always taken up again: its
+    // folder keeps every cube result, so the next run goes on from there.
+    if !a.is_decided() && (limits.exceeds(&a.limits) || a.how == How::Cubes) {
         return Ok(None);
     }
     match check_stored(s, q, &a, recheck) {

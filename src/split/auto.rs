@@ -15,7 +15,9 @@
 //! (more profiles than the cap) 1024 breadth-first cubes took 10.7 M
 //! conflicts for 807 cubes in 360 s, where one solve refutes the question
 //! with 297,684, so above the cap `decide` makes one solve of the whole
-//! time limit, with the ordinary report. When it does not, and time remains, the question is split into
+//! time limit, with the ordinary report (`spectrum` with a store instead
+//! splits such a period into a folder of the store and runs it there,
+//! `spectrum/store_split.rs`). When it does not, and time remains, the question is split into
 //! cubes ([`choose_cubes`]) and solved on [`AutoOptions::jobs`] threads by
 //! [`super::jobs::solve_cubes`], certified in the same way as
 //! `decide --jobs`: every cube's proof checked and lifted, the coverage

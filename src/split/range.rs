@@ -239,11 +239,26 @@ pub struct BlockDone {
     pub events: Vec<CubeEvent>,
 }
 
+/// How [`run_blocks`] schedules its blocks.
+pub struct BlockPlan<'a> {
+    /// Worker threads, at least one.
+    pub jobs: usize,
+    /// Cubes in a block, at least one.
+    pub block: usize,
+    /// One line per finished block and a status while blocks run.
+    pub progress: ProgressMode,
+    /// What the progress lines start with (`run-cube`, `spectrum p=54`).
+    pub label: &'a str,
+    /// Asked before each block starts: no block starts once it says no
+    /// (a time limit, an answer found); the running ones finish.
+    pub go_on: &'a (dyn Fn() -> bool + Sync),
+}
+
 /// Runs the cubes `first..=last` of the grid split in `dir` in blocks of
-/// `block` cubes, the highest block first, each as [`run_range`] with `o`,
-/// on `jobs` threads (at least one), and hands each finished block to
-/// `handle` on the calling thread. With `progress` on, one line per
-/// finished block and a status while blocks run.
+/// `plan.block` cubes, the highest block first, each as [`run_range`] with
+/// `o`, on `plan.jobs` threads, and hands each finished block to `handle`
+/// on the calling thread. Returns whether every block ran (none was left
+/// out because [`BlockPlan::go_on`] said no).
 ///
 /// # Errors
 /// The first error of a block (other than a single cube's own, which is a
@@ -253,13 +268,14 @@ pub fn run_blocks(
     dir: &Path,
     (first, last): (usize, usize),
     o: &RangeOptions,
-    (jobs, block): (usize, usize),
-    progress: ProgressMode,
+    plan: &BlockPlan<'_>,
     mut handle: impl FnMut(BlockDone) -> Result<()>,
-) -> Result<()> {
-    let blocks = super::blocks_highest_first(first, last, block);
+) -> Result<bool> {
+    let (jobs, label) = (plan.jobs, plan.label);
+    let blocks = super::blocks_highest_first(first, last, plan.block);
     let stop = AtomicBool::new(false);
-    let mut progress = Progress::new(progress);
+    let left_out = AtomicBool::new(false);
+    let mut progress = Progress::new(plan.progress);
     let started = Instant::now();
     let (mut done, total) = (0usize, last - first + 1);
     let mut broken: Option<Error> = None;
@@ -270,7 +286,12 @@ pub fn run_blocks(
         &stop,
         |pull, push| {
             let mut runner = None;
-            while let Some(i) = pull() {
+            loop {
+                if !(plan.go_on)() {
+                    left_out.store(true, Ordering::SeqCst);
+                    break;
+                }
+                let Some(i) = pull() else { break };
                 let (lo, hi) = blocks[i];
                 let mut events = Vec::new();
                 let r = match runner.as_mut() {
@@ -290,7 +311,7 @@ pub fn run_blocks(
             let crate::pool::Event::Finished(i, (events, err)) = event else {
                 progress.status(|| {
                     format!(
-                        "run-cube: {done} of {total} cubes done, {} of {} blocks running on {}, {}",
+                        "{label}: {done} of {total} cubes done, {} of {} blocks running on {}, {}",
                         state.running.len(),
                         state.total,
                         threads_words(jobs),
@@ -312,7 +333,7 @@ pub fn run_blocks(
             }
             progress.event(|| {
                 format!(
-                    "run-cube: cubes {lo}..{hi} done; {done} of {total} cubes, {} of {} blocks, {}",
+                    "{label}: cubes {lo}..{hi} done; {done} of {total} cubes, {} of {} blocks, {}",
                     state.finished,
                     state.total,
                     duration_words(started.elapsed().as_secs_f64())
@@ -321,5 +342,8 @@ pub fn run_blocks(
         },
     );
     progress.clear();
-    broken.map_or(Ok(()), Err)
+    match broken {
+        Some(e) => Err(e),
+        None => Ok(!left_out.load(Ordering::SeqCst)),
+    }
 }

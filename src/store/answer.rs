@@ -81,8 +81,9 @@ pub enum Backing {
 /// The split folder behind an answer decided in cubes ([`How::Cubes`]).
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct CubesRecord {
-    /// The split folder, as `merge` was given it, made absolute when it
-    /// could be.
+    /// The split folder: as `merge` was given it, made absolute when it
+    /// could be; or, for a split that a sweep ran inside the store,
+    /// relative to the store (`splits/<key>`), so that the store can move.
     pub folder: String,
     /// Hex SHA-256 of the folder's `manifest.json` when the answer was
     /// recorded: the manifest holds the digests of the formula, of every

@@ -89,6 +89,9 @@ use crate::verify::OrbitCheck;
 pub const ANSWERS_DIR: &str = "answers";
 /// Sub-folder of the proof files.
 pub const PROOFS_DIR: &str = "proofs";
+/// Sub-folder of the split folders that sweeps run inside the store
+/// (`splits/<key>`, one per question and options).
+pub const SPLITS_DIR: &str = "splits";
 /// Sub-folder of the files set aside ([`SetAside`]).
 pub const QUARANTINE_DIR: &str = "quarantine";
 
@@ -295,7 +298,16 @@ impl Store {
         (self.root.join(&rel), rel)
     }
 
-    /// The absolute path of a path recorded relative to the store.
+    /// Where a sweep splits the question stored under `key` when it runs
+    /// the cubes inside the store: the absolute path, and the path relative
+    /// to the store recorded in the answer.
+    pub fn split_path(&self, key: &str) -> (PathBuf, String) {
+        let rel = format!("{SPLITS_DIR}/{key}");
+        (self.root.join(&rel), rel)
+    }
+
+    /// The absolute path of a path recorded relative to the store (an
+    /// absolute path stays as it is).
     pub fn resolve(&self, relative: &str) -> PathBuf {
         self.root.join(relative)
     }
@@ -405,7 +417,7 @@ impl Store {
                 let r = crate::evidence::check_split_refutation(
                     &q,
                     &a.options,
-                    Path::new(&c.folder),
+                    &self.resolve(&c.folder),
                     &c.manifest_sha256,
                     crate::pool::default_jobs(),
                 )
@@ -468,8 +480,8 @@ impl Store {
             }
             Verdict::Infeasible if a.backing == Backing::CheckedCubes => {
                 let c = cubes_record(a, &file)?;
-                let digest =
-                    crate::evidence::split_manifest_digest(Path::new(&c.folder)).map_err(|e| {
+                let digest = crate::evidence::split_manifest_digest(&self.resolve(&c.folder))
+                    .map_err(|e| {
                         Error::parse(&file, 0, format!("its split folder: {}", why(&e)))
                     })?;
                 if digest != c.manifest_sha256 {

@@ -1075,3 +1075,142 @@ fn spectrum_hands_the_cubes_of_a_hard_period_to_cadical() {
     let store = Store::open(&dir.path("results")).unwrap();
     assert_stored_proof_accepted(&dir, &store, r, &q);
 }
+
+/// A hard period with more whole profiles than `--split-above` is split into
+/// a folder of the store and solved there in blocks; a run stopped by its
+/// time limit stores an unknown that says how far it got, cubes run by hand
+/// in that folder count, the next run goes on and merges, and the answer
+/// (backed by the folder, recorded relative to the store) is reused, fully
+/// re-checked, survives a move of the store, and is set aside when a cube
+/// proof changes. The threshold is lowered to 0 here so that {−1,0,1}^3
+/// takes this route: p = 9..12 are infeasible there (p ≤ 8 for n = 3 by
+/// Lyons and Nussbaum 1992 [recalled]; p ≤ 12 by Lemmens and Scheutzow 2005,
+/// and each row is checked against both by the sweep itself), and the
+/// in-memory route of the same sweep gives the same verdicts.
+#[test]
+fn spectrum_runs_hard_periods_as_resumable_splits_in_its_store() {
+    let dir = TestDir::new();
+    let ternary_cube = ["spectrum", "--dim", "3", "--grid=-1..1", "--periods"];
+    let sweep = |store: &str, periods: &str, extra: &[&str]| {
+        dir.orbitcnf()
+            .args(ternary_cube)
+            .arg(periods)
+            .args(["--store", store, "--jobs", "2", "--no-divisors"])
+            .args([
+                "--probe",
+                "0.001",
+                "--split-above",
+                "0",
+                "--split-cubes",
+                "16",
+            ])
+            .args(extra)
+            .run()
+    };
+    // The time limit is spent by the probe (encoding included) before the
+    // first block: the split is written, no cube is solved.
+    let first = sweep("st", "12", &["--time-limit", "0.0011", "--json"]);
+    first.code(2);
+    let v = first.json();
+    let row = &rows(&v)[0];
+    assert_eq!(row["verdict"], "unknown");
+    assert_eq!(row["how"], "cubes");
+    let cert = row["certificate"].as_str().unwrap();
+    assert!(cert.contains("of 16 cubes of the split splits/"), "{cert}");
+    assert!(cert.contains("the next run goes on"), "{cert}");
+    let splits: Vec<PathBuf> = std::fs::read_dir(dir.path("st/splits"))
+        .unwrap()
+        .map(|e| e.unwrap().path())
+        .collect();
+    assert_eq!(splits.len(), 1);
+    let folder = &splits[0];
+    let key = folder.file_name().unwrap().to_string_lossy().into_owned();
+    assert_eq!(row["answer"]["key"], key.as_str());
+    // Cubes run by hand in the store's folder (as on a cluster) count.
+    dir.orbitcnf()
+        .arg("run-cube")
+        .arg(folder)
+        .args(["0..7", "-q"])
+        .run()
+        .code(0);
+    let by_hand = std::fs::read(folder.join("results/cube-0003.json")).unwrap();
+    // The same limits again: the unknown of a split is not reused but
+    // taken up (here again stopped before any block).
+    sweep("st", "12", &["--time-limit", "0.0011"])
+        .code(2)
+        .stdout_has("8 of 16 cubes of the split splits/")
+        .stdout_has("a rerun goes on with the splits in the store");
+    // No limit: the rest is solved and the folder merged.
+    let done = sweep("st", "9..12", &["--json"]);
+    done.code(0);
+    let v = done.json();
+    assert_eq!(verdicts(&v), ["infeasible"; 4]);
+    for r in rows(&v) {
+        assert_eq!(r["how"], "cubes");
+        assert_eq!(r["answer"]["backing"], "checked-cubes");
+        let rel = r["answer"]["cubes"]["folder"].as_str().unwrap();
+        assert!(rel.starts_with("splits/"), "{rel}");
+        assert_eq!(r["answer"]["strategy"]["cube_rule"], "profile-prefix");
+    }
+    let p12 = &rows(&v)[3];
+    assert_eq!(p12["answer"]["cubes"]["cubes"], 16);
+    assert_eq!(
+        std::fs::read(folder.join("results/cube-0003.json")).unwrap(),
+        by_hand,
+        "a cube with a final result is not solved again"
+    );
+    // Reused, then fully re-checked (the folders merged again).
+    let again = sweep("st", "9..12", &["--json"]).json();
+    assert_eq!(again["summary"]["reused"], 4);
+    assert_eq!(essentials(&again), essentials(&v));
+    let rechecked = sweep("st", "9..12", &["--recheck", "--json"]).json();
+    let cert = rows(&rechecked)[3]["certificate"].as_str().unwrap();
+    assert!(cert.contains("re-checked in this run"), "{cert}");
+    // The folders are recorded relative to the store, which can move.
+    std::fs::rename(dir.path("st"), dir.path("moved")).unwrap();
+    let moved = sweep("moved", "9..12", &["--recheck", "--json"]).json();
+    assert_eq!(moved["summary"]["reused"], 4);
+    assert!(moved["set_aside"].as_array().is_none_or(|a| a.is_empty()));
+    // A changed cube proof: the full re-check sets the answer aside, and the
+    // period is decided again in the same folder (the changed cube no
+    // longer matches its result's digest, so it is solved again).
+    let moved_folder = dir.path("moved/splits").join(&key);
+    let proof = std::fs::read_dir(moved_folder.join("results"))
+        .unwrap()
+        .map(|e| e.unwrap().path())
+        .find(|p| p.to_string_lossy().contains(".lrat"))
+        .expect("a kept cube proof");
+    let mut bytes = std::fs::read(&proof).unwrap();
+    bytes.extend_from_slice(b"tampered");
+    std::fs::write(&proof, bytes).unwrap();
+    let run = sweep("moved", "12", &["--recheck", "--json"]);
+    run.stderr_has("set aside");
+    let v = run.json();
+    assert!(
+        v["set_aside"][0]["reason"]
+            .as_str()
+            .unwrap()
+            .contains("its split folder"),
+        "{}",
+        v["set_aside"]
+    );
+    assert_eq!(rows(&v)[0]["verdict"], "infeasible");
+    assert_eq!(rows(&v)[0]["answer"]["backing"], "checked-cubes");
+    // The same verdicts by the in-memory route (no store: one assembled
+    // proof per period).
+    let memory = dir
+        .orbitcnf()
+        .args(ternary_cube)
+        .arg("9..12")
+        .args(["--no-store", "--json", "--jobs", "2", "--no-divisors"])
+        .args(["--probe", "0.001", "--split-above", "0"])
+        .run();
+    memory.code(0);
+    let m = memory.json();
+    assert_eq!(verdicts(&m), ["infeasible"; 4]);
+    assert!(
+        rows(&m)
+            .iter()
+            .all(|r| r["answer"]["backing"] == "checked-proof")
+    );
+}

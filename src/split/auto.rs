@@ -311,7 +311,10 @@ pub fn decide_auto(
     if !whole_profiles {
         Progress::new(limits.progress).event(|| {
             format!(
-                "decide: more than {FULL_PROFILE_CAP} lex-leader profiles; one solve, no switch to cubes"
+                "decide: more than {FULL_PROFILE_CAP} lex-leader profiles; one solve, no switch to \
+                 cubes (a sweep with a store, or a split folder, decides p = {} in resumable \
+                 cubes instead)",
+                q.period
             )
         });
         let limits = Limits {

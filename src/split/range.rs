@@ -347,3 +347,84 @@ pub fn run_blocks(
         None => Ok(!left_out.load(Ordering::SeqCst)),
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::encode::EncodeOptions;
+    use crate::grid::Grid;
+    use crate::question::Question;
+    use crate::split::auto::CubeTarget;
+    use crate::split::layout::{LayoutChoice, SplitLayout};
+    use std::sync::atomic::AtomicUsize;
+
+    /// A compact split of {−1,0,1}^3, p = 12 (infeasible: p ≤ 8 for n = 3,
+    /// Lyons and Nussbaum 1992 [recalled]) in a fresh folder.
+    fn split12(cubes: usize) -> (tempfile::TempDir, usize) {
+        let tmp = tempfile::tempdir().unwrap();
+        let q = Question::new(Grid::parse("-1..1", Some(3)).unwrap(), 12).unwrap();
+        let w = crate::split::write_split(
+            tmp.path(),
+            &q,
+            &EncodeOptions::default(),
+            CubeTarget::Count(cubes),
+            LayoutChoice::Fixed(SplitLayout::Compact),
+            u64::MAX,
+        )
+        .unwrap();
+        let n = w.manifest.cubes.len();
+        (tmp, n)
+    }
+
+    fn options() -> RangeOptions {
+        RangeOptions {
+            time_limit: None,
+            progress: ProgressMode::Off,
+            external: None,
+            handoff_after: None,
+            fresh_solver: false,
+            certify: true,
+            force: false,
+            encoding: FileEncoding::Zstd,
+            cone_bytes: 1_000_000,
+        }
+    }
+
+    /// `go_on` is asked before every block: saying no at once runs nothing
+    /// and reports that blocks were left out; saying no after the first
+    /// block leaves the rest pending; always yes runs every block, and the
+    /// cubes then need no more work.
+    #[test]
+    fn blocks_stop_when_told_and_report_it() {
+        let (tmp, n) = split12(16);
+        assert!(n >= 4, "{n} cubes");
+        let dir = tmp.path();
+        let run = |go_on: &(dyn Fn() -> bool + Sync)| {
+            let plan = BlockPlan {
+                jobs: 1,
+                block: 2,
+                progress: ProgressMode::Off,
+                label: "test",
+                go_on,
+            };
+            let mut cubes = 0;
+            let all = run_blocks(dir, (0, n - 1), &options(), &plan, |b| {
+                cubes += b.events.len();
+                Ok(())
+            })
+            .unwrap();
+            (all, cubes)
+        };
+        assert_eq!(run(&|| false), (false, 0));
+        assert_eq!(super::cube_run::pending_indices(dir).unwrap().len(), n);
+        let asked = AtomicUsize::new(0);
+        let once = || asked.fetch_add(1, Ordering::SeqCst) == 0;
+        assert_eq!(run(&once), (false, 2));
+        assert_eq!(super::cube_run::pending_indices(dir).unwrap().len(), n - 2);
+        // The highest block ran first.
+        let pending = super::cube_run::pending_indices(dir).unwrap();
+        assert!(!pending.contains(&(n - 1)) && pending.contains(&0));
+        assert_eq!(run(&|| true), (true, n));
+        assert!(super::cube_run::pending_indices(dir).unwrap().is_empty());
+    }
+}

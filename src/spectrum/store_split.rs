@@ -23,7 +23,9 @@
 //! it; a kill at any moment) keeps every cube result written so far, and
 //! stores an *unknown* answer that says how far it got. Such an unknown is
 //! always retried: the next sweep finds the folder, keeps its results
-//! (a cube with a final result is not solved again), and goes on. Cubes can
+//! (a cube with a final result is not solved again), and goes on, with the
+//! cube count the folder was written with (a different
+//! [`SweepSplit::store_split_cubes`] applies to new splits only). Cubes can
 //! also be run by hand or on a cluster meanwhile (`run-cube
 //! STORE/splits/<key> A..B`): the sweep takes their results as its own,
 //! since `merge` checks them all.
@@ -33,6 +35,8 @@ use std::sync::atomic::{AtomicBool, Ordering};
 use std::time::{Duration, Instant, SystemTime};
 
 use super::SweepConfig;
+#[cfg(doc)]
+use super::SweepSplit;
 use super::answer::{Probed, Task, merged_answer};
 use crate::error::Result;
 use crate::progress::{Progress, duration_words, threads_words};
@@ -92,20 +96,34 @@ pub(super) fn in_store_split(
     let dir = root.join(&rel);
     let label = format!("spectrum {}: p={}", q.grid, q.period);
     let mut progress = Progress::new(cfg.progress);
-    progress.event(|| {
-        format!(
-            "{label}: more than {} whole profiles; splitting it into about {} cubes in {} \
+    // A split begun by an earlier run is taken up with the cube count it
+    // was written with, whatever this run asks: its results are the work
+    // done so far. `write_split` repairs it if files are missing.
+    let earlier = crate::split::SplitManifest::read(&dir)
+        .ok()
+        .filter(|m| m.question == q.record());
+    let target = earlier
+        .as_ref()
+        .map_or(split.store_split_cubes, |m| m.requested_cubes);
+    progress.event(|| match &earlier {
+        Some(m) => format!(
+            "{label}: more than {} whole profiles; taking up the split of {} cubes in {}",
+            split.store_split_above,
+            m.cubes.len(),
+            dir.display()
+        ),
+        None => format!(
+            "{label}: more than {} whole profiles; splitting it into about {target} cubes in {} \
              (a later run goes on where this one stops)",
             split.store_split_above,
-            split.store_split_cubes,
             dir.display()
-        )
+        ),
     });
     let written = crate::split::write_split(
         &dir,
         q,
         &cfg.options,
-        CubeTarget::Count(split.store_split_cubes),
+        CubeTarget::Count(target),
         LayoutChoice::Fixed(crate::split::layout::SplitLayout::Compact),
         cfg.max_clauses,
     )?;

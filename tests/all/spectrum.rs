@@ -1091,19 +1091,18 @@ fn spectrum_hands_the_cubes_of_a_hard_period_to_cadical() {
 fn spectrum_runs_hard_periods_as_resumable_splits_in_its_store() {
     let dir = TestDir::new();
     let ternary_cube = ["spectrum", "--dim", "3", "--grid=-1..1", "--periods"];
+    // 16 cubes unless `extra` asks for another count.
     let sweep = |store: &str, periods: &str, extra: &[&str]| {
+        let cubes: &[&str] = match extra.contains(&"--split-cubes") {
+            true => &[],
+            false => &["--split-cubes", "16"],
+        };
         dir.orbitcnf()
             .args(ternary_cube)
             .arg(periods)
             .args(["--store", store, "--jobs", "2", "--no-divisors"])
-            .args([
-                "--probe",
-                "0.001",
-                "--split-above",
-                "0",
-                "--split-cubes",
-                "16",
-            ])
+            .args(["--probe", "0.001", "--split-above", "0"])
+            .args(cubes)
             .args(extra)
             .run()
     };
@@ -1140,8 +1139,9 @@ fn spectrum_runs_hard_periods_as_resumable_splits_in_its_store() {
         .code(2)
         .stdout_has("8 of 16 cubes of the split splits/")
         .stdout_has("a rerun goes on with the splits in the store");
-    // No limit: the rest is solved and the folder merged.
-    let done = sweep("st", "9..12", &["--json"]);
+    // No limit: the rest is solved and the folder merged (p = 12 in the
+    // split begun above, although this run asks for another cube count).
+    let done = sweep("st", "9..12", &["--json", "--split-cubes", "8"]);
     done.code(0);
     let v = done.json();
     assert_eq!(verdicts(&v), ["infeasible"; 4]);

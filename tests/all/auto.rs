@@ -847,6 +847,45 @@ fn m2_n4_period_26_is_refuted_in_blocks_of_cubes() {
     );
 }
 
+/// {−2,…,2}^4, p = 26 again, by `spectrum` alone: more than 20,000 whole
+/// profiles, so after its probe the sweep splits the period into a folder
+/// of its store (33,348 whole-profile cubes), solves them in blocks on both
+/// threads with the hand-off of `--handoff-proof lrat`, merges the folder
+/// and records the answer backed by it (2026-12-05: 11 min 21 s beside
+/// another campaign, 9 cubes handed off). The answer must agree with the
+/// run of record above; a second sweep reuses it and `--recheck` merges the
+/// folder again.
+#[test]
+#[ignore = "about 10 minutes on 2 cores and 0.7 GB of disk (a 60 s probe, then 33,348 whole-profile cubes in the store, some handed off to a CaDiCaL named by ORBITCNF_LRAT_CADICAL that writes LRAT); run on purpose"]
+fn m2_n4_period_26_is_refuted_by_spectrum_in_its_store() {
+    let cadical = std::env::var(LRAT_CADICAL).unwrap_or_else(|_| {
+        panic!("this check needs {LRAT_CADICAL}, the path of a CaDiCaL that writes LRAT (--lrat)")
+    });
+    let dir = TestDir::new();
+    let sweep = |extra: &[&str]| {
+        let run = dir
+            .orbitcnf()
+            .args(["spectrum", "--dim", "4", "--grid=-2..2", "--periods", "26"])
+            .args(["--jobs", "2", "--store", "st", "--json"])
+            .args(["--handoff", &format!("{cadical} -q --lrat")])
+            .args(["--handoff-proof", "lrat"])
+            .args(extra)
+            .run();
+        run.code(0);
+        run.json()
+    };
+    let v = sweep(&[]);
+    let row = &v["rows"][0];
+    assert_eq!(row["verdict"], "infeasible");
+    assert_eq!(row["how"], "cubes");
+    assert_eq!(row["answer"]["backing"], "checked-cubes");
+    assert_eq!(row["answer"]["cubes"]["cubes"], 33_348);
+    let again = sweep(&["--recheck"]);
+    assert_eq!(again["summary"]["reused"], 1);
+    let cert = again["rows"][0]["certificate"].as_str().unwrap();
+    assert!(cert.contains("re-checked in this run"), "{cert}");
+}
+
 /// {−2,…,2}^4, p = 27, refuted by computation on 2026-12-04 (README, "What
 /// is proven and what is open"): 40,907 whole-profile cubes in 41 minutes
 /// on 2 shared cores, 11 handed off after 10 s to a CaDiCaL that writes

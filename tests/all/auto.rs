@@ -807,6 +807,30 @@ fn m2_n4_period_30_is_refuted_in_blocks_of_cubes() {
     );
 }
 
+/// {−2,…,2}^4, p = 32, refuted by computation on 2026-12-05 (README, "What
+/// is proven and what is open"): exactly 1,000,000 cubes from `split
+/// --cubes 1000000` (more than a million whole profiles, so prefixes),
+/// solved with `run-cube DIR all --jobs 2` and the hand-off to a CaDiCaL
+/// that writes LRAT ([`Handoff::Lrat`]; this test runs the same blocks
+/// under GNU parallel): 93 minutes of cubes on 2 shared cores, 54 handed
+/// off, the longest 1,000 s (cube 992960); 6,787 s of solving; the merge
+/// 3 min 5 s. With p = 17..31 this leaves {−2,…,2}^4 no period 17..32.
+/// Nothing published settles it; the expectation is orbitcnf's own
+/// certified answer.
+#[test]
+#[ignore = "about 100 minutes on 2 cores and 12 GB of disk with zstd proofs (1,000,000 prefix cubes, 54 handed off to a CaDiCaL named by ORBITCNF_LRAT_CADICAL that writes LRAT, one for about 17 minutes); run on purpose"]
+fn m2_n4_period_32_is_refuted_in_blocks_of_cubes() {
+    let dir = TestDir::new();
+    refuted_in_blocks(
+        &dir,
+        &Q::cube(-2, 2, 4, 32),
+        1_000_000,
+        1_000_000,
+        &[],
+        Handoff::Lrat("10"),
+    );
+}
+
 /// {−2,…,2}^4, p = 31: a prime period above 2^4, so excluded on all of R^4
 /// by the theorem on prime periods (Lyons and Nussbaum, 1992; see p = 29)
 /// **[recalled]**: a test of the method on 200,000 cubes, prefixes of 13

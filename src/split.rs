@@ -707,15 +707,33 @@ pub fn write_split(
         return Err(Error::Options("a split needs at least one cube".into()));
     }
     let enc = encode(q, options, max_clauses)?;
+    write_split_encoded(dir, q, &enc, target, layout)
+}
+
+/// [`write_split`] with `enc`, the encoding of `q` that the caller has made
+/// already (on {−1,0,1}^5 an encoding takes about a minute).
+///
+/// # Errors
+/// As [`write_split`].
+pub fn write_split_encoded(
+    dir: &Path,
+    q: &Question,
+    enc: &Encoding,
+    target: CubeTarget,
+    layout: LayoutChoice,
+) -> Result<SplitWritten> {
+    if target == CubeTarget::Count(0) {
+        return Err(Error::Options("a split needs at least one cube".into()));
+    }
     let (cubes, auto_cubes) = match target {
-        CubeTarget::Count(n) => (cubes(&enc, n)?, false),
-        CubeTarget::Auto => (auto::choose_cubes(&enc)?.cubes, true),
+        CubeTarget::Count(n) => (cubes(enc, n)?, false),
+        CubeTarget::Auto => (auto::choose_cubes(enc)?.cubes, true),
     };
     let requested = match target {
         CubeTarget::Count(n) => n,
         CubeTarget::Auto => cubes.len(),
     };
-    let formula_text = render_cnf(&enc);
+    let formula_text = render_cnf(enc);
     let layout = layout.resolve(cubes.len(), formula_text.len() as u64);
     if dir.join(MANIFEST).exists() {
         let old = SplitManifest::read(dir)?;
@@ -732,8 +750,8 @@ pub fn write_split(
             )));
         }
     }
-    let coverage = coverage_cnf(&enc, &cubes);
-    let checked = refute_coverage(&enc, &coverage)?;
+    let coverage = coverage_cnf(enc, &cubes);
+    let checked = refute_coverage(enc, &coverage)?;
     let proof = std::fs::read(checked.path()).map_err(|e| Error::io(checked.path(), e))?;
     let summary = checked.info.lrat;
     let subs: &[&str] = match layout {
@@ -763,8 +781,8 @@ pub fn write_split(
         Ok(FileEntry::of(name, bytes))
     };
     let formula = put(FORMULA, &formula_text)?;
-    let icnf = put(ICNF, &render_icnf(&enc, &cubes))?;
-    let cov_cnf = put(COVERAGE, &render_coverage(&enc, &coverage, &cubes))?;
+    let icnf = put(ICNF, &render_icnf(enc, &cubes))?;
+    let cov_cnf = put(COVERAGE, &render_coverage(enc, &coverage, &cubes))?;
     let cov_proof = put(COVERAGE_PROOF, &proof)?;
     let mut entries = Vec::with_capacity(cubes.len());
     for c in cubes {
@@ -772,7 +790,7 @@ pub fn write_split(
             SplitLayout::Files => CubeEntry {
                 file: Some(put(
                     &cube_file_name(c.index),
-                    &render_cnf(&cube_encoding(&enc, &c)),
+                    &render_cnf(&cube_encoding(enc, &c)),
                 )?),
                 sha256: None,
                 cube: c,
@@ -817,7 +835,7 @@ pub fn write_split(
         coverage: CoverageEntry {
             cnf: cov_cnf,
             proof: cov_proof,
-            formula_clauses: coverage_sources(&enc).len(),
+            formula_clauses: coverage_sources(enc).len(),
             lrat_steps: summary.steps,
         },
         cubes: entries,

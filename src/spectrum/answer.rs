@@ -17,7 +17,7 @@ use crate::question::{MapClass, Question};
 use crate::report::{Report, Strategy, Verdict};
 use crate::solve::Limits;
 use crate::solve::certified::Certified;
-use crate::split::auto::{AutoOptions, decide_auto};
+use crate::split::auto::{AutoOptions, decide_auto_encoded};
 use crate::store::{self, Answer, AnswerStats, Backing, How, ProofRecord, RunLimits};
 use crate::theory::{construct, construction_limit};
 use crate::verify;
@@ -311,16 +311,28 @@ pub(super) fn in_cubes(
 ) -> Result<Answer> {
     let q = &task.question;
     let split = cfg.split.clone().unwrap_or_default();
-    if let Some(root) = &cfg.store
-        && q.points.is_none()
-        && too_many_profiles(q, cfg, split.store_split_above)
-    {
-        return super::store_split::in_store_split(task, cfg, limits, run_id, probed, root);
-    }
     let started = SystemTime::now();
     let t = Instant::now();
     let started_at = store::utc_timestamp(started);
     let mut a = Answer::unknown(q, &cfg.options, *limits, How::Solver, run_id, started_at);
+    // One encoding serves the count of the profiles and the cubes (on
+    // {−1,0,1}^5 an encoding takes about a minute).
+    let enc = match crate::encode::encode(q, &cfg.options, cfg.max_clauses) {
+        Ok(enc) => enc,
+        Err(e @ Error::TooLarge { .. }) => {
+            a.reason = Some(e.to_string());
+            a.stats.seconds = probed.seconds + t.elapsed().as_secs_f64();
+            a.finished_at = store::utc_timestamp(SystemTime::now());
+            return Ok(a);
+        }
+        Err(e) => return Err(e),
+    };
+    let encode_seconds = t.elapsed().as_secs_f64();
+    if let Some(root) = &cfg.store
+        && too_many_profiles(&enc, split.store_split_above)
+    {
+        return super::store_split::in_store_split(task, cfg, &enc, limits, run_id, probed, root);
+    }
     let opts = AutoOptions {
         certify: true,
         jobs: cfg.jobs.max(1),
@@ -337,7 +349,7 @@ pub(super) fn in_cubes(
         progress: cfg.progress,
         ..Limits::default()
     };
-    match decide_auto(q, &cfg.options, &opts, &solve_limits, cfg.max_clauses) {
+    match decide_auto_encoded(q, &cfg.options, &enc, encode_seconds, &opts, &solve_limits) {
         Ok(report) => {
             record(&mut a, task, &report)?;
             a.strategy = report.strategy.map(|s| Strategy {
@@ -359,16 +371,12 @@ pub(super) fn in_cubes(
     Ok(a)
 }
 
-/// Whether `q` in the profile formulation has more than `cap` whole
-/// profiles ([`crate::split::auto::full_profile_count`]; a walk that
-/// stops at its work limit counts as more). A question that cannot be
-/// encoded has not: [`in_cubes`] then reports why as for any period.
-fn too_many_profiles(q: &Question, cfg: &SweepConfig, cap: usize) -> bool {
-    let Ok(enc) = crate::encode::encode(q, &cfg.options, cfg.max_clauses) else {
-        return false;
-    };
+/// Whether the question of `enc`, in a profile formulation, has more than
+/// `cap` whole profiles ([`crate::split::auto::full_profile_count`]; a walk
+/// that stops at its work limit counts as more).
+fn too_many_profiles(enc: &crate::encode::Encoding, cap: usize) -> bool {
     enc.options.formulation != crate::encode::Formulation::FullMap
-        && crate::split::auto::full_profile_count(&enc, cap).is_none()
+        && crate::split::auto::full_profile_count(enc, cap).is_none()
 }
 
 /// Records in `a` what `report` (of the certified solver, for `task`)

@@ -38,6 +38,7 @@ use super::SweepConfig;
 #[cfg(doc)]
 use super::SweepSplit;
 use super::answer::{Probed, Task, merged_answer};
+use crate::encode::Encoding;
 use crate::error::Result;
 use crate::progress::{Progress, duration_words, threads_words};
 use crate::proof::lrat::compressed::FileEncoding;
@@ -70,8 +71,9 @@ struct Tally {
     failed: Vec<usize>,
 }
 
-/// The answer for the hard period `task` by a split folder in the store at
-/// `root` (see the module docs), within the time the probe left.
+/// The answer for the hard period `task`, whose encoding is `enc`, by a
+/// split folder in the store at `root` (see the module docs), within the
+/// time the probe left.
 ///
 /// # Errors
 /// Writing or repairing the split folder (a folder of another question
@@ -81,6 +83,7 @@ struct Tally {
 pub(super) fn in_store_split(
     task: &Task,
     cfg: &SweepConfig,
+    enc: &Encoding,
     limits: &RunLimits,
     run_id: &str,
     probed: Probed,
@@ -119,13 +122,12 @@ pub(super) fn in_store_split(
             dir.display()
         ),
     });
-    let written = crate::split::write_split(
+    let written = crate::split::write_split_encoded(
         &dir,
         q,
-        &cfg.options,
+        enc,
         CubeTarget::Count(target),
         LayoutChoice::Fixed(crate::split::layout::SplitLayout::Compact),
-        cfg.max_clauses,
     )?;
     let m = &written.manifest;
     let n = m.cubes.len();

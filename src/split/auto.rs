@@ -273,6 +273,27 @@ pub fn decide_auto(
     let t0 = Instant::now();
     let enc = encode(q, options, max_clauses)?;
     let encode_seconds = t0.elapsed().as_secs_f64();
+    decide_auto_encoded(q, options, &enc, encode_seconds, opts, limits)
+}
+
+/// [`decide_auto`] with `enc`, the encoding of `q` under `options` that the
+/// caller has made already, in `encode_seconds`.
+///
+/// # Errors
+/// As [`decide_auto`].
+pub fn decide_auto_encoded(
+    q: &Question,
+    options: &EncodeOptions,
+    enc: &Encoding,
+    encode_seconds: f64,
+    opts: &AutoOptions,
+    limits: &Limits,
+) -> Result<Report> {
+    if opts.jobs == 0 {
+        return Err(Error::Options(
+            "a run in cubes needs at least one thread".into(),
+        ));
+    }
     let start = Instant::now();
     // A caller's counter (a sweep's progress line) sees the probe's and the
     // cubes' conflicts.
@@ -305,7 +326,7 @@ pub fn decide_auto(
     let count = if full_map {
         None
     } else {
-        full_profile_count(&enc, FULL_PROFILE_CAP)
+        full_profile_count(enc, FULL_PROFILE_CAP)
     };
     let whole_profiles = full_map || count.is_some();
     if !whole_profiles {
@@ -321,13 +342,13 @@ pub fn decide_auto(
             conflicts: Some(conflicts),
             ..limits.clone()
         };
-        return decide_encoded(q, options, &enc, encode_seconds, backend, &limits);
+        return decide_encoded(q, options, enc, encode_seconds, backend, &limits);
     }
     // A zero budget is no probe: the caller has probed already (`spectrum`).
     let why = if opts.probe.is_zero() && opts.probe_conflicts.is_none() {
         None
     } else {
-        let probe = decide_encoded(q, options, &enc, encode_seconds, backend, &probe_limits)?;
+        let probe = decide_encoded(q, options, enc, encode_seconds, backend, &probe_limits)?;
         // The probe's answer stands when there is one, and so does its
         // unknown when the probe was given all the time there is.
         let no_time_left = limits
@@ -342,9 +363,9 @@ pub fn decide_auto(
     let probe_conflicts = conflicts.load(Ordering::Relaxed);
     // The count above is the one `choose_cubes` would make again.
     let choice = if full_map {
-        choose_cubes(&enc)?
+        choose_cubes(enc)?
     } else {
-        choose_counted(&enc, count)?
+        choose_counted(enc, count)?
     };
     let threads = opts.jobs.min(choice.cubes.len().max(1));
     let strategy = Strategy {
@@ -368,7 +389,7 @@ pub fn decide_auto(
         )
     });
     let run = CubesRun {
-        enc: &enc,
+        enc,
         encode_seconds,
         cubes: &choice.cubes,
         start,

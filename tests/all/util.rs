@@ -695,3 +695,10 @@ pub fn encode(dir: &TestDir, q: &Q, name: &str) {
         .run()
         .code(0);
 }
+
+/// Asserts that the sweep report `v` set a stored answer aside because its
+/// split folder failed the check.
+pub fn assert_split_folder_set_aside(v: &serde_json::Value) {
+    let reason = v["set_aside"][0]["reason"].as_str().unwrap_or_default();
+    assert!(reason.contains("its split folder"), "{}", v["set_aside"]);
+}

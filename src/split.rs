@@ -48,6 +48,7 @@
 //! argument is `encodings/cubes.md`.
 
 pub mod auto;
+pub mod campaign;
 pub mod jobs;
 pub mod layout;
 mod manifest;

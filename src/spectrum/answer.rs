@@ -228,8 +228,10 @@ pub(super) fn merged_answer(
 pub(super) enum Solved {
     /// An answer to record (possibly unknown).
     Answer(Box<Answer>),
-    /// The probe gave no answer and the time limit leaves time: the period
-    /// is hard, and is decided later in cubes ([`in_cubes`]).
+    /// The probe gave no answer and the time limit leaves time, or a split
+    /// of the period is begun in the store (then without a probe, whose
+    /// figures are 0): the period is hard, and is decided later in cubes
+    /// ([`in_cubes`]).
     Hard(Probed),
 }
 
@@ -240,6 +242,9 @@ pub(super) struct Probed {
     pub seconds: f64,
     /// Conflicts it took.
     pub conflicts: u64,
+    /// No probe was made: a split of the period is begun in the store
+    /// ([`super::store_split::begun`]).
+    pub begun: bool,
 }
 
 /// The answer of the certified solver for `task` in one solve, within the
@@ -257,6 +262,15 @@ pub(super) fn solved(
     let t = Instant::now();
     let started_at = store::utc_timestamp(started);
     let mut a = Answer::unknown(q, &cfg.options, *limits, How::Solver, run_id, started_at);
+    // A split begun in the store says the period is hard: its probe was
+    // made by the run that wrote it.
+    if super::store_split::begun(cfg, q) {
+        return Ok(Solved::Hard(Probed {
+            seconds: 0.0,
+            conflicts: 0,
+            begun: true,
+        }));
+    }
     let mut backend = Certified {
         lrat: task.proof.as_ref().map(|(abs, _)| abs.clone()),
         ..Certified::default()
@@ -283,6 +297,7 @@ pub(super) fn solved(
             return Ok(Solved::Hard(Probed {
                 seconds: t.elapsed().as_secs_f64(),
                 conflicts: conflicts.load(std::sync::atomic::Ordering::Relaxed),
+                begun: false,
             }));
         }
         Ok(report) => record(&mut a, task, &report)?,
@@ -314,6 +329,11 @@ pub(super) fn in_cubes(
     let started = SystemTime::now();
     let t = Instant::now();
     let started_at = store::utc_timestamp(started);
+    if let Some(root) = &cfg.store
+        && super::store_split::begun(cfg, q)
+    {
+        return super::store_split::in_store_split(task, cfg, None, limits, run_id, probed, root);
+    }
     let mut a = Answer::unknown(q, &cfg.options, *limits, How::Solver, run_id, started_at);
     // One encoding serves the count of the profiles and the cubes (on
     // {−1,0,1}^5 an encoding takes about a minute).
@@ -331,7 +351,15 @@ pub(super) fn in_cubes(
     if let Some(root) = &cfg.store
         && too_many_profiles(&enc, split.store_split_above)
     {
-        return super::store_split::in_store_split(task, cfg, &enc, limits, run_id, probed, root);
+        return super::store_split::in_store_split(
+            task,
+            cfg,
+            Some(&enc),
+            limits,
+            run_id,
+            probed,
+            root,
+        );
     }
     let opts = AutoOptions {
         certify: true,

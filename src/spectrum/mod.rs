@@ -142,7 +142,6 @@ use crate::theory::{Published, period_bound, published_for};
 
 pub use answer::{Recorded, record_merge};
 pub use render::{certificate_words, ranges_words};
-pub use store_split::{STORE_SPLIT_BLOCK, STORE_SPLIT_CONE_BYTES};
 pub use sweep::run;
 
 /// Most periods one sweep accepts.
@@ -209,8 +208,9 @@ pub struct SweepSplit {
 /// The default of [`SweepSplit::store_split_cubes`]: the size of the
 /// campaigns that settled {−2,…,2}^4, p = 30 (1,000,001 prefix cubes, about
 /// 75 minutes on two cores) and {−1,0,1}^5, p = 52 (86,870 whole profiles).
-/// The split takes about a minute and 1.3 GB to write at this size.
-pub const STORE_SPLIT_CUBES: usize = 1_000_000;
+/// The split takes about a minute and 1.3 GB to write at this size. The
+/// same as `decide --split-dir`'s ([`crate::split::campaign::CAMPAIGN_CUBES`]).
+pub const STORE_SPLIT_CUBES: usize = crate::split::campaign::CAMPAIGN_CUBES;
 
 impl Default for SweepSplit {
     /// The probe of `decide` ([`crate::split::auto::DEFAULT_PROBE`]), no

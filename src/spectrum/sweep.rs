@@ -253,12 +253,17 @@ pub fn run(cfg: &SweepConfig) -> Result<Spectrum> {
             continue;
         }
         progress.event(|| {
+            let why = match probed.begun {
+                true => "a split of it is begun in the store, no probe".to_string(),
+                false => format!(
+                    "the probe gave no answer in {} ({} conflicts)",
+                    duration_words(probed.seconds),
+                    probed.conflicts
+                ),
+            };
             format!(
-                "spectrum {}: p={p}: the probe gave no answer in {} ({} conflicts); \
-                 deciding it in cubes on {} ({} hard period(s) left)",
+                "spectrum {}: p={p}: {why}; deciding it in cubes on {} ({} hard period(s) left)",
                 watch.grid,
-                duration_words(probed.seconds),
-                probed.conflicts,
                 crate::progress::threads_words(cfg.jobs.max(1)),
                 hard.len() - k
             )

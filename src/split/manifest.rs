@@ -222,6 +222,30 @@ impl SplitManifest {
         }
         Ok(m)
     }
+
+    /// Checks that every file the manifest lists in `dir` (formula, cube
+    /// list, coverage CNF and proof, and the cube files of the file layout)
+    /// is there with its recorded size and SHA-256: enough to go on solving
+    /// the split's cubes without writing it again. Nothing is decided by
+    /// it; `merge` checks the whole folder against a fresh encoding.
+    ///
+    /// # Errors
+    /// As [`FileEntry::verify`], for the first file that is missing or differs.
+    pub fn check_files(&self, dir: &Path) -> Result<()> {
+        let listed = [
+            &self.formula,
+            &self.icnf,
+            &self.coverage.cnf,
+            &self.coverage.proof,
+        ];
+        for f in listed
+            .into_iter()
+            .chain(self.cubes.iter().filter_map(|c| c.file.as_ref()))
+        {
+            f.verify(dir, MANIFEST)?;
+        }
+        Ok(())
+    }
 }
 
 #[cfg(test)]

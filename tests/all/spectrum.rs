@@ -1079,7 +1079,8 @@ fn spectrum_hands_the_cubes_of_a_hard_period_to_cadical() {
 /// A hard period with more whole profiles than `--split-above` is split into
 /// a folder of the store and solved there in blocks; a run stopped by its
 /// time limit stores an unknown that says how far it got, cubes run by hand
-/// in that folder count, the next run goes on and merges, and the answer
+/// in that folder count, the next run goes on (at once, without a probe; a
+/// file of the split lost meanwhile is written again) and merges, and the answer
 /// (backed by the folder, recorded relative to the store) is reused, fully
 /// re-checked, survives a move of the store, and is set aside when a cube
 /// proof changes. The threshold is lowered to 0 here so that {−1,0,1}^3
@@ -1133,12 +1134,23 @@ fn spectrum_runs_hard_periods_as_resumable_splits_in_its_store() {
         .run()
         .code(0);
     let by_hand = std::fs::read(folder.join("results/cube-0003.json")).unwrap();
-    // The same limits again: the unknown of a split is not reused but
-    // taken up (here again stopped before any block).
-    sweep("st", "12", &["--time-limit", "0.0011"])
-        .code(2)
-        .stdout_has("8 of 16 cubes of the split splits/")
-        .stdout_has("a rerun goes on with the splits in the store");
+    // The unknown of a split is not reused but taken up, at once: no probe
+    // (whose 1 ms would not fit this limit of 1 ns) and no encoding; the
+    // limit is over before the first block.
+    sweep(
+        "st",
+        "12",
+        &["--time-limit", "0.000000001", "--progress", "lines"],
+    )
+    .code(2)
+    .stderr_has("taking up the split of 16 cubes begun in")
+    .stderr_has("p=12: a split of it is begun in the store, no probe;")
+    .stdout_has("8 of 16 cubes of the split splits/")
+    .stdout_has("no block starts after the time limit")
+    .stdout_has("a rerun goes on with the splits in the store");
+    // A file of the split lost meanwhile: the take-up writes it again from
+    // a fresh encoding, and the results kept stay valid.
+    std::fs::remove_file(folder.join("cubes.icnf")).unwrap();
     // No limit: the rest is solved and the folder merged (p = 12 in the
     // split begun above, although this run asks for another cube count).
     let done = sweep("st", "9..12", &["--json", "--split-cubes", "8"]);
@@ -1154,6 +1166,10 @@ fn spectrum_runs_hard_periods_as_resumable_splits_in_its_store() {
     }
     let p12 = &rows(&v)[3];
     assert_eq!(p12["answer"]["cubes"]["cubes"], 16);
+    assert!(
+        folder.join("cubes.icnf").is_file(),
+        "the split was repaired"
+    );
     assert_eq!(
         std::fs::read(folder.join("results/cube-0003.json")).unwrap(),
         by_hand,

@@ -552,7 +552,7 @@ impl ScaleArgs {
     }
 
     /// The hand-off of hard cubes to `--solver external:…` after `after`.
-    fn cube_handoff(&self, certify: bool, after: Duration) -> Result<CubeHandoff, Error> {
+    pub fn cube_handoff(&self, certify: bool, after: Duration) -> Result<CubeHandoff, Error> {
         let Some(solver) = self.solver.external(certify)? else {
             return Err(Error::Options(
                 "--handoff-after needs an external solver to hand hard cubes to \

@@ -78,6 +78,23 @@ pub struct DecideArgs {
     /// converted to LRAT by `rate` and checked).
     #[arg(long, value_name = "SECS", value_parser = parse_seconds)]
     handoff_after: Option<Duration>,
+    /// Decide the question as a resumable campaign in the folder DIR, for
+    /// questions too hard for one run: the split is written there (about
+    /// --cubes N cubes, a million by default: one per whole profile when
+    /// they fit, profile prefixes otherwise) or, when DIR holds a split of
+    /// this question, taken up with its cube count and every result kept;
+    /// its cubes are solved in blocks of 200 on --jobs threads (every core
+    /// by default), each refuted cube's LRAT proof checked and kept with
+    /// zstd (with --solver external:'COMMAND' --proof-arg … --handoff-after
+    /// SECS, cubes still open after SECS go to COMMAND); then the folder is
+    /// merged as `merge DIR` does, and its report printed. A run stopped by
+    /// --time-limit (no block starts after it) or killed keeps every
+    /// result, and the same command goes on from there; cubes run meanwhile
+    /// with `run-cube DIR A..B` (elsewhere too) count. No probe is made.
+    #[arg(long, value_name = "DIR", conflicts_with_all = [
+        "bundle", "proof", "drat", "map", "no_auto_split", "probe", "probe_conflicts",
+    ])]
+    split_dir: Option<PathBuf>,
     /// With --real: leave out the order lemmas of the profile (totality,
     /// transitivity, crossing-order, equilateral and top-pattern lemmas,
     /// encodings/real-space.md §5), as before they existed; for comparisons.
@@ -92,6 +109,9 @@ pub fn run_decide(a: DecideArgs) -> Outcome {
     }
     let question = a.question.question()?;
     let options = a.encoding.options(question.points.is_some())?;
+    if let Some(dir) = &a.split_dir {
+        return run_campaign(dir, &a, &question, options);
+    }
     let certify = !a.certify.no_certify;
     let req = Request {
         solver: a.scale.solver(certify, a.drat.is_some(), a.handoff_after)?,
@@ -135,6 +155,100 @@ pub fn run_decide(a: DecideArgs) -> Outcome {
     Ok(code(d.report.exit_code()))
 }
 
+/// `decide --split-dir DIR`: the question as a resumable campaign in DIR
+/// ([`orbitcnf::split::campaign`]), printed as `merge` prints its folder.
+fn run_campaign(
+    dir: &Path,
+    a: &DecideArgs,
+    q: &orbitcnf::Question,
+    options: orbitcnf::encode::EncodeOptions,
+) -> Outcome {
+    use orbitcnf::split::campaign::{Campaign, CampaignOptions, run_campaign};
+    if a.certify.no_certify || a.certify.accept_claims() {
+        return Err(Error::Options(
+            "a campaign keeps only checked verdicts: every refuted cube's proof is checked".into(),
+        ));
+    }
+    let jobs = a.scale.jobs.unwrap_or_else(orbitcnf::pool::default_jobs);
+    if jobs == 0 || a.scale.cubes == Some(0) {
+        return Err(Error::Options("--jobs and --cubes need at least 1".into()));
+    }
+    let handoff = match a.handoff_after {
+        Some(after) => Some(a.scale.cube_handoff(true, after)?),
+        None if a.scale.solver.external(true)?.is_some() => {
+            return Err(Error::Options(
+                "a campaign solves its cubes with the bundled solver; an external solver \
+                 takes the cubes it leaves open after --handoff-after SECS"
+                    .into(),
+            ));
+        }
+        None => None,
+    };
+    let progress = a.progress.mode(a.json);
+    let o = CampaignOptions {
+        cubes: a
+            .scale
+            .cubes
+            .unwrap_or(orbitcnf::split::campaign::CAMPAIGN_CUBES),
+        jobs,
+        time_limit: a.time_limit,
+        handoff,
+        progress,
+        label: format!("decide {}: p={}", q.grid, q.period),
+        options,
+        max_clauses: a.encoding.max_clauses,
+    };
+    let folder = dir.display().to_string();
+    match run_campaign(dir, q, None, &o)? {
+        Campaign::Merged {
+            report, taken_up, ..
+        } => {
+            let how = match taken_up {
+                true => "taken up from an earlier run",
+                false => "written in this run",
+            };
+            print_either(
+                a.json,
+                || {
+                    let mut v = serde_json::to_value(&report).expect("serialises");
+                    v["split_dir"] = folder.clone().into();
+                    v["taken_up"] = taken_up.into();
+                    v.to_string()
+                },
+                || format!("{}campaign     {folder}, {how}\n", report.to_text()),
+            )?;
+            Ok(code(report.exit_code()))
+        }
+        Campaign::Unfinished(u) => {
+            let why = u.why(&folder, a.time_limit);
+            print_either(
+                a.json,
+                || {
+                    serde_json::json!({
+                        "verdict": "unknown",
+                        "question": q.record(),
+                        "statement": q.statement(),
+                        "split_dir": folder,
+                        "cubes": u.cubes,
+                        "finished": u.finished,
+                        "reason": why,
+                    })
+                    .to_string()
+                },
+                || {
+                    format!(
+                        "question     {}\nverdict      unknown: {why}\n\
+                         next         the same command goes on; `orbitcnf run-cube {folder} A..B` \
+                         runs cubes elsewhere meanwhile, `orbitcnf merge {folder}` merges\n",
+                        q.statement()
+                    )
+                },
+            )?;
+            Ok(code(orbitcnf::report::Verdict::Unknown.exit_code()))
+        }
+    }
+}
+
 /// `decide --real`: the real-space question, with the flags that apply to it.
 fn run_real(n: usize, a: DecideArgs) -> Outcome {
     let grid_only = [
@@ -152,10 +266,13 @@ fn run_real(n: usize, a: DecideArgs) -> Outcome {
         ),
         (a.encoding.formulation.is_some(), "--formulation"),
         (a.question.class.class != MapClass::Nonexpansive, "--class"),
+        (a.split_dir.is_some(), "--split-dir"),
     ];
     if let Some((_, flag)) = grid_only.iter().find(|(on, _)| *on) {
         let hint = if flag.starts_with("--proof") || flag.starts_with("--drat") {
             "; a real-space certificate (Farkas lemmas plus an LRAT proof) is kept with --bundle DIR"
+        } else if *flag == "--split-dir" {
+            "; with --jobs, --bundle DIR is the real question's resumable split folder"
         } else {
             ""
         };

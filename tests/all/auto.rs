@@ -15,7 +15,7 @@
 
 use serde_json::Value;
 
-use crate::util::{FEASIBLE, INFEASIBLE, Q, TestDir, check_report, have_tool};
+use crate::util::{FEASIBLE, INFEASIBLE, Q, TestDir, UNKNOWN, check_report, have_tool};
 
 /// `decide` of `q` with the probe at 0 conflicts and `extra`.
 fn auto_decide(dir: &TestDir, q: &Q, extra: &[&str]) -> crate::util::Run {
@@ -1066,4 +1066,90 @@ fn refuted_in_blocks(
         .run()
         .code(INFEASIBLE)
         .stdout_has(&format!("all {cubes} cubes refuted"));
+}
+
+/// `decide --split-dir DIR`: the campaign of `split`, `run-cube all` and
+/// `merge` in one command, resumable. A run stopped by its time limit
+/// answers unknown and says how far it got; cubes run by hand in the folder
+/// count; the next run takes the split up (its cube count kept, whatever
+/// `--cubes` now says) and merges it; `merge DIR` agrees; a feasible
+/// question gives an orbit checked here and by `check`; a folder of another
+/// question is refused and left as it was. {−1,0,1}^3 has no period 10
+/// (p ≤ 8 for n = 3, Lyons and Nussbaum 1992 [recalled]; p ≤ 12 by
+/// Lemmens and Scheutzow 2005) and has period 8 = 2^3 (the construction of
+/// `docs/math.md`).
+#[test]
+fn decide_runs_a_resumable_campaign_in_a_split_folder() {
+    let dir = TestDir::new();
+    let q = Q::cube(-1, 1, 3, 10);
+    let campaign = |q: &Q, extra: &[&str]| {
+        dir.orbitcnf()
+            .arg("decide")
+            .args(q.args())
+            .args(["--split-dir", "c", "--jobs", "2"])
+            .args(extra)
+            .run()
+    };
+    // A limit of 1 ns is over before the first block.
+    let stopped = campaign(&q, &["--cubes", "16", "--time-limit", "0.000000001"]);
+    stopped
+        .code(UNKNOWN)
+        .stdout_has("verdict      unknown: 0 of ")
+        .stdout_has("no block starts after the time limit")
+        .stdout_has("the same command goes on");
+    let v = campaign(&q, &["--time-limit", "0.000000001", "--json"]).json();
+    assert_eq!(v["verdict"], "unknown");
+    assert_eq!(v["finished"], 0);
+    let cubes = v["cubes"].as_u64().unwrap();
+    assert!(cubes >= 2, "{v}");
+    // Two cubes run by hand, as on another machine.
+    dir.orbitcnf()
+        .args(["run-cube", "c", "0..1", "-q"])
+        .run()
+        .code(0);
+    let by_hand = std::fs::read(dir.path("c/results/cube-0001.json")).unwrap();
+    campaign(&q, &["--time-limit", "0.000000001"])
+        .code(UNKNOWN)
+        .stdout_has(&format!(
+            "verdict      unknown: 2 of {cubes} cubes of the split c "
+        ));
+    // No limit: the rest is solved and the folder merged.
+    let done = campaign(&q, &["--cubes", "3", "--json", "--progress", "lines"]);
+    done.code(INFEASIBLE)
+        .stderr_has(&format!("taking up the split of {cubes} cubes begun in c"));
+    let v = done.json();
+    assert_eq!(v["verdict"], "infeasible");
+    assert_eq!(v["cubes"], cubes);
+    assert_eq!(v["taken_up"], true);
+    assert_eq!(v["certified"].as_array().unwrap().len() as u64, cubes);
+    assert_eq!(
+        std::fs::read(dir.path("c/results/cube-0001.json")).unwrap(),
+        by_hand,
+        "a cube with a final result is not solved again"
+    );
+    // `merge` of the folder checks it all again and agrees.
+    dir.orbitcnf()
+        .args(["merge", "c"])
+        .run()
+        .code(INFEASIBLE)
+        .stdout_has("verdict      INFEASIBLE");
+    // A feasible question: a checked orbit.
+    let q8 = Q::cube(-1, 1, 3, 8);
+    let run = dir
+        .orbitcnf()
+        .arg("decide")
+        .args(q8.args())
+        .args(["--split-dir", "c8", "--json"])
+        .run();
+    check_report(&dir, &q8, &run);
+    // The folder of p = 10 is not a folder for p = 9, and is left as it was.
+    let manifest = std::fs::read(dir.path("c/manifest.json")).unwrap();
+    campaign(&Q::cube(-1, 1, 3, 9), &[]).error_with(&["c", "another question"]);
+    assert_eq!(
+        std::fs::read(dir.path("c/manifest.json")).unwrap(),
+        manifest
+    );
+    // Options that do not fit a campaign are refused.
+    campaign(&q, &["--no-certify"]).error_with(&["checked"]);
+    campaign(&q, &["--proof", "x.lrat"]).error_with(&["--proof"]);
 }

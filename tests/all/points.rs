@@ -582,6 +582,16 @@ fn split_run_cube_and_merge_work_on_point_questions() {
     decide_points(&dir, &file, 4, &jobs)
         .code(INFEASIBLE)
         .stdout_has("accepted by orbitcnf's own checker");
+    // The same as one campaign in a folder: split, cubes, merge.
+    decide_points(&dir, &file, 3, &["--split-dir", "c3", "-q"])
+        .code(INFEASIBLE)
+        .stdout_has("all 3 cubes refuted")
+        .stdout_has("campaign     c3, written in this run");
+    let run = decide_points(&dir, &file, 2, &["--split-dir", "c2", "--json"]);
+    run.code(FEASIBLE);
+    let v = run.json();
+    assert_eq!(v["verdict"], "feasible");
+    assert!(v["map_check"].is_object(), "{v}");
 }
 
 #[test]

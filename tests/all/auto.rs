@@ -882,6 +882,14 @@ fn m2_n4_period_26_is_refuted_in_blocks_of_cubes() {
 #[test]
 #[ignore = "about 10 minutes on 2 cores and 0.7 GB of disk (a 60 s probe, then 33,348 whole-profile cubes in the store, some handed off to a CaDiCaL named by ORBITCNF_LRAT_CADICAL that writes LRAT); run on purpose"]
 fn m2_n4_period_26_is_refuted_by_spectrum_in_its_store() {
+    refuted_by_spectrum_in_its_store(&Q::cube(-2, 2, 4, 26), 33_348);
+}
+
+/// `spectrum` of `q`'s one period with a store, both threads and the
+/// hand-off to the CaDiCaL of [`LRAT_CADICAL`]: infeasible, in cubes, backed
+/// by the store's split folder of `cubes` cubes; a second sweep reuses the
+/// answer and `--recheck` merges the folder again.
+fn refuted_by_spectrum_in_its_store(q: &Q, cubes: u64) {
     let cadical = std::env::var(LRAT_CADICAL).unwrap_or_else(|_| {
         panic!("this check needs {LRAT_CADICAL}, the path of a CaDiCaL that writes LRAT (--lrat)")
     });
@@ -889,8 +897,18 @@ fn m2_n4_period_26_is_refuted_by_spectrum_in_its_store() {
     let sweep = |extra: &[&str]| {
         let run = dir
             .orbitcnf()
-            .args(["spectrum", "--dim", "4", "--grid=-2..2", "--periods", "26"])
-            .args(["--jobs", "2", "--store", "st", "--json"])
+            .args(["spectrum", "--dim", &q.dim().to_string()])
+            .arg(format!("--grid={}", q.spec()))
+            .args(["--periods", &q.period.to_string()])
+            .args([
+                "--jobs",
+                "2",
+                "--store",
+                "st",
+                "--json",
+                "--progress",
+                "lines",
+            ])
             .args(["--handoff", &format!("{cadical} -q --lrat")])
             .args(["--handoff-proof", "lrat"])
             .args(extra)
@@ -900,10 +918,11 @@ fn m2_n4_period_26_is_refuted_by_spectrum_in_its_store() {
     };
     let v = sweep(&[]);
     let row = &v["rows"][0];
+    assert_eq!(row["period"], q.period);
     assert_eq!(row["verdict"], "infeasible");
     assert_eq!(row["how"], "cubes");
     assert_eq!(row["answer"]["backing"], "checked-cubes");
-    assert_eq!(row["answer"]["cubes"]["cubes"], 33_348);
+    assert_eq!(row["answer"]["cubes"]["cubes"], cubes);
     let again = sweep(&["--recheck"]);
     assert_eq!(again["summary"]["reused"], 1);
     let cert = again["rows"][0]["certificate"].as_str().unwrap();

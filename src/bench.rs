@@ -13,7 +13,8 @@
 //! differs between encodings is reported as an error.
 //!
 //! [`run_spectrum`] times the whole spectrum of `{−1,0,1}^4` (`p = 1..32`)
-//! the way `orbitcnf spectrum` runs it, without a store, against its target.
+//! or `{−1,0,1}^5` (`p = 1..80`) the way `orbitcnf spectrum` runs it,
+//! without a store or with a new one, against its target.
 
 use std::time::Duration;
 
@@ -380,6 +381,43 @@ pub fn format_row(row: &Row) -> String {
 /// The wall-time target of the `{−1,0,1}^4` spectrum, in seconds.
 pub const SPECTRUM_TARGET_SECONDS: f64 = 900.0;
 
+/// The wall-time target of the `{−1,0,1}^5` spectrum on 2 cores, in
+/// seconds (two hours).
+pub const SPECTRUM5_TARGET_SECONDS: f64 = 7200.0;
+
+/// The target of the timed spectrum of `{−1,0,1}^dim`.
+///
+/// # Errors
+/// [`Error::Options`] for a dimension without a target (only 4 and 5 have one).
+pub fn spectrum_target(dim: usize) -> Result<f64> {
+    match dim {
+        4 => Ok(SPECTRUM_TARGET_SECONDS),
+        5 => Ok(SPECTRUM5_TARGET_SECONDS),
+        _ => Err(Error::Options(format!(
+            "the timed spectra are those of {{-1,0,1}}^4 and {{-1,0,1}}^5, not dimension {dim}"
+        ))),
+    }
+}
+
+/// How to run a timed spectrum.
+#[derive(Clone, Debug)]
+pub struct SpectrumBench {
+    /// The dimension n of `{−1,0,1}^n` (4 or 5).
+    pub dim: usize,
+    /// Worker threads.
+    pub jobs: usize,
+    /// Time limit per period.
+    pub limit: Duration,
+    /// A results store for the sweep: hard periods with more than 20,000
+    /// whole profiles are split inside it (the only way they can be
+    /// decided); answers already in it are reused, and then the run is not
+    /// a timing of them. `None`: no store.
+    pub store: Option<std::path::PathBuf>,
+    /// Cubes of hard periods that the bundled solver leaves open go to an
+    /// external solver.
+    pub handoff: Option<crate::split::jobs::CubeHandoff>,
+}
+
 /// The figures of one timed spectrum.
 #[derive(Clone, Debug, Serialize)]
 pub struct SpectrumFigures {
@@ -393,30 +431,44 @@ pub struct SpectrumFigures {
     pub seconds: f64,
     /// The target.
     pub target_seconds: f64,
-    /// Periods answered by construction, by the solver, and left unknown.
+    /// Periods answered by construction.
     pub by_construction: usize,
-    /// Periods answered by the solver (each infeasible one with a checked LRAT proof).
+    /// Periods answered by the solver in one solve or in cubes in memory
+    /// (each infeasible one with a checked LRAT proof).
     pub by_solver: usize,
+    /// Periods answered by a merged split folder in the store.
+    pub by_cubes: usize,
+    /// Periods answered by §9 (a refuted divisor, or a sub-orbit).
+    pub by_divisors: usize,
+    /// Answers reused from the store (not timed by this run).
+    pub reused: usize,
     /// Periods left unknown.
     pub unknown: usize,
-    /// Periods the solver answered "infeasible" without a checked proof (must be 0).
+    /// Periods answered "infeasible" without a checked certificate (must be 0).
     pub uncertified: usize,
-    /// The slowest solver period and its seconds.
+    /// The slowest period decided by solving, and its seconds.
     pub slowest: Option<(usize, f64)>,
 }
 
-/// Sweeps `{−1,0,1}^4` over `p = 1..32` with `jobs` workers and `limit` per
-/// period, without a store, and reports the figures.
+/// Sweeps `{−1,0,1}^n` over its default periods (`p = 1..32` for n = 4,
+/// `p = 1..80` for n = 5: up to the Lemmens–Scheutzow bound) as `orbitcnf
+/// spectrum` runs it, and reports the figures.
 ///
 /// # Errors
-/// Pipeline errors of the sweep.
-pub fn run_spectrum(jobs: usize, limit: Duration) -> Result<SpectrumFigures> {
-    let grid = Grid::parse("-1..1", Some(4)).expect("valid grid");
+/// [`Error::Options`] for a dimension without a target; pipeline errors of
+/// the sweep.
+pub fn run_spectrum(b: &SpectrumBench) -> Result<SpectrumFigures> {
+    let target_seconds = spectrum_target(b.dim)?;
+    let grid = Grid::parse("-1..1", Some(b.dim)).expect("valid grid");
     let shown = grid.to_string();
     let mut cfg = crate::spectrum::SweepConfig::new(grid);
-    cfg.jobs = jobs.max(1);
-    cfg.time_limit = Some(limit);
+    cfg.jobs = b.jobs.max(1);
+    cfg.time_limit = Some(b.limit);
     cfg.progress = ProgressMode::auto();
+    cfg.store = b.store.clone();
+    if let Some(split) = cfg.split.as_mut() {
+        split.handoff = b.handoff.clone();
+    }
     let start = std::time::Instant::now();
     let sp = crate::spectrum::run(&cfg)?;
     let seconds = start.elapsed().as_secs_f64();
@@ -427,14 +479,18 @@ pub fn run_spectrum(jobs: usize, limit: Duration) -> Result<SpectrumFigures> {
             r.verdict == Verdict::Infeasible
                 && !matches!(
                     r.answer.backing,
-                    crate::store::Backing::CheckedProof | crate::store::Backing::Divisor
+                    crate::store::Backing::CheckedProof
+                        | crate::store::Backing::Divisor
+                        | crate::store::Backing::CheckedCubes
                 )
         })
         .count();
     let slowest = sp
         .rows
         .iter()
-        .filter(|r| r.how == crate::store::How::Solver)
+        .filter(|r| {
+            !r.reused && matches!(r.how, crate::store::How::Solver | crate::store::How::Cubes)
+        })
         .map(|r| (r.period, r.seconds))
         .max_by(|a, b| a.1.total_cmp(&b.1));
     Ok(SpectrumFigures {
@@ -442,21 +498,28 @@ pub fn run_spectrum(jobs: usize, limit: Duration) -> Result<SpectrumFigures> {
         periods: crate::spectrum::ranges_words(&cfg.periods),
         jobs: cfg.jobs,
         seconds,
-        target_seconds: SPECTRUM_TARGET_SECONDS,
+        target_seconds,
         by_construction: sp.summary.by_construction,
         by_solver: sp.summary.by_solver,
+        by_cubes: sp.summary.by_cubes,
+        by_divisors: sp.summary.by_divisors,
+        reused: sp.summary.reused,
         unknown: sp.summary.unknown,
         uncertified,
         slowest,
     })
 }
 
-/// One line for [`SpectrumFigures`].
+/// One line for [`SpectrumFigures`]: `ok` only when every period is
+/// decided with a checked certificate, nothing was reused from a store,
+/// and the wall time is within the target.
 pub fn format_spectrum(f: &SpectrumFigures) -> String {
-    let decided = f.by_construction + f.by_solver;
-    let ok = f.unknown == 0 && f.uncertified == 0 && f.seconds <= f.target_seconds;
+    let decided = f.by_construction + f.by_solver + f.by_cubes + f.by_divisors;
+    let ok = f.unknown == 0 && f.uncertified == 0 && f.reused == 0 && f.seconds <= f.target_seconds;
     format!(
-        "spectrum {} p = {}, {} job(s): {:.1} s wall ({} {} s); {} decided ({} by construction, {} by the solver with checked proofs), {} unknown, {} uncertified{}",
+        "spectrum {} p = {}, {} job(s): {:.1} s wall ({} {} s); {} decided ({} by construction, \
+         {} by the solver with checked proofs, {} in split folders, {} by §9), {} unknown, \
+         {} uncertified{}{}",
         f.grid,
         f.periods,
         f.jobs,
@@ -466,8 +529,14 @@ pub fn format_spectrum(f: &SpectrumFigures) -> String {
         decided,
         f.by_construction,
         f.by_solver,
+        f.by_cubes,
+        f.by_divisors,
         f.unknown,
         f.uncertified,
+        match f.reused {
+            0 => String::new(),
+            n => format!("; {n} reused from the store, so not a timing of the whole spectrum"),
+        },
         f.slowest
             .map(|(p, s)| format!("; slowest p = {p} in {s:.1} s"))
             .unwrap_or_default()

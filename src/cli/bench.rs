@@ -1,4 +1,4 @@
-//! `bench`: the fixed benchmark set, or the timed {-1,0,1}^4 spectrum.
+//! `bench`: the fixed benchmark set, or the timed spectrum of {-1,0,1}^4 or {-1,0,1}^5.
 
 use std::time::Duration;
 
@@ -36,9 +36,37 @@ pub struct BenchArgs {
     json: bool,
     /// Instead of the cases: time the whole spectrum of {-1,0,1}^4
     /// (p = 1..32, every answer certified) with --jobs workers, against its
-    /// 15-minute target.
+    /// 15-minute target; with --dim 5, of {-1,0,1}^5 (p = 1..80) against
+    /// its 2-hour target. --time-limit applies to each period.
     #[arg(long)]
     spectrum: bool,
+    /// With --spectrum: the dimension n of {-1,0,1}^n, 4 (default) or 5.
+    #[arg(long, value_name = "N", requires = "spectrum", default_value = "4")]
+    dim: usize,
+    /// With --spectrum: a results store, in which hard periods with more
+    /// than 20,000 whole profiles are split and solved (as `spectrum --store`
+    /// does; without a store they get one solve). Give a new folder: answers
+    /// already in it are reused, and the line then says the run is not a
+    /// timing of the whole spectrum.
+    #[arg(long, value_name = "DIR", requires = "spectrum")]
+    store: Option<std::path::PathBuf>,
+    /// With --spectrum: hand cubes of hard periods that the bundled solver
+    /// leaves open for --handoff-after seconds to COMMAND, as `spectrum
+    /// --handoff` does (e.g. 'cadical -q --lrat' with --handoff-proof lrat).
+    #[arg(long, value_name = "COMMAND", requires = "spectrum")]
+    handoff: Option<String>,
+    /// With --handoff: seconds of the bundled solver first.
+    #[arg(long, value_name = "SECS", value_parser = parse_seconds, requires = "handoff", default_value = "10")]
+    handoff_after: Duration,
+    /// With --handoff: the proof COMMAND writes, `drat` (converted by
+    /// `rate`) or `lrat`.
+    #[arg(
+        long,
+        value_name = "FORMAT",
+        requires = "handoff",
+        default_value = "drat"
+    )]
+    handoff_proof: orbitcnf::solve::external::ProofFormat,
     /// Worker threads for --spectrum (default: the number of cores).
     #[arg(long, value_name = "N")]
     jobs: Option<usize>,
@@ -78,7 +106,20 @@ pub fn run(a: BenchArgs) -> Outcome {
     }
     if a.spectrum {
         let jobs = a.jobs.unwrap_or_else(orbitcnf::pool::default_jobs);
-        let f = bench::run_spectrum(jobs, limit)?;
+        let f = bench::run_spectrum(&bench::SpectrumBench {
+            dim: a.dim,
+            jobs,
+            limit,
+            store: a.store.clone(),
+            handoff: match &a.handoff {
+                Some(command) => Some(super::sweep::cube_handoff(
+                    command,
+                    a.handoff_after,
+                    a.handoff_proof,
+                )?),
+                None => None,
+            },
+        })?;
         print_either(
             a.json,
             || serde_json::to_string(&f).expect("serialises"),

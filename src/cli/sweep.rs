@@ -230,6 +230,30 @@ pub struct SpectrumArgs {
     no_auto_split: bool,
 }
 
+/// The hand-off of a sweep's cubes to `command`, run as `COMMAND CNF PROOF`
+/// with a proof in `format`, after `after` of the bundled solver.
+///
+/// # Errors
+/// As [`External::parse`].
+pub fn cube_handoff(
+    command: &str,
+    after: Duration,
+    format: ProofFormat,
+) -> Result<CubeHandoff, Error> {
+    Ok(CubeHandoff {
+        solver: External {
+            proof: Some(ProofRequest {
+                args: vec!["{}".into()],
+                format,
+                keep_lrat: None,
+                keep_raw: None,
+            }),
+            ..External::parse(command)?
+        },
+        after,
+    })
+}
+
 /// Runs `spectrum`.
 pub fn run(a: SpectrumArgs) -> Outcome {
     if let Some(n) = a.domain.real_dim()? {
@@ -265,18 +289,7 @@ pub fn run(a: SpectrumArgs) -> Outcome {
         Some(SweepSplit {
             probe: a.probe.unwrap_or(DEFAULT_PROBE),
             handoff: match &a.handoff {
-                Some(command) => Some(CubeHandoff {
-                    solver: External {
-                        proof: Some(ProofRequest {
-                            args: vec!["{}".into()],
-                            format: a.handoff_proof,
-                            keep_lrat: None,
-                            keep_raw: None,
-                        }),
-                        ..External::parse(command)?
-                    },
-                    after: a.handoff_after,
-                }),
+                Some(command) => Some(cube_handoff(command, a.handoff_after, a.handoff_proof)?),
                 None => None,
             },
             store_split_above: a.split_above.unwrap_or(FULL_PROFILE_CAP),

@@ -1143,7 +1143,8 @@ fn check_refuses_bad_orbit_files() {
         .error_with(&["40401 points", "limited to"]);
 }
 
-/// `bench --spectrum` sweeps {−1,0,1}^4 and reports its figures: p ≤ 16 by
+/// `bench --spectrum` sweeps {−1,0,1}^4 (here into a store, which a second
+/// run reuses and then says it is no timing) and reports its figures: p ≤ 16 by
 /// construction (every p ≤ 2^n occurs, docs/math.md §5), the other 16 periods by
 /// the solver with checked proofs, nothing unknown or uncertified. Among
 /// those 16, the primes 17, 19, 23, 29, 31 are excluded by the prime-period
@@ -1153,7 +1154,15 @@ fn bench_spectrum_reports_the_ternary_four_cube() {
     let dir = TestDir::new();
     let run = dir
         .orbitcnf()
-        .args(["bench", "--spectrum", "--jobs", "2", "--json"])
+        .args([
+            "bench",
+            "--spectrum",
+            "--jobs",
+            "2",
+            "--json",
+            "--store",
+            "st",
+        ])
         .run();
     run.code(0);
     let v: Value = serde_json::from_str(run.stdout.trim())
@@ -1161,9 +1170,28 @@ fn bench_spectrum_reports_the_ternary_four_cube() {
     assert_eq!(v["grid"], "{-1,0,1}^4", "{v}");
     assert_eq!(v["by_construction"], 16, "{v}");
     assert_eq!(v["by_solver"], 16, "{v}");
+    assert_eq!(v["by_cubes"], 0, "{v}");
+    assert_eq!(v["reused"], 0, "{v}");
     assert_eq!(v["unknown"], 0, "{v}");
     assert_eq!(v["uncertified"], 0, "{v}");
+    assert_eq!(v["target_seconds"], 900.0, "{v}");
     assert!(v["seconds"].as_f64().is_some_and(|s| s > 0.0), "{v}");
+    // The same store again: every answer reused, which is no timing.
+    dir.orbitcnf()
+        .args(["bench", "--spectrum", "--jobs", "2", "--store", "st"])
+        .run()
+        .code(0)
+        .stdout_has("(MISS 900 s); 32 decided (16 by construction, 16 by the solver")
+        .stdout_has("; 32 reused from the store, so not a timing of the whole spectrum");
+    // Only {−1,0,1}^4 and {−1,0,1}^5 have a target.
+    dir.orbitcnf()
+        .args(["bench", "--spectrum", "--dim", "3"])
+        .run()
+        .error_with(&["{-1,0,1}^4 and {-1,0,1}^5", "not dimension 3"]);
+    dir.orbitcnf()
+        .args(["bench", "--dim", "5"])
+        .run()
+        .error_with(&["--spectrum"]);
 }
 
 /// `encode --progress lines` reports the long walks inside encoding: on

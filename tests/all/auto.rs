@@ -506,6 +506,21 @@ fn m1_n5_period_48_is_refuted_in_blocks_of_cubes() {
     );
 }
 
+/// {-1,0,1}^5, p = 54, refuted by computation on 2026-12-05
+/// (docs/campaigns.md; README, "What is proven and what is open") by
+/// `spectrum` alone: more than 20,000 whole profiles, so after its probe the
+/// sweep split the period into 832,605 whole-profile cubes in its store and
+/// solved them in blocks on both threads (about 1 h 46 min of blocks over
+/// three runs, 7,692 s of solving; 12 handed off after 10 s to a CaDiCaL
+/// that writes LRAT, the longest 223 s), then merged the folder (11 min
+/// 30 s). Nothing published settles it; the expectation is orbitcnf's own
+/// certified answer.
+#[test]
+#[ignore = "about 2 hours on 2 cores and 33 GB of disk with zstd proofs (832,605 whole-profile cubes in the store, 12 handed off to a CaDiCaL named by ORBITCNF_LRAT_CADICAL that writes LRAT), then a merge of about 12 minutes and the same again for --recheck; run on purpose"]
+fn m1_n5_period_54_is_refuted_by_spectrum_in_its_store() {
+    refuted_by_spectrum_in_its_store(&Q::cube(-1, 1, 5, 54), 832_605);
+}
+
 /// {-1,0,1}^5, p = 52, refuted by computation on 2026-12-05
 /// (docs/campaigns.md; README, "What is proven and what is open"): 86,870
 /// whole-profile cubes (`split --cubes 200000`). About 40 minutes of cubes

@@ -61,8 +61,8 @@ How each period is answered, cheapest first:
                 and the answer is backed by it. A run stopped by --time-limit
                 (no block starts after it) or killed keeps every cube result:
                 its unknown says how far it got, and the next run goes on from
-                there at once (no probe; the folder as it is while its files
-                are intact). Cubes can also be run elsewhere meanwhile
+                there at once (no probe; the folder as it is while its
+                formula and files are intact). Cubes can also be run elsewhere meanwhile
                 (orbitcnf run-cube DIR/splits/<key> A..B). Without a store:
                 one solve (decide --split-dir DIR runs one question this way)
 

@@ -21,10 +21,11 @@
 //! it; a kill at any moment) keeps every cube result written so far, and
 //! stores an *unknown* answer that says how far it got. Such an unknown is
 //! always retried, and a period whose split is begun in the store goes
-//! there at once ([`begun`]): no probe, no encoding, and no rewrite of a
-//! folder whose files are intact (on the 832,605 cubes of {−1,0,1}^5,
-//! p = 54, the take-up went from some 6.5 minutes, the probe with its
-//! encoding and the rewrite, to 9 s).
+//! there at once ([`begun`]): no probe, and no rewrite of a folder whose
+//! formula is still what this orbitcnf writes and whose files are intact
+//! (on the 832,605 cubes of {−1,0,1}^5, p = 54, the take-up went from some
+//! 6.5 minutes, the probe, its encoding and the rewrite, to 69 s, the
+//! encoding and the checks).
 //! The campaign keeps the folder's cube count and its results; cubes run by
 //! hand or on a cluster meanwhile (`run-cube STORE/splits/<key> A..B`)
 //! count as the sweep's own, since `merge` checks them all.

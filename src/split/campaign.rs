@@ -10,13 +10,14 @@
 //!
 //! * A folder that holds a split of the same question is **taken up**: its
 //!   cube count is kept whatever this run asks (its results are the work
-//!   done so far), and when every file its manifest lists is there with its
-//!   digest ([`super::SplitManifest::check_files`]) it is used as it is, with
-//!   no encoding and no rewrite (on the 832,605 cubes of {−1,0,1}^5,
-//!   p = 54, 9 s of reading and hashing instead of 4.5 minutes of writing
-//!   it again). A folder with a missing or
-//!   changed file is written again from a fresh encoding; a folder of
-//!   another question is an error.
+//!   done so far), and when its formula is the one a fresh encoding gives
+//!   and every file its manifest lists is there with its digest
+//!   ([`super::SplitManifest::check_files`]) it is used as it is, without
+//!   writing it again (on the 832,605 cubes of {−1,0,1}^5, p = 54, the
+//!   encoding, about a minute, and seconds of hashing, where writing it
+//!   again and checking its coverage proof took 4.5 minutes more). A
+//!   folder with a missing or changed file, or the formula of an earlier
+//!   encoding, is written again; a folder of another question is an error.
 //! * Cubes with a final result (solved by an earlier run, or by hand with
 //!   `run-cube`, or on a cluster) are not solved again.
 //! * The time limit is checked before each block: no block starts after
@@ -36,6 +37,8 @@ use super::layout::{LayoutChoice, SplitLayout};
 use super::range::{BlockPlan, CubeEvent, RangeOptions, run_blocks, run_range};
 use super::run::{CubeStatus, MergeReport, RunOutcome, merge, pending_indices};
 use super::{RESULTS_DIR, SplitManifest, index_ranges, write_split_encoded};
+use crate::artifact::sha256_hex;
+use crate::dimacs::render_cnf;
 use crate::encode::{EncodeOptions, Encoding, encode};
 use crate::error::Result;
 use crate::progress::{Progress, ProgressMode, duration_words, threads_words};
@@ -158,14 +161,14 @@ struct Tally {
 }
 
 /// Runs the campaign of `q` in `dir` (see the module docs); `enc` is `q`'s
-/// encoding under `o.options` when the caller has made it (it is made here
-/// only when the split must be written).
+/// encoding under `o.options` when the caller has made it (made here
+/// otherwise).
 ///
 /// # Errors
 /// [`crate::error::Error::Options`] for no threads; a folder holding a
 /// split of another question (before any work), or of other options or
-/// layout; [`crate::error::Error::TooLarge`] when the split must be
-/// encoded and the formula is over `o.max_clauses`; errors writing the
+/// layout; [`crate::error::Error::TooLarge`] when the formula is over
+/// `o.max_clauses`; errors writing the
 /// split, of the blocks that are not one cube's own, and of the merge.
 pub fn run_campaign(
     dir: &Path,
@@ -207,9 +210,23 @@ pub fn run_campaign(
             dir.display()
         ),
     });
-    let resolved = o.options.resolve(q);
+    // The folder is used as it is only when its formula is the one this
+    // orbitcnf writes for the question now (an earlier version may have
+    // encoded it otherwise, and the merge would then refuse the folder on
+    // every later run) and every file it lists is intact; otherwise
+    // `write_split` writes it again, and cube results of another formula
+    // no longer match their cubes' digests and are solved again.
+    let fresh;
+    let enc = match enc {
+        Some(enc) => enc,
+        None => {
+            fresh = encode(q, &o.options, o.max_clauses)?;
+            &fresh
+        }
+    };
     let kept = earlier.filter(|m| {
-        m.options == resolved
+        m.options == enc.options
+            && m.formula.sha256 == sha256_hex(&render_cnf(enc))
             && m.check_files(dir).is_ok()
             && std::fs::create_dir_all(dir.join(RESULTS_DIR)).is_ok()
     });
@@ -217,14 +234,6 @@ pub fn run_campaign(
     let manifest = match kept {
         Some(m) => m,
         None => {
-            let fresh;
-            let enc = match enc {
-                Some(enc) => enc,
-                None => {
-                    fresh = encode(q, &o.options, o.max_clauses)?;
-                    &fresh
-                }
-            };
             write_split_encoded(
                 dir,
                 q,

@@ -1147,6 +1147,18 @@ fn decide_runs_a_resumable_campaign_in_a_split_folder() {
         .stdout_has(&format!(
             "verdict      unknown: 2 of {cubes} cubes of the split c "
         ));
+    // A formula.cnf that is not what this orbitcnf writes for the question
+    // (as from an earlier version), with a manifest that lists it as it
+    // is: the take-up writes the formula again instead of solving against
+    // it (the merge would refuse it on every later run).
+    let formula = std::fs::read(dir.path("c/formula.cnf")).unwrap();
+    let mut stale = formula.clone();
+    stale.extend_from_slice(b"c written by another version\n");
+    std::fs::write(dir.path("c/formula.cnf"), &stale).unwrap();
+    let mut manifest: Value = serde_json::from_str(&dir.read("c/manifest.json")).unwrap();
+    manifest["formula"]["sha256"] = orbitcnf::artifact::sha256_hex(&stale).into();
+    manifest["formula"]["bytes"] = stale.len().into();
+    dir.write("c/manifest.json", manifest.to_string());
     // No limit: the rest is solved and the folder merged.
     let done = campaign(&q, &["--cubes", "3", "--json", "--progress", "lines"]);
     done.code(INFEASIBLE)
@@ -1160,6 +1172,11 @@ fn decide_runs_a_resumable_campaign_in_a_split_folder() {
         std::fs::read(dir.path("c/results/cube-0001.json")).unwrap(),
         by_hand,
         "a cube with a final result is not solved again"
+    );
+    assert_eq!(
+        std::fs::read(dir.path("c/formula.cnf")).unwrap(),
+        formula,
+        "the stale formula was written again"
     );
     // `merge` of the folder checks it all again and agrees.
     dir.orbitcnf()

@@ -68,8 +68,8 @@ use crate::artifact::write_atomically;
 use crate::cnf::{Cnf, FamilyCount, Lit};
 use crate::dimacs::{VERSION, render_cnf};
 use crate::encode::{
-    EncodeOptions, Encoding, Formulation, bicliques, classes, encode, fullmap, gaps, profile,
-    subbox, symmetry,
+    EncodeOptions, Encoding, Formulation, bicliques, classes, cliques, encode, fullmap, gaps,
+    profile, subbox, symmetry,
 };
 use crate::error::{Error, Result};
 use crate::question::Question;
@@ -188,6 +188,7 @@ pub const PROFILE_EXCLUSION_FAMILIES: &[&str] = &[
     classes::FAMILY_NESTED,
     gaps::FAMILY,
     bicliques::FAMILY,
+    cliques::FAMILY,
     subbox::FAMILY,
 ];
 
@@ -519,6 +520,7 @@ pub fn coverage_sources(enc: &Encoding) -> Vec<usize> {
             classes::FAMILY_NESTED,
             gaps::FAMILY,
             bicliques::FAMILY,
+            cliques::FAMILY,
             subbox::FAMILY,
         ]
     };
@@ -867,6 +869,18 @@ mod tests {
         encode(&q, &EncodeOptions::default(), u64::MAX).unwrap()
     }
 
+    /// [`enc`] without `window-cliques`, which on these small boxes leaves
+    /// no profile at all (p = 5 on {−1,0,1}^2, p = 17 on {−1,0,1}^4), where
+    /// a test needs cubes to split.
+    fn enc_without_cliques(spec: &str, dim: usize, p: usize) -> Encoding {
+        let q = Question::new(Grid::parse(spec, Some(dim)).unwrap(), p).unwrap();
+        let o = EncodeOptions {
+            cliques: false,
+            ..EncodeOptions::default()
+        };
+        encode(&q, &o, u64::MAX).unwrap()
+    }
+
     #[test]
     fn blocks_cover_the_range_once_the_highest_first() {
         assert_eq!(
@@ -897,7 +911,7 @@ mod tests {
         assert!(prefix_survives(&[1, 2], &maps, 2));
         assert!(prefix_survives(&[2], &maps, 2));
         assert!(!prefix_survives(&[2, 1], &maps, 2));
-        let e = enc("-1..1", 2, 5);
+        let e = enc_without_cliques("-1..1", 2, 5);
         let cubes = profile_cubes(&e, 10).unwrap();
         let prefixes: Vec<Vec<i64>> = cubes.iter().map(|c| c.prefix.clone()).collect();
         // (1, 1), five points pairwise at distance 1, falsifies a
@@ -907,7 +921,7 @@ mod tests {
 
     #[test]
     fn refinement_stops_at_the_requested_count() {
-        let e = enc("-1..1", 4, 17);
+        let e = enc_without_cliques("-1..1", 4, 17);
         for target in [1, 2, 5, 8, 12, 30] {
             let cubes = profile_cubes(&e, target).unwrap();
             // Only 14 whole profiles survive (below), so 30 is out of reach:
@@ -930,6 +944,7 @@ mod tests {
                 nested: false,
                 subbox: false,
                 bicliques: false,
+                cliques: false,
                 ..EncodeOptions::default()
             },
             u64::MAX,
@@ -1001,7 +1016,7 @@ mod tests {
     fn cube_proofs_lift_to_one_proof_of_the_formula() {
         use crate::proof::lift::{assemble, lift_cube};
         use crate::proof::{LratFormat, LratOptions, check_lrat_with};
-        let e = enc("-1..1", 2, 5);
+        let e = enc_without_cliques("-1..1", 2, 5);
         let cubes = profile_cubes(&e, 3).unwrap();
         let cov = coverage_cnf(&e, &cubes);
         let cov_proof = refute_coverage(&e, &cov).unwrap();

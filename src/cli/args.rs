@@ -237,6 +237,14 @@ pub struct EncodingArgs {
     /// biclique-cover.
     #[arg(long)]
     pub no_bicliques: bool,
+    /// Leave out the window-clique exclusions (on where the biclique-cover
+    /// exclusions can act): every clique of pairs closer than the diameter
+    /// lies in one of the 2^r windows (the box with one end of each such
+    /// coordinate dropped), and distinct maximal cliques need distinct
+    /// windows, so 2^r + 1 of them rule the pattern out; see
+    /// encodings/redundant.md, window-cliques.
+    #[arg(long)]
+    pub no_window_cliques: bool,
     /// Leave out the sub-box exclusions (on by default on boxes whose
     /// diameter L is 3 or more): a cycle with every distance at most m < L
     /// fits in a box of side m, so the profile exclusions of that smaller
@@ -312,6 +320,7 @@ impl EncodingArgs {
             classes: !self.no_classes,
             nested: !self.no_nested,
             bicliques: !self.no_bicliques,
+            cliques: !self.no_window_cliques,
             subbox: !self.no_subbox,
             gaps: !self.no_gaps,
             reverse_ladder: !self.no_reverse_ladder,

@@ -13,8 +13,8 @@ use std::cell::OnceCell;
 
 use super::family::{Family, always};
 use super::{
-    bicliques, classes, coords, count, distance, edges, gaps, packing, points, profile, subbox,
-    symmetry, topical,
+    bicliques, classes, cliques, coords, count, distance, edges, gaps, packing, points, profile,
+    subbox, symmetry, topical,
 };
 use crate::question::Question;
 
@@ -31,6 +31,9 @@ pub struct Cycle {
     /// exclusions: unless the profile takes two values and the multiplier
     /// break is on (see [`bicliques`]).
     bicliques_images: bool,
+    /// What the walk of the top patterns searches for: fooling sets when
+    /// `biclique-cover` is on, incompatible cliques when `window-cliques` is.
+    walk: bicliques::WalkTests,
     subbox: OnceCell<Vec<Vec<profile::ProfileLit>>>,
     gaps: OnceCell<Vec<gaps::Gap>>,
     /// What `sub-box` carries over from the sub-boxes.
@@ -42,6 +45,10 @@ impl Cycle {
     pub fn new(q: &Question, o: &super::EncodeOptions) -> Cycle {
         Cycle {
             bicliques_images: !(q.grid.diameter() == 2 && o.symmetry.multiplier),
+            walk: bicliques::WalkTests {
+                fooling: o.bicliques,
+                cliques: o.cliques,
+            },
             q: q.clone(),
             stabilizer: OnceCell::new(),
             ruled_out: OnceCell::new(),
@@ -72,11 +79,12 @@ impl Cycle {
         self.ruled_out.get_or_init(|| classes::ruled_out(&self.q))
     }
 
-    /// The top patterns `biclique-cover` excludes ([`bicliques::ruled_out`]),
-    /// with their multiplier images where they are needed.
+    /// The top patterns `biclique-cover` and `window-cliques` exclude
+    /// ([`bicliques::ruled_out`], one walk for both), with their multiplier
+    /// images where they are needed.
     pub fn bicliques(&self) -> &[bicliques::Exclusion] {
         self.bicliques
-            .get_or_init(|| bicliques::ruled_out(&self.q, self.bicliques_images))
+            .get_or_init(|| bicliques::ruled_out(&self.q, self.bicliques_images, self.walk))
     }
 }
 
@@ -217,8 +225,15 @@ pub static ISOMETRIC_CYCLE: &[Family<Cycle>] = &[
         name: bicliques::FAMILY,
         applies: |_, o| o.bicliques,
         searched: true,
-        size: |x| bicliques::size(x.bicliques()),
-        add: |e, x| bicliques::add(e, &x.q, x.bicliques()),
+        size: |x| bicliques::size(x.bicliques(), bicliques::Found::FoolingSet),
+        add: |e, x| bicliques::add(e, &x.q, x.bicliques(), bicliques::Found::FoolingSet),
+    },
+    Family {
+        name: cliques::FAMILY,
+        applies: |_, o| o.cliques,
+        searched: true,
+        size: |x| bicliques::size(x.bicliques(), bicliques::Found::WindowCliques),
+        add: |e, x| bicliques::add(e, &x.q, x.bicliques(), bicliques::Found::WindowCliques),
     },
     Family {
         name: subbox::FAMILY,

@@ -58,6 +58,7 @@
 
 pub mod bicliques;
 pub mod classes;
+pub mod cliques;
 pub mod coords;
 pub mod count;
 pub mod cycle;

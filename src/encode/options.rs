@@ -169,6 +169,13 @@ pub struct EncodeOptions {
     /// what they hold.
     #[serde(default, skip_serializing_if = "is_false")]
     pub bicliques: bool,
+    /// The exclusions of top patterns whose close graph has more pairwise
+    /// incompatible cliques than the box has windows below the diameter
+    /// ([`super::cliques`], family `window-cliques`). It shares the walk of
+    /// `biclique-cover`, so [`EncodeOptions::resolve`] switches it off
+    /// where that family cannot act, and a header records it only when on.
+    #[serde(default, skip_serializing_if = "is_false")]
+    pub cliques: bool,
     /// The profile exclusions of the sub-boxes, carried to profiles that
     /// stay below the diameter ([`super::subbox`], family `sub-box`).
     /// [`EncodeOptions::resolve`] switches them off on boxes of diameter
@@ -238,6 +245,7 @@ impl Default for EncodeOptions {
             classes: true,
             nested: true,
             bicliques: true,
+            cliques: true,
             subbox: true,
             gaps: true,
             reverse_ladder: true,
@@ -257,6 +265,7 @@ impl EncodeOptions {
             classes: false,
             nested: false,
             bicliques: false,
+            cliques: false,
             subbox: false,
             gaps: false,
             reverse_ladder: false,
@@ -292,6 +301,7 @@ impl EncodeOptions {
             o.classes = false;
             o.nested = false;
             o.bicliques = false;
+            o.cliques = false;
             o.subbox = false;
             o.gaps = false;
             o.symmetry.reverse = false;
@@ -330,6 +340,7 @@ impl EncodeOptions {
         }
         if !super::bicliques::applies_to(q) {
             o.bicliques = false;
+            o.cliques = false;
         }
         if !super::subbox::applies_to(q) {
             o.subbox = false;

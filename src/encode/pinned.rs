@@ -61,6 +61,14 @@ fn cases() -> Vec<(&'static str, Question, EncodeOptions)> {
             },
         ),
         (
+            "4cube-17-no-window-cliques",
+            boxed("-1..1", 4, 17),
+            EncodeOptions {
+                cliques: false,
+                ..EncodeOptions::default()
+            },
+        ),
+        (
             "4cube-18-default",
             boxed("-1..1", 4, 18),
             EncodeOptions::default(),
@@ -137,38 +145,43 @@ fn rendered_cnf_bytes_are_unchanged() {
         // bytes are those of before.
         (
             "4cube-17-default",
-            "121f821a2317da84be47bb9c9f5877778a882140914120f91934d24566de4569",
+            "100f05d4bdab8e592bed29b33880c4474ac55b62eadb2c4671ae2585474c25c8",
         ),
         (
             "4cube-17-no-bicliques",
-            "f52284ecc2a1f369ee3894c437495184e3e2edac9dade1f520b95fb1d1cea441",
+            "ca0f8d65f88429d494da72e4c5e93eb8c90003ccd8d5a1f318f010698d1e08cc",
+        ),
+        // With window-cliques off, the bytes of before the family.
+        (
+            "4cube-17-no-window-cliques",
+            "121f821a2317da84be47bb9c9f5877778a882140914120f91934d24566de4569",
         ),
         (
             "4cube-18-default",
-            "e13dc6239ab23ffcd4cd1f8aad21e384682f2992c0bd6ec5122eccf9a5b9efc2",
+            "70ddc09c3f36a2ff2e503aa033c2c70d2cd34a2c28a8049098ca7c17dcd4b05f",
         ),
         // The bytes of this box before `pack-nested` existed: with the
         // family off the CNF is unchanged, header included.
         (
             "mixed-7-no-nested",
-            "d23ec4ffdfee559290e901062536e418aed09599ecefd8cf70058cfaceb8b40e",
+            "ab2019d5d789b8cafcd128f838510e0d28e7573cb2be8d0d2c1757d5cae24e01",
         ),
         // Recorded when `pack-nested` was added (its option in the header,
         // its clauses after `pack-classes`), then again when
         // `biclique-cover` was; the default until `sub-box`.
         (
             "mixed-7-no-sub-box",
-            "f72156c569be2d497aab0dfa2210d0a5108e55177a525c1be558a266b6003aca",
+            "2d7a83bd438b0851001b784d5e8962ccbe486b87870e98f86b823373299af649",
         ),
         // Recorded when `sub-box` was added (its option in the header, its
         // clauses after `biclique-cover`).
         (
             "mixed-7-default",
-            "29a523b1c5eeb4fabde5f887dc39f04256a74603de8cbef206f20638cd54b25c",
+            "6ec5a1420a951337ec5cac4b24b48d437078e3b5423d0aca2f3d9508ad0c95a1",
         ),
         (
             "square-5-stabilizer",
-            "5a93ff4e259da394acbb872b1726d40f00958e3b34fdbaa6b75da0ef5f186156",
+            "9ef48e4a4b991039e50d3ff4de1b80f0a5cb5ea686d60924494fc96bda60f69e",
         ),
         (
             "point-1",
@@ -229,34 +242,39 @@ fn store_keys_are_unchanged() {
         // without it, the keys of before.
         (
             "4cube-17-default",
-            "c5294c4d652fe004569a4f954a3c0234288c0d5fb4dc57dd67a8667a01239c24",
+            "b50efb303a429744ab2ab7a9f98541655ba1e5ddc1c4c3d14004cfdd56b881f6",
         ),
         (
             "4cube-17-no-bicliques",
-            "8333e3a6ff4f51d9be67e03f46f4ebedc118173ea96be741936a1d94edb199f4",
+            "566214fb391fea76c9dc677d026c3830fb908b11639623db33febc3b36c1f814",
+        ),
+        // With window-cliques off, the bytes of before the family.
+        (
+            "4cube-17-no-window-cliques",
+            "c5294c4d652fe004569a4f954a3c0234288c0d5fb4dc57dd67a8667a01239c24",
         ),
         (
             "4cube-18-default",
-            "9f39444d48b37c4cdeea12f41cd7eb38a028dd54be28d707f2789ca2aaaf0441",
+            "75e747fea08bf1adf0695446d57c041d54acf7dc930eac993d621f65b7507077",
         ),
         (
             "mixed-7-no-nested",
-            "b5bebe3ac86dd11f932efdebf020658981b2ca4536dbdd4854c873738daf4088",
+            "fe9db78283821a1fb4f1d459e7403e1a1c21478f282f999366cbb38a49612999",
         ),
         // A new key: the option is recorded, so stored answers of the
         // formula without the family are not taken for this one (first
         // `pack-nested`, then `sub-box`).
         (
             "mixed-7-no-sub-box",
-            "677c44f8e2601b659771d723248af0f89ab750b5f2f82f70d362c6ff1f17c681",
+            "58c223e12ba744e8e6e215c8a3d7d3501a511795e151f9637a9ba9e06da3fd26",
         ),
         (
             "mixed-7-default",
-            "0d40d65f2b213faf8cbfd89cb3e0142a07f37e2192d6fe230a024e4b6f582d71",
+            "b0ae8bc1e8ea298a9a4a2f5263636ff81443e3a6e135645ff2871fbb3b3391da",
         ),
         (
             "square-5-stabilizer",
-            "bc6ce91abe407ea806c88a23db3cf26d804c6110d0f9b7f6810df64632a47401",
+            "69cd1aa4700770763a6c612f34bcbc999e1d85b2eb7f0344b90f4b17e970663f",
         ),
         (
             "point-1",

@@ -66,6 +66,7 @@ fn all_combinations() -> Vec<EncodeOptions> {
                     classes,
                     nested: classes,
                     bicliques: classes,
+                    cliques: classes,
                     subbox: classes,
                     gaps: classes,
                     ..EncodeOptions::default()

@@ -140,7 +140,7 @@ pub fn ruled_out(q: &Question, carried: Carried) -> Vec<Vec<ProfileLit>> {
             }
             if carried.bicliques && bicliques::applies_to(&qm) {
                 let images = !(m == 2 && carried.multiplier);
-                for x in bicliques::ruled_out(&qm, images) {
+                for x in bicliques::ruled_out(&qm, images, bicliques::WalkTests::FOOLING) {
                     inner.push(bicliques::clause(m as i64, &x));
                 }
             }

@@ -80,6 +80,7 @@ pub(crate) fn variations(
             classes,
             nested: classes,
             bicliques: classes,
+            cliques: classes,
             subbox: classes,
             gaps: classes,
             ..base.clone()
@@ -458,8 +459,9 @@ fn an_oversized_question_is_refused_before_the_window_searches() {
         closed.nested,
         closed.gaps,
         closed.bicliques,
+        closed.cliques,
         closed.subbox,
-    ) = (false, false, false, false, false);
+    ) = (false, false, false, false, false, false);
     // `pack-edges` is closed-form but switched with `pack-classes`.
     let without: u64 = estimate(&question, &closed).iter().map(|f| f.clauses).sum();
     assert_eq!(clauses, without + edges::size(&question).clauses);

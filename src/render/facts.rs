@@ -576,6 +576,11 @@ fn option_flags(options: Option<&Value>, on_points: bool, wide: bool, cover: boo
     if cover && cycle && o.get("bicliques").and_then(Value::as_bool) != Some(true) {
         f.push("--no-bicliques".into());
     }
+    // `window-cliques` acts where `biclique-cover` can; a formula written
+    // before it existed (no entry) is reproduced without it.
+    if cover && cycle && o.get("cliques").and_then(Value::as_bool) != Some(true) {
+        f.push("--no-window-cliques".into());
+    }
     let full_map = formulation.is_some_and(|s| s.starts_with("full-map"));
     if full_map && !on_points {
         f.push("--formulation".into());

@@ -329,6 +329,20 @@ pub fn decide_auto_encoded(
         full_profile_count(enc, FULL_PROFILE_CAP)
     };
     let whole_profiles = full_map || count.is_some();
+    if count == Some(0) {
+        // The profile exclusions leave no profile at all: the formula's
+        // profile clauses alone are contradictory, which one solve finds at
+        // once, and there is nothing to split.
+        Progress::new(limits.progress).event(|| {
+            "decide: no lex-leader profile survives the profile exclusions; one solve, no cubes"
+                .to_string()
+        });
+        let limits = Limits {
+            conflicts: Some(conflicts),
+            ..limits.clone()
+        };
+        return decide_encoded(q, options, enc, encode_seconds, backend, &limits);
+    }
     if !whole_profiles {
         Progress::new(limits.progress).event(|| {
             format!(
@@ -443,6 +457,7 @@ mod tests {
             classes: false,
             nested: false,
             bicliques: false,
+            cliques: false,
             subbox: false,
             ..EncodeOptions::default()
         };
@@ -512,20 +527,22 @@ mod tests {
         let small = choose_cubes(&enc("-1..1", 4, 17)).unwrap();
         assert_eq!(small.rule, "full-profile");
         // {−1,0,1}^5, p = 34: 16,460 lex-leaders; the profile exclusions
-        // (`biclique-cover` above all) leave 1,783 of them, one cube each.
+        // leave 1,783 of them with `biclique-cover` alone, 6 with
+        // `window-cliques` beside it, one cube each.
         let cover = enc("-1..1", 5, 34);
-        assert_eq!(full_profile_count(&cover, FULL_PROFILE_CAP), Some(1783));
+        assert_eq!(full_profile_count(&cover, FULL_PROFILE_CAP), Some(6));
         assert_eq!(
             full_profile_count(&enc_without_exclusions("-1..1", 5, 34), usize::MAX),
             Some(16_460)
         );
-        // {−2,…,2}^4, p = 25: 4,383 whole profiles, although its prefixes
+        // {−2,…,2}^4, p = 25: 1,187 whole profiles (4,383 before
+        // `window-cliques`), although its prefixes
         // g(1..11) number more than 30,000 (most whole profiles are
         // excluded at the last offset). The walk's work counts the clauses
         // it really tests, not every clause at each depth, which had
         // stopped it early here.
         let m25 = enc("-2..2", 4, 25);
-        assert_eq!(full_profile_count(&m25, FULL_PROFILE_CAP), Some(4383));
+        assert_eq!(full_profile_count(&m25, FULL_PROFILE_CAP), Some(1187));
         assert_eq!(choose_cubes(&m25).unwrap().rule, "full-profile");
         // {−2,…,2}^4, p = 24: more than the cap even with the exclusions
         // (146,529 whole profiles, `split --cubes 200000`).

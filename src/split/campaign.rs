@@ -245,10 +245,13 @@ pub fn run_campaign(
         }
     };
     let n = manifest.cubes.len();
+    // Few cubes (a question the profile exclusions leave little of) would
+    // all fall into one block on one thread: smaller blocks spread them.
+    let block = (n / (4 * o.jobs.max(1))).clamp(1, CAMPAIGN_BLOCK);
     progress.event(|| {
         format!(
             "{label}: {n} cubes, the coverage proof ({} steps) checked {}; solving them in \
-             blocks of {CAMPAIGN_BLOCK} on {}",
+             blocks of {block} on {}",
             manifest.coverage.lrat_steps,
             match taken_up && !rewritten {
                 true => "when the split was written (the merge checks it again)",
@@ -272,34 +275,40 @@ pub fn run_campaign(
     let go_on = || !found.load(Ordering::SeqCst) && deadline.is_none_or(|d| Instant::now() < d);
     let plan = BlockPlan {
         jobs: o.jobs,
-        block: CAMPAIGN_BLOCK,
+        block,
         progress: o.progress,
         label,
         go_on: &go_on,
     };
     let mut tally = Tally::default();
-    let all_ran = run_blocks(dir, (0, n - 1), &ro, &plan, |done| {
-        for e in done.events {
-            match e {
-                CubeEvent::Outcome(outcome, _) => {
-                    let r = match *outcome {
-                        RunOutcome::Solved(r) | RunOutcome::AlreadyDone(r) => r,
-                    };
-                    match r.status {
-                        CubeStatus::Feasible => {
-                            found.store(true, Ordering::SeqCst);
-                            tally.finished += 1;
+    // No cube at all: the coverage proof alone refutes the formula, and the
+    // merge below says so.
+    let all_ran = if n == 0 {
+        true
+    } else {
+        run_blocks(dir, (0, n - 1), &ro, &plan, |done| {
+            for e in done.events {
+                match e {
+                    CubeEvent::Outcome(outcome, _) => {
+                        let r = match *outcome {
+                            RunOutcome::Solved(r) | RunOutcome::AlreadyDone(r) => r,
+                        };
+                        match r.status {
+                            CubeStatus::Feasible => {
+                                found.store(true, Ordering::SeqCst);
+                                tally.finished += 1;
+                            }
+                            CubeStatus::Infeasible => tally.finished += 1,
+                            CubeStatus::Unknown => tally.unknown += 1,
+                            CubeStatus::Error => tally.failed.push(r.index),
                         }
-                        CubeStatus::Infeasible => tally.finished += 1,
-                        CubeStatus::Unknown => tally.unknown += 1,
-                        CubeStatus::Error => tally.failed.push(r.index),
                     }
+                    CubeEvent::Failed(index, _) => tally.failed.push(index),
                 }
-                CubeEvent::Failed(index, _) => tally.failed.push(index),
             }
-        }
-        Ok(())
-    })?;
+            Ok(())
+        })?
+    };
     let complete = all_ran && tally.finished == n;
     if !complete && !found.load(Ordering::SeqCst) {
         // Cubes of blocks that did not start may have results from an

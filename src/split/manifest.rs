@@ -159,7 +159,7 @@ impl SplitManifest {
     pub fn summary(&self, dir: &Path, statement: &str) -> String {
         let d = dir.display();
         let n = self.cubes.len();
-        format!(
+        let text = format!(
             "question     {statement}\ncubes        {n} ({}), {}\n\
              coverage     checked: LRAT proof of {} steps refutes coverage.cnf, so every model lies in a cube\n\
              written      {d}/manifest.json, formula.cnf, cubes.icnf, coverage.cnf, coverage.lrat{}\n\
@@ -186,6 +186,17 @@ impl SplitManifest {
                     " (compact: no cube files; run-cube builds each cube from formula.cnf)",
             },
             n.saturating_sub(1),
+        );
+        if n > 0 {
+            return text;
+        }
+        // No cube: the coverage proof alone refutes the formula, and
+        // `merge` says so; there is nothing to run.
+        let next = text.find("next ").unwrap_or(text.len());
+        format!(
+            "{}next         orbitcnf merge {d}   (no cube to run: the profile clauses alone, \
+             refuted by the coverage proof, rule out every profile)\n",
+            &text[..next]
         )
     }
 

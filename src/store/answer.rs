@@ -502,6 +502,7 @@ pub(crate) mod tests {
         // the key of the formula without it is the old one.
         let options = EncodeOptions {
             bicliques: false,
+            cliques: false,
             ..EncodeOptions::default()
         }
         .resolve(&nonexpansive);

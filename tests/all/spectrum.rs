@@ -996,7 +996,8 @@ fn spectrum_decides_hard_periods_in_cubes_with_a_stored_assembled_proof() {
     // whole-profile cubes on both threads, its proof assembled, checked and
     // stored; 18 then follows from 9 by §9 without a search.
     let dir = TestDir::new();
-    let q = ["--dim", "3", "--grid=-1..1"];
+    // Without window-cliques, which leaves {−1,0,1}^3 no profile to split.
+    let q = ["--dim", "3", "--grid=-1..1", "--no-window-cliques"];
     let sweep = |store: &str, extra: &[&str]| {
         let run = dir
             .orbitcnf()
@@ -1055,7 +1056,8 @@ fn spectrum_hands_the_cubes_of_a_hard_period_to_cadical() {
     // goes through `rate`, is checked against F ∧ cube and lifted, and the
     // assembled proof is stored and accepted by `verify-proof`.
     let dir = TestDir::new();
-    let q = ["--dim", "3", "--grid=-1..1"];
+    // Without window-cliques, which leaves {−1,0,1}^3 no profile to split.
+    let q = ["--dim", "3", "--grid=-1..1", "--no-window-cliques"];
     let v = dir
         .orbitcnf()
         .arg("spectrum")
@@ -1091,7 +1093,15 @@ fn spectrum_hands_the_cubes_of_a_hard_period_to_cadical() {
 #[test]
 fn spectrum_runs_hard_periods_as_resumable_splits_in_its_store() {
     let dir = TestDir::new();
-    let ternary_cube = ["spectrum", "--dim", "3", "--grid=-1..1", "--periods"];
+    // Without window-cliques, which leaves {−1,0,1}^3 no profile to split.
+    let ternary_cube = [
+        "spectrum",
+        "--dim",
+        "3",
+        "--grid=-1..1",
+        "--no-window-cliques",
+        "--periods",
+    ];
     // 16 cubes unless `extra` asks for another count.
     let sweep = |store: &str, periods: &str, extra: &[&str]| {
         let cubes: &[&str] = match extra.contains(&"--split-cubes") {

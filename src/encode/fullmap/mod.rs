@@ -104,6 +104,7 @@ pub fn for_domain(options: &EncodeOptions) -> EncodeOptions {
         classes: false,
         nested: false,
         bicliques: false,
+        cliques: false,
         subbox: false,
         gaps: false,
         reverse_ladder: false,

@@ -531,6 +531,18 @@ fn m1_n5_period_54_is_refuted_by_spectrum_in_its_store() {
     refuted_by_spectrum_in_its_store(&Q::cube(-1, 1, 5, 54), 832_605);
 }
 
+/// {-1,0,1}^5, p = 58, refuted by computation on 2026-12-05
+/// (docs/campaigns.md; README, "What is proven and what is open") with
+/// `window-cliques` in the default: 9 profile-prefix cubes, two handed off
+/// after 10 s to a CaDiCaL that writes LRAT (one for about 4 minutes).
+/// Nothing published settles it; the expectation is orbitcnf's own
+/// certified answer.
+#[test]
+#[ignore = "about 25 minutes on 2 cores (two walks of the top patterns of about 5 minutes each, the probe, 9 cubes, one handed off to a CaDiCaL named by ORBITCNF_LRAT_CADICAL for about 4 minutes); run on purpose"]
+fn m1_n5_period_58_is_refuted_by_spectrum_in_its_store() {
+    refuted_by_spectrum_in_its_store(&Q::cube(-1, 1, 5, 58), 9);
+}
+
 /// {-1,0,1}^5, p = 52, refuted by computation on 2026-12-05
 /// (docs/campaigns.md; README, "What is proven and what is open"): 86,870
 /// whole-profile cubes (`split --cubes 200000`). About 40 minutes of cubes

@@ -537,6 +537,17 @@ fn m1_n5_period_54_is_refuted_by_spectrum_in_its_store() {
 /// after 10 s to a CaDiCaL that writes LRAT (one for about 4 minutes).
 /// Nothing published settles it; the expectation is orbitcnf's own
 /// certified answer.
+/// {-1,0,1}^5, p = 56, refuted by computation on 2026-12-05
+/// (docs/campaigns.md; README) with `window-cliques` in the default: 65
+/// profile-prefix cubes, 10 handed off after 10 s to a CaDiCaL that writes
+/// LRAT, the longest 223 s. Nothing published settles it; the expectation
+/// is orbitcnf's own certified answer.
+#[test]
+#[ignore = "about 20 minutes on 2 cores (two walks of the top patterns of some minutes each, the probe, 65 cubes, 10 handed off to a CaDiCaL named by ORBITCNF_LRAT_CADICAL for up to about 4 minutes); run on purpose"]
+fn m1_n5_period_56_is_refuted_by_spectrum_in_its_store() {
+    refuted_by_spectrum_in_its_store(&Q::cube(-1, 1, 5, 56), 65);
+}
+
 #[test]
 #[ignore = "about 25 minutes on 2 cores (two walks of the top patterns of about 5 minutes each, the probe, 9 cubes, one handed off to a CaDiCaL named by ORBITCNF_LRAT_CADICAL for about 4 minutes); run on purpose"]
 fn m1_n5_period_58_is_refuted_by_spectrum_in_its_store() {

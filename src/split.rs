@@ -69,7 +69,7 @@ use crate::cnf::{Cnf, FamilyCount, Lit};
 use crate::dimacs::{VERSION, render_cnf};
 use crate::encode::{
     EncodeOptions, Encoding, Formulation, bicliques, classes, cliques, encode, fullmap, gaps,
-    profile, subbox, symmetry,
+    orbits, profile, subbox, symmetry,
 };
 use crate::error::{Error, Result};
 use crate::question::Question;
@@ -189,6 +189,7 @@ pub const PROFILE_EXCLUSION_FAMILIES: &[&str] = &[
     gaps::FAMILY,
     bicliques::FAMILY,
     cliques::FAMILY,
+    orbits::FAMILY,
     subbox::FAMILY,
 ];
 
@@ -521,6 +522,7 @@ pub fn coverage_sources(enc: &Encoding) -> Vec<usize> {
             gaps::FAMILY,
             bicliques::FAMILY,
             cliques::FAMILY,
+            orbits::FAMILY,
             subbox::FAMILY,
         ]
     };
@@ -876,6 +878,7 @@ mod tests {
         let q = Question::new(Grid::parse(spec, Some(dim)).unwrap(), p).unwrap();
         let o = EncodeOptions {
             cliques: false,
+            orbits: false,
             ..EncodeOptions::default()
         };
         encode(&q, &o, u64::MAX).unwrap()
@@ -945,6 +948,7 @@ mod tests {
                 subbox: false,
                 bicliques: false,
                 cliques: false,
+                orbits: false,
                 ..EncodeOptions::default()
             },
             u64::MAX,

@@ -245,6 +245,14 @@ pub struct EncodingArgs {
     /// encodings/redundant.md, window-cliques.
     #[arg(long)]
     pub no_window_cliques: bool,
+    /// Leave out the clique-orbit exclusions (on where the biclique-cover
+    /// exclusions can act): the rotations of the cycle map a maximal clique
+    /// of close pairs to as many maximal cliques as the index of its
+    /// stabilizer, so a close offset whose cliques can be invariant under no
+    /// rotation of index at most 2^r rules the pattern out in a clause of a
+    /// dozen literals; see encodings/redundant.md, clique-orbits.
+    #[arg(long)]
+    pub no_clique_orbits: bool,
     /// Leave out the sub-box exclusions (on by default on boxes whose
     /// diameter L is 3 or more): a cycle with every distance at most m < L
     /// fits in a box of side m, so the profile exclusions of that smaller
@@ -321,6 +329,7 @@ impl EncodingArgs {
             nested: !self.no_nested,
             bicliques: !self.no_bicliques,
             cliques: !self.no_window_cliques,
+            orbits: !self.no_clique_orbits,
             subbox: !self.no_subbox,
             gaps: !self.no_gaps,
             reverse_ladder: !self.no_reverse_ladder,

@@ -113,18 +113,24 @@ pub enum Found {
     /// `2^r + 1` pairwise incompatible cliques of the close graph
     /// ([`super::cliques`], family `window-cliques`).
     WindowCliques,
+    /// A close offset whose maximal cliques have more than `2^r` rotations
+    /// ([`super::orbits`], family `clique-orbits`).
+    CliqueOrbits,
 }
 
 /// What the walk over the top patterns looks for at each whole pattern:
-/// a fooling set (`biclique-cover`), then, where none was found, more
-/// maximal cliques of the close graph than there are windows
-/// (`window-cliques`).
+/// a close offset whose maximal cliques have too many rotations
+/// (`clique-orbits`), then more maximal cliques of the close graph than
+/// there are windows (`window-cliques`), and a fooling set
+/// (`biclique-cover`).
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub struct WalkTests {
     /// Search for fooling sets.
     pub fooling: bool,
     /// Search for too many maximal cliques.
     pub cliques: bool,
+    /// Try the orbit rule of `clique-orbits`.
+    pub orbits: bool,
 }
 
 impl WalkTests {
@@ -132,11 +138,12 @@ impl WalkTests {
     pub const FOOLING: WalkTests = WalkTests {
         fooling: true,
         cliques: false,
+        orbits: false,
     };
 
     /// Whether the walk has anything to do.
     pub fn any(self) -> bool {
-        self.fooling || self.cliques
+        self.fooling || self.cliques || self.orbits
     }
 }
 
@@ -174,16 +181,24 @@ pub fn ruled_out(q: &Question, with_images: bool, tests: WalkTests) -> Vec<Exclu
     let maps = symmetry::multiplier_maps(p);
     let mut out = BTreeSet::new();
     if h > MAX_OFFSETS {
-        pruned_walk(p, need, &maps, &mut out);
-        if with_images {
-            let found: Vec<Exclusion> = out.iter().cloned().collect();
-            for x in &found {
-                for map in &maps {
-                    out.insert(image(x, map));
+        let key = WalkKey {
+            p,
+            r: full_coordinates(q),
+            tests,
+            with_images,
+        };
+        return remembered_walk(key, || {
+            pruned_walk(p, need, &maps, &mut out);
+            if with_images {
+                let found: Vec<Exclusion> = out.iter().cloned().collect();
+                for x in &found {
+                    for map in &maps {
+                        out.insert(image(x, map));
+                    }
                 }
             }
-        }
-        return out.into_iter().collect();
+            out.into_iter().collect()
+        });
     }
     for mask in 1u64..(1u64 << h) {
         if !lex_least(mask, &maps, h) {
@@ -200,6 +215,106 @@ pub fn ruled_out(q: &Question, with_images: bool, tests: WalkTests) -> Vec<Exclu
         out.insert(x);
     }
     out.into_iter().collect()
+}
+
+/// What the result of a pruned walk depends on once the family applies:
+/// the period, the number of full coordinates (which sets what the
+/// searches need), what it searches for and whether images are added.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+struct WalkKey {
+    p: usize,
+    r: usize,
+    tests: WalkTests,
+    with_images: bool,
+}
+
+/// Pruned walks kept for the life of the process, most recent last, each
+/// exclusion packed into bit masks (32 bytes instead of two vectors).
+///
+/// A walk takes minutes on `{−1,0,1}^5` from `p = 56` on, and one run often
+/// encodes the same question several times (`spectrum`'s probe, then its
+/// count and cubes, then the merge's fresh encoding that checks a split
+/// folder). The walk is a function of [`WalkKey`] alone (its order and
+/// budgets are counts, not times), so a remembered result is the one a new
+/// walk would give, and every encoding stays what it was.
+static WALKS: std::sync::Mutex<Vec<(WalkKey, std::sync::Arc<Vec<Packed>>)>> =
+    std::sync::Mutex::new(Vec::new());
+
+/// How many walks [`WALKS`] keeps: the hard periods of one `spectrum` run
+/// are probed before any is split, so it keeps a run's worth (on
+/// `{−1,0,1}^5`, p = 58 has 556,746 exclusions, 18 MB packed).
+const WALKS_KEPT: usize = 24;
+
+/// An [`Exclusion`] of at most 64 offsets as bit masks (bit `k − 1` for
+/// offset `k`).
+#[derive(Clone, Copy, Debug)]
+struct Packed {
+    far: u64,
+    close: u64,
+    source: u64,
+    found: Found,
+}
+
+impl Packed {
+    fn pack(x: &Exclusion) -> Packed {
+        let bits = |ks: &[usize]| ks.iter().fold(0u64, |m, &k| m | 1 << (k - 1));
+        Packed {
+            far: bits(&x.far),
+            close: bits(&x.close),
+            source: x.source,
+            found: x.found,
+        }
+    }
+
+    fn unpack(self) -> Exclusion {
+        let offsets = |m: u64| {
+            (0..64)
+                .filter(|&b| m >> b & 1 == 1)
+                .map(|b| b + 1)
+                .collect()
+        };
+        Exclusion {
+            far: offsets(self.far),
+            close: offsets(self.close),
+            source: self.source,
+            found: self.found,
+        }
+    }
+}
+
+/// The walk of `key` from [`WALKS`], or `walk()` run (outside the lock, so
+/// that two threads walking different periods do not wait for each other)
+/// and remembered.
+fn remembered_walk(key: WalkKey, walk: impl FnOnce() -> Vec<Exclusion>) -> Vec<Exclusion> {
+    let lock = || {
+        WALKS
+            .lock()
+            .unwrap_or_else(std::sync::PoisonError::into_inner)
+    };
+    let kept = lock()
+        .iter()
+        .find(|(k, _)| *k == key)
+        .map(|(_, found)| found.clone());
+    if let Some(found) = kept {
+        return found.iter().map(|x| x.unpack()).collect();
+    }
+    let found = walk();
+    // Offsets above 64 do not fit the masks; such walks are not kept (the
+    // pruned walk stops at `MAX_OFFSETS_PRUNED` offsets anyway).
+    if found
+        .iter()
+        .all(|x| x.far.iter().chain(&x.close).all(|&k| (1..=64).contains(&k)))
+    {
+        let packed = std::sync::Arc::new(found.iter().map(Packed::pack).collect());
+        let mut kept = lock();
+        if !kept.iter().any(|(k, _)| *k == key) {
+            if kept.len() >= WALKS_KEPT {
+                kept.remove(0);
+            }
+            kept.push((key, packed));
+        }
+    }
+    found
 }
 
 /// The exclusions of the lex-least top patterns of `p` with more than
@@ -230,6 +345,10 @@ struct Need {
     pairs: usize,
     cliques: usize,
     tests: WalkTests,
+    /// The fooling set's budget at a pattern the cliques rule out.
+    beside: u64,
+    /// The windows, `2^r` (saturating).
+    windows: usize,
 }
 
 impl Need {
@@ -245,20 +364,33 @@ impl Need {
                 .checked_shl(r as u32)
                 .map_or(usize::MAX, |w| w.saturating_add(1)),
             tests,
+            beside: BUDGET_BESIDE_CLIQUES,
+            windows: 1usize.checked_shl(r as u32).unwrap_or(usize::MAX),
         }
     }
 }
 
-/// Both searches, as the default encoding runs the walk.
+/// Fooling sets and cliques, as the default encoding ran the walk before
+/// `clique-orbits`.
 #[cfg(test)]
 const BOTH: WalkTests = WalkTests {
     fooling: true,
     cliques: true,
+    orbits: false,
 };
 
-/// The exclusion of one whole top pattern: a fooling set's if one is found
-/// (and asked for), else too many incompatible cliques' (if asked for),
-/// each search within `budget` nodes, all nodes added to `spent`.
+/// Every test, as the default encoding runs the walk.
+#[cfg(test)]
+const ALL: WalkTests = WalkTests {
+    fooling: true,
+    cliques: true,
+    orbits: true,
+};
+
+/// The exclusion of one whole top pattern: the orbit rule's if it applies
+/// (and is asked for); else a fooling set's if one is found (and asked
+/// for), else too many incompatible cliques' (if asked for), each search
+/// within `budget` nodes, all nodes added to `spent`.
 fn search_pattern(
     p: usize,
     mask: u64,
@@ -266,6 +398,15 @@ fn search_pattern(
     budget: u64,
     spent: &mut u64,
 ) -> Option<Exclusion> {
+    // No search, and a clause of a dozen literals that names small offsets
+    // where it can, so the walk returns far up: measured on {−1,0,1}^5
+    // (2026-12-06), the walk of p = 50 searched 1,111 patterns instead of
+    // 175,645.
+    if need.tests.orbits
+        && let Some(x) = super::orbits::exclusion(p, mask, need.windows)
+    {
+        return Some(x);
+    }
     let fooling = |budget: u64, spent: &mut u64| {
         fooling_set_counted(p, mask, need.pairs, budget, spent)
             .and_then(|pairs| exclusion(p, mask, &pairs))
@@ -284,7 +425,7 @@ fn search_pattern(
     // whole budget. Where the cliques already rule the pattern out, the
     // fooling set gets only a small budget.
     match by_cliques {
-        Some(x) => Some(fooling(BUDGET_BESIDE_CLIQUES.min(budget), spent).unwrap_or(x)),
+        Some(x) => Some(fooling(need.beside.min(budget), spent).unwrap_or(x)),
         None => fooling(budget, spent),
     }
 }
@@ -978,6 +1119,13 @@ mod tests {
             .unwrap_or(6);
         // With BICLIQUE_CLIQUES set, window-cliques searches too (2^(need−1) + 1 cliques).
         let cliques = std::env::var("BICLIQUE_CLIQUES").is_ok();
+        // With BICLIQUE_ORBITS set, clique-orbits is tried first.
+        let orbits = std::env::var("BICLIQUE_ORBITS").is_ok();
+        // The fooling set's budget where the cliques rule a pattern out.
+        let beside: u64 = std::env::var("BICLIQUE_BESIDE")
+            .ok()
+            .map(|v| v.parse().unwrap())
+            .unwrap_or(BUDGET_BESIDE_CLIQUES);
         for p in periods {
             for &budget in &budgets {
                 let t = std::time::Instant::now();
@@ -988,7 +1136,10 @@ mod tests {
                     tests: WalkTests {
                         fooling: true,
                         cliques,
+                        orbits,
                     },
+                    beside,
+                    windows: 1 << (need - 1),
                 };
                 let (searched, nodes) =
                     pruned_walk_with(p, need, &symmetry::multiplier_maps(p), &mut out, budget);
@@ -996,8 +1147,22 @@ mod tests {
                     .iter()
                     .filter(|x| x.found == Found::WindowCliques)
                     .count();
+                // How far back each exclusion lets the walk return: its
+                // largest named offset, by the search that found it.
+                let mut ends = [vec![0usize; p / 2 + 1], vec![0usize; p / 2 + 1]];
+                for x in &out {
+                    let end = x.far.iter().chain(&x.close).copied().max().unwrap_or(0);
+                    ends[usize::from(x.found != Found::FoolingSet)][end] += 1;
+                }
+                let literals: usize = out.iter().map(|x| x.far.len() + x.close.len()).sum();
+                println!("p={p} literals in all clauses (images not counted): {literals}");
+                println!("p={p} largest named offset (fooling set): {:?}", ends[0]);
                 println!(
-                    "p={p} need {} budget {budget}: {} exclusions ({by_cliques} by window cliques), \
+                    "p={p} largest named offset (cliques, orbits): {:?}",
+                    ends[1]
+                );
+                println!(
+                    "p={p} need {} budget {budget} beside {beside}: {} exclusions ({by_cliques} by window cliques), \
                      {searched} patterns searched ({} without an exclusion), {nodes} nodes{}, {:.1} s",
                     need.pairs,
                     out.len(),
@@ -1045,7 +1210,7 @@ mod tests {
             ("-1..1,-1..1,-1..1,-1..1", 24),
             ("-1..1,-1..1,-1..1,-1..1,-1..1", 34),
         ] {
-            for tests in [WalkTests::FOOLING, BOTH] {
+            for tests in [WalkTests::FOOLING, BOTH, ALL] {
                 let question = q(spec, p);
                 let need = Need::of(&question, tests);
                 let maps = symmetry::multiplier_maps(p);
@@ -1074,11 +1239,54 @@ mod tests {
                     // family was written (that count has the profile with no far
                     // offset, mask 0); 16,451 with window-cliques, which leaves
                     // 8 lex-least patterns with a far offset.
-                    let want = if tests == BOTH { 16_451 } else { 14_674 };
+                    // clique-orbits excludes the same patterns as
+                    // window-cliques here, in shorter clauses.
+                    let want = match tests {
+                        ALL | BOTH => 16_451,
+                        _ => 14_674,
+                    };
                     assert_eq!((least + 1, by_exhaustive), (16_460, want));
                 }
                 assert!(by_pruned >= by_exhaustive && by_pruned <= least);
             }
+        }
+    }
+
+    #[test]
+    fn a_remembered_walk_is_the_walk_made_again() {
+        // Two boxes with the same period and number of full coordinates
+        // share one walk; a box with another number does not get it.
+        let p = 2 * (MAX_OFFSETS + 1);
+        let a = q("-1..1,-1..1,-1..1,-1..1", p);
+        let b = q("0..2,0..2,0..2,0..2", p);
+        let c = q("-1..1,-1..1,-1..1,0..1", p);
+        for with_images in [false, true] {
+            let first = ruled_out(&a, with_images, ALL);
+            let again = ruled_out(&b, with_images, ALL);
+            let mut fresh = BTreeSet::new();
+            pruned_walk(
+                p,
+                Need::of(&a, ALL),
+                &symmetry::multiplier_maps(p),
+                &mut fresh,
+            );
+            assert!(!first.is_empty());
+            assert_eq!(first, again);
+            if !with_images {
+                assert_eq!(first, fresh.into_iter().collect::<Vec<_>>());
+            }
+            let other = ruled_out(&c, with_images, ALL);
+            let mut fresh = BTreeSet::new();
+            pruned_walk(
+                p,
+                Need::of(&c, ALL),
+                &symmetry::multiplier_maps(p),
+                &mut fresh,
+            );
+            if !with_images {
+                assert_eq!(other, fresh.into_iter().collect::<Vec<_>>());
+            }
+            assert_ne!(first, other);
         }
     }
 
@@ -1118,14 +1326,14 @@ mod tests {
 
     /// The clauses of the pruned walk on `question` whatever its number of
     /// offsets, with their images under the multiplier maps.
-    fn pruned_with_images(question: &Question) -> Vec<Exclusion> {
+    fn pruned_with_images(question: &Question, tests: WalkTests) -> Vec<Exclusion> {
         if !applies_to(question) {
             return Vec::new();
         }
         let p = question.period;
         let maps = symmetry::multiplier_maps(p);
         let mut found = BTreeSet::new();
-        pruned_walk(p, Need::of(question, BOTH), &maps, &mut found);
+        pruned_walk(p, Need::of(question, tests), &maps, &mut found);
         let mut all: Vec<Exclusion> = found.iter().cloned().collect();
         for x in &found {
             all.extend(maps.iter().map(|m| image(x, m)));
@@ -1141,6 +1349,7 @@ mod tests {
         let mut clauses = 0;
         let mut pruned_clauses = 0;
         let mut by_cliques = 0;
+        let mut by_orbits = 0;
         for (spec, max_p) in [
             ("0..2,0..1", 6),
             ("0..3,0..1,0..1", 8),
@@ -1152,15 +1361,17 @@ mod tests {
             let l = g.diameter() as i64;
             for p in 3..=max_p {
                 let question = Question::new(g.clone(), p).unwrap();
-                let mut ruled = ruled_out(&question, true, BOTH);
-                clauses += ruled.len();
-                by_cliques += ruled
-                    .iter()
-                    .filter(|x| x.found == Found::WindowCliques)
-                    .count();
-                let pruned = pruned_with_images(&question);
-                pruned_clauses += pruned.len();
-                ruled.extend(pruned);
+                let mut ruled = Vec::new();
+                for tests in [BOTH, ALL] {
+                    let exhaustive = ruled_out(&question, true, tests);
+                    let pruned = pruned_with_images(&question, tests);
+                    clauses += exhaustive.len();
+                    pruned_clauses += pruned.len();
+                    ruled.extend(exhaustive.into_iter().chain(pruned));
+                }
+                let count = |found| ruled.iter().filter(|x| x.found == found).count();
+                by_cliques += count(Found::WindowCliques);
+                by_orbits += count(Found::CliqueOrbits);
                 for cycle in crate::brute::all_cycles(g.ranges(), p, 400) {
                     let top = |k: usize| crate::brute::sup_distance(&cycle[0], &cycle[k]) == l;
                     for e in &ruled {
@@ -1173,8 +1384,13 @@ mod tests {
             }
         }
         assert!(
-            tested > 500 && clauses > 20 && pruned_clauses > 10 && by_cliques > 10,
-            "{tested} cycles, {clauses} and {pruned_clauses} clauses, {by_cliques} by cliques"
+            tested > 500
+                && clauses > 20
+                && pruned_clauses > 10
+                && by_cliques > 10
+                && by_orbits > 10,
+            "{tested} cycles, {clauses} and {pruned_clauses} clauses, {by_cliques} by cliques, \
+             {by_orbits} by orbits"
         );
     }
 }

@@ -200,55 +200,80 @@ fn kept_cliques(
     mask: u64,
     cliques: &[Vec<usize>],
 ) -> Option<(Exclusion, Vec<BTreeSet<usize>>)> {
+    if p > 128 || cliques.iter().flatten().any(|&u| u >= p) {
+        return None;
+    }
+    // Bit sets, as this runs at every pattern the cliques rule out: row `u`
+    // holds the points far from `u`; `far` the offsets named far (bit
+    // `k − 1`); `kept[a]` the points of clique `a` kept so far.
+    let far_rows: Vec<u128> = (0..p)
+        .map(|u| {
+            (0..p)
+                .filter(|&v| is_far(p, mask, u, v))
+                .fold(0u128, |m, v| m | 1 << v)
+        })
+        .collect();
     let n = cliques.len();
-    let mut far = BTreeSet::new();
-    let mut kept: Vec<BTreeSet<usize>> = vec![BTreeSet::new(); n];
+    let mut far = 0u64;
+    let mut kept = vec![0u128; n];
     for a in 0..n {
         for b in a + 1..n {
             // Cost of a far pair: a new offset to name, then new points
             // (each may bring new close offsets), then the offset itself,
             // so that the largest named offset stays small and the walk
-            // returns early.
+            // returns early. Ties go to the first pair in the cliques'
+            // order.
             let mut best: Option<((bool, u8, usize), usize, usize)> = None;
             for &u in &cliques[a] {
+                let row = far_rows[u];
+                if row == 0 {
+                    continue;
+                }
                 for &v in &cliques[b] {
-                    if !is_far(p, mask, u, v) {
+                    if row >> v & 1 == 0 {
                         continue;
                     }
-                    let k = fold(v + p - u, p);
+                    // `fold` without its division: `u ≠ v` are below `p`.
+                    let d = if v > u { v - u } else { v + p - u };
+                    let k = d.min(p - d);
                     let new_points =
-                        u8::from(!kept[a].contains(&u)) + u8::from(!kept[b].contains(&v));
-                    let key = (!far.contains(&k), new_points, k);
+                        u8::from(kept[a] >> u & 1 == 0) + u8::from(kept[b] >> v & 1 == 0);
+                    let key = (far >> (k - 1) & 1 == 0, new_points, k);
                     if best.as_ref().is_none_or(|(b, _, _)| key < *b) {
                         best = Some((key, u, v));
                     }
                 }
             }
             let (key, u, v) = best?;
-            far.insert(key.2);
-            kept[a].insert(u);
-            kept[b].insert(v);
+            far |= 1 << (key.2 - 1);
+            kept[a] |= 1 << u;
+            kept[b] |= 1 << v;
         }
     }
-    let mut close = BTreeSet::new();
-    for set in &kept {
-        let pts: Vec<usize> = set.iter().copied().collect();
-        for (i, &u) in pts.iter().enumerate() {
-            for &v in &pts[i + 1..] {
-                if is_far(p, mask, u, v) {
-                    return None;
-                }
-                close.insert(fold(v + p - u, p));
+    let mut close = 0u64;
+    for &set in &kept {
+        for u in bits(set) {
+            if far_rows[u] & set != 0 {
+                return None;
+            }
+            for v in bits(set >> (u + 1)) {
+                close |= 1 << (fold(v + 1, p) - 1);
             }
         }
     }
+    let offsets = |m: u64| {
+        (0..64)
+            .filter(|&b| m >> b & 1 == 1)
+            .map(|b| b + 1)
+            .collect()
+    };
     let x = Exclusion {
-        far: far.into_iter().collect(),
-        close: close.into_iter().collect(),
+        far: offsets(far),
+        close: offsets(close),
         source: mask,
         found: Found::WindowCliques,
     };
-    Some((x, kept))
+    Some((x, kept.into_iter().map(|m| bits(m).collect()).collect()))
 }
 
 #[cfg(test)]
@@ -296,6 +321,86 @@ mod tests {
                 assert_eq!(got, want, "p={p} mask={mask:#b}");
             }
         }
+    }
+
+    /// [`kept_cliques`] as first written, with sets and `is_far`: the bit
+    /// set version must choose the same pairs (the formula depends on it).
+    fn reference_kept_cliques(
+        p: usize,
+        mask: u64,
+        cliques: &[Vec<usize>],
+    ) -> Option<(Exclusion, Vec<BTreeSet<usize>>)> {
+        let n = cliques.len();
+        let mut far = BTreeSet::new();
+        let mut kept: Vec<BTreeSet<usize>> = vec![BTreeSet::new(); n];
+        for a in 0..n {
+            for b in a + 1..n {
+                // Cost of a far pair: a new offset to name, then new points
+                // (each may bring new close offsets), then the offset itself,
+                // so that the largest named offset stays small and the walk
+                // returns early.
+                let mut best: Option<((bool, u8, usize), usize, usize)> = None;
+                for &u in &cliques[a] {
+                    for &v in &cliques[b] {
+                        if !is_far(p, mask, u, v) {
+                            continue;
+                        }
+                        let k = fold(v + p - u, p);
+                        let new_points =
+                            u8::from(!kept[a].contains(&u)) + u8::from(!kept[b].contains(&v));
+                        let key = (!far.contains(&k), new_points, k);
+                        if best.as_ref().is_none_or(|(b, _, _)| key < *b) {
+                            best = Some((key, u, v));
+                        }
+                    }
+                }
+                let (key, u, v) = best?;
+                far.insert(key.2);
+                kept[a].insert(u);
+                kept[b].insert(v);
+            }
+        }
+        let mut close = BTreeSet::new();
+        for set in &kept {
+            let pts: Vec<usize> = set.iter().copied().collect();
+            for (i, &u) in pts.iter().enumerate() {
+                for &v in &pts[i + 1..] {
+                    if is_far(p, mask, u, v) {
+                        return None;
+                    }
+                    close.insert(fold(v + p - u, p));
+                }
+            }
+        }
+        let x = Exclusion {
+            far: far.into_iter().collect(),
+            close: close.into_iter().collect(),
+            source: mask,
+            found: Found::WindowCliques,
+        };
+        Some((x, kept))
+    }
+
+    #[test]
+    fn the_bit_set_choice_takes_the_reference_choice() {
+        let mut compared = 0;
+        for p in 5..=26usize {
+            let h = p / 2;
+            for mask in (0u64..(1 << h)).step_by(if p > 20 { 7 } else { 1 }) {
+                for need in [3usize, 5, 9, 17] {
+                    let Some(cliques) = clique_family(p, mask, need, NODE_BUDGET, &mut 0) else {
+                        continue;
+                    };
+                    assert_eq!(
+                        kept_cliques(p, mask, &cliques),
+                        reference_kept_cliques(p, mask, &cliques),
+                        "p={p} mask={mask:#b} need={need}"
+                    );
+                    compared += 1;
+                }
+            }
+        }
+        assert!(compared > 10_000, "{compared}");
     }
 
     /// The clause of every exclusion is enough: under any pattern that

@@ -13,8 +13,8 @@ use std::cell::OnceCell;
 
 use super::family::{Family, always};
 use super::{
-    bicliques, classes, cliques, coords, count, distance, edges, gaps, packing, points, profile,
-    subbox, symmetry, topical,
+    bicliques, classes, cliques, coords, count, distance, edges, gaps, orbits, packing, points,
+    profile, subbox, symmetry, topical,
 };
 use crate::question::Question;
 
@@ -48,6 +48,7 @@ impl Cycle {
             walk: bicliques::WalkTests {
                 fooling: o.bicliques,
                 cliques: o.cliques,
+                orbits: o.orbits,
             },
             q: q.clone(),
             stabilizer: OnceCell::new(),
@@ -234,6 +235,13 @@ pub static ISOMETRIC_CYCLE: &[Family<Cycle>] = &[
         searched: true,
         size: |x| bicliques::size(x.bicliques(), bicliques::Found::WindowCliques),
         add: |e, x| bicliques::add(e, &x.q, x.bicliques(), bicliques::Found::WindowCliques),
+    },
+    Family {
+        name: orbits::FAMILY,
+        applies: |_, o| o.orbits,
+        searched: true,
+        size: |x| bicliques::size(x.bicliques(), bicliques::Found::CliqueOrbits),
+        add: |e, x| bicliques::add(e, &x.q, x.bicliques(), bicliques::Found::CliqueOrbits),
     },
     Family {
         name: subbox::FAMILY,

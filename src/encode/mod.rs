@@ -69,6 +69,7 @@ pub mod formulation;
 pub mod fullmap;
 pub mod gaps;
 pub mod options;
+pub mod orbits;
 pub mod packing;
 pub mod points;
 pub mod profile;

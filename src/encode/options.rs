@@ -176,6 +176,13 @@ pub struct EncodeOptions {
     /// where that family cannot act, and a header records it only when on.
     #[serde(default, skip_serializing_if = "is_false")]
     pub cliques: bool,
+    /// The exclusions of top patterns with a close offset whose maximal
+    /// cliques have more rotations than the box has windows
+    /// ([`super::orbits`], family `clique-orbits`). It shares the walk of
+    /// `biclique-cover`, so [`EncodeOptions::resolve`] switches it off
+    /// where that family cannot act, and a header records it only when on.
+    #[serde(default, skip_serializing_if = "is_false")]
+    pub orbits: bool,
     /// The profile exclusions of the sub-boxes, carried to profiles that
     /// stay below the diameter ([`super::subbox`], family `sub-box`).
     /// [`EncodeOptions::resolve`] switches them off on boxes of diameter
@@ -246,6 +253,7 @@ impl Default for EncodeOptions {
             nested: true,
             bicliques: true,
             cliques: true,
+            orbits: true,
             subbox: true,
             gaps: true,
             reverse_ladder: true,
@@ -266,6 +274,7 @@ impl EncodeOptions {
             nested: false,
             bicliques: false,
             cliques: false,
+            orbits: false,
             subbox: false,
             gaps: false,
             reverse_ladder: false,
@@ -302,6 +311,7 @@ impl EncodeOptions {
             o.nested = false;
             o.bicliques = false;
             o.cliques = false;
+            o.orbits = false;
             o.subbox = false;
             o.gaps = false;
             o.symmetry.reverse = false;
@@ -341,6 +351,7 @@ impl EncodeOptions {
         if !super::bicliques::applies_to(q) {
             o.bicliques = false;
             o.cliques = false;
+            o.orbits = false;
         }
         if !super::subbox::applies_to(q) {
             o.subbox = false;

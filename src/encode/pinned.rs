@@ -69,6 +69,14 @@ fn cases() -> Vec<(&'static str, Question, EncodeOptions)> {
             },
         ),
         (
+            "4cube-17-no-clique-orbits",
+            boxed("-1..1", 4, 17),
+            EncodeOptions {
+                orbits: false,
+                ..EncodeOptions::default()
+            },
+        ),
+        (
             "4cube-18-default",
             boxed("-1..1", 4, 18),
             EncodeOptions::default(),
@@ -145,43 +153,48 @@ fn rendered_cnf_bytes_are_unchanged() {
         // bytes are those of before.
         (
             "4cube-17-default",
-            "100f05d4bdab8e592bed29b33880c4474ac55b62eadb2c4671ae2585474c25c8",
+            "f699af991fb15a388ff04516fa543b7341227ad75be545e5088854de67499748",
         ),
         (
             "4cube-17-no-bicliques",
-            "ca0f8d65f88429d494da72e4c5e93eb8c90003ccd8d5a1f318f010698d1e08cc",
+            "458bd338f61b2609afbdce576af3e9a700d1ea539baf4373da1d7230052da49e",
         ),
         // With window-cliques off, the bytes of before the family.
         (
             "4cube-17-no-window-cliques",
-            "121f821a2317da84be47bb9c9f5877778a882140914120f91934d24566de4569",
+            "247a71d4228c9e8026cf37b076846260aefa26dc9e39c3774cae03f88fdd0475",
+        ),
+        // clique-orbits off: the bytes of before the family.
+        (
+            "4cube-17-no-clique-orbits",
+            "100f05d4bdab8e592bed29b33880c4474ac55b62eadb2c4671ae2585474c25c8",
         ),
         (
             "4cube-18-default",
-            "70ddc09c3f36a2ff2e503aa033c2c70d2cd34a2c28a8049098ca7c17dcd4b05f",
+            "e19d20a5d853c3f116cf5637c7bc02d0e9a23a9df646554c066d17131608d539",
         ),
         // The bytes of this box before `pack-nested` existed: with the
         // family off the CNF is unchanged, header included.
         (
             "mixed-7-no-nested",
-            "ab2019d5d789b8cafcd128f838510e0d28e7573cb2be8d0d2c1757d5cae24e01",
+            "64f6a63e5894ac2887c7edcd75c3c0cb918265ed63a9b5502adb129ced83eaa3",
         ),
         // Recorded when `pack-nested` was added (its option in the header,
         // its clauses after `pack-classes`), then again when
         // `biclique-cover` was; the default until `sub-box`.
         (
             "mixed-7-no-sub-box",
-            "2d7a83bd438b0851001b784d5e8962ccbe486b87870e98f86b823373299af649",
+            "108d8c1786b167b7913805bba4f48331ba044861a2accad7753366683644bdba",
         ),
         // Recorded when `sub-box` was added (its option in the header, its
         // clauses after `biclique-cover`).
         (
             "mixed-7-default",
-            "6ec5a1420a951337ec5cac4b24b48d437078e3b5423d0aca2f3d9508ad0c95a1",
+            "2f42392d73aaedb465d1849a0f09e3cbd16deae04dab72a1bc341cd2b2a1cd16",
         ),
         (
             "square-5-stabilizer",
-            "9ef48e4a4b991039e50d3ff4de1b80f0a5cb5ea686d60924494fc96bda60f69e",
+            "68762073debce9aceb7adba179fe9250e51feec24b599006be714a427e0da97c",
         ),
         (
             "point-1",
@@ -242,39 +255,44 @@ fn store_keys_are_unchanged() {
         // without it, the keys of before.
         (
             "4cube-17-default",
-            "b50efb303a429744ab2ab7a9f98541655ba1e5ddc1c4c3d14004cfdd56b881f6",
+            "5c0f2035f898157ee8fe27aa1cfe7cf8a4dce833087dfcbcfb40a65ad53369f8",
         ),
         (
             "4cube-17-no-bicliques",
-            "566214fb391fea76c9dc677d026c3830fb908b11639623db33febc3b36c1f814",
+            "ddb5ebc835e009ca0d32b78f22470ce8f31487e6d1e260aa982b2ab570189b45",
         ),
         // With window-cliques off, the bytes of before the family.
         (
             "4cube-17-no-window-cliques",
-            "c5294c4d652fe004569a4f954a3c0234288c0d5fb4dc57dd67a8667a01239c24",
+            "6aaf85345421874f4afc73ed319eb07f357c35075095ab774dfb0a62a138230d",
+        ),
+        // clique-orbits off: the bytes of before the family.
+        (
+            "4cube-17-no-clique-orbits",
+            "b50efb303a429744ab2ab7a9f98541655ba1e5ddc1c4c3d14004cfdd56b881f6",
         ),
         (
             "4cube-18-default",
-            "75e747fea08bf1adf0695446d57c041d54acf7dc930eac993d621f65b7507077",
+            "854dbdcef65c0d54fba26a2f59f5611ee93b3cd122a71578dcbf565c00384467",
         ),
         (
             "mixed-7-no-nested",
-            "fe9db78283821a1fb4f1d459e7403e1a1c21478f282f999366cbb38a49612999",
+            "ba3fa508c13759a4371744e0a5988d866e52452b5d2015a0eee444ee371c7f60",
         ),
         // A new key: the option is recorded, so stored answers of the
         // formula without the family are not taken for this one (first
         // `pack-nested`, then `sub-box`).
         (
             "mixed-7-no-sub-box",
-            "58c223e12ba744e8e6e215c8a3d7d3501a511795e151f9637a9ba9e06da3fd26",
+            "04b09a92afdde11000af15fe75d04ccba2581411ddf4d56eae65f07d36c7b413",
         ),
         (
             "mixed-7-default",
-            "b0ae8bc1e8ea298a9a4a2f5263636ff81443e3a6e135645ff2871fbb3b3391da",
+            "af881bb30f560928eefe058cfff1ea21ef1489fc5918ac770b910b82296e4566",
         ),
         (
             "square-5-stabilizer",
-            "69cd1aa4700770763a6c612f34bcbc999e1d85b2eb7f0344b90f4b17e970663f",
+            "502bcbcb15783064dc9f7ea5e86f57d429d2b228ead3c035a1790c4527513431",
         ),
         (
             "point-1",

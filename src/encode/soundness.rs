@@ -67,6 +67,7 @@ fn all_combinations() -> Vec<EncodeOptions> {
                     nested: classes,
                     bicliques: classes,
                     cliques: classes,
+                    orbits: classes,
                     subbox: classes,
                     gaps: classes,
                     ..EncodeOptions::default()

@@ -460,8 +460,9 @@ fn an_oversized_question_is_refused_before_the_window_searches() {
         closed.gaps,
         closed.bicliques,
         closed.cliques,
+        closed.orbits,
         closed.subbox,
-    ) = (false, false, false, false, false, false);
+    ) = (false, false, false, false, false, false, false);
     // `pack-edges` is closed-form but switched with `pack-classes`.
     let without: u64 = estimate(&question, &closed).iter().map(|f| f.clauses).sum();
     assert_eq!(clauses, without + edges::size(&question).clauses);

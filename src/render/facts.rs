@@ -581,6 +581,10 @@ fn option_flags(options: Option<&Value>, on_points: bool, wide: bool, cover: boo
     if cover && cycle && o.get("cliques").and_then(Value::as_bool) != Some(true) {
         f.push("--no-window-cliques".into());
     }
+    // So does `clique-orbits`, newer still.
+    if cover && cycle && o.get("orbits").and_then(Value::as_bool) != Some(true) {
+        f.push("--no-clique-orbits".into());
+    }
     let full_map = formulation.is_some_and(|s| s.starts_with("full-map"));
     if full_map && !on_points {
         f.push("--formulation".into());

@@ -34,6 +34,27 @@ pub struct Certified {
     pub format: LratFormat,
 }
 
+impl Certified {
+    /// The bundled solver as a run in cubes asks for it: certifying, with
+    /// the LRAT proof kept at `lrat` in `format`, or (`certify` false)
+    /// taking its own word.
+    pub fn or_bundled(
+        certify: bool,
+        lrat: Option<PathBuf>,
+        format: LratFormat,
+    ) -> Box<dyn Backend> {
+        if certify {
+            Box::new(Certified {
+                lrat,
+                drat: None,
+                format,
+            })
+        } else {
+            Box::new(super::bundled::Bundled)
+        }
+    }
+}
+
 impl Backend for Certified {
     fn name(&self) -> String {
         BUNDLED_LRAT.into()

@@ -57,7 +57,6 @@ use crate::progress::Progress;
 use crate::proof::LratFormat;
 use crate::question::Question;
 use crate::report::{Report, Strategy, Verdict};
-use crate::solve::bundled::Bundled;
 use crate::solve::certified::Certified;
 use crate::solve::{Backend, Limits};
 
@@ -308,16 +307,8 @@ pub fn decide_auto_encoded(
         max_conflicts: opts.probe_conflicts,
         ..limits.clone()
     };
-    let mut certified = Certified {
-        lrat: opts.lrat.clone(),
-        drat: None,
-        format: opts.format,
-    };
-    let backend: &mut dyn Backend = if opts.certify {
-        &mut certified
-    } else {
-        &mut Bundled
-    };
+    let mut backend = Certified::or_bundled(opts.certify, opts.lrat.clone(), opts.format);
+    let backend: &mut dyn Backend = backend.as_mut();
     // Breadth-first prefixes were measured to cost far more than one solve
     // ({−1,0,1}^5, p = 33: 10.7 M conflicts over 807 of 1024 cubes in 360 s,
     // against 297,684 conflicts for the whole question in one solve), so
@@ -458,6 +449,7 @@ mod tests {
             nested: false,
             bicliques: false,
             cliques: false,
+            orbits: false,
             subbox: false,
             ..EncodeOptions::default()
         };

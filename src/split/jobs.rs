@@ -49,6 +49,7 @@ use crate::proof::{LratFormat, LratOptions};
 use crate::question::Question;
 use crate::report::{Report, SizeStats, Verdict};
 use crate::solve::bundled::Bundled;
+use crate::solve::certified::Certified;
 use crate::solve::external::External;
 use crate::solve::refute::{ProofPlan, accept_proof, solve_bundled, temp_proof_file};
 use crate::solve::{Backend, Limits, Outcome, SolveStats};
@@ -150,6 +151,18 @@ pub fn decide_parallel(
     let encode_seconds = t0.elapsed().as_secs_f64();
     let start = Instant::now();
     let cubes = make_cubes(&enc, opts.cubes)?;
+    if cubes.is_empty() {
+        // The profile exclusions leave no profile at all: the formula's
+        // profile clauses alone are contradictory, which one solve finds at
+        // once, and there is nothing to split (as `decide_auto` does).
+        Progress::new(limits.progress).event(|| {
+            "decide: no lex-leader profile survives the profile exclusions; one solve, no cubes"
+                .to_string()
+        });
+        let mut backend = Certified::or_bundled(opts.certify, opts.lrat.clone(), opts.format);
+        let backend: &mut dyn Backend = backend.as_mut();
+        return crate::decide::decide_encoded(q, options, &enc, encode_seconds, backend, limits);
+    }
     let run = CubesRun {
         enc: &enc,
         encode_seconds,

@@ -503,6 +503,7 @@ pub(crate) mod tests {
         let options = EncodeOptions {
             bicliques: false,
             cliques: false,
+            orbits: false,
             ..EncodeOptions::default()
         }
         .resolve(&nonexpansive);

@@ -159,8 +159,10 @@ fn a_split_is_repaired_in_place_and_keeps_its_results() {
                 "--out",
                 "sp",
                 // {−1,0,1}^2 with p = 5 keeps its cubes without
-                // window-cliques (with it, no profile is left to split).
+                // window-cliques and clique-orbits (with them, no profile
+                // is left to split).
                 "--no-window-cliques",
+                "--no-clique-orbits",
             ])
             .run()
     };

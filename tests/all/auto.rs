@@ -30,7 +30,7 @@ fn auto_decide(dir: &TestDir, q: &Q, extra: &[&str]) -> crate::util::Run {
 #[test]
 fn a_question_the_probe_leaves_open_is_refuted_in_cubes_with_one_checked_proof() {
     let dir = TestDir::new();
-    let q = Q::cube(-1, 1, 4, 17).without_window_cliques();
+    let q = Q::cube(-1, 1, 4, 17).without_clique_families();
     let run = auto_decide(&dir, &q, &["--proof", "p.lrat", "--progress", "lines"]);
     run.code(INFEASIBLE)
         .stdout_has("verdict      INFEASIBLE")
@@ -124,7 +124,7 @@ fn a_compact_split_with_the_automatic_cubes_merges_to_the_verdict_of_decide() {
         return;
     }
     let dir = TestDir::new();
-    let q = Q::cube(-1, 1, 4, 17).without_window_cliques();
+    let q = Q::cube(-1, 1, 4, 17).without_clique_families();
     dir.orbitcnf()
         .arg("split")
         .args(q.args())
@@ -187,7 +187,7 @@ fn many_cubes_are_assembled_under_a_low_limit_of_open_files() {
         dir.program("sh").args(["-c", &line]).run()
     };
     // Without window-cliques, which leaves fewer cubes than this test needs.
-    let q = "--dim 3 --grid 0..3 -p 12 --no-window-cliques";
+    let q = "--dim 3 --grid 0..3 -p 12 --no-window-cliques --no-clique-orbits";
     under_limit(&format!("decide {q} --jobs 2 --cubes 400 --proof all.lrat"))
         .code(INFEASIBLE)
         .stdout_has("196 cubes on 2 threads");
@@ -201,6 +201,7 @@ fn many_cubes_are_assembled_under_a_low_limit_of_open_files() {
             "-p",
             "12",
             "--no-window-cliques",
+            "--no-clique-orbits",
             "--output",
             "f.cnf",
         ])

@@ -102,7 +102,7 @@ fn script(dir: &TestDir, name: &str, body: &str) -> String {
 #[test]
 fn split_writes_a_checked_coverage_proof_and_hashes_every_file() {
     let dir = TestDir::new();
-    let q = Q::cube(-1, 1, 3, 9).without_window_cliques();
+    let q = Q::cube(-1, 1, 3, 9).without_clique_families();
     let m = split(&dir, &q, 6, "sp");
     let n = cube_count(&m);
     assert!(n >= 6, "{n} cubes");
@@ -173,7 +173,7 @@ fn split_writes_a_checked_coverage_proof_and_hashes_every_file() {
 #[test]
 fn merge_on_several_threads_reports_what_one_thread_reports() {
     let dir = TestDir::new();
-    let q = Q::cube(-1, 1, 3, 9).without_window_cliques();
+    let q = Q::cube(-1, 1, 3, 9).without_clique_families();
     let n = cube_count(&split(&dir, &q, 8, "sp"));
     assert!(n >= 4, "{n} cubes");
     dir.orbitcnf()
@@ -232,7 +232,7 @@ fn parallel_with_a_killed_worker_then_rerun_refutes_every_cube() {
         return;
     }
     let dir = TestDir::new();
-    let q = Q::cube(-1, 1, 3, 9).without_window_cliques();
+    let q = Q::cube(-1, 1, 3, 9).without_clique_families();
     let n = cube_count(&split(&dir, &q, 6, "sp"));
     let worker = script(
         &dir,
@@ -368,10 +368,10 @@ fn parallel_killed_after_the_first_result_then_rerun_finds_the_orbit() {
 fn decide_jobs_agrees_with_decide_and_certifies_the_whole_cnf() {
     let dir = TestDir::new();
     for q in [
-        Q::cube(-1, 1, 3, 8).without_window_cliques(),
-        Q::cube(-1, 1, 3, 9).without_window_cliques(),
-        Q::cube(-1, 1, 2, 5).without_window_cliques(),
-        Q::cube(0, 3, 2, 5).without_window_cliques(),
+        Q::cube(-1, 1, 3, 8).without_clique_families(),
+        Q::cube(-1, 1, 3, 9).without_clique_families(),
+        Q::cube(-1, 1, 2, 5).without_clique_families(),
+        Q::cube(0, 3, 2, 5).without_clique_families(),
     ] {
         let want = monolithic(&dir, &q);
         let run = dir
@@ -395,7 +395,7 @@ fn decide_jobs_agrees_with_decide_and_certifies_the_whole_cnf() {
         }
     }
     // A bundle from a parallel run passes check-bundle.
-    let q = Q::cube(-1, 1, 3, 9).without_window_cliques();
+    let q = Q::cube(-1, 1, 3, 9).without_clique_families();
     dir.orbitcnf()
         .arg("decide")
         .args(q.args())
@@ -529,7 +529,7 @@ fn cadical_solves_cubes_and_merge_marks_them_uncertified() {
         return;
     }
     let dir = TestDir::new();
-    let q = Q::cube(-1, 1, 3, 9);
+    let q = Q::cube(-1, 1, 3, 9).without_clique_families();
     let n = cube_count(&split(&dir, &q, 4, "sp"));
     for i in 0..n {
         dir.orbitcnf()
@@ -741,7 +741,7 @@ fn lying_solvers_are_caught() {
 #[test]
 fn merge_rejects_a_tampered_split_and_a_tampered_proof() {
     let dir = TestDir::new();
-    let q = Q::cube(-1, 1, 2, 5).without_window_cliques();
+    let q = Q::cube(-1, 1, 2, 5).without_clique_families();
     let n = cube_count(&split(&dir, &q, 3, "sp"));
     for i in 0..n {
         dir.orbitcnf()
@@ -917,7 +917,7 @@ fn cubes_the_bundled_solver_leaves_open_go_to_cadical() {
         return;
     }
     let dir = TestDir::new();
-    let q = Q::cube(-1, 1, 3, 9);
+    let q = Q::cube(-1, 1, 3, 9).without_clique_families();
     let n = cube_count(&split(&dir, &q, 4, "sp"));
     let run = |range: &str, after: &str| {
         dir.orbitcnf()
@@ -987,7 +987,7 @@ fn cubes_the_bundled_solver_leaves_open_go_to_cadical() {
 #[test]
 fn a_failed_hand_off_is_recorded_and_the_range_goes_on() {
     let dir = TestDir::new();
-    let q = Q::cube(-1, 1, 3, 9);
+    let q = Q::cube(-1, 1, 3, 9).without_clique_families();
     let n = cube_count(&split(&dir, &q, 4, "sp"));
     assert!(n >= 3, "{n} cubes");
     let oom = script(&dir, "oom.sh", "echo 'out of memory' >&2\nexit 3\n");
@@ -1047,7 +1047,7 @@ fn decide_hands_the_cubes_it_leaves_open_to_cadical() {
             .args(extra)
             .run()
     };
-    let no = Q::cube(-1, 1, 3, 9).without_window_cliques();
+    let no = Q::cube(-1, 1, 3, 9).without_clique_families();
     assert_eq!(monolithic(&dir, &no), "infeasible");
     let run = handoff(&no, &["--jobs", "2", "--cubes", "4", "--proof", "p.lrat"]);
     let v = check_report(&dir, &no, &run);
@@ -1073,7 +1073,7 @@ fn decide_hands_the_cubes_it_leaves_open_to_cadical() {
     let v = check_report(&dir, &no, &run);
     assert_eq!(v["verdict"], "infeasible");
     assert_eq!(v["strategy"]["cube_rule"], "full-profile");
-    let yes = Q::cube(-1, 1, 3, 8).without_window_cliques();
+    let yes = Q::cube(-1, 1, 3, 8).without_clique_families();
     let run = handoff(&yes, &["--jobs", "2", "--cubes", "4"]);
     let v = check_report(&dir, &yes, &run);
     assert_eq!(v["verdict"], "feasible");
@@ -1121,7 +1121,7 @@ fn n5_period_33_is_refuted_by_certified_cubes() {
 #[test]
 fn a_range_of_cubes_in_one_process_merges_to_the_verdict_of_decide() {
     let dir = TestDir::new();
-    let q = Q::cube(0, 3, 3, 10).without_window_cliques();
+    let q = Q::cube(0, 3, 3, 10).without_clique_families();
     assert_eq!(monolithic(&dir, &q), "infeasible");
     dir.orbitcnf()
         .arg("split")

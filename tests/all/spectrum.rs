@@ -664,6 +664,36 @@ fn spectrum_writes_progress_lines_to_a_log() {
 }
 
 #[test]
+fn decide_jobs_without_a_profile_to_split_makes_one_solve() {
+    // {-1,0,1}^3 has no period 9 (n ≤ 3: the periods are 1..8, Lyons and
+    // Nussbaum 1992 [recalled]); with the clique families every profile is
+    // excluded, so `--jobs` has no cube to run and solves once.
+    let dir = TestDir::new();
+    let run = dir
+        .orbitcnf()
+        .args(["decide", "--dim", "3", "--grid=-1..1", "-p", "9"])
+        .args([
+            "--jobs",
+            "2",
+            "--cubes",
+            "4",
+            "--progress",
+            "lines",
+            "--json",
+        ])
+        .run();
+    run.code(20);
+    let lines = progress_lines(&run);
+    assert!(
+        lines.iter().any(|l| l.contains("one solve, no cubes")),
+        "{lines:#?}"
+    );
+    let v = run.json();
+    assert_eq!(v["verdict"], "infeasible", "{v}");
+    assert_eq!(v["certified"], true, "{v}");
+}
+
+#[test]
 fn decide_jobs_writes_a_progress_line_for_every_finished_cube() {
     // {-1,0,1}^3 has no period 9 (n ≤ 3: the periods are 1..8, Lyons and
     // Nussbaum 1992 [recalled]); every one of the 4 cubes is refuted.
@@ -671,6 +701,7 @@ fn decide_jobs_writes_a_progress_line_for_every_finished_cube() {
     let run = dir
         .orbitcnf()
         .args(["decide", "--dim", "3", "--grid=-1..1", "-p", "9"])
+        .args(["--no-window-cliques", "--no-clique-orbits"])
         .args(["--jobs", "2", "--cubes", "4", "--progress", "lines"])
         .run();
     run.code(20);
@@ -997,7 +1028,13 @@ fn spectrum_decides_hard_periods_in_cubes_with_a_stored_assembled_proof() {
     // stored; 18 then follows from 9 by §9 without a search.
     let dir = TestDir::new();
     // Without window-cliques, which leaves {−1,0,1}^3 no profile to split.
-    let q = ["--dim", "3", "--grid=-1..1", "--no-window-cliques"];
+    let q = [
+        "--dim",
+        "3",
+        "--grid=-1..1",
+        "--no-window-cliques",
+        "--no-clique-orbits",
+    ];
     let sweep = |store: &str, extra: &[&str]| {
         let run = dir
             .orbitcnf()
@@ -1057,7 +1094,13 @@ fn spectrum_hands_the_cubes_of_a_hard_period_to_cadical() {
     // assembled proof is stored and accepted by `verify-proof`.
     let dir = TestDir::new();
     // Without window-cliques, which leaves {−1,0,1}^3 no profile to split.
-    let q = ["--dim", "3", "--grid=-1..1", "--no-window-cliques"];
+    let q = [
+        "--dim",
+        "3",
+        "--grid=-1..1",
+        "--no-window-cliques",
+        "--no-clique-orbits",
+    ];
     let v = dir
         .orbitcnf()
         .arg("spectrum")
@@ -1100,6 +1143,7 @@ fn spectrum_runs_hard_periods_as_resumable_splits_in_its_store() {
         "3",
         "--grid=-1..1",
         "--no-window-cliques",
+        "--no-clique-orbits",
         "--periods",
     ];
     // 16 cubes unless `extra` asks for another count.

@@ -307,18 +307,19 @@ pub struct Q {
     /// The period p.
     pub period: usize,
     /// Encoding flags every command of the question gets after the
-    /// question's own arguments ([`Q::without_window_cliques`]).
+    /// question's own arguments ([`Q::without_clique_families`]).
     pub flags: Vec<&'static str>,
 }
 
 impl Q {
-    /// The question encoded without `window-cliques`. On the small boxes
-    /// the split and cube tests use ({−1,0,1}^3 with p = 9, {−1,0,1}^4
-    /// with p = 17, …) that family leaves no profile at all, so that the
-    /// question has no cube to split; without it they keep the cubes the
-    /// tests were written for.
-    pub fn without_window_cliques(mut self) -> Q {
+    /// The question encoded without `window-cliques` and `clique-orbits`.
+    /// On the small boxes the split and cube tests use ({−1,0,1}^3 with
+    /// p = 9, {−1,0,1}^4 with p = 17, …) those families leave no profile
+    /// at all, so that the question has no cube to split; without them
+    /// they keep the cubes the tests were written for.
+    pub fn without_clique_families(mut self) -> Q {
         self.flags.push("--no-window-cliques");
+        self.flags.push("--no-clique-orbits");
         self
     }
 

@@ -105,6 +105,7 @@ pub fn for_domain(options: &EncodeOptions) -> EncodeOptions {
         nested: false,
         bicliques: false,
         cliques: false,
+        orbits: false,
         subbox: false,
         gaps: false,
         reverse_ladder: false,

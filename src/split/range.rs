@@ -17,7 +17,7 @@
 //! caller asks for unchecked claims), and `merge` re-checks them all.
 
 use std::path::Path;
-use std::sync::atomic::{AtomicBool, Ordering};
+use std::sync::atomic::{AtomicBool, AtomicUsize, Ordering};
 use std::time::{Duration, Instant};
 
 use super::run::{self as cube_run, CubeRunner, CubeStatus, RunOutcome, SequenceRun};
@@ -290,6 +290,10 @@ pub fn run_blocks(
     let mut progress = Progress::new(plan.progress);
     let started = Instant::now();
     let (mut done, total) = (0usize, last - first + 1);
+    // Cubes finished inside blocks still running, so that the status line
+    // moves while a block of slow cubes runs (a block is counted into
+    // `done` when it finishes).
+    let in_running = AtomicUsize::new(0);
     let mut broken: Option<Error> = None;
     // One runner per worker, kept from block to block.
     crate::pool::run_streams(
@@ -313,6 +317,7 @@ pub fn run_blocks(
                 .and_then(|r| {
                     run_range_with(r, dir, lo, hi, o, &mut |e| {
                         events.push(e);
+                        in_running.fetch_add(1, Ordering::SeqCst);
                         Ok(())
                     })
                 });
@@ -323,6 +328,7 @@ pub fn run_blocks(
             let crate::pool::Event::Finished(i, (events, err)) = event else {
                 progress.status(|| {
                     let elapsed = started.elapsed().as_secs_f64();
+                    let done = done + in_running.load(Ordering::SeqCst);
                     format!(
                         "{label}: {done} of {total} cubes done, {} of {} blocks running on {}, {}{}",
                         state.running.len(),
@@ -336,6 +342,7 @@ pub fn run_blocks(
             };
             let (lo, hi) = blocks[i];
             done += hi - lo + 1;
+            in_running.fetch_sub(events.len(), Ordering::SeqCst);
             let handled = handle(BlockDone {
                 first: lo,
                 last: hi,

@@ -323,6 +323,13 @@ impl Q {
         self
     }
 
+    /// The question encoded without `clique-orbits`, as the default was
+    /// before that family (the runs recorded before it).
+    pub fn without_clique_orbits(mut self) -> Q {
+        self.flags.push("--no-clique-orbits");
+        self
+    }
+
     /// `{lo..hi}^n` with period `p`.
     pub fn cube(lo: i64, hi: i64, n: usize, p: usize) -> Q {
         Q {

@@ -564,10 +564,47 @@ fn m1_n5_period_58_is_refuted_by_spectrum_in_its_store() {
 #[test]
 #[ignore = "about a minute on one core (one solve of some 180,000 conflicts and its LRAT check); run on purpose"]
 fn m1_n5_period_57_is_refuted_in_one_solve() {
+    refuted_by_decide(57, 1);
+}
+
+/// {-1,0,1}^5, p = 62 and p = 63, refuted by computation on 2026-12-06
+/// (README, "What is proven and what is open") with `clique-orbits` in
+/// the default: `spectrum`'s probe of 60 s gave no answer, then 8 (p = 62)
+/// and 31 (p = 63) whole-profile cubes in memory on 2 threads, 8 min 12 s
+/// and 4 min 57 s in all; p = 62's assembled proof 1,881,039 steps,
+/// checked in 29 s. `decide` takes the same steps. Nothing published
+/// settles them; the expectation is orbitcnf's own certified answer.
+#[test]
+#[ignore = "about 10 minutes on 2 cores (a probe of 60 s, then 8 whole-profile cubes of minutes each); run on purpose"]
+fn m1_n5_period_62_is_refuted_in_cubes_by_decide() {
+    refuted_by_decide(62, 2);
+}
+
+#[test]
+#[ignore = "about 6 minutes on 2 cores (a probe of 60 s, then 31 whole-profile cubes); run on purpose"]
+fn m1_n5_period_63_is_refuted_in_cubes_by_decide() {
+    refuted_by_decide(63, 2);
+}
+
+/// {-1,0,1}^5, p = 60, refuted by computation on 2026-12-06 (README) with
+/// `clique-orbits` in the default: 168 profile-prefix cubes in the store,
+/// 23 handed off after 10 s to a CaDiCaL that writes LRAT, the longest
+/// 579 s; 29 min 27 s in all. Nothing published settles it; the
+/// expectation is orbitcnf's own certified answer.
+#[test]
+#[ignore = "about 30 minutes on 2 cores (the probe, 168 cubes, some 20 handed off to a CaDiCaL named by ORBITCNF_LRAT_CADICAL for up to 10 minutes); run on purpose"]
+fn m1_n5_period_60_is_refuted_by_spectrum_in_its_store() {
+    refuted_by_spectrum_in_its_store(&Q::cube(-1, 1, 5, 60), 168);
+}
+
+/// `decide` on {−1,0,1}^5 with period `p` and `jobs` threads: infeasible,
+/// certified.
+fn refuted_by_decide(p: usize, jobs: usize) {
     let dir = TestDir::new();
     let run = dir
         .orbitcnf()
-        .args(["decide", "--dim", "5", "--grid=-1..1", "-p", "57", "--json"])
+        .args(["decide", "--dim", "5", "--grid=-1..1", "-p", &p.to_string()])
+        .args(["--jobs", &jobs.to_string(), "--json"])
         .run();
     run.code(20);
     let v = run.json();

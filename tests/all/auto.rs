@@ -567,23 +567,42 @@ fn m1_n5_period_57_is_refuted_in_one_solve() {
     refuted_by_decide(57, 1);
 }
 
-/// {-1,0,1}^5, p = 62 and p = 63, refuted by computation on 2026-12-06
-/// (README, "What is proven and what is open") with `clique-orbits` in
-/// the default: `spectrum`'s probe of 60 s gave no answer, then 8 (p = 62)
-/// and 31 (p = 63) whole-profile cubes in memory on 2 threads, 8 min 12 s
-/// and 4 min 57 s in all; p = 62's assembled proof 1,881,039 steps,
-/// checked in 29 s. `decide` takes the same steps. Nothing published
-/// settles them; the expectation is orbitcnf's own certified answer.
+/// {-1,0,1}^5, p = 62, 63, 64, 65, 69, 75 and 77, refuted by computation
+/// on 2026-12-06 (README, "What is proven and what is open";
+/// docs/campaigns.md) with `clique-orbits` in the default: `spectrum`'s
+/// probe of 60 s gave no answer, then whole-profile cubes in memory on 2
+/// threads, those the bundled solver left open for 10 s handed off to a
+/// CaDiCaL that writes LRAT; the assembled proof checked and kept in the
+/// store. p = 62: 8 cubes, 8 min 12 s; 63: 31 cubes, 4 min 57 s (and by
+/// `decide --jobs 2` alone, without hand-offs, in 637 s as this test beside
+/// other work); 64: 62 cubes, 24 min 1 s (a proof of 3.9 GB); 65: 10
+/// cubes, 2 min 21 s; 69: 7 cubes, 1 min 51 s; 75: 31 cubes, 2 min 29 s;
+/// 77: 9 cubes, 2 min 30 s. Nothing published settles them; the
+/// expectation is orbitcnf's own certified answer.
 #[test]
-#[ignore = "about 10 minutes on 2 cores (a probe of 60 s, then 8 whole-profile cubes of minutes each); run on purpose"]
-fn m1_n5_period_62_is_refuted_in_cubes_by_decide() {
-    refuted_by_decide(62, 2);
+#[ignore = "about 10 minutes on 2 cores (a probe of 60 s, 8 whole-profile cubes, one handed off to a CaDiCaL named by ORBITCNF_LRAT_CADICAL); run on purpose"]
+fn m1_n5_period_62_is_refuted_by_spectrum_in_memory() {
+    refuted_by_spectrum_in_memory(62, 8);
 }
 
 #[test]
-#[ignore = "about 6 minutes on 2 cores (a probe of 60 s, then 31 whole-profile cubes); run on purpose"]
+#[ignore = "about 10 minutes on 2 cores (a probe of 60 s, then 31 whole-profile cubes, no hand-off); run on purpose"]
 fn m1_n5_period_63_is_refuted_in_cubes_by_decide() {
     refuted_by_decide(63, 2);
+}
+
+#[test]
+#[ignore = "about 25 minutes on 2 cores and 4 GB of disk (62 whole-profile cubes, 10 handed off to a CaDiCaL named by ORBITCNF_LRAT_CADICAL, a proof of 3.9 GB); run on purpose"]
+fn m1_n5_period_64_is_refuted_by_spectrum_in_memory() {
+    refuted_by_spectrum_in_memory(64, 62);
+}
+
+#[test]
+#[ignore = "a few minutes on 2 cores (the probe, then whole-profile cubes of 65, 69, 75 and 77, some handed off to a CaDiCaL named by ORBITCNF_LRAT_CADICAL); run on purpose"]
+fn m1_n5_periods_65_69_75_77_are_refuted_by_spectrum_in_memory() {
+    for (p, cubes) in [(65, 10), (69, 7), (75, 31), (77, 9)] {
+        refuted_by_spectrum_in_memory(p, cubes);
+    }
 }
 
 /// {-1,0,1}^5, p = 60, refuted by computation on 2026-12-06 (README) with
@@ -595,6 +614,30 @@ fn m1_n5_period_63_is_refuted_in_cubes_by_decide() {
 #[ignore = "about 30 minutes on 2 cores (the probe, 168 cubes, some 20 handed off to a CaDiCaL named by ORBITCNF_LRAT_CADICAL for up to 10 minutes); run on purpose"]
 fn m1_n5_period_60_is_refuted_by_spectrum_in_its_store() {
     refuted_by_spectrum_in_its_store(&Q::cube(-1, 1, 5, 60), 168);
+}
+
+/// `spectrum` of {−1,0,1}^5 at the period `p` alone, with a store and the
+/// hand-off to CaDiCaL: infeasible by one assembled proof of `cubes`
+/// whole-profile cubes, checked.
+fn refuted_by_spectrum_in_memory(p: usize, cubes: u64) {
+    let cadical = std::env::var(LRAT_CADICAL).unwrap_or_else(|_| {
+        panic!("this check needs {LRAT_CADICAL}, the path of a CaDiCaL that writes LRAT (--lrat)")
+    });
+    let dir = TestDir::new();
+    let run = dir
+        .orbitcnf()
+        .args(["spectrum", "--dim", "5", "--grid=-1..1"])
+        .args(["--periods", &p.to_string(), "--jobs", "2", "--store", "st"])
+        .args(["--json", "--handoff", &format!("{cadical} -q --lrat")])
+        .args(["--handoff-proof", "lrat"])
+        .run();
+    run.code(0);
+    let v = run.json();
+    let row = &v["rows"][0];
+    assert_eq!(row["period"], p);
+    assert_eq!(row["verdict"], "infeasible", "{row}");
+    assert_eq!(row["answer"]["backing"], "checked-proof", "{row}");
+    assert_eq!(row["answer"]["strategy"]["cubes"], cubes, "{row}");
 }
 
 /// `decide` on {−1,0,1}^5 with period `p` and `jobs` threads: infeasible,
